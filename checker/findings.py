@@ -1,0 +1,128 @@
+"""The one record every check produces, and the report that carries them.
+
+Findings are frozen so that selection, waivers and baselines can only make new
+ones (``dataclasses.replace``), never mutate what an analysis said.
+"""
+
+from __future__ import annotations
+
+import hashlib
+from dataclasses import dataclass, field
+from enum import Enum
+from typing import Any
+
+
+class Severity(str, Enum):
+    """SARIF's three levels, ordered from most to least serious."""
+
+    ERROR = "error"
+    WARNING = "warning"
+    NOTE = "note"
+
+    @property
+    def rank(self) -> int:
+        """Higher is more serious (error 3, warning 2, note 1)."""
+        return {"error": 3, "warning": 2, "note": 1}[self.value]
+
+    @classmethod
+    def parse(cls, text: str) -> "Severity":
+        try:
+            return cls(text.strip().lower())
+        except ValueError:
+            raise ValueError(f"unknown severity {text!r} (use error, warning or note)") from None
+
+
+@dataclass(frozen=True)
+class Span:
+    """A region of a source file. Lines and columns are 1-based; ``end_column``
+    is the column just after the last character (as SARIF's ``endColumn``)."""
+
+    line: int
+    column: int
+    end_line: int
+    end_column: int
+
+    @classmethod
+    def point(cls, line: int, column: int, width: int = 1) -> "Span":
+        return cls(line, column, line, column + max(width, 1))
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One problem found in one model file.
+
+    ``anchor`` names *what* the finding is about without line numbers (for example
+    ``"rate v"`` or ``"expect relative_degree(y)"``); with the rule, the plant and
+    the point it makes the fingerprint that survives unrelated edits.
+    """
+
+    rule: str
+    severity: Severity
+    message: str
+    span: Span | None = None
+    point: str | None = None
+    hint: str | None = None
+    anchor: str = ""
+    waived: bool = False
+    reason: str | None = None
+    baseline: str | None = None  # "introduced" | "known" | "fixed" under --since
+
+    def fingerprint(self, plant: str | None) -> str:
+        """A stable hash of what the finding is about (not where it sits)."""
+        basis = "\x1f".join([self.rule, plant or "", self.anchor or self.message, self.point or ""])
+        return hashlib.sha256(basis.encode("utf-8")).hexdigest()[:32]
+
+    @property
+    def sort_key(self) -> tuple[Any, ...]:
+        span = self.span or Span(0, 0, 0, 0)
+        return (span.line, span.column, self.rule, self.point or "", self.message)
+
+
+@dataclass
+class FileReport:
+    """Everything plantlint says about one file."""
+
+    path: str
+    plant: str | None = None
+    findings: list[Finding] = field(default_factory=list)
+    analysis: dict[str, Any] | None = None
+    source: str | None = None  # the text, for showing spans; never written back
+    structure_changes: list[dict[str, Any]] = field(default_factory=list)
+
+    def sorted_findings(self) -> list[Finding]:
+        return sorted(self.findings, key=lambda f: f.sort_key)
+
+
+@dataclass
+class Report:
+    """The outcome of one run over many files."""
+
+    files: list[FileReport]
+    tool_version: str
+    fail_on: Severity = Severity.ERROR
+    since: str | None = None
+
+    def counts(self) -> dict[str, int]:
+        out = {"files": len(self.files), "errors": 0, "warnings": 0, "notes": 0, "waived": 0}
+        for report in self.files:
+            for f in report.findings:
+                if f.baseline == "fixed":
+                    continue
+                if f.waived:
+                    out["waived"] += 1
+                else:
+                    out[f.severity.value + "s"] += 1
+        return out
+
+    def failing(self) -> list[Finding]:
+        """Findings that make the run fail: unwaived, at or above the fail level,
+        and (under ``--since``) introduced by the change."""
+        out = []
+        for report in self.files:
+            for f in report.findings:
+                if f.waived or f.severity.rank < self.fail_on.rank:
+                    continue
+                if self.since is not None and f.baseline != "introduced":
+                    continue
+                out.append(f)
+        return out

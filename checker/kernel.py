@@ -151,7 +151,6 @@ class Kernel:
         own expressions are undefined."""
         if self._samples is not None:
             return self._samples
-        rng = random.Random(self.seed)
         boxes = {**self.plant.state_box, **self.plant.param_box}
         guard_exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0] + list(self.h)
         guard: Program | None
@@ -159,23 +158,7 @@ class Kernel:
             guard = Program(guard_exprs, self.free_symbols())
         except UnsupportedExpression:
             guard = None
-        out: list[dict[sp.Symbol, Fraction]] = []
-        tries = 0
-        while len(out) < SCREEN_POINTS and tries < 20 * SCREEN_POINTS:
-            tries += 1
-            point: dict[sp.Symbol, Fraction] = {}
-            for s in self.free_symbols():
-                lo, hi = _float_range(boxes.get(s))
-                frac = Fraction(rng.randint(1, 997), 1000)
-                value = Fraction(lo) + (Fraction(hi) - Fraction(lo)) * frac
-                # keep the denominator small and the value off trivial points
-                value = value.limit_denominator(4093) + Fraction(1, 7919)
-                point[s] = value
-            if guard is not None:
-                vals = guard.run([_ball_of(point[s], 128) for s in self.free_symbols()])
-                if not all(v.is_finite() for v in vals):
-                    continue
-            out.append(point)
+        out = random_samples(self.free_symbols(), boxes, self.seed, guard=guard)
         self._samples = out
         return out
 
@@ -202,33 +185,7 @@ class Kernel:
         return result
 
     def _screen_then_confirm(self, expr: sp.Expr) -> ZeroTest:
-        symbols = self.free_symbols()
-        try:
-            prog = Program([expr], symbols)
-        except UnsupportedExpression:
-            prog = None
-        if prog is not None:
-            for point in self.samples():
-                for prec in (128, 512):
-                    b = prog.run([_ball_of(point[s], prec) for s in symbols], prec=prec)[0]
-                    if b.is_finite() and not b.contains(0):
-                        return ZeroTest(False, True, "screened")
-                    if b.is_finite() and b.rad() < 2.0 ** (-prec // 2):
-                        break  # a tight ball around zero: more digits will not help
-        return self._confirm(expr)
-
-    def _confirm(self, expr: sp.Expr) -> ZeroTest:
-        if not _has_functions(expr):
-            if sp.cancel(sp.together(expr)) == 0:
-                return ZeroTest(True, True, "cancel")
-            return ZeroTest(False, True, "cancel")
-        if sp.count_ops(expr) <= SIMPLIFY_OPS_LIMIT:
-            e = sp.expand(sp.together(expr))
-            if e == 0:
-                return ZeroTest(True, True, "cancel")
-            if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
-                return ZeroTest(True, True, "simplify")
-        return ZeroTest(True, False, "unconfirmed")
+        return screen_then_confirm(expr, self.free_symbols(), self.samples())
 
     def value_at(self, expr: sp.Expr, point: dict[sp.Symbol, sp.Expr]) -> PointValue:
         """The value of ``expr`` at an exact point, rigorously.
@@ -263,6 +220,69 @@ class Kernel:
         if is_zero is None:
             return PointValue(_safe_ball(exact), True)  # within 2^-1024 of zero
         return PointValue(_safe_ball(exact), bool(is_zero))
+
+
+def screen_then_confirm(
+    expr: sp.Expr, symbols: Sequence[sp.Symbol], samples: Sequence[dict[sp.Symbol, Fraction]]
+) -> ZeroTest:
+    """The two-stage zero test on given sample points (see the module docstring)."""
+    try:
+        prog = Program([expr], symbols)
+    except UnsupportedExpression:
+        prog = None
+    if prog is not None:
+        for point in samples:
+            for prec in (128, 512):
+                b = prog.run([_ball_of(point[s], prec) for s in symbols], prec=prec)[0]
+                if b.is_finite() and not b.contains(0):
+                    return ZeroTest(False, True, "screened")
+                if b.is_finite() and b.rad() < 2.0 ** (-prec // 2):
+                    break  # a tight ball around zero: more digits will not help
+    return confirm_zero(expr)
+
+
+def confirm_zero(expr: sp.Expr) -> ZeroTest:
+    """Symbolic confirmation, bounded: exact for rational expressions, budgeted otherwise."""
+    if not _has_functions(expr):
+        if sp.cancel(sp.together(expr)) == 0:
+            return ZeroTest(True, True, "cancel")
+        return ZeroTest(False, True, "cancel")
+    if sp.count_ops(expr) <= SIMPLIFY_OPS_LIMIT:
+        e = sp.expand(sp.together(expr))
+        if e == 0:
+            return ZeroTest(True, True, "cancel")
+        if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
+            return ZeroTest(True, True, "simplify")
+    return ZeroTest(True, False, "unconfirmed")
+
+
+def random_samples(
+    symbols: Sequence[sp.Symbol],
+    boxes: dict[sp.Symbol, tuple[sp.Expr, sp.Expr]],
+    seed: int,
+    count: int = SCREEN_POINTS,
+    guard: Program | None = None,
+) -> list[dict[sp.Symbol, Fraction]]:
+    """Reproducible random rational points inside ``boxes`` (or [-2, 2] where a
+    symbol has no box), skipping points where ``guard`` is undefined."""
+    rng = random.Random(seed)
+    out: list[dict[sp.Symbol, Fraction]] = []
+    tries = 0
+    while len(out) < count and tries < 20 * count:
+        tries += 1
+        point: dict[sp.Symbol, Fraction] = {}
+        for s in symbols:
+            lo, hi = _float_range(boxes.get(s))
+            frac = Fraction(rng.randint(1, 997), 1000)
+            value = lo + (hi - lo) * frac
+            # keep the denominator small and the value off trivial points
+            point[s] = value.limit_denominator(4093) + Fraction(1, 7919)
+        if guard is not None:
+            vals = guard.run([_ball_of(point[s], 128) for s in symbols])
+            if not all(v.is_finite() for v in vals):
+                continue
+        out.append(point)
+    return out
 
 
 def _safe_ball(e: sp.Expr) -> arb:

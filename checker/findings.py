@@ -78,6 +78,16 @@ class Finding:
         return (span.line, span.column, self.rule, self.point or "", self.message)
 
 
+@dataclass(frozen=True)
+class Waiver:
+    """`waive RULE [at POINT] "reason"` from a model file."""
+
+    rule: str
+    point: str | None
+    reason: str
+    span: Span
+
+
 @dataclass
 class FileReport:
     """Everything plantlint says about one file."""
@@ -126,3 +136,29 @@ class Report:
                     continue
                 out.append(f)
         return out
+
+
+# -- plain-data round trip (cache entries, worker processes) ------------------------
+
+def finding_to_data(f: Finding) -> dict[str, Any]:
+    span = f.span
+    return {
+        "rule": f.rule, "severity": f.severity.value, "message": f.message,
+        "span": [span.line, span.column, span.end_line, span.end_column] if span else None,
+        "point": f.point, "hint": f.hint, "anchor": f.anchor,
+    }
+
+
+def finding_from_data(d: dict[str, Any]) -> Finding:
+    span = Span(*d["span"]) if d.get("span") else None
+    return Finding(d["rule"], Severity(d["severity"]), d["message"], span, point=d.get("point"),
+                   hint=d.get("hint"), anchor=d.get("anchor", ""))
+
+
+def waiver_to_data(w: Waiver) -> dict[str, Any]:
+    s = w.span
+    return {"rule": w.rule, "point": w.point, "reason": w.reason, "span": [s.line, s.column, s.end_line, s.end_column]}
+
+
+def waiver_from_data(d: dict[str, Any]) -> Waiver:
+    return Waiver(d["rule"], d.get("point"), d["reason"], Span(*d["span"]))

@@ -1,0 +1,7 @@
+"""``python -m checker`` runs the plantlint command line."""
+
+import sys
+
+from .cli import main
+
+sys.exit(main())

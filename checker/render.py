@@ -1,0 +1,73 @@
+"""Showing exact expressions and numbers to people, compactly and in the model's own syntax."""
+
+from __future__ import annotations
+
+import sympy as sp
+from sympy.printing.str import StrPrinter
+
+
+class _PlantPrinter(StrPrinter):
+    """sympy's string printer, with `^` for powers as in .plant files."""
+
+    def _print_Pow(self, expr: sp.Pow, rational: bool = False) -> str:
+        text = super()._print_Pow(expr, rational)
+        return text.replace("**", "^")
+
+    def _print_Abs(self, expr: sp.Abs) -> str:
+        return f"abs({self._print(expr.args[0])})"
+
+
+_PRINTER = _PlantPrinter({"order": "none"})
+
+
+def show_expr(expr: sp.Expr, limit: int = 120) -> str:
+    """An expression as a person would write it in a .plant file, cut at ``limit`` chars."""
+    if expr.is_Rational and not expr.is_Integer:
+        decimal = _decimal(expr)
+        if decimal is not None:
+            return decimal
+    text = _PRINTER.doprint(expr).replace("**", "^")
+    if len(text) > limit:
+        ops = sp.count_ops(expr)
+        text = text[: limit - 20].rstrip() + f" ... ({ops} operations)"
+    return text
+
+
+def show_number(value: sp.Expr | float, digits: int = 6) -> str:
+    """Exact when short (rationals, 1/3), else a decimal with ``digits`` significant digits."""
+    if isinstance(value, sp.Basic):
+        if value.is_Integer:
+            return str(value)
+        if value.is_Rational:
+            dec = _decimal(value)
+            if dec is not None:
+                return dec
+            if len(str(value)) <= 12:
+                return str(value)
+        try:
+            value = float(value)
+        except (TypeError, ValueError):
+            return show_expr(value)
+    return f"{value:.{digits}g}"
+
+
+def _decimal(r: sp.Rational) -> str | None:
+    """1/4 -> 0.25 when the decimal expansion is finite and short."""
+    q = int(r.q)
+    twos = fives = 0
+    while q % 2 == 0:
+        q //= 2
+        twos += 1
+    while q % 5 == 0:
+        q //= 5
+        fives += 1
+    if q != 1:
+        return None
+    places = max(twos, fives)
+    if places > 9:
+        return None
+    scaled = abs(int(r.p)) * 10**places // int(r.q)
+    text = str(scaled).rjust(places + 1, "0")
+    whole, frac = text[:-places] or "0", text[-places:]
+    sign = "-" if r < 0 else ""
+    return f"{sign}{whole}.{frac}".rstrip("0").rstrip(".") if places else f"{sign}{whole}"

@@ -17,7 +17,7 @@ import sympy as sp
 from .balls import UnsupportedExpression
 from .findings import Finding, Severity
 from .kernel import Kernel
-from .plant import Plant
+from .plant import Plant, as_expr
 
 #: Outcomes of :func:`solve_point`.
 STATUSES = ("equilibrium", "not_equilibrium", "undetermined", "no_solution", "missing_states", "undefined")
@@ -48,6 +48,7 @@ def number_decider(kernel: Kernel) -> ZeroDecider:
     """``decide(c)`` -> True/False for "c is exactly zero", None when undefined."""
 
     def decide(value: sp.Expr) -> bool | None:
+        value = as_expr(value)
         if value == 0:
             return True
         if value.is_Rational:
@@ -129,7 +130,7 @@ def exact_rank(rows: Sequence[Sequence[sp.Expr]], decide: ZeroDecider) -> int:
     """Rank of a matrix of exact numbers, with rigorous zero decisions."""
     if not rows:
         return 0
-    _, pivots = gauss_jordan([list(r) for r in rows], len(rows[0]), decide)
+    _, pivots = gauss_jordan([[as_expr(e) for e in r] for r in rows], len(rows[0]), decide)
     return len(pivots)
 
 
@@ -137,6 +138,7 @@ def exact_rank(rows: Sequence[Sequence[sp.Expr]], decide: ZeroDecider) -> int:
 def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel: Kernel | None = None) -> Equilibrium:
     """Check the declared point ``name`` and solve for the inputs it leaves out."""
     kernel = kernel or Kernel(plant)
+    given = {s: as_expr(v) for s, v in given.items()}
     decide = number_decider(kernel)
     anchor = f"point {name}"
     findings: list[Finding] = []

@@ -1,0 +1,367 @@
+"""Relative degree, decoupling matrix and regularity, held against outside sources.
+
+Sources: scipy.signal.ss2tf (pole excess of linear plants), numpy (ranks),
+sympy written another way (Lie derivatives and brackets via Matrix.jacobian),
+and textbook examples recalled from memory (named beside each test).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+import scipy.signal
+import sympy as sp
+
+from checker.findings import Severity
+from checker.kernel import Kernel
+from checker.plant import Plant
+from checker.structure import (
+    analyse_structure,
+    certify_envelope,
+    envelope_json,
+    point_json,
+    structure_at_point,
+    structure_json,
+)
+
+I = sp.Integer
+R = sp.Rational
+x1, x2, x3, x4, u, u1, u2 = sp.symbols("x1 x2 x3 x4 u u1 u2")
+
+
+def rules(findings) -> list[str]:
+    return sorted(f.rule for f in findings)
+
+
+def linear_plant(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> Plant:
+    n, m = B.shape
+    xs = sp.symbols(f"z1:{n + 1}")
+    us = sp.symbols(f"v1:{m + 1}")
+    f = [sum(int(A[i, k]) * xs[k] for k in range(n)) for i in range(n)]
+    g = [[I(int(B[i, j])) for i in range(n)] for j in range(m)]
+    h = [sum(int(C[r, k]) * xs[k] for k in range(n)) for r in range(C.shape[0])]
+    return Plant.from_matrices("linear", list(xs), list(us), f, g, h)
+
+
+def pole_excess(num: np.ndarray, den: np.ndarray) -> int | None:
+    """deg den - deg num after trimming numerically-zero leading coefficients."""
+    def degree(c: np.ndarray) -> int | None:
+        c = np.atleast_1d(np.asarray(c, dtype=float))
+        tol = 1e-8 * max(1.0, float(np.max(np.abs(c))))
+        nz = np.nonzero(np.abs(c) > tol)[0]
+        return None if len(nz) == 0 else len(c) - 1 - int(nz[0])
+    dn = degree(num)
+    return None if dn is None else degree(den) - dn  # type: ignore[operator]
+
+
+# -- linear plants against scipy.signal.ss2tf -----------------------------------------------
+def test_siso_relative_degree_is_the_pole_excess_of_the_transfer_function() -> None:
+    """Outside source: scipy.signal.ss2tf (pole excess of C (sI - A)^-1 B)."""
+    rng = np.random.default_rng(20240611)
+    seen = set()
+    for _ in range(40):
+        n = int(rng.integers(2, 5))
+        A = rng.integers(-2, 3, size=(n, n))
+        B = rng.integers(-1, 2, size=(n, 1)) * (rng.random((n, 1)) < 0.5)
+        C = rng.integers(-1, 2, size=(1, n)) * (rng.random((1, n)) < 0.6)
+        num, den = scipy.signal.ss2tf(A.astype(float), B.astype(float), C.astype(float), np.zeros((1, 1)))
+        expected = pole_excess(num[0], den)
+        s = analyse_structure(Kernel(linear_plant(A, B, C)))
+        assert s.relative_degree["y1"] == expected, (A, B, C)
+        seen.add(expected)
+    assert len(seen) >= 3  # the draw exercised several relative degrees (and unreachable outputs)
+
+
+def test_mimo_relative_degrees_are_the_smallest_pole_excess_per_output() -> None:
+    """Outside source: scipy.signal.ss2tf per input column; r_i = min_j excess(G_ij)."""
+    rng = np.random.default_rng(7)
+    for _ in range(15):
+        n = 4
+        A = rng.integers(-2, 3, size=(n, n))
+        B = rng.integers(-1, 2, size=(n, 2)) * (rng.random((n, 2)) < 0.5)
+        C = rng.integers(-1, 2, size=(2, n)) * (rng.random((2, n)) < 0.6)
+        s = analyse_structure(Kernel(linear_plant(A, B, C)))
+        for i in range(2):
+            excess = []
+            for j in range(2):
+                num, den = scipy.signal.ss2tf(A.astype(float), B.astype(float), C.astype(float), np.zeros((2, 2)), input=j)
+                e = pole_excess(num[i], den)
+                if e is not None:
+                    excess.append(e)
+            assert s.relative_degree[f"y{i + 1}"] == (min(excess) if excess else None)
+        if s.decoupling is not None:
+            # A_ij = C_i A^(r_i - 1) B_j for linear plants; its rank from numpy
+            rows = [C[i] @ np.linalg.matrix_power(A, s.outputs[i].relative_degree - 1) @ B for i in range(2)]
+            assert s.generic_rank == np.linalg.matrix_rank(np.array(rows, dtype=float))
+
+
+# -- textbook examples -------------------------------------------------------------------------
+def van_der_pol(h: sp.Expr, box: dict | None = None) -> Plant:
+    eps = sp.Symbol("eps")
+    return Plant.from_matrices(
+        "vdp", [x1, x2], [u], [x2, -x1 + eps * (1 - x1**2) * x2], [[0, 1]], [h], ["y"],
+        params=(eps,), param_nominal={eps: I(1)}, param_box={eps: (R(1, 10), I(2))},
+        state_box=box or {x1: (I(-2), I(2)), x2: (I(-2), I(2))},
+    )
+
+
+def test_khalil_example_13_6_van_der_pol_outputs() -> None:
+    """Khalil, Nonlinear Systems 3rd ed., Example 13.6 (from memory): y = x1 has relative
+    degree 2, y = x2 relative degree 1, y = x1 + x2^2 relative degree 1 where x2 != 0."""
+    assert analyse_structure(Kernel(van_der_pol(x1))).relative_degree == {"y": 2}
+    assert analyse_structure(Kernel(van_der_pol(x2))).relative_degree == {"y": 1}
+    k = Kernel(van_der_pol(x1 + x2**2))
+    s = analyse_structure(k)
+    assert s.relative_degree == {"y": 1}
+    assert sp.expand(s.outputs[0].row[0] - 2 * x2) == 0
+    off = structure_at_point(k, s, "off", {x1: I(1), x2: R(1, 2)})
+    assert off.relative_degree == {"y": 1} and off.well_defined and off.findings == ()
+    on = structure_at_point(k, s, "on", {x1: I(1), x2: I(0), u: I(3)})
+    assert on.relative_degree == {"y": None} and not on.well_defined
+    (f,) = on.findings
+    assert (f.rule, f.severity, f.point, f.anchor) == ("relative-degree-ill-defined", Severity.ERROR, "on", "point on")
+    assert "2*x2" in f.message and "y" in f.message
+    env = certify_envelope(k, s)
+    assert env.regular is False and env.witness is not None and abs(env.witness["x2"]) < 1e-9
+    assert set(env.witness) == {"x1", "x2", "eps"}
+    clear = Kernel(van_der_pol(x1 + x2**2, {x1: (I(-2), I(2)), x2: (R(1, 4), I(2))}))
+    env = certify_envelope(clear, analyse_structure(clear))
+    assert env.regular is True and 0 < env.margin <= 0.5  # min |2 x2| = 1/2 on the box
+
+
+def dc_motor(box: dict) -> Plant:
+    a, b, c, theta, kk = 1, 2, 1, 3, 4  # invented numbers; the structure does not depend on them
+    return Plant.from_matrices(
+        "motor", [x1, x2, x3], [u],
+        [-a * x1, -b * x2 + kk - c * x1 * x3, theta * x1 * x2], [[1, 0, 0]], [x3], ["y"],
+        state_box=box,
+    )
+
+
+def test_khalil_example_13_7_field_controlled_dc_motor() -> None:
+    """Khalil, Nonlinear Systems 3rd ed., Example 13.7 (from memory): y = x3 has relative
+    degree 2 on the region x2 != 0 (L_g L_f h = theta x2)."""
+    box = {x1: (I(-1), I(1)), x2: (R(1, 2), I(2)), x3: (I(-1), I(1))}
+    k = Kernel(dc_motor(box))
+    s = analyse_structure(k)
+    assert s.relative_degree == {"y": 2}
+    assert sp.expand(s.outputs[0].row[0] - 3 * x2) == 0
+    bad = structure_at_point(k, s, "stalled", {x1: I(0), x2: I(0), x3: I(1)})
+    assert bad.relative_degree == {"y": None} and rules(bad.findings) == ["relative-degree-ill-defined"]
+    env = certify_envelope(k, s)
+    assert env.regular is True and env.margin == pytest.approx(1.5, rel=1e-6)  # 3 * min x2
+    k2 = Kernel(dc_motor({x1: (I(-1), I(1)), x2: (I(-1), I(1)), x3: (I(-1), I(1))}))
+    env2 = certify_envelope(k2, analyse_structure(k2))
+    assert env2.regular is False and abs(env2.witness["x2"]) < 1e-9
+    assert rules(env2.findings) == ["envelope-singular"]
+    assert env2.findings[0].anchor == "envelope" and "x2" in env2.findings[0].message
+
+
+def test_slotine_li_example_6_10_singular_where_x2_is_minus_one() -> None:
+    """Slotine & Li, Applied Nonlinear Control, Example 6.10 (from memory): x1' = sin x2 +
+    (x2 + 1) x3, x2' = x1^5 + x3, x3' = x1^2 + u, y = x1: relative degree 2, u appears with
+    the factor x2 + 1."""
+    p = Plant.from_matrices(
+        "sl", [x1, x2, x3], [u], [sp.sin(x2) + (x2 + 1) * x3, x1**5 + x3, x1**2], [[0, 0, 1]], [x1], ["y"],
+        state_box={x1: (I(-1), I(1)), x2: (I(-2), I(0)), x3: (I(-1), I(1))},
+    )
+    k = Kernel(p)
+    s = analyse_structure(k)
+    assert s.relative_degree == {"y": 2}
+    at = structure_at_point(k, s, "edge", {x1: I(0), x2: I(-1), x3: I(0)})
+    assert not at.well_defined and "x2 + 1" in at.findings[0].message
+    assert structure_at_point(k, s, "rest", {x1: I(0), x2: I(0), x3: I(0)}).well_defined
+    env = certify_envelope(k, s)
+    assert env.regular is False and env.witness["x2"] == pytest.approx(-1, abs=1e-9)
+
+
+# -- MIMO: decoupling matrix ---------------------------------------------------------------------
+th, v, a, w = sp.symbols("th v a w")
+px, py = sp.symbols("px py")
+
+
+def test_unicycle_has_a_zero_input_column_and_a_singular_decoupling_matrix() -> None:
+    """Unicycle with position outputs: A = [[cos th, 0], [sin th, 0]], rank 1 everywhere; the
+    standard remedy is dynamic extension (De Luca, Oriolo & Vendittelli, "Control of wheeled
+    mobile robots", 1998 — from memory)."""
+    p = Plant.from_matrices(
+        "unicycle", [px, py, th], [v, w], [0, 0, 0], [[sp.cos(th), sp.sin(th), 0], [0, 0, 1]], [px, py],
+        ["yx", "yy"], state_box={px: (I(-1), I(1)), py: (I(-1), I(1)), th: (-sp.pi, sp.pi)},
+    )
+    k = Kernel(p)
+    s = analyse_structure(k)
+    assert s.relative_degree == {"yx": 1, "yy": 1}
+    assert s.generic_rank == 1 and s.rank_certain and s.zero_columns == (1,)
+    (f,) = s.findings
+    assert (f.rule, f.anchor) == ("decoupling-singular", "plant")
+    assert "singular everywhere" in f.message and "rank 1" in f.message
+    assert "w" in f.hint and "dynamic extension" in f.hint
+    env = certify_envelope(k, s)
+    assert env.regular is False
+
+
+def extended_unicycle(v_range: tuple) -> Plant:
+    return Plant.from_matrices(
+        "unicycle_ext", [px, py, th, v], [a, w],
+        [v * sp.cos(th), v * sp.sin(th), 0, 0], [[0, 0, 0, 1], [0, 0, 1, 0]], [px, py], ["yx", "yy"],
+        state_box={px: (I(-1), I(1)), py: (I(-1), I(1)), th: (-sp.pi, sp.pi), v: v_range},
+    )
+
+
+def test_dynamic_extension_of_the_unicycle_is_singular_only_at_rest() -> None:
+    """Same source: with an integrator on v, A = [[cos th, -v sin th], [sin th, v cos th]],
+    det A = v; rank at points checked with numpy.linalg.matrix_rank."""
+    k = Kernel(extended_unicycle((R(1, 2), I(2))))
+    s = analyse_structure(k)
+    assert s.relative_degree == {"yx": 2, "yy": 2} and s.findings == () and s.generic_rank == 2
+    moving = structure_at_point(k, s, "cruise", {px: I(0), py: I(0), th: R(1, 3), v: I(1)})
+    assert moving.well_defined and moving.decoupling_rank == 2
+    rest = structure_at_point(k, s, "rest", {px: I(0), py: I(0), th: R(1, 3), v: I(0), a: I(0)})
+    numeric = np.array([[np.cos(1 / 3), 0.0], [np.sin(1 / 3), 0.0]])
+    assert rest.decoupling_rank == np.linalg.matrix_rank(numeric) == 1
+    assert rest.relative_degree == {"yx": 2, "yy": 2} and not rest.well_defined
+    (f,) = rest.findings
+    assert (f.rule, f.point, f.anchor) == ("decoupling-singular", "rest", "point rest")
+    assert "rank 1" in f.message and "w" in f.hint
+    assert point_json(rest) == {"relative_degree": {"yx": 2, "yy": 2}, "well_defined": False, "decoupling_rank": 1}
+    env = certify_envelope(k, s)
+    assert env.regular is True and 0 < env.margin <= 0.5  # a lower bound of min |det A| = min v
+    assert envelope_json(env) == {"regular": True, "margin": env.margin, "witness": None}
+    k0 = Kernel(extended_unicycle((I(-1), I(1))))
+    env0 = certify_envelope(k0, analyse_structure(k0))
+    assert env0.regular is False and env0.witness["v"] == 0
+    assert "det A" in env0.findings[0].message
+
+
+def test_proportional_rows_are_singular_everywhere_without_a_zero_column() -> None:
+    """Rows (1, x2) and (2, 2 x2) are proportional: rank 1 at random points (numpy)."""
+    p = Plant.from_matrices("prop", [x1, x2], [u1, u2], [0, 0], [[1, 1], [x2, 0]], [x1, 2 * x1])
+    s = analyse_structure(Kernel(p))
+    rng = np.random.default_rng(3)
+    for _ in range(5):
+        z = rng.normal()
+        assert np.linalg.matrix_rank(np.array([[1, z], [2, 2 * z]])) == s.generic_rank == 1
+    (f,) = s.findings
+    assert f.rule == "decoupling-singular" and s.zero_columns == () and "independent outputs" in f.hint
+
+
+def test_output_unaffected_by_the_input_has_no_relative_degree() -> None:
+    """x2 never drives x1 (scipy.signal.ss2tf gives a zero transfer function)."""
+    p = Plant.from_matrices("blind", [x1, x2], [u], [-x1, x1], [[0, 1]], [x1], ["y"], state_box={x1: (I(-1), I(1))})
+    k = Kernel(p)
+    s = analyse_structure(k)
+    num, _ = scipy.signal.ss2tf(np.array([[-1.0, 0], [1, 0]]), np.array([[0.0], [1]]), np.array([[1.0, 0]]), np.zeros((1, 1)))
+    assert np.allclose(num, 0)
+    assert structure_json(s) == {"relative_degree": {"y": None}}
+    (f,) = s.findings
+    assert (f.rule, f.severity, f.anchor) == ("relative-degree-undefined", Severity.ERROR, "output y")
+    ps = structure_at_point(k, s, "rest", {x1: I(0), x2: I(0)})
+    assert point_json(ps) == {"relative_degree": {"y": None}, "well_defined": False, "decoupling_rank": 0}
+    env = certify_envelope(k, s)  # x2 has no range: not a box
+    assert env.regular is None and rules(env.findings) == ["envelope-unproven"] and "x2" in env.findings[0].message
+
+
+# -- the model's own domain over the envelope ----------------------------------------------------
+@pytest.mark.parametrize(
+    "rate, box_x1, anchor, word",
+    [
+        (x2 / (x1 - R(1, 3)), (I(0), I(1)), "rate x1", "denominator"),
+        (sp.sqrt(x1), (I(-1), I(1)), "rate x1", "square-root"),
+        (sp.log(x1 + 1), (R(-3, 2), I(1)), "rate x1", "log"),
+        (sp.asin(x1 / 2), (I(0), I(3)), "rate x1", "asin"),
+    ],
+)
+def test_model_undefined_inside_the_envelope_is_reported_with_a_witness(rate, box_x1, anchor, word) -> None:
+    """Domains from the functions' definitions (denominator != 0, sqrt >= 0, log > 0, |asin| <= 1)."""
+    p = Plant.from_matrices("dom", [x1, x2], [u], [rate, 0], [[0, 1]], [x2], ["y"], state_box={x1: box_x1, x2: (I(1), I(2))})
+    k = Kernel(p)
+    env = certify_envelope(k, analyse_structure(k))
+    assert env.regular is False
+    (f,) = [f for f in env.findings if f.rule == "singular-model"]
+    assert f.anchor == anchor and word in f.message and f.severity is Severity.ERROR
+    x = env.witness["x1"]
+    assert box_x1[0] <= x <= box_x1[1]
+    bad = {"denominator": abs(x - 1 / 3) < 1e-9, "square-root": x < 0, "log": x + 1 <= 0, "asin": abs(x / 2) > 1}
+    assert bad[word]
+
+
+def test_model_with_a_denominator_kept_away_from_zero_is_clean() -> None:
+    """2 + sin(x1) >= 1 everywhere (elementary bound)."""
+    p = Plant.from_matrices("ok", [x1, x2], [u], [x2, 0], [[0, 1 / (2 + sp.sin(x1))]], [x1], ["y"],
+                            state_box={x1: (I(-4), I(4)), x2: (I(-1), I(1))})
+    k = Kernel(p)
+    env = certify_envelope(k, analyse_structure(k))
+    assert env.regular is True and env.findings == () and 0 < env.margin <= 1 / 3
+
+
+def test_budget_exhaustion_gives_unproven_not_a_verdict() -> None:
+    """(x1^2 - 2)^2 vanishes only at the irrational sqrt(2) without a sign change: no
+    finite search can prove either answer (math: the root is irrational)."""
+    p = Plant.from_matrices("tangent", [x1], [u], [0], [[(x1**2 - 2) ** 2]], [x1], ["y"], state_box={x1: (I(1), I(2))})
+    k = Kernel(p)
+    env = certify_envelope(k, analyse_structure(k), max_boxes=100)
+    assert env.regular is None and env.margin is None and env.witness is None
+    (f,) = env.findings
+    assert f.rule == "envelope-unproven" and f.severity is Severity.WARNING and "undecided" in f.message
+
+
+# -- the pairing identity of the theory notes ------------------------------------------------------
+def _lie(h: sp.Expr, F: sp.Matrix, X: sp.Matrix) -> sp.Expr:
+    return sp.expand((sp.Matrix([h]).jacobian(X) * F)[0])
+
+
+def _bracket(F: sp.Matrix, G: sp.Matrix, X: sp.Matrix) -> sp.Matrix:
+    return (G.jacobian(X) * F - F.jacobian(X) * G).expand()
+
+
+def random_plant(rng: np.random.Generator) -> Plant:
+    xs = (x1, x2, x3)
+    monomials = [I(1), x1, x2, x3, x1 * x2, x1**2, x2 * x3, x3**2]
+
+    def poly(k: int) -> sp.Expr:
+        return sum(int(rng.choice([-2, -1, 1, 2])) * monomials[int(rng.integers(len(monomials)))] for _ in range(k))
+
+    f = [x2 * int(rng.integers(0, 2)) + poly(1), x3 + poly(int(rng.integers(0, 2))), poly(2)]
+    g = [poly(1) if rng.random() < 0.3 else 0, poly(1) if rng.random() < 0.3 else 0, 1 + poly(int(rng.integers(0, 2)))]
+    h = x1 + (poly(1) if rng.random() < 0.3 else 0)
+    return Plant.from_matrices("random", list(xs), [u], f, [g], [h], ["y"])
+
+
+def test_pairing_matrix_is_anti_triangular_with_nonzero_anti_diagonal() -> None:
+    """Theory notes (Isidori, Nonlinear Control Systems 3rd ed., Lemma 4.1.2 — from memory):
+    <dL_f^j h, ad_f^i g>(x0) = 0 for i + j < r - 1 and (-1)^i L_g L_f^(r-1) h(x0) on the
+    anti-diagonal; the r differentials are independent (numpy rank). Computed here with
+    sympy Matrix.jacobian, independently of the kernel."""
+    rng = np.random.default_rng(11)
+    X = sp.Matrix([x1, x2, x3])
+    degrees: list[int] = []
+    for _ in range(25):
+        plant = random_plant(rng)
+        k = Kernel(plant)
+        s = analyse_structure(k)
+        r = s.relative_degree["y"]
+        point = {x: R(int(rng.integers(-5, 6)), int(rng.integers(1, 4))) for x in (x1, x2, x3)}
+        ps = structure_at_point(k, s, "x0", point)
+        if r is None or ps.relative_degree["y"] != r:
+            continue
+        degrees.append(r)
+        F, G = sp.Matrix(plant.f), sp.Matrix(plant.g[0])
+        lf = [plant.h[0]]
+        for _ in range(r):
+            lf.append(_lie(lf[-1], F, X))
+        ads = [G]
+        for _ in range(r - 1):
+            ads.append(_bracket(F, ads[-1], X))
+        dl = [sp.Matrix([e]).jacobian(X) for e in lf[:r]]
+        lglf = _lie(lf[r - 1], G, X).xreplace(point)
+        assert lglf != 0
+        for i in range(r):
+            for j in range(r):
+                pairing = (dl[j] * ads[i])[0].xreplace(point)
+                if i + j < r - 1:
+                    assert pairing == 0
+                elif i + j == r - 1:
+                    assert pairing == (-1) ** i * lglf
+        D = np.array([[float(e) for e in d.xreplace(point)] for d in dl])
+        assert np.linalg.matrix_rank(D) == r
+    assert len(degrees) >= 15 and len(set(degrees)) >= 2

@@ -102,7 +102,9 @@ def int_power(x: arb, e: int) -> arb:
         return _power_by_squaring(x, e)
     out = _power_by_squaring(x.lower(), e).union(_power_by_squaring(x.upper(), e))
     if e % 2 == 0 and x.contains(0):
-        out = out.union(arb(0))
+        out = out.union(arb(0)).nonnegative_part()  # [0, max]: the lower end is exactly 0
+    elif e % 2 == 0:
+        out = out.nonnegative_part()
     return out
 
 

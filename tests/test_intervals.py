@@ -1,0 +1,151 @@
+"""Branch-and-bound certification over boxes, held against elementary geometry and
+dense numpy sampling (an outside, non-rigorous but independent evaluation)."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+import sympy as sp
+from flint import arb
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from checker.intervals import Budget, certify_nonzero, certify_sign, int_power, outward_box
+
+x1, x2, k = sp.symbols("x1 x2 k")
+R = sp.Rational
+CIRCLE = x1**2 + x2**2 - 1
+
+
+def box_min_abs_circle(bx: tuple[float, float], by: tuple[float, float]) -> float:
+    """min |x^2 + y^2 - 1| over a box, by geometry: the squared distance of the box's
+    nearest and farthest points from the origin bracket the values."""
+    def nearest(lo: float, hi: float) -> float:
+        return 0.0 if lo <= 0 <= hi else min(abs(lo), abs(hi))
+    near = nearest(*bx) ** 2 + nearest(*by) ** 2
+    far = max(abs(bx[0]), abs(bx[1])) ** 2 + max(abs(by[0]), abs(by[1])) ** 2
+    return 0.0 if near <= 1 <= far else min(abs(near - 1), abs(far - 1))
+
+
+@pytest.mark.parametrize(
+    "bx, by, expected",
+    [
+        ((-0.5, 0.5), (-0.5, 0.5), True),  # inside the circle
+        ((-0.7, 0.6), (0.1, 0.65), True),  # inside, near it
+        ((0.0, 2.0), (-0.3, 0.3), False),  # across
+        ((0.3, 1.7), (0.1, 0.9), False),  # across, no simple rational on the arc
+        ((-1.5, 1.5), (-1.5, 1.5), False),  # around the whole circle
+        ((1.5, 3.0), (1.0, 2.0), True),  # outside
+        ((-0.75, 0.75), (0.7, 1.2), False),
+    ],
+)
+def test_unit_circle_boxes_are_classified_by_geometry(bx, by, expected) -> None:
+    """Elementary geometry decides whether the box meets the circle (box_min_abs_circle)."""
+    assert (box_min_abs_circle(bx, by) > 0) == expected
+    v = certify_nonzero(CIRCLE, {x1: bx, x2: by}, Budget(5000, 5.0))
+    assert v.regular is expected
+    if expected:
+        assert 0 < v.margin <= box_min_abs_circle(bx, by) + 1e-12
+        assert v.witness is None
+    else:
+        w = v.witness
+        assert bx[0] <= w["x1"] <= bx[1] and by[0] <= w["x2"] <= by[1]
+        assert abs(w["x1"] ** 2 + w["x2"] ** 2 - 1) < 1e-9
+
+
+def test_exhausted_budget_reports_undecided_boxes() -> None:
+    """(x^2 - 2)^2 touches zero at the irrational sqrt(2) (math.sqrt) without changing sign."""
+    v = certify_nonzero((x1**2 - 2) ** 2, {x1: (1, 2)}, Budget(max_boxes=150, max_seconds=5))
+    assert v.regular is None and v.margin is None and v.witness is None
+    assert v.undecided_count >= 1 and v.boxes_examined <= 150
+    lo, hi = v.undecided[0]["x1"]
+    assert lo <= math.sqrt(2) <= hi
+
+
+def test_time_budget_is_respected_as_undecided() -> None:
+    v = certify_nonzero((x1**2 - 2) ** 2, {x1: (1, 2)}, Budget(max_boxes=10**9, max_seconds=0.0))
+    assert v.regular is None and v.undecided_count == 1
+
+
+def test_ranged_parameter_is_a_box_dimension() -> None:
+    """x - k with k in [1, 2]: zero exactly where x = k (elementary)."""
+    v = certify_nonzero(x1 - k, {x1: (0, R(1, 2)), k: (1, 2)})
+    assert v.regular is True and 0 < v.margin <= 0.5
+    w = certify_nonzero(x1 - k, {x1: (0, 3), k: (1, 2)}).witness
+    assert abs(w["x1"] - w["k"]) < 1e-9
+
+
+def test_row_needs_one_entry_nonzero_and_its_witness_is_exact() -> None:
+    """The row (x1 - 1/3, x2) vanishes only at (1/3, 0) (elementary)."""
+    v = certify_nonzero([x1 - R(1, 3), x2], {x1: (-1, 1), x2: (-1, 1)})
+    assert v.regular is False and v.witness_exact
+    assert v.witness == pytest.approx({"x1": 1 / 3, "x2": 0.0})
+    clean = certify_nonzero([x1 - R(1, 3), x2], {x1: (-1, 1), x2: (R(1, 2), 1)})
+    assert clean.regular is True and 0 < clean.margin <= 0.5
+
+
+def test_sign_conditions_for_function_domains() -> None:
+    """log needs a positive argument, sqrt a non-negative one (definitions)."""
+    assert certify_sign(x1 + 1, {x1: (0, 1)}, strict=True).regular is True
+    v = certify_sign(x1, {x1: (-1, 1)}, strict=True)
+    assert v.regular is False and v.witness["x1"] <= 0
+    assert certify_sign(x1**2, {x1: (-1, 1)}, strict=False).regular is True  # x^2 >= 0 with 0 inside
+    assert certify_sign(1 - x1**2 / 4, {x1: (1, 3)}, strict=False).witness["x1"] > 2
+
+
+def test_pole_is_not_taken_for_a_zero() -> None:
+    """1/(x - 1/3) changes sign across x = 1/3 but never vanishes."""
+    v = certify_nonzero(1 / (x1 - R(1, 3)), {x1: (0, 1)}, Budget(300, 2.0))
+    assert v.regular is None
+
+
+def test_outward_box_contains_irrational_bounds() -> None:
+    """pi from the math module lies inside the rounded-outward interval."""
+    (lo, hi), = outward_box({x1: (-sp.pi, sp.pi)}).values()
+    assert lo <= -math.pi and hi >= math.pi and hi - lo < 2 * math.pi + 1e-12
+
+
+@given(st.floats(-3, 3), st.floats(0.001, 2), st.integers(-4, 6))
+@settings(max_examples=200, deadline=None)
+def test_integer_power_encloses_every_sampled_value(mid: float, rad: float, e: int) -> None:
+    """numpy powers of sampled points lie in the ball power, and even powers stay tight."""
+    ball = arb(mid, rad)
+    enc = int_power(ball, e)
+    xs = np.linspace(mid - rad, mid + rad, 41)
+    if e < 0 and ball.contains(0):
+        assert not enc.is_finite()
+        return
+    lower, upper = float(enc.lower().mid()), float(enc.upper().mid())
+    for x in xs:
+        value = float(x) ** e
+        tol = 1e-12 * (1 + abs(value))
+        assert lower - tol <= value <= upper + tol
+    if e > 0 and e % 2 == 0:
+        assert lower >= -1e-12  # the dependency problem would give a negative lower end
+
+
+@given(
+    st.lists(st.integers(-3, 3), min_size=3, max_size=3),
+    st.floats(-2, 1.5),
+    st.floats(0.05, 1.0),
+    st.floats(-2, 1.5),
+    st.floats(0.05, 1.0),
+)
+@settings(max_examples=40, deadline=None)
+def test_verdicts_agree_with_dense_sampling(c, lo1, w1, lo2, w2) -> None:
+    """For random quadratics, a proven margin never exceeds the sampled minimum of |f|,
+    and a witness is a sampled-looking zero inside the box (numpy evaluation)."""
+    f = c[0] * x1**2 + c[1] * x1 * x2 + c[2] * x2 - 1
+    box = {x1: (lo1, lo1 + w1), x2: (lo2, lo2 + w2)}
+    v = certify_nonzero(f, box, Budget(4000, 3.0))
+    fn = sp.lambdify((x1, x2), f, "numpy")
+    g1, g2 = np.meshgrid(np.linspace(lo1, lo1 + w1, 60), np.linspace(lo2, lo2 + w2, 60))
+    sampled = np.abs(fn(g1, g2))
+    if v.regular is True:
+        assert v.margin <= sampled.min() + 1e-12
+    elif v.regular is False:
+        wx, wy = v.witness["x1"], v.witness["x2"]
+        assert lo1 <= wx <= lo1 + w1 and lo2 <= wy <= lo2 + w2
+        assert abs(fn(wx, wy)) < 1e-8

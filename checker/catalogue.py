@@ -72,6 +72,19 @@ class Rule:
     good: str
     references: tuple[str, ...]
 
+    def to_data(self) -> dict[str, Any]:
+        """The rule as plain JSON data (``plantlint rules --format json``)."""
+        return {
+            "id": self.id,
+            "family": self.family,
+            "severity": self.severity.value,
+            "title": self.title,
+            "rationale": self.rationale,
+            "bad": self.bad,
+            "good": self.good,
+            "references": list(self.references),
+        }
+
 
 class Catalogue:
     """All rules, in family order then file order; looked up by id."""

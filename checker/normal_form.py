@@ -217,12 +217,15 @@ def _ustar(kernel: Kernel, degrees: Sequence[int]) -> list[sp.Expr] | None:
 
 
 def _compact(expr: sp.Expr) -> sp.Expr:
-    """Cancel small rational expressions; leave anything else as it is."""
+    """Cancel small expressions, with sin and cos as generators tied by cos^2 = 1 - sin^2
+    (an exact rewrite, not a heuristic simplification); large ones stay as they are."""
     if sp.count_ops(expr) > MAX_RESULT_OPS:
         return expr
-    if expr.atoms(sp.Function):
-        return sp.expand(expr) if expr.is_polynomial() else expr
-    return sp.cancel(expr)
+    out = sp.cancel(sp.together(expr))
+    angles = {c.args[0] for c in out.atoms(sp.cos)} & {s.args[0] for s in out.atoms(sp.sin)}
+    if angles:
+        out = sp.cancel(out.subs({sp.cos(a) ** 2: 1 - sp.sin(a) ** 2 for a in angles}))
+    return out
 
 
 def normal_form_json(nf: NormalForm) -> dict[str, object]:

@@ -27,7 +27,8 @@ from .findings import Finding, Severity
 from .kernel import Kernel
 
 VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
-#: Relative tolerance (times the norm of the zero-dynamics matrix) for "on the imaginary axis".
+#: Relative tolerance (times the Frobenius norm of Df*(x0)) for "on the imaginary axis"
+#: on the numeric route; the exact route needs none.
 CRITICAL_TOLERANCE = 1e-9
 _NUMERIC_DIGITS = (40, 80)
 _ISOLATION_BITS = (128, 512, 2048)
@@ -288,8 +289,9 @@ def _numeric_once(name: str, n: int, r: int, data: _PointData, digits: int) -> Z
     scale = 1.0 + float(mpmath.mnorm(J, 1))
     match_tol = 10.0 * scale * 10.0 ** (-digits / (n + 1))
     consistent = _same_multiset(eig_j, [0j] * r + eig_m, match_tol) and float(min(sigma)) > 1e-20 * scale
-    norm_m = float(mpmath.mnorm(M, "F"))
-    tol = CRITICAL_TOLERANCE * norm_m
+    # relative to the size of Df*(x0) (M is a compression of it), with a floor at the
+    # noise level of the working precision
+    tol = max(CRITICAL_TOLERANCE * float(mpmath.mnorm(J, "F")), 10.0 ** (-digits / 2))
     eigs: list[tuple[complex, int | None]] = []
     for z in sorted(eig_m, key=lambda z: (z.real, z.imag)):
         sign = 0 if abs(z.real) <= tol else (1 if z.real > 0 else -1)

@@ -1,0 +1,320 @@
+"""Zero dynamics and normal form, held against outside sources: scipy's transmission
+zeros for linear plants, published worked examples for nonlinear ones (book and
+example beside each test), and closed forms derived by hand where named so."""
+
+from __future__ import annotations
+
+import random
+
+import numpy as np
+import pytest
+import scipy.linalg
+import scipy.signal
+import sympy as sp
+
+from checker.kernel import Kernel
+from checker.normal_form import normal_form_at, normal_form_json
+from checker.plant import Plant
+from checker.zero_dynamics import zero_dynamics_at, zero_dynamics_json
+
+x1, x2, x3 = sp.symbols("x1 x2 x3")
+u = sp.Symbol("u")
+
+
+# -- linear plants ------------------------------------------------------------------
+def linear_plant(A: np.ndarray, B: np.ndarray, C: np.ndarray, scale: sp.Expr = sp.Integer(1)) -> Plant:
+    n, m = B.shape
+    xs = sp.symbols(f"z1:{n + 1}")
+    us = sp.symbols(f"v1:{m + 1}")
+    f = [sum(scale * int(A[i, k]) * xs[k] for k in range(n)) for i in range(n)]
+    cols = [[int(B[i, j]) for i in range(n)] for j in range(m)]
+    h = [sum(int(C[i, k]) * xs[k] for k in range(n)) for i in range(C.shape[0])]
+    return Plant.from_matrices("linear", list(xs), list(us), f, cols, h)
+
+
+def markov_degrees(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> list[int] | None:
+    """r_i from the Markov parameters C_i A^(k-1) B (exact integers)."""
+    n = A.shape[0]
+    Ao, Bo = A.astype(object), B.astype(object)
+    out = []
+    for row in C.astype(object):
+        power = np.eye(n, dtype=int).astype(object)
+        for k in range(1, n + 1):
+            if any(row @ power @ Bo):
+                out.append(k)
+                break
+            power = power @ Ao
+        else:
+            return None
+    return out
+
+
+def decoupling(A: np.ndarray, B: np.ndarray, C: np.ndarray, r: list[int]) -> np.ndarray:
+    return np.array([C[i] @ np.linalg.matrix_power(A, r[i] - 1) @ B for i in range(len(r))], dtype=float)
+
+
+def at_origin(P: Plant) -> dict[sp.Symbol, sp.Expr]:
+    return {s: sp.Integer(0) for s in P.states}
+
+
+def assert_same_set(ours: list[complex], ref: list[complex], tol: float = 1e-6) -> None:
+    assert len(ours) == len(ref), (ours, ref)
+    rest = list(ref)
+    for z in ours:
+        k = min(range(len(rest)), key=lambda q: abs(rest[q] - z))
+        assert abs(rest[k] - z) <= tol * (1 + abs(z)), (ours, ref)
+        rest.pop(k)
+
+
+@pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
+def test_siso_zeros_equal_scipy_transmission_zeros() -> None:
+    # reference: scipy.signal.ss2zpk (zeros of the transfer function numerator)
+    rng = np.random.default_rng(2024)
+    checked = 0
+    while checked < 30:
+        n = int(rng.integers(3, 6))
+        A = rng.integers(-3, 4, (n, n))
+        B = rng.integers(-2, 3, (n, 1))
+        C = rng.integers(-2, 3, (1, n))
+        r = markov_degrees(A, B, C)
+        if r is None or r[0] >= n:
+            continue
+        P = linear_plant(A, B, C)
+        zd = zero_dynamics_at(Kernel(P), r, at_origin(P), "origin")
+        z, _, _ = scipy.signal.ss2zpk(A.astype(float), B.astype(float), C.astype(float), np.zeros((1, 1)))
+        finite = [complex(v) for v in z if abs(v) < 1e6]
+        assert zd.dimension == n - r[0] and zd.exact and zd.consistent
+        assert_same_set(list(zd.eigenvalues), finite, tol=1e-5)
+        expected = ("non_minimum_phase" if any(v.real > 1e-6 for v in finite)
+                    else "minimum_phase" if all(v.real < -1e-6 for v in finite) else None)
+        if expected is not None:
+            assert zd.verdict == expected
+        checked += 1
+
+
+def test_square_mimo_zeros_equal_rosenbrock_pencil() -> None:
+    # reference: finite generalised eigenvalues of [[A, B], [-C, 0]] - s blockdiag(I, 0)
+    # via scipy.linalg.eig(M, N)
+    rng = np.random.default_rng(99)
+    checked = 0
+    while checked < 20:
+        n = int(rng.integers(3, 6))
+        A = rng.integers(-3, 4, (n, n))
+        B = rng.integers(-2, 3, (n, 2))
+        C = rng.integers(-2, 3, (2, n))
+        r = markov_degrees(A, B, C)
+        if r is None or sum(r) >= n or abs(np.linalg.det(decoupling(A, B, C, r))) < 0.5:
+            continue
+        P = linear_plant(A, B, C)
+        zd = zero_dynamics_at(Kernel(P), r, at_origin(P), "origin")
+        M = np.block([[A, B], [-C, np.zeros((2, 2))]]).astype(float)
+        N = scipy.linalg.block_diag(np.eye(n), np.zeros((2, 2)))
+        w = scipy.linalg.eig(M, N, right=False)
+        finite = [complex(v) for v in w if np.isfinite(v) and abs(v) < 1e6]
+        assert zd.dimension == n - sum(r) and zd.consistent
+        assert_same_set(list(zd.eigenvalues), finite, tol=1e-6)
+        checked += 1
+
+
+@pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
+def test_irrational_data_take_the_numeric_route() -> None:
+    # A scaled by sqrt(2): zeros scale by sqrt(2) too; reference scipy ss2zpk on the scaled data
+    rng = np.random.default_rng(5)
+    done = 0
+    while done < 5:
+        A = rng.integers(-3, 4, (4, 4))
+        B = rng.integers(-2, 3, (4, 1))
+        C = rng.integers(-2, 3, (1, 4))
+        r = markov_degrees(A, B, C)
+        if r is None or r[0] >= 4:
+            continue
+        P = linear_plant(A, B, C, scale=sp.sqrt(2))
+        zd = zero_dynamics_at(Kernel(P), r, at_origin(P), "origin")
+        As = A * np.sqrt(2.0)
+        z, _, _ = scipy.signal.ss2zpk(As, B.astype(float), C.astype(float), np.zeros((1, 1)))
+        assert not zd.exact and zd.tolerance is not None and zd.consistent
+        assert_same_set(list(zd.eigenvalues), [complex(v) for v in z if abs(v) < 1e6], tol=1e-5)
+        done += 1
+
+
+def test_full_relative_degree_has_no_zero_dynamics() -> None:
+    # triple integrator with y = x1: r = n = 3, no zeros (scipy agrees: ss2zpk gives none)
+    P = Plant.from_matrices("int3", [x1, x2, x3], [u], [x2, x3, 0], [[0, 0, 1]], [x1])
+    zd = zero_dynamics_at(Kernel(P), [3], at_origin(P), "origin")
+    assert zd.verdict == "not_applicable"
+    assert zero_dynamics_json(zd) == {"dimension": 0, "eigenvalues": [], "verdict": "not_applicable"}
+
+
+# -- a zero crossing the imaginary axis ------------------------------------------------
+@pytest.mark.parametrize(
+    "a, verdict",
+    [(sp.Rational(-1, 2), "minimum_phase"), (sp.Rational(-1, 10**9), "minimum_phase"),
+     (sp.Integer(0), "critical"), (sp.Rational(1, 10**9), "non_minimum_phase"), (sp.Integer(3), "non_minimum_phase")],
+)
+def test_linear_family_zero_at_a(a: sp.Rational, verdict: str) -> None:
+    # controllable canonical form of (s - a) / ((s+1)(s+2)(s+3)) (common practice): the
+    # zero is exactly a; at a = 0 the zero sits on the imaginary axis (decided exactly)
+    xs = [x1, x2, x3]
+    P = Plant.from_matrices("fam", xs, [u], [x2, x3, -6 * x1 - 11 * x2 - 6 * x3], [[0, 0, 1]], [-a * x1 + x2])
+    zd = zero_dynamics_at(Kernel(P), [2], at_origin(P), "rest")
+    assert zd.verdict == verdict and zd.exact
+    assert zd.characteristic_polynomial == str(sp.Symbol("s") - a)
+    assert zero_dynamics_json(zd)["eigenvalues"] == [[float(a), 0.0]]
+    rule = {"critical": ["zero-dynamics-critical"], "non_minimum_phase": ["zero-dynamics-unstable"]}
+    assert [f.rule for f in zd.findings] == rule.get(verdict, [])
+
+
+@pytest.mark.parametrize("a, verdict", [(-1, "minimum_phase"), (0, "critical"), (2, "non_minimum_phase")])
+def test_nonlinear_family_with_ranged_parameter(a: int, verdict: str) -> None:
+    # x1' = a x1 - x1^3 + x2, x2' = u, y = x2 (invented): zero dynamics x1' = a x1 - x1^3,
+    # whose linearisation at 0 is a (sympy's derivative is the reference)
+    k = sp.Symbol("k")
+    P = Plant.from_matrices("nlfam", [x1, x2], [u], [k * x1 - x1**3 + x2, 0], [[0, 1]], [x2],
+                            params=(k,), param_nominal={k: sp.Integer(a)},
+                            param_box={k: (sp.Integer(-3), sp.Integer(3))})
+    zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "rest")
+    assert zd.verdict == verdict
+    reference = sp.diff(a * x1 - x1**3, x1).subs(x1, 0)
+    assert zd.eigenvalues == (complex(reference),)
+
+
+def test_axis_roots_inside_irreducible_factor() -> None:
+    # zeros = roots of s^4 + s^2 - 1 (irreducible over Q): two real roots +-0.786 and two
+    # exactly on the axis, +-1.272i; reference numpy.roots. Controllable canonical form
+    # (common practice): the output row holds the numerator's coefficients.
+    coeffs = [-1, 0, 1, 0, 1]  # c(s) = -1 + s^2 + s^4, monic degree 4
+    n = 6
+    xs = sp.symbols("q1:7")
+    den = [1, 2, 3, 4, 5, 6]  # any stable-looking denominator; zeros do not depend on it
+    f = [xs[i + 1] for i in range(n - 1)] + [-sum(den[i] * xs[i] for i in range(n))]
+    h = [sum(coeffs[i] * xs[i] for i in range(5))]
+    P = Plant.from_matrices("axis", list(xs), [u], f, [[0] * (n - 1) + [1]], h)
+    zd = zero_dynamics_at(Kernel(P), [2], {s: 0 for s in xs}, "rest")
+    assert zd.verdict == "non_minimum_phase" and zd.exact
+    ref = np.roots(coeffs[::-1])
+    assert_same_set(list(zd.eigenvalues), [complex(v) for v in ref], tol=1e-9)
+    assert sum(1 for z in zd.eigenvalues if z.real == 0.0) == 2  # exactly on the axis
+
+
+# -- published nonlinear examples ----------------------------------------------------------
+def test_khalil_example_13_8() -> None:
+    # Khalil, Nonlinear Systems 3rd ed., Example 13.8 (from memory):
+    # x1' = -x1 + (2 + x3^2)/(1 + x3^2) u, x2' = x3, x3' = x1 x3 + u, y = x2.
+    # Relative degree 2; zero dynamics x1' = -x1 (eta' = -eta): minimum phase.
+    P = Plant.from_matrices("khalil", [x1, x2, x3], [u], [-x1, x3, x1 * x3],
+                            [[(2 + x3**2) / (1 + x3**2), 0, 1]], [x2])
+    K = Kernel(P)
+    zd = zero_dynamics_at(K, [2], at_origin(P), "origin")
+    assert zd.verdict == "minimum_phase" and zd.eigenvalues == (-1 + 0j,)
+    nf = normal_form_at(K, [2], at_origin(P))
+    assert nf.xi == ("x2", "x3") and nf.invertible and nf.jacobian_rank == 3
+    assert nf.zero_dynamics == ("x1' = -x1",)
+    # the book's input-free coordinate (-x1 + x3 + atan x3) is not among states or
+    # their sums/differences, so the preference cannot be met here
+    assert nf.input_free is False
+
+
+def test_khalil_field_controlled_dc_motor() -> None:
+    # Khalil, Nonlinear Systems 3rd ed., field-controlled DC motor of ch. 13 (from memory):
+    # x1' = -a x1 + u, x2' = -b x2 + k - c x1 x3, x3' = theta x1 x2, y = x3.
+    # Relative degree 2 where x2 != 0; zero dynamics x2' = -b x2 + k, stable at k/b.
+    a, b, c, th, k = 2, 3, 1, 5, 6  # numbers invented
+    P = Plant.from_matrices("dc", [x1, x2, x3], [u], [-a * x1, -b * x2 + k - c * x1 * x3, th * x1 * x2],
+                            [[1, 0, 0]], [x3])
+    K = Kernel(P)
+    point = {x1: sp.Integer(0), x2: sp.Integer(2), x3: sp.Integer(7)}
+    zd = zero_dynamics_at(K, [2], point, "run")
+    assert zd.verdict == "minimum_phase" and zd.eigenvalues == (-b + 0j,)
+    nf = normal_form_at(K, [2], point)
+    assert nf.eta == ("x2",) and nf.input_free
+    assert nf.zero_dynamics == ("x2' = 6 - 3*x2",)
+    # at x2 = 0 the decoupling entry theta x2 vanishes: relative degree not defined there
+    assert zero_dynamics_at(K, [2], {x1: 0, x2: 0, x3: 0}, "bad").verdict == "undefined"
+
+
+def test_slotine_li_internal_dynamics_cubic() -> None:
+    # Slotine & Li, Applied Nonlinear Control (1991), sec. 6.1, example with
+    # x1' = x2^3 + u, x2' = u, y = x1 (from memory): internal dynamics x2' + x2^3 = 0,
+    # asymptotically stable, but the linearisation has eigenvalue 0: a critical case.
+    P = Plant.from_matrices("sl", [x1, x2], [u], [x2**3, 0], [[1, 1]], [x1])
+    K = Kernel(P)
+    zd = zero_dynamics_at(K, [1], at_origin(P), "origin")
+    assert zd.verdict == "critical" and zd.exact and zd.eigenvalues == (0j,)
+    assert [f.rule for f in zd.findings] == ["zero-dynamics-critical"]
+    assert zd.findings[0].anchor == "point origin" and zd.findings[0].severity.value == "warning"
+    nf = normal_form_at(K, [1], at_origin(P))
+    # eta = x1 - x2 has L_g eta = 0; on y = 0, x2 = -eta so eta' = x2^3 = -eta^3
+    assert nf.eta == ("x1 - x2",) and nf.input_free
+    assert nf.zero_dynamics == ("eta1 = x1 - x2", "eta1' = -eta1**3")
+
+
+def crane() -> Plant:
+    """Gantry crane of the plant-language contract (demo numbers, invented)."""
+    x, v, th, w = sp.symbols("x v th w")
+    g, m_c, m_p, L = sp.Rational(981, 100), sp.Integer(12), sp.Rational(7, 2), sp.Rational(11, 5)
+    den = m_c + m_p * sp.sin(th) ** 2
+    f = [v, m_p * sp.sin(th) * (L * w**2 + g * sp.cos(th)) / den, w,
+         -(m_p * L * w**2 * sp.sin(th) * sp.cos(th) + (m_c + m_p) * g * sp.sin(th)) / (L * den)]
+    gcol = [0, 1 / den, 0, -sp.cos(th) / (L * den)]
+    return Plant.from_matrices("crane", [x, v, th, w], [sp.Symbol("F")], f, [gcol], [x])
+
+
+def test_crane_zero_dynamics_is_the_fixed_pivot_pendulum() -> None:
+    # Holding the trolley still leaves a simple pendulum th'' = -(g/L) sin th (handbook:
+    # small-oscillation frequency sqrt(g/L)). Hanging: +-i sqrt(g/L), exactly on the axis.
+    # Inverted (th = pi): +-sqrt(g/L), unstable (the classic cart-pole result).
+    P = crane()
+    x, v, th, w = P.states
+    K = Kernel(P)
+    omega = (9.81 / 2.2) ** 0.5
+    hanging = zero_dynamics_at(K, [2], {x: 0, v: 0, th: 0, w: 0}, "rest")
+    assert hanging.verdict == "critical" and hanging.exact
+    assert_same_set(list(hanging.eigenvalues), [1j * omega, -1j * omega], tol=1e-12)
+    assert all(z.real == 0.0 for z in hanging.eigenvalues)
+    assert "\u00b1" in hanging.findings[0].message
+    upright = zero_dynamics_at(K, [2], {x: 0, v: 0, th: sp.pi, w: 0}, "up")
+    assert upright.verdict == "non_minimum_phase"
+    assert_same_set(list(upright.eigenvalues), [omega, -omega], tol=1e-12)
+    nf = normal_form_at(K, [2], {x: 0, v: 0, th: 0, w: 0})
+    # the pendulum written out: w' = -(g/L) sin th with g/L = 9.81/2.2 = 981/220
+    assert nf.eta == ("th", "w") and nf.zero_dynamics == ("th' = w", "w' = -981*sin(th)/220")
+
+
+# -- numeric route ---------------------------------------------------------------------------
+def test_transcendental_point_against_hand_derivative() -> None:
+    # x1' = x1 sin(x1) - (1/3) sin(1/3) + x2, x2' = u, y = x2 (invented); zero dynamics
+    # x1' = x1 sin x1 - c, linearisation sin(1/3) + cos(1/3)/3 (sympy.diff as reference)
+    c = sp.Rational(1, 3)
+    P = Plant.from_matrices("tr", [x1, x2], [u], [x1 * sp.sin(x1) - c * sp.sin(c) + x2, 0], [[0, 1]], [x2])
+    zd = zero_dynamics_at(Kernel(P), [1], {x1: c, x2: 0}, "p")
+    ref = float(sp.diff(x1 * sp.sin(x1), x1).subs(x1, c))
+    assert not zd.exact and zd.verdict == "non_minimum_phase"
+    assert abs(zd.eigenvalues[0].real - ref) < 1e-14 and zd.eigenvalues[0].imag == 0
+
+
+def test_numerically_zero_eigenvalue_is_critical_with_tolerance() -> None:
+    # the coefficient sin(1/3)^2 + cos(1/3)^2 - 1 is exactly 0 but not written so
+    s, co = sp.sin(sp.Rational(1, 3)), sp.cos(sp.Rational(1, 3))
+    P = Plant.from_matrices("crit", [x1, x2], [u], [(s**2 + co**2 - 1) * x1 + s * x2, 0], [[0, 1]], [x2])
+    zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "p")
+    assert zd.verdict == "critical" and not zd.exact and zd.tolerance is not None
+    assert "within" in zd.findings[0].message
+
+
+def test_not_a_rest_point_is_undefined() -> None:
+    P = Plant.from_matrices("k", [x1, x2], [u], [-x1, 0], [[0, 1]], [x2])
+    zd = zero_dynamics_at(Kernel(P), [1], {x1: 1, x2: 0}, "moving")
+    assert zd.verdict == "undefined" and "rest point" in zd.reason
+
+
+def test_json_eigenvalues_sorted() -> None:
+    # zeros -2, -1 +- i (numerator (s + 2)(s^2 + 2 s + 2) = s^3 + 4 s^2 + 6 s + 4); numpy.roots reference
+    xs = sp.symbols("q1:6")
+    f = [xs[i + 1] for i in range(4)] + [-sum(xs)]
+    h = [4 * xs[0] + 6 * xs[1] + 4 * xs[2] + xs[3]]
+    P = Plant.from_matrices("sorted", list(xs), [u], f, [[0, 0, 0, 0, 1]], h)
+    data = zero_dynamics_json(zero_dynamics_at(Kernel(P), [2], {s: 0 for s in xs}, "p"))
+    ref = sorted(np.roots([1, 4, 6, 4]), key=lambda z: (z.real, z.imag))
+    assert data["dimension"] == 3 and data["verdict"] == "minimum_phase"
+    assert np.allclose([complex(a, b) for a, b in data["eigenvalues"]], ref, atol=1e-12)  # type: ignore[union-attr]
+    assert normal_form_json(normal_form_at(Kernel(P), [2], {s: 0 for s in xs}))["invertible"] is True

@@ -141,7 +141,7 @@ def analyse_structure(kernel: Kernel) -> Structure:
             ))
         if out.unconfirmed:
             findings.append(Finding(
-                "relative-degree-unconfirmed", Severity.WARNING,
+                "analysis-budget", Severity.WARNING,
                 f"relative degree of {name} assumes {', '.join(out.unconfirmed)} vanish identically; "
                 "the numeric screening says so but symbolic confirmation was out of budget",
                 anchor=f"output {name}",
@@ -259,15 +259,16 @@ def exact_rank(kernel: Kernel, M: sp.Matrix) -> tuple[int, bool]:
     rows = [list(M.row(i)) for i in range(M.rows)]
     rank, certain = 0, True
     for col in range(M.cols):
-        pivot = None
+        pivot, undecided = None, False
         for i in range(rank, len(rows)):
             z = _constant_is_zero(kernel, rows[i][col])
             if z is None:
-                certain = False
+                undecided = True
             elif not z:
                 pivot = i
                 break
         if pivot is None:
+            certain = certain and not undecided
             continue
         rows[rank], rows[pivot] = rows[pivot], rows[rank]
         p_row = rows[rank]
@@ -318,14 +319,23 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
     rank, certain = exact_rank(kernel, A0)
     full_rank = rank == plant.p
     if all_defined and not full_rank and (structure.generic_rank or 0) >= plant.p:
-        zero_cols = tuple(j for j in range(plant.m) if all(_constant_is_zero(kernel, A0[i, j]) for i in range(A0.rows)))
-        findings.append(Finding(
-            "decoupling-singular", Severity.ERROR,
-            f"the decoupling matrix is singular at point {name}: rank {rank} for {plant.p} outputs"
-            + ("" if certain else " (some entries could not be decided; the rank may be higher)"),
-            point=name, anchor=f"point {name}",
-            hint=_extension_hint(structure.input_names, zero_cols),
-        ))
+        if certain:
+            zero_cols = tuple(
+                j for j in range(plant.m) if all(_constant_is_zero(kernel, A0[i, j]) for i in range(A0.rows))
+            )
+            findings.append(Finding(
+                "decoupling-singular", Severity.ERROR,
+                f"the decoupling matrix is singular at point {name}: rank {rank} for {plant.p} outputs",
+                point=name, anchor=f"point {name}",
+                hint=_extension_hint(structure.input_names, zero_cols),
+            ))
+        else:
+            findings.append(Finding(
+                "analysis-budget", Severity.WARNING,
+                f"the rank of the decoupling matrix at point {name} is at least {rank} of {plant.p}, "
+                "but some entries could not be decided exactly (undefined or beyond the evaluator)",
+                point=name, anchor=f"point {name}",
+            ))
     return PointStructure(name, degrees, all_defined and full_rank and certain, rank, certain, tuple(findings))
 
 
@@ -341,12 +351,13 @@ def _point_state(kernel: Kernel, e: sp.Expr, point: dict[sp.Symbol, sp.Expr]) ->
 
 
 # -- over the envelope ----------------------------------------------------------------------
-DomainCondition = tuple[str, sp.Expr, str]  # (kind: nonzero | positive | nonnegative, expr, what)
+DomainCondition = tuple[str, sp.Expr, str]  # (kind: nonzero | positive, expr, what)
 
 
 def domain_conditions(expr: sp.Expr, symbols: set[sp.Symbol]) -> list[DomainCondition]:
-    """Where a smooth-looking expression stops being defined: denominators, and
-    arguments of sqrt/log/asin/acos/tan and fractional powers."""
+    """Where an expression stops being defined or smooth: denominators, and arguments
+    of sqrt/log/asin/acos/tan and fractional powers (sqrt, asin, acos are not
+    differentiable at the ends of their domains, so those ends count as outside)."""
     out: list[DomainCondition] = []
     for node in sp.preorder_traversal(expr):
         if not (node.free_symbols & symbols):
@@ -356,10 +367,8 @@ def domain_conditions(expr: sp.Expr, symbols: set[sp.Symbol]) -> list[DomainCond
             if not (base.free_symbols & symbols):
                 continue
             if e.is_Rational and not e.is_Integer:
-                if e.q == 2 and e > 0:
-                    out.append(("nonnegative", base, f"square-root argument {compact(base)}"))
-                else:
-                    out.append(("positive", base, f"power base {compact(base)}"))
+                what = "square-root argument" if e.q == 2 else "fractional-power base"
+                out.append(("positive", base, f"{what} {compact(base)}"))
             elif e.is_negative:
                 out.append(("nonzero", base, f"denominator {compact(base)}"))
             elif not e.is_Rational:
@@ -368,8 +377,8 @@ def domain_conditions(expr: sp.Expr, symbols: set[sp.Symbol]) -> list[DomainCond
             out.append(("positive", node.args[0], f"log argument {compact(node.args[0])}"))
         elif isinstance(node, (sp.asin, sp.acos)):
             a = node.args[0]
-            out.append(("nonnegative", 1 - a, f"{type(node).__name__} argument {compact(a)} (above 1)"))
-            out.append(("nonnegative", 1 + a, f"{type(node).__name__} argument {compact(a)} (below -1)"))
+            out.append(("positive", 1 - a, f"{type(node).__name__} argument {compact(a)} (1 or above)"))
+            out.append(("positive", 1 + a, f"{type(node).__name__} argument {compact(a)} (-1 or below)"))
         elif isinstance(node, sp.tan):
             out.append(("nonzero", sp.cos(node.args[0]), f"tan argument {compact(node.args[0])} (at a pole)"))
         elif isinstance(node, sp.atan2):
@@ -473,7 +482,7 @@ def certify_envelope(
 
 
 def _violation(kind: str) -> str:
-    return {"nonzero": "vanishes", "positive": "is not positive", "nonnegative": "is negative"}[kind]
+    return {"nonzero": "vanishes", "positive": "leaves the open domain where the model is smooth"}[kind]
 
 
 def _model_checks(kernel: Kernel, box: dict[sp.Symbol, Any], clock: _Clock) -> list[tuple[str, DomainCondition, EnvelopeVerdict]]:
@@ -499,7 +508,7 @@ def _model_checks(kernel: Kernel, box: dict[sp.Symbol, Any], clock: _Clock) -> l
                     if kind == "nonzero":
                         verdicts[key] = clock.spent(certify_nonzero(e, box, clock.budget()))
                     else:
-                        verdicts[key] = clock.spent(certify_sign(e, box, kind == "positive", clock.budget()))
+                        verdicts[key] = clock.spent(certify_sign(e, box, True, clock.budget()))
                 except UnsupportedExpression:
                     verdicts[key] = EnvelopeVerdict(None, None, None, [], 0)
             out.append((anchor, cond, verdicts[key]))

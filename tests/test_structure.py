@@ -281,8 +281,35 @@ def test_model_undefined_inside_the_envelope_is_reported_with_a_witness(rate, bo
     assert f.anchor == anchor and word in f.message and f.severity is Severity.ERROR
     x = env.witness["x1"]
     assert box_x1[0] <= x <= box_x1[1]
-    bad = {"denominator": abs(x - 1 / 3) < 1e-9, "square-root": x < 0, "log": x + 1 <= 0, "asin": abs(x / 2) > 1}
+    bad = {"denominator": abs(x - 1 / 3) < 1e-9, "square-root": x <= 0, "log": x + 1 <= 0, "asin": abs(x / 2) >= 1}
     assert bad[word]
+
+
+def test_square_root_reaching_zero_is_not_smooth() -> None:
+    """d/dh sqrt(h) = 1 / (2 sqrt(h)) is unbounded at h = 0 (calculus): a tank level range
+    starting at 0 makes the rate non-smooth there; starting at 0.05 is clean."""
+    h, q = sp.symbols("h q")
+    for lo, expected in ((I(0), False), (R(1, 20), True)):
+        p = Plant.from_matrices("tank", [h], [q], [-R(1, 25) * sp.sqrt(h)], [[2]], [h], ["level"],
+                                state_box={h: (lo, I(2))})
+        k = Kernel(p)
+        env = certify_envelope(k, analyse_structure(k))
+        assert env.regular is expected
+        if not expected:
+            (f,) = env.findings
+            assert (f.rule, f.anchor) == ("singular-model", "rate h") and env.witness == {"h": 0.0}
+
+
+def test_zero_decision_without_symbolic_proof_is_reported() -> None:
+    """sin^2 + cos^2 - 1 = 0 (trigonometry) times a polynomial too large to simplify: the
+    kernel can only screen it, and the relative degree says it relies on that."""
+    big = sum(x1**j * x2**k for j in range(10) for k in range(10))
+    p = Plant.from_matrices("trig", [x1, x2], [u], [x2, 0], [[(sp.sin(x1) ** 2 + sp.cos(x1) ** 2 - 1) * big, 1]],
+                            [x1], ["y"])
+    s = analyse_structure(Kernel(p))
+    assert s.relative_degree == {"y": 2} and s.outputs[0].unconfirmed == ("L_g y",)
+    (f,) = s.findings
+    assert (f.rule, f.severity, f.anchor) == ("analysis-budget", Severity.WARNING, "output y")
 
 
 def test_model_with_a_denominator_kept_away_from_zero_is_clean() -> None:

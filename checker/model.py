@@ -231,7 +231,7 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
         name = st.name or ""
         target = scope.declared.get(name)
         if target is None or target.kind != "state":
-            what = f"'{name}' is a {target.kind}" if target is not None else f"'{name}' is not declared"
+            what = f"the {target.kind} '{name}'" if target is not None else f"'{name}', which is not declared"
             scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, f"rate {name}",
                       hint=f"declare `state {name}` or remove this rate")
             _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"rate {name}")
@@ -401,7 +401,8 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
     known = {symbol(a) for a in allowed}
     stray = value.free_symbols - known
     if stray:
-        value = value.xreplace({s: sp.Integer(0) for s in stray})
+        # already reported as unknown names; the model will not be analysed
+        return value.xreplace({s: sp.Integer(1) for s in stray})
     if value.has(sp.zoo, sp.nan):
         scope.add("singular-model", f"{where} divides by zero for every state", expr.span, f"{where} division by zero")
         value = value.xreplace({sp.zoo: sp.Integer(0), sp.nan: sp.Integer(0)})
@@ -604,7 +605,7 @@ def _compare(d: sp.Expr) -> int:
     from .balls import UnsupportedExpression, to_arb
 
     if d.is_Rational:
-        return (d > 0) - (d < 0)
+        return int(bool(d > 0)) - int(bool(d < 0))
     try:
         b = to_arb(d)
         if b > 0:

@@ -111,11 +111,12 @@ def finish(path: str, raw: RawResult, source: str | None, config: Any, defaults:
     return FileReport(path=path, plant=raw.plant, findings=findings, analysis=raw.analysis, source=source)
 
 
-def budget_finding(completed: list[str], pending: list[str], seconds: float, reason: str = "time") -> Finding:
+def budget_finding(completed: list[str], pending: list[str], seconds: float, reason: str = "time",
+                   line: int = 1) -> Finding:
     done = ", ".join(completed) if completed else "none"
     todo = ", ".join(pending) if pending else "the rest"
     what = f"exceeded its time budget of {seconds:g} s" if reason == "time" else reason
     return Finding("analysis-budget", Severity.WARNING,
                    f"analysis {what}; completed: {done}; not completed: {todo}",
-                   Span(1, 1, 1, 2), anchor="analysis budget",
+                   Span(line, 1, line, 6), anchor="analysis budget",
                    hint="raise --timeout (or `timeout` in the configuration) or simplify the model")

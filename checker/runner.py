@@ -230,7 +230,7 @@ def analyse_all(
             del running[conn]
             conn.close()
             proc.join()
-            results[i] = _outcome(kind, payload, stages, timeout)
+            results[i] = _outcome(kind, payload, stages, timeout, datas[i])
             if on_done:
                 on_done(i)
         now = time.monotonic()
@@ -240,13 +240,13 @@ def analyse_all(
                 proc.join()
                 del running[conn]
                 conn.close()
-                results[i] = _outcome("timeout", None, stages, timeout)
+                results[i] = _outcome("timeout", None, stages, timeout, datas[i])
                 if on_done:
                     on_done(i)
     return [r if r is not None else RawResult() for r in results]
 
 
-def _outcome(kind: str, payload: Any, stages: list[str], timeout: float) -> RawResult:
+def _outcome(kind: str, payload: Any, stages: list[str], timeout: float, data: bytes) -> RawResult:
     if kind == "done":
         return RawResult.from_data(payload)
     pending = [s for s in STAGES if s not in stages]
@@ -256,8 +256,16 @@ def _outcome(kind: str, payload: Any, stages: list[str], timeout: float) -> RawR
         "crash": f"stopped by an internal error ({payload}); please report it",
     }[kind]
     raw = RawResult(stages=stages)
-    raw.findings.append(budget_finding(stages, pending, timeout, reason))
+    raw.findings.append(budget_finding(stages, pending, timeout, reason, _header_line(data)))
     return raw
+
+
+def _header_line(data: bytes) -> int:
+    """Line of the `plant` header (found without parsing: the worker did not finish)."""
+    for number, line in enumerate(data[:65536].splitlines(), start=1):
+        if line.lstrip().startswith(b"plant"):
+            return number
+    return 1
 
 
 # -- the whole run ---------------------------------------------------------------

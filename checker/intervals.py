@@ -201,10 +201,11 @@ def _bound_ball(value: Bound) -> arb:
 
     if isinstance(value, Fraction):
         return arb(value.numerator) / value.denominator
-    return to_arb(value if not isinstance(value, sp.Basic) else value)
+    return to_arb(value)
 
 
 def _float_below(x: arb) -> float:
+    """A float certainly at or below every value in the ball (margins, box bounds)."""
     v = float(x.lower().mid())
     while not (arb(v) <= x.lower()):
         v = math.nextafter(v, -math.inf)
@@ -440,7 +441,7 @@ def certify_nonzero(
 
     def decide(b: FloatBox, centred: bool) -> Decision:
         enclosures = ev.enclose(b, centred)
-        clean = [_lower_float(x.abs_lower()) for x in enclosures if x.is_finite() and not x.contains(0)]
+        clean = [_float_below(x.abs_lower()) for x in enclosures if x.is_finite() and not x.contains(0)]
         if clean:
             return "proven", max(clean)
         points = [_centre(b)] + _corners(b)
@@ -486,7 +487,7 @@ def certify_sign(
     def decide(b: FloatBox, centred: bool) -> Decision:
         x = ev.enclose(b, centred)[0]
         if x.is_finite() and (x > 0 if strict else x >= 0):
-            return "proven", _lower_float(x)
+            return "proven", _float_below(x)
         for p in [_centre(b)] + _corners(b):
             v = ev.at(p)[0]
             if v.is_finite() and v < 0:
@@ -503,11 +504,6 @@ def certify_sign(
         return "split", None
 
     return search.run(decide)
-
-
-def _lower_float(x: arb) -> float:
-    """A float certainly at or below every value in the ball (a rigorous margin)."""
-    return _float_below(x)
 
 
 def _bracket_zero(ev: _Evaluator, positive: tuple[float, ...], negative: tuple[float, ...]) -> tuple[float, ...] | None:

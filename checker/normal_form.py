@@ -23,7 +23,7 @@ from .kernel import Kernel
 MAX_SOLVE_UNKNOWNS = 4
 MAX_SOLVE_OPS = 120
 MAX_NONLINEAR_UNKNOWNS = 2
-MAX_RESULT_OPS = 150
+MAX_RESULT_OPS = 100
 
 
 @dataclass(frozen=True)

@@ -318,3 +318,35 @@ def test_json_eigenvalues_sorted() -> None:
     assert data["dimension"] == 3 and data["verdict"] == "minimum_phase"
     assert np.allclose([complex(a, b) for a, b in data["eigenvalues"]], ref, atol=1e-12)  # type: ignore[union-attr]
     assert normal_form_json(normal_form_at(Kernel(P), [2], {s: 0 for s in xs}))["invertible"] is True
+
+
+def test_mimo_nonlinear_numeric_route_against_sympy_closed_loop() -> None:
+    # reference done another way: build f* = f + g u* symbolically with sympy, take its
+    # Jacobian, evaluate in floats, restrict to the null space of dXi (scipy.linalg.null_space)
+    # and take numpy eigenvalues. Plant invented (two carts, one carrying a pendulum).
+    p1, v1, p2, v2, th, w = sp.symbols("p1 v1 p2 v2 th w")
+    k, g = sp.Integer(4), sp.Rational(981, 150)
+    mass1 = 1 + sp.sin(th) ** 2 / 4
+    f = sp.Matrix([v1, -k * (p1 - p2) - v1 / 2 + sp.sin(th) * w**2 / (2 + sp.cos(th)), v2,
+                   k * (p1 - p2) - v2 / 2, w, -g * sp.sin(th) - w / 10])
+    G = sp.Matrix([[0, 0], [1 / mass1, 0], [0, 0], [0, 1], [0, 0], [sp.cos(th) / 3, -sp.cos(th) / 3]])
+    xs = [p1, v1, p2, v2, th, w]
+    P = Plant.from_matrices("carts", xs, list(sp.symbols("F1 F2")), list(f), [list(G[:, 0]), list(G[:, 1])], [p1, p2])
+    th0 = sp.Rational(1, 5)
+    delta = 2 * g * sp.tan(th0) / (k * (2 + sp.sin(th0) ** 2 / 4)) * sp.Rational(3, 2)  # g here is g/L, L = 3/2
+    point = {p1: delta, v1: 0, p2: 0, v2: 0, th: th0, w: 0}
+    zd = zero_dynamics_at(Kernel(P), [2, 2], point, "tilted")
+    # reference
+    Lf = [(f.T * sp.Matrix([sp.diff(p, x) for x in xs]))[0] for p in (p1, p2)]
+    grad = lambda e: sp.Matrix([[sp.diff(e, x) for x in xs]])  # noqa: E731
+    A = sp.Matrix.vstack(grad(Lf[0]) * G, grad(Lf[1]) * G)
+    b = sp.Matrix([(grad(e) * f)[0] for e in Lf])
+    fstar = f - G * A.inv() * b
+    subs = {s: float(v) for s, v in point.items()}
+    J = np.array(fstar.jacobian(xs).subs(subs).evalf(), dtype=float)
+    assert np.allclose(np.array(fstar.subs(subs).evalf(), dtype=float), 0, atol=1e-12)  # a rest point
+    dXi = np.array(sp.Matrix.vstack(grad(p1), grad(Lf[0]), grad(p2), grad(Lf[1])).subs(subs).evalf(), dtype=float)
+    N = scipy.linalg.null_space(dXi)
+    ref = np.linalg.eigvals(N.T @ J @ N)
+    assert not zd.exact and zd.consistent and zd.verdict == "minimum_phase"
+    assert_same_set(list(zd.eigenvalues), [complex(v) for v in ref], tol=1e-9)

@@ -1,0 +1,617 @@
+"""Full-state (input-state) linearizability: controllability distributions.
+
+Single input: D_k = span{g, ad_f g, ..., ad_f^k g}. Several inputs:
+G_k = span{ad_f^j g_i : j <= k, every input i}. The plant is state linearizable
+near x0 when G_(n-1) has rank n at x0, every G_k has constant rank near x0 and
+G_k is involutive for k <= n-2 (theory notes, "Full-state linearization").
+
+Why the analysis is split in two:
+
+* :func:`analyse_distributions` works with functions (generic ranks and
+  involutivity). For analytic data "constant rank near x0" means "rank at x0
+  equals the generic rank", and a bracket that leaves the span somewhere leaves
+  it near every point, so the expensive symbolic work is done once per plant.
+* :func:`distributions_at` then only needs exact numbers at each point.
+
+Ranks come from a column-by-column elimination whose pivots are decided
+rigorously: generically with :meth:`Kernel.is_zero` (ball screening, then
+symbolic confirmation), at a point with :meth:`Kernel.value_at`. Elimination is
+fraction free unless the pivot is a number, so a remainder is a non-zero
+multiple of a bordered minor: it vanishes identically exactly when the
+corresponding (r+1)-minors do.
+
+Findings: the generic ``not-involutive`` (anchor "plant") sits in
+``DistributionStructure.findings``; per point, ``not-controllable`` and a
+``not-involutive`` for a distribution whose rank drops at the point (a singular
+point: not of constant rank there) sit in ``PointDistributions.findings``.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterator, Sequence
+from dataclasses import dataclass, field
+from fractions import Fraction
+from math import gcd, lcm
+
+import sympy as sp
+from flint import arb
+
+from .balls import Program, UnsupportedExpression
+from .findings import Finding, Severity
+from .kernel import Kernel, Vector, matrix_at
+
+#: Relative tolerance of the floating-point prefilter for output candidates
+#: (only a prefilter: every candidate kept is then verified rigorously).
+CANDIDATE_TOLERANCE = 1e-9
+#: Sample points used by the output-candidate prefilter.
+CANDIDATE_SAMPLES = 3
+
+
+@dataclass(frozen=True)
+class Decision:
+    """Is a value zero? ``certain`` is False when zero was not proved."""
+
+    zero: bool
+    certain: bool
+
+
+@dataclass(frozen=True)
+class SpanningField:
+    """One spanner ad_f^order g_input of the distributions."""
+
+    label: str  # "g", "ad_f g", "ad_f^2 g" (one input); "g1", "ad_f g2" (several)
+    input_index: int
+    order: int
+    vector: Vector
+
+
+@dataclass(frozen=True)
+class BracketFailure:
+    """A bracket of two spanners that leaves the distribution."""
+
+    order: int  # k of D_k / G_k
+    left: str
+    right: str
+    certain: bool
+
+    @property
+    def pair(self) -> str:
+        return f"[{self.left}, {self.right}]"
+
+
+@dataclass
+class DistributionStructure:
+    """Generic (function-level) facts about D_0 .. D_(n-1) of one plant."""
+
+    n: int
+    m: int
+    fields: tuple[SpanningField, ...]
+    ranks: tuple[int, ...]  # generic rank of D_k, k = 0 .. n-1
+    bases: tuple[tuple[int, ...], ...]  # indices into ``fields`` of a basis of D_k
+    involutive_by_order: tuple[bool, ...]  # D_k involutive, k = 0 .. n-2
+    failures: tuple[BracketFailure, ...]  # first failing pair of each non-involutive D_k
+    uncertain: tuple[str, ...]  # decisions taken as zero without symbolic proof
+    findings: tuple[Finding, ...]
+    _outputs: "_OutputSearch | None" = field(default=None, repr=False)
+
+    @property
+    def involutive(self) -> bool:
+        return all(self.involutive_by_order)
+
+    @property
+    def failure(self) -> BracketFailure | None:
+        return self.failures[0] if self.failures else None
+
+    def name(self, k: int) -> str:
+        return distribution_name(self.m, k)
+
+    def spanners(self, k: int) -> str:
+        labels = [f.label for f in self.fields if f.order <= k]
+        return f"{self.name(k)} = span{{{', '.join(labels)}}}"
+
+
+@dataclass(frozen=True)
+class PointDistributions:
+    """The distributions at one operating point."""
+
+    point: str
+    ranks: tuple[int, ...]  # exact rank of D_k at the point, k = 0 .. n-1
+    generic_ranks: tuple[int, ...]
+    singular_orders: tuple[int, ...]  # k where the rank drops at the point only
+    controllability_rank: int
+    missing_directions: tuple[str, ...]  # basis of the orthogonal complement of D_(n-1)
+    missing_vectors: tuple[tuple[sp.Expr, ...], ...]  # the same, as vectors
+    involutive: bool
+    state_linearizable: bool
+    failure: BracketFailure | None
+    output_searched: bool
+    linearizing_output: sp.Expr | None
+    notes: tuple[str, ...]
+    findings: tuple[Finding, ...]
+
+
+def distribution_name(m: int, k: int) -> str:
+    return f"{'D' if m == 1 else 'G'}_{k}"
+
+
+# -- elimination with rigorous pivots -------------------------------------------------
+class _Echelon:
+    """Column echelon form built one column at a time.
+
+    Each pivot keeps its row and its reduced column; reducing a new column by
+    the first ``r`` pivots leaves, in the other rows, non-zero multiples of the
+    bordered (r+1)-minors.
+    """
+
+    def __init__(self, decide: Callable[[sp.Expr], Decision]):
+        self.decide = decide
+        self.pivots: list[tuple[int, list[sp.Expr]]] = []
+        self.uncertain = False
+
+    def reduce(self, column: Sequence[sp.Expr], upto: int | None = None) -> list[sp.Expr]:
+        v = list(column)
+        for row, w in self.pivots[:upto]:
+            a = v[row]
+            if a == 0:
+                continue
+            p = w[row]
+            if p.is_number:
+                ratio = a / p
+                v = [vi - ratio * wi if wi != 0 else vi for vi, wi in zip(v, w)]
+                v[row] = sp.Integer(0)
+            else:
+                v = [p * vi - a * wi for vi, wi in zip(v, w)]
+        return v
+
+    def remainder_nonzero(self, v: Sequence[sp.Expr], upto: int | None = None) -> tuple[int | None, bool]:
+        """First row (cheapest first) whose remainder is certainly non-zero, and
+        whether every other decision was certain."""
+        used = {row for row, _ in self.pivots[:upto]}
+        rows = [i for i in range(len(v)) if i not in used and v[i] != 0]
+        rows.sort(key=lambda i: (not v[i].is_number, _size(v[i])))
+        certain = True
+        for i in rows:
+            d = self.decide(v[i])
+            if not d.zero:
+                return i, certain
+            certain = certain and d.certain
+        return None, certain
+
+    def add(self, column: Sequence[sp.Expr]) -> bool:
+        """Add a column; True when it is independent of the previous ones."""
+        v = self.reduce(column)
+        v = [_normal(e) for e in v]
+        row, certain = self.remainder_nonzero(v)
+        if row is None:
+            self.uncertain = self.uncertain or not certain
+            return False
+        self.pivots.append((row, v))
+        return True
+
+
+def _normal(e: sp.Expr) -> sp.Expr:
+    """Multiply out a reduced entry so that exact cancellations show up
+    structurally (a zero becomes 0, a constant pivot a number). Not a zero
+    test: the kernel still decides every remainder."""
+    if e.is_number or e.is_Symbol:
+        return e
+    return sp.expand(e)
+
+
+def _size(e: sp.Expr, cap: int = 400) -> int:
+    count = 0
+    for _ in sp.preorder_traversal(e):
+        count += 1
+        if count >= cap:
+            break
+    return count
+
+
+def _labels(m: int, j: int, k: int) -> str:
+    g = "g" if m == 1 else f"g{j + 1}"
+    if k == 0:
+        return g
+    return f"ad_f {g}" if k == 1 else f"ad_f^{k} {g}"
+
+
+# -- generic analysis -----------------------------------------------------------------
+def analyse_distributions(kernel: Kernel) -> DistributionStructure:
+    """Generic ranks and involutivity of D_0 .. D_(n-1) (G_k for several inputs)."""
+    n, m = kernel.plant.n, kernel.plant.m
+    fields = tuple(
+        SpanningField(_labels(m, j, k), j, k, tuple(_normal(e) for e in kernel.ad(j, k)))
+        for k in range(n)
+        for j in range(m)
+    )
+
+    def decide(e: sp.Expr) -> Decision:
+        t = kernel.is_zero(e)
+        return Decision(t.zero, t.certain)
+
+    echelon = _Echelon(decide)
+    basis: list[int] = []
+    ranks: list[int] = []
+    bases: list[tuple[int, ...]] = []
+    uncertain: list[str] = []
+    for index, spanner in enumerate(fields):
+        if len(basis) < n and echelon.add(spanner.vector):
+            basis.append(index)
+        if index % m == m - 1:  # end of block k
+            k = spanner.order
+            if echelon.uncertain:
+                uncertain.append(f"rank of {distribution_name(m, k)}: a remainder was taken as zero without proof")
+                echelon.uncertain = False
+            ranks.append(len(basis))
+            bases.append(tuple(basis))
+    if m == 0:  # no inputs: every distribution is {0}
+        ranks, bases = [0] * n, [()] * n
+
+    involutive, failures, more = _involutivity(kernel, fields, bases, echelon, m)
+    uncertain.extend(more)
+    findings: list[Finding] = []
+    if failures:
+        first = failures[0]
+        k = first.order
+        labels = ", ".join(fields[i].label for i in bases[k])
+        message = (
+            f"{distribution_name(m, k)} = span{{{', '.join(f.label for f in fields if f.order <= k)}}} "
+            f"is not involutive: the bracket {first.pair} leaves it (rank {ranks[k]}, basis {{{labels}}}); "
+            "the plant is not state linearizable"
+        )
+        if not first.certain:
+            message += " (some other remainders were taken as zero without symbolic proof)"
+        findings.append(
+            Finding(
+                rule="not-involutive",
+                severity=Severity.ERROR,
+                message=message,
+                anchor="plant",
+                hint="no output of relative degree n exists; consider input-output linearization "
+                "with a chosen output instead",
+            )
+        )
+    structure = DistributionStructure(
+        n=n,
+        m=m,
+        fields=fields,
+        ranks=tuple(ranks),
+        bases=tuple(bases),
+        involutive_by_order=tuple(involutive),
+        failures=tuple(failures),
+        uncertain=tuple(uncertain),
+        findings=tuple(findings),
+    )
+    if m == 1:
+        structure._outputs = _OutputSearch(kernel, structure)
+    return structure
+
+
+def _involutivity(
+    kernel: Kernel,
+    fields: Sequence[SpanningField],
+    bases: Sequence[tuple[int, ...]],
+    echelon: _Echelon,
+    m: int,
+) -> tuple[list[bool], list[BracketFailure], list[str]]:
+    """Bracket every pair of basis fields of D_k (k <= n-2) and test membership.
+
+    Pairs of a basis suffice: brackets with a dependent spanner are
+    combinations of these and of the spanners themselves.
+    """
+    n = kernel.plant.n
+    member_from: dict[tuple[int, int], int] = {}  # pair -> first k whose D_k contains the bracket
+    involutive: list[bool] = []
+    failures: list[BracketFailure] = []
+    uncertain: list[str] = []
+    brackets: dict[tuple[int, int], Vector] = {}
+    for k in range(max(n - 1, 0)):
+        basis = bases[k]
+        rank = len(basis)
+        ok = True
+        for a_pos in range(rank):
+            for b_pos in range(a_pos + 1, rank):
+                pair = (basis[a_pos], basis[b_pos])
+                if pair in member_from:
+                    continue
+                if rank == n:
+                    member_from[pair] = k
+                    continue
+                if pair not in brackets:
+                    bracket = kernel.bracket(fields[pair[0]].vector, fields[pair[1]].vector)
+                    brackets[pair] = tuple(_normal(e) for e in bracket)
+                remainder = [_normal(e) for e in echelon.reduce(brackets[pair], upto=rank)]
+                row, certain = echelon.remainder_nonzero(remainder, upto=rank)
+                if row is None:
+                    member_from[pair] = k
+                    if not certain:
+                        uncertain.append(
+                            f"[{fields[pair[0]].label}, {fields[pair[1]].label}] taken to lie in "
+                            f"{distribution_name(m, k)} without symbolic proof"
+                        )
+                    continue
+                failures.append(BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain))
+                ok = False
+                break
+            if not ok:
+                break
+        involutive.append(ok)
+    return involutive, failures, uncertain
+
+
+# -- at a point ------------------------------------------------------------------------
+def distributions_at(
+    kernel: Kernel,
+    structure: DistributionStructure,
+    name: str,
+    values: dict[sp.Symbol, sp.Expr],
+) -> PointDistributions:
+    """Exact ranks at the point, singular orders, the verdict and (one input) an output."""
+    n, m = structure.n, structure.m
+    rows = matrix_at(kernel, [f.vector for f in structure.fields], values)
+    undefined: list[str] = []
+
+    def decide(e: sp.Expr) -> Decision:
+        v = kernel.value_at(e, {})
+        if v.zero is None:
+            undefined.append(str(e))
+            return Decision(True, False)
+        return Decision(v.zero, True)
+
+    echelon = _Echelon(decide)
+    ranks: list[int] = []
+    basis: list[int] = []
+    for index in range(len(structure.fields)):
+        if len(basis) < n and echelon.add(list(rows.row(index))):
+            basis.append(index)
+        if index % m == m - 1:
+            ranks.append(len(basis))
+    ranks = ranks or [0] * n
+    singular = tuple(k for k in range(n) if ranks[k] < structure.ranks[k])
+    control_rank = ranks[-1] if ranks else 0
+    vectors = _orthogonal_complement(kernel, [list(rows.row(i)) for i in basis]) if control_rank < n else []
+    missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
+    notes: list[str] = list(structure.uncertain)
+    if undefined:
+        notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds")
+    for k in singular:
+        notes.append(
+            f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it: "
+            f"{name} is a singular point of the distribution"
+        )
+    singular_low = [k for k in singular if k <= n - 2]
+    involutive = structure.involutive and not singular_low
+    linearizable = control_rank == n and not singular and structure.involutive
+    findings = _point_findings(structure, name, ranks, singular, missing)
+
+    searched = m == 1 and linearizable and structure._outputs is not None
+    output: sp.Expr | None = None
+    if searched and structure._outputs is not None:
+        output = structure._outputs.first_at(values)
+        if output is None:
+            notes.append(
+                "an output of relative degree n exists near the point (state-linearization theorem) "
+                "but was not found in closed form among the simple candidates tried"
+            )
+    return PointDistributions(
+        point=name,
+        ranks=tuple(ranks),
+        generic_ranks=structure.ranks,
+        singular_orders=singular,
+        controllability_rank=control_rank,
+        missing_directions=missing,
+        missing_vectors=tuple(tuple(v) for v in vectors),
+        involutive=involutive,
+        state_linearizable=linearizable,
+        failure=structure.failure,
+        output_searched=searched,
+        linearizing_output=output,
+        notes=tuple(notes),
+        findings=tuple(findings),
+    )
+
+
+def _point_findings(
+    structure: DistributionStructure,
+    name: str,
+    ranks: Sequence[int],
+    singular: Sequence[int],
+    missing: Sequence[str],
+) -> list[Finding]:
+    n = structure.n
+    out: list[Finding] = []
+    top = n - 1
+    if n and ranks[top] < n:
+        message = (
+            f"at {name} the controllability distribution {structure.spanners(top)} has rank "
+            f"{ranks[top]} < {n}; missing directions: {'; '.join(missing) or 'undetermined'}"
+        )
+        if top in singular:
+            message += (
+                f" (around {name} the rank is {structure.ranks[top]}: {name} is a singular point "
+                "of the distribution)"
+            )
+        out.append(
+            Finding(
+                rule="not-controllable",
+                severity=Severity.ERROR,
+                message=message,
+                point=name,
+                anchor=f"point {name}",
+                hint="the input cannot steer these directions to first order by state feedback "
+                "through the drift brackets",
+            )
+        )
+    low = [k for k in singular if k <= n - 2]
+    if low:
+        parts = [
+            f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it"
+            for k in low
+        ]
+        out.append(
+            Finding(
+                rule="not-involutive",
+                severity=Severity.ERROR,
+                message=f"{'; '.join(parts)}: {name} is a singular point of the distribution, which "
+                "must be involutive and of constant rank near the point",
+                point=name,
+                anchor=f"point {name}",
+            )
+        )
+    return out
+
+
+def _orthogonal_complement(kernel: Kernel, basis_rows: list[list[sp.Expr]]) -> list[list[sp.Expr]]:
+    """A basis of the orthogonal complement of the span of exact vectors
+    (pivots decided rigorously at the point)."""
+    n = kernel.plant.n
+    if not basis_rows:
+        return [[sp.Integer(int(i == j)) for j in range(n)] for i in range(n)]
+
+    def is_zero(e: sp.Expr) -> bool:
+        return kernel.value_at(e, {}).zero is not False
+
+    null = sp.Matrix(basis_rows).nullspace(simplify=False, iszerofunc=is_zero)
+    return [_scaled(list(v)) for v in null]
+
+
+def _scaled(v: list[sp.Expr]) -> list[sp.Expr]:
+    """Integer entries with no common factor, first non-zero positive (when rational)."""
+    if all(e.is_Rational for e in v):
+        fracs = [Fraction(int(e.p), int(e.q)) for e in v]
+        den = lcm(*(f.denominator for f in fracs))
+        ints = [int(f * den) for f in fracs]
+        common = gcd(*ints) or 1
+        ints = [i // common for i in ints]
+        first = next((i for i in ints if i), 1)
+        sign = -1 if first < 0 else 1
+        return [sp.Integer(sign * i) for i in ints]
+    return v
+
+
+def _direction_text(v: Sequence[sp.Expr], states: Sequence[sp.Symbol]) -> str:
+    parts: list[str] = []
+    for coefficient, state in zip(v, states):
+        if coefficient == 0:
+            continue
+        term = f"d/d{state}"
+        if coefficient == 1:
+            text = term
+        elif coefficient == -1:
+            text = f"-{term}"
+        else:
+            c = str(coefficient)
+            text = f"{c} {term}" if coefficient.is_Atom else f"({c}) {term}"
+        if parts and text.startswith("-"):
+            parts.append(f"- {text[1:]}")
+        elif parts:
+            parts.append(f"+ {text}")
+        else:
+            parts.append(text)
+    return " ".join(parts)
+
+
+# -- linearizing output -------------------------------------------------------------------
+class _OutputSearch:
+    """Simple outputs of relative degree n, screened in floating point against
+    D_(n-2) and then verified rigorously with Lie derivative chains."""
+
+    def __init__(self, kernel: Kernel, structure: DistributionStructure):
+        self.kernel = kernel
+        self.structure = structure
+        self._lf: dict[tuple[sp.Expr, int], sp.Expr] = {}
+        self._verified: dict[sp.Expr, bool] = {}
+        self._screened: list[sp.Expr] | None = None
+
+    def lie_f(self, phi: sp.Expr, k: int) -> sp.Expr:
+        """L_f^k phi, memoised per candidate."""
+        key = (phi, k)
+        if key not in self._lf:
+            self._lf[key] = phi if k == 0 else self.kernel.lie(self.lie_f(phi, k - 1), self.kernel.f)
+        return self._lf[key]
+
+    def lg_lf(self, phi: sp.Expr, k: int) -> sp.Expr:
+        return self.kernel.lie(self.lie_f(phi, k), self.kernel.g[0])
+
+    def first_at(self, values: dict[sp.Symbol, sp.Expr]) -> sp.Expr | None:
+        n = self.structure.n
+        for phi in self.screened():
+            if not self.verified(phi):
+                continue
+            v = self.kernel.value_at(self.lg_lf(phi, n - 1), values)
+            if v.zero is False:
+                return phi
+        return None
+
+    def verified(self, phi: sp.Expr) -> bool:
+        """L_g L_f^k phi identically zero for k < n-1 (proved, not only screened)."""
+        if phi not in self._verified:
+            ok = True
+            for k in range(self.structure.n - 1):
+                t = self.kernel.is_zero(self.lg_lf(phi, k))
+                if not (t.zero and t.certain):
+                    ok = False
+                    break
+            self._verified[phi] = ok
+        return self._verified[phi]
+
+    def screened(self) -> list[sp.Expr]:
+        if self._screened is None:
+            self._screened = list(self._screen())
+        return self._screened
+
+    def _screen(self) -> Iterator[sp.Expr]:
+        n = self.structure.n
+        fields = [f.vector for f in self.structure.fields if f.order <= n - 2]
+        symbols = self.kernel.free_symbols()
+        try:
+            program = Program([e for v in fields for e in v], symbols)
+        except UnsupportedExpression:
+            return  # nothing to screen with: no suggestion
+        points: list[tuple[dict[sp.Symbol, sp.Expr], list[list[float]]]] = []
+        for sample in self.kernel.samples()[:CANDIDATE_SAMPLES]:
+            balls = program.run([arb(sample[s].numerator) / sample[s].denominator for s in symbols], 64)
+            if all(b.is_finite() for b in balls):
+                floats = [float(b.mid()) for b in balls]
+                exact = {s: sp.Rational(sample[s].numerator, sample[s].denominator) for s in symbols}
+                points.append((exact, [floats[i * n : (i + 1) * n] for i in range(len(fields))]))
+        for phi in _candidates(self.kernel.plant.states):
+            gradient = self.kernel.gradient(phi)
+            if all(_annihilates(gradient, exact, columns) for exact, columns in points):
+                yield phi
+
+
+def _annihilates(gradient: Vector, point: dict[sp.Symbol, sp.Expr], columns: list[list[float]]) -> bool:
+    """Floating-point test of <dphi, X> = 0 at a sample (a prefilter only)."""
+    dphi = [float(d.xreplace(point)) for d in gradient]
+    for column in columns:
+        terms = [a * b for a, b in zip(dphi, column)]
+        if abs(sum(terms)) > CANDIDATE_TOLERANCE * max(1.0, sum(abs(t) for t in terms)):
+            return False
+    return True
+
+
+def _candidates(states: Sequence[sp.Symbol]) -> Iterator[sp.Expr]:
+    """States, then x_a +- c x_b and c x_a +- x_b (c = 1, 2, 3), then squares and products."""
+    n = len(states)
+    yield from states
+    weights = [(1, s * c) for c in (1, 2, 3) for s in (1, -1)] + [(c, s) for c in (2, 3) for s in (1, -1)]
+    for a in range(n):
+        for b in range(a + 1, n):
+            for ca, cb in weights:
+                yield ca * states[a] + cb * states[b]
+    for a in range(n):
+        for b in range(a, n):
+            yield states[a] * states[b]
+
+
+# -- report ---------------------------------------------------------------------------------
+def distributions_json(pd: PointDistributions) -> dict[str, object]:
+    """The per-point summary used in the JSON report."""
+    out: dict[str, object] = {
+        "controllability_rank": pd.controllability_rank,
+        "involutive": pd.involutive,
+        "state_linearizable": pd.state_linearizable,
+    }
+    if pd.output_searched:
+        out["linearizing_output"] = None if pd.linearizing_output is None else str(pd.linearizing_output)
+    return out

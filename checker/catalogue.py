@@ -10,10 +10,11 @@ from __future__ import annotations
 
 import difflib
 import sys
+from collections.abc import Iterator
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cache
 from pathlib import Path
-from typing import Any, Iterator
+from typing import Any
 
 from rich.console import Console, Group
 from rich.padding import Padding
@@ -188,7 +189,7 @@ def read_catalogue(folder: Path) -> Catalogue:
     return Catalogue(rules)
 
 
-@lru_cache(maxsize=None)
+@cache
 def _load(folder: Path) -> Catalogue:
     return read_catalogue(folder)
 

@@ -7,7 +7,8 @@ tests can render a hand-built :class:`~checker.findings.Report` into a string.
 from __future__ import annotations
 
 import unicodedata
-from typing import Iterator, Protocol, TextIO
+from collections.abc import Iterator
+from typing import Protocol, TextIO
 
 from ..findings import FileReport, Finding, Report
 

@@ -1,0 +1,373 @@
+"""Output formats, rendered from hand-built reports.
+
+SARIF is validated against the published OASIS schema (a copy in ../shared), the
+JSON report against the schema plantlint ships; column placement in the text
+view is held against Python's own ``str.expandtabs``.
+"""
+
+from __future__ import annotations
+
+import io
+import json
+from dataclasses import replace
+from pathlib import Path
+from typing import Any
+
+import jsonschema
+import pytest
+
+from checker.catalogue import load_catalogue
+from checker.findings import FileReport, Finding, Report, Severity, Span
+from checker.formats import FORMATS, get_formatter
+from checker.formats.json_report import build_report, report_schema
+from checker.formats.sarif import artifact_location, build_sarif
+from checker.formats.text import excerpt
+
+REPO_ROOT = Path(__file__).resolve().parent.parent
+SARIF_SCHEMA = REPO_ROOT.parent / "shared" / "standards" / "sarif-schema-2.1.0.json"
+
+# Invented demo model; the tab on line 3 and the two-line rate exercise column handling.
+SOURCE = (
+    "plant demo\n"
+    "param k = 2 in 1 .. 3\n"
+    "\tstate x [m] in 4 .. -4\n"
+    "input u\n"
+    "rate x = -k*x +\n"
+    "   abs(u)\n"
+    "output y = x\n"
+)
+
+
+def _findings() -> list[Finding]:
+    return [
+        Finding("non-smooth", Severity.ERROR, "abs is not smooth", Span(5, 10, 6, 10),
+                hint="use sqrt(u^2 + eps^2)", anchor="rate x"),
+        Finding("bad-range", Severity.ERROR, "range of x is empty (4 >= -4)", Span(3, 17, 3, 24), anchor="state x"),
+        Finding("zero-dynamics-critical", Severity.WARNING, "eigenvalue 0 at rest", None, point="rest",
+                anchor="output y", waived=True, reason="free integrator, reviewed"),
+        Finding("unused-name", Severity.WARNING, "param k is unused", Span(2, 7, 2, 8), anchor="param k"),
+    ]
+
+
+def _report(**kwargs: Any) -> Report:
+    files = [
+        FileReport("models/demo.plant", "demo", _findings(), analysis={"relative_degree": {"y": 1}}, source=SOURCE),
+        FileReport("clean.plant", "clean", [], source="plant clean\n"),
+    ]
+    return Report(files=files, tool_version="0.1.0", **kwargs)
+
+
+def _since_report() -> Report:
+    report = _report(since="main")
+    states = ["introduced", "known", "known", "introduced"]
+    demo = report.files[0]
+    demo.findings = [replace(f, baseline=s) for f, s in zip(demo.findings, states)]
+    demo.findings.append(Finding("missing-rate", Severity.ERROR, "state z has no rate", Span(9, 1, 9, 8),
+                                 anchor="state z", baseline="fixed"))
+    demo.structure_changes = [{"output": "y", "relative_degree": {"before": 2, "after": 1}}]
+    return report
+
+
+def _render(name: str, report: Report, color: bool = False) -> str:
+    out = io.StringIO()
+    get_formatter(name).render(report, out, color=color)
+    return out.getvalue()
+
+
+# -- registry -------------------------------------------------------------------
+
+
+def test_registry_names_and_lookup() -> None:
+    assert list(FORMATS) == ["text", "concise", "json", "sarif"]
+    assert get_formatter("sarif") is FORMATS["sarif"]
+    with pytest.raises(ValueError, match="unknown format 'xml'"):
+        get_formatter("xml")
+
+
+@pytest.mark.parametrize("name", list(FORMATS))
+def test_output_is_deterministic(name: str) -> None:
+    assert _render(name, _report()) == _render(name, _report())
+    assert _render(name, _since_report()) == _render(name, _since_report())
+
+
+# -- concise ------------------------------------------------------------------------
+
+
+def test_concise_lines_exactly() -> None:
+    assert _render("concise", _report()).splitlines() == [
+        (
+            "models/demo.plant: warning: eigenvalue 0 at rest [zero-dynamics-critical] (point rest)"
+            " (waived: free integrator, reviewed)"
+        ),
+        "models/demo.plant:2:7: warning: param k is unused [unused-name]",
+        "models/demo.plant:3:17: error: range of x is empty (4 >= -4) [bad-range]",
+        "models/demo.plant:5:10: error: abs is not smooth [non-smooth]",
+    ]
+
+
+def test_concise_under_since_marks_baseline_and_drops_fixed() -> None:
+    lines = _render("concise", _since_report()).splitlines()
+    assert len(lines) == 4
+    assert lines[1] == "models/demo.plant:2:7: warning: param k is unused [unused-name] (introduced)"
+    assert lines[3].endswith("[non-smooth] (introduced)")
+    assert not any("missing-rate" in line for line in lines)
+
+
+def test_concise_keeps_one_finding_per_line_and_no_escapes() -> None:
+    nasty = Finding("syntax", Severity.ERROR, "bad\nbyte \x1b[31m here\r", Span(1, 1, 1, 2))
+    report = Report([FileReport("x.plant", None, [nasty])], "0.1.0")
+    assert _render("concise", report) == "x.plant:1:1: error: bad byte ?[31m here [syntax]\n"
+
+
+def test_baseline_missing_under_since_is_a_caller_bug() -> None:
+    report = _report(since="main")
+    with pytest.raises(ValueError, match="baseline"):
+        _render("concise", report)
+
+
+# -- json -----------------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def report_validator() -> jsonschema.protocols.Validator:
+    schema = report_schema()
+    jsonschema.Draft202012Validator.check_schema(schema)
+    return jsonschema.Draft202012Validator(schema)
+
+
+@pytest.mark.parametrize("make", [_report, _since_report])
+def test_json_validates_and_round_trips(make: Any, report_validator: Any) -> None:
+    report = make()
+    data = json.loads(_render("json", report))
+    report_validator.validate(data)
+    assert data == json.loads(json.dumps(build_report(report)))
+    assert data["format"] == "plantlint-report" and data["version"] == 1
+
+
+def test_json_content() -> None:
+    data = json.loads(_render("json", _report()))
+    demo = data["files"][0]
+    assert demo["analysis"] == {"relative_degree": {"y": 1}}
+    assert [f["rule"] for f in demo["findings"]] == ["zero-dynamics-critical", "unused-name", "bad-range", "non-smooth"]
+    waived = demo["findings"][0]
+    assert waived["line"] is None and waived["end_column"] is None
+    assert waived["point"] == "rest" and waived["waived"] is True and waived["reason"] == "free integrator, reviewed"
+    multi = demo["findings"][3]
+    assert (multi["line"], multi["column"], multi["end_line"], multi["end_column"]) == (5, 10, 6, 10)
+    assert multi["fingerprint"] == _findings()[0].fingerprint("demo")
+    assert data["summary"] == {"files": 2, "errors": 2, "warnings": 1, "notes": 0, "waived": 1}
+    assert "since" not in data and "structure_changes" not in demo and "baseline" not in multi
+
+
+def test_json_under_since() -> None:
+    data = json.loads(_render("json", _since_report()))
+    demo = data["files"][0]
+    assert data["since"] == "main"
+    assert [f["baseline"] for f in demo["findings"]] == ["known", "introduced", "known", "introduced", "fixed"]
+    assert demo["structure_changes"] == [{"output": "y", "relative_degree": {"before": 2, "after": 1}}]
+    assert data["files"][1]["structure_changes"] == []
+    assert data["summary"]["introduced"] == 2 and data["summary"]["fixed"] == 1
+
+
+def test_json_schema_rejects_what_it_should(report_validator: Any) -> None:
+    good = json.loads(_render("json", _since_report()))
+    broken = [
+        lambda d: d["files"][0]["findings"][0].pop("baseline"),  # since without baseline
+        lambda d: d["summary"].pop("fixed"),
+        lambda d: d["files"][0]["findings"][0].update(severity="fatal"),
+        lambda d: d["files"][0]["findings"][0].update(extra=1),
+        lambda d: d.update(version=2),
+        lambda d: d.pop("since"),  # baseline keys without since
+    ]
+    for breaks in broken:
+        data = json.loads(json.dumps(good))
+        breaks(data)
+        assert not report_validator.is_valid(data)
+
+
+def test_json_analysis_values_become_plain_data() -> None:
+    report = _report()
+    report.files[0].analysis = {"zeros": {3, 1}, "ratio": (1, 2.5), "bad": float("nan"), 7: object.__name__}
+    data = json.loads(_render("json", report))
+    assert data["files"][0]["analysis"] == {"zeros": [1, 3], "ratio": [1, 2.5], "bad": "nan", "7": "object"}
+
+
+# -- sarif ------------------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def sarif_validator() -> Any:
+    if not SARIF_SCHEMA.is_file():
+        pytest.skip(f"published SARIF schema not found at {SARIF_SCHEMA} (the shared/ folder is not next to the repo)")
+    schema = json.loads(SARIF_SCHEMA.read_text(encoding="utf-8"))
+    assert schema["$schema"] == "http://json-schema.org/draft-04/schema#"
+    return jsonschema.Draft4Validator(schema)
+
+
+@pytest.mark.parametrize("make", [_report, _since_report])
+def test_sarif_validates_against_published_schema(make: Any, sarif_validator: Any) -> None:
+    data = json.loads(_render("sarif", make()))
+    errors = sorted(sarif_validator.iter_errors(data), key=lambda e: list(e.path))
+    assert errors == [], errors[0].message if errors else ""
+
+
+def test_sarif_rules_and_results() -> None:
+    data = json.loads(_render("sarif", _report()))
+    (run,) = data["runs"]
+    rules = run["tool"]["driver"]["rules"]
+    catalogue = load_catalogue()
+    assert [r["id"] for r in rules] == list(catalogue.ids())
+    nmp = rules[catalogue.index("zero-dynamics-unstable")]
+    assert nmp["defaultConfiguration"]["level"] == "error"
+    assert nmp["shortDescription"]["text"] == catalogue.get("zero-dynamics-unstable").title
+    assert nmp["properties"]["tags"] == ["zero-dynamics"]
+    results = run["results"]
+    assert [r["ruleId"] for r in results] == ["zero-dynamics-critical", "unused-name", "bad-range", "non-smooth"]
+    for result in results:
+        assert rules[result["ruleIndex"]]["id"] == result["ruleId"]
+    waived, _, bad_range, multi = results
+    assert waived["suppressions"][0]["justification"] == "free integrator, reviewed"
+    assert waived["properties"]["point"] == "rest"
+    assert "region" not in waived["locations"][0]["physicalLocation"]
+    assert "suppressions" not in bad_range
+    assert multi["locations"][0]["physicalLocation"]["region"] == {
+        "startLine": 5, "startColumn": 10, "endLine": 6, "endColumn": 10}
+    assert multi["locations"][0]["physicalLocation"]["artifactLocation"]["uri"] == "models/demo.plant"
+
+
+def test_sarif_baseline_states() -> None:
+    results = json.loads(_render("sarif", _since_report()))["runs"][0]["results"]
+    assert [r["baselineState"] for r in results] == ["unchanged", "new", "unchanged", "new", "absent"]
+
+
+def test_sarif_fingerprints_survive_moved_spans() -> None:
+    def fingerprints(report: Report) -> list[str]:
+        results = build_sarif(report)["runs"][0]["results"]
+        return sorted(r["partialFingerprints"]["plantlint/v1"] for r in results)
+
+    before = _report()
+    after = _report()
+    after.files[0].findings = [
+        replace(f, span=Span(f.span.line + 7, f.span.column + 2, f.span.end_line + 7, f.span.end_column + 2))
+        if f.span else f
+        for f in after.files[0].findings
+    ]
+    assert fingerprints(before) == fingerprints(after)
+    renamed = _report()
+    renamed.files[0].findings[1] = replace(renamed.files[0].findings[1], anchor="state w")
+    assert fingerprints(before) != fingerprints(renamed)
+    assert len(set(fingerprints(before))) == 4
+
+
+def test_sarif_keeps_rule_index_valid_for_rules_outside_the_catalogue(sarif_validator: Any) -> None:
+    report = Report([FileReport("a.plant", "a", [Finding("internal-error", Severity.ERROR, "boom")])], "0.1.0")
+    data = build_sarif(report)
+    sarif_validator.validate(data)
+    run = data["runs"][0]
+    assert run["tool"]["driver"]["rules"][run["results"][0]["ruleIndex"]]["id"] == "internal-error"
+
+
+@pytest.mark.parametrize(
+    ("path", "expected"),
+    [
+        ("models/crane.plant", {"uri": "models/crane.plant", "uriBaseId": "%SRCROOT%"}),
+        ("./models/crane.plant", {"uri": "models/crane.plant", "uriBaseId": "%SRCROOT%"}),
+        ("models\\win\\crane.plant", {"uri": "models/win/crane.plant", "uriBaseId": "%SRCROOT%"}),
+        ("my models/a#1.plant", {"uri": "my%20models/a%231.plant", "uriBaseId": "%SRCROOT%"}),
+        ("/abs/path/a.plant", {"uri": "file:///abs/path/a.plant"}),
+        ("C:\\work\\a.plant", {"uri": "file:///C:/work/a.plant"}),
+    ],
+)
+def test_sarif_artifact_locations(path: str, expected: dict[str, str]) -> None:
+    assert artifact_location(path) == expected
+
+
+# -- text ---------------------------------------------------------------------------------
+
+
+def test_text_has_no_escapes_without_color_and_some_with() -> None:
+    plain = _render("text", _report())
+    assert "\x1b" not in plain
+    assert "\x1b[" in _render("text", _report(), color=True)
+
+
+def _underline_under(output: str, line_number: int) -> str:
+    """The source characters above the dashes of the excerpt for ``line_number``."""
+    lines = output.splitlines()
+    label = f"line {line_number}: "
+    index = next(i for i, text in enumerate(lines) if text.lstrip().startswith(label))
+    quoted, marks = lines[index], lines[index + 1]
+    start = marks.index("-")
+    end = len(marks.split(" ...")[0].rstrip())
+    return quoted[start:end]
+
+
+def test_text_underlines_the_exact_columns_with_tabs() -> None:
+    out = _render("text", _report())
+    # columns 17..23 of line 3 are "4 .. -4"; the tab is expanded exactly like str.expandtabs(4)
+    assert SOURCE.splitlines()[2][16:23] == "4 .. -4"
+    assert _underline_under(out, 3) == "4 .. -4"
+    assert "\tstate x [m] in 4 .. -4".expandtabs(4) in out
+    assert _underline_under(out, 2) == "k"
+
+
+def test_text_multi_line_span_marks_continuation() -> None:
+    out = _render("text", _report())
+    assert _underline_under(out, 5) == "-k*x +"
+    assert "continues to line 6" in out
+
+
+def test_text_finding_without_span_has_no_excerpt_but_keeps_reason() -> None:
+    out = _render("text", _report())
+    block = out.split("zero-dynamics-critical")[1].split("unused-name")[0]
+    assert "line " not in block
+    assert "eigenvalue 0 at rest" in block and "waived" in block and "free integrator, reviewed" in block
+    assert "hint: use sqrt(u^2 + eps^2)" in out
+
+
+def test_text_summary_and_verdict() -> None:
+    out = _render("text", _report())
+    assert "checked 2 files: 2 errors, 1 warning, 0 notes, 1 waived" in out
+    assert out.rstrip().splitlines()[-1] == "FAILED: 2 unwaived findings at or above error"
+    report = _report()
+    report.files[0].findings = [f for f in report.files[0].findings if f.severity is not Severity.ERROR]
+    assert _render("text", report).rstrip().splitlines()[-1] == "PASSED: no unwaived finding at or above error"
+    report.fail_on = Severity.WARNING
+    assert _render("text", report).rstrip().splitlines()[-1] == "FAILED: 1 unwaived finding at or above warning"
+
+
+def test_text_under_since() -> None:
+    out = _render("text", _since_report())
+    assert "since main: 2 introduced, 2 known, 1 fixed" in out
+    assert "fixed    missing-rate: state z has no rate" in out
+    assert out.rstrip().splitlines()[-1] == "FAILED: 1 unwaived finding at or above error introduced since main"
+
+
+def test_text_never_interprets_file_text() -> None:
+    source = "plant x\nrate x = [bold]y[/bold] \x1b[2J :smile:\n"
+    finding = Finding("syntax", Severity.ERROR, "[red]oops[/red] \x1b[31m", Span(2, 10, 2, 25))
+    out = _render("text", Report([FileReport("x.plant", "x", [finding], source=source)], "0.1.0"), color=True)
+    assert "[red]oops[/red]" in out and "[bold]y[/bold]" in out and ":smile:" in out
+    assert "oops[/red] ?[31m" in out  # the message's own escape sequence is neutralised
+    assert "\x1b[2J" not in out and "?[2J" in out
+
+
+def test_excerpt_edge_cases() -> None:
+    assert excerpt(None, Span(1, 1, 1, 2)) is None
+    assert excerpt("a\n", None) is None
+    assert excerpt("a\n", Span(9, 1, 9, 2)) is None  # stale span past the end
+    at_end = excerpt("rate x =\n", Span(1, 9, 1, 10))  # unexpected end of statement
+    assert at_end is not None and (at_end.start, at_end.width) == (8, 1)
+    wide = excerpt("let \u5f62 = x\n", Span(1, 5, 1, 6))  # a double-width character
+    assert wide is not None and (wide.start, wide.width) == (4, 2)
+
+
+def test_long_lines_are_cut_around_the_span() -> None:
+    line = "rate x = " + " + ".join(f"a{i}" for i in range(120))
+    column = line.index("a100") + 1
+    report = Report([FileReport("long.plant", "long", [Finding("unknown-name", Severity.ERROR, "a100 is unknown",
+                                                                Span(1, column, 1, column + 4))], source=line)], "0.1.0")
+    out = _render("text", report)
+    assert _underline_under(out, 1) == "a100"
+    quoted = next(text for text in out.splitlines() if "line 1: " in text)
+    assert quoted.split("line 1: ")[1].startswith("...") and len(quoted) < 160

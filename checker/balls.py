@@ -18,7 +18,6 @@ import flint
 import sympy as sp
 from flint import arb
 
-Instr = tuple[int, str, tuple[int, ...], object]
 
 _UNARY: dict[type, str] = {
     sp.sin: "sin",
@@ -67,18 +66,102 @@ def _inside(x: arb, lo: int, hi: int) -> bool:
     return bool(x >= lo) and bool(x <= hi)
 
 
-def _pow(base: arb, exponent: sp.Rational) -> arb:
+def _power_by_squaring(x: arb, e: int) -> arb:
+    result = arb(1)
+    base = x
+    while e:
+        if e & 1:
+            result = result * base
+        e >>= 1
+        if e:
+            base = base * base
+    return result
+
+
+def int_power(x: arb, e: int) -> arb:
+    """x**e over a ball, tight: monotone pieces are evaluated at the endpoints.
+
+    (flint's ``arb ** int`` gives nan when the ball contains 0 and is loose
+    otherwise: [2, 4]**2 comes out as +/- 16.)
+    """
+    if e == 0:
+        return arb(1)
+    if e < 0:
+        return arb(1) / int_power(x, -e)  # nan when the ball contains 0
+    if e == 1 or not x.is_finite():
+        return x if e == 1 else arb("nan")
+    if x.rad() == 0:
+        return _power_by_squaring(x, e)
+    out = _power_by_squaring(x.lower(), e).union(_power_by_squaring(x.upper(), e))
+    if e % 2 == 0 and x.contains(0):
+        out = out.union(arb(0)).nonnegative_part()  # [0, max]: the lower end is exactly 0
+    elif e % 2 == 0:
+        out = out.nonnegative_part()
+    return out
+
+
+def rational_power(x: arb, exponent: sp.Rational) -> arb:
     if exponent.q == 1:
-        e = int(exponent.p)
-        if e >= 0:
-            return base ** e
-        return arb(1) / (base ** (-e))
+        return int_power(x, int(exponent.p))
     if exponent.q == 2:
-        root = base.sqrt() if _nonnegative(base) else _nan()
-        return _pow(root, sp.Rational(exponent.p, 1))
-    if _positive(base):
-        return (base.log() * arb(exponent.p) / arb(exponent.q)).exp()
+        root = x.sqrt() if _nonnegative(x) else _nan()
+        return int_power(root, int(exponent.p))
+    if _positive(x):
+        return (x.log() * arb(int(exponent.p)) / int(exponent.q)).exp()
     return _nan()
+
+
+Step = Callable[[list[arb], Sequence[arb]], arb]
+
+
+def _constant(make: Callable[[], arb]) -> arb:
+    old = flint.ctx.prec
+    flint.ctx.prec = 256
+    try:
+        return make()
+    finally:
+        flint.ctx.prec = old
+
+
+def _step(name: str, args: tuple[int, ...], data: object) -> Step:
+    """One compiled instruction as a closure (faster than dispatching on names per run)."""
+    if name == "sym":
+        return lambda regs, values: values[data]  # type: ignore[index]
+    if name == "const":
+        p, q = data  # type: ignore[misc]
+        return lambda regs, values: arb(int(p)) / int(q) if q != 1 else arb(int(p))
+    if name == "pi":
+        return lambda regs, values: arb.pi()
+    if name == "e":
+        return lambda regs, values: arb(1).exp()
+    if name == "add":
+        def add(regs: list[arb], values: Sequence[arb]) -> arb:
+            acc = regs[args[0]]
+            for a in args[1:]:
+                acc = acc + regs[a]
+            return acc
+        return add
+    if name == "mul":
+        def mul(regs: list[arb], values: Sequence[arb]) -> arb:
+            acc = regs[args[0]]
+            for a in args[1:]:
+                acc = acc * regs[a]
+            return acc
+        return mul
+    if name == "pow":
+        exponent = sp.Rational(data)  # type: ignore[arg-type]
+        return lambda regs, values: rational_power(regs[args[0]], exponent)
+    if name == "powx":
+        def powx(regs: list[arb], values: Sequence[arb]) -> arb:
+            b, x = regs[args[0]], regs[args[1]]
+            return (b.log() * x).exp() if _positive(b) else _nan()
+        return powx
+    if name == "atan2":
+        def atan2(regs: list[arb], values: Sequence[arb]) -> arb:
+            y, x = regs[args[0]], regs[args[1]]
+            return arb.atan2(y, x) if not (y.contains(0) and x.contains(0)) else _nan()
+        return atan2
+    return lambda regs, values: _ball_unary(name, regs[args[0]])
 
 
 class Program:
@@ -88,6 +171,7 @@ class Program:
         self.symbols = tuple(symbols)
         self._slots: dict[sp.Basic, int] = {}
         self._code: list[tuple[str, tuple[int, ...], object]] = []
+        self._steps: list[Step] | None = None
         for i, s in enumerate(self.symbols):
             self._slots[s] = i
             self._code.append(("sym", (), i))
@@ -131,41 +215,21 @@ class Program:
 
     # -- evaluation --------------------------------------------------------
     def run(self, values: Sequence[arb], prec: int = 128) -> list[arb]:
-        """Evaluate every output; ``values`` follow ``self.symbols``."""
+        """Evaluate every output; ``values`` follow ``self.symbols``.
+
+        Constants are computed at ``prec`` on every run, so one program serves
+        any precision.
+        """
+        steps = self._steps
+        if steps is None:
+            steps = self._steps = [_step(name, args, data) for name, args, data in self._code]
         old = flint.ctx.prec
         flint.ctx.prec = prec
         try:
             regs: list[arb] = []
-            for name, args, data in self._code:
-                if name == "sym":
-                    regs.append(values[data])  # type: ignore[index]
-                elif name == "const":
-                    p, q = data  # type: ignore[misc]
-                    regs.append(arb(p) / q if q != 1 else arb(p))
-                elif name == "add":
-                    acc = regs[args[0]]
-                    for a in args[1:]:
-                        acc = acc + regs[a]
-                    regs.append(acc)
-                elif name == "mul":
-                    acc = regs[args[0]]
-                    for a in args[1:]:
-                        acc = acc * regs[a]
-                    regs.append(acc)
-                elif name == "pow":
-                    regs.append(_pow(regs[args[0]], data))  # type: ignore[arg-type]
-                elif name == "powx":
-                    b, x = regs[args[0]], regs[args[1]]
-                    regs.append((b.log() * x).exp() if _positive(b) else _nan())
-                elif name == "pi":
-                    regs.append(arb.pi())
-                elif name == "e":
-                    regs.append(arb(1).exp())
-                elif name == "atan2":
-                    y, x = regs[args[0]], regs[args[1]]
-                    regs.append(arb.atan2(y, x) if not (y.contains(0) and x.contains(0)) else _nan())
-                else:
-                    regs.append(_ball_unary(name, regs[args[0]]))
+            append = regs.append
+            for step in steps:
+                append(step(regs, values))
             return [regs[o] for o in self.outputs]
         finally:
             flint.ctx.prec = old

@@ -15,9 +15,8 @@ on a box of states and ranged parameters?". Ball arithmetic answers it soundly:
 * when the budget (boxes, seconds) runs out, the open boxes are reported as
   undecided, never rounded to a verdict.
 
-``checker.balls.Program`` evaluates integer powers of wide balls loosely (and
-gives nan when the ball contains zero), which ruins enclosures of polynomials,
-so :class:`BoxProgram` reuses its compiled code with tight powers.
+Enclosures use :class:`checker.balls.Program`, whose integer powers are tight
+over wide balls (the lower end of an even power is exactly 0).
 """
 
 from __future__ import annotations
@@ -32,7 +31,7 @@ import flint
 import sympy as sp
 from flint import arb
 
-from .balls import Program, UnsupportedExpression, _ball_unary, to_arb
+from .balls import Program, UnsupportedExpression, to_arb
 
 Interval = tuple[float, float]
 FloatBox = tuple[Interval, ...]
@@ -77,122 +76,11 @@ class EnvelopeVerdict:
     seconds: float = 0.0
 
 
-# -- tight ball evaluation ----------------------------------------------------------
-def _power_by_squaring(x: arb, e: int) -> arb:
-    result = arb(1)
-    base = x
-    while e:
-        if e & 1:
-            result = result * base
-        e >>= 1
-        if e:
-            base = base * base
-    return result
-
-
-def int_power(x: arb, e: int) -> arb:
-    """x**e over a ball, tight: monotone pieces are evaluated at the endpoints."""
-    if e == 0:
-        return arb(1)
-    if e < 0:
-        return arb(1) / int_power(x, -e)  # nan when the ball contains 0
-    if e == 1 or not x.is_finite():
-        return x if e == 1 else arb("nan")
-    if x.rad() == 0:
-        return _power_by_squaring(x, e)
-    out = _power_by_squaring(x.lower(), e).union(_power_by_squaring(x.upper(), e))
-    if e % 2 == 0 and x.contains(0):
-        out = out.union(arb(0)).nonnegative_part()  # [0, max]: the lower end is exactly 0
-    elif e % 2 == 0:
-        out = out.nonnegative_part()
-    return out
-
-
-def _rational_power(x: arb, exponent: sp.Rational) -> arb:
-    if exponent.q == 1:
-        return int_power(x, int(exponent.p))
-    if exponent.q == 2:
-        root = x.sqrt() if x >= 0 else arb("nan")
-        return int_power(root, int(exponent.p))
-    if x > 0:
-        return (x.log() * arb(int(exponent.p)) / int(exponent.q)).exp()
-    return arb("nan")
-
-
-Step = Callable[[list[arb], Sequence[arb]], arb]
-
-
-def _constant(make: Callable[[], arb]) -> arb:
-    old = flint.ctx.prec
-    flint.ctx.prec = 256
-    try:
-        return make()
-    finally:
-        flint.ctx.prec = old
-
-
-def _step(name: str, args: tuple[int, ...], data: object) -> Step:
-    """One compiled instruction as a closure (faster than dispatching on names per run)."""
-    if name == "sym":
-        return lambda regs, values: values[data]  # type: ignore[index]
-    if name == "const":
-        p, q = data  # type: ignore[misc]
-        c = _constant(lambda: arb(int(p)) / int(q))
-        return lambda regs, values: c
-    if name == "pi":
-        c = _constant(arb.pi)
-        return lambda regs, values: c
-    if name == "e":
-        c = _constant(lambda: arb(1).exp())
-        return lambda regs, values: c
-    if name == "add":
-        def add(regs: list[arb], values: Sequence[arb]) -> arb:
-            acc = regs[args[0]]
-            for a in args[1:]:
-                acc = acc + regs[a]
-            return acc
-        return add
-    if name == "mul":
-        def mul(regs: list[arb], values: Sequence[arb]) -> arb:
-            acc = regs[args[0]]
-            for a in args[1:]:
-                acc = acc * regs[a]
-            return acc
-        return mul
-    if name == "pow":
-        exponent = sp.Rational(data)  # type: ignore[arg-type]
-        return lambda regs, values: _rational_power(regs[args[0]], exponent)
-    if name == "powx":
-        def powx(regs: list[arb], values: Sequence[arb]) -> arb:
-            b, x = regs[args[0]], regs[args[1]]
-            return (b.log() * x).exp() if b > 0 else arb("nan")
-        return powx
-    if name == "atan2":
-        def atan2(regs: list[arb], values: Sequence[arb]) -> arb:
-            y, x = regs[args[0]], regs[args[1]]
-            return arb.atan2(y, x) if not (y.contains(0) and x.contains(0)) else arb("nan")
-        return atan2
-    return lambda regs, values: _ball_unary(name, regs[args[0]])
-
-
 class BoxProgram(Program):
-    """A :class:`Program` whose powers are tight over wide balls."""
-
-    def __init__(self, exprs: Sequence[sp.Expr], symbols: Sequence[sp.Symbol]):
-        super().__init__(exprs, symbols)
-        self._steps = [_step(name, args, data) for name, args, data in self._code]
+    """A :class:`Program` run at the box precision by default."""
 
     def run(self, values: Sequence[arb], prec: int = BOX_PREC) -> list[arb]:
-        old = flint.ctx.prec
-        flint.ctx.prec = prec
-        try:
-            regs: list[arb] = []
-            append = regs.append
-            for step in self._steps:
-                append(step(regs, values))
-            return [regs[o] for o in self.outputs]
-        finally:
-            flint.ctx.prec = old
+        return super().run(values, prec)
 
 
 # -- boxes ----------------------------------------------------------------------------

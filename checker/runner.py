@@ -270,6 +270,30 @@ def _header_line(data: bytes) -> int:
 
 # -- the whole run ---------------------------------------------------------------
 
+@dataclass(frozen=True)
+class Source:
+    """One model to check: its bytes, or the finding that says why there are none."""
+
+    display: str
+    data: bytes | None
+    problem: Finding | None = None
+
+
+def read_source(target: Target) -> Source:
+    """Read a model file (never written to); oversize and unreadable files become findings."""
+    try:
+        size = target.path.stat().st_size
+        if size > MAX_BYTES:
+            return Source(target.display, None, Finding(
+                "syntax", Severity.ERROR,
+                f"file is {size / 1e6:.1f} MB; plant models are limited to {MAX_BYTES // 1024} KiB",
+                Span(1, 1, 1, 2), anchor="file too large"))
+        return Source(target.display, target.path.read_bytes())
+    except OSError as exc:
+        return Source(target.display, None, Finding(
+            "syntax", Severity.ERROR, f"cannot read file: {exc.strerror or exc}", Span(1, 1, 1, 2), anchor="unreadable"))
+
+
 def check_targets(
     targets: list[Target],
     config: Any,
@@ -281,37 +305,38 @@ def check_targets(
     show_progress: bool,
 ) -> list[FileReport]:
     """Reports for every target, in the order given."""
+    sources = [read_source(t) for t in targets]
+    raws = raw_results(sources, config, jobs=jobs, use_cache=use_cache, cache_dir=cache_dir,
+                       show_progress=show_progress)
+    return [finish(src.display, raw, _text(src.data), config, defaults) for src, raw in zip(sources, raws)]
+
+
+def raw_results(
+    sources: list[Source],
+    config: Any,
+    *,
+    jobs: int,
+    use_cache: bool,
+    cache_dir: Path | None,
+    show_progress: bool,
+) -> list[RawResult]:
+    """Raw results (before policy) for every source, from the cache where possible."""
     cache = Cache(cache_dir if use_cache else None, config.analysis_key())
-    datas: list[bytes | None] = []
     raws: list[RawResult | None] = []
     keys: list[str | None] = []
-    for t in targets:
-        try:
-            size = t.path.stat().st_size
-            if size > MAX_BYTES:
-                datas.append(None)
-                keys.append(None)
-                raws.append(RawResult(findings=[Finding(
-                    "syntax", Severity.ERROR,
-                    f"file is {size / 1e6:.1f} MB; plant models are limited to {MAX_BYTES // 1024} KiB",
-                    Span(1, 1, 1, 2), anchor="file too large")]))
-                continue
-            data = t.path.read_bytes()
-        except OSError as exc:
-            datas.append(None)
+    for src in sources:
+        if src.data is None:
+            raws.append(RawResult(findings=[src.problem] if src.problem else []))
             keys.append(None)
-            raws.append(RawResult(findings=[Finding("syntax", Severity.ERROR, f"cannot read file: {exc.strerror or exc}",
-                                                    Span(1, 1, 1, 2), anchor="unreadable")]))
             continue
-        datas.append(data)
-        key = cache.key(data)
+        key = cache.key(src.data)
         keys.append(key)
         raws.append(cache.get(key))
     todo = [i for i, r in enumerate(raws) if r is None]
     if todo:
         progress = _Progress(len(todo)) if show_progress and len(todo) > 3 else None
         try:
-            fresh = analyse_all([datas[i] or b"" for i in todo], config, jobs, config.timeout,
+            fresh = analyse_all([sources[i].data or b"" for i in todo], config, jobs, config.timeout,
                                 on_done=(lambda _i: progress.advance()) if progress else None)
         finally:
             if progress:
@@ -320,11 +345,13 @@ def check_targets(
             raws[i] = raw
             if keys[i] is not None and not any(f.rule == "analysis-budget" for f in raw.findings):
                 cache.put(keys[i] or "", raw)
-    reports = []
-    for t, raw, data in zip(targets, raws, datas):
-        source = data.decode("utf-8", errors="replace").lstrip("\ufeff") if data is not None and len(data) <= MAX_BYTES else None
-        reports.append(finish(t.display, raw or RawResult(), source, config, defaults))
-    return reports
+    return [r or RawResult() for r in raws]
+
+
+def _text(data: bytes | None) -> str | None:
+    if data is None or len(data) > MAX_BYTES:
+        return None
+    return data.decode("utf-8", errors="replace").lstrip("\ufeff")
 
 
 class _Progress:

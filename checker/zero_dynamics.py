@@ -22,7 +22,7 @@ import mpmath
 import sympy as sp
 from flint import acb, fmpq, fmpq_mat, fmpz_poly
 
-from .equilibria import number_decider, show_number
+from .equilibria import number_decider
 from .findings import Finding, Severity
 from .kernel import Kernel
 

@@ -17,6 +17,7 @@ from typing import Iterator, Sequence
 import sympy as sp
 
 from .equilibria import ZeroDecider, exact_rank, number_decider
+from .render import show_expr
 from .kernel import Kernel
 
 #: Larger systems are not handed to sympy's solver (it has no time limit).
@@ -72,7 +73,7 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     if rank == n:
         dynamics, note = _symbolic_zero_dynamics(kernel, degrees, xi, eta, point, decide)
     return NormalForm(
-        tuple(map(str, xi)), tuple(map(str, eta)), rank, rank == n, input_free, dynamics, note
+        tuple(map(show_expr, xi)), tuple(map(show_expr, eta)), rank, rank == n, input_free, dynamics, note
     )
 
 
@@ -161,13 +162,13 @@ def _symbolic_zero_dynamics(
         plant.f[k] + sum((plant.g[j][k] * ustar[j] for j in range(plant.m)), sp.Integer(0))
         for k in range(plant.n)
     ]
-    out = [f"{name} = {phi}" for phi, name in zip(eta, names) if not phi.is_Symbol]
+    out = [f"{name} = {show_expr(phi)}" for phi, name in zip(eta, names) if not phi.is_Symbol]
     for phi, name in zip(eta, names):
         rate = kernel.lie(phi, tuple(closed))
         rate = _compact(plant.nominal(rate).xreplace(solution))
         if sp.count_ops(rate) > MAX_RESULT_OPS:
             return None, "zero dynamics too large to write out"
-        out.append(f"{name}' = {rate}")
+        out.append(f"{name}' = {show_expr(rate, limit=400)}")
     return tuple(out), ""
 
 

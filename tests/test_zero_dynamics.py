@@ -245,7 +245,7 @@ def test_slotine_li_internal_dynamics_cubic() -> None:
     nf = normal_form_at(K, [1], at_origin(P))
     # eta = x1 - x2 has L_g eta = 0; on y = 0, x2 = -eta so eta' = x2^3 = -eta^3
     assert nf.eta == ("x1 - x2",) and nf.input_free
-    assert nf.zero_dynamics == ("eta1 = x1 - x2", "eta1' = -eta1**3")
+    assert nf.zero_dynamics == ("eta1 = x1 - x2", "eta1' = -eta1^3")
 
 
 def crane() -> Plant:

@@ -27,6 +27,7 @@ import sympy as sp
 from .balls import UnsupportedExpression
 from .findings import Finding, Severity
 from .intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
+from .render import show_expr
 from .kernel import Kernel, matrix_at
 
 #: Expressions up to this size are factored for messages; larger ones are cut.
@@ -108,10 +109,10 @@ def lie_name(kernel: Kernel, j: int | None, i: int, k: int) -> str:
 
 def compact(expr: sp.Expr) -> str:
     """A readable form of an expression for messages: factored when small, cut when large."""
-    text = sp.sstr(expr)
+    text = show_expr(expr, limit=10**6)
     if sp.count_ops(expr) <= FACTOR_OPS_LIMIT:
         try:
-            factored = sp.sstr(sp.factor(sp.cancel(expr)))
+            factored = show_expr(sp.factor(sp.cancel(expr)), limit=10**6)
         except (sp.PolynomialError, TypeError, ValueError):
             factored = text
         text = min(text, factored, key=len)

@@ -1,0 +1,74 @@
+"""`plantlint explain`: the derivation report, checked against physics the reader knows."""
+
+from __future__ import annotations
+
+import io
+import json
+import math
+import subprocess
+import sys
+from pathlib import Path
+
+from checker.explain import compact_many, explain_file
+
+SAMPLE = Path(__file__).parent / "fixtures" / "models" / "contract_sample.plant"
+
+
+def _explain(fmt: str, point: str | None = None) -> str:
+    out = io.StringIO()
+    assert explain_file(SAMPLE, point, fmt, out, color=False) == 0
+    return out.getvalue()
+
+
+def test_json_report_of_the_contract_sample() -> None:
+    data = json.loads(_explain("json"))
+    assert data["relative_degree"] == {"y": 2}
+    # the first non-zero entry of the L_g L_f^k y table is at k = 1 (relative degree 2)
+    assert [row["k"] for row in data["lie_derivatives"] if row["expr"] != "0"] == [1]
+    (rest,) = data["points"]
+    assert rest["equilibrium"] and rest["well_defined"]
+    assert rest["normal_form"]["xi"] == ["x", "v"]
+    zd = rest["zero_dynamics"]
+    assert zd["verdict"] == "critical" and zd["dimension"] == 2
+    # Holding the trolley still leaves a simple pendulum: omega = sqrt(g/L)
+    # (any mechanics text; g = 9.81, L = 2.2 from the file).
+    omega = math.sqrt(9.81 / 2.2)
+    assert f"±{omega:.6g}i" in zd["eigenvalues"]
+    waived = [f for f in data["findings"] if f["waived"]]
+    assert [f["rule"] for f in waived] == ["zero-dynamics-critical"]
+
+
+def test_text_report_has_every_section_and_no_markup_loss() -> None:
+    text = _explain("text")
+    for section in ("Relative degree", "Envelope", "Distributions", "Point rest", "Findings"):
+        assert section in text
+    assert "[g, ad_f g]" in text  # brackets are data, never terminal markup
+    assert "\x1b[" not in text
+    assert "structure, not safety" in text
+
+
+def test_point_filter_and_unknown_point() -> None:
+    data = json.loads(_explain("json", "rest"))
+    assert [p["name"] for p in data["points"]] == ["rest"]
+    out = io.StringIO()
+    assert explain_file(SAMPLE, "nowhere", "text", out, color=False) == 2
+
+
+def test_cli_explain_on_a_broken_model(tmp_path: Path) -> None:
+    bad = tmp_path / "bad.plant"
+    bad.write_text("plant p\nstate x\nrate x = y\n", encoding="utf-8")
+    run = subprocess.run([sys.executable, "-m", "checker", "explain", str(bad)], capture_output=True, text=True)
+    assert run.returncode == 1
+    assert "unknown name 'y'" in run.stdout and "Traceback" not in run.stderr
+
+
+def test_common_subexpressions_are_named_only_when_shorter() -> None:
+    import sympy as sp
+
+    x, y = sp.symbols("x y")
+    defs, shown = compact_many([x + 1, y])
+    assert defs == [] and shown == ["x + 1", "y"]
+    big = sp.sin(x * y + sp.cos(x)) ** 2 * sp.exp(x - y**2) / (3 + sp.tanh(x * y))
+    defs, shown = compact_many([big / (1 + big), big * x, big + y])
+    assert defs and any("c1" in s for s in shown)
+    assert sum(map(len, shown)) < 3 * len(str(big))

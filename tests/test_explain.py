@@ -70,5 +70,5 @@ def test_common_subexpressions_are_named_only_when_shorter() -> None:
     assert defs == [] and shown == ["1 + x", "y"]
     big = sp.sin(x * y + sp.cos(x)) ** 2 * sp.exp(x - y**2) / (3 + sp.tanh(x * y))
     defs, shown = compact_many([big / (1 + big), big * x, big + y])
-    assert defs and any("c1" in s for s in shown)
+    assert defs and any(name in s for name, _ in defs for s in shown)
     assert sum(map(len, shown)) < 3 * len(str(big))

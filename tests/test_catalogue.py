@@ -286,7 +286,7 @@ def test_nmp_example_has_a_right_half_plane_zero(catalogue: Catalogue) -> None:
 def test_critical_example_has_a_zero_at_the_origin(catalogue: Catalogue) -> None:
     rule = catalogue.get("zero-dynamics-critical")
     assert np.allclose(_transmission_zeros(rule.bad), [0.0])
-    assert np.allclose(_transmission_zeros(rule.good), [-1.0])
+    assert np.allclose(_transmission_zeros(rule.good), [-2.0])  # the zero sits at -lam
 
 
 def test_uncontrollable_example_by_kalman_rank(catalogue: Catalogue) -> None:

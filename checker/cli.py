@@ -122,7 +122,7 @@ def _check(args: argparse.Namespace) -> int:
     catalogue = load_catalogue()
     known = frozenset(catalogue.ids())
     try:
-        config = load_config(Path.cwd(), Path(args.config) if args.config else None, known)
+        config = load_config(_config_start(args.paths), Path(args.config) if args.config else None, known)
         changes = {}
         if args.only:
             changes["only"] = parse_rule_list(args.only, "--only", known)
@@ -159,6 +159,21 @@ def _check(args: argparse.Namespace) -> int:
     except UsageError as exc:
         return _fail(str(exc))
     return _emit(report, args.format, args.output, args.color)
+
+
+def _config_start(paths: list[str]) -> Path:
+    """Where to look for the configuration: above the checked paths, else here.
+
+    `plantlint check example_repo` then uses example_repo's own settings, as a
+    team running it from anywhere would expect.
+    """
+    if not paths:
+        return Path.cwd()
+    folders = [Path(p).resolve() if Path(p).is_dir() else Path(p).resolve().parent for p in paths]
+    try:
+        return Path(os.path.commonpath([str(f) for f in folders]))
+    except ValueError:
+        return Path.cwd()
 
 
 def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> int:

@@ -93,10 +93,12 @@ class Catalogue:
     def __init__(self, rules: list[Rule]) -> None:
         self._rules = tuple(rules)
         self._by_id: dict[str, Rule] = {}
-        for rule in self._rules:
+        self._position: dict[str, int] = {}
+        for position, rule in enumerate(self._rules):
             if rule.id in self._by_id:
                 raise CatalogueError(f"rule id {rule.id!r} is defined twice")
             self._by_id[rule.id] = rule
+            self._position[rule.id] = position
 
     def get(self, rule_id: str) -> Rule:
         """The rule ``rule_id``; raises :class:`UnknownRuleError` (a ``KeyError``)."""
@@ -111,7 +113,7 @@ class Catalogue:
 
     def index(self, rule_id: str) -> int:
         """Position of ``rule_id`` in the stable order (SARIF's ``ruleIndex``)."""
-        return self.ids().index(self.get(rule_id).id)
+        return self._position[self.get(rule_id).id]
 
     def __contains__(self, rule_id: object) -> bool:
         return rule_id in self._by_id
@@ -143,12 +145,9 @@ def _rule_from_table(table: dict[str, Any], where: str, family: str) -> Rule:
         raise CatalogueError(f"{label}: title must be one line")
     if table["family"] != family:
         raise CatalogueError(f"{label}: family {table['family']!r} does not match the file ({family!r})")
-    try:
-        severity = Severity.parse(table["severity"]) if isinstance(table["severity"], str) else None
-    except ValueError:
-        severity = None
-    if severity is None or table["severity"] != severity.value:
+    if table["severity"] not in {level.value for level in Severity}:
         raise CatalogueError(f"{label}: severity must be error, warning or note")
+    severity = Severity(table["severity"])
     refs = table["references"]
     if not isinstance(refs, list) or not refs or not all(isinstance(r, str) and r.strip() for r in refs):
         raise CatalogueError(f"{label}: references must be a non-empty list of strings")

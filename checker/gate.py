@@ -1,7 +1,7 @@
 """The regression gate: ``plantlint check --since REF``.
 
 Each model is compared with its version at the git revision REF, read with
-``git show`` (no checkout, nothing written to the work tree). Findings are
+``git cat-file`` (no checkout, nothing written to the work tree). Findings are
 matched by their stable fingerprint (rule, plant, what it is about, point), so
 moving lines does not make old findings look new:
 
@@ -74,7 +74,12 @@ def renames(commit: str, top: Path) -> dict[str, str]:
 
 
 def old_version(commit: str, path: str, top: Path) -> bytes | None:
-    out = _git(["show", f"{commit}:{path}"], top)
+    """The file's bytes at ``commit``; None when the path held no file there.
+
+    ``cat-file blob`` rather than ``show``: ``show`` also answers for a folder
+    (a tree listing, coloured under ``color.ui = always``) and would be read as a model.
+    """
+    out = _git(["cat-file", "blob", f"{commit}:{path}"], top)
     return out.stdout if out.returncode == 0 else None
 
 

@@ -30,6 +30,8 @@ STAGES = ("structure", "envelope", "points", "zero dynamics", "distributions", "
 CACHE_FORMAT = 1
 MAX_BYTES = 1 << 20  # same limit as checker.syntax.MAX_BYTES (not imported: it pulls in sympy)
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker
+MAX_WAIT = 3600.0  # seconds; longest single wait for worker messages
+BUDGET_ANCHOR = "analysis budget"  # anchor of pipeline.budget_finding (the runner's own stops)
 
 
 class UsageError(Exception):
@@ -57,11 +59,12 @@ def discover(paths: list[str], root: Path, include: tuple[str, ...], exclude: tu
         if not p.exists():
             raise UsageError(f"{raw}: no such file or folder")
         if p.is_dir():
-            hits = [q for q in sorted(p.rglob("*.plant")) if q.is_file() and not _hidden(q, p)]
-            hits = [q for q in hits if _matches(q, root, include) or _matches(q, p, include)]
+            every = [q for q in sorted(p.rglob("*.plant")) if q.is_file() and not _hidden(q, p)]
+            hits = [q for q in every if _matches(q, root, include) or _matches(q, p, include)]
             hits = [q for q in hits if not _excluded(q, root, exclude)]
             if not hits:
-                raise UsageError(f"{raw}: no .plant files here" + (" (after include/exclude)" if include or exclude else ""))
+                filtered = f" ({len(every)} left out by include/exclude)" if every else ""
+                raise UsageError(f"{raw}: no .plant files here{filtered}")
             for q in hits:
                 found.setdefault(q.resolve(), Target(q, _display(q, cwd)))
         elif not _excluded(p, root, exclude):
@@ -217,7 +220,7 @@ def analyse_all(
             running[parent] = (i, proc, time.monotonic(), [])
         now = time.monotonic()
         deadline = min(start + timeout for (_, _, start, _) in running.values())
-        ready = wait(list(running), timeout=max(deadline - now, 0.0))
+        ready = wait(list(running), timeout=_wait_seconds(deadline - now))
         for conn in ready:
             i, proc, start, stages = running[conn]
             try:
@@ -244,6 +247,12 @@ def analyse_all(
                 if on_done:
                     on_done(i)
     return [r if r is not None else RawResult() for r in results]
+
+
+def _wait_seconds(left: float) -> float:
+    """How long to block for worker messages: selectors reject huge, infinite and NaN
+    timeouts, so a budget such as ``--timeout 1e12`` waits in bounded slices."""
+    return max(left, 0.0) if left < MAX_WAIT else MAX_WAIT
 
 
 def _outcome(kind: str, payload: Any, stages: list[str], timeout: float, data: bytes) -> RawResult:
@@ -280,15 +289,22 @@ class Source:
 
 
 def read_source(target: Target) -> Source:
-    """Read a model file (never written to); oversize and unreadable files become findings."""
+    """Read a model file (never written to); oversize and unreadable files become findings.
+
+    At most ``MAX_BYTES + 1`` bytes are read, so a device or a file that grows
+    while it is read (``/dev/zero``) cannot exhaust memory.
+    """
     try:
-        size = target.path.stat().st_size
-        if size > MAX_BYTES:
+        with target.path.open("rb") as fh:
+            size = os.fstat(fh.fileno()).st_size
+            data = b"" if size > MAX_BYTES else fh.read(MAX_BYTES + 1)
+        if size > MAX_BYTES or len(data) > MAX_BYTES:
+            shown = f"{size / 1e6:.1f} MB" if size > MAX_BYTES else f"over {MAX_BYTES // 1024} KiB"
             return Source(target.display, None, Finding(
                 "syntax", Severity.ERROR,
-                f"file is {size / 1e6:.1f} MB; plant models are limited to {MAX_BYTES // 1024} KiB",
+                f"file is {shown}; plant models are limited to {MAX_BYTES // 1024} KiB",
                 Span(1, 1, 1, 2), anchor="file too large"))
-        return Source(target.display, target.path.read_bytes())
+        return Source(target.display, data)
     except OSError as exc:
         return Source(target.display, None, Finding(
             "syntax", Severity.ERROR, f"cannot read file: {exc.strerror or exc}", Span(1, 1, 1, 2), anchor="unreadable"))
@@ -343,9 +359,19 @@ def raw_results(
                 progress.close()
         for i, raw in zip(todo, fresh):
             raws[i] = raw
-            if keys[i] is not None and not any(f.rule == "analysis-budget" for f in raw.findings):
+            if keys[i] is not None and not cut_short(raw):
                 cache.put(keys[i] or "", raw)
     return [r or RawResult() for r in raws]
+
+
+def cut_short(raw: RawResult) -> bool:
+    """True when the runner stopped the analysis (time, memory, internal error).
+
+    Such results depend on the machine and its load, so they are not cached. The
+    analysis' own budget findings (for example an unconfirmed zero decision) are a
+    deterministic outcome of the model and the settings and are cached like any other.
+    """
+    return any(f.rule == "analysis-budget" and f.anchor == BUDGET_ANCHOR for f in raw.findings)
 
 
 def _text(data: bytes | None) -> str | None:
@@ -355,19 +381,25 @@ def _text(data: bytes | None) -> str | None:
 
 
 class _Progress:
-    """A rich progress bar on stderr (only used when stderr is a terminal)."""
+    """A rich progress bar on stderr (only used when stderr is a terminal).
+
+    Redrawn when a model completes rather than by rich's refresh thread: workers
+    are forked, and forking while another thread holds a lock can hang the child.
+    """
 
     def __init__(self, total: int):
         from rich.console import Console
         from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
 
         self._progress = Progress(TextColumn("analysing models"), BarColumn(), MofNCompleteColumn(),
-                                  TimeElapsedColumn(), console=Console(stderr=True), transient=True)
-        self._progress.start()
+                                  TimeElapsedColumn(), console=Console(stderr=True), transient=True,
+                                  auto_refresh=False)
         self._task = self._progress.add_task("models", total=total)
+        self._progress.start()
 
     def advance(self) -> None:
         self._progress.advance(self._task)
+        self._progress.refresh()
 
     def close(self) -> None:
         self._progress.stop()

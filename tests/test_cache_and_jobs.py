@@ -1,0 +1,291 @@
+"""Cache, parallel workers, time budgets and progress, through the real CLI.
+
+Every run is a real ``python -m checker`` process with real worker processes and
+a real cache folder under ``tmp_path``. Findings themselves are not re-checked
+here (the rule fixtures do that); what matters is that caching, the number of
+workers and concurrency never change a byte of the report.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import pty
+import shutil
+import subprocess
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+
+import pytest
+
+FIXTURES = Path(__file__).parent / "fixtures" / "rules"
+
+# Copied fixtures (invented plants), two of them one folder down so that discovery
+# order is exercised too.
+MODELS = {
+    "zero-dynamics-unstable.plant": "a_unstable.plant",
+    "zero-dynamics-critical.plant": "b_critical.plant",
+    "zero-dynamics-unstable.ok.plant": "c_clean.plant",
+    "expectation-failed.plant": "d_expectation.plant",
+    "unused-name.plant": "e_unused.plant",
+    "syntax.plant": "f_syntax.plant",
+    "decoupling-singular.plant": "line/g_decoupling.plant",
+    "not-involutive.plant": "line/h_chain.plant",
+}
+
+# sin^2 + cos^2 - 1 times a polynomial too large for symbolic confirmation: the analysis
+# itself reports analysis-budget (a deterministic outcome that must be cached).
+_BIG = " + ".join(f"x1^{j}*x2^{k}" for j in range(10) for k in range(10))
+UNCONFIRMED = f"""# Screening says zero; symbolic confirmation is beyond budget (invented).
+plant trig
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u
+rate x1 = x2 + (sin(x1)^2 + cos(x1)^2 - 1)*({_BIG})*u
+rate x2 = u
+output y = x1
+"""
+
+
+@dataclass
+class Run:
+    code: int
+    stdout: str
+    stderr: str
+
+
+def plantlint(cwd: Path, *args: str) -> Run:
+    out = subprocess.run([sys.executable, "-m", "checker", *args], cwd=cwd, capture_output=True, text=True,
+                         timeout=300, env=_env())
+    return Run(out.returncode, out.stdout, out.stderr)
+
+
+def _env() -> dict[str, str]:
+    env = dict(os.environ)
+    env["NO_COLOR"] = "1"
+    return env
+
+
+def cache_entries(folder: Path) -> list[Path]:
+    return sorted(folder.rglob("*.json")) if folder.exists() else []
+
+
+@pytest.fixture(scope="module")
+def workspace(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """A folder with ``models/`` (8 copied fixtures) and ``unconfirmed/`` (one model)."""
+    root = tmp_path_factory.mktemp("runs")
+    for source, target in MODELS.items():
+        path = root / "models" / target
+        path.parent.mkdir(parents=True, exist_ok=True)
+        shutil.copyfile(FIXTURES / source, path)
+    (root / "unconfirmed").mkdir()
+    (root / "unconfirmed" / "trig.plant").write_text(UNCONFIRMED, encoding="utf-8")
+    return root
+
+
+@pytest.fixture(scope="module")
+def reference(workspace: Path) -> Run:
+    """The json report of models/ with one worker and no cache."""
+    run = plantlint(workspace, "check", "--format", "json", "--jobs", "1", "--no-cache", "models")
+    assert run.code == 1 and "Traceback" not in run.stderr, run.stderr
+    return run
+
+
+@dataclass
+class ColdRun:
+    run: Run  # models/ with four workers into an empty cache
+    cache: Path  # then also holds unconfirmed/
+
+
+@pytest.fixture(scope="module")
+def cold(workspace: Path, tmp_path_factory: pytest.TempPathFactory) -> ColdRun:
+    cache = tmp_path_factory.mktemp("cache") / "c"
+    run = plantlint(workspace, "check", "--format", "json", "--jobs", "4", "--cache-dir", str(cache), "models")
+    assert plantlint(workspace, "check", "--cache-dir", str(cache), "unconfirmed").code == 0
+    return ColdRun(run, cache)
+
+
+@pytest.fixture(scope="module")
+def warm_cache(cold: ColdRun) -> Path:
+    return cold.cache
+
+
+WARM_SCRIPT = """
+import sys
+from checker.cli import main
+code = main(sys.argv[1:])
+sys.stdout.flush()
+if "sympy" in sys.modules:
+    sys.stderr.write("sympy was imported\\n")
+    sys.exit(99)
+sys.exit(code)
+"""
+
+
+def warm_run(cwd: Path, *args: str) -> Run:
+    """The CLI's main() in a fresh interpreter that fails (99) if sympy got imported."""
+    out = subprocess.run([sys.executable, "-c", WARM_SCRIPT, *args], cwd=cwd, capture_output=True, text=True,
+                         timeout=300, env=_env())
+    return Run(out.returncode, out.stdout, out.stderr)
+
+
+# -- cache ------------------------------------------------------------------------------
+
+def test_reference_report_lists_every_model_in_path_order(reference: Run) -> None:
+    paths = [f["path"] for f in json.loads(reference.stdout)["files"]]
+    assert paths == sorted(f"models/{t}" for t in MODELS.values())
+
+
+def test_warm_run_is_identical_and_does_not_import_sympy(workspace: Path, reference: Run, warm_cache: Path) -> None:
+    assert len(cache_entries(warm_cache)) == len(MODELS) + 1
+    warm = warm_run(workspace, "check", "--format", "json", "--cache-dir", str(warm_cache), "models")
+    assert warm.code == reference.code, warm.stderr
+    assert warm.stdout == reference.stdout
+
+
+def test_analysis_budget_found_by_the_analysis_is_cached(workspace: Path, warm_cache: Path) -> None:
+    """Only the runner's own stops (time, memory, crash) stay out of the cache."""
+    warm = warm_run(workspace, "check", "--format", "json", "--cache-dir", str(warm_cache), "unconfirmed")
+    assert warm.code == 0, warm.stderr
+    (file,) = json.loads(warm.stdout)["files"]
+    assert [f["rule"] for f in file["findings"]] == ["analysis-budget"]
+
+
+JUNK = [b"", b"\x00\xff\xfe junk", b"{\"key\": ", b"[]", b"{\"key\": \"not this key\", \"result\": {}}",
+        b"{\"result\": 7}", b"null"]
+
+
+def test_corrupted_cache_entries_are_ignored_and_rebuilt(workspace: Path, reference: Run, warm_cache: Path,
+                                                         tmp_path: Path) -> None:
+    cache = tmp_path / "c"
+    shutil.copytree(warm_cache, cache)
+    entries = cache_entries(cache)
+    assert len(entries) == len(MODELS) + 1
+    for i, entry in enumerate(entries):
+        entry.write_bytes(JUNK[i % len(JUNK)])
+    again = plantlint(workspace, "check", "--format", "json", "--cache-dir", str(cache), "models")
+    assert "Traceback" not in again.stderr
+    assert (again.code, again.stdout) == (reference.code, reference.stdout)
+    # rebuilt: every entry of models/ is a readable record again (the one of unconfirmed/ stays junk)
+    readable = [e for e in cache_entries(cache) if _is_record(e)]
+    assert len(readable) == len(MODELS)
+
+
+def _is_record(entry: Path) -> bool:
+    try:
+        data = json.loads(entry.read_bytes())
+    except ValueError:
+        return False
+    return isinstance(data, dict) and data.get("key") == entry.stem and "result" in data
+
+
+def test_no_cache_writes_nothing(tmp_path: Path) -> None:
+    project = tmp_path / "project"
+    project.mkdir()
+    (project / "plantlint.toml").write_text('fail-on = "error"\n', encoding="utf-8")
+    shutil.copyfile(FIXTURES / "zero-dynamics-unstable.ok.plant", project / "tail.plant")
+    elsewhere = tmp_path / "elsewhere"
+    assert plantlint(project, "check", "--no-cache", "--cache-dir", str(elsewhere), "tail.plant").code == 0
+    assert sorted(p.name for p in project.iterdir()) == ["plantlint.toml", "tail.plant"]
+    assert not elsewhere.exists()
+    # ... while a run with the cache writes into the folder beside the configuration
+    sub = project / "sub"
+    sub.mkdir()
+    assert plantlint(sub, "check", "../tail.plant").code == 0
+    assert len(cache_entries(project / ".plantlint-cache")) == 1
+    assert (project / ".plantlint-cache" / ".gitignore").read_text(encoding="utf-8").splitlines()[-1] == "*"
+
+
+def test_cache_off_in_the_configuration_writes_nothing(tmp_path: Path) -> None:
+    (tmp_path / "plantlint.toml").write_text("cache = false\n", encoding="utf-8")
+    shutil.copyfile(FIXTURES / "zero-dynamics-unstable.ok.plant", tmp_path / "tail.plant")
+    assert plantlint(tmp_path, "check", "tail.plant").code == 0
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["plantlint.toml", "tail.plant"]
+
+
+# -- parallel workers --------------------------------------------------------------------
+
+def test_one_and_four_workers_give_byte_identical_json(reference: Run, cold: ColdRun) -> None:
+    four = cold.run  # --jobs 4 into an empty cache: every model analysed by a worker
+    assert four.code == reference.code
+    assert four.stdout == reference.stdout
+    # stderr is not a terminal: no progress display
+    assert four.stderr == "" and reference.stderr == ""
+
+
+def test_concurrent_runs_share_one_cache(workspace: Path, tmp_path: Path) -> None:
+    cache = tmp_path / "shared"
+    args = [sys.executable, "-m", "checker", "check", "--format", "json", "--jobs", "2", "--cache-dir", str(cache),
+            "models/a_unstable.plant", "models/c_clean.plant", "models/line"]
+    procs = [subprocess.Popen(args, cwd=workspace, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                              env=_env()) for _ in range(2)]
+    outs = [p.communicate(timeout=300) for p in procs]
+    codes = [p.returncode for p in procs]
+    assert codes == [1, 1], outs
+    assert outs[0][0] == outs[1][0] and all(err == "" for _, err in outs)
+    assert len(cache_entries(cache)) == 4
+    assert not list(cache.rglob("*.tmp"))
+    warm = warm_run(workspace, *args[3:])
+    assert (warm.code, warm.stdout) == (1, outs[0][0])
+
+
+# -- time budget -------------------------------------------------------------------------
+
+def test_tiny_budget_stops_each_model_and_the_run_goes_on(workspace: Path, tmp_path: Path) -> None:
+    cache = tmp_path / "c"
+    paths = ["models/a_unstable.plant", "models/c_clean.plant", "models/line/h_chain.plant"]
+    run = plantlint(workspace, "check", "--format", "json", "--jobs", "1", "--timeout", "0.001",
+                    "--cache-dir", str(cache), *paths)
+    assert run.code == 0 and "Traceback" not in run.stderr  # analysis-budget is a warning
+    files = json.loads(run.stdout)["files"]
+    assert [f["path"] for f in files] == paths
+    stages = ("structure", "envelope", "points", "zero dynamics", "distributions", "claims")
+    for file in files:
+        (finding,) = file["findings"]
+        assert finding["rule"] == "analysis-budget" and finding["severity"] == "warning"
+        message = finding["message"]
+        assert "0.001 s" in message and "completed:" in message and "not completed:" in message
+        assert all(stage in message for stage in stages)
+    # a stop by the runner depends on the machine: it is never cached
+    assert cache_entries(cache) == []
+    full = plantlint(workspace, "check", "--format", "json", "--cache-dir", str(cache), paths[0])
+    assert [f["rule"] for f in json.loads(full.stdout)["files"][0]["findings"]] == ["zero-dynamics-unstable"]
+
+
+def test_budget_beyond_any_wait_is_accepted(workspace: Path) -> None:
+    """Selectors reject waits this long; the runner must wait in slices instead."""
+    run = plantlint(workspace, "check", "--format", "concise", "--no-cache", "--timeout", "inf",
+                    "models/a_unstable.plant")
+    assert run.code == 1 and run.stderr == ""
+    assert "[zero-dynamics-unstable]" in run.stdout
+
+
+# -- progress ----------------------------------------------------------------------------
+
+def test_progress_goes_to_a_terminal_only(workspace: Path, reference: Run) -> None:
+    """With stderr on a pseudo-terminal the progress bar is drawn there (more than three
+    models to analyse); stdout (a pipe) still carries exactly the report."""
+    paths = ["models/a_unstable.plant", "models/b_critical.plant", "models/c_clean.plant", "models/e_unused.plant"]
+    leader, follower = pty.openpty()
+    try:
+        proc = subprocess.Popen([sys.executable, "-m", "checker", "check", "--format", "json", "--jobs", "2",
+                                 "--no-cache", *paths], cwd=workspace, stdout=subprocess.PIPE, stderr=follower,
+                                env={**_env(), "TERM": "xterm", "COLUMNS": "100"})
+        os.close(follower)
+        drawn = bytearray()
+        while True:
+            try:
+                chunk = os.read(leader, 4096)
+            except OSError:  # the terminal closed with the process
+                break
+            if not chunk:
+                break
+            drawn += chunk
+        stdout, _ = proc.communicate(timeout=300)
+    finally:
+        os.close(leader)
+    assert proc.returncode == 1
+    expected = [f for f in json.loads(reference.stdout)["files"] if f["path"] in paths]
+    assert json.loads(stdout)["files"] == expected
+    assert b"analysing models" in drawn and b"Traceback" not in drawn

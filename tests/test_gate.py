@@ -1,0 +1,312 @@
+"""The ``--since REF`` regression gate across real git commits, through the real CLI.
+
+One module-scoped repository holds a base commit (tagged ``base``) and a second
+commit with one edit per scenario, each in its own model file:
+
+    tail.plant      minimum phase -> non-minimum phase      introduced, fails
+    shaker.plant    finding at base, lines moved only       known, passes
+    fixme.plant     finding at base, fixed                  fixed, passes
+    added.plant     new since base                          everything introduced
+    renamed.plant   ``git mv`` of hopper.plant              followed: known
+    drift.plant     minimum phase -> critical, waived       structure change reported
+    steady.plant    untouched clean model                   nothing
+
+All models are invented. The mathematics behind the edits (where the zero of
+each linear plant sits) is checked against scipy.signal in
+``test_edits_move_the_invariant_zero_as_claimed``.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import subprocess
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import pytest
+
+# Linear two-state plant: z' = a*z + x, x' = u, y = x. With y held at zero the
+# internal state obeys z' = a*z, so the zero dynamics are stable for a < 0,
+# unstable for a > 0 and critical for a = 0.
+TAIL = """# Tail of a conveyor, demo numbers (invented).
+plant {name}
+state z in -1 .. 1
+state x in -1 .. 1
+input u
+rate z = {rate_z}
+rate x = u
+output y = x
+point rest: z = 0, x = 0
+{extra}"""
+
+STABLE, UNSTABLE, CRITICAL = "-z + x", "z + x", "x"
+
+
+def model(name: str, rate_z: str, extra: str = "") -> str:
+    return TAIL.format(name=name, rate_z=rate_z, extra=extra)
+
+
+WAIVE_CRITICAL = 'waive zero-dynamics-critical at rest "settled by the downstream buffer (invented)"\n'
+
+BASE: dict[str, str] = {
+    "tail.plant": model("tail", STABLE),
+    "shaker.plant": model("shaker", UNSTABLE),
+    "fixme.plant": model("fixme", UNSTABLE),
+    "hopper.plant": model("hopper", UNSTABLE),
+    "drift.plant": model("drift", STABLE, WAIVE_CRITICAL),
+    "steady.plant": model("steady", STABLE),
+}
+
+CHANGED: dict[str, str] = {
+    "tail.plant": model("tail", UNSTABLE),
+    "shaker.plant": "# moved down by a header comment\n\n\n# and blank lines\n\n" + model("shaker", UNSTABLE),
+    "fixme.plant": model("fixme", STABLE),
+    "added.plant": model("added", UNSTABLE),
+    "drift.plant": model("drift", CRITICAL, WAIVE_CRITICAL),
+}
+
+PASSING = ["shaker.plant", "fixme.plant", "renamed.plant", "drift.plant", "steady.plant"]
+
+
+def git_env(home: Path) -> dict[str, str]:
+    """An environment that keeps git away from the user's own configuration."""
+    cfg = home / "gitconfig"
+    if not cfg.exists():
+        cfg.write_text("", encoding="utf-8")
+    env = dict(os.environ)
+    env.update({
+        "GIT_CONFIG_GLOBAL": str(cfg), "GIT_CONFIG_NOSYSTEM": "1",
+        "GIT_AUTHOR_NAME": "Test Author", "GIT_AUTHOR_EMAIL": "author@example.invalid",
+        "GIT_COMMITTER_NAME": "Test Author", "GIT_COMMITTER_EMAIL": "author@example.invalid",
+        "GIT_CEILING_DIRECTORIES": str(home.parent), "NO_COLOR": "1",
+    })
+    return env
+
+
+def git(repo: Path, env: dict[str, str], *args: str) -> str:
+    out = subprocess.run(["git", *args], cwd=repo, env=env, capture_output=True, text=True, check=True)
+    return out.stdout
+
+
+@dataclass
+class Run:
+    code: int
+    stdout: str
+    stderr: str
+
+    def json(self) -> dict[str, Any]:
+        data: dict[str, Any] = json.loads(self.stdout)
+        return data
+
+
+def plantlint(cwd: Path, env: dict[str, str], *args: str) -> Run:
+    out = subprocess.run([sys.executable, "-m", "checker", *args], cwd=cwd, env=env,
+                         capture_output=True, text=True, timeout=300)
+    return Run(out.returncode, out.stdout, out.stderr)
+
+
+@dataclass
+class Scenario:
+    repo: Path
+    env: dict[str, str]
+    cache: Path
+    run: Run  # the whole gate over plants/, json, cache folder outside the repository
+    status_before: str
+    status_after: str
+
+    def file(self, name: str) -> dict[str, Any]:
+        (found,) = [f for f in self.run.json()["files"] if f["path"] == f"plants/{name}"]
+        return found
+
+
+@pytest.fixture(scope="module")
+def scenario(tmp_path_factory: pytest.TempPathFactory) -> Scenario:
+    home = tmp_path_factory.mktemp("gate")
+    repo = home / "repo"
+    (repo / "plants").mkdir(parents=True)
+    env = git_env(home)
+    git(repo, env, "init", "-q", "-b", "main")
+    for name, text in BASE.items():
+        (repo / "plants" / name).write_text(text, encoding="utf-8")
+    git(repo, env, "add", "plants")
+    git(repo, env, "commit", "-q", "-m", "base models")
+    git(repo, env, "tag", "base")
+    for name, text in CHANGED.items():
+        (repo / "plants" / name).write_text(text, encoding="utf-8")
+    git(repo, env, "mv", "plants/hopper.plant", "plants/renamed.plant")
+    git(repo, env, "add", "plants")
+    git(repo, env, "commit", "-q", "-m", "edit models")
+    before = git(repo, env, "status", "--porcelain", "--ignored")
+    run = plantlint(repo, env, "check", "--since", "base", "--format", "json", "--cache-dir", str(home / "cache"),
+                    "plants")
+    after = git(repo, env, "status", "--porcelain", "--ignored")
+    return Scenario(repo, env, home / "cache", run, before, after)
+
+
+def rules_by_state(file: dict[str, Any]) -> list[tuple[str, str]]:
+    return sorted((f["rule"], f["baseline"]) for f in file["findings"])
+
+
+# -- the mathematics the scenarios rely on -----------------------------------------------
+
+@pytest.mark.parametrize(("a", "zero"), [(-1.0, -1.0), (1.0, 1.0), (0.0, 0.0)])
+def test_edits_move_the_invariant_zero_as_claimed(a: float, zero: float) -> None:
+    """The state z is unobservable from y = x, so it is an invariant zero of (A, B, C) at
+    s = a: the finite generalised eigenvalue of the Rosenbrock system matrix
+    [[A, B], [C, D]] against [[I, 0], [0, 0]] (common practice; computed with scipy.linalg)."""
+    from scipy.linalg import eigvals
+
+    A = np.array([[a, 1.0], [0.0, 0.0]])
+    B = np.array([[0.0], [1.0]])
+    C = np.array([[0.0, 1.0]])
+    rosenbrock = np.block([[A, B], [C, np.zeros((1, 1))]])
+    descriptor = np.block([[np.eye(2), np.zeros((2, 1))], [np.zeros((1, 3))]])
+    values = eigvals(rosenbrock, descriptor)
+    finite = values[np.isfinite(values)]
+    assert finite.shape == (1,) and finite[0].real == pytest.approx(zero, abs=1e-9)
+
+
+# -- the gate ----------------------------------------------------------------------------
+
+def test_whole_gate_fails_on_the_introduced_findings_only(scenario: Scenario) -> None:
+    run = scenario.run
+    assert run.code == 1, run.stderr
+    assert "Traceback" not in run.stderr
+    data = run.json()
+    assert data["since"] == "base"
+    introduced = sorted((file["path"], f["rule"]) for file in data["files"] for f in file["findings"]
+                        if f["baseline"] == "introduced" and not f["waived"])
+    assert introduced == [("plants/added.plant", "zero-dynamics-unstable"),
+                          ("plants/tail.plant", "zero-dynamics-unstable")]
+    summary = data["summary"]
+    assert (summary["introduced"], summary["known"], summary["fixed"]) == (3, 2, 1)
+
+
+def test_edit_to_non_minimum_phase_gives_exactly_the_introduced_finding(scenario: Scenario) -> None:
+    tail = scenario.file("tail.plant")
+    (finding,) = tail["findings"]
+    assert (finding["rule"], finding["baseline"], finding["point"]) == ("zero-dynamics-unstable", "introduced", "rest")
+    assert finding["severity"] == "error" and not finding["waived"]
+    change = {c["what"]: (c["before"], c["after"]) for c in tail["structure_changes"]}
+    assert change == {"point rest: zero dynamics": ("minimum_phase", "non_minimum_phase")}
+    alone = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "json",
+                      "--cache-dir", str(scenario.cache), "plants/tail.plant")
+    assert alone.code == 1 and "Traceback" not in alone.stderr
+    assert [f["path"] for f in alone.json()["files"]] == ["plants/tail.plant"]
+
+
+def test_moving_lines_keeps_the_old_finding_known(scenario: Scenario) -> None:
+    shaker = scenario.file("shaker.plant")
+    (finding,) = shaker["findings"]
+    assert (finding["rule"], finding["baseline"]) == ("zero-dynamics-unstable", "known")
+    # the finding really moved: its line now is 5 below where the base version has it
+    base_line = BASE["shaker.plant"].splitlines().index("point rest: z = 0, x = 0") + 1
+    assert finding["line"] == base_line + 5
+    assert shaker["structure_changes"] == []
+
+
+def test_fix_is_reported_as_fixed(scenario: Scenario) -> None:
+    fixme = scenario.file("fixme.plant")
+    assert rules_by_state(fixme) == [("zero-dynamics-unstable", "fixed")]
+    change = {c["what"]: (c["before"], c["after"]) for c in fixme["structure_changes"]}
+    assert change == {"point rest: zero dynamics": ("non_minimum_phase", "minimum_phase")}
+
+
+def test_model_added_since_ref_has_everything_introduced(scenario: Scenario) -> None:
+    added = scenario.file("added.plant")
+    assert added["findings"] and all(f["baseline"] == "introduced" for f in added["findings"])
+    assert rules_by_state(added) == [("zero-dynamics-unstable", "introduced")]
+    alone = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "json",
+                      "--cache-dir", str(scenario.cache), "plants/added.plant")
+    assert alone.code == 1
+
+
+def test_renamed_model_is_followed(scenario: Scenario) -> None:
+    renamed = scenario.file("renamed.plant")
+    assert rules_by_state(renamed) == [("zero-dynamics-unstable", "known")]
+    assert renamed["structure_changes"] == []
+
+
+def test_rename_in_the_work_tree_is_followed(tmp_path: Path) -> None:
+    """Renamed but not committed: ``git add -A`` lets git see the rename."""
+    repo = tmp_path / "repo"
+    repo.mkdir()
+    env = git_env(tmp_path)
+    git(repo, env, "init", "-q")
+    (repo / "old.plant").write_text(model("hopper", UNSTABLE), encoding="utf-8")
+    git(repo, env, "add", "old.plant")
+    git(repo, env, "commit", "-q", "-m", "one model")
+    (repo / "old.plant").rename(repo / "new.plant")
+    git(repo, env, "add", "-A")
+    before = git(repo, env, "status", "--porcelain", "--ignored")
+    run = plantlint(repo, env, "check", "--since", "HEAD", "--format", "json", "--no-cache", "new.plant")
+    assert run.code == 0, run.stdout + run.stderr
+    assert git(repo, env, "status", "--porcelain", "--ignored") == before == "R  old.plant -> new.plant\n"
+    (file,) = run.json()["files"]
+    assert rules_by_state(file) == [("zero-dynamics-unstable", "known")]
+
+
+def test_change_to_critical_is_reported_even_when_waived(scenario: Scenario) -> None:
+    drift = scenario.file("drift.plant")
+    (finding,) = drift["findings"]
+    assert (finding["rule"], finding["baseline"], finding["waived"]) == ("zero-dynamics-critical", "introduced", True)
+    change = {c["what"]: (c["before"], c["after"]) for c in drift["structure_changes"]}
+    assert change["point rest: zero dynamics"] == ("minimum_phase", "critical")
+
+
+def test_unchanged_model_has_nothing(scenario: Scenario) -> None:
+    steady = scenario.file("steady.plant")
+    assert steady["findings"] == [] and steady["structure_changes"] == []
+
+
+def test_only_the_passing_models_pass(scenario: Scenario) -> None:
+    run = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "json",
+                    "--cache-dir", str(scenario.cache), *[f"plants/{n}" for n in PASSING])
+    assert run.code == 0, run.stdout + run.stderr
+    assert [f["path"] for f in run.json()["files"]] == [f"plants/{n}" for n in PASSING]
+
+
+def test_every_format_says_which_is_which(scenario: Scenario) -> None:
+    paths = ["plants/tail.plant", "plants/shaker.plant", "plants/fixme.plant"]
+    text = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--cache-dir", str(scenario.cache), *paths)
+    assert text.code == 1
+    assert "new since base" in text.stdout and "known" in text.stdout and "fixed" in text.stdout
+    concise = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "concise",
+                        "--cache-dir", str(scenario.cache), *paths)
+    lines = concise.stdout.splitlines()
+    assert any(line.startswith("plants/tail.plant:") and "(introduced)" in line for line in lines)
+    assert any(line.startswith("plants/shaker.plant:") and "(known)" in line for line in lines)
+    sarif = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "sarif",
+                      "--cache-dir", str(scenario.cache), *paths)
+    states = sorted(r["baselineState"] for r in json.loads(sarif.stdout)["runs"][0]["results"])
+    # SARIF 2.1.0 section 3.27.24: new / unchanged / absent
+    assert states == ["absent", "new", "unchanged"]
+
+
+def test_gate_leaves_the_work_tree_untouched(scenario: Scenario) -> None:
+    assert scenario.status_before == scenario.status_after == ""
+    assert not (scenario.repo / ".plantlint-cache").exists()
+
+
+# -- usage errors --------------------------------------------------------------------------
+
+def test_unknown_revision_is_a_usage_error(scenario: Scenario) -> None:
+    for ref in ("no-such-ref", "-x"):
+        run = plantlint(scenario.repo, scenario.env, "check", f"--since={ref}", "--no-cache", "plants")
+        assert run.code == 2, (ref, run.stderr)
+        assert len(run.stderr.strip().splitlines()) == 1 and "Traceback" not in run.stderr
+        assert ref in run.stderr and run.stdout == ""
+
+
+def test_outside_a_git_repository_is_a_usage_error(tmp_path: Path) -> None:
+    folder = tmp_path / "loose"
+    folder.mkdir()
+    (folder / "tail.plant").write_text(model("tail", STABLE), encoding="utf-8")
+    run = plantlint(folder, git_env(tmp_path), "check", "--since", "HEAD", "--no-cache", "tail.plant")
+    assert run.code == 2
+    assert len(run.stderr.strip().splitlines()) == 1 and "Traceback" not in run.stderr
+    assert "git" in run.stderr

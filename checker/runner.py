@@ -99,10 +99,16 @@ def _excluded(q: Path, root: Path, patterns: tuple[str, ...]) -> bool:
 
 
 def _glob_match(rel: str, pattern: str) -> bool:
-    """fnmatch where ``**/`` may also match nothing (``**/*.plant`` matches ``a.plant``)."""
+    """fnmatch where a whole ``**/`` may also match nothing, at the start or after a
+    ``/`` (``**/*.plant`` matches ``a.plant``; ``models/**/*.plant`` matches ``models/a.plant``)."""
     if fnmatch(rel, pattern):
         return True
-    return pattern.startswith("**/") and _glob_match(rel, pattern[3:])
+    at = pattern.find("**/")
+    while at != -1:
+        if (at == 0 or pattern[at - 1] == "/") and _glob_match(rel, pattern[:at] + pattern[at + 3:]):
+            return True
+        at = pattern.find("**/", at + 1)
+    return False
 
 
 def _display(p: Path, cwd: Path) -> str:

@@ -250,6 +250,26 @@ def test_rename_in_the_work_tree_is_followed(tmp_path: Path) -> None:
     assert rules_by_state(file) == [("zero-dynamics-unstable", "known")]
 
 
+def test_path_that_was_a_folder_at_ref_counts_as_added(tmp_path: Path) -> None:
+    """At REF ``cell.plant`` was a folder; its tree listing must not be read as a model
+    (``git show`` would print one, coloured under ``color.ui = always``)."""
+    repo = tmp_path / "repo"
+    (repo / "cell.plant").mkdir(parents=True)
+    env = git_env(tmp_path)
+    (tmp_path / "gitconfig").write_text("[color]\n\tui = always\n", encoding="utf-8")
+    git(repo, env, "init", "-q")
+    (repo / "cell.plant" / "inner.plant").write_text(model("inner", STABLE), encoding="utf-8")
+    git(repo, env, "add", "-A")
+    git(repo, env, "commit", "-q", "-m", "a folder")
+    git(repo, env, "rm", "-q", "-r", "cell.plant")
+    (repo / "cell.plant").write_text(model("cell", UNSTABLE), encoding="utf-8")
+    run = plantlint(repo, env, "check", "--since", "HEAD", "--format", "json", "--no-cache", "cell.plant")
+    assert run.code == 1, run.stderr
+    (file,) = run.json()["files"]
+    assert rules_by_state(file) == [("zero-dynamics-unstable", "introduced")]
+    assert file["structure_changes"] == []
+
+
 def test_change_to_critical_is_reported_even_when_waived(scenario: Scenario) -> None:
     drift = scenario.file("drift.plant")
     (finding,) = drift["findings"]

@@ -1,0 +1,452 @@
+"""The ``plantlint`` command line: exit codes, configuration, selection, output, bad inputs,
+and the installed package.
+
+Most runs call ``checker.cli.main`` in this process (real workers are still forked;
+``capfd`` sees what they write to the file descriptors); runs that depend on the
+interpreter or the terminal (``--version``, colour on a pseudo-terminal, the
+installed console script, tracebacks) are real subprocesses. Models are copied
+fixtures or small invented plants.
+"""
+
+from __future__ import annotations
+
+import importlib.util
+import json
+import os
+import pty
+import re
+import shutil
+import subprocess
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+
+import pytest
+
+from checker import __version__
+from checker.catalogue import load_catalogue
+from checker.cli import main
+
+PROJECT = Path(__file__).resolve().parent.parent
+FIXTURES = PROJECT / "tests" / "fixtures" / "rules"
+UNSTABLE = FIXTURES / "zero-dynamics-unstable.plant"  # one error
+CRITICAL = FIXTURES / "zero-dynamics-critical.plant"  # one warning
+CLEAN = FIXTURES / "zero-dynamics-unstable.ok.plant"  # nothing
+ANSI = re.compile(r"\x1b\[")
+
+
+@dataclass
+class Run:
+    code: int
+    stdout: str
+    stderr: str
+
+    def json(self) -> dict:
+        data: dict = json.loads(self.stdout)
+        return data
+
+
+@pytest.fixture(scope="module")
+def cache(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """One cache for the whole module: results depend only on model bytes and settings."""
+    return tmp_path_factory.mktemp("cli-cache")
+
+
+@pytest.fixture
+def cli(monkeypatch: pytest.MonkeyPatch, capfd: pytest.CaptureFixture[str], cache: Path):
+    """``cli(cwd, *args)`` runs main() in ``cwd`` and returns its exit code and output."""
+
+    def run(cwd: Path, *args: str, cached: bool = True) -> Run:
+        monkeypatch.chdir(cwd)
+        argv = list(args)
+        if cached and argv and argv[0] == "check" and "--no-cache" not in argv:
+            argv[1:1] = ["--cache-dir", str(cache)]
+        capfd.readouterr()
+        try:
+            code = main(argv)
+        except SystemExit as stop:  # argparse's own exits (--help, usage errors)
+            code = stop.code if isinstance(stop.code, int) else 2
+        out, err = capfd.readouterr()
+        return Run(code, out, err)
+
+    return run
+
+
+def one_line_error(run: Run) -> bool:
+    lines = run.stderr.strip().splitlines()
+    return len(lines) == 1 and "Traceback" not in run.stderr and lines[0].startswith("plantlint")
+
+
+def copy(src: Path, dst: Path) -> Path:
+    dst.parent.mkdir(parents=True, exist_ok=True)
+    shutil.copyfile(src, dst)
+    return dst
+
+
+def rules_of(run: Run) -> list[tuple[str, str]]:
+    return [(f["rule"], f["severity"]) for file in run.json()["files"] for f in file["findings"]]
+
+
+# -- exit codes ---------------------------------------------------------------------------
+
+def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli) -> None:
+    copy(CLEAN, tmp_path / "clean.plant")
+    copy(UNSTABLE, tmp_path / "unstable.plant")
+    clean = cli(tmp_path, "check", "clean.plant")
+    assert clean.code == 0 and clean.stderr == ""
+    failing = cli(tmp_path, "check", "clean.plant", "unstable.plant")
+    assert failing.code == 1 and "zero-dynamics-unstable" in failing.stdout
+
+
+@pytest.mark.parametrize("args", [
+    ["check", "--bogus", "x.plant"],
+    ["check", "--only", "zero-dynamics-unstable,no-such-rule", "x.plant"],
+    ["check", "--skip", "no-such-rule", "x.plant"],
+    ["check", "--fail-on", "fatal", "x.plant"],
+    ["check", "--timeout", "0", "x.plant"],
+    ["check", "--jobs", "-1", "x.plant"],
+    ["check", "missing.plant"],
+    ["check", "empty-folder"],
+    ["check", "folder.plant"],
+    ["check", "--config", "no-such.toml", "x.plant"],
+    ["rules", "no-such-rule"],
+    ["no-such-command"],
+], ids=lambda a: " ".join(a))
+def test_usage_errors_exit_2_with_one_line(tmp_path: Path, cli, args: list[str]) -> None:
+    copy(CLEAN, tmp_path / "x.plant")
+    (tmp_path / "empty-folder").mkdir()
+    (tmp_path / "folder.plant").mkdir()  # a folder named like a model, with nothing in it
+    run = cli(tmp_path, *args)
+    assert run.code == 2
+    assert one_line_error(run), run.stderr
+    assert run.stdout == ""
+
+
+def test_no_command_shows_help_and_exits_2(tmp_path: Path, cli) -> None:
+    run = cli(tmp_path)
+    assert run.code == 2 and "check" in run.stdout and "rules" in run.stdout
+
+
+# -- configuration ------------------------------------------------------------------------
+
+@pytest.mark.parametrize(("toml", "mentions"), [
+    ('colour = "red"\n', "colour"),
+    ('fail-on = "fatal"\n', "fail-on"),
+    ("timeout = -1\n", "timeout"),
+    ("jobs = 1.5\n", "jobs"),
+    ('include = [""]\n', "include"),
+    ('[severity]\nno-such-rule = "error"\n', "no-such-rule"),
+    ('[severity]\nzero-dynamics-critical = "fatal"\n', "zero-dynamics-critical"),
+    ("cache = 1\n", "cache"),
+    ("fail-on = \n", "TOML"),
+], ids=["unknown key", "fail-on", "timeout", "jobs", "include", "severity rule", "severity value", "cache",
+        "not toml"])
+def test_bad_configuration_exits_2(tmp_path: Path, cli, toml: str, mentions: str) -> None:
+    (tmp_path / "plantlint.toml").write_text(toml, encoding="utf-8")
+    copy(CLEAN, tmp_path / "x.plant")
+    run = cli(tmp_path, "check", "x.plant")
+    assert run.code == 2 and one_line_error(run), run.stderr
+    assert mentions in run.stderr and "plantlint.toml" in run.stderr
+
+
+@pytest.fixture
+def project(tmp_path: Path) -> Path:
+    """A repository-like folder with a configuration at its top."""
+    root = tmp_path / "project"
+    (root / "plantlint.toml").parent.mkdir(parents=True)
+    (root / "plantlint.toml").write_text(
+        'include = ["models/**/*.plant"]\n'
+        'exclude = ["models/archive/**"]\n'
+        "[severity]\n"
+        'zero-dynamics-critical = "error"\n', encoding="utf-8")
+    copy(UNSTABLE, root / "models" / "tail.plant")
+    copy(CRITICAL, root / "models" / "line" / "drift.plant")
+    copy(UNSTABLE, root / "models" / "archive" / "old_tail.plant")
+    (root / "scratch").mkdir()
+    (root / "scratch" / "notes.plant").write_text("not a model at all\n", encoding="utf-8")
+    (root / "models" / "line" / "deeper").mkdir()
+    return root
+
+
+def test_include_and_exclude_choose_the_models(project: Path, cli) -> None:
+    run = cli(project, "check", "--format", "json")
+    assert [f["path"] for f in run.json()["files"]] == ["models/line/drift.plant", "models/tail.plant"]
+    # a folder on the command line is filtered the same way
+    run = cli(project, "check", "--format", "json", "models")
+    assert [f["path"] for f in run.json()["files"]] == ["models/line/drift.plant", "models/tail.plant"]
+    excluded = cli(project, "check", "models/archive")
+    assert excluded.code == 2 and "left out by include/exclude" in excluded.stderr
+
+
+def test_severity_override_from_plantlint_toml(project: Path, tmp_path: Path, cli) -> None:
+    plain = tmp_path / "plain.toml"
+    plain.write_text("", encoding="utf-8")
+    default = cli(project, "check", "--format", "json", "--config", str(plain), "models/line/drift.plant")
+    assert default.code == 0 and rules_of(default) == [("zero-dynamics-critical", "warning")]
+    raised = cli(project, "check", "--format", "json", "models/line/drift.plant")
+    assert raised.code == 1 and rules_of(raised) == [("zero-dynamics-critical", "error")]
+
+
+def test_configuration_is_found_from_a_subfolder(project: Path, cli) -> None:
+    run = cli(project / "models" / "line" / "deeper", "check", "--format", "json", "../drift.plant")
+    assert run.code == 1 and rules_of(run) == [("zero-dynamics-critical", "error")]
+    assert [f["path"] for f in run.json()["files"]] == ["../drift.plant"]
+
+
+def test_severity_override_from_pyproject(tmp_path: Path, cli) -> None:
+    root = tmp_path / "repo"
+    root.mkdir()
+    (root / "pyproject.toml").write_text(
+        '[project]\nname = "demo"\n\n[tool.plantlint.severity]\nzero-dynamics-unstable = "note"\n', encoding="utf-8")
+    copy(UNSTABLE, root / "tail.plant")
+    # a pyproject.toml without [tool.plantlint] on the way up is passed over
+    sub = root / "sub"
+    sub.mkdir()
+    (sub / "pyproject.toml").write_text('[project]\nname = "inner"\n', encoding="utf-8")
+    for cwd, path in ((root, "tail.plant"), (sub, "../tail.plant")):
+        run = cli(cwd, "check", "--format", "json", path)
+        assert run.code == 0 and rules_of(run) == [("zero-dynamics-unstable", "note")]
+
+
+def test_fail_on_warning_fails_a_warning_only_model(tmp_path: Path, cli) -> None:
+    copy(CRITICAL, tmp_path / "drift.plant")
+    assert cli(tmp_path, "check", "drift.plant").code == 0
+    assert cli(tmp_path, "check", "--fail-on", "warning", "drift.plant").code == 1
+    assert cli(tmp_path, "check", "--fail-on", "note", "drift.plant").code == 1
+    (tmp_path / "plantlint.toml").write_text('fail-on = "warning"\n', encoding="utf-8")
+    assert cli(tmp_path, "check", "drift.plant").code == 1
+    assert cli(tmp_path, "check", "--fail-on", "error", "drift.plant").code == 0
+
+
+def test_only_and_skip_select_rules(tmp_path: Path, cli) -> None:
+    copy(UNSTABLE, tmp_path / "a.plant")
+    copy(CRITICAL, tmp_path / "b.plant")
+    everything = cli(tmp_path, "check", "--format", "json", "a.plant", "b.plant")
+    assert sorted(rules_of(everything)) == [("zero-dynamics-critical", "warning"), ("zero-dynamics-unstable", "error")]
+    only = cli(tmp_path, "check", "--format", "json", "--only", "zero-dynamics-critical", "a.plant", "b.plant")
+    assert only.code == 0 and rules_of(only) == [("zero-dynamics-critical", "warning")]
+    skip = cli(tmp_path, "check", "--format", "json", "--skip", "zero-dynamics-unstable", "a.plant", "b.plant")
+    assert skip.code == 0 and rules_of(skip) == [("zero-dynamics-critical", "warning")]
+    both = cli(tmp_path, "check", "--format", "json", "--only", "zero-dynamics-unstable, zero-dynamics-critical",
+               "--skip", "zero-dynamics-critical", "a.plant", "b.plant")
+    assert both.code == 1 and rules_of(both) == [("zero-dynamics-unstable", "error")]
+
+
+# -- output -------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("fmt", ["json", "text"])
+def test_output_file_gets_the_report_and_models_are_untouched(tmp_path: Path, cli, fmt: str) -> None:
+    models = [copy(UNSTABLE, tmp_path / "a.plant"), copy(CRITICAL, tmp_path / "b.plant")]
+    before = [(m.read_bytes(), m.stat().st_mtime_ns) for m in models]
+    report = tmp_path / "out" / f"report.{fmt}"
+    report.parent.mkdir()
+    run = cli(tmp_path, "check", "--format", fmt, "--color", "always", "--output", str(report), "a.plant", "b.plant")
+    assert run.code == 1 and run.stderr == ""
+    written = report.read_text(encoding="utf-8")
+    assert not ANSI.search(written)  # a file never gets colour
+    if fmt == "json":
+        assert [f["path"] for f in json.loads(written)["files"]] == ["a.plant", "b.plant"]
+        assert "a.plant:9:7: error:" in run.stdout  # a short summary stays on the terminal
+    else:
+        assert "zero-dynamics-unstable" in written and run.stdout == ""
+    assert [(m.read_bytes(), m.stat().st_mtime_ns) for m in models] == before
+
+
+def test_unwritable_output_is_a_usage_error(tmp_path: Path, cli) -> None:
+    copy(CLEAN, tmp_path / "a.plant")
+    run = cli(tmp_path, "check", "--output", str(tmp_path / "no-such-folder" / "r.json"), "a.plant")
+    assert run.code == 2 and one_line_error(run)
+
+
+def test_text_to_a_pipe_has_no_colour_unless_asked(tmp_path: Path, cli) -> None:
+    copy(UNSTABLE, tmp_path / "a.plant")
+    plain = cli(tmp_path, "check", "a.plant")
+    assert plain.code == 1 and "zero-dynamics-unstable" in plain.stdout and not ANSI.search(plain.stdout)
+    forced = cli(tmp_path, "check", "--color", "always", "a.plant")
+    assert forced.code == 1 and ANSI.search(forced.stdout)
+
+
+def _on_terminal(cwd: Path, args: list[str], extra_env: dict[str, str]) -> tuple[int, str]:
+    """Run plantlint with stdout on a pseudo-terminal; what the terminal received."""
+    leader, follower = pty.openpty()
+    env = {k: v for k, v in os.environ.items() if k not in ("NO_COLOR", "FORCE_COLOR")}
+    env.update({"TERM": "xterm-256color", "COLUMNS": "100", **extra_env})
+    try:
+        proc = subprocess.Popen([sys.executable, "-m", "checker", *args], cwd=cwd, stdout=follower,
+                                stderr=subprocess.PIPE, env=env)
+        os.close(follower)
+        seen = bytearray()
+        while True:
+            try:
+                chunk = os.read(leader, 4096)
+            except OSError:
+                break
+            if not chunk:
+                break
+            seen += chunk
+        _, err = proc.communicate(timeout=300)
+    finally:
+        os.close(leader)
+    assert b"Traceback" not in err
+    return proc.returncode, seen.decode("utf-8", errors="replace")
+
+
+def test_colour_on_a_terminal_and_no_color(tmp_path: Path, cache: Path) -> None:
+    copy(UNSTABLE, tmp_path / "a.plant")
+    args = ["check", "--cache-dir", str(cache), "a.plant"]
+    code, shown = _on_terminal(tmp_path, args, {})
+    assert code == 1 and ANSI.search(shown)
+    code, shown = _on_terminal(tmp_path, args, {"NO_COLOR": "1"})
+    assert code == 1 and "zero-dynamics-unstable" in shown and not ANSI.search(shown)
+
+
+# -- rules, version, help -------------------------------------------------------------------
+
+def test_rules_lists_the_whole_catalogue(tmp_path: Path, cli) -> None:
+    ids = sorted(load_catalogue().ids())
+    assert len(ids) == 26
+    as_json = cli(tmp_path, "rules", "--format", "json")
+    assert as_json.code == 0 and sorted(r["id"] for r in json.loads(as_json.stdout)) == ids
+    text = cli(tmp_path, "rules")
+    assert text.code == 0 and not ANSI.search(text.stdout)
+    listed = set(re.findall(r"[a-z]+(?:-[a-z]+)*", text.stdout))
+    assert set(ids) <= listed
+
+
+def test_rules_shows_one_rule(tmp_path: Path, cli) -> None:
+    catalogue = load_catalogue()
+    one = cli(tmp_path, "rules", "syntax")
+    assert one.code == 0 and one.stdout.lstrip().startswith("syntax")
+    assert " ".join(catalogue.get("syntax").title.split()) in " ".join(one.stdout.split())
+    # not the listing: the titles of other rules do not appear
+    others = [catalogue.get(r).title for r in catalogue.ids() if r != "syntax"]
+    assert not any(" ".join(t.split()) in " ".join(one.stdout.split()) for t in others)
+    (record,) = json.loads(cli(tmp_path, "rules", "--format", "json", "syntax").stdout)
+    assert record["id"] == "syntax"
+
+
+def test_version_from_the_module_and_the_console_script(tmp_path: Path) -> None:
+    module = subprocess.run([sys.executable, "-m", "checker", "--version"], cwd=tmp_path, capture_output=True,
+                            text=True, timeout=120)
+    assert (module.returncode, module.stdout.strip()) == (0, f"plantlint {__version__}")
+    script = shutil.which("plantlint")
+    if script is None:
+        pytest.skip("the plantlint console script is not on PATH (package not installed)")
+    installed = subprocess.run([script, "--version"], cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert (installed.returncode, installed.stdout.strip()) == (0, f"plantlint {__version__}")
+
+
+@pytest.mark.parametrize("args", [["--help"], ["check", "--help"]])
+def test_help_carries_the_safety_caution(tmp_path: Path, cli, args: list[str]) -> None:
+    run = cli(tmp_path, *args)
+    assert run.code == 0
+    words = " ".join(run.stdout.split())
+    assert "structure of a plant model" in words and "does not check safety" in words
+    assert "licensed engineering judgement" in words
+
+
+# -- bad inputs ---------------------------------------------------------------------------
+
+#: bad file -> what its one `syntax` finding must mention
+BAD_INPUTS = {
+    "empty.plant": "empty", "junk.plant": "UTF-8", "latin1.plant": "UTF-8", "huge.plant": "MB",
+    "nested.plant": "nested", "unterminated.plant": "unterminated", "power.plant": "exponent",
+    "tower.plant": "exponent",
+}
+
+
+def _write_bad_inputs(folder: Path) -> dict[str, str]:
+    folder.mkdir(parents=True, exist_ok=True)
+    (folder / "empty.plant").write_bytes(b"")
+    (folder / "junk.plant").write_bytes(bytes(range(256)) * 8)
+    (folder / "latin1.plant").write_bytes("plant caf\u00e9\nstate x in -1 .. 1\n".encode("latin-1"))
+    with (folder / "huge.plant").open("wb") as fh:
+        fh.write(b"plant huge\n")
+        fh.write(b"# padding\n" * 1_000_000)  # about 10 MB
+    head = "plant deep\nstate x in -1 .. 1\ninput u\n"
+    tail = "output y = x\npoint rest: x = 0\n"
+    (folder / "nested.plant").write_text(head + "rate x = " + "(" * 5000 + "x" + ")" * 5000 + " + u\n" + tail,
+                                         encoding="utf-8")
+    (folder / "unterminated.plant").write_text('plant s "no closing quote\n' + head[11:] + "rate x = u\n" + tail,
+                                               encoding="utf-8")
+    (folder / "power.plant").write_text(head + "rate x = x^1000000000 + u\n" + tail, encoding="utf-8")
+    (folder / "tower.plant").write_text(head + "rate x = 10^10^10*x + u\n" + tail, encoding="utf-8")
+    assert sorted(p.name for p in folder.iterdir()) == sorted(BAD_INPUTS)
+    return BAD_INPUTS
+
+
+@pytest.fixture(scope="module")
+def bad_inputs(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, dict[str, str]]:
+    folder = tmp_path_factory.mktemp("bad")
+    return folder, _write_bad_inputs(folder)
+
+
+@pytest.mark.parametrize("name", sorted(BAD_INPUTS))
+def test_bad_input_gives_one_syntax_finding(bad_inputs: tuple[Path, dict[str, str]], cli, name: str) -> None:
+    folder, says = bad_inputs
+    run = cli(folder, "check", "--format", "json", "--no-cache", name)
+    assert run.code == 1 and run.stderr == ""
+    (finding,) = run.json()["files"][0]["findings"]
+    assert finding["rule"] == "syntax" and finding["severity"] == "error"
+    assert says[name] in finding["message"]
+    assert finding["line"] >= 1 and finding["column"] >= 1
+
+
+def test_endless_device_is_read_only_up_to_the_limit(tmp_path: Path, cli) -> None:
+    if not Path("/dev/zero").exists():
+        pytest.skip("no /dev/zero on this system")
+    run = cli(tmp_path, "check", "--format", "json", "--no-cache", "/dev/zero")
+    assert run.code == 1
+    (finding,) = run.json()["files"][0]["findings"]
+    assert finding["rule"] == "syntax" and "KiB" in finding["message"]
+
+
+def test_bad_inputs_in_one_real_process(bad_inputs: tuple[Path, dict[str, str]]) -> None:
+    """The same files through a real interpreter: stderr stays empty, one finding each."""
+    folder, says = bad_inputs
+    out = subprocess.run([sys.executable, "-m", "checker", "check", "--format", "concise", "--no-cache", "."],
+                         cwd=folder, capture_output=True, text=True, timeout=300)
+    assert out.returncode == 1 and out.stderr == ""
+    lines = out.stdout.splitlines()
+    assert sorted(line.split(":", 1)[0] for line in lines) == sorted(says)
+    assert all(line.endswith("[syntax]") for line in lines)
+
+
+# -- the built and installed package ------------------------------------------------------
+
+def test_wheel_installs_and_finds_its_grammar_and_rules(tmp_path: Path) -> None:
+    """Build the wheel offline, install it into a fresh venv that borrows the current
+    environment's dependencies, and run the console script from elsewhere."""
+    if importlib.util.find_spec("hatchling") is None:
+        pytest.skip("hatchling is not importable, so the wheel cannot be built without network access")
+    dist = tmp_path / "dist"
+    built = subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "--no-build-isolation", "--no-index",
+                            "-q", "-w", str(dist), str(PROJECT)], capture_output=True, text=True, timeout=300)
+    assert built.returncode == 0, built.stdout + built.stderr
+    (wheel,) = dist.glob("plantlint-*.whl")
+    venv = tmp_path / "venv"
+    subprocess.run([sys.executable, "-m", "venv", "--system-site-packages", "--without-pip", str(venv)],
+                   check=True, timeout=300)
+    python = venv / "bin" / "python"
+    installed = subprocess.run([str(python), "-m", "pip", "install", "--no-deps", "--no-index", "-q", str(wheel)],
+                               capture_output=True, text=True, timeout=300)
+    assert installed.returncode == 0, installed.stdout + installed.stderr
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    where = subprocess.run([str(python), "-c", "import checker, checker.resources as r; "
+                            "print(checker.__file__); print(r.data_path('grammar')); print(r.data_path('rules'))"],
+                           cwd=elsewhere, capture_output=True, text=True, timeout=120)
+    assert where.returncode == 0, where.stderr
+    assert all(Path(line).resolve().is_relative_to(venv.resolve()) for line in where.stdout.split())
+    script = venv / "bin" / "plantlint"
+    version = subprocess.run([str(script), "--version"], cwd=elsewhere, capture_output=True, text=True, timeout=120)
+    assert version.stdout.strip() == f"plantlint {__version__}"
+    copy(UNSTABLE, elsewhere / "unstable.plant")
+    copy(CLEAN, elsewhere / "clean.plant")
+    check = subprocess.run([str(script), "check", "--no-cache", "--format", "concise", "unstable.plant", "clean.plant"],
+                           cwd=elsewhere, capture_output=True, text=True, timeout=300)
+    assert check.returncode == 1 and check.stderr == ""
+    assert check.stdout.strip().endswith("[zero-dynamics-unstable] (point rest)")
+    listed = subprocess.run([str(script), "rules", "--format", "json"], cwd=elsewhere, capture_output=True,
+                            text=True, timeout=120)
+    assert listed.returncode == 0 and len(json.loads(listed.stdout)) == 26

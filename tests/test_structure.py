@@ -169,7 +169,7 @@ def test_slotine_li_example_6_10_singular_where_x2_is_minus_one() -> None:
     s = analyse_structure(k)
     assert s.relative_degree == {"y": 2}
     at = structure_at_point(k, s, "edge", {x1: I(0), x2: I(-1), x3: I(0)})
-    assert not at.well_defined and "x2 + 1" in at.findings[0].message
+    assert not at.well_defined and ("x2 + 1" in at.findings[0].message or "1 + x2" in at.findings[0].message)
     assert structure_at_point(k, s, "rest", {x1: I(0), x2: I(0), x3: I(0)}).well_defined
     env = certify_envelope(k, s)
     assert env.regular is False and env.witness["x2"] == pytest.approx(-1, abs=1e-9)

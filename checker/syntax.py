@@ -9,6 +9,7 @@ into a ``syntax`` finding before it can cost time or memory.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import lru_cache
@@ -29,6 +30,9 @@ MAX_EXPONENT = 1000
 MAX_LITERAL_EXP10 = 400
 MAX_LITERAL_DIGITS = 400
 MAX_STATEMENTS = 5000
+#: Tokens per file, counted before parsing: parsing and exact arithmetic cost about
+#: 0.1-1 ms per token, and the largest realistic models have ~1,000-2,000 tokens.
+MAX_TOKENS = 20_000
 
 KEYWORDS = frozenset(
     "plant const param state input let rate output point expect waive at in".split()
@@ -166,9 +170,30 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
     return text, None
 
 
+_TOKEN = re.compile(r'#[^\n]*|"[^"\n]*"?|\[[^\[\]\n]*\]?|[A-Za-z0-9_.]+|\S')
+
+
+def _size_problem(text: str) -> Finding | None:
+    """Reject files with more than MAX_TOKENS tokens before parsing (comments do not count)."""
+    count = 0
+    for match in _TOKEN.finditer(text):
+        if match.group().startswith("#"):
+            continue
+        count += 1
+        if count > MAX_TOKENS:
+            start = match.start()
+            line = text.count("\n", 0, start) + 1
+            col = start - (text.rfind("\n", 0, start) + 1) + 1
+            return _syntax(f"more than {MAX_TOKENS} tokens; plant models are limited to {MAX_TOKENS}",
+                           Span.point(line, col), anchor="too many tokens")
+    return None
+
+
 def _nesting_problem(text: str) -> Finding | None:
-    """Reject parentheses nested deeper than MAX_DEPTH before parsing (cheap scan)."""
+    """Reject parentheses nested deeper than MAX_DEPTH, or more than MAX_DEPTH
+    signs in a row (``- - - x`` nests like parentheses), before parsing (cheap scan)."""
     depth = 0
+    signs = 0
     line, col = 1, 0
     in_comment = in_string = False
     for ch in text:
@@ -182,6 +207,12 @@ def _nesting_problem(text: str) -> Finding | None:
         if in_string:
             in_string = ch != '"'
             continue
+        if ch in "+-":
+            signs += 1
+            if signs > MAX_DEPTH:
+                return _syntax(f"more than {MAX_DEPTH} signs in a row", Span.point(line, col), anchor="nesting")
+        elif not ch.isspace():
+            signs = 0
         if ch == "#":
             in_comment = True
         elif ch == '"':
@@ -204,7 +235,7 @@ def _nesting_problem(text: str) -> Finding | None:
 def parse_text(text: str) -> Parsed:
     """Parse a whole file. Never raises for bad input: problems come back as findings."""
     out = Parsed()
-    problem = _nesting_problem(text)
+    problem = _nesting_problem(text) or _size_problem(text)
     if problem is not None:
         out.findings.append(problem)
         return out
@@ -426,7 +457,7 @@ class _Builder:
                         stack.append((child, False))
                 continue
             values[id(node)] = self._combine(node, values, names, calls)
-        return Expression(values[id(root)], _span(root), tuple(names), tuple(calls))
+        return Expression(_done(values[id(root)]), _span(root), tuple(names), tuple(calls))
 
     def _leaf(self, tok: Token, names: list[NameRef]) -> sp.Expr:
         if tok.type == "NUMBER":
@@ -449,7 +480,7 @@ class _Builder:
             return symbol(name)
         if kind == "call":
             fname = str(kids[0])
-            args = [values[id(a)] for a in kids[1:] if a is not None]
+            args = [_done(values[id(a)]) for a in kids[1:] if a is not None]
             span = _span(node)
             calls.append(CallRef(fname, span))
             entry = FUNCTIONS.get(fname)
@@ -464,21 +495,40 @@ class _Builder:
             return fn(*args)
         a = values[id(kids[0])]
         if kind == "neg":
-            return -a
+            return -_done(a)
         if kind == "pos":
-            return a
-        b = values[id(kids[1])]
-        if kind == "add":
-            return a + b
-        if kind == "sub":
-            return a - b
-        if kind == "mul":
-            return a * b
-        if kind == "div":
-            return a / b
+            return _done(a)
+        b = _done(values[id(kids[1])])
+        # chains of + - (and of * /) are collected and built in one step: building
+        # them pairwise costs time quadratic in their length
+        if kind in ("add", "sub"):
+            terms = a if isinstance(a, _Terms) else _Terms([_done(a)])
+            terms.append(b if kind == "add" else -b)
+            return terms
+        if kind in ("mul", "div"):
+            factors = a if isinstance(a, _Factors) else _Factors([_done(a)])
+            factors.append(b if kind == "mul" else sp.Pow(b, -1))
+            return factors
         if kind == "pow":
-            return _power(a, b, _span(node))
+            return _power(_done(a), b, _span(node))
         raise ParseProblem(_syntax(f"cannot read {kind}", _span(node)))
+
+
+class _Terms(list):  # type: ignore[type-arg]
+    """Terms of a sum not yet built (each tree node has one parent, so it is extended in place)."""
+
+
+class _Factors(list):  # type: ignore[type-arg]
+    """Factors of a product not yet built."""
+
+
+def _done(value: sp.Expr | _Terms | _Factors) -> sp.Expr:
+    """The sympy value of a node, building a collected sum or product."""
+    if isinstance(value, _Terms):
+        return sp.Add(*value)
+    if isinstance(value, _Factors):
+        return sp.Mul(*value)
+    return value
 
 
 def _number(tok: Token) -> sp.Rational:

@@ -1,0 +1,164 @@
+"""Hostile and broken files: a clear finding (or a clean parse), never an exception.
+
+Every case goes through ``checker.pipeline.analyse_bytes`` in-process and, all
+together in one run, through the command line (exit code 0 or 1, never 2 for a
+file's content, and no traceback). Models are invented; the limits are the
+parser's (``checker.syntax``), common practice for tools that read untrusted files.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+from typing import Callable
+
+import pytest
+
+from checker.config import Config
+from checker.findings import Finding
+from checker.pipeline import RawResult, analyse_bytes
+from checker.syntax import MAX_BYTES
+
+REPO = Path(__file__).resolve().parent.parent
+
+# A tiny valid model (invented numbers) with two findings whose positions matter:
+# an unused parameter (line 3) and a violated expectation (line 9).
+VALID = (
+    "# demo model, invented numbers\n"
+    "plant lag\n"
+    "param k = 2 in 1 .. 3\n"
+    "param spare = 1\n"
+    "state x [m] in -1 .. 1 \"position\"\n"
+    "input u in -1 .. 1\n"
+    "rate x = -k*x + u\n"
+    "output y = x\n"
+    "expect relative_degree(y) = 2\n"
+    "point rest: x = 0\n"
+)
+
+
+def _wrap(rate: str) -> bytes:
+    """A one-state model whose rate is ``rate``."""
+    return f"plant p\nstate x in -1 .. 1\ninput u in -1 .. 1\nrate x = {rate}\noutput y = x\n".encode()
+
+
+# name -> (bytes maker, expected rule or None for a clean parse, expected line or None)
+CASES: dict[str, tuple[Callable[[], bytes], str | None, int | None]] = {
+    "huge_exponent": (lambda: _wrap("x^1000000000 + u"), "syntax", 4),
+    "nested_parentheses": (lambda: _wrap("(" * 10_000 + "x" + ")" * 10_000 + " + u"), "syntax", 4),
+    "many_statements": (lambda: (b"plant p\n" + b"const c=1\n" * 100_000), "syntax", None),
+    "ten_megabytes": (lambda: b"plant p\n" + b"# padding padding\n" * (10 * 1024 * 1024 // 18), "syntax", 1),
+    "nul_byte": (lambda: b"plant p\nstate x\x00 in -1 .. 1\n", "syntax", 2),
+    "invalid_utf8": (lambda: b"plant p\nstate \xff\xfe x\n", "syntax", 2),
+    "long_name": (lambda: ("plant p\nstate " + "a" * 100_000 + " in -1 .. 1\n").encode(), "syntax", 2),
+    "unterminated_string": (lambda: b'plant p "a title\nstate x\n', "syntax", 1),
+    "empty_file": (lambda: b"", "syntax", 1),
+    "binary_junk": (lambda: bytes((i * 73 + 11) % 256 for i in range(20_000)), "syntax", None),
+    "huge_literal": (lambda: _wrap("1e999999999*x + u"), "syntax", 4),
+    "tower_of_powers": (lambda: _wrap("10^10^10*x + u"), "syntax", 4),
+    "many_signs": (lambda: _wrap("-" * 100_000 + "x + u"), "syntax", 4),
+    "long_sum": (lambda: _wrap(" + ".join(["x"] * 50_000) + " + u"), "syntax", 4),
+    "only_comments": (lambda: b"# nothing but a comment\n", "syntax", 1),
+    "signs_below_limit": (lambda: _wrap("-" * 150 + "x + u"), None, None),
+    "moderate_sum": (lambda: _wrap(" + ".join(f"{i}*x" for i in range(1, 300)) + " + u"), None, None),
+}
+
+
+def _check_findings(raw: RawResult, rule: str | None, line: int | None, size: int) -> None:
+    rules = [f.rule for f in raw.findings]
+    if rule is None:
+        assert not any(r in ("syntax", "unknown-name") for r in rules), raw.findings
+        return
+    assert rule in rules, raw.findings
+    first = next(f for f in raw.findings if f.rule == rule)
+    _sensible_span(first, size)
+    if line is not None:
+        assert first.span is not None and first.span.line == line, first
+
+
+def _sensible_span(f: Finding, size: int) -> None:
+    assert f.span is not None
+    assert 1 <= f.span.line <= f.span.end_line
+    assert f.span.column >= 1 and f.span.end_column >= 1
+    assert f.span.line <= size + 1 and f.span.column <= size + 1
+    if f.span.line == f.span.end_line:
+        assert f.span.end_column > f.span.column
+
+
+@pytest.mark.parametrize("name", sorted(CASES))
+def test_in_process(name: str) -> None:
+    make, rule, line = CASES[name]
+    data = make()
+    raw = analyse_bytes(data, Config())
+    _check_findings(raw, rule, line, len(data))
+    assert raw.to_data()  # plain data (crosses process boundaries and the cache)
+
+
+def test_limits_are_real_limits() -> None:
+    """The oversize case is really over the byte limit, the statement case under it."""
+    assert len(CASES["ten_megabytes"][0]()) > MAX_BYTES
+    assert len(CASES["many_statements"][0]()) <= MAX_BYTES
+
+
+def test_messages_say_what_is_wrong() -> None:
+    """Each hostile file names its problem (the words a user searches for)."""
+    words = {
+        "huge_exponent": "exponent", "nested_parentheses": "nested", "ten_megabytes": "MB",
+        "nul_byte": "NUL", "invalid_utf8": "UTF-8", "long_name": "name", "unterminated_string": "closing",
+        "empty_file": "empty", "huge_literal": "out of range", "tower_of_powers": "exponent",
+        "many_signs": "signs", "long_sum": "tokens", "many_statements": "tokens",
+    }
+    for name, word in words.items():
+        raw = analyse_bytes(CASES[name][0](), Config())
+        assert any(word in f.message for f in raw.findings), (name, raw.findings)
+
+
+def _comparable(raw: RawResult) -> list[tuple[str, object, str]]:
+    return sorted((f.rule, f.span, f.message) for f in raw.findings)
+
+
+def test_crlf_and_bom_read_like_lf() -> None:
+    lf = analyse_bytes(VALID.encode(), Config())
+    assert {"unused-name", "expectation-failed"} <= {f.rule for f in lf.findings}
+    crlf = analyse_bytes(VALID.replace("\n", "\r\n").encode(), Config())
+    bom = analyse_bytes(b"\xef\xbb\xbf" + VALID.encode(), Config())
+    both = analyse_bytes(b"\xef\xbb\xbf" + VALID.replace("\n", "\r\n").encode(), Config())
+    assert _comparable(crlf) == _comparable(lf)
+    assert _comparable(bom) == _comparable(lf)
+    assert _comparable(both) == _comparable(lf)
+    assert crlf.analysis == lf.analysis
+
+
+def test_command_line_on_every_case(tmp_path: Path) -> None:
+    """One run over all the files: exit 0/1, no traceback, one report per file."""
+    paths = []
+    for name, (make, _rule, _line) in sorted(CASES.items()):
+        path = tmp_path / f"{name}.plant"
+        path.write_bytes(make())
+        paths.append(path)
+    (tmp_path / "crlf.plant").write_bytes(VALID.replace("\n", "\r\n").encode())
+    (tmp_path / "lf.plant").write_bytes(VALID.encode())
+    paths += [tmp_path / "crlf.plant", tmp_path / "lf.plant"]
+    proc = subprocess.run(
+        [sys.executable, "-m", "checker", "check", "--no-cache", "--jobs", "2", "--timeout", "60",
+         "--format", "json", *map(str, paths)],
+        cwd=tmp_path, capture_output=True, text=True, timeout=600,
+    )
+    assert proc.returncode == 1, proc.stderr
+    assert "Traceback" not in proc.stderr
+    report = json.loads(proc.stdout)
+    by_name = {Path(f["path"]).stem: f for f in report["files"]}
+    assert set(by_name) == {p.stem for p in paths}
+    for name, (_make, rule, line) in CASES.items():
+        rules = [f["rule"] for f in by_name[name]["findings"]]
+        assert "analysis-budget" not in rules, (name, by_name[name]["findings"])
+        if rule is None:
+            assert "syntax" not in rules
+            continue
+        first = next(f for f in by_name[name]["findings"] if f["rule"] == rule)
+        assert first["line"] >= 1 and first["column"] >= 1
+        if line is not None:
+            assert first["line"] == line, (name, first)
+    assert by_name["crlf"]["findings"] == by_name["lf"]["findings"]

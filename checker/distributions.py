@@ -106,7 +106,7 @@ class DistributionStructure:
         return distribution_name(self.m, k)
 
     def spanners(self, k: int) -> str:
-        labels = [f.label for f in self.fields if f.order <= k]
+        labels = [_labels(self.m, j, order) for order in range(k + 1) for j in range(self.m)]
         return f"{self.name(k)} = span{{{', '.join(labels)}}}"
 
 
@@ -189,12 +189,16 @@ class _Echelon:
         return True
 
 
+#: Entries at least this large (tree nodes) are left as they are by _normal.
+NORMAL_SIZE = 400
+
+
 def _normal(e: sp.Expr) -> sp.Expr:
     """Multiply out a reduced entry so that exact cancellations show up
     structurally (a zero becomes 0, a constant pivot a number). Not a zero
     test: the kernel still decides every remainder."""
-    if e.is_number or e.is_Symbol:
-        return e
+    if e.is_number or e.is_Symbol or _size(e, NORMAL_SIZE) >= NORMAL_SIZE:
+        return e  # expanding a large entry costs more than the zero test it might save
     return sp.expand(e)
 
 
@@ -205,6 +209,11 @@ def _size(e: sp.Expr, cap: int = 400) -> int:
         if count >= cap:
             break
     return count
+
+
+def _block(kernel: Kernel, m: int, k: int) -> list[SpanningField]:
+    """The spanners ad_f^k g_j of order k (memoised in the kernel)."""
+    return [SpanningField(_labels(m, j, k), j, k, tuple(_normal(e) for e in kernel.ad(j, k))) for j in range(m)]
 
 
 def _labels(m: int, j: int, k: int) -> str:
@@ -218,31 +227,32 @@ def _labels(m: int, j: int, k: int) -> str:
 def analyse_distributions(kernel: Kernel) -> DistributionStructure:
     """Generic ranks and involutivity of D_0 .. D_(n-1) (G_k for several inputs)."""
     n, m = kernel.plant.n, kernel.plant.m
-    fields = tuple(
-        SpanningField(_labels(m, j, k), j, k, tuple(_normal(e) for e in kernel.ad(j, k)))
-        for k in range(n)
-        for j in range(m)
-    )
-
     def decide(e: sp.Expr) -> Decision:
         t = kernel.is_zero(e)
         return Decision(t.zero, t.certain)
 
     echelon = _Echelon(decide)
+    fields: list[SpanningField] = []
     basis: list[int] = []
     ranks: list[int] = []
     bases: list[tuple[int, ...]] = []
     uncertain: list[str] = []
-    for index, spanner in enumerate(fields):
-        if len(basis) < n and echelon.add(spanner.vector):
-            basis.append(index)
-        if index % m == m - 1:  # end of block k
-            k = spanner.order
-            if echelon.uncertain:
-                uncertain.append(f"rank of {distribution_name(m, k)}: a remainder was taken as zero without proof")
-                echelon.uncertain = False
-            ranks.append(len(basis))
+    for k in range(n if m else 0):
+        if len(basis) == n:
+            # D_(k-1) is already the whole tangent space, so every later D_k is too:
+            # the higher brackets (where expressions swell most) are never built.
+            ranks.append(n)
             bases.append(tuple(basis))
+            continue
+        for spanner in _block(kernel, m, k):
+            fields.append(spanner)
+            if len(basis) < n and echelon.add(spanner.vector):
+                basis.append(len(fields) - 1)
+        if echelon.uncertain:
+            uncertain.append(f"rank of {distribution_name(m, k)}: a remainder was taken as zero without proof")
+            echelon.uncertain = False
+        ranks.append(len(basis))
+        bases.append(tuple(basis))
     if m == 0:  # no inputs: every distribution is {0}
         ranks, bases = [0] * n, [()] * n
 
@@ -273,7 +283,7 @@ def analyse_distributions(kernel: Kernel) -> DistributionStructure:
     structure = DistributionStructure(
         n=n,
         m=m,
-        fields=fields,
+        fields=tuple(fields),
         ranks=tuple(ranks),
         bases=tuple(bases),
         involutive_by_order=tuple(involutive),
@@ -347,7 +357,6 @@ def distributions_at(
 ) -> PointDistributions:
     """Exact ranks at the point, singular orders, the verdict and (one input) an output."""
     n, m = structure.n, structure.m
-    rows = matrix_at(kernel, [f.vector for f in structure.fields], values)
     undefined: list[str] = []
 
     def decide(e: sp.Expr) -> Decision:
@@ -359,16 +368,24 @@ def distributions_at(
 
     echelon = _Echelon(decide)
     ranks: list[int] = []
-    basis: list[int] = []
-    for index in range(len(structure.fields)):
-        if len(basis) < n and echelon.add(list(rows.row(index))):
-            basis.append(index)
-        if index % m == m - 1:
-            ranks.append(len(basis))
+    basis: list[list[sp.Expr]] = []
+    for k in range(n if m else 0):
+        if len(basis) == n:
+            ranks.append(n)
+            continue
+        # the generic analysis may have stopped early; a rank drop at this point
+        # can still need the higher brackets, which the kernel then builds
+        block = [f for f in structure.fields if f.order == k] or _block(kernel, m, k)
+        rows = matrix_at(kernel, [f.vector for f in block], values)
+        for index in range(len(block)):
+            row = list(rows.row(index))
+            if len(basis) < n and echelon.add(row):
+                basis.append(row)
+        ranks.append(len(basis))
     ranks = ranks or [0] * n
     singular = tuple(k for k in range(n) if ranks[k] < structure.ranks[k])
     control_rank = ranks[-1] if ranks else 0
-    vectors = _orthogonal_complement(kernel, [list(rows.row(i)) for i in basis]) if control_rank < n else []
+    vectors = _orthogonal_complement(kernel, basis) if control_rank < n else []
     missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
     notes: list[str] = list(structure.uncertain)
     if undefined:

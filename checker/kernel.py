@@ -32,6 +32,8 @@ Vector = tuple[sp.Expr, ...]
 
 #: Expressions larger than this (in operations) are not simplified symbolically.
 SIMPLIFY_OPS_LIMIT = 250
+#: Expressions larger than this are not brought over a common denominator.
+COMPACT_OPS_LIMIT = 600
 #: Number of random points used to screen an expression.
 SCREEN_POINTS = 6
 
@@ -71,6 +73,7 @@ class Kernel:
         self._ad: dict[tuple[int, int], Vector] = {}
         self._zero: dict[sp.Expr, ZeroTest] = {}
         self._jacobians: dict[Vector, sp.Matrix] = {}
+        self._compact: dict[sp.Expr, sp.Expr] = {}
         self.seed = seed if seed is not None else _seed_for(plant)
         self._samples: list[dict[sp.Symbol, Fraction]] | None = None
         self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
@@ -140,6 +143,25 @@ class Kernel:
             else:
                 self._ad[key] = self.bracket(self.f, self.ad(j, k - 1))
         return self._ad[key]
+
+    def compact(self, expr: sp.Expr) -> sp.Expr:
+        """``expr`` over a common denominator with common factors cancelled, when
+        that is cheap (small input) and pays (smaller output); else unchanged.
+
+        Interval enclosures suffer from every repeated occurrence of a variable,
+        so certification works on the compact form.
+        """
+        if expr.is_Atom or sp.count_ops(expr) > COMPACT_OPS_LIMIT:
+            return expr
+        cached = self._compact.get(expr)
+        if cached is None:
+            try:
+                candidate = sp.cancel(sp.together(expr))
+            except (sp.PolynomialError, ValueError, TypeError):
+                candidate = expr
+            cached = candidate if sp.count_ops(candidate) < sp.count_ops(expr) else expr
+            self._compact[expr] = cached
+        return cached
 
     # -- sampling --------------------------------------------------------------
     def free_symbols(self) -> tuple[sp.Symbol, ...]:

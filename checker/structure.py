@@ -520,6 +520,7 @@ def _regularity_expressions(kernel: Kernel, structure: Structure) -> tuple[list[
     """What must stay away from zero: det A (square), the row (one output), the p x p minors (wide)."""
     A = structure.decoupling
     assert A is not None
+    A = A.applyfunc(kernel.compact)
     p, m = A.rows, A.cols
     if p == 1:
         r = structure.outputs[0].relative_degree or 1
@@ -528,8 +529,8 @@ def _regularity_expressions(kernel: Kernel, structure: Structure) -> tuple[list[
             return [entries[0][1]], entries[0][0]
         return [e for _, e in entries], "every entry of the row " + ", ".join(n for n, _ in entries)
     if p == m:
-        return [laplace_det(A)], "det A (the decoupling matrix)"
-    minors = [laplace_det(A.extract(list(range(p)), list(c))) for c in combinations(range(m), p)]
+        return [kernel.compact(laplace_det(A))], "det A (the decoupling matrix)"
+    minors = [kernel.compact(laplace_det(A.extract(list(range(p)), list(c)))) for c in combinations(range(m), p)]
     return [e for e in minors if e != 0] or [sp.Integer(0)], f"every {p} x {p} minor of the decoupling matrix"
 
 

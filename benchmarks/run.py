@@ -1,0 +1,393 @@
+"""The benchmark suite: plantlint against the naive notebook analysis, one command.
+
+    python benchmarks/run.py [--quick] [--cap SECONDS] [--timeout SECONDS]
+    python benchmarks/run.py --profile MODEL.plant     # where the time goes, by stage
+
+For every generated model (``benchmarks/generate.py``) and every model of
+``example_repo/`` it measures, each in its own subprocess, wall time and peak
+memory (``ru_maxrss`` from ``os.wait4``, which includes the worker process) of
+
+    plantlint check --no-cache --jobs 1 --format json MODEL
+
+and of ``benchmarks/naive.py`` (capped: a capped run is recorded as "> cap" and its
+ratio is a lower bound). It writes ``benchmarks/results/results.json`` and
+``results.md``, fits the exponent of time against state count (log-log least
+squares) and times ``plantlint --version``. A PNG plot is added when matplotlib
+happens to be installed.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import platform
+import signal
+import subprocess
+import sys
+import tempfile
+import time
+from dataclasses import asdict, dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+HERE = Path(__file__).resolve().parent
+REPO = HERE.parent
+RESULTS = HERE / "results"
+sys.path.insert(0, str(HERE))
+from generate import ModelSpec, write_suite  # noqa: E402
+
+TARGET_RATIO = 50.0
+TARGET_12x4_SECONDS = 10.0
+TARGET_VERSION_SECONDS = 0.3
+
+
+@dataclass
+class Measured:
+    """One subprocess: wall time, peak resident memory, exit code, output."""
+
+    seconds: float
+    peak_mb: float
+    exit_code: int | None  # None: stopped at the cap
+    stdout: str
+    stderr: str
+
+    @property
+    def capped(self) -> bool:
+        return self.exit_code is None
+
+
+def measure(cmd: list[str], cap: float, cwd: Path = REPO) -> Measured:
+    """Run ``cmd``; wall time and ru_maxrss of it and its waited-for children."""
+    with tempfile.TemporaryFile() as out, tempfile.TemporaryFile() as err:
+        start = time.perf_counter()
+        proc = subprocess.Popen(cmd, stdout=out, stderr=err, cwd=cwd, start_new_session=True)
+        capped = False
+        while True:
+            pid, status, usage = os.wait4(proc.pid, os.WNOHANG)
+            if pid:
+                break
+            if time.perf_counter() - start > cap:
+                capped = True
+                os.killpg(proc.pid, signal.SIGKILL)
+                pid, status, usage = os.wait4(proc.pid, 0)
+                break
+            time.sleep(0.005)
+        seconds = time.perf_counter() - start
+        proc.returncode = os.waitstatus_to_exitcode(status)
+        out.seek(0)
+        err.seek(0)
+        return Measured(seconds, usage.ru_maxrss / 1024.0, None if capped else proc.returncode,
+                        out.read().decode("utf-8", "replace"), err.read().decode("utf-8", "replace"))
+
+
+def plantlint_command() -> list[str]:
+    """The installed console script next to this interpreter (no shell shims in the timing)."""
+    script = Path(sys.executable).parent / "plantlint"
+    return [str(script)] if script.exists() else [sys.executable, "-m", "checker"]
+
+
+@dataclass
+class Row:
+    model: str
+    source: str  # generated | example_repo
+    family: str
+    states: int
+    inputs: int
+    outputs: int
+    plantlint_s: float
+    plantlint_peak_mb: float
+    plantlint_exit: int | None
+    budget_hit: bool
+    stages: list[str]
+    findings: dict[str, int]
+    naive_s: float | None
+    naive_peak_mb: float | None
+    naive_capped: bool
+    ratio: float | None  # naive / plantlint; a lower bound when naive_capped
+    naive_agrees: bool | None  # same relative degrees as plantlint
+
+
+def _findings(report: dict[str, Any]) -> tuple[dict[str, int], bool, dict[str, Any]]:
+    counts: dict[str, int] = {}
+    analysis: dict[str, Any] = {}
+    for file in report.get("files", []):
+        analysis = file.get("analysis") or {}
+        for f in file.get("findings", []):
+            counts[f["rule"]] = counts.get(f["rule"], 0) + 1
+    return counts, "analysis-budget" in counts, analysis
+
+
+def _stages(report: dict[str, Any]) -> list[str]:
+    for file in report.get("files", []):
+        for f in file.get("findings", []):
+            if f["rule"] == "analysis-budget":
+                text = f["message"].split("completed: ", 1)[-1].split(";")[0]
+                return [s.strip() for s in text.split(",") if s.strip() and s.strip() != "none"]
+    return ["all"]
+
+
+def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float) -> Row:
+    """plantlint and (for generated models) the naive analysis on one model."""
+    from concurrent.futures import ThreadPoolExecutor
+
+    # plantlint (single-threaded, --jobs 1) and the naive run go side by side on two cores
+    with ThreadPoolExecutor(2) as pool:
+        pl_job = pool.submit(measure, plantlint_command() + ["check", "--no-cache", "--jobs", "1", "--timeout",
+                                                             f"{timeout:g}", "--format", "json", str(path)],
+                             timeout + 60)
+        nv_job = pool.submit(measure, [sys.executable, str(HERE / "naive.py"), spec.name], cap) if spec else None
+        pl = pl_job.result()
+        nv = nv_job.result() if nv_job else None
+    try:
+        report = json.loads(pl.stdout)
+    except ValueError:
+        report = {}
+    counts, budget, analysis = _findings(report)
+    if report.get("files") == []:
+        counts = {"(not checked: excluded by the repository's configuration)": 1}
+    naive_s = naive_mb = ratio = None
+    agrees = None
+    capped = False
+    if nv is not None:
+        naive_s, naive_mb, capped = (cap if nv.capped else nv.seconds), nv.peak_mb, nv.capped
+        ratio = naive_s / pl.seconds
+        if not nv.capped and nv.exit_code == 0 and analysis.get("relative_degree") is not None:
+            naive = json.loads(nv.stdout.strip().splitlines()[-1])
+            agrees = naive["relative_degree"] == analysis.get("relative_degree")
+    text = path.read_text(encoding="utf-8")
+    words = [line.split()[0] for line in text.splitlines() if line.strip() and not line.lstrip().startswith("#")]
+    return Row(
+        model=spec.name if spec else str(path.relative_to(REPO)), source="generated" if spec else "example_repo",
+        family=spec.family if spec else "example", states=words.count("state"), inputs=words.count("input"),
+        outputs=words.count("output"), plantlint_s=round(pl.seconds, 3), plantlint_peak_mb=round(pl.peak_mb, 1),
+        plantlint_exit=pl.exit_code, budget_hit=budget, stages=_stages(report), findings=counts,
+        naive_s=round(naive_s, 3) if naive_s is not None else None,
+        naive_peak_mb=round(naive_mb, 1) if naive_mb is not None else None, naive_capped=capped,
+        ratio=round(ratio, 3) if ratio is not None else None, naive_agrees=agrees,
+    )
+
+
+def fit_exponent(states: list[int], seconds: list[float]) -> float | None:
+    """Slope of log(time) against log(states): time ~ n^slope."""
+    if len(set(states)) < 2:
+        return None
+    slope, _ = np.polyfit(np.log(states), np.log(seconds), 1)
+    return float(slope)
+
+
+def exponential_rate(states: list[int], seconds: list[float]) -> float | None:
+    """Slope of log(time) against n (time ~ exp(rate n)); compared with the power law."""
+    if len(set(states)) < 2:
+        return None
+    rate, _ = np.polyfit(np.array(states, dtype=float), np.log(seconds), 1)
+    return float(rate)
+
+
+def growth(rows: list[Row], floor: float) -> dict[str, Any]:
+    """Power-law and exponential fits of (time - start-up floor) against states, per family and overall."""
+    usable = [r for r in rows if r.source == "generated" and not r.budget_hit]
+    out: dict[str, Any] = {"startup_floor_s": round(floor, 3)}
+    groups: dict[str, list[Row]] = {"all generated": usable}
+    for r in usable:
+        groups.setdefault(r.family, []).append(r)
+    for name, group in groups.items():
+        ns = [r.states for r in group]
+        raw = [r.plantlint_s for r in group]
+        net = [max(r.plantlint_s - floor, 0.05) for r in group]
+        if len(set(ns)) < 3:
+            continue
+        p_net, p_raw = fit_exponent(ns, net), fit_exponent(ns, raw)
+        e_net = exponential_rate(ns, net)
+        resid_p = _residual(np.log(ns), np.log(net))
+        resid_e = _residual(np.array(ns, dtype=float), np.log(net))
+        out[name] = {"states": ns, "exponent_raw": round(p_raw or 0, 2), "exponent_net": round(p_net or 0, 2),
+                     "exp_rate_per_state": round(e_net or 0, 3),
+                     "better_fit": "power law" if resid_p <= resid_e else "exponential"}
+    return out
+
+
+def _residual(x: np.ndarray, y: np.ndarray) -> float:
+    coeffs = np.polyfit(x, y, 1)
+    return float(np.sum((np.polyval(coeffs, x) - y) ** 2))
+
+
+def version_time(repeats: int = 7) -> dict[str, float]:
+    runs = [measure(plantlint_command() + ["--version"], cap=30).seconds for _ in range(repeats)]
+    bare = [measure([sys.executable, "-c", "pass"], cap=30).seconds for _ in range(repeats)]
+    return {"median_s": round(float(np.median(runs)), 3), "min_s": round(min(runs), 3),
+            "python_startup_median_s": round(float(np.median(bare)), 3)}
+
+
+def trivial_floor(folder: Path, timeout: float) -> float:
+    """plantlint on a one-state model: process start, imports and worker start."""
+    path = folder / "_floor.plant"
+    path.write_text("# start-up floor; invented\nplant floor\nstate x in -1 .. 1\ninput u in -1 .. 1\n"
+                    "rate x = -x + u\noutput y = x\npoint rest: x = 0\n", encoding="utf-8")
+    runs = [measure(plantlint_command() + ["check", "--no-cache", "--jobs", "1", "--format", "json", str(path)],
+                    cap=timeout).seconds for _ in range(3)]
+    path.unlink()
+    return float(np.median(runs))
+
+
+def targets(rows: list[Row], fits: dict[str, Any], version: dict[str, float]) -> dict[str, Any]:
+    slow = [r for r in rows if r.naive_s is not None and r.naive_s > 10]
+    ratio_ok = all((r.ratio or 0) >= TARGET_RATIO for r in slow)
+    big = [r for r in rows if r.states == 12 and r.inputs == 4]
+    overall = fits.get("all generated", {})
+    return {
+        "ratio_50x_where_naive_over_10s": {"met": ratio_ok if slow else None,
+                                           "models": {r.model: r.ratio for r in slow}},
+        "12_state_4_input_under_10s": {"met": bool(big) and all(r.plantlint_s < TARGET_12x4_SECONDS and not r.budget_hit
+                                                                 for r in big),
+                                       "models": {r.model: r.plantlint_s for r in big}},
+        "polynomial_growth": {"met": overall.get("better_fit") == "power law" if overall else None,
+                              "exponent_net": overall.get("exponent_net"),
+                              "note": "models stopped by the time budget are left out of the fit"},
+        "version_under_0.3s": {"met": version["median_s"] < TARGET_VERSION_SECONDS, **version},
+    }
+
+
+def markdown(rows: list[Row], fits: dict[str, Any], goals: dict[str, Any], meta: dict[str, Any]) -> str:
+    lines = [
+        "# Benchmark results", "",
+        f"Run {meta['date']} on {meta['machine']} (Python {meta['python']}), plantlint {meta['version']}, "
+        f"`{meta['command']}`; naive cap {meta['cap']:g} s, plantlint budget {meta['timeout']:g} s.", "",
+        "| model | n | m | p | plantlint s | peak MB | naive s | ratio | stages | findings |",
+        "|---|---:|---:|---:|---:|---:|---:|---:|---|---|",
+    ]
+    for r in rows:
+        naive = "-" if r.naive_s is None else (f"> {r.naive_s:g}" if r.naive_capped else f"{r.naive_s:.2f}")
+        ratio = "-" if r.ratio is None else (f">= {r.ratio:.2g}" if r.naive_capped else f"{r.ratio:.2g}")
+        time_s = f"{r.plantlint_s:.2f}" + (" (budget)" if r.budget_hit else "")
+        found = ", ".join(f"{k} x{v}" if v > 1 else k for k, v in sorted(r.findings.items())) or "none"
+        if r.naive_agrees is False:
+            found += "; naive relative degrees differ"
+        stages = "all" if r.stages == ["all"] else ("stopped after: " + (", ".join(r.stages) or "nothing"))
+        lines.append(f"| {r.model} | {r.states} | {r.inputs} | {r.outputs} | {time_s} | {r.plantlint_peak_mb:.0f} | "
+                     f"{naive} | {ratio} | {stages} | {found} |")
+    lines += ["", "n states, m inputs, p outputs. ratio = naive / plantlint wall time (\">=\" when the naive run "
+              "hit its cap). The naive run does only the structure (relative degrees, decoupling matrix, its "
+              "determinant); plantlint also proves regularity over the envelope, solves the points and computes "
+              "zero dynamics and distributions.", "", "## Growth", ""]
+    lines.append(f"Start-up floor (one-state model): {fits['startup_floor_s']} s. Exponents fitted to "
+                 "time minus the floor, log-log least squares; models stopped by the budget are left out.")
+    lines.append("")
+    for name, fit in fits.items():
+        if isinstance(fit, dict):
+            lines.append(f"- {name}: time ~ n^{fit['exponent_net']} (raw {fit['exponent_raw']}); "
+                         f"exponential rate {fit['exp_rate_per_state']}/state; better fit: {fit['better_fit']}")
+    lines += ["", "## Targets", ""]
+    for name, goal in goals.items():
+        met = {True: "met", False: "NOT met", None: "not applicable"}[goal["met"]]
+        detail = {k: v for k, v in goal.items() if k != "met"}
+        lines.append(f"- {name}: **{met}** {json.dumps(detail)}")
+    return "\n".join(lines) + "\n"
+
+
+def plot(rows: list[Row], path: Path) -> bool:
+    try:
+        import matplotlib
+
+        matplotlib.use("Agg")
+        import matplotlib.pyplot as plt
+    except ImportError:
+        return False
+    fig, ax = plt.subplots(figsize=(6, 4))
+    for fam in sorted({r.family for r in rows if r.source == "generated"}):
+        pts = [(r.states, r.plantlint_s) for r in rows if r.family == fam]
+        ax.loglog(*zip(*pts), "o-", label=fam)
+    ax.set_xlabel("states")
+    ax.set_ylabel("plantlint check wall time [s]")
+    ax.legend(fontsize=7)
+    fig.tight_layout()
+    fig.savefig(path, dpi=100)
+    return True
+
+
+class _Stop(Exception):
+    """Raised by the alarm that ends a profile."""
+
+
+def profile(model: Path, limit: float) -> None:
+    """cProfile of the in-process analysis of one model, with the time of each stage
+    (stopped after ``limit`` seconds, so a runaway stage is profiled too)."""
+    import cProfile
+    import pstats
+
+    sys.path.insert(0, str(REPO))
+    from checker.config import Config
+    from checker.pipeline import analyse_bytes
+
+    start = time.perf_counter()
+    last = [start]
+
+    def stage(name: str) -> None:
+        now = time.perf_counter()
+        print(f"stage {name:>14}: {now - last[0]:8.2f} s", flush=True)
+        last[0] = now
+
+    def alarm(_signum: int, _frame: Any) -> None:
+        raise _Stop
+
+    signal.signal(signal.SIGALRM, alarm)
+    signal.setitimer(signal.ITIMER_REAL, limit)
+    prof = cProfile.Profile()
+    prof.enable()
+    try:
+        raw = analyse_bytes(model.read_bytes(), Config(), stage)
+        summary = f"findings: {sorted(f.rule for f in raw.findings)}"
+    except _Stop:
+        summary = f"stopped after {limit:g} s in the stage after the last one printed"
+    finally:
+        prof.disable()
+        signal.setitimer(signal.ITIMER_REAL, 0)
+    print(f"total {time.perf_counter() - start:.2f} s; {summary}")
+    stats = pstats.Stats(prof)
+    stats.sort_stats("cumulative").print_stats(40)
+    stats.sort_stats("tottime").print_stats(15)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description="plantlint benchmark suite")
+    ap.add_argument("--quick", action="store_true", help="a smaller set of models")
+    ap.add_argument("--cap", type=float, default=120.0, help="time cap of the naive analysis (s)")
+    ap.add_argument("--timeout", type=float, default=120.0, help="plantlint's per-model budget (s)")
+    ap.add_argument("--profile", metavar="MODEL", help="profile one model in-process and stop")
+    ap.add_argument("--profile-seconds", type=float, default=120.0, help="stop the profile after this long")
+    args = ap.parse_args()
+    if args.profile:
+        profile(Path(args.profile), args.profile_seconds)
+        return
+    models = RESULTS / "models"
+    RESULTS.mkdir(parents=True, exist_ok=True)
+    suite = write_suite(models, args.quick)
+    rows: list[Row] = []
+    for spec, path in suite:
+        rows.append(bench_model(path, spec, args.cap, args.timeout))
+        print(json.dumps(asdict(rows[-1])), flush=True)
+    for path in sorted((REPO / "example_repo").rglob("*.plant")):
+        rows.append(bench_model(path, None, args.cap, args.timeout))
+        print(json.dumps(asdict(rows[-1])), flush=True)
+    floor = trivial_floor(models, args.timeout)
+    fits = growth(rows, floor)
+    version = version_time()
+    goals = targets(rows, fits, version)
+    from checker import __version__
+
+    meta = {"date": time.strftime("%Y-%m-%d"), "machine": f"{platform.machine()}, {os.cpu_count()} CPUs",
+            "python": platform.python_version(), "version": __version__,
+            "command": "python benchmarks/run.py" + (" --quick" if args.quick else ""),
+            "cap": args.cap, "timeout": args.timeout}
+    data = {"meta": meta, "rows": [asdict(r) for r in rows], "growth": fits, "targets": goals}
+    (RESULTS / "results.json").write_text(json.dumps(data, indent=2) + "\n", encoding="utf-8")
+    (RESULTS / "results.md").write_text(markdown(rows, fits, goals, meta), encoding="utf-8")
+    if plot(rows, RESULTS / "scaling.png"):
+        print("plot: benchmarks/results/scaling.png")
+    print((RESULTS / "results.md").read_text(encoding="utf-8"))
+
+
+if __name__ == "__main__":
+    main()

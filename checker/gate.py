@@ -54,8 +54,12 @@ def resolve_ref(ref: str, top: Path) -> str:
 
 
 def renames(commit: str, top: Path) -> dict[str, str]:
-    """New path -> old path, for files git sees as renamed between REF and the work tree."""
-    out = _git(["diff", "--name-status", "-M", "-z", commit, "--"], top)
+    """New path -> old path, for files git sees as renamed between REF and the work tree.
+
+    ``diff-index`` (plumbing) rather than ``diff``: ``diff`` refreshes and rewrites
+    ``.git/index`` when file times changed; the gate writes nothing.
+    """
+    out = _git(["diff-index", "--name-status", "-M", "-z", commit, "--"], top)
     if out.returncode != 0:
         return {}
     fields = out.stdout.decode("utf-8", errors="replace").split("\0")

@@ -18,8 +18,10 @@ import re
 import shutil
 import subprocess
 import sys
+from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import pytest
 
@@ -41,9 +43,12 @@ class Run:
     stdout: str
     stderr: str
 
-    def json(self) -> dict:
-        data: dict = json.loads(self.stdout)
+    def json(self) -> dict[str, Any]:
+        data: dict[str, Any] = json.loads(self.stdout)
         return data
+
+
+CLI = Callable[..., Run]  # cli(cwd, *args, cached=True) -> Run
 
 
 @pytest.fixture(scope="module")
@@ -53,7 +58,7 @@ def cache(tmp_path_factory: pytest.TempPathFactory) -> Path:
 
 
 @pytest.fixture
-def cli(monkeypatch: pytest.MonkeyPatch, capfd: pytest.CaptureFixture[str], cache: Path):
+def cli(monkeypatch: pytest.MonkeyPatch, capfd: pytest.CaptureFixture[str], cache: Path) -> CLI:
     """``cli(cwd, *args)`` runs main() in ``cwd`` and returns its exit code and output."""
 
     def run(cwd: Path, *args: str, cached: bool = True) -> Run:
@@ -89,7 +94,7 @@ def rules_of(run: Run) -> list[tuple[str, str]]:
 
 # -- exit codes ---------------------------------------------------------------------------
 
-def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli) -> None:
+def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli: CLI) -> None:
     copy(CLEAN, tmp_path / "clean.plant")
     copy(UNSTABLE, tmp_path / "unstable.plant")
     clean = cli(tmp_path, "check", "clean.plant")
@@ -112,7 +117,7 @@ def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli) -> None:
     ["rules", "no-such-rule"],
     ["no-such-command"],
 ], ids=lambda a: " ".join(a))
-def test_usage_errors_exit_2_with_one_line(tmp_path: Path, cli, args: list[str]) -> None:
+def test_usage_errors_exit_2_with_one_line(tmp_path: Path, cli: CLI, args: list[str]) -> None:
     copy(CLEAN, tmp_path / "x.plant")
     (tmp_path / "empty-folder").mkdir()
     (tmp_path / "folder.plant").mkdir()  # a folder named like a model, with nothing in it
@@ -122,7 +127,7 @@ def test_usage_errors_exit_2_with_one_line(tmp_path: Path, cli, args: list[str])
     assert run.stdout == ""
 
 
-def test_no_command_shows_help_and_exits_2(tmp_path: Path, cli) -> None:
+def test_no_command_shows_help_and_exits_2(tmp_path: Path, cli: CLI) -> None:
     run = cli(tmp_path)
     assert run.code == 2 and "check" in run.stdout and "rules" in run.stdout
 
@@ -141,7 +146,7 @@ def test_no_command_shows_help_and_exits_2(tmp_path: Path, cli) -> None:
     ("fail-on = \n", "TOML"),
 ], ids=["unknown key", "fail-on", "timeout", "jobs", "include", "severity rule", "severity value", "cache",
         "not toml"])
-def test_bad_configuration_exits_2(tmp_path: Path, cli, toml: str, mentions: str) -> None:
+def test_bad_configuration_exits_2(tmp_path: Path, cli: CLI, toml: str, mentions: str) -> None:
     (tmp_path / "plantlint.toml").write_text(toml, encoding="utf-8")
     copy(CLEAN, tmp_path / "x.plant")
     run = cli(tmp_path, "check", "x.plant")
@@ -168,7 +173,7 @@ def project(tmp_path: Path) -> Path:
     return root
 
 
-def test_include_and_exclude_choose_the_models(project: Path, cli) -> None:
+def test_include_and_exclude_choose_the_models(project: Path, cli: CLI) -> None:
     run = cli(project, "check", "--format", "json")
     assert [f["path"] for f in run.json()["files"]] == ["models/line/drift.plant", "models/tail.plant"]
     # a folder on the command line is filtered the same way
@@ -178,7 +183,7 @@ def test_include_and_exclude_choose_the_models(project: Path, cli) -> None:
     assert excluded.code == 2 and "left out by include/exclude" in excluded.stderr
 
 
-def test_severity_override_from_plantlint_toml(project: Path, tmp_path: Path, cli) -> None:
+def test_severity_override_from_plantlint_toml(project: Path, tmp_path: Path, cli: CLI) -> None:
     plain = tmp_path / "plain.toml"
     plain.write_text("", encoding="utf-8")
     default = cli(project, "check", "--format", "json", "--config", str(plain), "models/line/drift.plant")
@@ -187,13 +192,13 @@ def test_severity_override_from_plantlint_toml(project: Path, tmp_path: Path, cl
     assert raised.code == 1 and rules_of(raised) == [("zero-dynamics-critical", "error")]
 
 
-def test_configuration_is_found_from_a_subfolder(project: Path, cli) -> None:
+def test_configuration_is_found_from_a_subfolder(project: Path, cli: CLI) -> None:
     run = cli(project / "models" / "line" / "deeper", "check", "--format", "json", "../drift.plant")
     assert run.code == 1 and rules_of(run) == [("zero-dynamics-critical", "error")]
     assert [f["path"] for f in run.json()["files"]] == ["../drift.plant"]
 
 
-def test_severity_override_from_pyproject(tmp_path: Path, cli) -> None:
+def test_severity_override_from_pyproject(tmp_path: Path, cli: CLI) -> None:
     root = tmp_path / "repo"
     root.mkdir()
     (root / "pyproject.toml").write_text(
@@ -208,7 +213,7 @@ def test_severity_override_from_pyproject(tmp_path: Path, cli) -> None:
         assert run.code == 0 and rules_of(run) == [("zero-dynamics-unstable", "note")]
 
 
-def test_fail_on_warning_fails_a_warning_only_model(tmp_path: Path, cli) -> None:
+def test_fail_on_warning_fails_a_warning_only_model(tmp_path: Path, cli: CLI) -> None:
     copy(CRITICAL, tmp_path / "drift.plant")
     assert cli(tmp_path, "check", "drift.plant").code == 0
     assert cli(tmp_path, "check", "--fail-on", "warning", "drift.plant").code == 1
@@ -218,7 +223,7 @@ def test_fail_on_warning_fails_a_warning_only_model(tmp_path: Path, cli) -> None
     assert cli(tmp_path, "check", "--fail-on", "error", "drift.plant").code == 0
 
 
-def test_only_and_skip_select_rules(tmp_path: Path, cli) -> None:
+def test_only_and_skip_select_rules(tmp_path: Path, cli: CLI) -> None:
     copy(UNSTABLE, tmp_path / "a.plant")
     copy(CRITICAL, tmp_path / "b.plant")
     everything = cli(tmp_path, "check", "--format", "json", "a.plant", "b.plant")
@@ -235,7 +240,7 @@ def test_only_and_skip_select_rules(tmp_path: Path, cli) -> None:
 # -- output -------------------------------------------------------------------------------
 
 @pytest.mark.parametrize("fmt", ["json", "text"])
-def test_output_file_gets_the_report_and_models_are_untouched(tmp_path: Path, cli, fmt: str) -> None:
+def test_output_file_gets_the_report_and_models_are_untouched(tmp_path: Path, cli: CLI, fmt: str) -> None:
     models = [copy(UNSTABLE, tmp_path / "a.plant"), copy(CRITICAL, tmp_path / "b.plant")]
     before = [(m.read_bytes(), m.stat().st_mtime_ns) for m in models]
     report = tmp_path / "out" / f"report.{fmt}"
@@ -252,13 +257,13 @@ def test_output_file_gets_the_report_and_models_are_untouched(tmp_path: Path, cl
     assert [(m.read_bytes(), m.stat().st_mtime_ns) for m in models] == before
 
 
-def test_unwritable_output_is_a_usage_error(tmp_path: Path, cli) -> None:
+def test_unwritable_output_is_a_usage_error(tmp_path: Path, cli: CLI) -> None:
     copy(CLEAN, tmp_path / "a.plant")
     run = cli(tmp_path, "check", "--output", str(tmp_path / "no-such-folder" / "r.json"), "a.plant")
     assert run.code == 2 and one_line_error(run)
 
 
-def test_text_to_a_pipe_has_no_colour_unless_asked(tmp_path: Path, cli) -> None:
+def test_text_to_a_pipe_has_no_colour_unless_asked(tmp_path: Path, cli: CLI) -> None:
     copy(UNSTABLE, tmp_path / "a.plant")
     plain = cli(tmp_path, "check", "a.plant")
     assert plain.code == 1 and "zero-dynamics-unstable" in plain.stdout and not ANSI.search(plain.stdout)
@@ -302,7 +307,7 @@ def test_colour_on_a_terminal_and_no_color(tmp_path: Path, cache: Path) -> None:
 
 # -- rules, version, help -------------------------------------------------------------------
 
-def test_rules_lists_the_whole_catalogue(tmp_path: Path, cli) -> None:
+def test_rules_lists_the_whole_catalogue(tmp_path: Path, cli: CLI) -> None:
     ids = sorted(load_catalogue().ids())
     assert len(ids) == 26
     as_json = cli(tmp_path, "rules", "--format", "json")
@@ -313,7 +318,7 @@ def test_rules_lists_the_whole_catalogue(tmp_path: Path, cli) -> None:
     assert set(ids) <= listed
 
 
-def test_rules_shows_one_rule(tmp_path: Path, cli) -> None:
+def test_rules_shows_one_rule(tmp_path: Path, cli: CLI) -> None:
     catalogue = load_catalogue()
     one = cli(tmp_path, "rules", "syntax")
     assert one.code == 0 and one.stdout.lstrip().startswith("syntax")
@@ -337,7 +342,7 @@ def test_version_from_the_module_and_the_console_script(tmp_path: Path) -> None:
 
 
 @pytest.mark.parametrize("args", [["--help"], ["check", "--help"]])
-def test_help_carries_the_safety_caution(tmp_path: Path, cli, args: list[str]) -> None:
+def test_help_carries_the_safety_caution(tmp_path: Path, cli: CLI, args: list[str]) -> None:
     run = cli(tmp_path, *args)
     assert run.code == 0
     words = " ".join(run.stdout.split())
@@ -382,7 +387,7 @@ def bad_inputs(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, dict[str
 
 
 @pytest.mark.parametrize("name", sorted(BAD_INPUTS))
-def test_bad_input_gives_one_syntax_finding(bad_inputs: tuple[Path, dict[str, str]], cli, name: str) -> None:
+def test_bad_input_gives_one_syntax_finding(bad_inputs: tuple[Path, dict[str, str]], cli: CLI, name: str) -> None:
     folder, says = bad_inputs
     run = cli(folder, "check", "--format", "json", "--no-cache", name)
     assert run.code == 1 and run.stderr == ""
@@ -392,7 +397,7 @@ def test_bad_input_gives_one_syntax_finding(bad_inputs: tuple[Path, dict[str, st
     assert finding["line"] >= 1 and finding["column"] >= 1
 
 
-def test_endless_device_is_read_only_up_to_the_limit(tmp_path: Path, cli) -> None:
+def test_endless_device_is_read_only_up_to_the_limit(tmp_path: Path, cli: CLI) -> None:
     if not Path("/dev/zero").exists():
         pytest.skip("no /dev/zero on this system")
     run = cli(tmp_path, "check", "--format", "json", "--no-cache", "/dev/zero")
@@ -433,9 +438,9 @@ def test_wheel_installs_and_finds_its_grammar_and_rules(tmp_path: Path) -> None:
     assert installed.returncode == 0, installed.stdout + installed.stderr
     elsewhere = tmp_path / "elsewhere"
     elsewhere.mkdir()
-    where = subprocess.run([str(python), "-c", "import checker, checker.resources as r; "
-                            "print(checker.__file__); print(r.data_path('grammar')); print(r.data_path('rules'))"],
-                           cwd=elsewhere, capture_output=True, text=True, timeout=120)
+    locate = ("import checker, checker.resources as r; "
+              "print(checker.__file__); print(r.data_path('grammar')); print(r.data_path('rules'))")
+    where = subprocess.run([str(python), "-c", locate], cwd=elsewhere, capture_output=True, text=True, timeout=120)
     assert where.returncode == 0, where.stderr
     assert all(Path(line).resolve().is_relative_to(venv.resolve()) for line in where.stdout.split())
     script = venv / "bin" / "plantlint"

@@ -199,6 +199,16 @@ def test_edit_to_non_minimum_phase_gives_exactly_the_introduced_finding(scenario
     assert [f["path"] for f in alone.json()["files"]] == ["plants/tail.plant"]
 
 
+def test_gate_from_a_subfolder_of_the_repository(scenario: Scenario) -> None:
+    run = plantlint(scenario.repo / "plants", scenario.env, "check", "--since", "base", "--format", "json",
+                    "--cache-dir", str(scenario.cache), "tail.plant", "shaker.plant")
+    assert run.code == 1, run.stderr
+    assert [(f["path"], rules_by_state(f)) for f in run.json()["files"]] == [
+        ("tail.plant", [("zero-dynamics-unstable", "introduced")]),
+        ("shaker.plant", [("zero-dynamics-unstable", "known")]),
+    ]
+
+
 def test_moving_lines_keeps_the_old_finding_known(scenario: Scenario) -> None:
     shaker = scenario.file("shaker.plant")
     (finding,) = shaker["findings"]
@@ -238,13 +248,20 @@ def test_rename_in_the_work_tree_is_followed(tmp_path: Path) -> None:
     env = git_env(tmp_path)
     git(repo, env, "init", "-q")
     (repo / "old.plant").write_text(model("hopper", UNSTABLE), encoding="utf-8")
-    git(repo, env, "add", "old.plant")
+    (repo / "README.md").write_text("Demo repository (invented).\n", encoding="utf-8")
+    git(repo, env, "add", "old.plant", "README.md")
     git(repo, env, "commit", "-q", "-m", "one model")
     (repo / "old.plant").rename(repo / "new.plant")
     git(repo, env, "add", "-A")
     before = git(repo, env, "status", "--porcelain", "--ignored")
+    # a new file time without new content: porcelain `git diff` would refresh and rewrite the index
+    stamp = (repo / "README.md").stat().st_mtime_ns + 5_000_000_000
+    os.utime(repo / "README.md", ns=(stamp, stamp))
+    index = repo / ".git" / "index"
+    index_before = (index.read_bytes(), index.stat().st_mtime_ns)
     run = plantlint(repo, env, "check", "--since", "HEAD", "--format", "json", "--no-cache", "new.plant")
     assert run.code == 0, run.stdout + run.stderr
+    assert (index.read_bytes(), index.stat().st_mtime_ns) == index_before
     assert git(repo, env, "status", "--porcelain", "--ignored") == before == "R  old.plant -> new.plant\n"
     (file,) = run.json()["files"]
     assert rules_by_state(file) == [("zero-dynamics-unstable", "known")]

@@ -146,9 +146,11 @@ def main() -> None:
                          "| date (UTC) | cpus | load | set | models | cold s | warm s (median) | warm s (min) "
                          "| warm imports sympy | stopped by time budget |\n"
                          "|---|---|---|---|---|---|---|---|---|---|\n", encoding="utf-8")
+    override = f" (--timeout {args.timeout:g})" if args.timeout else ""
     with table.open("a", encoding="utf-8") as fh:
         for name, r in runs.items():
-            fh.write(f"| {record['date']} | {record['cpus']} | {record['load_average_1min']} | {name} | {r['models']} "
+            fh.write(f"| {record['date']} | {record['cpus']} | {record['load_average_1min']} | {name}{override} "
+                     f"| {r['models']} "
                      f"| {r['cold_seconds']} | {r['warm_seconds_median']} | {r['warm_seconds_min']} "
                      f"| {'yes' if r['warm_imports_sympy'] else 'no'} | {', '.join(r['stopped_by_time_budget']) or '-'} |\n")
     for name, r in runs.items():

@@ -7,6 +7,7 @@ sympy is loaded only when a model actually has to be analysed.
 from __future__ import annotations
 
 import argparse
+import math
 import os
 import sys
 from pathlib import Path
@@ -136,8 +137,8 @@ def _check(args: argparse.Namespace) -> int:
         if args.fail_on:
             changes["fail_on"] = Severity.parse(args.fail_on)
         if args.timeout is not None:
-            if args.timeout <= 0:
-                raise ConfigError("--timeout must be a positive number of seconds")
+            if not math.isfinite(args.timeout) or args.timeout <= 0:
+                raise ConfigError("--timeout must be a positive, finite number of seconds")
             changes["timeout"] = args.timeout
         if args.jobs is not None:
             if args.jobs < 0:

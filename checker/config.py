@@ -7,6 +7,7 @@ exits 2 on it). Command-line options override the file.
 
 from __future__ import annotations
 
+import math
 import os
 import sys
 from dataclasses import dataclass, field, replace
@@ -179,8 +180,8 @@ def _int(value: Any, key: str, where: str, low: int) -> int:
 
 
 def _positive(value: Any, key: str, where: str) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or value <= 0:
-        raise ConfigError(f"{where}: '{key}' must be a positive number of seconds")
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
+        raise ConfigError(f"{where}: '{key}' must be a positive, finite number of seconds")
     return float(value)
 
 

@@ -258,10 +258,13 @@ def test_tiny_budget_stops_each_model_and_the_run_goes_on(workspace: Path, tmp_p
 
 def test_budget_beyond_any_wait_is_accepted(workspace: Path) -> None:
     """Selectors reject waits this long; the runner must wait in slices instead."""
-    run = plantlint(workspace, "check", "--format", "concise", "--no-cache", "--timeout", "inf",
+    run = plantlint(workspace, "check", "--format", "concise", "--no-cache", "--timeout", "1e12",
                     "models/a_unstable.plant")
     assert run.code == 1 and run.stderr == ""
     assert "[zero-dynamics-unstable]" in run.stdout
+    for value in ("inf", "nan"):  # not a budget at all: a usage error
+        bad = plantlint(workspace, "check", "--no-cache", "--timeout", value, "models/a_unstable.plant")
+        assert bad.code == 2 and bad.stderr.count("\n") == 1
 
 
 # -- progress ----------------------------------------------------------------------------

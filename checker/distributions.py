@@ -13,12 +13,12 @@ Why the analysis is split in two:
   it near every point, so the expensive symbolic work is done once per plant.
 * :func:`distributions_at` then only needs exact numbers at each point.
 
-Ranks come from a column-by-column elimination whose pivots are decided
-rigorously: generically with :meth:`Kernel.is_zero` (ball screening, then
-symbolic confirmation), at a point with :meth:`Kernel.value_at`. Elimination is
-fraction free unless the pivot is a number, so a remainder is a non-zero
-multiple of a bordered minor: it vanishes identically exactly when the
-corresponding (r+1)-minors do.
+Generic ranks and span membership use bordered minors of the original
+entries (no elimination swell): with a basis B and rows I whose minor is proved
+non-zero, a column lies in span B exactly when every det M[I + i, B + c]
+vanishes identically. Balls at the kernel's samples prove "non-zero"; zeros
+are proved by multiplying out or by Kernel.is_zero. At a point, exact numbers
+are eliminated with pivots decided by Kernel.value_at.
 
 Findings: the generic ``not-involutive`` (anchor "plant") sits in
 ``DistributionStructure.findings``; per point, ``not-controllable`` and a
@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from math import gcd, lcm
 
+import numpy as np
 import sympy as sp
 from flint import arb
 
@@ -135,62 +136,163 @@ def distribution_name(m: int, k: int) -> str:
 
 
 # -- elimination with rigorous pivots -------------------------------------------------
-class _Echelon:
-    """Column echelon form built one column at a time.
-
-    Each pivot keeps its row and its reduced column; reducing a new column by
-    the first ``r`` pivots leaves, in the other rows, non-zero multiples of the
-    bordered (r+1)-minors.
-    """
+class _PointEchelon:
+    """Column echelon form of exact numbers (a point), one column at a time;
+    each pivot is proved non-zero by ``decide`` (exact / rigorous ball tests)."""
 
     def __init__(self, decide: Callable[[sp.Expr], Decision]):
         self.decide = decide
         self.pivots: list[tuple[int, list[sp.Expr]]] = []
-        self.uncertain = False
-
-    def reduce(self, column: Sequence[sp.Expr], upto: int | None = None) -> list[sp.Expr]:
-        v = list(column)
-        for row, w in self.pivots[:upto]:
-            a = v[row]
-            if a == 0:
-                continue
-            p = w[row]
-            if p.is_number:
-                ratio = a / p
-                v = [vi - ratio * wi if wi != 0 else vi for vi, wi in zip(v, w)]
-                v[row] = sp.Integer(0)
-            else:
-                v = [p * vi - a * wi for vi, wi in zip(v, w)]
-        return v
-
-    def remainder_nonzero(self, v: Sequence[sp.Expr], upto: int | None = None) -> tuple[int | None, bool]:
-        """First row (cheapest first) whose remainder is certainly non-zero, and
-        whether every other decision was certain."""
-        used = {row for row, _ in self.pivots[:upto]}
-        rows = [i for i in range(len(v)) if i not in used and v[i] != 0]
-        rows.sort(key=lambda i: (not v[i].is_number, _size(v[i])))
-        certain = True
-        for i in rows:
-            d = self.decide(v[i])
-            if not d.zero:
-                return i, certain
-            certain = certain and d.certain
-        return None, certain
 
     def add(self, column: Sequence[sp.Expr]) -> bool:
         """Add a column; True when it is independent of the previous ones."""
-        v = self.reduce(column)
-        v = [_normal(e) for e in v]
-        row, certain = self.remainder_nonzero(v)
-        if row is None:
-            self.uncertain = self.uncertain or not certain
-            return False
-        self.pivots.append((row, v))
-        return True
+        v = list(column)
+        for row, w in self.pivots:
+            if v[row] != 0:
+                ratio = v[row] / w[row]
+                v = [vi - ratio * wi if wi != 0 else vi for vi, wi in zip(v, w)]
+                v[row] = sp.Integer(0)
+        used = {row for row, _ in self.pivots}
+        for i in sorted((i for i in range(len(v)) if i not in used and v[i] != 0), key=lambda i: _size(v[i])):
+            if not self.decide(v[i]).zero:
+                self.pivots.append((i, v))
+                return True
+        return False
 
 
 #: Entries at least this large (tree nodes) are left as they are by _normal.
-NORMAL_SIZE = 400
+NORMAL_SIZE = 2000
+
+
+class _BorderedMinors:
+    """Generic rank and span membership from bordered minors.
+
+    Keeps a basis B of columns and rows I with det M[I, B] not identically zero
+    (proved). A column c lies in span B exactly when every bordered minor
+    det M[I + i, B + c] vanishes identically (the bordered-minor theorem), so
+    each decision is a kernel zero test on a determinant of the original
+    entries (no elimination swell). Floating-point values at one sample only
+    order the rows so that a non-zero minor is usually met first.
+    """
+
+    def __init__(self, kernel: Kernel):
+        self.kernel = kernel
+        self.n = kernel.plant.n
+        self.columns: list[Vector] = []
+        self.rows: list[int] = []
+        self.uncertain = False
+        self._dets: dict[tuple[tuple[int, ...], int], sp.Expr] = {}
+        self._sample: dict[sp.Symbol, Fraction] | None = None
+        self._floats: list[list[float]] = []
+        samples = kernel.samples()
+        if samples:
+            self._sample = samples[0]
+
+    def _numeric(self, column: Vector) -> list[float]:
+        if self._sample is None:
+            return [0.0] * self.n
+        symbols = self.kernel.free_symbols()
+        try:
+            balls = Program(list(column), symbols).run(
+                [arb(self._sample[s].numerator) / self._sample[s].denominator for s in symbols], 64
+            )
+        except UnsupportedExpression:
+            return [0.0] * self.n
+        return [float(b.mid()) if b.is_finite() else 0.0 for b in balls]
+
+    def _row_order(self, column: Vector, upto: int) -> list[int]:
+        """Rows outside I, largest floating-point Schur residual first."""
+        values = np.array(self._numeric(column))
+        rows = self.rows[:upto]
+        residual = values
+        if rows:
+            basis = np.array(self._floats[:upto]).T  # n x upto
+            coefficients = np.linalg.lstsq(basis[rows, :], values[rows], rcond=None)[0]
+            residual = values - basis @ coefficients
+        free = [i for i in range(self.n) if i not in rows]
+        return sorted(free, key=lambda i: -abs(float(residual[i])))
+
+    def _det(self, rows: tuple[int, ...], columns: list[Vector], key_columns: int) -> sp.Expr:
+        """Laplace expansion along the last column, memoised over the basis prefix."""
+        k = len(rows)
+        if k == 0:
+            return sp.Integer(1)
+        memo_key = (rows, key_columns) if key_columns == k else None
+        if memo_key is not None and memo_key in self._dets:
+            return self._dets[memo_key]
+        last = columns[k - 1]
+        total = sp.Integer(0)
+        for position, i in enumerate(rows):
+            entry = last[i]
+            if entry == 0:
+                continue
+            sub = self._det(rows[:position] + rows[position + 1 :], columns, min(key_columns, k - 1))
+            if sub != 0:
+                total += (-1) ** (position + k - 1) * entry * sub
+        if memo_key is not None:
+            self._dets[memo_key] = total
+        return total
+
+    def _bordered(self, column: Vector, upto: int) -> Iterator[tuple[int, Decision]]:
+        basis = self.columns[:upto] + [column]
+        for i in self._row_order(column, upto):
+            rows = tuple(sorted(self.rows[:upto] + [i]))
+            minor = self._det(rows, basis, upto)
+            yield i, _decide_generic(self.kernel, minor)
+
+    def add(self, column: Vector) -> bool:
+        """Add a column; True when it is independent of the basis so far."""
+        certain = True
+        for i, d in self._bordered(column, len(self.columns)):
+            if not d.zero:
+                self._floats.append(self._numeric(column))
+                self.columns.append(column)
+                self.rows.append(i)
+                return True
+            certain = certain and d.certain
+        self.uncertain = self.uncertain or not certain
+        return False
+
+    def member(self, column: Vector, upto: int) -> tuple[bool, bool]:
+        """(column in span of the first ``upto`` basis columns, decided with proof)."""
+        certain = True
+        for _, d in self._bordered(column, upto):
+            if not d.zero:
+                return False, True
+            certain = certain and d.certain
+        return True, certain
+
+
+def _decide_generic(kernel: Kernel, e: sp.Expr) -> Decision:
+    """Is a minor identically zero? Balls at the kernel's samples prove "non-zero";
+    a minor without symbolic denominators that multiplies out to 0 is proved
+    zero (far cheaper than putting a large polynomial over a common
+    denominator); everything else goes to the kernel's two-stage test."""
+    if e == 0:
+        return Decision(True, True)
+    if _screened_nonzero(kernel, e):
+        return Decision(False, True)
+    if not _has_symbolic_denominator(e) and sp.expand(e) == 0:
+        return Decision(True, True)
+    t = kernel.is_zero(e)
+    return Decision(t.zero, t.certain)
+
+
+def _screened_nonzero(kernel: Kernel, e: sp.Expr) -> bool:
+    symbols = kernel.free_symbols()
+    try:
+        program = Program([e], symbols)
+    except UnsupportedExpression:
+        return False
+    for sample in kernel.samples():
+        b = program.run([arb(sample[s].numerator) / sample[s].denominator for s in symbols], 128)[0]
+        if b.is_finite() and not b.contains(0):
+            return True
+    return False
+
+
+def _has_symbolic_denominator(e: sp.Expr) -> bool:
+    return any(p.exp.is_negative and p.base.free_symbols for p in e.atoms(sp.Pow))
 
 
 def _normal(e: sp.Expr) -> sp.Expr:
@@ -227,11 +329,7 @@ def _labels(m: int, j: int, k: int) -> str:
 def analyse_distributions(kernel: Kernel) -> DistributionStructure:
     """Generic ranks and involutivity of D_0 .. D_(n-1) (G_k for several inputs)."""
     n, m = kernel.plant.n, kernel.plant.m
-    def decide(e: sp.Expr) -> Decision:
-        t = kernel.is_zero(e)
-        return Decision(t.zero, t.certain)
-
-    echelon = _Echelon(decide)
+    echelon = _BorderedMinors(kernel)
     fields: list[SpanningField] = []
     basis: list[int] = []
     ranks: list[int] = []
@@ -300,7 +398,7 @@ def _involutivity(
     kernel: Kernel,
     fields: Sequence[SpanningField],
     bases: Sequence[tuple[int, ...]],
-    echelon: _Echelon,
+    echelon: _BorderedMinors,
     m: int,
 ) -> tuple[list[bool], list[BracketFailure], list[str]]:
     """Bracket every pair of basis fields of D_k (k <= n-2) and test membership.
@@ -329,9 +427,8 @@ def _involutivity(
                 if pair not in brackets:
                     bracket = kernel.bracket(fields[pair[0]].vector, fields[pair[1]].vector)
                     brackets[pair] = tuple(_normal(e) for e in bracket)
-                remainder = [_normal(e) for e in echelon.reduce(brackets[pair], upto=rank)]
-                row, certain = echelon.remainder_nonzero(remainder, upto=rank)
-                if row is None:
+                inside, certain = echelon.member(brackets[pair], rank)
+                if inside:
                     member_from[pair] = k
                     if not certain:
                         uncertain.append(
@@ -366,7 +463,7 @@ def distributions_at(
             return Decision(True, False)
         return Decision(v.zero, True)
 
-    echelon = _Echelon(decide)
+    echelon = _PointEchelon(decide)
     ranks: list[int] = []
     basis: list[list[sp.Expr]] = []
     for k in range(n if m else 0):

@@ -427,3 +427,18 @@ def test_plant_without_inputs_misses_every_direction() -> None:
     _, pd = analyse(plant, {x1: 0, x2: 0})
     assert pd.controllability_rank == 0 and pd.missing_directions == ("d/dx1", "d/dx2")
     assert not pd.state_linearizable
+
+
+def test_dependent_input_fields_need_a_proved_zero_minor() -> None:
+    """g2 = x3 g1 written multiplied out (constructed): the 2-minors of [g1, g2]
+    vanish only after expansion, so G_0 has generic rank 1, proved (no
+    uncertainty). Cross-checked with sympy's Matrix.rank on the expanded
+    symbolic matrix."""
+    g1 = [1 + x2**2, x1, 0]
+    g2 = [x3 + x3 * x2**2, x1 * x3, 0]
+    plant = Plant.from_matrices("dependent", [x1, x2, x3], [u, v], [0, 0, x1], [g1, g2], [x1])
+    structure, pd = analyse(plant, {x1: 1, x2: 0, x3: 2})
+    expected = sp.Matrix([g1, g2]).T.applyfunc(sp.expand).rank(simplify=True)
+    assert structure.ranks[0] == expected == 1
+    assert structure.uncertain == ()
+    assert pd.ranks[0] == 1

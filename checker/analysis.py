@@ -9,8 +9,10 @@ its completion, so a stopped run can say what was and was not checked.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any, Callable
+
+import sympy as sp
 
 from .distributions import (
     DistributionStructure,
@@ -146,13 +148,38 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
         result.findings.extend(result.distributions.findings)
         for pa in result.points:
             if all(s in pa.equilibrium.values for s in plant.states):
-                pa.distributions = distributions_at(kernel, result.distributions, pa.name, pa.equilibrium.values)
+                at_kernel, at_structure = _feedback_shifted(kernel, result.distributions, pa.equilibrium)
+                pa.distributions = distributions_at(at_kernel, at_structure, pa.name, pa.equilibrium.values)
                 result.findings.extend(pa.distributions.findings)
     stage("distributions")
 
     result.findings.extend(check_claims(result))
     stage("claims")
     return result
+
+
+def _feedback_shifted(kernel: Kernel, structure: DistributionStructure,
+                      eq: Equilibrium) -> tuple[Kernel, DistributionStructure]:
+    """Kernel and structure for the ranks at an equilibrium held by inputs u0 != 0.
+
+    The conditions for state linearization are invariant under the feedback
+    u = u0 + v, but the ranks of [g, ad_f g, ...] *at a point* are those of the
+    drift that vanishes there: with f~ = f + g u0 they are the ranks of the
+    Kalman matrix of the linearisation, as a control engineer reads them. With
+    the bare drift a hover or a gravity-holding point would look like a false
+    singular point.
+    """
+    plant = kernel.plant
+    u0 = [eq.values.get(u, sp.Integer(0)) for u in plant.inputs]
+    if not eq.equilibrium or all(v == 0 for v in u0):
+        return kernel, structure
+    shifted_f = tuple(
+        plant.f[i] + sum((plant.g[j][i] * u0[j] for j in range(plant.m)), sp.Integer(0)) for i in range(plant.n)
+    )
+    shifted = Kernel(replace(plant, f=shifted_f), seed=kernel.seed)
+    # generic ranks of the shifted drift too, so that "rank drops at the point"
+    # compares like with like (only the conditions as a whole are feedback invariant)
+    return shifted, analyse_distributions(shifted)
 
 
 def analyse(model: Model, config: Any, stage: Stage | None = None) -> tuple[dict[str, Any], list[Finding]]:

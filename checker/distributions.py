@@ -39,7 +39,7 @@ from flint import arb
 
 from .balls import Program, UnsupportedExpression
 from .findings import Finding, Severity
-from .kernel import Kernel, Vector, matrix_at
+from .kernel import Kernel, Vector, has_symbolic_denominator, matrix_at
 from .linearizing_output import OutputSearch
 
 
@@ -268,7 +268,7 @@ def _decide_generic(kernel: Kernel, e: sp.Expr) -> Decision:
         return Decision(True, True)
     if _screened_nonzero(kernel, e):
         return Decision(False, True)
-    if not _has_symbolic_denominator(e) and sp.expand(e) == 0:
+    if not has_symbolic_denominator(e) and sp.expand(e) == 0:
         return Decision(True, True)
     t = kernel.is_zero(e)
     return Decision(t.zero, t.certain)
@@ -285,10 +285,6 @@ def _screened_nonzero(kernel: Kernel, e: sp.Expr) -> bool:
         if b.is_finite() and not b.contains(0):
             return True
     return False
-
-
-def _has_symbolic_denominator(e: sp.Expr) -> bool:
-    return any(p.exp.is_negative and p.base.free_symbols for p in e.atoms(sp.Pow))
 
 
 def _normal(e: sp.Expr) -> sp.Expr:

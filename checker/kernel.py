@@ -263,8 +263,22 @@ def screen_then_confirm(
     return confirm_zero(expr)
 
 
+def has_symbolic_denominator(e: sp.Expr) -> bool:
+    return any(p.exp.is_negative and p.base.free_symbols for p in e.atoms(sp.Pow))
+
+
 def confirm_zero(expr: sp.Expr) -> ZeroTest:
-    """Symbolic confirmation, bounded: exact for rational expressions, budgeted otherwise."""
+    """Symbolic confirmation, bounded: exact for rational expressions, budgeted otherwise.
+
+    Without a symbolic denominator, multiplying out decides polynomials at once
+    (and proves many trigonometric zeros); bringing a large polynomial over a
+    common denominator first would cost far more.
+    """
+    if not has_symbolic_denominator(expr):
+        if sp.expand(expr) == 0:
+            return ZeroTest(True, True, "expand")
+        if not _has_functions(expr):
+            return ZeroTest(False, True, "expand")
     if not _has_functions(expr):
         if sp.cancel(sp.together(expr)) == 0:
             return ZeroTest(True, True, "cancel")

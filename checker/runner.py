@@ -211,6 +211,9 @@ def analyse_all(
     if not datas:
         return []
     import checker.analysis  # noqa: F401  (imported before forking: workers start warm)
+    from .syntax import parser
+
+    parser()  # build the LALR tables once, not in every worker
 
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)

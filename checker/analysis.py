@@ -144,18 +144,72 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
     stage("zero dynamics")
 
     if plant.m >= 1:
-        result.distributions = analyse_distributions(kernel)
-        result.findings.extend(result.distributions.findings)
+        by_outputs = outputs_linearize(structure, plant.n, plant.m)
+        if by_outputs is not None:
+            result.distributions = by_outputs
         for pa in result.points:
-            if all(s in pa.equilibrium.values for s in plant.states):
-                at_kernel, at_structure = _feedback_shifted(kernel, result.distributions, pa.equilibrium)
-                pa.distributions = distributions_at(at_kernel, at_structure, pa.name, pa.equilibrium.values)
-                result.findings.extend(pa.distributions.findings)
+            if not all(s in pa.equilibrium.values for s in plant.states):
+                continue
+            if by_outputs is not None and pa.structure is not None and pa.structure.well_defined:
+                pa.distributions = _linearizable_at(pa.name, by_outputs, structure, a_output=kernel.h)
+                continue
+            if result.distributions is None or result.distributions is by_outputs:
+                full = analyse_distributions(kernel)
+                if result.distributions is None:
+                    result.distributions = full
+                    result.findings.extend(full.findings)
+            else:
+                full = result.distributions
+            at_kernel, at_structure = _feedback_shifted(kernel, full, pa.equilibrium)
+            pa.distributions = distributions_at(at_kernel, at_structure, pa.name, pa.equilibrium.values)
+            result.findings.extend(pa.distributions.findings)
+        if result.distributions is None:
+            result.distributions = analyse_distributions(kernel)
+            result.findings.extend(result.distributions.findings)
     stage("distributions")
 
     result.findings.extend(check_claims(result))
     stage("claims")
     return result
+
+
+BY_OUTPUTS_NOTE = (
+    "state linearizable here by the outputs: their vector relative degree sums to n and the "
+    "decoupling matrix is nonsingular at this point, so the outputs and their Lie derivatives are "
+    "linearizing coordinates (Isidori, Nonlinear Control Systems, 3rd ed., sec. 5.2)"
+)
+
+
+def outputs_linearize(structure: Structure, n: int, m: int) -> DistributionStructure | None:
+    """The distributions, known without brackets, when the declared outputs linearize the state.
+
+    With as many outputs as inputs, a vector relative degree (r_1..r_m) summing
+    to n and a decoupling matrix of full rank, the plant is feedback equivalent
+    (near every point where A is nonsingular) to m chains of integrators of
+    lengths r_i. There G_k has rank sum_i min(k+1, r_i), every G_k is
+    involutive and G_(n-1) has rank n. The expensive brackets are then skipped.
+    """
+    degrees = structure.vector_relative_degree
+    if len(degrees) != m or any(r is None for r in degrees) or structure.generic_rank != m:
+        return None
+    rs = [int(r) for r in degrees if r is not None]
+    if sum(rs) != n:
+        return None
+    ranks = tuple(sum(min(k + 1, r) for r in rs) for k in range(n))
+    return DistributionStructure(n=n, m=m, fields=(), ranks=ranks, bases=tuple(() for _ in ranks),
+                                 involutive_by_order=tuple(True for _ in range(max(n - 1, 0))), failures=(),
+                                 uncertain=(), findings=())
+
+
+def _linearizable_at(name: str, ds: DistributionStructure, structure: Structure,
+                     a_output: tuple[sp.Expr, ...]) -> PointDistributions:
+    single = ds.m == 1
+    return PointDistributions(
+        point=name, ranks=ds.ranks, generic_ranks=ds.ranks, singular_orders=(), controllability_rank=ds.n,
+        missing_directions=(), missing_vectors=(), involutive=True, state_linearizable=True, failure=None,
+        output_searched=single, linearizing_output=a_output[0] if single else None, notes=(BY_OUTPUTS_NOTE,),
+        findings=(),
+    )
 
 
 def _feedback_shifted(kernel: Kernel, structure: DistributionStructure,

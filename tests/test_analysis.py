@@ -58,3 +58,54 @@ def test_pvtol_controllability_rank_at_hover_is_the_kalman_rank() -> None:
 def test_report_is_plain_json() -> None:
     analysis, _ = _analyse("pvtol.plant")
     assert json.loads(json.dumps(analysis)) == analysis
+
+
+def _plain_sympy_ranks(f: sp.Matrix, gs: list[sp.Matrix], X: list[sp.Symbol], at: dict) -> list[int]:
+    """Ranks of G_k = span{ad_f^j g_i, j <= k} at a point, brackets by Matrix.jacobian
+    (sympy done another way, common practice)."""
+    Xm = sp.Matrix(X)
+    columns, current, ranks = [], list(gs), []
+    for _ in range(len(X)):
+        columns += current
+        ranks.append(sp.Matrix.hstack(*columns).subs(at).rank())
+        current = [c.jacobian(Xm) * f - f.jacobian(Xm) * c for c in current]
+    return ranks
+
+
+def test_ranks_known_from_the_outputs_match_brackets() -> None:
+    """When the outputs' vector relative degree sums to n with a nonsingular decoupling
+    matrix, the plant is feedback equivalent to chains of integrators (Isidori, 3rd ed.,
+    sec. 5.2, from memory), so rank G_k = sum_i min(k+1, r_i); checked against brackets."""
+    from checker.analysis import outputs_linearize
+    from checker.kernel import Kernel
+    from checker.plant import Plant
+    from checker.structure import analyse_structure
+
+    # flexible joint (Spong 1987; Khalil 3rd ed. sec. 13.2, from memory), invented numbers
+    q1, w1, q2, w2, u = sp.symbols("q1 w1 q2 w2 u")
+    f = sp.Matrix([w1, -10 * sp.sin(q1) - 4 * (q1 - q2), w2, 2 * (q1 - q2)])
+    g = sp.Matrix([0, 0, 0, 3])
+    plant = Plant.from_matrices("joint", [q1, w1, q2, w2], [u], list(f), [list(g)], [q1])
+    ds = outputs_linearize(analyse_structure(Kernel(plant)), 4, 1)
+    at = {q1: sp.Rational(1, 3), w1: sp.Rational(-1, 5), q2: sp.Rational(2, 7), w2: sp.Rational(1, 11)}
+    assert ds is not None and list(ds.ranks) == _plain_sympy_ranks(f, [g], [q1, w1, q2, w2], at) == [1, 2, 3, 4]
+
+    # two inputs acting on two double integrators with a coupling: r = (2, 2)
+    x1, v1, x2, v2, a, b = sp.symbols("x1 v1 x2 v2 a b")
+    f2 = sp.Matrix([v1, -x1 + x2**2, v2, -sp.sin(x2)])
+    g1, g2 = sp.Matrix([0, 1, 0, 0]), sp.Matrix([0, x1, 0, 2])
+    plant2 = Plant.from_matrices("pair", [x1, v1, x2, v2], [a, b], list(f2), [list(g1), list(g2)], [x1, x2])
+    ds2 = outputs_linearize(analyse_structure(Kernel(plant2)), 4, 2)
+    at2 = {x1: sp.Rational(1, 2), v1: sp.Rational(1, 3), x2: sp.Rational(-1, 4), v2: sp.Rational(2, 5)}
+    assert ds2 is not None and list(ds2.ranks) == _plain_sympy_ranks(f2, [g1, g2], [x1, v1, x2, v2], at2) == [2, 4, 4, 4]
+
+
+def test_no_shortcut_when_the_outputs_leave_internal_dynamics() -> None:
+    from checker.analysis import outputs_linearize
+    from checker.kernel import Kernel
+    from checker.plant import Plant
+    from checker.structure import analyse_structure
+
+    x1, x2, u = sp.symbols("x1 x2 u")
+    plant = Plant.from_matrices("tail", [x1, x2], [u], [x1 + x2, 0], [[0, 1]], [x2])
+    assert outputs_linearize(analyse_structure(Kernel(plant)), 2, 1) is None

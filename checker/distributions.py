@@ -327,12 +327,17 @@ def analyse_distributions(kernel: Kernel) -> DistributionStructure:
     ranks: list[int] = []
     bases: list[tuple[int, ...]] = []
     uncertain: list[str] = []
+    involutivity = _Involutivity(kernel, echelon, m)
+    involutive: list[bool] = []
+    failures: list[BracketFailure] = []
     for k in range(n if m else 0):
         if len(basis) == n:
             # D_(k-1) is already the whole tangent space, so every later D_k is too:
             # the higher brackets (where expressions swell most) are never built.
             ranks.append(n)
             bases.append(tuple(basis))
+            if k <= n - 2:
+                involutive.append(True)
             continue
         for spanner in _block(kernel, m, k):
             fields.append(spanner)
@@ -343,11 +348,19 @@ def analyse_distributions(kernel: Kernel) -> DistributionStructure:
             echelon.uncertain = False
         ranks.append(len(basis))
         bases.append(tuple(basis))
+        if k <= n - 2:
+            failure = involutivity.check(k, fields, tuple(basis))
+            involutive.append(failure is None)
+            if failure is not None:
+                # the plant is not state linearizable: the higher distributions (the
+                # costliest brackets) would not change the verdict; at equilibria the
+                # controllability rank comes from the linearisation instead
+                failures.append(failure)
+                break
     if m == 0:  # no inputs: every distribution is {0}
         ranks, bases = [0] * n, [()] * n
-
-    involutive, failures, more = _involutivity(kernel, fields, bases, echelon, m)
-    uncertain.extend(more)
+        involutive = [True] * max(n - 1, 0)
+    uncertain.extend(involutivity.uncertain)
     findings: list[Finding] = []
     if failures:
         first = failures[0]
@@ -386,55 +399,44 @@ def analyse_distributions(kernel: Kernel) -> DistributionStructure:
     return structure
 
 
-def _involutivity(
-    kernel: Kernel,
-    fields: Sequence[SpanningField],
-    bases: Sequence[tuple[int, ...]],
-    echelon: _BorderedMinors,
-    m: int,
-) -> tuple[list[bool], list[BracketFailure], list[str]]:
-    """Bracket every pair of basis fields of D_k (k <= n-2) and test membership.
+class _Involutivity:
+    """Brackets every pair of basis fields of D_k and tests membership, order by order.
 
     Pairs of a basis suffice: brackets with a dependent spanner are
-    combinations of these and of the spanners themselves.
+    combinations of these and of the spanners themselves. A pair found inside
+    D_k is inside every later D_k too, so it is never tested twice.
     """
-    n = kernel.plant.n
-    member_from: dict[tuple[int, int], int] = {}  # pair -> first k whose D_k contains the bracket
-    involutive: list[bool] = []
-    failures: list[BracketFailure] = []
-    uncertain: list[str] = []
-    brackets: dict[tuple[int, int], Vector] = {}
-    for k in range(max(n - 1, 0)):
-        basis = bases[k]
+
+    def __init__(self, kernel: Kernel, echelon: _BorderedMinors, m: int):
+        self.kernel = kernel
+        self.echelon = echelon
+        self.m = m
+        self.member_from: dict[tuple[int, int], int] = {}
+        self.uncertain: list[str] = []
+
+    def check(self, k: int, fields: Sequence[SpanningField], basis: tuple[int, ...]) -> BracketFailure | None:
+        n = self.kernel.plant.n
         rank = len(basis)
-        ok = True
         for a_pos in range(rank):
             for b_pos in range(a_pos + 1, rank):
                 pair = (basis[a_pos], basis[b_pos])
-                if pair in member_from:
+                if pair in self.member_from:
                     continue
                 if rank == n:
-                    member_from[pair] = k
+                    self.member_from[pair] = k
                     continue
-                if pair not in brackets:
-                    bracket = kernel.bracket(fields[pair[0]].vector, fields[pair[1]].vector)
-                    brackets[pair] = tuple(_normal(e) for e in bracket)
-                inside, certain = echelon.member(brackets[pair], rank)
+                bracket = self.kernel.bracket(fields[pair[0]].vector, fields[pair[1]].vector)
+                inside, certain = self.echelon.member(tuple(_normal(e) for e in bracket), rank)
                 if inside:
-                    member_from[pair] = k
+                    self.member_from[pair] = k
                     if not certain:
-                        uncertain.append(
+                        self.uncertain.append(
                             f"[{fields[pair[0]].label}, {fields[pair[1]].label}] taken to lie in "
-                            f"{distribution_name(m, k)} without symbolic proof"
+                            f"{distribution_name(self.m, k)} without symbolic proof"
                         )
                     continue
-                failures.append(BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain))
-                ok = False
-                break
-            if not ok:
-                break
-        involutive.append(ok)
-    return involutive, failures, uncertain
+                return BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain)
+        return None
 
 
 # -- at a point ------------------------------------------------------------------------
@@ -458,7 +460,11 @@ def distributions_at(
     echelon = _PointEchelon(decide)
     ranks: list[int] = []
     basis: list[list[sp.Expr]] = []
+    known = len(structure.ranks)
+    kalman = _kalman_columns(kernel, values, decide) if known < n else None
     for k in range(n if m else 0):
+        if k >= known and kalman is not None:
+            break
         if len(basis) == n:
             ranks.append(n)
             continue
@@ -472,8 +478,17 @@ def distributions_at(
                 basis.append(row)
         ranks.append(len(basis))
     ranks = ranks or [0] * n
-    singular = tuple(k for k in range(n) if ranks[k] < structure.ranks[k])
-    control_rank = ranks[-1] if ranks else 0
+    singular = tuple(k for k in range(min(known, len(ranks))) if ranks[k] < structure.ranks[k])
+    control_rank = ranks[-1] if len(ranks) == n else 0
+    if len(ranks) < n and kalman is not None:
+        # at an equilibrium of the drift, ad_f^k g(x0) = (-A)^k g(x0): the rank of
+        # G_(n-1) there is the rank of the Kalman matrix of the linearisation
+        echelon = _PointEchelon(decide)
+        basis = []
+        for column in kalman:
+            if len(basis) < n and echelon.add(column):
+                basis.append(column)
+        control_rank = len(basis)
     vectors = _orthogonal_complement(kernel, basis) if control_rank < n else []
     missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
     notes: list[str] = list(structure.uncertain)
@@ -487,7 +502,7 @@ def distributions_at(
     singular_low = [k for k in singular if k <= n - 2]
     involutive = structure.involutive and not singular_low
     linearizable = control_rank == n and not singular and structure.involutive
-    findings = _point_findings(structure, name, ranks, singular, missing)
+    findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
 
     searched = m == 1 and linearizable and structure._outputs is not None
     output: sp.Expr | None = None
@@ -516,20 +531,39 @@ def distributions_at(
     )
 
 
+def _kalman_columns(
+    kernel: Kernel, values: dict[sp.Symbol, sp.Expr], decide: Callable[[sp.Expr], Decision]
+) -> list[list[sp.Expr]] | None:
+    """[B, AB, ..., A^(n-1) B] at the point, or None when the point is not an
+    equilibrium of the drift (then the identity with the brackets does not hold)."""
+    plant = kernel.plant
+    f0 = matrix_at(kernel, [plant.f], values)
+    if any(not decide(e).zero for e in f0):
+        return None
+    A = matrix_at(kernel, [list(kernel.jacobian(plant.f).row(i)) for i in range(plant.n)], values)
+    columns = [list(matrix_at(kernel, [g], values).row(0)) for g in plant.g]
+    out: list[list[sp.Expr]] = []
+    for _ in range(plant.n):
+        out.extend(columns)
+        columns = [list(A * sp.Matrix(c)) for c in columns]
+    return out
+
+
 def _point_findings(
     structure: DistributionStructure,
     name: str,
     ranks: Sequence[int],
+    control_rank: int,
     singular: Sequence[int],
     missing: Sequence[str],
 ) -> list[Finding]:
     n = structure.n
     out: list[Finding] = []
     top = n - 1
-    if n and ranks[top] < n:
+    if n and control_rank < n:
         message = (
             f"at {name} the controllability distribution {structure.spanners(top)} has rank "
-            f"{ranks[top]} < {n}; missing directions: {'; '.join(missing) or 'undetermined'}"
+            f"{control_rank} < {n}; missing directions: {'; '.join(missing) or 'undetermined'}"
         )
         if top in singular:
             message += (

@@ -102,6 +102,7 @@ def _distributions(a: Analysis) -> dict[str, Any] | None:
     if ds is None:
         return None
     return {
+        "n": ds.n,
         "spans": [ds.spanners(k) for k in range(len(ds.ranks))],
         "generic_ranks": list(ds.ranks),
         "involutive": list(ds.involutive_by_order),
@@ -243,6 +244,9 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
             console.print(f"  {span}: generic rank {dist['generic_ranks'][k]}  {inv}")
         for f in dist["failures"]:
             console.print(f"  {f['distribution']}: the bracket {f['bracket']} leaves it")
+        if len(dist["generic_ranks"]) < dist["n"]:
+            console.print("  (higher distributions not examined: a lower one already fails; the "
+                          "controllability rank at equilibria comes from the linearisation)")
 
     for p in d["points"]:
         _section(console, f"Point {p['name']}")

@@ -32,6 +32,8 @@ Vector = tuple[sp.Expr, ...]
 
 #: Expressions larger than this (in operations) are not simplified symbolically.
 SIMPLIFY_OPS_LIMIT = 250
+#: Expressions larger than this are not factored for envelope proofs.
+FACTOR_OPS_LIMIT = 4000
 #: Expressions larger than this are not brought over a common denominator.
 COMPACT_OPS_LIMIT = 600
 #: Number of random points used to screen an expression.
@@ -74,6 +76,7 @@ class Kernel:
         self._zero: dict[sp.Expr, ZeroTest] = {}
         self._jacobians: dict[Vector, sp.Matrix] = {}
         self._compact: dict[sp.Expr, sp.Expr] = {}
+        self._poly: "_PolynomialTowers | None | bool" = False
         self.seed = seed if seed is not None else _seed_for(plant)
         self._samples: list[dict[sp.Symbol, Fraction]] | None = None
         self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
@@ -91,6 +94,14 @@ class Kernel:
         return total
 
     def gradient(self, expr: sp.Expr) -> Vector:
+        poly = self._polynomial()
+        if poly is not None and expr.free_symbols <= set(self.free_symbols()):
+            try:
+                p = poly.ring(expr)  # type: ignore[operator]
+            except Exception:  # e.g. a rational function: the general path
+                p = None
+            if p is not None:
+                return tuple(p.diff(x).as_expr() for x in poly.states)
         return tuple(sp.diff(expr, xi) for xi in self.x)
 
     def jacobian(self, field: Vector) -> sp.Matrix:
@@ -121,8 +132,11 @@ class Kernel:
         """L_f^k h_i."""
         key = (i, k)
         if key not in self._lf:
+            poly = self._polynomial()
             if k == 0:
                 self._lf[key] = self.h[i]
+            elif poly is not None:
+                self._lf[key] = poly.lf(i, k).as_expr()
             else:
                 self._lf[key] = self.lie(self.lf(i, k - 1), self.f)
         return self._lf[key]
@@ -131,18 +145,33 @@ class Kernel:
         """L_gj L_f^k h_i."""
         key = (j, i, k)
         if key not in self._lglf:
-            self._lglf[key] = self.lie(self.lf(i, k), self.g[j])
+            poly = self._polynomial()
+            if poly is not None:
+                self._lglf[key] = poly.lie(poly.lf(i, k), poly.g[j]).as_expr()
+            else:
+                self._lglf[key] = self.lie(self.lf(i, k), self.g[j])
         return self._lglf[key]
 
     def ad(self, j: int, k: int) -> Vector:
         """ad_f^k g_j."""
         key = (j, k)
         if key not in self._ad:
+            poly = self._polynomial()
             if k == 0:
                 self._ad[key] = tuple(self.g[j])
+            elif poly is not None:
+                self._ad[key] = tuple(e.as_expr() for e in poly.ad(j, k))
             else:
                 self._ad[key] = self.bracket(self.f, self.ad(j, k - 1))
         return self._ad[key]
+
+    def _polynomial(self) -> "_PolynomialTowers | None":
+        """Exact sparse-polynomial arithmetic when f, g and h are polynomials with
+        rational coefficients: the towers then cost a fraction of tree-based
+        differentiation (no assumption queries, no re-walking shared subtrees)."""
+        if self._poly is False:
+            self._poly = _PolynomialTowers.build(self)
+        return self._poly  # type: ignore[return-value]
 
     def compact(self, expr: sp.Expr) -> sp.Expr:
         """``expr`` over a common denominator with common factors cancelled, when
@@ -162,6 +191,21 @@ class Kernel:
             cached = candidate if sp.count_ops(candidate) < sp.count_ops(expr) else expr
             self._compact[expr] = cached
         return cached
+
+    def factors(self, expr: sp.Expr) -> list[tuple[sp.Expr, int]]:
+        """[(constant, 1), (factor, multiplicity), ...] of a moderate polynomial,
+        or [] when it does not factor, has a symbolic denominator or is too large."""
+        if (expr.is_Atom or _has_functions(expr) or has_symbolic_denominator(expr)
+                or sp.count_ops(expr) > FACTOR_OPS_LIMIT):
+            return []
+        try:
+            constant, pairs = sp.factor_list(expr)
+        except (sp.PolynomialError, ValueError, TypeError):
+            return []
+        parts = [(base, int(e)) for base, e in pairs if base.free_symbols]
+        if len(parts) < 2:
+            return []
+        return [(constant, 1), *parts]
 
     # -- sampling --------------------------------------------------------------
     def free_symbols(self) -> tuple[sp.Symbol, ...]:
@@ -242,6 +286,61 @@ class Kernel:
         if is_zero is None:
             return PointValue(_safe_ball(exact), True)  # within 2^-1024 of zero
         return PointValue(_safe_ball(exact), bool(is_zero))
+
+
+class _PolynomialTowers:
+    """L_f^k h_i, L_g L_f^k h_i and ad_f^k g_j in a sparse polynomial ring over QQ."""
+
+    def __init__(self, ring: object, states: list[object], f: list[object], g: list[list[object]],
+                 h: list[object]):
+        self.ring = ring
+        self.states = states
+        self.f = f
+        self.g = g
+        self.h = h
+        self._lf: dict[tuple[int, int], object] = {}
+        self._ad: dict[tuple[int, int], list[object]] = {}
+
+    @classmethod
+    def build(cls, kernel: "Kernel") -> "_PolynomialTowers | None":
+        from sympy.polys.domains import QQ
+        from sympy.polys.rings import ring
+
+        symbols = list(kernel.free_symbols())
+        if not symbols:
+            return None
+        R, *gens = ring(symbols, QQ)
+        by_symbol = dict(zip(symbols, gens))
+        try:
+            f = [R(e) for e in kernel.f]
+            g = [[R(e) for e in col] for col in kernel.g]
+            h = [R(e) for e in kernel.h]
+        except Exception:  # not a polynomial with rational coefficients: the general path
+            return None
+        return cls(R, [by_symbol[x] for x in kernel.x], f, g, h)
+
+    def lie(self, phi: object, field: list[object]) -> object:
+        total = self.ring.zero  # type: ignore[attr-defined]
+        for x, X in zip(self.states, field):
+            if X:
+                total += phi.diff(x) * X  # type: ignore[attr-defined]
+        return total
+
+    def lf(self, i: int, k: int) -> object:
+        key = (i, k)
+        if key not in self._lf:
+            self._lf[key] = self.h[i] if k == 0 else self.lie(self.lf(i, k - 1), self.f)
+        return self._lf[key]
+
+    def ad(self, j: int, k: int) -> list[object]:
+        key = (j, k)
+        if key not in self._ad:
+            if k == 0:
+                self._ad[key] = list(self.g[j])
+            else:
+                Y = self.ad(j, k - 1)
+                self._ad[key] = [self.lie(Yi, self.f) - self.lie(Fi, Y) for Yi, Fi in zip(Y, self.f)]
+        return self._ad[key]
 
 
 def screen_then_confirm(

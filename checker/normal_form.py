@@ -41,6 +41,14 @@ class NormalForm:
     note: str = ""
 
 
+def _xi_name(expr: sp.Expr, output: str, k: int) -> str:
+    """The coordinate as written when short, else by its name (L_f^k y)."""
+    text = show_expr(expr, limit=10**6)
+    if len(text) <= 40:
+        return text
+    return output if k == 0 else (f"L_f {output}" if k == 1 else f"L_f^{k} {output}")
+
+
 def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Symbol, sp.Expr]) -> NormalForm:
     """Normal-form coordinates at ``eq_values`` for the given relative degrees."""
     plant = kernel.plant
@@ -49,10 +57,11 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     point.update({s: v for s, v in eq_values.items() if s in plant.states or s in plant.params})
     decide = number_decider(kernel)
     xi = [kernel.lf(i, k) for i in range(plant.p) for k in range(degrees[i])]
+    names = [_xi_name(kernel.lf(i, k), plant.outputs[i], k) for i in range(plant.p) for k in range(degrees[i])]
     rows = [_gradient_at(kernel, e, point) for e in xi]
     rank = exact_rank(rows, decide) if rows else 0
     if rank < len(xi):
-        return NormalForm(tuple(map(str, xi)), (), rank, False, False,
+        return NormalForm(tuple(names), (), rank, False, False,
                           note="the output derivatives are dependent at the point")
     chosen: list[sp.Expr] = []
     for phi in _candidates(kernel, prefer_input_free=True):
@@ -73,7 +82,7 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     if rank == n:
         dynamics, note = _symbolic_zero_dynamics(kernel, degrees, xi, eta, point, decide)
     return NormalForm(
-        tuple(map(show_expr, xi)), tuple(map(show_expr, eta)), rank, rank == n, input_free, dynamics, note
+        tuple(names), tuple(map(show_expr, eta)), rank, rank == n, input_free, dynamics, note
     )
 
 

@@ -449,7 +449,7 @@ def certify_envelope(
         centre = {str(s): float((lo + hi) / 2) for s, (lo, hi) in box.items()}
         return Envelope(False, None, centre, tuple(findings), clock.boxes, clock.seconds, "generic structure")
     exprs, certified = _regularity_expressions(kernel, structure)
-    verdict = clock.spent(certify_nonzero(exprs, box, clock.budget()))
+    verdict = _certify_by_factors(kernel, exprs, box, clock)
     if verdict.regular is False:
         assert verdict.witness is not None
         findings.append(Finding(
@@ -480,6 +480,34 @@ def certify_envelope(
     regular = verdict.regular if not undecided_model else None
     margin = verdict.margin if regular else None
     return Envelope(regular, margin, None, tuple(findings), clock.boxes, clock.seconds, certified)
+
+
+def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbol, Any],
+                        clock: _Clock) -> EnvelopeVerdict:
+    """A single expression that factors is non-zero exactly when every factor is;
+    each factor usually involves few variables and has far less dependency, so it
+    is certified on its own (the margin is the product of the factors' margins)."""
+    factors = kernel.factors(exprs[0]) if len(exprs) == 1 else []
+    if len(factors) < 2:
+        return clock.spent(certify_nonzero(exprs, box, clock.budget()))
+    (constant, _), parts = factors[0], factors[1:]
+    margin = abs(float(constant))
+    undecided: list[EnvelopeVerdict] = []
+    boxes = 0
+    for part, multiplicity in parts:
+        verdict = clock.spent(certify_nonzero([part], box, clock.budget()))
+        boxes += verdict.boxes_examined
+        if verdict.regular is False:
+            return verdict
+        if verdict.regular is None:
+            undecided.append(verdict)
+        elif verdict.margin is not None:
+            margin *= verdict.margin ** multiplicity
+    if undecided:
+        first = undecided[0]
+        return EnvelopeVerdict(None, None, None, first.undecided, boxes,
+                               sum(v.undecided_count for v in undecided))
+    return EnvelopeVerdict(True, margin, None, [], boxes)
 
 
 def _violation(kind: str) -> str:

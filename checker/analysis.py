@@ -25,7 +25,7 @@ from .equilibria import Equilibrium, equilibrium_json, solve_point
 from .findings import Finding, Severity
 from .kernel import Kernel
 from .model import ClaimDecl, Model
-from .normal_form import NormalForm, normal_form_at, normal_form_json
+from .normal_form import NormalForm, normal_form_at, normal_form_json, xi_name
 from .structure import (
     Envelope,
     PointStructure,
@@ -139,7 +139,9 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
         ints = [int(d) for d in degrees if d is not None]
         pa.zero_dynamics = zero_dynamics_at(kernel, ints, pa.equilibrium.values, pa.name)
         result.findings.extend(pa.zero_dynamics.findings)
-        if pa.zero_dynamics.verdict not in ("undefined",) and sum(ints) <= plant.n:
+        if pa.zero_dynamics.verdict == "not_applicable" and sum(ints) == plant.n:
+            pa.normal_form = _full_normal_form(kernel, ints)
+        elif pa.zero_dynamics.verdict != "undefined" and sum(ints) < plant.n:
             pa.normal_form = normal_form_at(kernel, ints, pa.equilibrium.values)
     stage("zero dynamics")
 
@@ -171,6 +173,17 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
     result.findings.extend(check_claims(result))
     stage("claims")
     return result
+
+
+def _full_normal_form(kernel: Kernel, degrees: list[int]) -> NormalForm:
+    """r = n at a point where the relative degree is well defined: the n functions
+    L_f^k h_i are coordinates there, because their differentials are independent
+    (the rank lemma: Isidori, Nonlinear Control Systems, 3rd ed., Lemmas 4.1.1 and
+    5.1.1), so no Jacobian has to be formed."""
+    plant = kernel.plant
+    xi = tuple(xi_name(kernel.lf(i, k), plant.outputs[i], k) for i in range(plant.p) for k in range(degrees[i]))
+    return NormalForm(xi, (), plant.n, True, True, None,
+                      note="total relative degree n: no internal coordinates, no zero dynamics")
 
 
 BY_OUTPUTS_NOTE = (

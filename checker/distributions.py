@@ -180,6 +180,7 @@ class _BorderedMinors:
         self._dets: dict[tuple[tuple[int, ...], int], sp.Expr] = {}
         self._sample: dict[sp.Symbol, Fraction] | None = None
         self._floats: list[list[float]] = []
+        self._ball_cache: dict[int, tuple[Vector, list[arb] | None]] = {}
         samples = kernel.samples()
         if samples:
             self._sample = samples[0]
@@ -229,10 +230,37 @@ class _BorderedMinors:
             self._dets[memo_key] = total
         return total
 
+    def _balls(self, column: Vector) -> list[arb] | None:
+        """The column at the sample point as rigorous balls (cached per column)."""
+        key = id(column)
+        if key not in self._ball_cache:
+            value: list[arb] | None = None
+            if self._sample is not None:
+                symbols = self.kernel.free_symbols()
+                try:
+                    value = Program(list(column), symbols).run(
+                        [_exact_ball(self._sample[s]) for s in symbols], BALL_PREC)
+                except UnsupportedExpression:
+                    value = None
+            self._ball_cache[key] = (column, value)
+        return self._ball_cache[key][1]
+
+    def _nonzero_at_sample(self, rows: tuple[int, ...], basis: list[Vector]) -> bool:
+        """True when the minor is *proven* non-zero by its value at the sample point
+        (ball Gaussian elimination): then no symbolic determinant is needed."""
+        columns = [self._balls(c) for c in basis]
+        if any(c is None for c in columns):
+            return False
+        M = [[columns[j][i] for j in range(len(basis))] for i in rows]  # type: ignore[index]
+        return _ball_det_nonzero(M)
+
     def _bordered(self, column: Vector, upto: int) -> Iterator[tuple[int, Decision]]:
         basis = self.columns[:upto] + [column]
         for i in self._row_order(column, upto):
             rows = tuple(sorted(self.rows[:upto] + [i]))
+            if self._nonzero_at_sample(rows, basis):
+                yield i, Decision(False, True)
+                continue
             minor = self._det(rows, basis, upto)
             yield i, _decide_generic(self.kernel, minor)
 
@@ -257,6 +285,45 @@ class _BorderedMinors:
                 return False, True
             certain = certain and d.certain
         return True, certain
+
+
+BALL_PREC = 128
+
+
+def _exact_ball(value: Fraction) -> arb:
+    import flint
+
+    old = flint.ctx.prec
+    flint.ctx.prec = BALL_PREC
+    try:
+        return arb(value.numerator) / value.denominator
+    finally:
+        flint.ctx.prec = old
+
+
+def _ball_det_nonzero(M: list[list[arb]]) -> bool:
+    """Is the determinant of a square ball matrix certainly non-zero? Gaussian
+    elimination choosing, in each column, a pivot that certainly is not zero;
+    without one the answer is "not proven" (False)."""
+    import flint
+
+    old = flint.ctx.prec
+    flint.ctx.prec = BALL_PREC
+    try:
+        A = [list(row) for row in M]
+        k = len(A)
+        for c in range(k):
+            candidates = [r for r in range(c, k) if A[r][c].is_finite() and not A[r][c].contains(0)]
+            if not candidates:
+                return False
+            p = max(candidates, key=lambda r: abs(float(A[r][c].mid())))
+            A[c], A[p] = A[p], A[c]
+            for r in range(c + 1, k):  # every row: a ball near 0 may still be non-zero
+                factor = A[r][c] / A[c][c]
+                A[r] = [a - factor * b for a, b in zip(A[r], A[c])]
+        return True
+    finally:
+        flint.ctx.prec = old
 
 
 def _decide_generic(kernel: Kernel, e: sp.Expr) -> Decision:

@@ -41,7 +41,7 @@ class NormalForm:
     note: str = ""
 
 
-def _xi_name(expr: sp.Expr, output: str, k: int) -> str:
+def xi_name(expr: sp.Expr, output: str, k: int) -> str:
     """The coordinate as written when short, else by its name (L_f^k y)."""
     text = show_expr(expr, limit=10**6)
     if len(text) <= 40:
@@ -57,7 +57,7 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     point.update({s: v for s, v in eq_values.items() if s in plant.states or s in plant.params})
     decide = number_decider(kernel)
     xi = [kernel.lf(i, k) for i in range(plant.p) for k in range(degrees[i])]
-    names = [_xi_name(kernel.lf(i, k), plant.outputs[i], k) for i in range(plant.p) for k in range(degrees[i])]
+    names = [xi_name(kernel.lf(i, k), plant.outputs[i], k) for i in range(plant.p) for k in range(degrees[i])]
     rows = [_gradient_at(kernel, e, point) for e in xi]
     rank = exact_rank(rows, decide) if rows else 0
     if rank < len(xi):

@@ -444,3 +444,23 @@ def test_dependent_input_fields_need_a_proved_zero_minor() -> None:
     assert structure.ranks[0] == expected == 1
     assert structure.uncertain == ()
     assert pd.ranks[0] == 1
+
+
+def test_ball_determinant_proves_only_what_is_certain() -> None:
+    """The sample-point shortcut of the bordered minors: a ball determinant is
+    'non-zero' only when Gaussian elimination keeps certain pivots (numpy's det
+    as the outside reference for the values)."""
+    import numpy as np
+    from flint import arb
+
+    from checker.distributions import _ball_det_nonzero
+
+    rng = np.random.default_rng(3)
+    for _ in range(20):
+        M = rng.integers(-3, 4, size=(4, 4))
+        balls = [[arb(int(v)) for v in row] for row in M]
+        assert _ball_det_nonzero(balls) == (round(np.linalg.det(M)) != 0)
+    singular = [[arb(1), arb(2)], [arb(2), arb(4)]]
+    assert not _ball_det_nonzero(singular)
+    blurred = [[arb(1), arb(0, 1e-30)], [arb(0, 1e-30), arb(0, 1e-30)]]  # may be singular: not proven
+    assert not _ball_det_nonzero(blurred)

@@ -12,6 +12,7 @@ sub-expressions, then run many times; nothing is ever turned into Python code.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from fractions import Fraction
 from typing import Callable
 
 import flint
@@ -245,6 +246,16 @@ def ball(lo: sp.Expr | float | int, hi: sp.Expr | float | int | None = None, pre
             return a
         b = to_arb(hi)
         return a.union(b)
+    finally:
+        flint.ctx.prec = old
+
+
+def rational_ball(value: Fraction, prec: int) -> arb:
+    """A rigorous ball around a rational, computed at ``prec`` bits."""
+    old = flint.ctx.prec
+    flint.ctx.prec = prec
+    try:
+        return arb(value.numerator) / value.denominator
     finally:
         flint.ctx.prec = old
 

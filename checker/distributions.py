@@ -37,7 +37,7 @@ import numpy as np
 import sympy as sp
 from flint import arb
 
-from .balls import Program, UnsupportedExpression
+from .balls import Program, UnsupportedExpression, rational_ball
 from .findings import Finding, Severity
 from .kernel import Kernel, Vector, has_symbolic_denominator, matrix_at
 from .linearizing_output import OutputSearch
@@ -239,7 +239,7 @@ class _BorderedMinors:
                 symbols = self.kernel.free_symbols()
                 try:
                     value = Program(list(column), symbols).run(
-                        [_exact_ball(self._sample[s]) for s in symbols], BALL_PREC)
+                        [rational_ball(self._sample[s], BALL_PREC) for s in symbols], BALL_PREC)
                 except UnsupportedExpression:
                     value = None
             self._ball_cache[key] = (column, value)
@@ -288,17 +288,6 @@ class _BorderedMinors:
 
 
 BALL_PREC = 128
-
-
-def _exact_ball(value: Fraction) -> arb:
-    import flint
-
-    old = flint.ctx.prec
-    flint.ctx.prec = BALL_PREC
-    try:
-        return arb(value.numerator) / value.denominator
-    finally:
-        flint.ctx.prec = old
 
 
 def _ball_det_nonzero(M: list[list[arb]]) -> bool:

@@ -25,7 +25,7 @@ from typing import Sequence
 import sympy as sp
 from flint import arb
 
-from .balls import Program, UnsupportedExpression, to_arb
+from .balls import Program, UnsupportedExpression, rational_ball, to_arb
 from .plant import Plant
 
 Vector = tuple[sp.Expr, ...]
@@ -354,7 +354,7 @@ def screen_then_confirm(
     if prog is not None:
         for point in samples:
             for prec in (128, 512):
-                b = prog.run([_ball_of(point[s], prec) for s in symbols], prec=prec)[0]
+                b = prog.run([rational_ball(point[s], prec) for s in symbols], prec=prec)[0]
                 if b.is_finite() and not b.contains(0):
                     return ZeroTest(False, True, "screened")
                 if b.is_finite() and b.rad() < 2.0 ** (-prec // 2):
@@ -413,7 +413,7 @@ def random_samples(
             # keep the denominator small and the value off trivial points
             point[s] = value.limit_denominator(4093) + Fraction(1, 7919)
         if guard is not None:
-            vals = guard.run([_ball_of(point[s], 128) for s in symbols])
+            vals = guard.run([rational_ball(point[s], 128) for s in symbols])
             if not all(v.is_finite() for v in vals):
                 continue
         out.append(point)
@@ -425,18 +425,6 @@ def _safe_ball(e: sp.Expr) -> arb:
         return to_arb(e)
     except UnsupportedExpression:
         return arb("nan")
-
-
-def _ball_of(value: Fraction, prec: int) -> arb:
-    """A rigorous ball around a rational, computed at ``prec`` bits."""
-    import flint
-
-    old = flint.ctx.prec
-    flint.ctx.prec = prec
-    try:
-        return arb(value.numerator) / value.denominator
-    finally:
-        flint.ctx.prec = old
 
 
 def _has_functions(expr: sp.Expr) -> bool:

@@ -19,6 +19,8 @@ from pathlib import Path
 
 import pytest
 
+from support import Run
+
 FIXTURES = Path(__file__).parent / "fixtures" / "rules"
 
 # Copied fixtures (invented plants), two of them one folder down so that discovery
@@ -46,13 +48,6 @@ rate x1 = x2 + (sin(x1)^2 + cos(x1)^2 - 1)*({_BIG})*u
 rate x2 = u
 output y = x1
 """
-
-
-@dataclass
-class Run:
-    code: int
-    stdout: str
-    stderr: str
 
 
 def plantlint(cwd: Path, *args: str) -> Run:

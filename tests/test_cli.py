@@ -19,11 +19,11 @@ import shutil
 import subprocess
 import sys
 from collections.abc import Callable
-from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
 
 import pytest
+
+from support import Run
 
 from checker import __version__
 from checker.catalogue import load_catalogue
@@ -35,17 +35,6 @@ UNSTABLE = FIXTURES / "zero-dynamics-unstable.plant"  # one error
 CRITICAL = FIXTURES / "zero-dynamics-critical.plant"  # one warning
 CLEAN = FIXTURES / "zero-dynamics-unstable.ok.plant"  # nothing
 ANSI = re.compile(r"\x1b\[")
-
-
-@dataclass
-class Run:
-    code: int
-    stdout: str
-    stderr: str
-
-    def json(self) -> dict[str, Any]:
-        data: dict[str, Any] = json.loads(self.stdout)
-        return data
 
 
 CLI = Callable[..., Run]  # cli(cwd, *args, cached=True) -> Run

@@ -29,6 +29,8 @@ from typing import Any
 import numpy as np
 import pytest
 
+from support import Run, git, git_env
+
 # Linear two-state plant: z' = a*z + x, x' = u, y = x. With y held at zero the
 # internal state obeys z' = a*z, so the zero dynamics are stable for a < 0,
 # unstable for a > 0 and critical for a = 0.
@@ -70,37 +72,6 @@ CHANGED: dict[str, str] = {
 }
 
 PASSING = ["shaker.plant", "fixme.plant", "renamed.plant", "drift.plant", "steady.plant"]
-
-
-def git_env(home: Path) -> dict[str, str]:
-    """An environment that keeps git away from the user's own configuration."""
-    cfg = home / "gitconfig"
-    if not cfg.exists():
-        cfg.write_text("", encoding="utf-8")
-    env = dict(os.environ)
-    env.update({
-        "GIT_CONFIG_GLOBAL": str(cfg), "GIT_CONFIG_NOSYSTEM": "1",
-        "GIT_AUTHOR_NAME": "Test Author", "GIT_AUTHOR_EMAIL": "author@example.invalid",
-        "GIT_COMMITTER_NAME": "Test Author", "GIT_COMMITTER_EMAIL": "author@example.invalid",
-        "GIT_CEILING_DIRECTORIES": str(home.parent), "NO_COLOR": "1",
-    })
-    return env
-
-
-def git(repo: Path, env: dict[str, str], *args: str) -> str:
-    out = subprocess.run(["git", *args], cwd=repo, env=env, capture_output=True, text=True, check=True)
-    return out.stdout
-
-
-@dataclass
-class Run:
-    code: int
-    stdout: str
-    stderr: str
-
-    def json(self) -> dict[str, Any]:
-        data: dict[str, Any] = json.loads(self.stdout)
-        return data
 
 
 def plantlint(cwd: Path, env: dict[str, str], *args: str) -> Run:

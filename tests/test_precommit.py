@@ -9,7 +9,6 @@ user's own git and pre-commit settings (``GIT_CONFIG_GLOBAL``, ``PRE_COMMIT_HOME
 
 from __future__ import annotations
 
-import os
 import shlex
 import shutil
 import subprocess
@@ -17,6 +16,8 @@ import sys
 from pathlib import Path
 
 import pytest
+
+from support import git, git_env
 
 PROJECT = Path(__file__).resolve().parent.parent
 FIXTURES = PROJECT / "tests" / "fixtures" / "rules"
@@ -47,27 +48,11 @@ CONFIG = """repos:
 
 
 def environment(home: Path) -> dict[str, str]:
-    cfg = home / "gitconfig"
-    cfg.write_text("", encoding="utf-8")
-    env = dict(os.environ)
-    env.update({
-        "GIT_CONFIG_GLOBAL": str(cfg), "GIT_CONFIG_NOSYSTEM": "1",
-        "GIT_AUTHOR_NAME": "Test Author", "GIT_AUTHOR_EMAIL": "author@example.invalid",
-        "GIT_COMMITTER_NAME": "Test Author", "GIT_COMMITTER_EMAIL": "author@example.invalid",
-        "GIT_CEILING_DIRECTORIES": str(home), "PRE_COMMIT_HOME": str(home / "pre-commit-home"),
-        "NO_COLOR": "1", "PRE_COMMIT_COLOR": "never",
-    })
-    return env
+    return git_env(home, ceiling=home, PRE_COMMIT_HOME=str(home / "pre-commit-home"), PRE_COMMIT_COLOR="never")
 
 
 def run(cmd: list[str], cwd: Path, env: dict[str, str]) -> subprocess.CompletedProcess[str]:
     return subprocess.run(cmd, cwd=cwd, env=env, capture_output=True, text=True, timeout=300)
-
-
-def git(repo: Path, env: dict[str, str], *args: str) -> str:
-    out = run(["git", *args], repo, env)
-    assert out.returncode == 0, out.stderr
-    return out.stdout
 
 
 def test_hook_refuses_a_broken_model_and_lets_a_clean_change_through(tmp_path: Path) -> None:

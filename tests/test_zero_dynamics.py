@@ -4,7 +4,6 @@ example beside each test), and closed forms derived by hand where named so."""
 
 from __future__ import annotations
 
-import random
 
 import numpy as np
 import pytest

@@ -371,3 +371,20 @@ def test_long_lines_are_cut_around_the_span() -> None:
     assert _underline_under(out, 1) == "a100"
     quoted = next(text for text in out.splitlines() if "line 1: " in text)
     assert quoted.split("line 1: ")[1].startswith("...") and len(quoted) < 160
+
+
+def test_text_says_when_the_structure_was_not_analysed() -> None:
+    import io
+
+    from checker.findings import FileReport, Finding, Report, Severity, Span
+    from checker.formats import get_formatter
+
+    blocked = FileReport("m.plant", "m", [Finding("unknown-name", Severity.ERROR, "unknown name 'J'",
+                                                   Span(3, 5, 3, 6), anchor="name J")], None, "a\nb\nc   J\n")
+    analysed = FileReport("n.plant", "n", [Finding("zero-dynamics-unstable", Severity.ERROR, "unstable",
+                                                    Span(1, 1, 1, 2), anchor="point p")], {"states": []}, "x\n")
+    out = io.StringIO()
+    get_formatter("text").render(Report([blocked, analysed], "0"), out, color=False)
+    text = out.getvalue()
+    assert text.count("was not analysed") == 1
+    assert text.index("was not analysed") < text.index("n.plant")

@@ -171,6 +171,9 @@ class TextFormatter:
             line.append(f"{finding.rule}: {one_line(finding.message)}", style=_DIM)
             console.print(line, soft_wrap=True)
         console.print(Text(f"  {_counts_phrase(_file_counts(file_report, report))}", style=_DIM), soft_wrap=True)
+        if file_report.analysis is None and any(f.severity.value == "error" and not f.waived for f in current):
+            console.print(Text("  the structure was not analysed: fix the errors above first", style=_DIM),
+                          soft_wrap=True)
         console.print()
 
     def _finding(self, console: Console, file_report: FileReport, finding: Finding, report: Report) -> None:

@@ -25,7 +25,7 @@ from typing import Any
 from . import __version__
 from .findings import FileReport, Finding, Report, Severity
 from .pipeline import RawResult, finish
-from .runner import Source, UsageError, discover, raw_results, read_source
+from .runner import Source, UsageError, _display, discover, raw_results, read_source, selected_in_folder
 
 
 def _git(args: list[str], cwd: Path) -> subprocess.CompletedProcess[bytes]:
@@ -112,7 +112,49 @@ def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity],
         report = finish(src.display, raw, _text(src.data), config, defaults)
         old_raw = next(old_iter) if old_src is not None else None
         files.append(compare(report, old_raw, config, defaults))
+    files.extend(_deleted(commit, top, paths, config, defaults, targets, moved, jobs=jobs, use_cache=use_cache,
+                          cache_dir=cache_dir))
     return Report(files=files, tool_version=__version__, fail_on=config.fail_on, since=ref)
+
+
+def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: dict[str, Severity],
+             targets: list[Any], moved: dict[str, str], **run: Any) -> list[FileReport]:
+    """Models under the checked folders at REF that are gone now (and were not
+    renamed): every finding they had is fixed, and the report says they were deleted."""
+    current = {t.path.resolve() for t in targets}
+    renamed_from = set(moved.values())
+    cwd = Path.cwd()
+    gone: list[tuple[str, Path]] = []
+    for raw in paths:
+        folder = Path(raw)
+        if not folder.is_dir():
+            continue
+        try:
+            rel_dir = folder.resolve().relative_to(top.resolve()).as_posix()
+        except ValueError:
+            continue
+        listed = _git(["ls-tree", "-r", "-z", "--name-only", commit, "--", rel_dir if rel_dir != "." else "."], top)
+        if listed.returncode != 0:
+            continue
+        for name in sorted(n for n in listed.stdout.decode("utf-8", "replace").split("\0") if n.endswith(".plant")):
+            path = top / name
+            if (path.resolve() in current or name in renamed_from or path.exists()
+                    or not selected_in_folder(path, folder, config.root, config.include, config.exclude)):
+                continue
+            if name not in {g for g, _ in gone}:
+                gone.append((name, path))
+    if not gone:
+        return []
+    sources = [Source(name, old_version(commit, name, top)) for name, _ in gone]
+    raws = raw_results([s for s in sources if s.data is not None], config, show_progress=False, **run)
+    reports = []
+    for (name, path), raw in zip([g for g, s in zip(gone, sources) if s.data is not None], raws):
+        old = finish(_display(path, cwd), raw, None, config, defaults)
+        old.findings = [replace(f, baseline="fixed", span=None) for f in old.sorted_findings()]
+        old.analysis = None
+        old.structure_changes = [{"what": "model", "before": "present", "after": "deleted"}]
+        reports.append(old)
+    return reports
 
 
 def _text(data: bytes | None) -> str | None:

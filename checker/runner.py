@@ -60,8 +60,7 @@ def discover(paths: list[str], root: Path, include: tuple[str, ...], exclude: tu
             raise UsageError(f"{raw}: no such file or folder")
         if p.is_dir():
             every = [q for q in sorted(p.rglob("*.plant")) if q.is_file() and not _hidden(q, p)]
-            hits = [q for q in every if _matches(q, root, include) or _matches(q, p, include)]
-            hits = [q for q in hits if not _excluded(q, root, exclude)]
+            hits = [q for q in every if selected_in_folder(q, p, root, include, exclude)]
             if not hits:
                 filtered = f" ({len(every)} left out by include/exclude)" if every else ""
                 raise UsageError(f"{raw}: no .plant files here{filtered}")
@@ -70,6 +69,13 @@ def discover(paths: list[str], root: Path, include: tuple[str, ...], exclude: tu
         elif not _excluded(p, root, exclude):
             found.setdefault(p.resolve(), Target(p, _display(p, cwd)))
     return list(found.values())
+
+
+def selected_in_folder(q: Path, folder: Path, root: Path, include: tuple[str, ...], exclude: tuple[str, ...]) -> bool:
+    """Would a model at ``q`` (it need not exist) be checked when ``folder`` is?"""
+    if _hidden(q, folder):
+        return False
+    return (_matches(q, root, include) or _matches(q, folder, include)) and not _excluded(q, root, exclude)
 
 
 def _hidden(q: Path, base: Path) -> bool:

@@ -64,7 +64,7 @@ def _since_report() -> Report:
     demo.findings = [replace(f, baseline=s) for f, s in zip(demo.findings, states)]
     demo.findings.append(Finding("missing-rate", Severity.ERROR, "state z has no rate", Span(9, 1, 9, 8),
                                  anchor="state z", baseline="fixed"))
-    demo.structure_changes = [{"output": "y", "relative_degree": {"before": 2, "after": 1}}]
+    demo.structure_changes = [{"what": "relative degree of y", "before": 2, "after": 1}]
     return report
 
 
@@ -107,9 +107,10 @@ def test_concise_lines_exactly() -> None:
 
 def test_concise_under_since_marks_baseline_and_drops_fixed() -> None:
     lines = _render("concise", _since_report()).splitlines()
-    assert len(lines) == 4
+    assert len(lines) == 5
     assert lines[1] == "models/demo.plant:2:7: warning: param k is unused [unused-name] (introduced)"
     assert lines[3].endswith("[non-smooth] (introduced)")
+    assert lines[4] == "models/demo.plant: note: structure changed since main: relative degree of y: 2 -> 1"
     assert not any("missing-rate" in line for line in lines)
 
 
@@ -164,7 +165,7 @@ def test_json_under_since() -> None:
     demo = data["files"][0]
     assert data["since"] == "main"
     assert [f["baseline"] for f in demo["findings"]] == ["known", "introduced", "known", "introduced", "fixed"]
-    assert demo["structure_changes"] == [{"output": "y", "relative_degree": {"before": 2, "after": 1}}]
+    assert demo["structure_changes"] == [{"what": "relative degree of y", "before": 2, "after": 1}]
     assert data["files"][1]["structure_changes"] == []
     assert data["summary"]["introduced"] == 2 and data["summary"]["fixed"] == 1
 

@@ -318,3 +318,26 @@ def test_outside_a_git_repository_is_a_usage_error(tmp_path: Path) -> None:
     assert run.code == 2
     assert len(run.stderr.strip().splitlines()) == 1 and "Traceback" not in run.stderr
     assert "git" in run.stderr
+
+
+def test_model_deleted_since_ref_reports_its_findings_as_fixed(tmp_path: Path) -> None:
+    """A model removed since REF (not renamed) is listed: its findings are fixed and the
+    structure change says it was deleted; the run passes."""
+    repo = tmp_path / "repo"
+    (repo / "models").mkdir(parents=True)
+    env = git_env(tmp_path)
+    git(repo, env, "init", "-q")
+    (repo / "models" / "keep.plant").write_text(model("keep", STABLE), encoding="utf-8")
+    (repo / "models" / "gone.plant").write_text(model("gone", UNSTABLE), encoding="utf-8")
+    git(repo, env, "add", "-A")
+    git(repo, env, "commit", "-q", "-m", "two models")
+    git(repo, env, "rm", "-q", "models/gone.plant")
+    run = plantlint(repo, env, "check", "--since", "HEAD", "--format", "json", "--no-cache", "models")
+    assert run.code == 0, run.stderr
+    files = {f["path"]: f for f in run.json()["files"]}
+    gone = files["models/gone.plant"]
+    assert rules_by_state(gone) == [("zero-dynamics-unstable", "fixed")]
+    assert gone["structure_changes"] == [{"what": "model", "before": "present", "after": "deleted"}]
+    assert run.json()["summary"]["fixed"] == 1
+    concise = plantlint(repo, env, "check", "--since", "HEAD", "--format", "concise", "--no-cache", "models")
+    assert "models/gone.plant: note: structure changed since HEAD: model: present -> deleted" in concise.stdout

@@ -74,3 +74,11 @@ def baseline_counts(report: Report) -> dict[str, int]:
             if state is not None:
                 counts[state] += 1
     return counts
+
+
+def change_text(change: dict[str, object]) -> str:
+    """One structural change under --since, e.g. 'point rest: zero dynamics: minimum_phase -> critical'."""
+    def shown(value: object) -> str:
+        return "none" if value is None else str(value).lower() if isinstance(value, bool) else str(value)
+
+    return f"{one_line(str(change.get('what', '')))}: {shown(change.get('before'))} -> {shown(change.get('after'))}"

@@ -10,7 +10,7 @@ from __future__ import annotations
 from typing import TextIO
 
 from ..findings import Finding, Report
-from .base import baseline_of, findings_in_order, one_line
+from .base import baseline_of, change_text, findings_in_order, one_line
 
 
 def finding_line(path: str, finding: Finding, baseline: str | None = None) -> str:
@@ -41,3 +41,6 @@ class ConciseFormatter:
                 if baseline == "fixed":
                     continue
                 stream.write(finding_line(file_report.path, finding, baseline) + "\n")
+            for change in file_report.structure_changes:
+                stream.write(f"{one_line(file_report.path)}: note: structure changed since {report.since}: "
+                             f"{change_text(change)}\n")

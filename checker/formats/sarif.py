@@ -126,6 +126,9 @@ def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str,
     run: dict[str, Any] = {"tool": {"driver": driver}, "results": results, "columnKind": "unicodeCodePoints"}
     if report.since is not None:
         run["properties"] = {"since": report.since}
+        changes = {f.path: [dict(c) for c in f.structure_changes] for f in report.files if f.structure_changes}
+        if changes:
+            run["properties"]["structureChanges"] = changes
     return {"$schema": SARIF_SCHEMA_URI, "version": SARIF_VERSION, "runs": [run]}
 
 

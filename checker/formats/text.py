@@ -20,7 +20,7 @@ from rich.text import Text
 
 from ..catalogue import SEVERITY_STYLE
 from ..findings import FileReport, Finding, Report, Span
-from .base import baseline_counts, baseline_of, findings_in_order, one_line
+from .base import baseline_counts, baseline_of, change_text, findings_in_order, one_line
 
 DEFAULT_WIDTH = 100
 TAB_WIDTH = 4
@@ -157,7 +157,8 @@ class TextFormatter:
             heading.append(f"  plant {one_line(file_report.plant)}", style="bold")
         current = [f for f in findings if baseline_of(f, report) != "fixed"]
         fixed = [f for f in findings if baseline_of(f, report) == "fixed"]
-        if not current and not fixed:
+        changes = list(file_report.structure_changes)
+        if not current and not fixed and not changes:
             heading.append("  no findings", style="green")
             console.print(heading, soft_wrap=True)
             console.print()
@@ -169,6 +170,10 @@ class TextFormatter:
         for finding in fixed:
             line = Text(f"  {'fixed':<{INDENT - 2}}", style="green")
             line.append(f"{finding.rule}: {one_line(finding.message)}", style=_DIM)
+            console.print(line, soft_wrap=True)
+        for change in changes:
+            line = Text(f"  {'changed':<{INDENT - 2}}", style="yellow")
+            line.append(f"{change_text(change)}  (since {report.since})")
             console.print(line, soft_wrap=True)
         console.print(Text(f"  {_counts_phrase(_file_counts(file_report, report))}", style=_DIM), soft_wrap=True)
         if file_report.analysis is None and any(f.severity.value == "error" and not f.waived for f in current):

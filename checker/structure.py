@@ -157,7 +157,7 @@ def analyse_structure(kernel: Kernel) -> Structure:
         findings.append(Finding(
             "decoupling-singular", Severity.ERROR,
             f"the decoupling matrix is singular everywhere: rank {rank} for {plant.p} outputs"
-            + (f" ({plant.p} outputs but only {plant.m} inputs)" if plant.p > plant.m else "")
+            + (f" ({plant.p} outputs but only {plant.m} input{'s' if plant.m != 1 else ''})" if plant.p > plant.m else "")
             + ("" if certain else " (rank decided numerically; the vanishing minors were not confirmed symbolically)"),
             anchor="plant",
             hint=_extension_hint(names, zero_cols),

@@ -109,3 +109,10 @@ def test_no_shortcut_when_the_outputs_leave_internal_dynamics() -> None:
     x1, x2, u = sp.symbols("x1 x2 u")
     plant = Plant.from_matrices("tail", [x1, x2], [u], [x1 + x2, 0], [[0, 1]], [x2])
     assert outputs_linearize(analyse_structure(Kernel(plant)), 2, 1) is None
+
+
+def test_output_claims_on_a_plant_without_outputs_say_why() -> None:
+    text = b"plant b\nstate x in -1 .. 1\ninput u\nrate x = -x + u\npoint p: x = 0\nexpect minimum_phase\nexpect regular\n"
+    raw = analyse_bytes(text, Config())
+    failed = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert len(failed) == 2 and all("declares no output" in f.message for f in failed)

@@ -56,7 +56,7 @@ def explain_data(a: Analysis, point: str | None, findings: list[Finding]) -> dic
     entries = [row["expr"] for row in table]
     A = st.decoupling
     matrix = list(A) if A is not None else []
-    b = [e for e in st.b if e is not None]
+    b = [k.lf(i, o.relative_degree) for i, o in enumerate(st.outputs) if o.relative_degree is not None]
     defs, shown = compact_many(entries + matrix + b)
     for row, text in zip(table, shown):
         row["expr"] = text

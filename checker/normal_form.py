@@ -43,6 +43,8 @@ class NormalForm:
 
 def xi_name(expr: sp.Expr, output: str, k: int) -> str:
     """The coordinate as written when short, else by its name (L_f^k y)."""
+    if len(expr.args) > 6:  # cheap test first: a long sum or product is never shown
+        return output if k == 0 else (f"L_f {output}" if k == 1 else f"L_f^{k} {output}")
     text = show_expr(expr, limit=10**6)
     if len(text) <= 40:
         return text

@@ -44,7 +44,6 @@ class OutputStructure:
     name: str
     relative_degree: int | None
     row: tuple[sp.Expr, ...]  # L_gj L_f^(r-1) h for every input j; empty when r is None
-    b: sp.Expr | None  # L_f^r h
     unconfirmed: tuple[str, ...] = ()  # L_gj L_f^k h taken as zero without symbolic proof
 
 
@@ -67,10 +66,6 @@ class Structure:
     @property
     def vector_relative_degree(self) -> tuple[int | None, ...]:
         return tuple(o.relative_degree for o in self.outputs)
-
-    @property
-    def b(self) -> tuple[sp.Expr | None, ...]:
-        return tuple(o.b for o in self.outputs)
 
 
 @dataclass(frozen=True)
@@ -172,9 +167,9 @@ def _output_structure(kernel: Kernel, i: int) -> OutputStructure:
         row = tuple(kernel.lglf(j, i, k - 1) for j in range(plant.m))
         tests = [kernel.is_zero(e) for e in row]
         if any(not t.zero for t in tests):
-            return OutputStructure(plant.outputs[i], k, row, kernel.lf(i, k), tuple(unconfirmed))
+            return OutputStructure(plant.outputs[i], k, row, tuple(unconfirmed))
         unconfirmed += [lie_name(kernel, j, i, k - 1) for j, t in enumerate(tests) if not t.certain]
-    return OutputStructure(plant.outputs[i], None, (), None, tuple(unconfirmed))
+    return OutputStructure(plant.outputs[i], None, (), tuple(unconfirmed))
 
 
 def _generic_rank(kernel: Kernel, A: sp.Matrix) -> tuple[int, bool]:

@@ -48,17 +48,7 @@ def number_decider(kernel: Kernel) -> ZeroDecider:
     """``decide(c)`` -> True/False for "c is exactly zero", None when undefined."""
 
     def decide(value: sp.Expr) -> bool | None:
-        value = as_expr(value)
-        if value == 0:
-            return True
-        if value.is_Rational:
-            return False
-        if value.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
-            return None
-        try:
-            return kernel.value_at(value, {}).zero
-        except UnsupportedExpression:
-            return None
+        return kernel.constant_is_zero(as_expr(value))
 
     return decide
 

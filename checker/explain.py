@@ -19,7 +19,7 @@ from .analysis import Analysis, PointAnalysis, run_analysis
 from .catalogue import load_catalogue
 from .config import Config, ConfigError, load_config
 from .findings import Finding
-from .pipeline import BLOCKING, _located
+from .pipeline import BLOCKING, locate, read_model
 from .policy import apply_policy
 from .render import show_expr, show_number
 from .structure import lie_name
@@ -149,20 +149,12 @@ def _point(a: Analysis, pa: PointAnalysis) -> dict[str, Any]:
 # -- rendering ----------------------------------------------------------------------
 
 def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color: bool) -> int:
-    from .model import build_model
-    from .syntax import decode, parse_text
-
     try:
         config = load_config(path.parent)
     except ConfigError as exc:
         print(f"plantlint: error: {exc}", file=stream)
         return 2
-    data = path.read_bytes()
-    text, problem = decode(data)
-    findings: list[Finding] = [problem] if problem else []
-    model = None
-    if text is not None:
-        model, findings = build_model(parse_text(text), str(path))
+    model, findings = read_model(path.read_bytes(), str(path))
     blocking = [f for f in findings if f.rule in BLOCKING]
     if model is None or blocking:
         for f in blocking or findings:
@@ -175,7 +167,7 @@ def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color:
         return 2
     analysis = run_analysis(model, config if isinstance(config, Config) else Config())
     catalogue = load_catalogue()
-    located = [_located(f, model.spans) for f in findings + analysis.findings]
+    located = [locate(f, model.spans) for f in findings + analysis.findings]
     shown = apply_policy(located, model.waivers, {r.id: r.severity for r in catalogue}, config.severity)
     report = explain_data(analysis, point, shown)
     if fmt == "json":

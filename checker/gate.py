@@ -25,7 +25,16 @@ from typing import Any
 from . import __version__
 from .findings import FileReport, Finding, Report, Severity
 from .pipeline import RawResult, finish
-from .runner import Source, UsageError, _display, discover, raw_results, read_source, selected_in_folder
+from .runner import (
+    Source,
+    UsageError,
+    _display,
+    discover,
+    raw_results,
+    read_source,
+    selected_in_folder,
+    source_text,
+)
 
 
 def _git(args: list[str], cwd: Path) -> subprocess.CompletedProcess[bytes]:
@@ -109,7 +118,7 @@ def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity],
     now_raws, old_iter = raws[: len(now_sources)], iter(raws[len(now_sources):])
     files = []
     for src, raw, old_src in zip(now_sources, now_raws, old_sources):
-        report = finish(src.display, raw, _text(src.data), config, defaults)
+        report = finish(src.display, raw, source_text(src.data), config, defaults)
         old_raw = next(old_iter) if old_src is not None else None
         files.append(compare(report, old_raw, config, defaults))
     files.extend(_deleted(commit, top, paths, config, defaults, targets, moved, jobs=jobs, use_cache=use_cache,
@@ -155,10 +164,6 @@ def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: di
         old.structure_changes = [{"what": "model", "before": "present", "after": "deleted"}]
         reports.append(old)
     return reports
-
-
-def _text(data: bytes | None) -> str | None:
-    return data.decode("utf-8", errors="replace").lstrip("\ufeff") if data is not None else None
 
 
 def compare(report: FileReport, old_raw: RawResult | None, config: Any, defaults: dict[str, Severity]) -> FileReport:

@@ -253,6 +253,20 @@ class Kernel:
     def _screen_then_confirm(self, expr: sp.Expr) -> ZeroTest:
         return screen_then_confirm(expr, self.free_symbols(), self.samples())
 
+    def constant_is_zero(self, value: sp.Expr) -> bool | None:
+        """Is an exact constant (sin(1/3), pi/2, ...) exactly zero? None when it is
+        undefined there (a division by zero) or cannot be evaluated."""
+        if value == 0:
+            return True
+        if value.is_Rational:
+            return False
+        if value.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
+            return None
+        try:
+            return self.value_at(value, {}).zero
+        except UnsupportedExpression:
+            return None
+
     def value_at(self, expr: sp.Expr, point: dict[sp.Symbol, sp.Expr]) -> PointValue:
         """The value of ``expr`` at an exact point, rigorously.
 
@@ -446,10 +460,6 @@ def _float_range(bounds: tuple[sp.Expr, sp.Expr] | None) -> tuple[Fraction, Frac
 def _seed_for(plant: Plant) -> int:
     digest = hashlib.sha256(repr((plant.name, plant.f, plant.g, plant.h)).encode()).digest()
     return int.from_bytes(digest[:8], "big")
-
-
-def exact_point(values: dict[sp.Symbol, sp.Expr]) -> dict[sp.Symbol, sp.Expr]:
-    return dict(values)
 
 
 def matrix_at(kernel: Kernel, rows: Sequence[Sequence[sp.Expr]], point: dict[sp.Symbol, sp.Expr]) -> sp.Matrix:

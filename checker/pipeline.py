@@ -57,16 +57,20 @@ class RawResult:
         )
 
 
-def analyse_bytes(data: bytes, config: Any, progress: Callable[[str], None] | None = None) -> RawResult:
-    """Parse, build and analyse one model held in ``data``. Never raises on bad input."""
+def read_model(data: bytes, path: str = "") -> tuple[Any, list[Finding]]:
+    """Bytes to (Model or None, model findings). Never raises on bad input."""
     from .model import build_model
     from .syntax import decode, parse_text
 
     text, problem = decode(data)
     if problem is not None or text is None:
-        return RawResult(findings=[problem] if problem else [])
-    parsed = parse_text(text)
-    model, findings = build_model(parsed, "")
+        return None, [problem] if problem else []
+    return build_model(parse_text(text), path)
+
+
+def analyse_bytes(data: bytes, config: Any, progress: Callable[[str], None] | None = None) -> RawResult:
+    """Parse, build and analyse one model held in ``data``. Never raises on bad input."""
+    model, findings = read_model(data)
     result = RawResult(findings=list(findings))
     if model is None:
         return result
@@ -83,11 +87,11 @@ def analyse_bytes(data: bytes, config: Any, progress: Callable[[str], None] | No
         analysis, more = analyse(model, config, stage)
         result.analysis = analysis
         result.findings.extend(more)
-    result.findings = [_located(f, model.spans) for f in result.findings]
+    result.findings = [locate(f, model.spans) for f in result.findings]
     return result
 
 
-def _located(f: Finding, spans: Any) -> Finding:
+def locate(f: Finding, spans: Any) -> Finding:
     """Give analysis findings the span of what their anchor names."""
     if f.span is not None:
         return f

@@ -339,7 +339,7 @@ def check_targets(
     sources = [read_source(t) for t in targets]
     raws = raw_results(sources, config, jobs=jobs, use_cache=use_cache, cache_dir=cache_dir,
                        show_progress=show_progress)
-    return [finish(src.display, raw, _text(src.data), config, defaults) for src, raw in zip(sources, raws)]
+    return [finish(src.display, raw, source_text(src.data), config, defaults) for src, raw in zip(sources, raws)]
 
 
 def raw_results(
@@ -389,7 +389,8 @@ def cut_short(raw: RawResult) -> bool:
     return any(f.rule == "analysis-budget" and f.anchor == BUDGET_ANCHOR for f in raw.findings)
 
 
-def _text(data: bytes | None) -> str | None:
+def source_text(data: bytes | None) -> str | None:
+    """The model's text for showing spans (never written back)."""
     if data is None or len(data) > MAX_BYTES:
         return None
     return data.decode("utf-8", errors="replace").lstrip("\ufeff")

@@ -239,15 +239,6 @@ def laplace_det(M: sp.Matrix) -> sp.Expr:
 
 
 # -- exact rank at a point -------------------------------------------------------------------
-def _constant_is_zero(kernel: Kernel, e: sp.Expr) -> bool | None:
-    if e == 0:
-        return True
-    try:
-        return kernel.value_at(e, {}).zero
-    except UnsupportedExpression:
-        return None
-
-
 def exact_rank(kernel: Kernel, M: sp.Matrix) -> tuple[int, bool]:
     """Rank of a matrix of exact constants, by division-free elimination whose
     pivots are decided rigorously. Returns (rank, certain); an undecidable
@@ -257,7 +248,7 @@ def exact_rank(kernel: Kernel, M: sp.Matrix) -> tuple[int, bool]:
     for col in range(M.cols):
         pivot, undecided = None, False
         for i in range(rank, len(rows)):
-            z = _constant_is_zero(kernel, rows[i][col])
+            z = kernel.constant_is_zero(rows[i][col])
             if z is None:
                 undecided = True
             elif not z:
@@ -317,7 +308,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
     if all_defined and not full_rank and (structure.generic_rank or 0) >= plant.p:
         if certain:
             zero_cols = tuple(
-                j for j in range(plant.m) if all(_constant_is_zero(kernel, A0[i, j]) for i in range(A0.rows))
+                j for j in range(plant.m) if all(kernel.constant_is_zero(A0[i, j]) for i in range(A0.rows))
             )
             findings.append(Finding(
                 "decoupling-singular", Severity.ERROR,

@@ -27,10 +27,9 @@ from checker.config import Config
 from checker.findings import Finding, Report, Severity
 from checker.formats import get_formatter
 from checker.formats.json_report import report_schema
-from checker.model import build_model
 from checker.pipeline import RawResult, finish
 from checker.runner import analyse_all
-from checker.syntax import decode, parse_text, parser
+from checker.syntax import parser
 
 REPO = Path(__file__).resolve().parent.parent
 SARIF_SCHEMA = REPO.parent / "shared" / "standards" / "sarif-schema-2.1.0.json"
@@ -72,16 +71,13 @@ JSON_VALIDATOR, SARIF_VALIDATOR = _validators()
 
 def read_model(data: bytes) -> RawResult:
     """Decode, parse and build the model (the analysis is left out: see the batch test)."""
-    text, problem = decode(data)
-    if problem is not None or text is None:
-        return RawResult(findings=[problem] if problem else [])
-    model, findings = build_model(parse_text(text), "")
+    from checker.pipeline import locate, read_model as read
+
+    model, findings = read(data)
     raw = RawResult(plant=model.name if model else None, findings=list(findings))
     if model is not None:
         raw.waivers = list(model.waivers)
-        from checker.pipeline import _located
-
-        raw.findings = [_located(f, model.spans) for f in raw.findings]
+        raw.findings = [locate(f, model.spans) for f in raw.findings]
     return raw
 
 

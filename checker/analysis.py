@@ -147,27 +147,25 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
 
     if plant.m >= 1:
         by_outputs = outputs_linearize(structure, plant.n, plant.m)
-        if by_outputs is not None:
-            result.distributions = by_outputs
+        generic: list[DistributionStructure] = []  # the bracket analysis, built at most once
+        shifted: dict[tuple[sp.Expr, ...], tuple[Kernel, DistributionStructure]] = {}
+
+        def brackets() -> DistributionStructure:
+            if not generic:
+                generic.append(analyse_distributions(kernel))
+                result.findings.extend(generic[0].findings)
+            return generic[0]
+
         for pa in result.points:
             if not all(s in pa.equilibrium.values for s in plant.states):
                 continue
             if by_outputs is not None and pa.structure is not None and pa.structure.well_defined:
                 pa.distributions = _linearizable_at(pa.name, by_outputs, structure, a_output=kernel.h)
                 continue
-            if result.distributions is None or result.distributions is by_outputs:
-                full = analyse_distributions(kernel)
-                if result.distributions is None:
-                    result.distributions = full
-                    result.findings.extend(full.findings)
-            else:
-                full = result.distributions
-            at_kernel, at_structure = _feedback_shifted(kernel, full, pa.equilibrium)
+            at_kernel, at_structure = _feedback_shifted(kernel, brackets(), pa.equilibrium, shifted)
             pa.distributions = distributions_at(at_kernel, at_structure, pa.name, pa.equilibrium.values)
             result.findings.extend(pa.distributions.findings)
-        if result.distributions is None:
-            result.distributions = analyse_distributions(kernel)
-            result.findings.extend(result.distributions.findings)
+        result.distributions = by_outputs if by_outputs is not None else brackets()
     stage("distributions")
 
     result.findings.extend(check_claims(result))
@@ -225,8 +223,9 @@ def _linearizable_at(name: str, ds: DistributionStructure, structure: Structure,
     )
 
 
-def _feedback_shifted(kernel: Kernel, structure: DistributionStructure,
-                      eq: Equilibrium) -> tuple[Kernel, DistributionStructure]:
+def _feedback_shifted(kernel: Kernel, structure: DistributionStructure, eq: Equilibrium,
+                      memo: dict[tuple[sp.Expr, ...], tuple[Kernel, DistributionStructure]]
+                      ) -> tuple[Kernel, DistributionStructure]:
     """Kernel and structure for the ranks at an equilibrium held by inputs u0 != 0.
 
     The conditions for state linearization are invariant under the feedback
@@ -240,13 +239,17 @@ def _feedback_shifted(kernel: Kernel, structure: DistributionStructure,
     u0 = [eq.values.get(u, sp.Integer(0)) for u in plant.inputs]
     if not eq.equilibrium or all(v == 0 for v in u0):
         return kernel, structure
+    key = tuple(u0)
+    if key in memo:  # points held by the same inputs share the shifted drift
+        return memo[key]
     shifted_f = tuple(
         plant.f[i] + sum((plant.g[j][i] * u0[j] for j in range(plant.m)), sp.Integer(0)) for i in range(plant.n)
     )
     shifted = Kernel(replace(plant, f=shifted_f), seed=kernel.seed)
     # generic ranks of the shifted drift too, so that "rank drops at the point"
     # compares like with like (only the conditions as a whole are feedback invariant)
-    return shifted, analyse_distributions(shifted)
+    memo[key] = (shifted, analyse_distributions(shifted))
+    return memo[key]
 
 
 def analyse(model: Model, config: Any, stage: Stage | None = None) -> tuple[dict[str, Any], list[Finding]]:

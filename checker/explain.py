@@ -253,7 +253,7 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
         nf = p.get("normal_form")
         if nf is not None:
             console.print(f"  normal form: xi = ({', '.join(nf['xi'])}), eta = ({', '.join(nf['eta'])}); "
-                          f"Jacobian rank {nf['jacobian_rank']}" + ("; L_g eta = 0" if nf["input_free"] else ""))
+                          f"Jacobian rank {nf['jacobian_rank']}" + ("; L_g eta = 0" if nf["input_free"] and nf["eta"] else ""))
             for line in nf["zero_dynamics"]:
                 console.print(f"    {line}")
             if nf["note"]:

@@ -14,7 +14,7 @@ Demo plants, numbers invented:
 
 Each run starts from a cold kernel and a cleared sympy cache. The time to build the
 kernel's ad_f^k g tower (shared with the other analyses) is shown apart from the ranks
-and involutivity work of checker.distributions. Target: about a second for the
+and involutivity work of plantlint.analysis.distributions. Target: about a second for the
 involutivity analysis of a 6-state plant.
 """
 
@@ -26,9 +26,9 @@ import time
 import sympy as sp
 from sympy.core.cache import clear_cache
 
-from checker.distributions import analyse_distributions, distributions_at, distributions_json
-from checker.kernel import Kernel
-from checker.plant import Plant
+from plantlint.analysis.distributions import analyse_distributions, distributions_at, distributions_json
+from plantlint.kernel.lie import Kernel
+from plantlint.kernel.plant import Plant
 
 R = sp.Rational
 RUNS = 3

@@ -44,7 +44,7 @@ def plantlint(cwd: Path, args: list[str], python_flags: tuple[str, ...] = ()) ->
     """One run of the command line in a fresh interpreter; its wall time in seconds."""
     env = {**os.environ, "NO_COLOR": "1"}
     start = time.perf_counter()
-    out = subprocess.run([sys.executable, *python_flags, "-m", "checker", *args], cwd=cwd, env=env,
+    out = subprocess.run([sys.executable, *python_flags, "-m", "plantlint", *args], cwd=cwd, env=env,
                          capture_output=True, text=True)
     return time.perf_counter() - start, out
 
@@ -101,8 +101,8 @@ def topped_up_copy(folder: Path, models: list[Path], leave_out: list[str]) -> No
 
 def discovered(cwd: Path) -> list[Path]:
     """The models ``plantlint check`` picks up in ``cwd`` (its own discovery and configuration)."""
-    code = ("import json, sys; from pathlib import Path; from checker.config import load_config; "
-            "from checker.runner import discover; c = load_config(Path.cwd()); "
+    code = ("import json, sys; from pathlib import Path; from plantlint.run.config import load_config; "
+            "from plantlint.run.runner import discover; c = load_config(Path.cwd()); "
             "print(json.dumps([str(t.path.resolve()) for t in discover([str(c.root)], c.root, c.include, c.exclude)]))")
     out = subprocess.run([sys.executable, "-c", code], cwd=cwd, capture_output=True, text=True, check=True)
     return [Path(p) for p in json.loads(out.stdout)]

@@ -13,9 +13,9 @@ import time
 
 import sympy as sp
 
-from checker.kernel import Kernel
-from checker.plant import Plant
-from checker.structure import analyse_structure, certify_envelope, structure_at_point
+from plantlint.kernel.lie import Kernel
+from plantlint.kernel.plant import Plant
+from plantlint.analysis.structure import analyse_structure, certify_envelope, structure_at_point
 
 R = sp.Rational
 

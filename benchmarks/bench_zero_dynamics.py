@@ -12,11 +12,11 @@ import time
 
 import sympy as sp
 
-from checker.equilibria import solve_point
-from checker.kernel import Kernel
-from checker.normal_form import normal_form_at
-from checker.plant import Plant
-from checker.zero_dynamics import zero_dynamics_at, zero_dynamics_json
+from plantlint.analysis.equilibria import solve_point
+from plantlint.kernel.lie import Kernel
+from plantlint.analysis.normal_form import normal_form_at
+from plantlint.kernel.plant import Plant
+from plantlint.analysis.zero_dynamics import zero_dynamics_at, zero_dynamics_json
 
 
 def two_carts() -> Plant:

@@ -86,7 +86,7 @@ def measure(cmd: list[str], cap: float, cwd: Path = REPO) -> Measured:
 def plantlint_command() -> list[str]:
     """The installed console script next to this interpreter (no shell shims in the timing)."""
     script = Path(sys.executable).parent / "plantlint"
-    return [str(script)] if script.exists() else [sys.executable, "-m", "checker"]
+    return [str(script)] if script.exists() else [sys.executable, "-m", "plantlint"]
 
 
 @dataclass
@@ -321,8 +321,8 @@ def profile(model: Path, limit: float) -> None:
     import pstats
 
     sys.path.insert(0, str(REPO))
-    from checker.config import Config
-    from checker.pipeline import analyse_bytes
+    from plantlint.run.config import Config
+    from plantlint.run.pipeline import analyse_bytes
 
     start = time.perf_counter()
     last = [start]
@@ -400,7 +400,7 @@ def main() -> None:
     fits = growth(rows, floor)
     version = version_time()
     goals = targets(rows, fits, version)
-    from checker import __version__
+    from plantlint import __version__
 
     meta = {"date": time.strftime("%Y-%m-%d"), "machine": f"{platform.machine()}, {os.cpu_count()} CPUs",
             "python": platform.python_version(), "version": __version__,

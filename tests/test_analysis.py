@@ -9,8 +9,8 @@ from pathlib import Path
 import numpy as np
 import sympy as sp
 
-from checker.config import Config
-from checker.pipeline import analyse_bytes
+from plantlint.run.config import Config
+from plantlint.run.pipeline import analyse_bytes
 
 MODELS = Path(__file__).parent / "fixtures" / "models"
 
@@ -76,10 +76,10 @@ def test_ranks_known_from_the_outputs_match_brackets() -> None:
     """When the outputs' vector relative degree sums to n with a nonsingular decoupling
     matrix, the plant is feedback equivalent to chains of integrators (Isidori, 3rd ed.,
     sec. 5.2, from memory), so rank G_k = sum_i min(k+1, r_i); checked against brackets."""
-    from checker.analysis import outputs_linearize
-    from checker.kernel import Kernel
-    from checker.plant import Plant
-    from checker.structure import analyse_structure
+    from plantlint.analysis.engine import outputs_linearize
+    from plantlint.kernel.lie import Kernel
+    from plantlint.kernel.plant import Plant
+    from plantlint.analysis.structure import analyse_structure
 
     # flexible joint (Spong 1987; Khalil 3rd ed. sec. 13.2, from memory), invented numbers
     q1, w1, q2, w2, u = sp.symbols("q1 w1 q2 w2 u")
@@ -101,10 +101,10 @@ def test_ranks_known_from_the_outputs_match_brackets() -> None:
 
 
 def test_no_shortcut_when_the_outputs_leave_internal_dynamics() -> None:
-    from checker.analysis import outputs_linearize
-    from checker.kernel import Kernel
-    from checker.plant import Plant
-    from checker.structure import analyse_structure
+    from plantlint.analysis.engine import outputs_linearize
+    from plantlint.kernel.lie import Kernel
+    from plantlint.kernel.plant import Plant
+    from plantlint.analysis.structure import analyse_structure
 
     x1, x2, u = sp.symbols("x1 x2 u")
     plant = Plant.from_matrices("tail", [x1, x2], [u], [x1 + x2, 0], [[0, 1]], [x2])

@@ -1,6 +1,6 @@
 """Cache, parallel workers, time budgets and progress, through the real CLI.
 
-Every run is a real ``python -m checker`` process with real worker processes and
+Every run is a real ``python -m plantlint`` process with real worker processes and
 a real cache folder under ``tmp_path``. Findings themselves are not re-checked
 here (the rule fixtures do that); what matters is that caching, the number of
 workers and concurrency never change a byte of the report.
@@ -51,7 +51,7 @@ output y = x1
 
 
 def plantlint(cwd: Path, *args: str) -> Run:
-    out = subprocess.run([sys.executable, "-m", "checker", *args], cwd=cwd, capture_output=True, text=True,
+    out = subprocess.run([sys.executable, "-m", "plantlint", *args], cwd=cwd, capture_output=True, text=True,
                          timeout=300, env=_env())
     return Run(out.returncode, out.stdout, out.stderr)
 
@@ -111,7 +111,7 @@ def warm_cache(cold: ColdRun) -> Path:
 
 WARM_SCRIPT = """
 import sys
-from checker.cli import main
+from plantlint.cli import main
 code = main(sys.argv[1:])
 sys.stdout.flush()
 if "sympy" in sys.modules:
@@ -214,7 +214,7 @@ def test_one_and_four_workers_give_byte_identical_json(reference: Run, cold: Col
 
 def test_concurrent_runs_share_one_cache(workspace: Path, tmp_path: Path) -> None:
     cache = tmp_path / "shared"
-    args = [sys.executable, "-m", "checker", "check", "--format", "json", "--jobs", "2", "--cache-dir", str(cache),
+    args = [sys.executable, "-m", "plantlint", "check", "--format", "json", "--jobs", "2", "--cache-dir", str(cache),
             "models/a_unstable.plant", "models/c_clean.plant", "models/line"]
     procs = [subprocess.Popen(args, cwd=workspace, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
                               env=_env()) for _ in range(2)]
@@ -270,7 +270,7 @@ def test_progress_goes_to_a_terminal_only(workspace: Path, reference: Run) -> No
     paths = ["models/a_unstable.plant", "models/b_critical.plant", "models/c_clean.plant", "models/e_unused.plant"]
     leader, follower = pty.openpty()
     try:
-        proc = subprocess.Popen([sys.executable, "-m", "checker", "check", "--format", "json", "--jobs", "2",
+        proc = subprocess.Popen([sys.executable, "-m", "plantlint", "check", "--format", "json", "--jobs", "2",
                                  "--no-cache", *paths], cwd=workspace, stdout=subprocess.PIPE, stderr=follower,
                                 env={**_env(), "TERM": "xterm", "COLUMNS": "100"})
         os.close(follower)

@@ -18,7 +18,7 @@ import sympy as sp
 from rich.console import Console
 from scipy import signal
 
-from checker.catalogue import (
+from plantlint.core.catalogue import (
     FAMILIES,
     Catalogue,
     CatalogueError,
@@ -28,9 +28,9 @@ from checker.catalogue import (
     read_catalogue,
     render_rules,
 )
-from checker.findings import Severity
-from checker.resources import data_path
-from checker.syntax import parse_text, symbol
+from plantlint.core.findings import Severity
+from plantlint.core.resources import data_path
+from plantlint.language.syntax import parse_text, symbol
 
 # The ids and default severities the foundation issue requires, family by family.
 EXPECTED: dict[str, list[tuple[str, str]]] = {

@@ -1,7 +1,7 @@
 """The ``plantlint`` command line: exit codes, configuration, selection, output, bad inputs,
 and the installed package.
 
-Most runs call ``checker.cli.main`` in this process (real workers are still forked;
+Most runs call ``plantlint.cli.main`` in this process (real workers are still forked;
 ``capfd`` sees what they write to the file descriptors); runs that depend on the
 interpreter or the terminal (``--version``, colour on a pseudo-terminal, the
 installed console script, tracebacks) are real subprocesses. Models are copied
@@ -18,6 +18,7 @@ import re
 import shutil
 import subprocess
 import sys
+import sysconfig
 from collections.abc import Callable
 from pathlib import Path
 
@@ -25,9 +26,9 @@ import pytest
 
 from support import Run
 
-from checker import __version__
-from checker.catalogue import load_catalogue
-from checker.cli import main
+from plantlint import __version__
+from plantlint.core.catalogue import load_catalogue
+from plantlint.cli import main
 
 PROJECT = Path(__file__).resolve().parent.parent
 FIXTURES = PROJECT / "tests" / "fixtures" / "rules"
@@ -266,7 +267,7 @@ def _on_terminal(cwd: Path, args: list[str], extra_env: dict[str, str]) -> tuple
     env = {k: v for k, v in os.environ.items() if k not in ("NO_COLOR", "FORCE_COLOR")}
     env.update({"TERM": "xterm-256color", "COLUMNS": "100", **extra_env})
     try:
-        proc = subprocess.Popen([sys.executable, "-m", "checker", *args], cwd=cwd, stdout=follower,
+        proc = subprocess.Popen([sys.executable, "-m", "plantlint", *args], cwd=cwd, stdout=follower,
                                 stderr=subprocess.PIPE, env=env)
         os.close(follower)
         seen = bytearray()
@@ -320,7 +321,7 @@ def test_rules_shows_one_rule(tmp_path: Path, cli: CLI) -> None:
 
 
 def test_version_from_the_module_and_the_console_script(tmp_path: Path) -> None:
-    module = subprocess.run([sys.executable, "-m", "checker", "--version"], cwd=tmp_path, capture_output=True,
+    module = subprocess.run([sys.executable, "-m", "plantlint", "--version"], cwd=tmp_path, capture_output=True,
                             text=True, timeout=120)
     assert (module.returncode, module.stdout.strip()) == (0, f"plantlint {__version__}")
     script = shutil.which("plantlint")
@@ -398,7 +399,7 @@ def test_endless_device_is_read_only_up_to_the_limit(tmp_path: Path, cli: CLI) -
 def test_bad_inputs_in_one_real_process(bad_inputs: tuple[Path, dict[str, str]]) -> None:
     """The same files through a real interpreter: stderr stays empty, one finding each."""
     folder, says = bad_inputs
-    out = subprocess.run([sys.executable, "-m", "checker", "check", "--format", "concise", "--no-cache", "."],
+    out = subprocess.run([sys.executable, "-m", "plantlint", "check", "--format", "concise", "--no-cache", "."],
                          cwd=folder, capture_output=True, text=True, timeout=300)
     assert out.returncode == 1 and out.stderr == ""
     lines = out.stdout.splitlines()
@@ -419,16 +420,22 @@ def test_wheel_installs_and_finds_its_grammar_and_rules(tmp_path: Path) -> None:
     assert built.returncode == 0, built.stdout + built.stderr
     (wheel,) = dist.glob("plantlint-*.whl")
     venv = tmp_path / "venv"
-    subprocess.run([sys.executable, "-m", "venv", "--system-site-packages", "--without-pip", str(venv)],
-                   check=True, timeout=300)
+    subprocess.run([sys.executable, "-m", "venv", str(venv)], check=True, timeout=300)  # ensurepip: offline
     python = venv / "bin" / "python"
+    # Borrow the dependencies of the environment running this test (not of its base
+    # interpreter, which may have none) with a plain path entry: the editable install's own
+    # .pth hook in that folder is not processed, so it cannot shadow the wheel.
+    own = subprocess.run([str(python), "-c", "import sysconfig; print(sysconfig.get_paths()['purelib'])"],
+                         capture_output=True, text=True, check=True, timeout=120).stdout.strip()
+    borrowed = sorted({sysconfig.get_paths()["purelib"], sysconfig.get_paths()["platlib"]})
+    (Path(own) / "_borrowed_dependencies.pth").write_text("\n".join(borrowed) + "\n")
     installed = subprocess.run([str(python), "-m", "pip", "install", "--no-deps", "--no-index", "-q", str(wheel)],
                                capture_output=True, text=True, timeout=300)
     assert installed.returncode == 0, installed.stdout + installed.stderr
     elsewhere = tmp_path / "elsewhere"
     elsewhere.mkdir()
-    locate = ("import checker, checker.resources as r; "
-              "print(checker.__file__); print(r.data_path('grammar')); print(r.data_path('rules'))")
+    locate = ("import plantlint, plantlint.core.resources as r; "
+              "print(plantlint.__file__); print(r.data_path('grammar')); print(r.data_path('rules'))")
     where = subprocess.run([str(python), "-c", locate], cwd=elsewhere, capture_output=True, text=True, timeout=120)
     assert where.returncode == 0, where.stderr
     assert all(Path(line).resolve().is_relative_to(venv.resolve()) for line in where.stdout.split())

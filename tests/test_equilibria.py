@@ -10,9 +10,9 @@ import random
 import numpy as np
 import sympy as sp
 
-from checker.equilibria import equilibrium_json, exact_rank, number_decider, solve_point
-from checker.kernel import Kernel
-from checker.plant import Plant
+from plantlint.analysis.equilibria import equilibrium_json, exact_rank, number_decider, solve_point
+from plantlint.kernel.lie import Kernel
+from plantlint.kernel.plant import Plant
 
 x1, x2, x3 = sp.symbols("x1 x2 x3")
 u, u1, u2, u3 = sp.symbols("u u1 u2 u3")

@@ -9,7 +9,7 @@ import subprocess
 import sys
 from pathlib import Path
 
-from checker.explain import compact_many, explain_file
+from plantlint.report.explain import compact_many, explain_file
 
 SAMPLE = Path(__file__).parent / "fixtures" / "models" / "contract_sample.plant"
 
@@ -57,7 +57,7 @@ def test_point_filter_and_unknown_point() -> None:
 def test_cli_explain_on_a_broken_model(tmp_path: Path) -> None:
     bad = tmp_path / "bad.plant"
     bad.write_text("plant p\nstate x\nrate x = y\n", encoding="utf-8")
-    run = subprocess.run([sys.executable, "-m", "checker", "explain", str(bad)], capture_output=True, text=True)
+    run = subprocess.run([sys.executable, "-m", "plantlint", "explain", str(bad)], capture_output=True, text=True)
     assert run.returncode == 1
     assert "unknown name 'y'" in run.stdout and "Traceback" not in run.stderr
 

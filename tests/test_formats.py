@@ -16,12 +16,12 @@ from typing import Any
 import jsonschema
 import pytest
 
-from checker.catalogue import load_catalogue
-from checker.findings import FileReport, Finding, Report, Severity, Span
-from checker.formats import FORMATS, get_formatter
-from checker.formats.json_report import build_report, report_schema
-from checker.formats.sarif import artifact_location, build_sarif
-from checker.formats.text import excerpt
+from plantlint.core.catalogue import load_catalogue
+from plantlint.core.findings import FileReport, Finding, Report, Severity, Span
+from plantlint.report.formats import FORMATS, get_formatter
+from plantlint.report.formats.json_report import build_report, report_schema
+from plantlint.report.formats.sarif import artifact_location, build_sarif
+from plantlint.report.formats.text import excerpt
 
 REPO_ROOT = Path(__file__).resolve().parent.parent
 SARIF_SCHEMA = REPO_ROOT.parent / "shared" / "standards" / "sarif-schema-2.1.0.json"
@@ -377,8 +377,8 @@ def test_long_lines_are_cut_around_the_span() -> None:
 def test_text_says_when_the_structure_was_not_analysed() -> None:
     import io
 
-    from checker.findings import FileReport, Finding, Report, Severity, Span
-    from checker.formats import get_formatter
+    from plantlint.core.findings import FileReport, Finding, Report, Severity, Span
+    from plantlint.report.formats import get_formatter
 
     blocked = FileReport("m.plant", "m", [Finding("unknown-name", Severity.ERROR, "unknown name 'J'",
                                                    Span(3, 5, 3, 6), anchor="name J")], None, "a\nb\nc   J\n")

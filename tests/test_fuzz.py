@@ -5,7 +5,7 @@ CI sees the same inputs every time. Every input goes through decoding, parsing a
 model building in-process; a smaller batch of mutated models goes through the
 whole analysis in worker processes with a short time budget. Whatever comes out
 must use catalogued rule ids, carry a sensible span, and render as JSON valid
-against ``checker/report.schema.json`` and as SARIF valid against the published
+against ``checker/plantlint/report/report.schema.json`` and as SARIF valid against the published
 OASIS schema (common practice: validate what you emit against its schema).
 """
 
@@ -22,14 +22,14 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from checker.catalogue import load_catalogue
-from checker.config import Config
-from checker.findings import Finding, Report, Severity
-from checker.formats import get_formatter
-from checker.formats.json_report import report_schema
-from checker.pipeline import RawResult, finish
-from checker.runner import analyse_all
-from checker.syntax import parser
+from plantlint.core.catalogue import load_catalogue
+from plantlint.run.config import Config
+from plantlint.core.findings import Finding, Report, Severity
+from plantlint.report.formats import get_formatter
+from plantlint.report.formats.json_report import report_schema
+from plantlint.run.pipeline import RawResult, finish
+from plantlint.run.runner import analyse_all
+from plantlint.language.syntax import parser
 
 REPO = Path(__file__).resolve().parent.parent
 SARIF_SCHEMA = REPO.parent / "shared" / "standards" / "sarif-schema-2.1.0.json"
@@ -71,7 +71,7 @@ JSON_VALIDATOR, SARIF_VALIDATOR = _validators()
 
 def read_model(data: bytes) -> RawResult:
     """Decode, parse and build the model (the analysis is left out: see the batch test)."""
-    from checker.pipeline import locate, read_model as read
+    from plantlint.run.pipeline import locate, read_model as read
 
     model, findings = read(data)
     raw = RawResult(plant=model.name if model else None, findings=list(findings))

@@ -75,7 +75,7 @@ PASSING = ["shaker.plant", "fixme.plant", "renamed.plant", "drift.plant", "stead
 
 
 def plantlint(cwd: Path, env: dict[str, str], *args: str) -> Run:
-    out = subprocess.run([sys.executable, "-m", "checker", *args], cwd=cwd, env=env,
+    out = subprocess.run([sys.executable, "-m", "plantlint", *args], cwd=cwd, env=env,
                          capture_output=True, text=True, timeout=300)
     return Run(out.returncode, out.stdout, out.stderr)
 

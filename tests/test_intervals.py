@@ -12,8 +12,8 @@ from flint import arb
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from checker.balls import int_power
-from checker.intervals import Budget, certify_nonzero, certify_sign, outward_box
+from plantlint.kernel.balls import int_power
+from plantlint.kernel.intervals import Budget, certify_nonzero, certify_sign, outward_box
 
 x1, x2, k = sp.symbols("x1 x2 k")
 R = sp.Rational

@@ -6,9 +6,9 @@ import random
 
 import sympy as sp
 
-from checker.kernel import Kernel
-from checker.plant import Plant
-from checker.structure import analyse_structure, certify_envelope
+from plantlint.kernel.lie import Kernel
+from plantlint.kernel.plant import Plant
+from plantlint.analysis.structure import analyse_structure, certify_envelope
 
 x1, x2, x3, u, v = sp.symbols("x1 x2 x3 u v")
 

@@ -18,8 +18,8 @@ from pathlib import Path
 
 import pytest
 
-from checker.config import Config
-from checker.pipeline import analyse_bytes
+from plantlint.run.config import Config
+from plantlint.run.pipeline import analyse_bytes
 
 REPO = Path(__file__).resolve().parent.parent
 CHECKER = REPO / "checker"
@@ -88,12 +88,12 @@ def test_payloads_through_the_command_line(tmp_path: Path) -> None:
         files.append(str(path))
     assert len(files) >= 10
     for fmt, subset in (("json", files), ("sarif", files[:4]), ("text", files[:4])):
-        proc = subprocess.run([sys.executable, "-m", "checker", "check", "--no-cache", "--jobs", "2", "--timeout", "30",
+        proc = subprocess.run([sys.executable, "-m", "plantlint", "check", "--no-cache", "--jobs", "2", "--timeout", "30",
                                "--format", fmt, *subset], cwd=tmp_path, capture_output=True, text=True, timeout=600)
         assert proc.returncode in (0, 1), proc.stderr
         assert "Traceback" not in proc.stderr
         assert not marker.exists()
-    proc = subprocess.run([sys.executable, "-m", "checker", "explain", files[0]], cwd=tmp_path,
+    proc = subprocess.run([sys.executable, "-m", "plantlint", "explain", files[0]], cwd=tmp_path,
                           capture_output=True, text=True, timeout=300)
     assert "Traceback" not in proc.stderr
     assert not marker.exists()

@@ -1,9 +1,9 @@
 """Hostile and broken files: a clear finding (or a clean parse), never an exception.
 
-Every case goes through ``checker.pipeline.analyse_bytes`` in-process and, all
+Every case goes through ``plantlint.run.pipeline.analyse_bytes`` in-process and, all
 together in one run, through the command line (exit code 0 or 1, never 2 for a
 file's content, and no traceback). Models are invented; the limits are the
-parser's (``checker.syntax``), common practice for tools that read untrusted files.
+parser's (``plantlint.language.syntax``), common practice for tools that read untrusted files.
 """
 
 from __future__ import annotations
@@ -16,10 +16,10 @@ from typing import Callable
 
 import pytest
 
-from checker.config import Config
-from checker.findings import Finding
-from checker.pipeline import RawResult, analyse_bytes
-from checker.syntax import MAX_BYTES
+from plantlint.run.config import Config
+from plantlint.core.findings import Finding
+from plantlint.run.pipeline import RawResult, analyse_bytes
+from plantlint.language.syntax import MAX_BYTES
 
 REPO = Path(__file__).resolve().parent.parent
 
@@ -142,7 +142,7 @@ def test_command_line_on_every_case(tmp_path: Path) -> None:
     (tmp_path / "lf.plant").write_bytes(VALID.encode())
     paths += [tmp_path / "crlf.plant", tmp_path / "lf.plant"]
     proc = subprocess.run(
-        [sys.executable, "-m", "checker", "check", "--no-cache", "--jobs", "2", "--timeout", "60",
+        [sys.executable, "-m", "plantlint", "check", "--no-cache", "--jobs", "2", "--timeout", "60",
          "--format", "json", *map(str, paths)],
         cwd=tmp_path, capture_output=True, text=True, timeout=600,
     )

@@ -20,9 +20,9 @@ from pathlib import Path
 
 import pytest
 
-from checker.catalogue import load_catalogue
-from checker.config import Config
-from checker.runner import Target, check_targets
+from plantlint.core.catalogue import load_catalogue
+from plantlint.run.config import Config
+from plantlint.run.runner import Target, check_targets
 
 FIXTURES = Path(__file__).parent / "fixtures" / "rules"
 MARK = re.compile(r"#=(?:L(\d+))?\s+(.*)$")

@@ -12,10 +12,10 @@ import pytest
 import scipy.signal
 import sympy as sp
 
-from checker.findings import Severity
-from checker.kernel import Kernel
-from checker.plant import Plant
-from checker.structure import (
+from plantlint.core.findings import Severity
+from plantlint.kernel.lie import Kernel
+from plantlint.kernel.plant import Plant
+from plantlint.analysis.structure import (
     analyse_structure,
     certify_envelope,
     envelope_json,

@@ -11,10 +11,10 @@ import scipy.linalg
 import scipy.signal
 import sympy as sp
 
-from checker.kernel import Kernel
-from checker.normal_form import normal_form_at, normal_form_json
-from checker.plant import Plant
-from checker.zero_dynamics import zero_dynamics_at, zero_dynamics_json
+from plantlint.kernel.lie import Kernel
+from plantlint.analysis.normal_form import normal_form_at, normal_form_json
+from plantlint.kernel.plant import Plant
+from plantlint.analysis.zero_dynamics import zero_dynamics_at, zero_dynamics_json
 
 x1, x2, x3 = sp.symbols("x1 x2 x3")
 u = sp.Symbol("u")

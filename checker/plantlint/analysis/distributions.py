@@ -1,0 +1,719 @@
+"""Full-state (input-state) linearizability: controllability distributions.
+
+Single input: D_k = span{g, ad_f g, ..., ad_f^k g}. Several inputs:
+G_k = span{ad_f^j g_i : j <= k, every input i}. The plant is state linearizable
+near x0 when G_(n-1) has rank n at x0, every G_k has constant rank near x0 and
+G_k is involutive for k <= n-2 (theory notes, "Full-state linearization").
+
+Why the analysis is split in two:
+
+* :func:`analyse_distributions` works with functions (generic ranks and
+  involutivity). For analytic data "constant rank near x0" means "rank at x0
+  equals the generic rank", and a bracket that leaves the span somewhere leaves
+  it near every point, so the expensive symbolic work is done once per plant.
+* :func:`distributions_at` then only needs exact numbers at each point.
+
+Generic ranks and span membership use bordered minors of the original
+entries (no elimination swell): with a basis B and rows I whose minor is proved
+non-zero, a column lies in span B exactly when every det M[I + i, B + c]
+vanishes identically. Balls at the kernel's samples prove "non-zero"; zeros
+are proved by multiplying out or by Kernel.is_zero. At a point, exact numbers
+are eliminated with pivots decided by Kernel.value_at.
+
+Findings: the generic ``not-involutive`` (anchor "plant") sits in
+``DistributionStructure.findings``; per point, ``not-controllable`` and a
+``not-involutive`` for a distribution whose rank drops at the point (a singular
+point: not of constant rank there) sit in ``PointDistributions.findings``.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterator, Sequence
+from dataclasses import dataclass, field
+from fractions import Fraction
+from math import gcd, lcm
+
+import numpy as np
+import sympy as sp
+from flint import arb
+
+from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
+from plantlint.core.findings import Finding, Severity
+from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
+from plantlint.analysis.linearizing_output import OutputSearch
+
+
+
+@dataclass(frozen=True)
+class Decision:
+    """Is a value zero? ``certain`` is False when zero was not proved."""
+
+    zero: bool
+    certain: bool
+
+
+@dataclass(frozen=True)
+class SpanningField:
+    """One spanner ad_f^order g_input of the distributions."""
+
+    label: str  # "g", "ad_f g", "ad_f^2 g" (one input); "g1", "ad_f g2" (several)
+    input_index: int
+    order: int
+    vector: Vector
+
+
+@dataclass(frozen=True)
+class BracketFailure:
+    """A bracket of two spanners that leaves the distribution."""
+
+    order: int  # k of D_k / G_k
+    left: str
+    right: str
+    certain: bool
+
+    @property
+    def pair(self) -> str:
+        return f"[{self.left}, {self.right}]"
+
+
+@dataclass
+class DistributionStructure:
+    """Generic (function-level) facts about D_0 .. D_(n-1) of one plant."""
+
+    n: int
+    m: int
+    fields: tuple[SpanningField, ...]
+    ranks: tuple[int, ...]  # generic rank of D_k, k = 0 .. n-1
+    bases: tuple[tuple[int, ...], ...]  # indices into ``fields`` of a basis of D_k
+    involutive_by_order: tuple[bool, ...]  # D_k involutive, k = 0 .. n-2
+    failures: tuple[BracketFailure, ...]  # first failing pair of each non-involutive D_k
+    uncertain: tuple[str, ...]  # decisions taken as zero without symbolic proof
+    findings: tuple[Finding, ...]
+    _outputs: "OutputSearch | None" = field(default=None, repr=False)
+
+    @property
+    def involutive(self) -> bool:
+        return all(self.involutive_by_order)
+
+    @property
+    def failure(self) -> BracketFailure | None:
+        return self.failures[0] if self.failures else None
+
+    def name(self, k: int) -> str:
+        return distribution_name(self.m, k)
+
+    def spanners(self, k: int) -> str:
+        labels = [_labels(self.m, j, order) for order in range(k + 1) for j in range(self.m)]
+        return f"{self.name(k)} = span{{{', '.join(labels)}}}"
+
+
+@dataclass(frozen=True)
+class PointDistributions:
+    """The distributions at one operating point."""
+
+    point: str
+    ranks: tuple[int, ...]  # exact rank of D_k at the point, k = 0 .. n-1
+    generic_ranks: tuple[int, ...]
+    singular_orders: tuple[int, ...]  # k where the rank drops at the point only
+    controllability_rank: int
+    missing_directions: tuple[str, ...]  # basis of the orthogonal complement of D_(n-1)
+    missing_vectors: tuple[tuple[sp.Expr, ...], ...]  # the same, as vectors
+    involutive: bool
+    state_linearizable: bool
+    failure: BracketFailure | None
+    output_searched: bool
+    linearizing_output: sp.Expr | None
+    notes: tuple[str, ...]
+    findings: tuple[Finding, ...]
+
+
+def distribution_name(m: int, k: int) -> str:
+    return f"{'D' if m == 1 else 'G'}_{k}"
+
+
+# -- elimination with rigorous pivots -------------------------------------------------
+class _PointEchelon:
+    """Column echelon form of exact numbers (a point), one column at a time;
+    each pivot is proved non-zero by ``decide`` (exact / rigorous ball tests)."""
+
+    def __init__(self, decide: Callable[[sp.Expr], Decision]):
+        self.decide = decide
+        self.pivots: list[tuple[int, list[sp.Expr]]] = []
+
+    def add(self, column: Sequence[sp.Expr]) -> bool:
+        """Add a column; True when it is independent of the previous ones."""
+        v = list(column)
+        for row, w in self.pivots:
+            if v[row] != 0:
+                ratio = v[row] / w[row]
+                v = [vi - ratio * wi if wi != 0 else vi for vi, wi in zip(v, w)]
+                v[row] = sp.Integer(0)
+        used = {row for row, _ in self.pivots}
+        for i in sorted((i for i in range(len(v)) if i not in used and v[i] != 0), key=lambda i: _size(v[i])):
+            if not self.decide(v[i]).zero:
+                self.pivots.append((i, v))
+                return True
+        return False
+
+
+#: Entries at least this large (tree nodes) are left as they are by _normal.
+NORMAL_SIZE = 2000
+
+
+class _BorderedMinors:
+    """Generic rank and span membership from bordered minors.
+
+    Keeps a basis B of columns and rows I with det M[I, B] not identically zero
+    (proved). A column c lies in span B exactly when every bordered minor
+    det M[I + i, B + c] vanishes identically (the bordered-minor theorem), so
+    each decision is a kernel zero test on a determinant of the original
+    entries (no elimination swell). Floating-point values at one sample only
+    order the rows so that a non-zero minor is usually met first.
+    """
+
+    def __init__(self, kernel: Kernel):
+        self.kernel = kernel
+        self.n = kernel.plant.n
+        self.columns: list[Vector] = []
+        self.rows: list[int] = []
+        self.uncertain = False
+        self._dets: dict[tuple[tuple[int, ...], int], sp.Expr] = {}
+        self._sample: dict[sp.Symbol, Fraction] | None = None
+        self._floats: list[list[float]] = []
+        self._ball_cache: dict[int, tuple[Vector, list[arb] | None]] = {}
+        samples = kernel.samples()
+        if samples:
+            self._sample = samples[0]
+
+    def _numeric(self, column: Vector) -> list[float]:
+        if self._sample is None:
+            return [0.0] * self.n
+        symbols = self.kernel.free_symbols()
+        try:
+            balls = Program(list(column), symbols).run(
+                [arb(self._sample[s].numerator) / self._sample[s].denominator for s in symbols], 64
+            )
+        except UnsupportedExpression:
+            return [0.0] * self.n
+        return [float(b.mid()) if b.is_finite() else 0.0 for b in balls]
+
+    def _row_order(self, column: Vector, upto: int) -> list[int]:
+        """Rows outside I, largest floating-point Schur residual first."""
+        values = np.array(self._numeric(column))
+        rows = self.rows[:upto]
+        residual = values
+        if rows:
+            basis = np.array(self._floats[:upto]).T  # n x upto
+            coefficients = np.linalg.lstsq(basis[rows, :], values[rows], rcond=None)[0]
+            residual = values - basis @ coefficients
+        free = [i for i in range(self.n) if i not in rows]
+        return sorted(free, key=lambda i: -abs(float(residual[i])))
+
+    def _det(self, rows: tuple[int, ...], columns: list[Vector], key_columns: int) -> sp.Expr:
+        """Laplace expansion along the last column, memoised over the basis prefix."""
+        k = len(rows)
+        if k == 0:
+            return sp.Integer(1)
+        memo_key = (rows, key_columns) if key_columns == k else None
+        if memo_key is not None and memo_key in self._dets:
+            return self._dets[memo_key]
+        last = columns[k - 1]
+        total = sp.Integer(0)
+        for position, i in enumerate(rows):
+            entry = last[i]
+            if entry == 0:
+                continue
+            sub = self._det(rows[:position] + rows[position + 1 :], columns, min(key_columns, k - 1))
+            if sub != 0:
+                total += (-1) ** (position + k - 1) * entry * sub
+        if memo_key is not None:
+            self._dets[memo_key] = total
+        return total
+
+    def _balls(self, column: Vector) -> list[arb] | None:
+        """The column at the sample point as rigorous balls (cached per column)."""
+        key = id(column)
+        if key not in self._ball_cache:
+            value: list[arb] | None = None
+            if self._sample is not None:
+                symbols = self.kernel.free_symbols()
+                try:
+                    value = Program(list(column), symbols).run(
+                        [rational_ball(self._sample[s], BALL_PREC) for s in symbols], BALL_PREC)
+                except UnsupportedExpression:
+                    value = None
+            self._ball_cache[key] = (column, value)
+        return self._ball_cache[key][1]
+
+    def _nonzero_at_sample(self, rows: tuple[int, ...], basis: list[Vector]) -> bool:
+        """True when the minor is *proven* non-zero by its value at the sample point
+        (ball Gaussian elimination): then no symbolic determinant is needed."""
+        columns = [self._balls(c) for c in basis]
+        if any(c is None for c in columns):
+            return False
+        M = [[columns[j][i] for j in range(len(basis))] for i in rows]  # type: ignore[index]
+        return _ball_det_nonzero(M)
+
+    def _bordered(self, column: Vector, upto: int) -> Iterator[tuple[int, Decision]]:
+        basis = self.columns[:upto] + [column]
+        for i in self._row_order(column, upto):
+            rows = tuple(sorted(self.rows[:upto] + [i]))
+            if self._nonzero_at_sample(rows, basis):
+                yield i, Decision(False, True)
+                continue
+            minor = self._det(rows, basis, upto)
+            yield i, _decide_generic(self.kernel, minor)
+
+    def add(self, column: Vector) -> bool:
+        """Add a column; True when it is independent of the basis so far."""
+        certain = True
+        for i, d in self._bordered(column, len(self.columns)):
+            if not d.zero:
+                self._floats.append(self._numeric(column))
+                self.columns.append(column)
+                self.rows.append(i)
+                return True
+            certain = certain and d.certain
+        self.uncertain = self.uncertain or not certain
+        return False
+
+    def member(self, column: Vector, upto: int) -> tuple[bool, bool]:
+        """(column in span of the first ``upto`` basis columns, decided with proof)."""
+        certain = True
+        for _, d in self._bordered(column, upto):
+            if not d.zero:
+                return False, True
+            certain = certain and d.certain
+        return True, certain
+
+
+BALL_PREC = 128
+
+
+def _ball_det_nonzero(M: list[list[arb]]) -> bool:
+    """Is the determinant of a square ball matrix certainly non-zero? Gaussian
+    elimination choosing, in each column, a pivot that certainly is not zero;
+    without one the answer is "not proven" (False)."""
+    import flint
+
+    old = flint.ctx.prec
+    flint.ctx.prec = BALL_PREC
+    try:
+        A = [list(row) for row in M]
+        k = len(A)
+        for c in range(k):
+            candidates = [r for r in range(c, k) if A[r][c].is_finite() and not A[r][c].contains(0)]
+            if not candidates:
+                return False
+            p = max(candidates, key=lambda r: abs(float(A[r][c].mid())))
+            A[c], A[p] = A[p], A[c]
+            for r in range(c + 1, k):  # every row: a ball near 0 may still be non-zero
+                factor = A[r][c] / A[c][c]
+                A[r] = [a - factor * b for a, b in zip(A[r], A[c])]
+        return True
+    finally:
+        flint.ctx.prec = old
+
+
+def _decide_generic(kernel: Kernel, e: sp.Expr) -> Decision:
+    """Is a minor identically zero? Balls at the kernel's samples prove "non-zero";
+    a minor without symbolic denominators that multiplies out to 0 is proved
+    zero (far cheaper than putting a large polynomial over a common
+    denominator); everything else goes to the kernel's two-stage test."""
+    if e == 0:
+        return Decision(True, True)
+    if _screened_nonzero(kernel, e):
+        return Decision(False, True)
+    if not has_symbolic_denominator(e) and sp.expand(e) == 0:
+        return Decision(True, True)
+    t = kernel.is_zero(e)
+    return Decision(t.zero, t.certain)
+
+
+def _screened_nonzero(kernel: Kernel, e: sp.Expr) -> bool:
+    symbols = kernel.free_symbols()
+    try:
+        program = Program([e], symbols)
+    except UnsupportedExpression:
+        return False
+    for sample in kernel.samples():
+        b = program.run([arb(sample[s].numerator) / sample[s].denominator for s in symbols], 128)[0]
+        if b.is_finite() and not b.contains(0):
+            return True
+    return False
+
+
+def _normal(e: sp.Expr) -> sp.Expr:
+    """Multiply out a reduced entry so that exact cancellations show up
+    structurally (a zero becomes 0, a constant pivot a number). Not a zero
+    test: the kernel still decides every remainder."""
+    if e.is_number or e.is_Symbol or _size(e, NORMAL_SIZE) >= NORMAL_SIZE:
+        return e  # expanding a large entry costs more than the zero test it might save
+    return sp.expand(e)
+
+
+def _size(e: sp.Expr, cap: int = 400) -> int:
+    count = 0
+    for _ in sp.preorder_traversal(e):
+        count += 1
+        if count >= cap:
+            break
+    return count
+
+
+def _block(kernel: Kernel, m: int, k: int) -> list[SpanningField]:
+    """The spanners ad_f^k g_j of order k (memoised in the kernel)."""
+    return [SpanningField(_labels(m, j, k), j, k, tuple(_normal(e) for e in kernel.ad(j, k))) for j in range(m)]
+
+
+def _labels(m: int, j: int, k: int) -> str:
+    g = "g" if m == 1 else f"g{j + 1}"
+    if k == 0:
+        return g
+    return f"ad_f {g}" if k == 1 else f"ad_f^{k} {g}"
+
+
+# -- generic analysis -----------------------------------------------------------------
+def analyse_distributions(kernel: Kernel) -> DistributionStructure:
+    """Generic ranks and involutivity of D_0 .. D_(n-1) (G_k for several inputs)."""
+    n, m = kernel.plant.n, kernel.plant.m
+    echelon = _BorderedMinors(kernel)
+    fields: list[SpanningField] = []
+    basis: list[int] = []
+    ranks: list[int] = []
+    bases: list[tuple[int, ...]] = []
+    uncertain: list[str] = []
+    involutivity = _Involutivity(kernel, echelon, m)
+    involutive: list[bool] = []
+    failures: list[BracketFailure] = []
+    for k in range(n if m else 0):
+        if len(basis) == n:
+            # D_(k-1) is already the whole tangent space, so every later D_k is too:
+            # the higher brackets (where expressions swell most) are never built.
+            ranks.append(n)
+            bases.append(tuple(basis))
+            if k <= n - 2:
+                involutive.append(True)
+            continue
+        for spanner in _block(kernel, m, k):
+            fields.append(spanner)
+            if len(basis) < n and echelon.add(spanner.vector):
+                basis.append(len(fields) - 1)
+        if echelon.uncertain:
+            uncertain.append(f"rank of {distribution_name(m, k)}: a remainder was taken as zero without proof")
+            echelon.uncertain = False
+        ranks.append(len(basis))
+        bases.append(tuple(basis))
+        if k <= n - 2:
+            failure = involutivity.check(k, fields, tuple(basis))
+            involutive.append(failure is None)
+            if failure is not None:
+                # the plant is not state linearizable: the higher distributions (the
+                # costliest brackets) would not change the verdict; at equilibria the
+                # controllability rank comes from the linearisation instead
+                failures.append(failure)
+                break
+    if m == 0:  # no inputs: every distribution is {0}
+        ranks, bases = [0] * n, [()] * n
+        involutive = [True] * max(n - 1, 0)
+    uncertain.extend(involutivity.uncertain)
+    findings: list[Finding] = []
+    if failures:
+        first = failures[0]
+        k = first.order
+        labels = ", ".join(fields[i].label for i in bases[k])
+        message = (
+            f"{distribution_name(m, k)} = span{{{', '.join(f.label for f in fields if f.order <= k)}}} "
+            f"is not involutive: the bracket {first.pair} leaves it (rank {ranks[k]}, basis {{{labels}}}); "
+            "the plant is not state linearizable"
+        )
+        if not first.certain:
+            message += " (some other remainders were taken as zero without symbolic proof)"
+        findings.append(
+            Finding(
+                rule="not-involutive",
+                severity=Severity.ERROR,
+                message=message,
+                anchor="plant",
+                hint="no output of relative degree n exists; consider input-output linearization "
+                "with a chosen output instead",
+            )
+        )
+    structure = DistributionStructure(
+        n=n,
+        m=m,
+        fields=tuple(fields),
+        ranks=tuple(ranks),
+        bases=tuple(bases),
+        involutive_by_order=tuple(involutive),
+        failures=tuple(failures),
+        uncertain=tuple(uncertain),
+        findings=tuple(findings),
+    )
+    if m == 1:
+        structure._outputs = OutputSearch(kernel, structure)
+    return structure
+
+
+class _Involutivity:
+    """Brackets every pair of basis fields of D_k and tests membership, order by order.
+
+    Pairs of a basis suffice: brackets with a dependent spanner are
+    combinations of these and of the spanners themselves. A pair found inside
+    D_k is inside every later D_k too, so it is never tested twice.
+    """
+
+    def __init__(self, kernel: Kernel, echelon: _BorderedMinors, m: int):
+        self.kernel = kernel
+        self.echelon = echelon
+        self.m = m
+        self.member_from: dict[tuple[int, int], int] = {}
+        self.uncertain: list[str] = []
+
+    def check(self, k: int, fields: Sequence[SpanningField], basis: tuple[int, ...]) -> BracketFailure | None:
+        n = self.kernel.plant.n
+        rank = len(basis)
+        for a_pos in range(rank):
+            for b_pos in range(a_pos + 1, rank):
+                pair = (basis[a_pos], basis[b_pos])
+                if pair in self.member_from:
+                    continue
+                if rank == n:
+                    self.member_from[pair] = k
+                    continue
+                bracket = self.kernel.bracket(fields[pair[0]].vector, fields[pair[1]].vector)
+                inside, certain = self.echelon.member(tuple(_normal(e) for e in bracket), rank)
+                if inside:
+                    self.member_from[pair] = k
+                    if not certain:
+                        self.uncertain.append(
+                            f"[{fields[pair[0]].label}, {fields[pair[1]].label}] taken to lie in "
+                            f"{distribution_name(self.m, k)} without symbolic proof"
+                        )
+                    continue
+                return BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain)
+        return None
+
+
+# -- at a point ------------------------------------------------------------------------
+def distributions_at(
+    kernel: Kernel,
+    structure: DistributionStructure,
+    name: str,
+    values: dict[sp.Symbol, sp.Expr],
+) -> PointDistributions:
+    """Exact ranks at the point, singular orders, the verdict and (one input) an output."""
+    n, m = structure.n, structure.m
+    undefined: list[str] = []
+
+    def decide(e: sp.Expr) -> Decision:
+        v = kernel.value_at(e, {})
+        if v.zero is None:
+            undefined.append(str(e))
+            return Decision(True, False)
+        return Decision(v.zero, True)
+
+    echelon = _PointEchelon(decide)
+    ranks: list[int] = []
+    basis: list[list[sp.Expr]] = []
+    known = len(structure.ranks)
+    kalman = _kalman_columns(kernel, values, decide) if known < n else None
+    for k in range(n if m else 0):
+        if k >= known and kalman is not None:
+            break
+        if len(basis) == n:
+            ranks.append(n)
+            continue
+        # the generic analysis may have stopped early; a rank drop at this point
+        # can still need the higher brackets, which the kernel then builds
+        block = [f for f in structure.fields if f.order == k] or _block(kernel, m, k)
+        rows = matrix_at(kernel, [f.vector for f in block], values)
+        for index in range(len(block)):
+            row = list(rows.row(index))
+            if len(basis) < n and echelon.add(row):
+                basis.append(row)
+        ranks.append(len(basis))
+    ranks = ranks or [0] * n
+    singular = tuple(k for k in range(min(known, len(ranks))) if ranks[k] < structure.ranks[k])
+    control_rank = ranks[-1] if len(ranks) == n else 0
+    if len(ranks) < n and kalman is not None:
+        # at an equilibrium of the drift, ad_f^k g(x0) = (-A)^k g(x0): the rank of
+        # G_(n-1) there is the rank of the Kalman matrix of the linearisation
+        echelon = _PointEchelon(decide)
+        basis = []
+        for column in kalman:
+            if len(basis) < n and echelon.add(column):
+                basis.append(column)
+        control_rank = len(basis)
+    vectors = _orthogonal_complement(kernel, basis) if control_rank < n else []
+    missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
+    notes: list[str] = list(structure.uncertain)
+    if undefined:
+        notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds")
+    for k in singular:
+        notes.append(
+            f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it: "
+            f"{name} is a singular point of the distribution"
+        )
+    singular_low = [k for k in singular if k <= n - 2]
+    involutive = structure.involutive and not singular_low
+    linearizable = control_rank == n and not singular and structure.involutive
+    findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
+
+    searched = m == 1 and linearizable and structure._outputs is not None
+    output: sp.Expr | None = None
+    if searched and structure._outputs is not None:
+        output = structure._outputs.first_at(values)
+        if output is None:
+            notes.append(
+                "an output of relative degree n exists near the point (state-linearization theorem) "
+                "but was not found in closed form among the simple candidates tried"
+            )
+    return PointDistributions(
+        point=name,
+        ranks=tuple(ranks),
+        generic_ranks=structure.ranks,
+        singular_orders=singular,
+        controllability_rank=control_rank,
+        missing_directions=missing,
+        missing_vectors=tuple(tuple(v) for v in vectors),
+        involutive=involutive,
+        state_linearizable=linearizable,
+        failure=structure.failure,
+        output_searched=searched,
+        linearizing_output=output,
+        notes=tuple(notes),
+        findings=tuple(findings),
+    )
+
+
+def _kalman_columns(
+    kernel: Kernel, values: dict[sp.Symbol, sp.Expr], decide: Callable[[sp.Expr], Decision]
+) -> list[list[sp.Expr]] | None:
+    """[B, AB, ..., A^(n-1) B] at the point, or None when the point is not an
+    equilibrium of the drift (then the identity with the brackets does not hold)."""
+    plant = kernel.plant
+    f0 = matrix_at(kernel, [plant.f], values)
+    if any(not decide(e).zero for e in f0):
+        return None
+    A = matrix_at(kernel, [list(kernel.jacobian(plant.f).row(i)) for i in range(plant.n)], values)
+    columns = [list(matrix_at(kernel, [g], values).row(0)) for g in plant.g]
+    out: list[list[sp.Expr]] = []
+    for _ in range(plant.n):
+        out.extend(columns)
+        columns = [list(A * sp.Matrix(c)) for c in columns]
+    return out
+
+
+def _point_findings(
+    structure: DistributionStructure,
+    name: str,
+    ranks: Sequence[int],
+    control_rank: int,
+    singular: Sequence[int],
+    missing: Sequence[str],
+) -> list[Finding]:
+    n = structure.n
+    out: list[Finding] = []
+    top = n - 1
+    if n and control_rank < n:
+        message = (
+            f"at {name} the controllability distribution {structure.spanners(top)} has rank "
+            f"{control_rank} < {n}; missing directions: {'; '.join(missing) or 'undetermined'}"
+        )
+        if top in singular:
+            message += (
+                f" (around {name} the rank is {structure.ranks[top]}: {name} is a singular point "
+                "of the distribution)"
+            )
+        out.append(
+            Finding(
+                rule="not-controllable",
+                severity=Severity.ERROR,
+                message=message,
+                point=name,
+                anchor=f"point {name}",
+                hint="the input cannot steer these directions to first order by state feedback "
+                "through the drift brackets",
+            )
+        )
+    low = [k for k in singular if k <= n - 2]
+    if low:
+        parts = [
+            f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it"
+            for k in low
+        ]
+        out.append(
+            Finding(
+                rule="not-involutive",
+                severity=Severity.ERROR,
+                message=f"{'; '.join(parts)}: {name} is a singular point of the distribution, which "
+                "must be involutive and of constant rank near the point",
+                point=name,
+                anchor=f"point {name}",
+            )
+        )
+    return out
+
+
+def _orthogonal_complement(kernel: Kernel, basis_rows: list[list[sp.Expr]]) -> list[list[sp.Expr]]:
+    """A basis of the orthogonal complement of the span of exact vectors
+    (pivots decided rigorously at the point)."""
+    n = kernel.plant.n
+    if not basis_rows:
+        return [[sp.Integer(int(i == j)) for j in range(n)] for i in range(n)]
+
+    def is_zero(e: sp.Expr) -> bool:
+        return kernel.value_at(e, {}).zero is not False
+
+    null = sp.Matrix(basis_rows).nullspace(simplify=False, iszerofunc=is_zero)
+    return [_scaled(list(v)) for v in null]
+
+
+def _scaled(v: list[sp.Expr]) -> list[sp.Expr]:
+    """Integer entries with no common factor, first non-zero positive (when rational)."""
+    if all(e.is_Rational for e in v):
+        fracs = [Fraction(int(e.p), int(e.q)) for e in v]
+        den = lcm(*(f.denominator for f in fracs))
+        ints = [int(f * den) for f in fracs]
+        common = gcd(*ints) or 1
+        ints = [i // common for i in ints]
+        first = next((i for i in ints if i), 1)
+        sign = -1 if first < 0 else 1
+        return [sp.Integer(sign * i) for i in ints]
+    return v
+
+
+def _direction_text(v: Sequence[sp.Expr], states: Sequence[sp.Symbol]) -> str:
+    parts: list[str] = []
+    for coefficient, state in zip(v, states):
+        if coefficient == 0:
+            continue
+        term = f"d/d{state}"
+        if coefficient == 1:
+            text = term
+        elif coefficient == -1:
+            text = f"-{term}"
+        else:
+            c = str(coefficient)
+            text = f"{c} {term}" if coefficient.is_Atom else f"({c}) {term}"
+        if parts and text.startswith("-"):
+            parts.append(f"- {text[1:]}")
+        elif parts:
+            parts.append(f"+ {text}")
+        else:
+            parts.append(text)
+    return " ".join(parts)
+
+
+# -- report ---------------------------------------------------------------------------------
+def distributions_json(pd: PointDistributions) -> dict[str, object]:
+    """The per-point summary used in the JSON report."""
+    out: dict[str, object] = {
+        "controllability_rank": pd.controllability_rank,
+        "involutive": pd.involutive,
+        "state_linearizable": pd.state_linearizable,
+    }
+    if pd.output_searched:
+        out["linearizing_output"] = None if pd.linearizing_output is None else str(pd.linearizing_output)
+    return out

@@ -1,0 +1,387 @@
+"""The analyses of one model, in order, and the claims checked against them.
+
+Stages: structure (relative degrees, decoupling matrix), envelope (certified
+regularity and model singularities over the box), points (equilibria and the
+structure at each), zero dynamics (and the normal form), distributions
+(controllability and involutivity), claims (`expect` lines). Each stage reports
+its completion, so a stopped run can say what was and was not checked.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, replace
+from typing import Any, Callable
+
+import sympy as sp
+
+from plantlint.analysis.distributions import (
+    DistributionStructure,
+    PointDistributions,
+    analyse_distributions,
+    distributions_at,
+    distributions_json,
+)
+from plantlint.analysis.equilibria import Equilibrium, equilibrium_json, solve_point
+from plantlint.core.findings import Finding, Severity
+from plantlint.kernel.lie import Kernel
+from plantlint.language.model import ClaimDecl, Model
+from plantlint.analysis.normal_form import NormalForm, normal_form_at, normal_form_json, xi_name
+from plantlint.analysis.structure import (
+    Envelope,
+    PointStructure,
+    Structure,
+    analyse_structure,
+    certify_envelope,
+    envelope_json,
+    point_json,
+    structure_at_point,
+)
+from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at, zero_dynamics_json
+
+Stage = Callable[[str], None]
+
+
+@dataclass
+class PointAnalysis:
+    name: str
+    equilibrium: Equilibrium
+    structure: PointStructure | None = None
+    zero_dynamics: ZeroDynamics | None = None
+    normal_form: NormalForm | None = None
+    distributions: PointDistributions | None = None
+
+
+@dataclass
+class Analysis:
+    """Everything computed for one model (Python objects; ``to_json`` for reports)."""
+
+    model: Model
+    kernel: Kernel
+    structure: Structure
+    envelope: Envelope | None = None
+    points: list[PointAnalysis] = field(default_factory=list)
+    distributions: DistributionStructure | None = None
+    findings: list[Finding] = field(default_factory=list)
+
+    def to_json(self) -> dict[str, Any]:
+        m = self.model
+        points: dict[str, Any] = {}
+        for pa in self.points:
+            entry: dict[str, Any] = dict(equilibrium_json(pa.equilibrium))
+            if pa.structure is not None:
+                entry.update(point_json(pa.structure))
+            else:
+                entry.update({"relative_degree": {o: None for o in m.outputs}, "well_defined": False,
+                              "decoupling_rank": None})
+            zd = pa.zero_dynamics
+            entry["zero_dynamics"] = zero_dynamics_json(zd) if zd is not None and zd.verdict != "undefined" else None
+            if pa.normal_form is not None:
+                entry["normal_form"] = normal_form_json(pa.normal_form)
+            if pa.distributions is not None:
+                entry.update(distributions_json(pa.distributions))
+            points[pa.name] = entry
+        out: dict[str, Any] = {
+            "states": list(m.states),
+            "inputs": list(m.inputs),
+            "outputs": list(m.outputs),
+            "input_affine": m.input_affine,
+            "relative_degree": dict(self.structure.relative_degree),
+            "decoupling_rank": self.structure.generic_rank,
+            "envelope": envelope_json(self.envelope) if self.envelope is not None else
+            {"regular": None, "margin": None, "witness": None},
+            "points": points,
+        }
+        if self.distributions is not None:
+            ds = self.distributions
+            out["distributions"] = {
+                "ranks": list(ds.ranks),
+                "involutive": ds.involutive,
+                "failing_bracket": ds.failure.pair if ds.failure else None,
+            }
+        if self.kernel.uncertain:
+            out["unconfirmed_zero_tests"] = len(self.kernel.uncertain)
+        return out
+
+
+def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analysis:
+    """All stages for one model whose model-family checks passed."""
+    stage = stage or (lambda _s: None)
+    plant = model.plant()
+    assert plant is not None, "analysis needs an input-affine model"
+    kernel = Kernel(plant)
+    structure = analyse_structure(kernel)
+    result = Analysis(model, kernel, structure)
+    result.findings.extend(structure.findings)
+    stage("structure")
+
+    result.envelope = certify_envelope(kernel, structure, getattr(config, "envelope_seconds", 5.0),
+                                       getattr(config, "envelope_boxes", 20000))
+    result.findings.extend(result.envelope.findings)
+    stage("envelope")
+
+    for op in model.points:
+        given = {model.symbol(k): v for k, v in op.values.items()}
+        eq = solve_point(plant, op.name, given, kernel)
+        pa = PointAnalysis(op.name, eq)
+        result.findings.extend(eq.findings)
+        if all(s in eq.values for s in plant.states):
+            pa.structure = structure_at_point(kernel, structure, op.name, eq.values)
+            result.findings.extend(pa.structure.findings)
+        result.points.append(pa)
+    stage("points")
+
+    degrees = structure.vector_relative_degree
+    for pa in result.points:
+        if pa.structure is None or not pa.equilibrium.equilibrium or not pa.structure.well_defined:
+            continue
+        if any(d is None for d in degrees):
+            continue
+        ints = [int(d) for d in degrees if d is not None]
+        pa.zero_dynamics = zero_dynamics_at(kernel, ints, pa.equilibrium.values, pa.name)
+        result.findings.extend(pa.zero_dynamics.findings)
+        if pa.zero_dynamics.verdict == "not_applicable" and sum(ints) == plant.n:
+            pa.normal_form = _full_normal_form(kernel, ints)
+        elif pa.zero_dynamics.verdict != "undefined" and sum(ints) < plant.n:
+            pa.normal_form = normal_form_at(kernel, ints, pa.equilibrium.values)
+    stage("zero dynamics")
+
+    if plant.m >= 1:
+        by_outputs = outputs_linearize(structure, plant.n, plant.m)
+        generic: list[DistributionStructure] = []  # the bracket analysis, built at most once
+        shifted: dict[tuple[sp.Expr, ...], tuple[Kernel, DistributionStructure]] = {}
+
+        def brackets() -> DistributionStructure:
+            if not generic:
+                generic.append(analyse_distributions(kernel))
+                result.findings.extend(generic[0].findings)
+            return generic[0]
+
+        for pa in result.points:
+            if not all(s in pa.equilibrium.values for s in plant.states):
+                continue
+            if by_outputs is not None and pa.structure is not None and pa.structure.well_defined:
+                pa.distributions = _linearizable_at(pa.name, by_outputs, structure, a_output=kernel.h)
+                continue
+            at_kernel, at_structure = _feedback_shifted(kernel, brackets(), pa.equilibrium, shifted)
+            pa.distributions = distributions_at(at_kernel, at_structure, pa.name, pa.equilibrium.values)
+            result.findings.extend(pa.distributions.findings)
+        result.distributions = by_outputs if by_outputs is not None else brackets()
+    stage("distributions")
+
+    result.findings.extend(check_claims(result))
+    stage("claims")
+    return result
+
+
+def _full_normal_form(kernel: Kernel, degrees: list[int]) -> NormalForm:
+    """r = n at a point where the relative degree is well defined: the n functions
+    L_f^k h_i are coordinates there, because their differentials are independent
+    (the rank lemma: Isidori, Nonlinear Control Systems, 3rd ed., Lemmas 4.1.1 and
+    5.1.1), so no Jacobian has to be formed."""
+    plant = kernel.plant
+    xi = tuple(xi_name(kernel.lf(i, k), plant.outputs[i], k) for i in range(plant.p) for k in range(degrees[i]))
+    return NormalForm(xi, (), plant.n, True, True, None,
+                      note="total relative degree n: no internal coordinates, no zero dynamics")
+
+
+BY_OUTPUTS_NOTE = (
+    "state linearizable here by the outputs: their vector relative degree sums to n and the "
+    "decoupling matrix is nonsingular at this point, so the outputs and their Lie derivatives are "
+    "linearizing coordinates (Isidori, Nonlinear Control Systems, 3rd ed., sec. 5.2)"
+)
+
+
+def outputs_linearize(structure: Structure, n: int, m: int) -> DistributionStructure | None:
+    """The distributions, known without brackets, when the declared outputs linearize the state.
+
+    With as many outputs as inputs, a vector relative degree (r_1..r_m) summing
+    to n and a decoupling matrix of full rank, the plant is feedback equivalent
+    (near every point where A is nonsingular) to m chains of integrators of
+    lengths r_i. There G_k has rank sum_i min(k+1, r_i), every G_k is
+    involutive and G_(n-1) has rank n. The expensive brackets are then skipped.
+    """
+    degrees = structure.vector_relative_degree
+    if len(degrees) != m or any(r is None for r in degrees) or structure.generic_rank != m:
+        return None
+    rs = [int(r) for r in degrees if r is not None]
+    if sum(rs) != n:
+        return None
+    ranks = tuple(sum(min(k + 1, r) for r in rs) for k in range(n))
+    return DistributionStructure(n=n, m=m, fields=(), ranks=ranks, bases=tuple(() for _ in ranks),
+                                 involutive_by_order=tuple(True for _ in range(max(n - 1, 0))), failures=(),
+                                 uncertain=(), findings=())
+
+
+def _linearizable_at(name: str, ds: DistributionStructure, structure: Structure,
+                     a_output: tuple[sp.Expr, ...]) -> PointDistributions:
+    single = ds.m == 1
+    return PointDistributions(
+        point=name, ranks=ds.ranks, generic_ranks=ds.ranks, singular_orders=(), controllability_rank=ds.n,
+        missing_directions=(), missing_vectors=(), involutive=True, state_linearizable=True, failure=None,
+        output_searched=single, linearizing_output=a_output[0] if single else None, notes=(BY_OUTPUTS_NOTE,),
+        findings=(),
+    )
+
+
+def _feedback_shifted(kernel: Kernel, structure: DistributionStructure, eq: Equilibrium,
+                      memo: dict[tuple[sp.Expr, ...], tuple[Kernel, DistributionStructure]]
+                      ) -> tuple[Kernel, DistributionStructure]:
+    """Kernel and structure for the ranks at an equilibrium held by inputs u0 != 0.
+
+    The conditions for state linearization are invariant under the feedback
+    u = u0 + v, but the ranks of [g, ad_f g, ...] *at a point* are those of the
+    drift that vanishes there: with f~ = f + g u0 they are the ranks of the
+    Kalman matrix of the linearisation, as a control engineer reads them. With
+    the bare drift a hover or a gravity-holding point would look like a false
+    singular point.
+    """
+    plant = kernel.plant
+    u0 = [eq.values.get(u, sp.Integer(0)) for u in plant.inputs]
+    if not eq.equilibrium or all(v == 0 for v in u0):
+        return kernel, structure
+    key = tuple(u0)
+    if key in memo:  # points held by the same inputs share the shifted drift
+        return memo[key]
+    shifted_f = tuple(
+        plant.f[i] + sum((plant.g[j][i] * u0[j] for j in range(plant.m)), sp.Integer(0)) for i in range(plant.n)
+    )
+    shifted = Kernel(replace(plant, f=shifted_f), seed=kernel.seed)
+    # generic ranks of the shifted drift too, so that "rank drops at the point"
+    # compares like with like (only the conditions as a whole are feedback invariant)
+    memo[key] = (shifted, analyse_distributions(shifted))
+    return memo[key]
+
+
+def analyse(model: Model, config: Any, stage: Stage | None = None) -> tuple[dict[str, Any], list[Finding]]:
+    """Entry point used by the pipeline: JSON-ready analysis and findings."""
+    result = run_analysis(model, config, stage)
+    return result.to_json(), result.findings
+
+
+# -- claims -------------------------------------------------------------------------
+
+def check_claims(a: Analysis) -> list[Finding]:
+    out: list[Finding] = []
+    for claim in a.model.claims:
+        checker = _CLAIM_CHECKS[claim.kind]
+        failures = checker(a, claim)
+        if claim.kind in ("regular", "minimum_phase") and not a.model.outputs:
+            failures = [(claim.point, "the model declares no output, so there is no relative degree or zero "
+                                      "dynamics to check")]
+        for point, message in failures:
+            out.append(Finding("expectation-failed", Severity.ERROR, f"`{_claim_text(claim)}` does not hold: {message}",
+                               point=point, anchor=claim.anchor))
+    return out
+
+
+def _claim_text(c: ClaimDecl) -> str:
+    text = f"expect relative_degree({c.output}) = {c.value}" if c.kind == "relative_degree" else f"expect {c.kind}"
+    return text + (f" at {c.point}" if c.point else "")
+
+
+def _points_for(a: Analysis, claim: ClaimDecl) -> list[PointAnalysis]:
+    return [p for p in a.points if claim.point is None or p.name == claim.point]
+
+
+def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
+    generic = a.structure.relative_degree.get(c.output or "")
+    if c.point is None:
+        if generic != c.value:
+            return [(None, f"the relative degree of '{c.output}' is {_degree(generic)}")]
+        return []
+    out = []
+    for pa in _points_for(a, c):
+        at = pa.structure.relative_degree.get(c.output or "") if pa.structure else None
+        if at != c.value:
+            why = f"it is {_degree(at)} there" if at is not None else (
+                f"it is not well defined there (generic relative degree {_degree(generic)})")
+            out.append((pa.name, f"at point '{pa.name}' {why}"))
+    return out
+
+
+def _degree(r: int | None) -> str:
+    return str(r) if r is not None else "undefined (the inputs never reach it)"
+
+
+def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
+    out: list[tuple[str | None, str]] = []
+    if c.point is None:
+        env = a.envelope
+        if env is None or env.regular is None:
+            out.append((None, "regularity over the envelope could not be proven "
+                              "(see the envelope-unproven finding)"))
+        elif env.regular is False:
+            where = ", ".join(f"{k} = {v:.6g}" for k, v in (env.witness or {}).items())
+            out.append((None, "the relative degree is not well defined everywhere in the envelope"
+                              + (f" (singular at {where})" if where else "")))
+    for pa in _points_for(a, c):
+        if pa.structure is None or not pa.structure.well_defined:
+            out.append((pa.name, f"at point '{pa.name}' the relative degree is not well defined "
+                                 "or the decoupling matrix is singular"))
+    return out
+
+
+def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
+    points = _points_for(a, c)
+    if not points:
+        return [(None, "the model declares no operating point to check it at")]
+    out: list[tuple[str | None, str]] = []
+    for pa in points:
+        zd = pa.zero_dynamics
+        if pa.structure is None or not pa.equilibrium.equilibrium:
+            if c.point is not None:
+                out.append((pa.name, f"'{pa.name}' is not an equilibrium, so the zero dynamics are not defined there"))
+            continue
+        if zd is None or zd.verdict == "undefined":
+            reason = zd.reason if zd is not None and zd.reason else "the relative degree is not well defined there"
+            out.append((pa.name, f"at point '{pa.name}' the zero dynamics could not be computed: {reason}"))
+        elif zd.verdict == "non_minimum_phase":
+            out.append((pa.name, f"at point '{pa.name}' the zero dynamics are unstable: eigenvalues "
+                                 f"{show_eigenvalues(zd.eigenvalues)}"))
+        elif zd.verdict == "critical":
+            out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues on the "
+                                 f"imaginary axis ({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
+                                 "asymptotic stability"))
+    if c.point is None and not any(p.equilibrium.equilibrium for p in points):
+        out.append((None, "no declared point is an equilibrium"))
+    return out
+
+
+def _state_linearizable_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
+    ds = a.distributions
+    if ds is None:
+        return [(None, "the plant has no input")]
+    points = _points_for(a, c)
+    out: list[tuple[str | None, str]] = []
+    if not points:
+        n = a.model.plant().n if a.model.plant() else 0
+        if not ds.ranks or ds.ranks[-1] < n:
+            out.append((None, f"the controllability distribution has generic rank {ds.ranks[-1] if ds.ranks else 0} < {n}"))
+        elif not ds.involutive and ds.failure is not None:
+            out.append((None, f"{ds.name(ds.failure.order)} is not involutive ({ds.failure.pair} leaves it)"))
+        return out
+    for pa in points:
+        pd = pa.distributions
+        if pd is None:
+            out.append((pa.name, f"point '{pa.name}' is incomplete"))
+        elif not pd.state_linearizable:
+            why = []
+            n = len(pd.ranks)
+            if pd.controllability_rank < n:
+                why.append(f"controllability rank {pd.controllability_rank} < {n}")
+            if not pd.involutive and pd.failure is not None:
+                why.append(f"{ds.name(pd.failure.order)} is not involutive ({pd.failure.pair} leaves it)")
+            if pd.singular_orders:
+                why.append("rank of " + ", ".join(ds.name(k) for k in pd.singular_orders) + " drops at the point")
+            out.append((pa.name, f"at point '{pa.name}': " + ("; ".join(why) or "conditions fail")))
+    return out
+
+
+_CLAIM_CHECKS: dict[str, Callable[[Analysis, ClaimDecl], list[tuple[str | None, str]]]] = {
+    "relative_degree": _relative_degree_claim,
+    "regular": _regular_claim,
+    "minimum_phase": _minimum_phase_claim,
+    "state_linearizable": _state_linearizable_claim,
+}
+
+__all__ = ["Analysis", "PointAnalysis", "analyse", "check_claims", "run_analysis"]

@@ -1,0 +1,345 @@
+"""Operating points: is the declared point an equilibrium, and with which inputs?
+
+A ``point`` gives every state and some inputs. The rates F(x0, u0) = f(x0) + g(x0) u0
+are affine in the inputs, so the inputs the author left out are found by exact
+linear algebra on the numbers at the point. The numbers may be transcendental
+(``sin(1/3)``), so every "is this entry zero?" is decided rigorously by the kernel
+(ball arithmetic, then exact confirmation), never by a float comparison.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Callable, Sequence
+
+import sympy as sp
+
+from plantlint.kernel.balls import UnsupportedExpression
+from plantlint.core.findings import Finding, Severity
+from plantlint.kernel.lie import Kernel
+from plantlint.kernel.plant import Plant, as_expr
+
+#: Outcomes of :func:`solve_point`.
+STATUSES = ("equilibrium", "not_equilibrium", "undetermined", "no_solution", "missing_states", "undefined")
+
+ZeroDecider = Callable[[sp.Expr], "bool | None"]
+
+
+@dataclass(frozen=True)
+class Equilibrium:
+    """What a declared operating point turned out to be.
+
+    ``values`` holds the states, the given inputs and the inputs solved for (exact).
+    ``residual`` is F(x0, u0) per state when every input is known, else empty.
+    """
+
+    name: str
+    equilibrium: bool
+    status: str  # one of STATUSES
+    values: dict[sp.Symbol, sp.Expr]
+    solved_inputs: tuple[sp.Symbol, ...] = ()
+    undetermined_inputs: tuple[sp.Symbol, ...] = ()
+    residual: tuple[sp.Expr, ...] = ()
+    findings: tuple[Finding, ...] = field(default_factory=tuple)
+
+
+# -- exact numbers -------------------------------------------------------------
+def number_decider(kernel: Kernel) -> ZeroDecider:
+    """``decide(c)`` -> True/False for "c is exactly zero", None when undefined."""
+
+    def decide(value: sp.Expr) -> bool | None:
+        return kernel.constant_is_zero(as_expr(value))
+
+    return decide
+
+
+def magnitude(value: sp.Expr) -> float:
+    """A float size for pivot choice only (never for a zero decision)."""
+    if value.is_Rational:
+        return abs(float(value))
+    try:
+        return abs(complex(value.evalf(30)))
+    except (TypeError, ValueError):
+        return 0.0
+
+
+def show_number(value: sp.Expr) -> str:
+    """Exact when rational, otherwise ``~`` and a decimal."""
+    if value.is_Rational:
+        return str(value)
+    try:
+        return "~" + format(float(value.evalf(20)), ".6g")
+    except (TypeError, ValueError):
+        return "undefined"
+
+
+def gauss_jordan(
+    rows: list[list[sp.Expr]], ncols: int, decide: ZeroDecider
+) -> tuple[list[list[sp.Expr]], list[int]]:
+    """Reduced row echelon form over the first ``ncols`` columns, exactly.
+
+    Entries decided zero are replaced by an exact 0 so that later tests stay
+    cheap; the pivot in each column is the entry of largest size (stability of
+    the exact expressions' later numeric use). Returns the rows and pivot columns.
+    """
+    work = [list(r) for r in rows]
+    pivots: list[int] = []
+    top = 0
+    for col in range(ncols):
+        best, best_size = -1, -1.0
+        for i in range(top, len(work)):
+            if work[i][col] == 0:
+                continue
+            z = decide(work[i][col])
+            if z is not False:
+                work[i][col] = sp.Integer(0)
+                continue
+            size = magnitude(work[i][col])
+            if size > best_size:
+                best, best_size = i, size
+        if best < 0:
+            continue
+        work[top], work[best] = work[best], work[top]
+        piv = work[top][col]
+        work[top] = [e / piv if e != 0 else e for e in work[top]]
+        work[top][col] = sp.Integer(1)
+        for i in range(len(work)):
+            if i == top or work[i][col] == 0:
+                continue
+            factor = work[i][col]
+            work[i] = [a - factor * b if b != 0 else a for a, b in zip(work[i], work[top])]
+            work[i][col] = sp.Integer(0)
+        pivots.append(col)
+        top += 1
+        if top == len(work):
+            break
+    return work, pivots
+
+
+def exact_rank(rows: Sequence[Sequence[sp.Expr]], decide: ZeroDecider) -> int:
+    """Rank of a matrix of exact numbers, with rigorous zero decisions."""
+    if not rows:
+        return 0
+    _, pivots = gauss_jordan([[as_expr(e) for e in r] for r in rows], len(rows[0]), decide)
+    return len(pivots)
+
+
+# -- the point -------------------------------------------------------------------
+def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel: Kernel | None = None) -> Equilibrium:
+    """Check the declared point ``name`` and solve for the inputs it leaves out."""
+    kernel = kernel or Kernel(plant)
+    given = {s: as_expr(v) for s, v in given.items()}
+    decide = number_decider(kernel)
+    anchor = f"point {name}"
+    findings: list[Finding] = []
+
+    def report(rule: str, severity: Severity, message: str, hint: str | None = None) -> None:
+        findings.append(Finding(rule, severity, message, point=name, anchor=anchor, hint=hint))
+
+    values: dict[sp.Symbol, sp.Expr] = {s: given[s] for s in (*plant.states, *plant.inputs) if s in given}
+    missing = [s for s in plant.states if s not in given]
+    findings.extend(_envelope_findings(plant, name, values, decide, solved=()))
+    if missing:
+        report(
+            "point-incomplete",
+            Severity.ERROR,
+            f"point {name} does not give the state(s) {_names(missing)}; every state must be given",
+        )
+        return Equilibrium(name, False, "missing_states", values, findings=tuple(findings))
+
+    subs = dict(plant.param_nominal)
+    subs.update({s: v for s, v in given.items() if s in plant.params})
+    subs.update({s: values[s] for s in plant.states})
+    f0 = [_at(e, subs) for e in plant.f]
+    G0 = [[_at(plant.g[j][i], subs) for j in range(plant.m)] for i in range(plant.n)]
+    undefined = [plant.states[i] for i in range(plant.n) if _undefined([f0[i], *G0[i]])]
+    if undefined:
+        report(
+            "point-not-equilibrium",
+            Severity.ERROR,
+            f"at point {name} the rate(s) of {_names(undefined)} are undefined "
+            "(division by zero or a function outside its domain)",
+        )
+        return Equilibrium(name, False, "undefined", values, findings=tuple(findings))
+
+    known = [j for j, u in enumerate(plant.inputs) if u in values]
+    unknown = [j for j, u in enumerate(plant.inputs) if u not in values]
+    # right-hand side: c = f0 + G_known u_known ; we need G_unknown u_unknown = -c
+    c = [f0[i] + sum((G0[i][j] * values[plant.inputs[j]] for j in known), sp.Integer(0)) for i in range(plant.n)]
+
+    if not unknown:
+        return _check_residual(plant, name, values, c, decide, findings)
+
+    n, k = plant.n, len(unknown)
+    # augmented rows [G_unknown | -c | e_i]: the identity part records which rates
+    # combine into an impossible equation when there is no solution
+    rows = [
+        [G0[i][j] for j in unknown] + [-c[i]] + [sp.Integer(1 if a == i else 0) for a in range(n)]
+        for i in range(n)
+    ]
+    reduced, pivots = gauss_jordan(rows, k, decide)
+    conflicts: list[list[int]] = []
+    for row in reduced[len(pivots):]:
+        rhs = row[k]
+        if decide(rhs) is False:
+            conflicts.append([a for a in range(n) if row[k + 1 + a] != 0])
+    if conflicts:
+        return _no_solution(plant, name, values, unknown, G0, c, conflicts, decide, findings)
+
+    free = [col for col in range(k) if col not in pivots]
+    solved: dict[sp.Symbol, sp.Expr] = {}
+    undetermined = [plant.inputs[unknown[col]] for col in free]
+    for row_index, col in enumerate(pivots):
+        row = reduced[row_index]
+        if any(row[fc] != 0 for fc in free):
+            undetermined.append(plant.inputs[unknown[col]])
+        else:
+            solved[plant.inputs[unknown[col]]] = row[k]
+    values.update(solved)
+    findings.extend(_envelope_findings(plant, name, solved, decide, solved=tuple(solved)))
+    solved_order = tuple(u for u in plant.inputs if u in solved)
+    if undetermined:
+        order = [u for u in plant.inputs if u in undetermined]
+        report(
+            "point-incomplete",
+            Severity.ERROR,
+            f"at point {name} the equilibrium equations do not determine the input(s) {_names(order)}; "
+            "give their values in the point",
+        )
+        return Equilibrium(
+            name, False, "undetermined", values, solved_order, tuple(order), findings=tuple(findings)
+        )
+    residual = tuple(
+        c[i] + sum((G0[i][j] * solved[plant.inputs[j]] for j in unknown), sp.Integer(0)) for i in range(n)
+    )
+    return Equilibrium(name, True, "equilibrium", values, solved_order, (), residual, tuple(findings))
+
+
+def _check_residual(
+    plant: Plant,
+    name: str,
+    values: dict[sp.Symbol, sp.Expr],
+    residual: list[sp.Expr],
+    decide: ZeroDecider,
+    findings: list[Finding],
+) -> Equilibrium:
+    """Every input is given: the point is an equilibrium iff every rate vanishes."""
+    bad = [(plant.states[i], r) for i, r in enumerate(residual) if decide(r) is not True]
+    if bad:
+        shown = ", ".join(f"d{s}/dt = {show_number(r)}" for s, r in bad)
+        findings.append(
+            Finding(
+                "point-not-equilibrium",
+                Severity.ERROR,
+                f"point {name} is not an equilibrium: {shown}",
+                point=name,
+                anchor=f"point {name}",
+            )
+        )
+    return Equilibrium(name, not bad, "not_equilibrium" if bad else "equilibrium", values,
+                       residual=tuple(residual), findings=tuple(findings))
+
+
+def _no_solution(
+    plant: Plant,
+    name: str,
+    values: dict[sp.Symbol, sp.Expr],
+    unknown: list[int],
+    G0: list[list[sp.Expr]],
+    c: list[sp.Expr],
+    conflicts: list[list[int]],
+    decide: ZeroDecider,
+    findings: list[Finding],
+) -> Equilibrium:
+    """No input makes the point an equilibrium: say which rates stand in the way."""
+    alone = [i for i in range(plant.n) if all(decide(G0[i][j]) is True for j in unknown) and decide(c[i]) is False]
+    parts = []
+    if alone:
+        parts.append(
+            "no input acts on "
+            + ", ".join(f"d{plant.states[i]}/dt = {show_number(c[i])}" for i in alone)
+        )
+    joint = [group for group in conflicts if not (len(group) == 1 and group[0] in alone)]
+    for group in joint:
+        parts.append("the rates of " + _names([plant.states[i] for i in group]) + " cannot vanish together")
+    missing = [plant.inputs[j] for j in unknown]
+    findings.append(
+        Finding(
+            "point-incomplete",
+            Severity.ERROR,
+            f"no value of the input(s) {_names(missing)} makes point {name} an equilibrium: " + "; ".join(parts),
+            point=name,
+            anchor=f"point {name}",
+        )
+    )
+    return Equilibrium(name, False, "no_solution", values, undetermined_inputs=tuple(missing), findings=tuple(findings))
+
+
+def _envelope_findings(
+    plant: Plant,
+    name: str,
+    values: dict[sp.Symbol, sp.Expr],
+    decide: ZeroDecider,
+    solved: tuple[sp.Symbol, ...],
+) -> list[Finding]:
+    """Warnings for values outside their declared range (decided exactly)."""
+    out = []
+    boxes = {**plant.state_box, **plant.input_box}
+    for sym, value in values.items():
+        bounds = boxes.get(sym)
+        if bounds is None:
+            continue
+        lo, hi = (plant.nominal(b) for b in bounds)
+        below = _certainly_negative(value - lo, decide)
+        above = _certainly_negative(hi - value, decide)
+        if not (below or above):
+            continue
+        kind = "state" if sym in plant.states else ("input needed" if sym in solved else "input")
+        out.append(
+            Finding(
+                "point-outside-envelope",
+                Severity.WARNING,
+                f"at point {name} the {kind} {sym} = {show_number(value)} lies outside its range "
+                f"{show_number(lo)} .. {show_number(hi)}",
+                point=name,
+                anchor=f"point {name}",
+            )
+        )
+    return out
+
+
+def _certainly_negative(value: sp.Expr, decide: ZeroDecider) -> bool:
+    if value.is_Rational:
+        return bool(value < 0)
+    if decide(value) is not False:
+        return False
+    from plantlint.kernel.balls import to_arb
+
+    try:
+        b = to_arb(value)
+    except UnsupportedExpression:
+        return False
+    return bool(b < 0)
+
+
+def _at(expr: sp.Expr, subs: dict[sp.Symbol, sp.Expr]) -> sp.Expr:
+    return expr.xreplace(subs) if expr != 0 else expr
+
+
+def _undefined(values: Sequence[sp.Expr]) -> bool:
+    return any(v.has(sp.zoo, sp.nan, sp.oo, -sp.oo) for v in values)
+
+
+def _names(symbols: Sequence[sp.Symbol]) -> str:
+    return ", ".join(str(s) for s in symbols)
+
+
+def equilibrium_json(eq: Equilibrium) -> dict[str, object]:
+    """The analysis record for one point (floats for display; exact values stay in Python)."""
+    out: dict[str, float] = {}
+    for sym, value in eq.values.items():
+        try:
+            out[str(sym)] = float(value) if value.is_Rational else float(value.evalf(20))
+        except (TypeError, ValueError):
+            continue
+    return {"equilibrium": eq.equilibrium, "values": out}

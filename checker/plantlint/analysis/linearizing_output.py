@@ -1,0 +1,121 @@
+"""Searching for a linearizing output: a simple function of the states with relative degree n.
+
+For a single-input plant that passes the state-linearization conditions such an
+output exists (it solves L_(ad_f^k g) phi = 0, k <= n-2). Candidates are the
+states, then small combinations; each is screened in floating point against
+D_(n-2) and only then verified rigorously with Lie-derivative chains, so a
+suggestion is never a guess.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator, Sequence
+from typing import TYPE_CHECKING
+
+import sympy as sp
+from flint import arb
+
+from plantlint.kernel.balls import Program, UnsupportedExpression
+from plantlint.kernel.lie import Kernel, Vector
+
+if TYPE_CHECKING:
+    from plantlint.analysis.distributions import DistributionStructure
+
+#: Relative tolerance of the floating-point prefilter for output candidates
+#: (only a prefilter: every candidate kept is then verified rigorously).
+CANDIDATE_TOLERANCE = 1e-9
+#: Sample points used by the output-candidate prefilter.
+CANDIDATE_SAMPLES = 3
+
+
+class OutputSearch:
+    """Simple outputs of relative degree n, screened in floating point against
+    D_(n-2) and then verified rigorously with Lie derivative chains."""
+
+    def __init__(self, kernel: Kernel, structure: "DistributionStructure"):
+        self.kernel = kernel
+        self.structure = structure
+        self._lf: dict[tuple[sp.Expr, int], sp.Expr] = {}
+        self._verified: dict[sp.Expr, bool] = {}
+        self._screened: list[sp.Expr] | None = None
+
+    def lie_f(self, phi: sp.Expr, k: int) -> sp.Expr:
+        """L_f^k phi, memoised per candidate."""
+        key = (phi, k)
+        if key not in self._lf:
+            self._lf[key] = phi if k == 0 else self.kernel.lie(self.lie_f(phi, k - 1), self.kernel.f)
+        return self._lf[key]
+
+    def lg_lf(self, phi: sp.Expr, k: int) -> sp.Expr:
+        return self.kernel.lie(self.lie_f(phi, k), self.kernel.g[0])
+
+    def first_at(self, values: dict[sp.Symbol, sp.Expr]) -> sp.Expr | None:
+        n = self.structure.n
+        for phi in self.screened():
+            if not self.verified(phi):
+                continue
+            v = self.kernel.value_at(self.lg_lf(phi, n - 1), values)
+            if v.zero is False:
+                return phi
+        return None
+
+    def verified(self, phi: sp.Expr) -> bool:
+        """L_g L_f^k phi identically zero for k < n-1 (proved, not only screened)."""
+        if phi not in self._verified:
+            ok = True
+            for k in range(self.structure.n - 1):
+                t = self.kernel.is_zero(self.lg_lf(phi, k))
+                if not (t.zero and t.certain):
+                    ok = False
+                    break
+            self._verified[phi] = ok
+        return self._verified[phi]
+
+    def screened(self) -> list[sp.Expr]:
+        if self._screened is None:
+            self._screened = list(self._screen())
+        return self._screened
+
+    def _screen(self) -> Iterator[sp.Expr]:
+        n = self.structure.n
+        fields = [f.vector for f in self.structure.fields if f.order <= n - 2]
+        symbols = self.kernel.free_symbols()
+        try:
+            program = Program([e for v in fields for e in v], symbols)
+        except UnsupportedExpression:
+            return  # nothing to screen with: no suggestion
+        points: list[tuple[dict[sp.Symbol, sp.Expr], list[list[float]]]] = []
+        for sample in self.kernel.samples()[:CANDIDATE_SAMPLES]:
+            balls = program.run([arb(sample[s].numerator) / sample[s].denominator for s in symbols], 64)
+            if all(b.is_finite() for b in balls):
+                floats = [float(b.mid()) for b in balls]
+                exact = {s: sp.Rational(sample[s].numerator, sample[s].denominator) for s in symbols}
+                points.append((exact, [floats[i * n : (i + 1) * n] for i in range(len(fields))]))
+        for phi in _candidates(self.kernel.plant.states):
+            gradient = self.kernel.gradient(phi)
+            if all(_annihilates(gradient, exact, columns) for exact, columns in points):
+                yield phi
+
+
+def _annihilates(gradient: Vector, point: dict[sp.Symbol, sp.Expr], columns: list[list[float]]) -> bool:
+    """Floating-point test of <dphi, X> = 0 at a sample (a prefilter only)."""
+    dphi = [float(d.xreplace(point)) for d in gradient]
+    for column in columns:
+        terms = [a * b for a, b in zip(dphi, column)]
+        if abs(sum(terms)) > CANDIDATE_TOLERANCE * max(1.0, sum(abs(t) for t in terms)):
+            return False
+    return True
+
+
+def _candidates(states: Sequence[sp.Symbol]) -> Iterator[sp.Expr]:
+    """States, then x_a +- c x_b and c x_a +- x_b (c = 1, 2, 3), then squares and products."""
+    n = len(states)
+    yield from states
+    weights = [(1, s * c) for c in (1, 2, 3) for s in (1, -1)] + [(c, s) for c in (2, 3) for s in (1, -1)]
+    for a in range(n):
+        for b in range(a + 1, n):
+            for ca, cb in weights:
+                yield ca * states[a] + cb * states[b]
+    for a in range(n):
+        for b in range(a, n):
+            yield states[a] * states[b]

@@ -1,0 +1,572 @@
+"""Input-output structure: relative degree, decoupling matrix, regularity.
+
+Three questions, from cheap to expensive:
+
+* generic (everywhere but a thin set): the first k with L_g L_f^(k-1) h_i not
+  identically zero gives r_i; the rows L_gj L_f^(r_i-1) h_i form the decoupling
+  matrix A, and b_i = L_f^(r_i) h_i;
+* at an operating point: r_i is defined at x0 only when its row is non-zero at
+  x0 (a generic non-zero that vanishes at x0 is a singular point, not a higher
+  relative degree), and the vector relative degree needs rank A(x0) = p — both
+  decided exactly;
+* over the operating envelope (a box of states and ranged parameters): det A
+  (square), the row (one output) or the p x p minors (wide) are certified
+  non-zero by branch-and-bound (:mod:`plantlint.kernel.intervals`), after checking that
+  the model itself is defined there (denominators, sqrt/log/asin arguments).
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from itertools import combinations
+from typing import Any, Sequence
+
+import sympy as sp
+
+from plantlint.kernel.balls import UnsupportedExpression
+from plantlint.core.findings import Finding, Severity
+from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
+from plantlint.language.printer import show_expr
+from plantlint.kernel.lie import Kernel, matrix_at
+
+#: Expressions up to this size are factored for messages; larger ones are cut.
+FACTOR_OPS_LIMIT = 40
+MESSAGE_CHARS = 120
+#: Generic rank confirmation tests at most this many minors symbolically.
+MAX_MINORS_CONFIRMED = 60
+
+
+@dataclass(frozen=True, eq=False)
+class OutputStructure:
+    """Relative degree of one output and the row it contributes to A."""
+
+    name: str
+    relative_degree: int | None
+    row: tuple[sp.Expr, ...]  # L_gj L_f^(r-1) h for every input j; empty when r is None
+    unconfirmed: tuple[str, ...] = ()  # L_gj L_f^k h taken as zero without symbolic proof
+
+
+@dataclass(frozen=True, eq=False)
+class Structure:
+    """Generic structure of a plant."""
+
+    outputs: tuple[OutputStructure, ...]
+    decoupling: sp.Matrix | None  # p x m, only when every output has a relative degree
+    generic_rank: int | None
+    rank_certain: bool
+    zero_columns: tuple[int, ...]  # inputs whose column of A is identically zero
+    findings: tuple[Finding, ...]
+    input_names: tuple[str, ...] = ()
+
+    @property
+    def relative_degree(self) -> dict[str, int | None]:
+        return {o.name: o.relative_degree for o in self.outputs}
+
+    @property
+    def vector_relative_degree(self) -> tuple[int | None, ...]:
+        return tuple(o.relative_degree for o in self.outputs)
+
+
+@dataclass(frozen=True)
+class PointStructure:
+    """Structure at one operating point."""
+
+    name: str
+    relative_degree: dict[str, int | None]
+    well_defined: bool
+    decoupling_rank: int
+    rank_certain: bool
+    findings: tuple[Finding, ...]
+
+
+@dataclass(frozen=True)
+class Envelope:
+    """Regularity over the operating envelope."""
+
+    regular: bool | None
+    margin: float | None
+    witness: dict[str, float] | None
+    findings: tuple[Finding, ...]
+    boxes_examined: int = 0
+    seconds: float = 0.0
+    certified: str = ""  # what was certified, in words
+
+
+# -- naming and message helpers ------------------------------------------------------------
+def lie_name(kernel: Kernel, j: int | None, i: int, k: int) -> str:
+    """'L_g L_f^2 y' (one input) or 'L_g[F] L_f y' (several)."""
+    plant = kernel.plant
+    g = "L_g" if plant.m == 1 or j is None else f"L_g[{plant.inputs[j]}]"
+    f = "" if k == 0 else (" L_f" if k == 1 else f" L_f^{k}")
+    return f"{g}{f} {plant.outputs[i]}"
+
+
+def compact(expr: sp.Expr) -> str:
+    """A readable form of an expression for messages: factored when small, cut when large."""
+    text = show_expr(expr, limit=10**6)
+    if sp.count_ops(expr) <= FACTOR_OPS_LIMIT:
+        try:
+            factored = show_expr(sp.factor(sp.cancel(expr)), limit=10**6)
+        except (sp.PolynomialError, TypeError, ValueError):
+            factored = text
+        text = min(text, factored, key=len)
+    return text if len(text) <= MESSAGE_CHARS else text[: MESSAGE_CHARS - 3] + "..."
+
+
+def _format_point(values: dict[str, float]) -> str:
+    return ", ".join(f"{k} = {v:.6g}" for k, v in values.items())
+
+
+# -- generic structure --------------------------------------------------------------------
+def analyse_structure(kernel: Kernel) -> Structure:
+    """Generic relative degrees, decoupling matrix A and b, and their findings."""
+    plant = kernel.plant
+    outputs: list[OutputStructure] = []
+    findings: list[Finding] = []
+    for i, name in enumerate(plant.outputs):
+        out = _output_structure(kernel, i)
+        outputs.append(out)
+        if out.relative_degree is None:
+            findings.append(Finding(
+                "relative-degree-undefined", Severity.ERROR,
+                f"output {name} never sees the inputs: L_g L_f^k {name} vanishes identically "
+                f"for k = 0..{plant.n - 1}, so it has no relative degree",
+                anchor=f"output {name}",
+                hint="check the output equation and the input columns of the rates",
+            ))
+        if out.unconfirmed:
+            findings.append(Finding(
+                "analysis-budget", Severity.WARNING,
+                f"relative degree of {name} assumes {', '.join(out.unconfirmed)} vanish identically; "
+                "the numeric screening says so but symbolic confirmation was out of budget",
+                anchor=f"output {name}",
+            ))
+    names = tuple(str(u) for u in plant.inputs)
+    if any(o.relative_degree is None for o in outputs) or plant.m == 0:
+        return Structure(tuple(outputs), None, None, False, (), tuple(findings), names)
+    A = sp.Matrix([list(o.row) for o in outputs])
+    rank, certain = _generic_rank(kernel, A)
+    zero_cols = tuple(j for j in range(plant.m) if all(kernel.is_zero(A[i, j]).zero for i in range(plant.p)))
+    if rank < plant.p:
+        findings.append(Finding(
+            "decoupling-singular", Severity.ERROR,
+            f"the decoupling matrix is singular everywhere: rank {rank} for {plant.p} outputs"
+            + (f" ({plant.p} outputs but only {plant.m} input{'s' if plant.m != 1 else ''})" if plant.p > plant.m else "")
+            + ("" if certain else " (rank decided numerically; the vanishing minors were not confirmed symbolically)"),
+            anchor="plant",
+            hint=_extension_hint(names, zero_cols),
+        ))
+    return Structure(tuple(outputs), A, rank, certain, zero_cols, tuple(findings), names)
+
+
+def _output_structure(kernel: Kernel, i: int) -> OutputStructure:
+    plant = kernel.plant
+    unconfirmed: list[str] = []
+    for k in range(1, plant.n + 1):
+        row = tuple(kernel.lglf(j, i, k - 1) for j in range(plant.m))
+        tests = [kernel.is_zero(e) for e in row]
+        if any(not t.zero for t in tests):
+            return OutputStructure(plant.outputs[i], k, row, tuple(unconfirmed))
+        unconfirmed += [lie_name(kernel, j, i, k - 1) for j, t in enumerate(tests) if not t.certain]
+    return OutputStructure(plant.outputs[i], None, (), tuple(unconfirmed))
+
+
+def _generic_rank(kernel: Kernel, A: sp.Matrix) -> tuple[int, bool]:
+    """Rank of A as a matrix of functions.
+
+    The largest exact rank at the kernel's sample points is a proven lower bound;
+    it is confirmed as the rank when every larger minor vanishes identically.
+    """
+    full = min(A.rows, A.cols)
+    best = 0
+    for sample in kernel.samples():
+        point = {s: sp.Rational(v.numerator, v.denominator) for s, v in sample.items()}
+        rank, _ = exact_rank(kernel, matrix_at(kernel, A.tolist(), point))
+        best = max(best, rank)
+        if best == full:
+            return best, True
+    k = best + 1
+    rows = list(combinations(range(A.rows), k))
+    cols = list(combinations(range(A.cols), k))
+    if len(rows) * len(cols) > MAX_MINORS_CONFIRMED:
+        return best, False
+    certain = True
+    for r in rows:
+        for c in cols:
+            test = kernel.is_zero(laplace_det(A.extract(list(r), list(c))))
+            if not test.zero:
+                return k, True  # cannot happen after screening, but a proof beats a guess
+            certain = certain and test.certain
+    return best, certain
+
+
+def _extension_hint(inputs: Sequence[str], zero_cols: Sequence[int]) -> str:
+    if not zero_cols:
+        return "the outputs' input rows are dependent: choose independent outputs, or try dynamic extension"
+    idle = ", ".join(inputs[j] for j in zero_cols)
+    busy = ", ".join(u for j, u in enumerate(inputs) if j not in zero_cols)
+    return (
+        f"input {idle} has a zero column (it reaches the outputs only at higher derivatives): "
+        f"dynamic extension — integrators on {busy or 'the other inputs'} — may restore full rank"
+    )
+
+
+def laplace_det(M: sp.Matrix) -> sp.Expr:
+    """Determinant by cofactor expansion with memoised minors, no simplification
+    (fraction-free, and cheap for the small matrices met here)."""
+    n = M.rows
+    memo: dict[tuple[int, ...], sp.Expr] = {}
+
+    def minor(row: int, cols: tuple[int, ...]) -> sp.Expr:
+        if row == n:
+            return sp.Integer(1)
+        if cols in memo:
+            return memo[cols]
+        total = sp.Integer(0)
+        for pos, c in enumerate(cols):
+            entry = M[row, c]
+            if entry == 0:
+                continue
+            rest = minor(row + 1, cols[:pos] + cols[pos + 1 :])
+            if rest == 0:
+                continue
+            total += (-1) ** pos * entry * rest
+        memo[cols] = total
+        return total
+
+    return minor(0, tuple(range(M.cols)))
+
+
+# -- exact rank at a point -------------------------------------------------------------------
+def exact_rank(kernel: Kernel, M: sp.Matrix) -> tuple[int, bool]:
+    """Rank of a matrix of exact constants, by division-free elimination whose
+    pivots are decided rigorously. Returns (rank, certain); an undecidable
+    pivot makes the rank a lower bound only."""
+    rows = [list(M.row(i)) for i in range(M.rows)]
+    rank, certain = 0, True
+    for col in range(M.cols):
+        pivot, undecided = None, False
+        for i in range(rank, len(rows)):
+            z = kernel.constant_is_zero(rows[i][col])
+            if z is None:
+                undecided = True
+            elif not z:
+                pivot = i
+                break
+        if pivot is None:
+            certain = certain and not undecided
+            continue
+        rows[rank], rows[pivot] = rows[pivot], rows[rank]
+        p_row = rows[rank]
+        for i in range(rank + 1, len(rows)):
+            factor = rows[i][col]
+            if factor != 0:
+                rows[i] = [p_row[col] * rows[i][k] - factor * p_row[k] for k in range(M.cols)]
+        rank += 1
+    return rank, certain
+
+
+# -- at a point ----------------------------------------------------------------------------
+def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: dict[sp.Symbol, sp.Expr]) -> PointStructure:
+    """Relative degrees and decoupling rank at an operating point, decided exactly."""
+    plant = kernel.plant
+    point = {s: v for s, v in values.items() if s in set(plant.states) | set(plant.params)}
+    findings: list[Finding] = []
+    degrees: dict[str, int | None] = {}
+    defined_rows: list[tuple[sp.Expr, ...]] = []
+    all_defined = True
+    for i, out in enumerate(structure.outputs):
+        r = out.relative_degree
+        if r is None:
+            degrees[out.name] = None
+            all_defined = False
+            continue
+        states = [_point_state(kernel, e, point) for e in out.row]
+        if any(s is False for s in states):
+            degrees[out.name] = r
+            defined_rows.append(out.row)
+            continue
+        degrees[out.name] = None
+        all_defined = False
+        undefined = any(s is None for s in states)
+        shown = "; ".join(f"{lie_name(kernel, j, i, r - 1)} = {compact(e)}" for j, e in enumerate(out.row))
+        findings.append(Finding(
+            "relative-degree-ill-defined", Severity.ERROR,
+            f"relative degree of {out.name} is not defined at point {name}: "
+            + ("the model is undefined there: " if undefined else "")
+            + f"{shown} {'is' if len(out.row) == 1 else 'are all'} zero there "
+            f"(generic relative degree {r})",
+            point=name, anchor=f"point {name}",
+            hint="move the operating point off the singular set, or choose another output",
+        ))
+    if not defined_rows:
+        return PointStructure(name, degrees, False, 0, True, tuple(findings))
+    A0 = matrix_at(kernel, defined_rows, point)
+    rank, certain = exact_rank(kernel, A0)
+    full_rank = rank == plant.p
+    if all_defined and not full_rank and (structure.generic_rank or 0) >= plant.p:
+        if certain:
+            zero_cols = tuple(
+                j for j in range(plant.m) if all(kernel.constant_is_zero(A0[i, j]) for i in range(A0.rows))
+            )
+            findings.append(Finding(
+                "decoupling-singular", Severity.ERROR,
+                f"the decoupling matrix is singular at point {name}: rank {rank} for {plant.p} outputs",
+                point=name, anchor=f"point {name}",
+                hint=_extension_hint(structure.input_names, zero_cols),
+            ))
+        else:
+            findings.append(Finding(
+                "analysis-budget", Severity.WARNING,
+                f"the rank of the decoupling matrix at point {name} is at least {rank} of {plant.p}, "
+                "but some entries could not be decided exactly (undefined or beyond the evaluator)",
+                point=name, anchor=f"point {name}",
+            ))
+    return PointStructure(name, degrees, all_defined and full_rank and certain, rank, certain, tuple(findings))
+
+
+def _point_state(kernel: Kernel, e: sp.Expr, point: dict[sp.Symbol, sp.Expr]) -> bool | None:
+    """False: non-zero at the point; True: zero; None: undefined or undecidable."""
+    if e == 0:
+        return True
+    try:
+        z = kernel.value_at(e, point).zero
+    except UnsupportedExpression:
+        return None
+    return None if z is None else bool(z)
+
+
+# -- over the envelope ----------------------------------------------------------------------
+DomainCondition = tuple[str, sp.Expr, str]  # (kind: nonzero | positive, expr, what)
+
+
+def domain_conditions(expr: sp.Expr, symbols: set[sp.Symbol]) -> list[DomainCondition]:
+    """Where an expression stops being defined or smooth: denominators, and arguments
+    of sqrt/log/asin/acos/tan and fractional powers (sqrt, asin, acos are not
+    differentiable at the ends of their domains, so those ends count as outside)."""
+    out: list[DomainCondition] = []
+    for node in sp.preorder_traversal(expr):
+        if not (node.free_symbols & symbols):
+            continue
+        if node.is_Pow:
+            base, e = node.args
+            if not (base.free_symbols & symbols):
+                continue
+            if e.is_Rational and not e.is_Integer:
+                what = "square-root argument" if e.q == 2 else "fractional-power base"
+                out.append(("positive", base, f"{what} {compact(base)}"))
+            elif e.is_negative:
+                out.append(("nonzero", base, f"denominator {compact(base)}"))
+            elif not e.is_Rational:
+                out.append(("positive", base, f"power base {compact(base)}"))
+        elif isinstance(node, sp.log):
+            out.append(("positive", node.args[0], f"log argument {compact(node.args[0])}"))
+        elif isinstance(node, (sp.asin, sp.acos)):
+            a = node.args[0]
+            out.append(("positive", 1 - a, f"{type(node).__name__} argument {compact(a)} (1 or above)"))
+            out.append(("positive", 1 + a, f"{type(node).__name__} argument {compact(a)} (-1 or below)"))
+        elif isinstance(node, sp.tan):
+            out.append(("nonzero", sp.cos(node.args[0]), f"tan argument {compact(node.args[0])} (at a pole)"))
+        elif isinstance(node, sp.atan2):
+            y, x = node.args
+            out.append(("nonzero", x**2 + y**2, f"atan2 arguments {compact(y)}, {compact(x)} (both zero)"))
+    return out
+
+
+@dataclass
+class _Clock:
+    deadline: float
+    max_boxes: int
+    boxes: int = 0
+    seconds: float = 0.0
+
+    def budget(self) -> Budget:
+        return Budget(self.max_boxes, max(self.deadline - time.perf_counter(), 0.0))
+
+    def spent(self, verdict: EnvelopeVerdict) -> EnvelopeVerdict:
+        self.boxes += verdict.boxes_examined
+        self.seconds += verdict.seconds
+        return verdict
+
+
+def certify_envelope(
+    kernel: Kernel, structure: Structure, budget_seconds: float = 5.0, max_boxes: int = 20000
+) -> Envelope:
+    """Is the (vector) relative degree well defined on the whole operating envelope?
+
+    The model must be proven defined on the box first (a singular model makes
+    the plant irregular, and its poles would only exhaust the budget of the
+    decoupling proof). Undecided boxes give ``regular=None``, never a guess.
+    """
+    plant = kernel.plant
+    missing = [str(s) for s in plant.states if s not in plant.state_box]
+    if missing:
+        return Envelope(None, None, None, (Finding(
+            "envelope-unproven", Severity.WARNING,
+            f"the operating envelope is not a box: state{'s' if len(missing) > 1 else ''} "
+            f"{', '.join(missing)} {'have' if len(missing) > 1 else 'has'} no range, so regularity "
+            "over the envelope cannot be certified",
+            anchor="envelope", hint="declare `in LO .. HI` for every state",
+        ),))
+    if plant.p == 0:
+        return Envelope(None, None, None, ())
+    box = {**plant.state_box, **plant.param_box}
+    clock = _Clock(time.perf_counter() + budget_seconds, max_boxes)
+    findings: list[Finding] = []
+    undecided_model: list[str] = []
+    model_witness: dict[str, float] | None = None
+    for anchor, cond, verdict in _model_checks(kernel, box, clock):
+        kind, _, what = cond
+        if verdict.regular is False:
+            assert verdict.witness is not None
+            model_witness = model_witness or verdict.witness
+            findings.append(Finding(
+                "singular-model", Severity.ERROR,
+                f"the {what} in {anchor} {_violation(kind)} inside the envelope, "
+                f"e.g. at {_format_point(verdict.witness)}",
+                anchor=anchor, hint="narrow the state ranges or reformulate the model",
+            ))
+        elif verdict.regular is None:
+            undecided_model.append(f"{what} in {anchor}")
+    if model_witness is not None:
+        return Envelope(False, None, model_witness, tuple(findings), clock.boxes, clock.seconds, "model domain")
+    if any(o.relative_degree is None for o in structure.outputs) or (structure.generic_rank or 0) < plant.p:
+        centre = {str(s): float((lo + hi) / 2) for s, (lo, hi) in box.items()}
+        return Envelope(False, None, centre, tuple(findings), clock.boxes, clock.seconds, "generic structure")
+    exprs, certified = _regularity_expressions(kernel, structure)
+    verdict = _certify_by_factors(kernel, exprs, box, clock)
+    if verdict.regular is False:
+        assert verdict.witness is not None
+        findings.append(Finding(
+            "envelope-singular", Severity.ERROR,
+            f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
+            f"at {_format_point(verdict.witness)}"
+            + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)"),
+            anchor="envelope", hint="narrow the envelope, move it off the singular set, or choose other outputs",
+        ))
+        return Envelope(False, None, verdict.witness, tuple(findings), clock.boxes, clock.seconds, certified)
+    if verdict.regular is None:
+        shown = "; ".join(
+            ", ".join(f"{k} in [{lo:.6g}, {hi:.6g}]" for k, (lo, hi) in b.items()) for b in verdict.undecided[:2]
+        )
+        findings.append(Finding(
+            "envelope-unproven", Severity.WARNING,
+            f"regularity over the envelope is unproven: {verdict.undecided_count} box"
+            f"{'es' if verdict.undecided_count != 1 else ''} undecided for {certified} after "
+            f"{clock.boxes} boxes and {clock.seconds:.2f} s, e.g. {shown}",
+            anchor="envelope", hint="raise the budget, or narrow the envelope near those boxes",
+        ))
+    if undecided_model:
+        findings.append(Finding(
+            "envelope-unproven", Severity.WARNING,
+            "the model could not be proven defined on the whole envelope: " + "; ".join(undecided_model[:3]),
+            anchor="envelope", hint="raise the budget, or narrow the envelope",
+        ))
+    regular = verdict.regular if not undecided_model else None
+    margin = verdict.margin if regular else None
+    return Envelope(regular, margin, None, tuple(findings), clock.boxes, clock.seconds, certified)
+
+
+def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbol, Any],
+                        clock: _Clock) -> EnvelopeVerdict:
+    """A single expression that factors is non-zero exactly when every factor is;
+    each factor usually involves few variables and has far less dependency, so it
+    is certified on its own (the margin is the product of the factors' margins)."""
+    factors = kernel.factors(exprs[0]) if len(exprs) == 1 else []
+    if len(factors) < 2:
+        return clock.spent(certify_nonzero(exprs, box, clock.budget()))
+    (constant, _), parts = factors[0], factors[1:]
+    margin = abs(float(constant))
+    undecided: list[EnvelopeVerdict] = []
+    boxes = 0
+    for part, multiplicity in parts:
+        verdict = clock.spent(certify_nonzero([part], box, clock.budget()))
+        boxes += verdict.boxes_examined
+        if verdict.regular is False:
+            return verdict
+        if verdict.regular is None:
+            undecided.append(verdict)
+        elif verdict.margin is not None:
+            margin *= verdict.margin ** multiplicity
+    if undecided:
+        first = undecided[0]
+        return EnvelopeVerdict(None, None, None, first.undecided, boxes,
+                               sum(v.undecided_count for v in undecided))
+    return EnvelopeVerdict(True, margin, None, [], boxes)
+
+
+def _violation(kind: str) -> str:
+    return {"nonzero": "vanishes", "positive": "leaves the open domain where the model is smooth"}[kind]
+
+
+def _model_checks(kernel: Kernel, box: dict[sp.Symbol, Any], clock: _Clock) -> list[tuple[str, DomainCondition, EnvelopeVerdict]]:
+    """Certify every domain condition of f, g and h once; report it per place it occurs."""
+    plant = kernel.plant
+    symbols = set(kernel.free_symbols())
+    places: list[tuple[str, sp.Expr]] = []
+    for i, s in enumerate(plant.states):
+        places += [(f"rate {s}", plant.f[i])] + [(f"rate {s}", col[i]) for col in plant.g]
+    places += [(f"output {name}", h) for name, h in zip(plant.outputs, plant.h)]
+    verdicts: dict[tuple[str, sp.Expr], EnvelopeVerdict] = {}
+    out: list[tuple[str, DomainCondition, EnvelopeVerdict]] = []
+    seen: set[tuple[str, str, sp.Expr]] = set()
+    for anchor, expr in places:
+        for cond in domain_conditions(expr, symbols):
+            kind, e, _ = cond
+            if (anchor, kind, e) in seen:
+                continue
+            seen.add((anchor, kind, e))
+            key = (kind, e)
+            if key not in verdicts:
+                try:
+                    if kind == "nonzero":
+                        verdicts[key] = clock.spent(certify_nonzero(e, box, clock.budget()))
+                    else:
+                        verdicts[key] = clock.spent(certify_sign(e, box, True, clock.budget()))
+                except UnsupportedExpression:
+                    verdicts[key] = EnvelopeVerdict(None, None, None, [], 0)
+            out.append((anchor, cond, verdicts[key]))
+    return out
+
+
+def _regularity_expressions(kernel: Kernel, structure: Structure) -> tuple[list[sp.Expr], str]:
+    """What must stay away from zero: det A (square), the row (one output), the p x p minors (wide)."""
+    A = structure.decoupling
+    assert A is not None
+    A = A.applyfunc(kernel.compact)
+    p, m = A.rows, A.cols
+    if p == 1:
+        r = structure.outputs[0].relative_degree or 1
+        entries = [(lie_name(kernel, j, 0, r - 1), e) for j, e in enumerate(A.row(0)) if e != 0]
+        if len(entries) == 1:
+            return [entries[0][1]], entries[0][0]
+        return [e for _, e in entries], "every entry of the row " + ", ".join(n for n, _ in entries)
+    if p == m:
+        return [kernel.compact(laplace_det(A))], "det A (the decoupling matrix)"
+    minors = [kernel.compact(laplace_det(A.extract(list(range(p)), list(c)))) for c in combinations(range(m), p)]
+    return [e for e in minors if e != 0] or [sp.Integer(0)], f"every {p} x {p} minor of the decoupling matrix"
+
+
+# -- JSON ---------------------------------------------------------------------------------------
+def structure_json(structure: Structure) -> dict[str, Any]:
+    return {"relative_degree": dict(structure.relative_degree)}
+
+
+def point_json(ps: PointStructure) -> dict[str, Any]:
+    return {
+        "relative_degree": dict(ps.relative_degree),
+        "well_defined": ps.well_defined,
+        "decoupling_rank": ps.decoupling_rank,
+    }
+
+
+def envelope_json(env: Envelope) -> dict[str, Any]:
+    return {"regular": env.regular, "margin": env.margin, "witness": env.witness}
+
+
+__all__ = [
+    "Envelope", "OutputStructure", "PointStructure", "Structure", "analyse_structure",
+    "certify_envelope", "domain_conditions", "envelope_json", "exact_rank", "laplace_det",
+    "point_json", "structure_at_point", "structure_json",
+]

@@ -1,0 +1,391 @@
+"""Zero dynamics at an operating point: are the internal dynamics stable?
+
+With vector relative degree (r_1..r_p) and total r < n, holding the outputs at
+their values at x0 leaves n - r internal states moving under f* = f + g u*,
+u* = -A(x)^(-1) b(x). Their linearisation decides minimum phase: J = Df*(x0) maps
+T = ker dXi(x0) into itself and spec(J) = {0 (r times)} union spec(J restricted to T).
+
+J is assembled from exact numbers at x0 by the product rule (f* is never built
+symbolically). When J and dXi(x0) are rational the restriction is computed exactly
+and the signs of the eigenvalues' real parts are decided exactly (rigorous root
+isolation plus an exact test for roots on the imaginary axis). Otherwise the
+numbers go to mpmath at 40+ digits with a tolerance that is stated in the result.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Sequence
+
+import flint
+import mpmath
+import sympy as sp
+from flint import acb, fmpq, fmpq_mat, fmpz_poly
+
+from plantlint.analysis.equilibria import number_decider
+from plantlint.core.findings import Finding, Severity
+from plantlint.kernel.lie import Kernel
+
+VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
+#: Relative tolerance (times the Frobenius norm of Df*(x0)) for "on the imaginary axis"
+#: on the numeric route; the exact route needs none.
+CRITICAL_TOLERANCE = 1e-9
+_NUMERIC_DIGITS = (40, 80)
+_ISOLATION_BITS = (128, 512, 2048)
+
+
+@dataclass(frozen=True)
+class ZeroDynamics:
+    """Linearised zero dynamics at one point, with how the verdict was reached."""
+
+    point: str
+    dimension: int
+    verdict: str  # one of VERDICTS
+    eigenvalues: tuple[complex, ...] = ()  # sorted by real, then imaginary part
+    exact: bool = False  # real-part signs decided exactly (no tolerance involved)
+    characteristic_polynomial: str | None = None  # exact, in s, when the data are rational
+    tolerance: float | None = None  # absolute |Re| bound for "critical" on the numeric route
+    consistent: bool = True  # spec(J) = {0 x r} union spec(zero-dynamics matrix) held
+    reason: str = ""
+    findings: tuple[Finding, ...] = field(default_factory=tuple)
+
+
+@dataclass
+class _PointData:
+    """Exact numbers at x0 from which J and dXi(x0) are assembled."""
+
+    f0: sp.Matrix
+    G0: sp.Matrix  # n x m
+    Df0: sp.Matrix
+    DG0: list[sp.Matrix]  # one n x n per input
+    A0: sp.Matrix  # p x m decoupling matrix
+    b0: sp.Matrix
+    dA: list[sp.Matrix]  # dA/dx_k at x0
+    db: list[sp.Matrix]
+    dXi: sp.Matrix  # r x n
+
+    def rational(self) -> bool:
+        mats = [self.f0, self.G0, self.Df0, self.A0, self.b0, self.dXi, *self.DG0, *self.dA, *self.db]
+        return all(e.is_Rational for m in mats for e in m)
+
+
+def zero_dynamics_at(
+    kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Symbol, sp.Expr], name: str
+) -> ZeroDynamics:
+    """Zero dynamics of the plant at the point ``eq_values`` (states at least)."""
+    plant = kernel.plant
+    n, r = plant.n, sum(degrees)
+    if len(degrees) != plant.p or plant.m != plant.p or any(d < 1 for d in degrees):
+        return ZeroDynamics(name, 0, "undefined", reason="needs a square plant and one relative degree >= 1 per output")
+    if r > n:
+        return ZeroDynamics(name, 0, "undefined", reason=f"total relative degree {r} exceeds the {n} states")
+    if r == n:
+        return ZeroDynamics(name, 0, "not_applicable", exact=True, reason="total relative degree equals the state dimension")
+    point = dict(plant.param_nominal)
+    point.update({s: v for s, v in eq_values.items() if s in plant.states or s in plant.params})
+    missing = [s for s in plant.states if s not in point]
+    if missing:
+        return ZeroDynamics(name, n - r, "undefined", reason="point lacks " + ", ".join(map(str, missing)))
+    data = _point_data(kernel, degrees, point)
+    decide = number_decider(kernel)
+    if _singular(data.A0, decide):
+        return ZeroDynamics(name, n - r, "undefined", reason="decoupling matrix is singular at the point")
+    if data.rational():
+        return _exact_route(name, n, r, data)
+    return _numeric_route(name, n, r, degrees, data, decide)
+
+
+# -- exact numbers at the point --------------------------------------------------
+def _point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Symbol, sp.Expr]) -> _PointData:
+    plant = kernel.plant
+    n, m = plant.n, plant.m
+
+    def at(e: sp.Expr) -> sp.Expr:
+        return e.xreplace(point) if e != 0 else sp.Integer(0)
+
+    def grad_at(e: sp.Expr) -> list[sp.Expr]:
+        return [at(d) for d in kernel.gradient(e)]
+
+    A = [[kernel.lglf(j, i, degrees[i] - 1) for j in range(m)] for i in range(plant.p)]
+    b = [kernel.lf(i, degrees[i]) for i in range(plant.p)]
+    gradA = [[grad_at(e) for e in row] for row in A]
+    gradb = [grad_at(e) for e in b]
+    xi = [kernel.lf(i, k) for i in range(plant.p) for k in range(degrees[i])]
+    return _PointData(
+        f0=sp.Matrix([at(e) for e in plant.f]),
+        G0=sp.Matrix([[at(plant.g[j][i]) for j in range(m)] for i in range(n)]),
+        Df0=kernel.jacobian(plant.f).xreplace(point),
+        DG0=[kernel.jacobian(plant.g[j]).xreplace(point) for j in range(m)],
+        A0=sp.Matrix([[at(e) for e in row] for row in A]),
+        b0=sp.Matrix([at(e) for e in b]),
+        dA=[sp.Matrix([[gradA[i][j][k] for j in range(m)] for i in range(plant.p)]) for k in range(n)],
+        db=[sp.Matrix([gradb[i][k] for i in range(plant.p)]) for k in range(n)],
+        dXi=sp.Matrix([grad_at(e) for e in xi]),
+    )
+
+
+def _singular(A0: sp.Matrix, decide: "object") -> bool:
+    """Exact (rigorous) singularity of the decoupling matrix at the point."""
+    from plantlint.analysis.equilibria import exact_rank
+
+    return exact_rank(A0.tolist(), decide) < A0.rows  # type: ignore[arg-type]
+
+
+def _assemble(data: _PointData, to: "object", inverse: "object", zeros: "object") -> tuple[object, object, object]:
+    """J = Df + G Du* + sum_j Dg_j u*_j and f*(x0), in the number field given."""
+    A0 = to(data.A0)
+    Ainv = inverse(A0)
+    u0 = -(Ainv * to(data.b0))
+    n = data.f0.rows
+    m = data.G0.cols
+    G0 = to(data.G0)
+    J = to(data.Df0)
+    for k in range(n):
+        du_k = -(Ainv * (to(data.dA[k]) * u0 + to(data.db[k])))
+        col = G0 * du_k
+        for i in range(n):
+            J[i, k] += col[i, 0]
+    for j in range(m):
+        J = J + to(data.DG0[j]) * u0[j, 0]
+    rest = to(data.f0) + G0 * u0
+    return J, rest, u0
+
+
+# -- exact route -------------------------------------------------------------------
+def _to_fmpq(M: sp.Matrix) -> fmpq_mat:
+    return fmpq_mat(M.rows, M.cols, [fmpq(int(e.p), int(e.q)) for e in M])
+
+
+def _exact_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics:
+    J, rest, _ = _assemble(data, _to_fmpq, lambda A: A.inv(), None)
+    d = n - r
+    if any(rest[i, 0] != 0 for i in range(n)):
+        return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics")
+    dXi = _to_fmpq(data.dXi)
+    reduced, rank = dXi.rref()
+    if rank != r:
+        return ZeroDynamics(name, d, "undefined", reason=f"output derivatives have rank {rank}, not {r}, at the point")
+    pivots = []
+    row = 0
+    for col in range(n):
+        if row < rank and reduced[row, col] != 0:
+            pivots.append(col)
+            row += 1
+    free = [c for c in range(n) if c not in pivots]
+    N = fmpq_mat(n, d)
+    for a, fc in enumerate(free):
+        N[fc, a] = 1
+        for i, pc in enumerate(pivots):
+            N[pc, a] = -reduced[i, fc]
+    JN = J * N
+    M = fmpq_mat(d, d, [JN[fc, a] for fc in free for a in range(d)])
+    invariant = N * M == JN
+    poly = M.charpoly()
+    consistent = invariant and J.charpoly() == poly * flint.fmpq_poly([0, 1]) ** r
+    if not invariant:
+        return ZeroDynamics(name, d, "undefined", consistent=False,
+                            reason="ker dXi is not invariant under Df* (relative degrees do not fit the plant)")
+    roots = _classify_roots(poly.numer())
+    eigs = [(z, sign) for z, sign, mult in roots for _ in range(mult)]
+    eigs.sort(key=lambda e: (e[0].real, e[0].imag))
+    return _verdict(name, d, eigs, exact=all(s is not None for _, s, _ in roots), tolerance=None,
+                    consistent=consistent, polynomial=_poly_text(poly))
+
+
+def _classify_roots(P: fmpz_poly) -> list[tuple[complex, int | None, int]]:
+    """Roots of P with the exact sign of each real part (None if undecided)."""
+    axis = _axis_polynomial(P)
+    old = flint.ctx.prec
+    try:
+        for bits in _ISOLATION_BITS:
+            flint.ctx.prec = bits
+            balls = P.complex_roots()
+            omegas = [c.real for c, _ in axis.complex_roots() if c.imag == 0] if axis.degree() > 0 else []
+            signs = _signs(balls, omegas)
+            if all(s is not None for s in signs) or bits == _ISOLATION_BITS[-1]:
+                return [(_complex(c, s), s, mult) for (c, mult), s in zip(balls, signs)]
+    finally:
+        flint.ctx.prec = old
+    return []
+
+
+def _axis_polynomial(P: fmpz_poly) -> fmpz_poly:
+    """gcd of Re P(i w) and Im P(i w): its real roots w are exactly P's roots i w."""
+    coeffs = [int(c) for c in P.coeffs()]
+    re = [0] * len(coeffs)
+    im = [0] * len(coeffs)
+    for k, c in enumerate(coeffs):
+        sign = -1 if (k // 2) % 2 else 1  # i^k = (+1, +i, -1, -i)
+        if k % 2 == 0:
+            re[k] = sign * c
+        else:
+            im[k] = sign * c
+    return fmpz_poly(re).gcd(fmpz_poly(im))
+
+
+def _signs(balls: list[tuple[acb, int]], omegas: list[object]) -> list[int | None]:
+    out: list[int | None] = []
+    near = [k for k, (c, _) in enumerate(balls) if not (c.real > 0 or c.real < 0)]
+    for k, (c, _) in enumerate(balls):
+        if c.real > 0:
+            out.append(1)
+        elif c.real < 0:
+            out.append(-1)
+        else:
+            hits = [w for w in omegas if c.imag.overlaps(w)]
+            unique = len(hits) == 1 and sum(1 for q in near if balls[q][0].imag.overlaps(hits[0])) == 1
+            out.append(0 if unique else None)
+    return out
+
+
+def _complex(c: acb, sign: int | None) -> complex:
+    re = 0.0 if sign == 0 else float(c.real.mid())
+    return complex(re, float(c.imag.mid()))
+
+
+def _poly_text(poly: flint.fmpq_poly) -> str:
+    s = sp.Symbol("s")
+    return str(sp.Poly([sp.Rational(int(c.p), int(c.q)) for c in reversed(poly.coeffs())], s).as_expr())
+
+
+# -- numeric route --------------------------------------------------------------------
+def _numeric_route(
+    name: str, n: int, r: int, degrees: Sequence[int], data: _PointData, decide: "object"
+) -> ZeroDynamics:
+    d = n - r
+    rest_exact = data.f0 + data.G0 * (-(data.A0.LUsolve(data.b0)))
+    if any(decide(e) is not True for e in rest_exact):  # type: ignore[operator]
+        return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics")
+    result: ZeroDynamics | None = None
+    for digits in _NUMERIC_DIGITS:
+        with mpmath.workdps(digits):
+            result = _numeric_once(name, n, r, data, digits)
+        if result.consistent:
+            return result
+    assert result is not None
+    return result
+
+
+def _to_mp(M: sp.Matrix) -> mpmath.matrix:
+    out = mpmath.matrix(M.rows, M.cols)
+    for i in range(M.rows):
+        for j in range(M.cols):
+            e = M[i, j]
+            out[i, j] = mpmath.mpf(int(e.p)) / int(e.q) if e.is_Rational else mpmath.mpf(e.evalf(mpmath.mp.dps + 10))
+    return out
+
+
+def _numeric_once(name: str, n: int, r: int, data: _PointData, digits: int) -> ZeroDynamics:
+    d = n - r
+    J, _, _ = _assemble(data, _to_mp, lambda A: mpmath.inverse(A), None)
+    _, sigma, V = mpmath.svd_r(_to_mp(data.dXi), full_matrices=True)
+    N = mpmath.matrix(n, d)
+    for a in range(d):
+        for i in range(n):
+            N[i, a] = V[r + a, i]
+    M = N.T * J * N
+    eig_m = _eigenvalues(M)
+    eig_j = _eigenvalues(J)
+    scale = 1.0 + float(mpmath.mnorm(J, 1))
+    match_tol = 10.0 * scale * 10.0 ** (-digits / (n + 1))
+    consistent = _same_multiset(eig_j, [0j] * r + eig_m, match_tol) and float(min(sigma)) > 1e-20 * scale
+    # relative to the size of Df*(x0) (M is a compression of it), with a floor at the
+    # noise level of the working precision
+    tol = max(CRITICAL_TOLERANCE * float(mpmath.mnorm(J, "F")), 10.0 ** (-digits / 2))
+    eigs: list[tuple[complex, int | None]] = []
+    for z in sorted(eig_m, key=lambda z: (z.real, z.imag)):
+        sign = 0 if abs(z.real) <= tol else (1 if z.real > 0 else -1)
+        eigs.append((z, sign))
+    return _verdict(name, d, eigs, exact=False, tolerance=tol, consistent=consistent, polynomial=None)
+
+
+def _eigenvalues(M: mpmath.matrix) -> list[complex]:
+    if M.rows == 1:  # mpmath.eig returns a tuple for 1 x 1 whatever the flags
+        return [complex(M[0, 0])]
+    return [complex(z) for z in mpmath.eig(M, left=False, right=False)]
+
+
+def _same_multiset(a: list[complex], b: list[complex], tol: float) -> bool:
+    if len(a) != len(b):
+        return False
+    rest = list(b)
+    for z in a:
+        k = min(range(len(rest)), key=lambda q: abs(rest[q] - z))
+        if abs(rest[k] - z) > tol:
+            return False
+        rest.pop(k)
+    return True
+
+
+# -- verdict and findings -----------------------------------------------------------------
+def _verdict(
+    name: str,
+    d: int,
+    eigs: list[tuple[complex, int | None]],
+    exact: bool,
+    tolerance: float | None,
+    consistent: bool,
+    polynomial: str | None,
+) -> ZeroDynamics:
+    anchor = f"point {name}"
+    values = tuple(z for z, _ in eigs)
+    unstable = [z for z, s in eigs if s == 1]
+    on_axis = [z for z, s in eigs if s == 0]
+    undecided = [z for z, s in eigs if s is None]
+    findings: list[Finding] = []
+    if unstable:
+        verdict = "non_minimum_phase"
+        findings.append(Finding(
+            "zero-dynamics-unstable", Severity.ERROR,
+            f"the zero dynamics at point {name} are unstable (non-minimum phase): "
+            f"eigenvalue(s) with positive real part {show_eigenvalues(unstable)}",
+            point=name, anchor=anchor,
+            hint="output tracking by inversion would excite these internal modes",
+        ))
+    elif on_axis or undecided:
+        verdict = "critical"
+        how = "exactly on the imaginary axis" if exact else (
+            f"within {tolerance:.3g} of the imaginary axis" if tolerance is not None else "not separated from the imaginary axis")
+        shown = show_eigenvalues(on_axis + undecided)
+        findings.append(Finding(
+            "zero-dynamics-critical", Severity.WARNING,
+            f"linearisation cannot decide the stability of the zero dynamics at point {name}: "
+            f"eigenvalue(s) {shown} lie {how}",
+            point=name, anchor=anchor,
+            hint="a centre-manifold (nonlinear) analysis of the zero dynamics is needed",
+        ))
+    else:
+        verdict = "minimum_phase"
+    return ZeroDynamics(name, d, verdict, values, exact, polynomial, tolerance, consistent, findings=tuple(findings))
+
+
+def show_eigenvalues(values: Sequence[complex]) -> str:
+    """Eigenvalues for a message, conjugate pairs written with +-."""
+    parts: list[str] = []
+    pending = list(values)
+    while pending:
+        z = pending.pop(0)
+        if z.imag == 0:
+            parts.append(_num(z.real))
+            continue
+        partner = next((w for w in pending if abs(w - z.conjugate()) <= 1e-12 * (1 + abs(z))), None)
+        if partner is not None:
+            pending.remove(partner)
+            re = "" if z.real == 0 else _num(z.real) + " "
+            parts.append(f"{re}\u00b1 {_num(abs(z.imag))}i" if re else f"\u00b1{_num(abs(z.imag))}i")
+        else:
+            parts.append(f"{_num(z.real)}{'+' if z.imag > 0 else '-'}{_num(abs(z.imag))}i")
+    return ", ".join(parts)
+
+
+def _num(x: float) -> str:
+    return format(x, ".6g")
+
+
+def zero_dynamics_json(zd: ZeroDynamics) -> dict[str, object]:
+    """The analysis record for one point."""
+    return {
+        "dimension": zd.dimension,
+        "eigenvalues": [[z.real, z.imag] for z in sorted(zd.eigenvalues, key=lambda z: (z.real, z.imag))],
+        "verdict": zd.verdict,
+    }

@@ -1,0 +1,239 @@
+"""The ``plantlint`` command line.
+
+Imports are lazy so that ``plantlint --version`` and cached runs start fast:
+sympy is loaded only when a model actually has to be analysed.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import os
+import sys
+from pathlib import Path
+from typing import Sequence, TextIO
+
+from plantlint import __version__
+
+CAUTION = (
+    "plantlint checks the structure of a plant model (relative degree, regularity, zero "
+    "dynamics, involutivity). It does not check safety: a clean run is no evidence that a "
+    "controller is safe. Verify every design with your team's own verification, the "
+    "standards that apply to your machine, and licensed engineering judgement."
+)
+
+EXIT_OK, EXIT_FINDINGS, EXIT_USAGE = 0, 1, 2
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse that exits with 2 and one line on usage errors (never a traceback)."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        self.exit(EXIT_USAGE, f"{self.prog}: error: {message} (see `{self.prog} --help`)\n")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    top = _Parser(
+        prog="plantlint",
+        description="Static checks for nonlinear plant models (.plant files): relative degree, "
+        "decoupling, regularity over the operating envelope, zero dynamics, involutivity.",
+        epilog=CAUTION + "\n\nExit codes: 0 nothing at or above the fail level, 1 findings at or "
+        "above it, 2 usage or configuration error.",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    top.add_argument("--version", action="version", version=f"plantlint {__version__}")
+    sub = top.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+
+    check = sub.add_parser("check", help="check model files or folders", epilog=CAUTION,
+                           description="Check .plant files (folders are searched for *.plant).")
+    check.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: the configured root)")
+    check.add_argument("--format", choices=("text", "concise", "json", "sarif"), default="text",
+                       help="report format (default: text)")
+    check.add_argument("--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    check.add_argument("--only", metavar="IDS", help="comma-separated rule ids to report (all others are dropped)")
+    check.add_argument("--skip", metavar="IDS", help="comma-separated rule ids to drop")
+    check.add_argument("--fail-on", choices=("error", "warning", "note"),
+                       help="lowest severity that fails the run (default: error)")
+    check.add_argument("--since", metavar="REF",
+                       help="regression gate: fail only on findings introduced since git revision REF")
+    check.add_argument("--jobs", type=int, metavar="N", help="models analysed in parallel (default: CPU count)")
+    check.add_argument("--timeout", type=float, metavar="SECONDS", help="time budget per model (default: 120)")
+    check.add_argument("--no-cache", action="store_true", help="neither read nor write the result cache")
+    check.add_argument("--cache-dir", metavar="DIR", help="cache folder (default: .plantlint-cache beside the configuration)")
+    check.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
+    check.add_argument("--color", choices=("auto", "always", "never"), default="auto",
+                       help="colour in text output (default: auto; NO_COLOR is honoured)")
+
+    rules = sub.add_parser("rules", help="list the rule catalogue, or show one rule",
+                           description="The rule catalogue: ids, default severities and rationale.")
+    rules.add_argument("rule", nargs="?", metavar="ID", help="show this rule in full")
+    rules.add_argument("--format", choices=("text", "json"), default="text")
+
+    explain = sub.add_parser("explain", help="show the derivation behind the findings for one model",
+                             epilog=CAUTION,
+                             description="A readable report of the analysis of one model: Lie derivatives, "
+                             "decoupling matrix, envelope, normal form, zero dynamics, distributions.")
+    explain.add_argument("file", metavar="FILE")
+    explain.add_argument("--point", metavar="NAME", help="only this operating point")
+    explain.add_argument("--format", choices=("text", "json"), default="text")
+    explain.add_argument("--color", choices=("auto", "always", "never"), default="auto")
+    return top
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    for stream in (sys.stdout, sys.stderr):
+        try:  # a model's non-ASCII text must not crash a non-UTF-8 console
+            stream.reconfigure(errors="replace")  # type: ignore[union-attr]
+        except (AttributeError, ValueError):
+            pass
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return EXIT_USAGE
+    try:
+        if args.command == "check":
+            return _check(args)
+        if args.command == "rules":
+            return _rules(args)
+        return _explain(args)
+    except KeyboardInterrupt:
+        print("plantlint: interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return EXIT_OK
+
+
+def _fail(message: str) -> int:
+    print(f"plantlint: error: {message}", file=sys.stderr)
+    return EXIT_USAGE
+
+
+def _use_color(choice: str, stream: TextIO) -> bool:
+    if choice == "always":
+        return True
+    if choice == "never" or os.environ.get("NO_COLOR"):
+        return False
+    return bool(getattr(stream, "isatty", lambda: False)())
+
+
+def _check(args: argparse.Namespace) -> int:
+    from dataclasses import replace
+
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.run.config import ConfigError, effective_jobs, load_config, parse_rule_list
+    from plantlint.core.findings import Report, Severity
+    from plantlint.run.runner import UsageError, check_targets, discover
+
+    catalogue = load_catalogue()
+    known = frozenset(catalogue.ids())
+    try:
+        config = load_config(_config_start(args.paths), Path(args.config) if args.config else None, known)
+        changes = {}
+        if args.only:
+            changes["only"] = parse_rule_list(args.only, "--only", known)
+        if args.skip:
+            changes["skip"] = parse_rule_list(args.skip, "--skip", known)
+        if args.fail_on:
+            changes["fail_on"] = Severity.parse(args.fail_on)
+        if args.timeout is not None:
+            if not math.isfinite(args.timeout) or args.timeout <= 0:
+                raise ConfigError("--timeout must be a positive, finite number of seconds")
+            changes["timeout"] = args.timeout
+        if args.jobs is not None:
+            if args.jobs < 0:
+                raise ConfigError("--jobs must be >= 0 (0: one per CPU)")
+            changes["jobs"] = args.jobs
+        config = replace(config, **changes)
+    except ConfigError as exc:
+        return _fail(str(exc))
+    defaults = {r.id: r.severity for r in catalogue}
+    paths = args.paths or [str(config.root)]
+    cache_dir = Path(args.cache_dir) if args.cache_dir else config.root / config.cache_dir
+    use_cache = config.cache and not args.no_cache
+    try:
+        if args.since:
+            from plantlint.run.gate import gate
+
+            report = gate(args.since, paths, config, defaults, jobs=effective_jobs(config), use_cache=use_cache,
+                          cache_dir=cache_dir, show_progress=sys.stderr.isatty())
+        else:
+            targets = discover(paths, config.root, config.include, config.exclude)
+            files = check_targets(targets, config, defaults, jobs=effective_jobs(config), use_cache=use_cache,
+                                  cache_dir=cache_dir, show_progress=sys.stderr.isatty())
+            report = Report(files=files, tool_version=__version__, fail_on=config.fail_on)
+    except UsageError as exc:
+        return _fail(str(exc))
+    return _emit(report, args.format, args.output, args.color)
+
+
+def _config_start(paths: list[str]) -> Path:
+    """Where to look for the configuration: above the checked paths, else here.
+
+    `plantlint check example_repo` then uses example_repo's own settings, as a
+    team running it from anywhere would expect.
+    """
+    if not paths:
+        return Path.cwd()
+    folders = [Path(p).resolve() if Path(p).is_dir() else Path(p).resolve().parent for p in paths]
+    try:
+        return Path(os.path.commonpath([str(f) for f in folders]))
+    except ValueError:
+        return Path.cwd()
+
+
+def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> int:
+    from plantlint.core.findings import Report
+    from plantlint.report.formats import get_formatter
+
+    assert isinstance(report, Report)
+    formatter = get_formatter(fmt)
+    if output:
+        try:
+            with open(output, "w", encoding="utf-8", newline="\n") as fh:
+                formatter.render(report, fh, color=False)
+        except OSError as exc:
+            return _fail(f"{output}: cannot write: {exc.strerror}")
+        if fmt in ("json", "sarif"):
+            # keep the terminal informed when the report went to a file
+            summary = get_formatter("concise")
+            summary.render(report, sys.stdout, color=False)
+    else:
+        formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))
+    return EXIT_FINDINGS if report.failing() else EXIT_OK
+
+
+def _rules(args: argparse.Namespace) -> int:
+    from plantlint.core.catalogue import load_catalogue, render_rules
+
+    catalogue = load_catalogue()
+    if args.rule and args.rule not in catalogue:
+        return _fail(f"unknown rule '{args.rule}' (`plantlint rules` lists them)")
+    if args.format == "json":
+        import json
+
+        rules = [catalogue.get(args.rule)] if args.rule else list(catalogue)
+        json.dump([r.to_data() for r in rules], sys.stdout, indent=2)
+        sys.stdout.write("\n")
+        return EXIT_OK
+    from rich.console import Console
+
+    color = _use_color("auto", sys.stdout)
+    console = Console(file=sys.stdout, force_terminal=color, no_color=not color, highlight=False,
+                      width=None if color else 100)
+    render_rules(catalogue, args.rule, console)
+    return EXIT_OK
+
+
+def _explain(args: argparse.Namespace) -> int:
+    from plantlint.report.explain import explain_file
+
+    path = Path(args.file)
+    if not path.is_file():
+        return _fail(f"{args.file}: no such file")
+    color = args.format == "text" and _use_color(args.color, sys.stdout)
+    return explain_file(path, args.point, args.format, sys.stdout, color)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

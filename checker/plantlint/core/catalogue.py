@@ -1,0 +1,241 @@
+"""The rule catalogue: every rule id with its default severity and documentation.
+
+Rules are data (``rules/<family>.toml``), so that waivers, ``--only``, the SARIF
+rule table and ``plantlint rules`` all read one source, and a test can insist
+that every rule is documented. Loading is strict: a typo in a key or a severity
+is a packaging bug and must fail loudly, not silently drop a rule.
+"""
+
+from __future__ import annotations
+
+import difflib
+import sys
+from collections.abc import Iterator
+from dataclasses import dataclass
+from functools import cache
+from pathlib import Path
+from typing import Any
+
+from rich.console import Console, Group
+from rich.padding import Padding
+from rich.panel import Panel
+from rich.table import Table
+from rich.text import Text
+
+from plantlint.core.findings import Severity
+from plantlint.core.resources import data_path
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover - exercised only on Python 3.10
+    import tomli as tomllib
+
+#: Families in presentation order; each lives in ``rules/<family with _>.toml``.
+FAMILIES: tuple[str, ...] = ("model", "structure", "zero-dynamics", "linearization", "run")
+
+_REQUIRED_KEYS = ("id", "family", "severity", "title", "rationale", "bad", "good", "references")
+_STRING_KEYS = ("id", "family", "title", "rationale", "bad", "good")
+
+SEVERITY_STYLE: dict[Severity, str] = {
+    Severity.ERROR: "bold red",
+    Severity.WARNING: "bold yellow",
+    Severity.NOTE: "bold cyan",
+}
+
+
+class CatalogueError(ValueError):
+    """The rule files are malformed (a packaging bug, never a user error)."""
+
+
+class UnknownRuleError(KeyError):
+    """A rule id that the catalogue does not know; ``str()`` is a readable message."""
+
+    def __init__(self, rule_id: str, suggestions: list[str]) -> None:
+        super().__init__(rule_id)
+        self.rule_id = rule_id
+        self.suggestions = suggestions
+
+    def __str__(self) -> str:
+        hint = f" (did you mean {', '.join(self.suggestions)}?)" if self.suggestions else ""
+        return f"unknown rule id {self.rule_id!r}{hint}"
+
+
+@dataclass(frozen=True)
+class Rule:
+    """One documented rule. ``bad`` and ``good`` are complete little ``.plant`` files."""
+
+    id: str
+    family: str
+    severity: Severity
+    title: str
+    rationale: str
+    bad: str
+    good: str
+    references: tuple[str, ...]
+
+    def to_data(self) -> dict[str, Any]:
+        """The rule as plain JSON data (``plantlint rules --format json``)."""
+        return {
+            "id": self.id,
+            "family": self.family,
+            "severity": self.severity.value,
+            "title": self.title,
+            "rationale": self.rationale,
+            "bad": self.bad,
+            "good": self.good,
+            "references": list(self.references),
+        }
+
+
+class Catalogue:
+    """All rules, in family order then file order; looked up by id."""
+
+    def __init__(self, rules: list[Rule]) -> None:
+        self._rules = tuple(rules)
+        self._by_id: dict[str, Rule] = {}
+        self._position: dict[str, int] = {}
+        for position, rule in enumerate(self._rules):
+            if rule.id in self._by_id:
+                raise CatalogueError(f"rule id {rule.id!r} is defined twice")
+            self._by_id[rule.id] = rule
+            self._position[rule.id] = position
+
+    def get(self, rule_id: str) -> Rule:
+        """The rule ``rule_id``; raises :class:`UnknownRuleError` (a ``KeyError``)."""
+        try:
+            return self._by_id[rule_id]
+        except KeyError:
+            close = difflib.get_close_matches(rule_id, list(self._by_id), n=3, cutoff=0.6)
+            raise UnknownRuleError(rule_id, close) from None
+
+    def ids(self) -> tuple[str, ...]:
+        return tuple(rule.id for rule in self._rules)
+
+    def index(self, rule_id: str) -> int:
+        """Position of ``rule_id`` in the stable order (SARIF's ``ruleIndex``)."""
+        return self._position[self.get(rule_id).id]
+
+    def __contains__(self, rule_id: object) -> bool:
+        return rule_id in self._by_id
+
+    def __iter__(self) -> Iterator[Rule]:
+        return iter(self._rules)
+
+    def __len__(self) -> int:
+        return len(self._rules)
+
+
+def family_file(family: str) -> str:
+    """File name holding ``family`` (``zero-dynamics`` -> ``zero_dynamics.toml``)."""
+    return family.replace("-", "_") + ".toml"
+
+
+def _rule_from_table(table: dict[str, Any], where: str, family: str) -> Rule:
+    label = f"{where}: rule {table.get('id', '?')!r}"
+    unknown = sorted(set(table) - set(_REQUIRED_KEYS))
+    if unknown:
+        raise CatalogueError(f"{label}: unknown key(s) {', '.join(unknown)}")
+    missing = [key for key in _REQUIRED_KEYS if key not in table]
+    if missing:
+        raise CatalogueError(f"{label}: missing key(s) {', '.join(missing)}")
+    for key in _STRING_KEYS:
+        if not isinstance(table[key], str) or not table[key].strip():
+            raise CatalogueError(f"{label}: {key} must be a non-empty string")
+    if "\n" in table["title"].strip():
+        raise CatalogueError(f"{label}: title must be one line")
+    if table["family"] != family:
+        raise CatalogueError(f"{label}: family {table['family']!r} does not match the file ({family!r})")
+    if table["severity"] not in {level.value for level in Severity}:
+        raise CatalogueError(f"{label}: severity must be error, warning or note")
+    severity = Severity(table["severity"])
+    refs = table["references"]
+    if not isinstance(refs, list) or not refs or not all(isinstance(r, str) and r.strip() for r in refs):
+        raise CatalogueError(f"{label}: references must be a non-empty list of strings")
+    return Rule(
+        id=table["id"],
+        family=family,
+        severity=severity,
+        title=table["title"].strip(),
+        rationale=" ".join(table["rationale"].split()),
+        bad=table["bad"].strip("\n") + "\n",
+        good=table["good"].strip("\n") + "\n",
+        references=tuple(r.strip() for r in refs),
+    )
+
+
+def read_catalogue(folder: Path) -> Catalogue:
+    """Read and validate every family file in ``folder`` (uncached; tests use this)."""
+    expected = {family_file(family): family for family in FAMILIES}
+    strays = sorted(p.name for p in folder.glob("*.toml") if p.name not in expected)
+    if strays:
+        raise CatalogueError(f"{folder}: unexpected rule file(s) {', '.join(strays)}")
+    rules: list[Rule] = []
+    for name, family in expected.items():
+        path = folder / name
+        if not path.is_file():
+            raise CatalogueError(f"{path}: rule file is missing")
+        try:
+            data = tomllib.loads(path.read_text(encoding="utf-8"))
+        except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+            raise CatalogueError(f"{path}: {exc}") from None
+        extra = sorted(set(data) - {"rule"})
+        if extra:
+            raise CatalogueError(f"{path}: unknown top-level key(s) {', '.join(extra)}")
+        tables = data.get("rule", [])
+        if not isinstance(tables, list):
+            raise CatalogueError(f"{path}: rules must be written as [[rule]] tables")
+        rules.extend(_rule_from_table(table, str(path), family) for table in tables)
+    return Catalogue(rules)
+
+
+@cache
+def _load(folder: Path) -> Catalogue:
+    return read_catalogue(folder)
+
+
+def load_catalogue(folder: Path | None = None) -> Catalogue:
+    """The catalogue shipped with plantlint (cached), or one read from ``folder``."""
+    return _load(folder if folder is not None else data_path("rules"))
+
+
+def render_rules(catalogue: Catalogue, rule_id: str | None, console: Console) -> None:
+    """``plantlint rules [ID]``: a table of all rules, or one rule in full.
+
+    Raises :class:`UnknownRuleError` for an unknown ``rule_id`` (the CLI exits 2).
+    """
+    if rule_id is None:
+        console.print(_rules_table(catalogue))
+    else:
+        console.print(_rule_page(catalogue.get(rule_id)))
+
+
+def _severity_text(severity: Severity) -> Text:
+    return Text(severity.value, style=SEVERITY_STYLE[severity])
+
+
+def _rules_table(catalogue: Catalogue) -> Table:
+    table = Table(title=f"plantlint rules ({len(catalogue)})", title_justify="left", expand=False)
+    table.add_column("id", no_wrap=True)
+    table.add_column("severity", no_wrap=True)
+    table.add_column("family", no_wrap=True)
+    table.add_column("title")
+    for rule in catalogue:
+        table.add_row(Text(rule.id, style="bold"), _severity_text(rule.severity), Text(rule.family), Text(rule.title))
+    table.caption = Text("plantlint rules ID shows one rule in full")
+    return table
+
+
+def _rule_page(rule: Rule) -> Group:
+    heading = Text.assemble((rule.id, "bold"), "  ", _severity_text(rule.severity), f"  ({rule.family} family)")
+    parts: list[Any] = [
+        heading,
+        Text(rule.title, style="italic"),
+        Text(""),
+        Padding(Text(rule.rationale), (0, 0, 0, 2)),
+        Text(""),
+        Panel(Text(rule.bad.rstrip("\n")), title="triggers it", title_align="left", expand=False),
+        Panel(Text(rule.good.rstrip("\n")), title="fixed", title_align="left", expand=False),
+        Text("References", style="bold"),
+    ]
+    parts.extend(Text(f"  - {ref}") for ref in rule.references)
+    return Group(*parts)

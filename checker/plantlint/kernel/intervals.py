@@ -1,0 +1,419 @@
+"""Rigorous branch-and-bound over boxes: is an expression free of zeros on a box?
+
+The question "is the decoupling matrix nonsingular on the whole operating
+envelope?" becomes "does det A (or a row, or a denominator) keep away from zero
+on a box of states and ranged parameters?". Ball arithmetic answers it soundly:
+
+* the balls that cover a box give an enclosure of the expression's range (the
+  natural interval extension); on small boxes it is intersected with the
+  centred (mean-value) form f(c) + grad f(X) . (X - c), which is much tighter;
+* an enclosure that excludes zero *proves* the box clean; otherwise the box is
+  bisected along the dimension that is widest relative to its original width;
+* a zero is *proved* by continuity (two points of certain opposite sign, joined
+  by a segment on which the expression is finite) or by exact evaluation at a
+  rational point; the witness is reported;
+* when the budget (boxes, seconds) runs out, the open boxes are reported as
+  undecided, never rounded to a verdict.
+
+Enclosures use :class:`plantlint.kernel.balls.Program`, whose integer powers are tight
+over wide balls (the lower end of an even power is exactly 0).
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from collections import deque
+from dataclasses import dataclass
+from typing import Callable, Sequence
+
+import flint
+import sympy as sp
+from flint import arb
+
+from plantlint.kernel.balls import Program, UnsupportedExpression, to_arb
+
+Interval = tuple[float, float]
+FloatBox = tuple[Interval, ...]
+Bound = object  # sympy number, int, float or fractions.Fraction
+
+#: Precision (bits) of enclosures over boxes, and of evaluations at points.
+BOX_PREC = 64
+POINT_PREC = 128
+#: Use the centred form once every used dimension is at most this share of its range.
+CENTRED_BELOW = 0.25
+#: Boxes narrower than this share of the original range in every used dimension are not split.
+MIN_RELATIVE_WIDTH = 1e-10
+#: Exact (symbolic) zero checks at rational points are capped: they cost a sympy evaluation each.
+MAX_EXACT_CHECKS = 40
+
+
+@dataclass(frozen=True)
+class Budget:
+    """How much work a certification may do before it says "undecided"."""
+
+    max_boxes: int = 20000
+    max_seconds: float = 5.0
+
+
+@dataclass(frozen=True)
+class EnvelopeVerdict:
+    """Outcome of certifying a condition over a box.
+
+    ``regular`` is True when proven on the whole box, False when a witness was
+    proven, None when the budget ran out (see ``undecided``). ``margin`` is a
+    certified lower bound of |value| (or of the value, for sign conditions)
+    over the box, only when proven.
+    """
+
+    regular: bool | None
+    margin: float | None
+    witness: dict[str, float] | None
+    undecided: list[dict[str, Interval]]
+    boxes_examined: int
+    undecided_count: int = 0
+    witness_exact: bool = False  # the expression is exactly zero at the witness (else: bracketed)
+    seconds: float = 0.0
+
+
+class BoxProgram(Program):
+    """A :class:`Program` run at the box precision by default."""
+
+    def run(self, values: Sequence[arb], prec: int = BOX_PREC) -> list[arb]:
+        return super().run(values, prec)
+
+
+# -- boxes ----------------------------------------------------------------------------
+def _bound_ball(value: Bound) -> arb:
+    from fractions import Fraction
+
+    if isinstance(value, Fraction):
+        return arb(value.numerator) / value.denominator
+    return to_arb(value)
+
+
+def _float_below(x: arb) -> float:
+    """A float certainly at or below every value in the ball (margins, box bounds)."""
+    v = float(x.lower().mid())
+    while not (arb(v) <= x.lower()):
+        v = math.nextafter(v, -math.inf)
+    return v
+
+
+def _float_above(x: arb) -> float:
+    v = float(x.upper().mid())
+    while not (arb(v) >= x.upper()):
+        v = math.nextafter(v, math.inf)
+    return v
+
+
+def outward_box(box: dict[sp.Symbol, tuple[Bound, Bound]]) -> dict[sp.Symbol, Interval]:
+    """Float intervals that certainly contain the exact ranges (rounded outward)."""
+    out: dict[sp.Symbol, Interval] = {}
+    for s, (lo, hi) in box.items():
+        a, b = _bound_ball(lo), _bound_ball(hi)
+        out[s] = (_float_below(a), _float_above(b))
+    return out
+
+
+def _cover(box: FloatBox) -> list[arb]:
+    old = flint.ctx.prec
+    flint.ctx.prec = BOX_PREC
+    try:
+        return [arb(lo).union(arb(hi)) if lo != hi else arb(lo) for lo, hi in box]
+    finally:
+        flint.ctx.prec = old
+
+
+def _centre(box: FloatBox) -> tuple[float, ...]:
+    return tuple(lo + (hi - lo) / 2 for lo, hi in box)
+
+
+def _corners(box: FloatBox) -> list[tuple[float, ...]]:
+    """Corners (up to 4 dimensions) or the end points of the axes through the centre."""
+    c = _centre(box)
+    if len(box) <= 4:
+        pts: list[tuple[float, ...]] = [()]
+        for lo, hi in box:
+            pts = [p + (v,) for p in pts for v in (lo, hi)]
+        return pts
+    out = []
+    for k, (lo, hi) in enumerate(box):
+        for v in (lo, hi):
+            out.append(c[:k] + (v,) + c[k + 1 :])
+    return out
+
+
+# -- evaluation over boxes and at points -----------------------------------------------
+class _Evaluator:
+    """Enclosures of a list of expressions over boxes, and balls at points."""
+
+    def __init__(self, exprs: Sequence[sp.Expr], symbols: Sequence[sp.Symbol]):
+        self.exprs = list(exprs)
+        self.symbols = tuple(symbols)
+        self.program = BoxProgram(self.exprs, self.symbols)
+        self._gradient: BoxProgram | None = None
+
+    def gradient(self) -> BoxProgram:
+        if self._gradient is None:
+            self._gradient = BoxProgram(
+                [sp.diff(e, s) for e in self.exprs for s in self.symbols], self.symbols
+            )
+        return self._gradient
+
+    def enclose(self, box: FloatBox, centred: bool) -> list[arb]:
+        cover = _cover(box)
+        natural = self.program.run(cover)
+        if not centred or not self.symbols:
+            return natural
+        c = _centre(box)
+        at_c = self.program.run([arb(v) for v in c])
+        grad = self.gradient().run(cover)
+        d = len(self.symbols)
+        old = flint.ctx.prec
+        flint.ctx.prec = BOX_PREC
+        try:
+            offsets = [x - arb(v) for x, v in zip(cover, c)]
+            out = []
+            for i, nat in enumerate(natural):
+                mv = at_c[i]
+                for k in range(d):
+                    mv = mv + grad[i * d + k] * offsets[k]
+                out.append(_tighter(nat, mv))
+            return out
+        finally:
+            flint.ctx.prec = old
+
+    def at(self, point: Sequence[float]) -> list[arb]:
+        return self.program.run([arb(v) for v in point], prec=POINT_PREC)
+
+    def exactly_zero(self, point: Sequence[float | sp.Rational], indices: Sequence[int]) -> bool:
+        """Exact symbolic check at a rational point (floats are exact dyadic rationals)."""
+        subs = {s: sp.Rational(v) for s, v in zip(self.symbols, point)}
+        return all(self.exprs[i].xreplace(subs) == 0 for i in indices)
+
+    def snapped_zero(self, box: FloatBox, indices: Sequence[int]) -> tuple[float, ...] | None:
+        """Try the simple rational nearest the centre of a tiny box: singular sets
+        often pass through points like (1/3, 0) that bisection never hits exactly."""
+        from fractions import Fraction
+
+        point = []
+        for lo, hi in box:
+            q = Fraction(lo + (hi - lo) / 2).limit_denominator(10**4)
+            if not lo <= q <= hi:
+                return None
+            point.append(sp.Rational(q.numerator, q.denominator))
+        if self.exactly_zero(point, indices):
+            return tuple(float(v) for v in point)
+        return None
+
+
+def _tighter(a: arb, b: arb) -> arb:
+    if not b.is_finite():
+        return a
+    if not a.is_finite():
+        return b
+    try:
+        return a.intersection(b)
+    except ValueError:  # cannot happen for true enclosures; keep the natural one
+        return a
+
+
+def _certain_sign(x: arb) -> int:
+    if not x.is_finite():
+        return 0
+    if x > 0:
+        return 1
+    if x < 0:
+        return -1
+    return 0
+
+
+# -- the search -------------------------------------------------------------------------
+Decision = tuple[str, object]  # ("proven", margin) | ("violated", (point, exact)) | ("split", None)
+
+
+class _Search:
+    """Breadth-first bisection of the used dimensions of a box."""
+
+    def __init__(self, box: dict[sp.Symbol, Interval], used: Sequence[sp.Symbol], budget: Budget):
+        self.all_symbols = tuple(box)
+        self.full = box
+        self.used = tuple(used)
+        self.root: FloatBox = tuple(box[s] for s in self.used)
+        self.widths = [max(hi - lo, 1e-300) for lo, hi in self.root]
+        self.budget = budget
+        self.exact_checks = 0
+
+    def relative_widths(self, box: FloatBox) -> list[float]:
+        return [(hi - lo) / w for (lo, hi), w in zip(box, self.widths)]
+
+    def run(self, decide: Callable[[FloatBox, bool], Decision]) -> EnvelopeVerdict:
+        start = time.perf_counter()
+        queue: deque[FloatBox] = deque([self.root])
+        stuck: list[FloatBox] = []
+        margin = math.inf
+        examined = 0
+        while queue:
+            if examined >= self.budget.max_boxes or time.perf_counter() - start > self.budget.max_seconds:
+                break
+            box = queue.popleft()
+            examined += 1
+            rel = self.relative_widths(box)
+            kind, data = decide(box, bool(rel) and max(rel) <= CENTRED_BELOW)
+            if kind == "proven":
+                margin = min(margin, float(data))  # type: ignore[arg-type]
+                continue
+            if kind == "violated":
+                point, exact = data  # type: ignore[misc]
+                return EnvelopeVerdict(
+                    False, None, self.named_point(point), [], examined,
+                    witness_exact=exact, seconds=time.perf_counter() - start,
+                )
+            if not rel or max(rel) < MIN_RELATIVE_WIDTH:
+                stuck.append(box)
+                continue
+            k = max(range(len(rel)), key=rel.__getitem__)
+            lo, hi = box[k]
+            mid = lo + (hi - lo) / 2
+            queue.append(box[:k] + ((lo, mid),) + box[k + 1 :])
+            queue.append(box[:k] + ((mid, hi),) + box[k + 1 :])
+        seconds = time.perf_counter() - start
+        open_boxes = stuck + list(queue)
+        if open_boxes:
+            return EnvelopeVerdict(
+                None, None, None, [self.named_box(b) for b in open_boxes[:3]], examined,
+                undecided_count=len(open_boxes), seconds=seconds,
+            )
+        return EnvelopeVerdict(True, margin, None, [], examined, seconds=seconds)
+
+    def named_point(self, point: Sequence[float]) -> dict[str, float]:
+        values = dict(zip(self.used, point))
+        return {
+            str(s): float(values[s]) if s in values else (self.full[s][0] + self.full[s][1]) / 2
+            for s in self.all_symbols
+        }
+
+    def named_box(self, box: FloatBox) -> dict[str, Interval]:
+        values = dict(zip(self.used, box))
+        return {str(s): values.get(s, self.full[s]) for s in self.all_symbols}
+
+
+def _used_symbols(exprs: Sequence[sp.Expr], box: dict[sp.Symbol, Interval]) -> list[sp.Symbol]:
+    free = set().union(*(e.free_symbols for e in exprs)) if exprs else set()
+    missing = free - set(box)
+    if missing:
+        raise UnsupportedExpression(f"no range for {sorted(map(str, missing))}")
+    return [s for s in box if s in free]
+
+
+def certify_nonzero(
+    exprs: Sequence[sp.Expr] | sp.Expr,
+    box: dict[sp.Symbol, tuple[Bound, Bound]],
+    budget: Budget = Budget(),
+) -> EnvelopeVerdict:
+    """Prove that at every point of ``box`` at least one of ``exprs`` is non-zero.
+
+    One expression: "never zero" (det A, a denominator). Several: a row of the
+    decoupling matrix or the p x p minors of a wide one ("never all zero at
+    once"). A witness is proved by continuity for a single expression (sign
+    change on a segment where the expression is finite), and by exact
+    evaluation at a rational point otherwise.
+    """
+    exprs = [exprs] if isinstance(exprs, sp.Basic) else list(exprs)
+    fbox = outward_box(box)
+    used = _used_symbols(exprs, fbox)
+    ev = _Evaluator(exprs, used)
+    search = _Search(fbox, used, budget)
+    single = len(exprs) == 1 and not exprs[0].has(sp.atan2)
+
+    def decide(b: FloatBox, centred: bool) -> Decision:
+        enclosures = ev.enclose(b, centred)
+        clean = [_float_below(x.abs_lower()) for x in enclosures if x.is_finite() and not x.contains(0)]
+        if clean:
+            return "proven", max(clean)
+        points = [_centre(b)] + _corners(b)
+        values = [ev.at(p) for p in points]
+        for p, vals in zip(points, values):
+            if all(v.is_finite() and v.contains(0) for v in vals) and search.exact_checks < MAX_EXACT_CHECKS:
+                search.exact_checks += 1
+                if ev.exactly_zero(p, range(len(exprs))):
+                    return "violated", (p, True)
+        if max(search.relative_widths(b), default=0.0) < 1e-6 and search.exact_checks < MAX_EXACT_CHECKS:
+            search.exact_checks += 1
+            snapped = ev.snapped_zero(b, range(len(exprs)))
+            if snapped is not None:
+                return "violated", (snapped, True)
+        if single:
+            signs = [_certain_sign(vals[0]) for vals in values]
+            if 1 in signs and -1 in signs:
+                a, c = points[signs.index(1)], points[signs.index(-1)]
+                found = _bracket_zero(ev, a, c)
+                if found is not None:
+                    return "violated", (found, False)
+        return "split", None
+
+    return search.run(decide)
+
+
+def certify_sign(
+    expr: sp.Expr,
+    box: dict[sp.Symbol, tuple[Bound, Bound]],
+    strict: bool,
+    budget: Budget = Budget(),
+) -> EnvelopeVerdict:
+    """Prove ``expr > 0`` (strict) or ``expr >= 0`` on the box (domains of log, sqrt, asin).
+
+    A witness is a point where the value is certainly negative, or (strict)
+    exactly zero.
+    """
+    fbox = outward_box(box)
+    used = _used_symbols([expr], fbox)
+    ev = _Evaluator([expr], used)
+    search = _Search(fbox, used, budget)
+
+    def decide(b: FloatBox, centred: bool) -> Decision:
+        x = ev.enclose(b, centred)[0]
+        if x.is_finite() and (x > 0 if strict else x >= 0):
+            return "proven", _float_below(x)
+        for p in [_centre(b)] + _corners(b):
+            v = ev.at(p)[0]
+            if v.is_finite() and v < 0:
+                return "violated", (p, False)
+            if strict and v.is_finite() and v.contains(0) and search.exact_checks < MAX_EXACT_CHECKS:
+                search.exact_checks += 1
+                if ev.exactly_zero(p, [0]):
+                    return "violated", (p, True)
+        if strict and max(search.relative_widths(b), default=0.0) < 1e-6 and search.exact_checks < MAX_EXACT_CHECKS:
+            search.exact_checks += 1
+            snapped = ev.snapped_zero(b, [0])
+            if snapped is not None:
+                return "violated", (snapped, True)
+        return "split", None
+
+    return search.run(decide)
+
+
+def _bracket_zero(ev: _Evaluator, positive: tuple[float, ...], negative: tuple[float, ...]) -> tuple[float, ...] | None:
+    """Bisect the segment between points of certain opposite sign down to a tiny
+    segment on which the expression is finite: by continuity it has a zero there."""
+    a, b = positive, negative
+    for _ in range(200):
+        m = tuple(x + (y - x) / 2 for x, y in zip(a, b))
+        if m == a or m == b:
+            break
+        v = ev.at(m)[0]
+        if not v.is_finite():
+            return None  # the expression is undefined there: a pole, not a zero
+        s = _certain_sign(v)
+        if s == 0:
+            break  # the ball already touches zero: [a, b] brackets it
+        if s > 0:
+            a = m
+        else:
+            b = m
+    hull = tuple((min(x, y), max(x, y)) for x, y in zip(a, b))
+    enclosure = ev.program.run(_cover(hull))[0]
+    if not enclosure.is_finite():
+        return None
+    return tuple(x + (y - x) / 2 for x, y in zip(a, b))

@@ -1,0 +1,469 @@
+"""The symbolic kernel: Lie derivatives, brackets, and sound zero tests.
+
+Every analysis asks this module its questions, so the expensive objects
+(L_f^k h_i, L_gj L_f^k h_i, ad_f^k g_j) are computed once per plant and shared.
+
+Zero testing follows the two-stage rule of the theory notes:
+
+1. *Screening* evaluates the expression with ball arithmetic at reproducible
+   random points of the envelope. A ball that excludes zero *proves* the
+   expression is not identically zero.
+2. Only when every ball contains zero is symbolic *confirmation* attempted
+   (``cancel`` for rational expressions; a bounded trigonometric/general
+   simplification for small ones). When confirmation is out of budget the answer
+   is "zero, unconfirmed" and callers report the uncertainty.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import random
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Sequence
+
+import sympy as sp
+from flint import arb
+
+from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
+from plantlint.kernel.plant import Plant
+
+Vector = tuple[sp.Expr, ...]
+
+#: Expressions larger than this (in operations) are not simplified symbolically.
+SIMPLIFY_OPS_LIMIT = 250
+#: Expressions larger than this are not factored for envelope proofs.
+FACTOR_OPS_LIMIT = 4000
+#: Expressions larger than this are not brought over a common denominator.
+COMPACT_OPS_LIMIT = 600
+#: Number of random points used to screen an expression.
+SCREEN_POINTS = 6
+
+
+@dataclass(frozen=True)
+class ZeroTest:
+    """Outcome of asking "is this expression identically zero?"."""
+
+    zero: bool
+    certain: bool
+    how: str  # "structural", "screened", "cancel", "simplify", "unconfirmed"
+
+
+@dataclass(frozen=True)
+class PointValue:
+    """An expression's value at a point: a rigorous ball, and whether it is zero."""
+
+    ball: arb
+    zero: bool | None  # None when the value could not be decided (undefined there)
+
+    @property
+    def value(self) -> float:
+        return float(self.ball.mid())
+
+
+class Kernel:
+    """Memoised differential-geometric quantities of one plant."""
+
+    def __init__(self, plant: Plant, seed: int | None = None):
+        self.plant = plant
+        self.x = plant.states
+        self.f: Vector = plant.f
+        self.g: tuple[Vector, ...] = plant.g
+        self.h: Vector = plant.h
+        self._lf: dict[tuple[int, int], sp.Expr] = {}
+        self._lglf: dict[tuple[int, int, int], sp.Expr] = {}
+        self._ad: dict[tuple[int, int], Vector] = {}
+        self._zero: dict[sp.Expr, ZeroTest] = {}
+        self._jacobians: dict[Vector, sp.Matrix] = {}
+        self._compact: dict[sp.Expr, sp.Expr] = {}
+        self._poly: "_PolynomialTowers | None | bool" = False
+        self.seed = seed if seed is not None else _seed_for(plant)
+        self._samples: list[dict[sp.Symbol, Fraction]] | None = None
+        self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
+
+    # -- elementary operations ---------------------------------------------
+    def lie(self, expr: sp.Expr, field: Vector) -> sp.Expr:
+        """L_X phi = d(phi) . X."""
+        total = sp.Integer(0)
+        for xi, Xi in zip(self.x, field):
+            if Xi == 0:
+                continue
+            d = sp.diff(expr, xi)
+            if d != 0:
+                total += d * Xi
+        return total
+
+    def gradient(self, expr: sp.Expr) -> Vector:
+        poly = self._polynomial()
+        if poly is not None and expr.free_symbols <= set(self.free_symbols()):
+            try:
+                p = poly.ring(expr)  # type: ignore[operator]
+            except Exception:  # e.g. a rational function: the general path
+                p = None
+            if p is not None:
+                return tuple(p.diff(x).as_expr() for x in poly.states)
+        return tuple(sp.diff(expr, xi) for xi in self.x)
+
+    def jacobian(self, field: Vector) -> sp.Matrix:
+        J = self._jacobians.get(field)
+        if J is None:
+            J = sp.Matrix([[sp.diff(Fi, xj) for xj in self.x] for Fi in field])
+            self._jacobians[field] = J
+        return J
+
+    def bracket(self, X: Vector, Y: Vector) -> Vector:
+        """[X, Y] = DY X - DX Y."""
+        DY = self.jacobian(Y)
+        DX = self.jacobian(X)
+        n = len(self.x)
+        out = []
+        for i in range(n):
+            term = sp.Integer(0)
+            for k in range(n):
+                if X[k] != 0 and DY[i, k] != 0:
+                    term += DY[i, k] * X[k]
+                if Y[k] != 0 and DX[i, k] != 0:
+                    term -= DX[i, k] * Y[k]
+            out.append(term)
+        return tuple(out)
+
+    # -- memoised towers -----------------------------------------------------
+    def lf(self, i: int, k: int) -> sp.Expr:
+        """L_f^k h_i."""
+        key = (i, k)
+        if key not in self._lf:
+            poly = self._polynomial()
+            if k == 0:
+                self._lf[key] = self.h[i]
+            elif poly is not None:
+                self._lf[key] = poly.lf(i, k).as_expr()
+            else:
+                self._lf[key] = self.lie(self.lf(i, k - 1), self.f)
+        return self._lf[key]
+
+    def lglf(self, j: int, i: int, k: int) -> sp.Expr:
+        """L_gj L_f^k h_i."""
+        key = (j, i, k)
+        if key not in self._lglf:
+            poly = self._polynomial()
+            if poly is not None:
+                self._lglf[key] = poly.lie(poly.lf(i, k), poly.g[j]).as_expr()
+            else:
+                self._lglf[key] = self.lie(self.lf(i, k), self.g[j])
+        return self._lglf[key]
+
+    def ad(self, j: int, k: int) -> Vector:
+        """ad_f^k g_j."""
+        key = (j, k)
+        if key not in self._ad:
+            poly = self._polynomial()
+            if k == 0:
+                self._ad[key] = tuple(self.g[j])
+            elif poly is not None:
+                self._ad[key] = tuple(e.as_expr() for e in poly.ad(j, k))
+            else:
+                self._ad[key] = self.bracket(self.f, self.ad(j, k - 1))
+        return self._ad[key]
+
+    def _polynomial(self) -> "_PolynomialTowers | None":
+        """Exact sparse-polynomial arithmetic when f, g and h are polynomials with
+        rational coefficients: the towers then cost a fraction of tree-based
+        differentiation (no assumption queries, no re-walking shared subtrees)."""
+        if self._poly is False:
+            self._poly = _PolynomialTowers.build(self)
+        return self._poly  # type: ignore[return-value]
+
+    def compact(self, expr: sp.Expr) -> sp.Expr:
+        """``expr`` over a common denominator with common factors cancelled, when
+        that is cheap (small input) and pays (smaller output); else unchanged.
+
+        Interval enclosures suffer from every repeated occurrence of a variable,
+        so certification works on the compact form.
+        """
+        if expr.is_Atom or sp.count_ops(expr) > COMPACT_OPS_LIMIT:
+            return expr
+        cached = self._compact.get(expr)
+        if cached is None:
+            try:
+                candidate = sp.cancel(sp.together(expr))
+            except (sp.PolynomialError, ValueError, TypeError):
+                candidate = expr
+            cached = candidate if sp.count_ops(candidate) < sp.count_ops(expr) else expr
+            self._compact[expr] = cached
+        return cached
+
+    def factors(self, expr: sp.Expr) -> list[tuple[sp.Expr, int]]:
+        """[(constant, 1), (factor, multiplicity), ...] of a moderate polynomial,
+        or [] when it does not factor, has a symbolic denominator or is too large."""
+        if (expr.is_Atom or _has_functions(expr) or has_symbolic_denominator(expr)
+                or sp.count_ops(expr) > FACTOR_OPS_LIMIT):
+            return []
+        try:
+            constant, pairs = sp.factor_list(expr)
+        except (sp.PolynomialError, ValueError, TypeError):
+            return []
+        parts = [(base, int(e)) for base, e in pairs if base.free_symbols]
+        if len(parts) < 2:
+            return []
+        return [(constant, 1), *parts]
+
+    # -- sampling --------------------------------------------------------------
+    def free_symbols(self) -> tuple[sp.Symbol, ...]:
+        return tuple(self.x) + tuple(self.plant.params)
+
+    def samples(self) -> list[dict[sp.Symbol, Fraction]]:
+        """Reproducible random rational points inside the envelope (or near the
+        origin where no range is declared), avoiding points where the model's
+        own expressions are undefined."""
+        if self._samples is not None:
+            return self._samples
+        boxes = {**self.plant.state_box, **self.plant.param_box}
+        guard_exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0] + list(self.h)
+        guard: Program | None
+        try:
+            guard = Program(guard_exprs, self.free_symbols())
+        except UnsupportedExpression:
+            guard = None
+        out = random_samples(self.free_symbols(), boxes, self.seed, guard=guard)
+        self._samples = out
+        return out
+
+    # -- zero tests -------------------------------------------------------------
+    def is_zero(self, expr: sp.Expr) -> ZeroTest:
+        """Is ``expr`` identically zero (as a function of states and ranged params)?"""
+        if expr == 0:
+            return ZeroTest(True, True, "structural")
+        if not expr.free_symbols & set(self.free_symbols()):
+            # a constant: decide it exactly / rigorously
+            try:
+                b = to_arb(expr)
+                if b.is_finite() and not b.contains(0):
+                    return ZeroTest(False, True, "screened")
+            except UnsupportedExpression:
+                pass
+        cached = self._zero.get(expr)
+        if cached is not None:
+            return cached
+        result = self._screen_then_confirm(expr)
+        self._zero[expr] = result
+        if result.zero and not result.certain:
+            self.uncertain.append(expr)
+        return result
+
+    def _screen_then_confirm(self, expr: sp.Expr) -> ZeroTest:
+        return screen_then_confirm(expr, self.free_symbols(), self.samples())
+
+    def constant_is_zero(self, value: sp.Expr) -> bool | None:
+        """Is an exact constant (sin(1/3), pi/2, ...) exactly zero? None when it is
+        undefined there (a division by zero) or cannot be evaluated."""
+        if value == 0:
+            return True
+        if value.is_Rational:
+            return False
+        if value.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
+            return None
+        try:
+            return self.value_at(value, {}).zero
+        except UnsupportedExpression:
+            return None
+
+    def value_at(self, expr: sp.Expr, point: dict[sp.Symbol, sp.Expr]) -> PointValue:
+        """The value of ``expr`` at an exact point, rigorously.
+
+        ``point`` gives every state (and ranged parameter; missing ones take
+        their nominal value). The result's ``zero`` is True only when the value
+        is exactly zero (decided exactly, not by rounding).
+        """
+        full = dict(self.plant.param_nominal)
+        full.update(point)
+        exact = expr.xreplace({s: v for s, v in full.items()})
+        if exact.is_Rational or exact.is_Integer:
+            return PointValue(to_arb(exact), exact == 0)
+        if exact.free_symbols:
+            raise UnsupportedExpression(f"value needs {sorted(map(str, exact.free_symbols))}")
+        if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
+            return PointValue(arb("nan"), None)
+        for prec in (128, 1024):
+            try:
+                b = Program([exact], []).run([], prec=prec)[0]
+            except UnsupportedExpression:
+                break
+            if not b.is_finite():
+                return PointValue(b, None)
+            if not b.contains(0):
+                return PointValue(b, False)
+        # every ball contains 0: decide exactly on the constant
+        if not _has_functions(exact):
+            c = sp.nsimplify(exact) if exact.has(sp.Float) else sp.cancel(exact)
+            return PointValue(to_arb(0) if c == 0 else _safe_ball(c), c == 0)
+        is_zero = exact.equals(0)
+        if is_zero is None:
+            return PointValue(_safe_ball(exact), True)  # within 2^-1024 of zero
+        return PointValue(_safe_ball(exact), bool(is_zero))
+
+
+class _PolynomialTowers:
+    """L_f^k h_i, L_g L_f^k h_i and ad_f^k g_j in a sparse polynomial ring over QQ."""
+
+    def __init__(self, ring: object, states: list[object], f: list[object], g: list[list[object]],
+                 h: list[object]):
+        self.ring = ring
+        self.states = states
+        self.f = f
+        self.g = g
+        self.h = h
+        self._lf: dict[tuple[int, int], object] = {}
+        self._ad: dict[tuple[int, int], list[object]] = {}
+
+    @classmethod
+    def build(cls, kernel: "Kernel") -> "_PolynomialTowers | None":
+        from sympy.polys.domains import QQ
+        from sympy.polys.rings import ring
+
+        symbols = list(kernel.free_symbols())
+        if not symbols:
+            return None
+        R, *gens = ring(symbols, QQ)
+        by_symbol = dict(zip(symbols, gens))
+        try:
+            f = [R(e) for e in kernel.f]
+            g = [[R(e) for e in col] for col in kernel.g]
+            h = [R(e) for e in kernel.h]
+        except Exception:  # not a polynomial with rational coefficients: the general path
+            return None
+        return cls(R, [by_symbol[x] for x in kernel.x], f, g, h)
+
+    def lie(self, phi: object, field: list[object]) -> object:
+        total = self.ring.zero  # type: ignore[attr-defined]
+        for x, X in zip(self.states, field):
+            if X:
+                total += phi.diff(x) * X  # type: ignore[attr-defined]
+        return total
+
+    def lf(self, i: int, k: int) -> object:
+        key = (i, k)
+        if key not in self._lf:
+            self._lf[key] = self.h[i] if k == 0 else self.lie(self.lf(i, k - 1), self.f)
+        return self._lf[key]
+
+    def ad(self, j: int, k: int) -> list[object]:
+        key = (j, k)
+        if key not in self._ad:
+            if k == 0:
+                self._ad[key] = list(self.g[j])
+            else:
+                Y = self.ad(j, k - 1)
+                self._ad[key] = [self.lie(Yi, self.f) - self.lie(Fi, Y) for Yi, Fi in zip(Y, self.f)]
+        return self._ad[key]
+
+
+def screen_then_confirm(
+    expr: sp.Expr, symbols: Sequence[sp.Symbol], samples: Sequence[dict[sp.Symbol, Fraction]]
+) -> ZeroTest:
+    """The two-stage zero test on given sample points (see the module docstring)."""
+    try:
+        prog = Program([expr], symbols)
+    except UnsupportedExpression:
+        prog = None
+    if prog is not None:
+        for point in samples:
+            for prec in (128, 512):
+                b = prog.run([rational_ball(point[s], prec) for s in symbols], prec=prec)[0]
+                if b.is_finite() and not b.contains(0):
+                    return ZeroTest(False, True, "screened")
+                if b.is_finite() and b.rad() < 2.0 ** (-prec // 2):
+                    break  # a tight ball around zero: more digits will not help
+    return confirm_zero(expr)
+
+
+def has_symbolic_denominator(e: sp.Expr) -> bool:
+    return any(p.exp.is_negative and p.base.free_symbols for p in e.atoms(sp.Pow))
+
+
+def confirm_zero(expr: sp.Expr) -> ZeroTest:
+    """Symbolic confirmation, bounded: exact for rational expressions, budgeted otherwise.
+
+    Without a symbolic denominator, multiplying out decides polynomials at once
+    (and proves many trigonometric zeros); bringing a large polynomial over a
+    common denominator first would cost far more.
+    """
+    if not has_symbolic_denominator(expr):
+        if sp.expand(expr) == 0:
+            return ZeroTest(True, True, "expand")
+        if not _has_functions(expr):
+            return ZeroTest(False, True, "expand")
+    if not _has_functions(expr):
+        if sp.cancel(sp.together(expr)) == 0:
+            return ZeroTest(True, True, "cancel")
+        return ZeroTest(False, True, "cancel")
+    if sp.count_ops(expr) <= SIMPLIFY_OPS_LIMIT:
+        e = sp.expand(sp.together(expr))
+        if e == 0:
+            return ZeroTest(True, True, "cancel")
+        if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
+            return ZeroTest(True, True, "simplify")
+    return ZeroTest(True, False, "unconfirmed")
+
+
+def random_samples(
+    symbols: Sequence[sp.Symbol],
+    boxes: dict[sp.Symbol, tuple[sp.Expr, sp.Expr]],
+    seed: int,
+    count: int = SCREEN_POINTS,
+    guard: Program | None = None,
+) -> list[dict[sp.Symbol, Fraction]]:
+    """Reproducible random rational points inside ``boxes`` (or [-2, 2] where a
+    symbol has no box), skipping points where ``guard`` is undefined."""
+    rng = random.Random(seed)
+    out: list[dict[sp.Symbol, Fraction]] = []
+    tries = 0
+    while len(out) < count and tries < 20 * count:
+        tries += 1
+        point: dict[sp.Symbol, Fraction] = {}
+        for s in symbols:
+            lo, hi = _float_range(boxes.get(s))
+            frac = Fraction(rng.randint(1, 997), 1000)
+            value = lo + (hi - lo) * frac
+            # keep the denominator small and the value off trivial points
+            point[s] = value.limit_denominator(4093) + Fraction(1, 7919)
+        if guard is not None:
+            vals = guard.run([rational_ball(point[s], 128) for s in symbols])
+            if not all(v.is_finite() for v in vals):
+                continue
+        out.append(point)
+    return out
+
+
+def _safe_ball(e: sp.Expr) -> arb:
+    try:
+        return to_arb(e)
+    except UnsupportedExpression:
+        return arb("nan")
+
+
+def _has_functions(expr: sp.Expr) -> bool:
+    return bool(expr.atoms(sp.Function)) or any(
+        p.exp.is_Rational and not p.exp.is_Integer for p in expr.atoms(sp.Pow)
+    )
+
+
+def _float_range(bounds: tuple[sp.Expr, sp.Expr] | None) -> tuple[Fraction, Fraction]:
+    if bounds is None:
+        return Fraction(-2), Fraction(2)
+    lo, hi = (
+        Fraction(int(b.p), int(b.q)) if b.is_Rational else Fraction(float(b)).limit_denominator(10**6)
+        for b in bounds
+    )
+    return lo, hi
+
+
+def _seed_for(plant: Plant) -> int:
+    digest = hashlib.sha256(repr((plant.name, plant.f, plant.g, plant.h)).encode()).digest()
+    return int.from_bytes(digest[:8], "big")
+
+
+def matrix_at(kernel: Kernel, rows: Sequence[Sequence[sp.Expr]], point: dict[sp.Symbol, sp.Expr]) -> sp.Matrix:
+    """Exact matrix of expressions at a point (for rank decisions)."""
+    full = dict(kernel.plant.param_nominal)
+    full.update(point)
+    return sp.Matrix([[e.xreplace(full) for e in row] for row in rows])

@@ -1,0 +1,1 @@
+"""language layer of plantlint."""

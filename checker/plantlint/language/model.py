@@ -1,0 +1,623 @@
+"""From parsed statements to an immutable :class:`Model`, with the model-family rules.
+
+The model resolves names (constants substituted exactly, parameters without a
+range replaced by their nominal value, ranged parameters kept as symbols, ``let``
+definitions substituted), checks declarations, and extracts f(x) and g(x) of an
+input-affine plant exactly. Everything it finds is a :class:`Finding` with the
+span of the offending name, call or statement.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Mapping
+
+import sympy as sp
+
+from plantlint.core.findings import Finding, Severity, Span, Waiver
+from plantlint.kernel.lie import random_samples, screen_then_confirm
+from plantlint.kernel.plant import Plant
+from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Expression, Parsed, Statement, symbol
+
+CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
+QUANTITY_KINDS = ("const", "param", "state", "input", "let", "output")
+
+
+@dataclass(frozen=True)
+class Quantity:
+    """A declared name: constant, parameter, state, input, definition or output."""
+
+    name: str
+    kind: str
+    span: Span  # the whole statement
+    name_span: Span
+    unit: str | None = None
+    doc: str | None = None
+    value: sp.Expr | None = None  # const/param: exact nominal value; let/output: expression
+    low: sp.Expr | None = None
+    high: sp.Expr | None = None
+
+
+@dataclass(frozen=True)
+class OperatingPoint:
+    name: str
+    span: Span
+    name_span: Span
+    values: Mapping[str, sp.Expr]  # exact values by state/input name
+    value_spans: Mapping[str, Span]
+
+
+@dataclass(frozen=True)
+class ClaimDecl:
+    kind: str
+    span: Span  # the whole `expect` statement
+    output: str | None = None
+    value: int | None = None
+    point: str | None = None
+
+    @property
+    def anchor(self) -> str:
+        text = f"expect {self.kind}" + (f"({self.output})" if self.output else "")
+        return text + (f" at {self.point}" if self.point else "")
+
+
+@dataclass(frozen=True)
+class Model:
+    """One plant file, resolved. Read-only by construction."""
+
+    path: str
+    name: str | None
+    title: str | None
+    quantities: Mapping[str, Quantity]
+    states: tuple[str, ...]
+    inputs: tuple[str, ...]
+    outputs: tuple[str, ...]
+    rates: Mapping[str, sp.Expr]  # F(x, u) per state, fully resolved
+    output_exprs: Mapping[str, sp.Expr]
+    points: tuple[OperatingPoint, ...]
+    claims: tuple[ClaimDecl, ...]
+    waivers: tuple[Waiver, ...]
+    spans: Mapping[str, Span]  # anchor -> span
+    ranged_params: tuple[str, ...] = ()
+    input_affine: bool = True
+    smooth: bool = True
+
+    def symbol(self, name: str) -> sp.Symbol:
+        return symbol(name)
+
+    def span_of(self, anchor: str) -> Span | None:
+        return self.spans.get(anchor)
+
+    def point(self, name: str) -> OperatingPoint | None:
+        return next((p for p in self.points if p.name == name), None)
+
+    def box(self, names: tuple[str, ...]) -> dict[sp.Symbol, tuple[sp.Expr, sp.Expr]]:
+        out = {}
+        for n in names:
+            q = self.quantities[n]
+            if q.low is not None and q.high is not None:
+                out[symbol(n)] = (q.low, q.high)
+        return out
+
+    def plant(self) -> Plant | None:
+        """The input-affine plant, or None when the model cannot give one."""
+        if not self.input_affine or self.name is None and not self.states:
+            return None
+        xs = tuple(symbol(s) for s in self.states)
+        us = tuple(symbol(u) for u in self.inputs)
+        zero_inputs = {u: sp.Integer(0) for u in us}
+        f = tuple(self.rates[s].xreplace(zero_inputs) for s in self.states)
+        g = tuple(tuple(sp.diff(self.rates[s], u) for s in self.states) for u in us)
+        params = tuple(symbol(p) for p in self.ranged_params)
+        return Plant(
+            name=self.name or "plant",
+            states=xs,
+            inputs=us,
+            f=f,
+            g=g,
+            outputs=self.outputs,
+            h=tuple(self.output_exprs[o] for o in self.outputs),
+            params=params,
+            param_nominal={symbol(p): self.quantities[p].value for p in self.ranged_params},  # type: ignore[misc]
+            param_box=self.box(self.ranged_params),
+            state_box=self.box(self.states),
+            input_box=self.box(self.inputs),
+        )
+
+
+@dataclass
+class _Scope:
+    """Bookkeeping while the model is being built."""
+
+    findings: list[Finding] = field(default_factory=list)
+    declared: dict[str, Statement] = field(default_factory=dict)
+    used: set[str] = field(default_factory=set)
+    constants: dict[sp.Symbol, sp.Expr] = field(default_factory=dict)  # const + unranged params
+    lets: dict[sp.Symbol, sp.Expr] = field(default_factory=dict)
+
+    def add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None,
+            severity: Severity = Severity.ERROR, point: str | None = None) -> None:
+        self.findings.append(Finding(rule, severity, message, span, point=point, hint=hint, anchor=anchor))
+
+
+def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]:
+    """Resolve a parsed file. Returns (model or None, findings)."""
+    scope = _Scope(findings=list(parsed.findings))
+    if parsed.findings:
+        return None, scope.findings
+    statements = parsed.statements
+    if not statements:
+        scope.add("syntax", "empty model: a file starts with `plant NAME`", Span(1, 1, 1, 2), "empty")
+        return None, scope.findings
+    header = statements[0]
+    if header.kind != "plant":
+        scope.add("syntax", "a model file must start with `plant NAME`", header.span, "no header")
+        return None, scope.findings
+    for extra in (s for s in statements[1:] if s.kind == "plant"):
+        scope.add("syntax", "a file holds one plant: a second `plant` header", extra.span, "second header")
+
+    spans: dict[str, Span] = {"plant": header.name_span or header.span}
+    quantities: dict[str, Quantity] = {}
+    by_kind: dict[str, list[Statement]] = {}
+    for st in statements[1:]:
+        by_kind.setdefault(st.kind, []).append(st)
+
+    # declarations, in file order, with duplicate detection
+    for st in statements[1:]:
+        if st.kind in QUANTITY_KINDS and st.name:
+            _declare(scope, st)
+
+    ranged: list[str] = []
+    # constants and parameters: values use earlier constants/parameters only
+    for st in statements[1:]:
+        if st.kind not in ("const", "param") or scope.declared.get(st.name or "") is not st:
+            continue
+        value = _constant_value(scope, st, st.expr)
+        q = Quantity(st.name or "", st.kind, st.span, st.name_span or st.span, st.unit, st.doc, value)
+        if st.kind == "param" and st.low is not None:
+            ranged.append(q.name)
+        else:
+            if value is not None:
+                scope.constants[symbol(q.name)] = value
+        quantities[q.name] = q
+        spans[f"{st.kind} {q.name}"] = q.name_span
+
+    for st in statements[1:]:
+        if st.kind in ("state", "input") and scope.declared.get(st.name or "") is st:
+            quantities[st.name or ""] = Quantity(st.name or "", st.kind, st.span, st.name_span or st.span, st.unit, st.doc)
+            spans[f"{st.kind} {st.name}"] = st.name_span or st.span
+
+    # ranges (after all constants are known) -------------------------------------
+    for st in statements[1:]:
+        if st.low is None or st.high is None or scope.declared.get(st.name or "") is not st:
+            continue
+        lo = _range_value(scope, st, st.low)
+        hi = _range_value(scope, st, st.high)
+        q = quantities[st.name or ""]
+        if lo is None or hi is None:
+            continue
+        if not _less(lo, hi):
+            scope.add("bad-range", f"range of '{q.name}' is empty: {_show(lo)} .. {_show(hi)} needs LO < HI",
+                      st.range_span, f"range {q.name}")
+            continue
+        if q.kind == "param" and q.value is not None and not (_less_eq(lo, q.value) and _less_eq(q.value, hi)):
+            scope.add("bad-range", f"nominal value {_show(q.value)} of '{q.name}' lies outside its range {_show(lo)} .. {_show(hi)}",
+                      st.range_span, f"nominal {q.name}")
+        quantities[q.name] = Quantity(q.name, q.kind, q.span, q.name_span, q.unit, q.doc, q.value, lo, hi)
+    ranged = [p for p in ranged if quantities[p].low is not None]
+    for p in list(quantities):
+        q = quantities[p]
+        if q.kind == "param" and q.low is None and q.value is not None:
+            scope.constants[symbol(p)] = q.value
+
+    states = tuple(st.name for st in by_kind.get("state", []) if scope.declared.get(st.name or "") is st)
+    inputs = tuple(st.name for st in by_kind.get("input", []) if scope.declared.get(st.name or "") is st)
+    dynamic = set(states) | set(inputs) | set(ranged)
+
+    # definitions: may use states, inputs, parameters and earlier definitions
+    for st in by_kind.get("let", []):
+        if scope.declared.get(st.name or "") is not st or st.expr is None:
+            continue
+        value = _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"let {st.name}")
+        scope.lets[symbol(st.name or "")] = value
+        quantities[st.name or ""] = Quantity(st.name or "", "let", st.span, st.name_span or st.span, value=value)
+        spans[f"let {st.name}"] = st.name_span or st.span
+
+    # rates -------------------------------------------------------------------
+    rates: dict[str, sp.Expr] = {}
+    rate_stmts: dict[str, Statement] = {}
+    for st in by_kind.get("rate", []):
+        name = st.name or ""
+        target = scope.declared.get(name)
+        if target is None or target.kind != "state":
+            what = f"the {target.kind} '{name}'" if target is not None else f"'{name}', which is not declared"
+            scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, f"rate {name}",
+                      hint=f"declare `state {name}` or remove this rate")
+            _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"rate {name}")
+            continue
+        if name in rate_stmts:
+            first = rate_stmts[name].span.line
+            scope.add("duplicate-name", f"second rate for state '{name}' (the first is on line {first})",
+                      st.name_span, f"rate {name} twice")
+            continue
+        rate_stmts[name] = st
+        rates[name] = _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"rate {name}")
+        spans[f"rate {name}"] = st.expr.span if st.expr else st.span
+    for st in by_kind.get("state", []):
+        name = st.name or ""
+        if scope.declared.get(name) is st and name not in rate_stmts:
+            scope.add("missing-rate", f"state '{name}' has no rate", st.name_span, f"state {name}",
+                      hint=f"add `rate {name} = ...`")
+
+    # outputs -------------------------------------------------------------------
+    output_exprs: dict[str, sp.Expr] = {}
+    outputs = []
+    input_syms = {symbol(u) for u in inputs}
+    for st in by_kind.get("output", []):
+        name = st.name or ""
+        if scope.declared.get(name) is not st or st.expr is None:
+            continue
+        value = _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"output {name}")
+        spans[f"output {name}"] = st.expr.span
+        used_inputs = sorted(str(s) for s in value.free_symbols & input_syms)
+        if used_inputs:
+            ref = next((r for r in st.expr.names if r.name in used_inputs), None)
+            scope.add("output-uses-input",
+                      f"output '{name}' depends on input {', '.join(repr(u) for u in used_inputs)}; outputs must be y = h(x)",
+                      ref.span if ref else st.expr.span, f"output {name}",
+                      hint="feedthrough gives relative degree 0, which the analyses do not cover")
+            value = value.xreplace({s: sp.Integer(0) for s in input_syms})
+        output_exprs[name] = value
+        outputs.append(name)
+
+    smooth = _check_smooth(scope, statements)
+    input_affine = _check_affine(scope, rates, rate_stmts, states, inputs, ranged)
+
+    points = _points(scope, by_kind.get("point", []), states, inputs, spans)
+    claims, waivers = _claims_and_waivers(scope, by_kind, outputs, points, spans)
+    _unused(scope, statements, inputs)
+
+    model = Model(
+        path=path,
+        name=header.name,
+        title=header.doc,
+        quantities=MappingProxyType(quantities),
+        states=tuple(s for s in states if s in rates),
+        inputs=inputs,
+        outputs=tuple(outputs),
+        rates=MappingProxyType(rates),
+        output_exprs=MappingProxyType(output_exprs),
+        points=tuple(points),
+        claims=tuple(claims),
+        waivers=tuple(waivers),
+        spans=MappingProxyType(spans),
+        ranged_params=tuple(ranged),
+        input_affine=input_affine,
+        smooth=smooth,
+    )
+    return model, scope.findings
+
+
+# -- helpers ----------------------------------------------------------------------
+
+def _declare(scope: _Scope, st: Statement) -> None:
+    name = st.name or ""
+    first = scope.declared.get(name)
+    if first is not None:
+        scope.add("duplicate-name", f"'{name}' is already declared as a {first.kind} on line {first.span.line}",
+                  st.name_span, f"{st.kind} {name} twice")
+        return
+    scope.declared[name] = st
+
+
+def _let_names(scope: _Scope) -> list[str]:
+    return [str(s) for s in scope.lets]
+
+
+def _mark_used(scope: _Scope, expr: Expression | None) -> None:
+    if expr is not None:
+        scope.used.update(r.name for r in expr.names)
+
+
+def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp.Expr | None:
+    """Value of a const/param: only earlier constants and parameters may appear."""
+    if expr is None:
+        return None
+    _mark_used(scope, expr)
+    ok = True
+    for ref in expr.names:
+        target = scope.declared.get(ref.name)
+        if target is None:
+            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in {st.kind} {st.name}")
+            ok = False
+        elif target.kind not in ("const", "param") or target.span.line > st.span.line or target is st:
+            why = "is declared later" if target.kind in ("const", "param") else f"is a {target.kind}"
+            scope.add("unknown-name", f"'{ref.name}' {why}; a {st.kind} value may use only earlier constants and parameters",
+                      ref.span, f"name {ref.name} in {st.kind} {st.name}")
+            ok = False
+    if not ok:
+        return None
+    value = expr.value.xreplace(scope.constants)
+    if value.free_symbols:
+        # an earlier ranged parameter: use its nominal value
+        value = value.xreplace(_nominals(scope))
+    if value.free_symbols or value.has(sp.zoo, sp.nan, sp.oo):
+        scope.add("bad-range" if value.free_symbols else "singular-model", f"value of '{st.name}' is not a finite number",
+                  expr.span, f"{st.kind} {st.name} value")
+        return None
+    return value
+
+
+def _nominals(scope: _Scope) -> dict[sp.Symbol, sp.Expr]:
+    out = {}
+    for name, st in scope.declared.items():
+        if st.kind == "param" and st.expr is not None:
+            v = st.expr.value.xreplace(scope.constants)
+            if not v.free_symbols:
+                out[symbol(name)] = v
+    return out
+
+
+def _range_value(scope: _Scope, st: Statement, expr: Expression) -> sp.Expr | None:
+    _mark_used(scope, expr)
+    for ref in expr.names:
+        target = scope.declared.get(ref.name)
+        if target is None:
+            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in range {st.name}")
+            return None
+        if target.kind not in ("const", "param"):
+            scope.add("bad-range", f"range of '{st.name}' uses the {target.kind} '{ref.name}'; ranges must be constant",
+                      ref.span, f"range {st.name} not constant")
+            return None
+    value = expr.value.xreplace(scope.constants).xreplace(_nominals(scope))
+    if value.free_symbols or not value.is_finite:
+        scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, f"range {st.name} bound")
+        return None
+    return value
+
+
+def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: str) -> sp.Expr:
+    """Substitute constants and definitions; report names that are not allowed here."""
+    if expr is None:
+        return sp.Integer(0)
+    _mark_used(scope, expr)
+    for ref in expr.names:
+        if ref.name in allowed or symbol(ref.name) in scope.constants:
+            continue
+        target = scope.declared.get(ref.name)
+        if target is None:
+            message = f"unknown name '{ref.name}'"
+            hint = None
+        elif target.kind == "let":
+            message = f"'{ref.name}' is defined later (line {target.span.line}); define it before use"
+            hint = None
+        else:
+            message = f"'{ref.name}' is an {target.kind}" if target.kind[0] in "aeiou" else f"'{ref.name}' is a {target.kind}"
+            message += " and cannot be used here"
+            hint = "outputs are named by expect/waive, not used in expressions" if target.kind == "output" else None
+        scope.add("unknown-name", message, ref.span, f"name {ref.name} in {where}", hint=hint)
+    value = expr.value.xreplace(scope.lets).xreplace(scope.constants)
+    known = {symbol(a) for a in allowed}
+    stray = value.free_symbols - known
+    if stray:
+        # already reported as unknown names; the model will not be analysed
+        return value.xreplace({s: sp.Integer(1) for s in stray})
+    if value.has(sp.zoo, sp.nan):
+        scope.add("singular-model", f"{where} divides by zero for every state", expr.span, f"{where} division by zero")
+        value = value.xreplace({sp.zoo: sp.Integer(0), sp.nan: sp.Integer(0)})
+    return value
+
+
+def _check_smooth(scope: _Scope, statements: list[Statement]) -> bool:
+    smooth = True
+    for st in statements:
+        exprs = [st.expr] + [e for _, e in st.assignments]
+        for expr in exprs:
+            if expr is None:
+                continue
+            for call in expr.calls:
+                if call.function in NON_SMOOTH_FUNCTIONS and st.kind in ("let", "rate", "output"):
+                    smooth = False
+                    scope.add("non-smooth", f"{call.function}() is not smooth; Lie derivatives and brackets need smooth vector fields",
+                              call.span, f"{st.kind} {st.name} {call.function}",
+                              hint="replace it by a smooth approximation (e.g. tanh for sign) or model the switching separately")
+    return smooth
+
+
+def _check_affine(scope: _Scope, rates: dict[str, sp.Expr], rate_stmts: dict[str, Statement],
+                  states: tuple[str, ...], inputs: tuple[str, ...], ranged: list[str]) -> bool:
+    """F(x, u) must be affine in u: every second derivative in u vanishes identically."""
+    us = [symbol(u) for u in inputs]
+    if not us:
+        return True
+    symbols = tuple(symbol(s) for s in states) + tuple(us) + tuple(symbol(p) for p in ranged)
+    samples = None
+    affine = True
+    for name, F in rates.items():
+        if not (F.free_symbols & set(us)):
+            continue
+        bad: list[str] = []
+        for i, ui in enumerate(us):
+            dFi = sp.diff(F, ui)
+            for uj in us[i:]:
+                second = sp.diff(dFi, uj)
+                if second == 0:
+                    continue
+                if samples is None:
+                    samples = random_samples(symbols, {}, seed=len(states) * 7919 + len(inputs))
+                if not screen_then_confirm(second, symbols, samples).zero:
+                    bad.append(str(ui) if ui == uj else f"{ui}*{uj}")
+        if bad:
+            affine = False
+            st = rate_stmts[name]
+            scope.add("not-input-affine",
+                      f"rate of '{name}' is not affine in the inputs (nonlinear in {', '.join(bad)})",
+                      st.expr.span if st.expr else st.span, f"rate {name}",
+                      hint="the analyses need dx/dt = f(x) + g(x) u; add an integrator (dynamic extension) or a new input")
+    return affine
+
+
+def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inputs: tuple[str, ...],
+            spans: dict[str, Span]) -> list[OperatingPoint]:
+    points: list[OperatingPoint] = []
+    seen: dict[str, Statement] = {}
+    for st in stmts:
+        name = st.name or ""
+        if name in seen:
+            scope.add("duplicate-name", f"point '{name}' is already declared on line {seen[name].span.line}",
+                      st.name_span, f"point {name} twice")
+            continue
+        seen[name] = st
+        values: dict[str, sp.Expr] = {}
+        value_spans: dict[str, Span] = {}
+        for target, expr in st.assignments:
+            kind = scope.declared.get(target.name)
+            if kind is None or kind.kind not in ("state", "input"):
+                what = f"a {kind.kind}" if kind is not None else "not declared"
+                scope.add("unknown-name", f"point '{name}' sets '{target.name}', which is {what}; points set states and inputs",
+                          target.span, f"point {name} sets {target.name}", point=name)
+                continue
+            if target.name in values:
+                scope.add("duplicate-name", f"point '{name}' sets '{target.name}' twice", target.span,
+                          f"point {name} sets {target.name} twice", point=name)
+                continue
+            value = _point_value(scope, name, target.name, expr)
+            if value is not None:
+                values[target.name] = value
+                value_spans[target.name] = expr.span
+        missing = [s for s in states if s not in values]
+        if missing:
+            scope.add("point-incomplete", f"point '{name}' does not give state{'s' if len(missing) > 1 else ''} "
+                      + ", ".join(repr(m) for m in missing), st.name_span, f"point {name}", point=name,
+                      hint="every state must be given; inputs may be left out to be solved for")
+        spans[f"point {name}"] = st.name_span or st.span
+        points.append(OperatingPoint(name, st.span, st.name_span or st.span, MappingProxyType(values),
+                                     MappingProxyType(value_spans)))
+    return points
+
+
+def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp.Expr | None:
+    _mark_used(scope, expr)
+    for ref in expr.names:
+        decl = scope.declared.get(ref.name)
+        if decl is None or decl.kind not in ("const", "param"):
+            what = f"the {decl.kind} '{ref.name}'" if decl is not None else f"unknown name '{ref.name}'"
+            scope.add("unknown-name", f"point '{point}' value uses {what}; point values must be constant",
+                      ref.span, f"point {point} value {target}", point=point)
+            return None
+    value = expr.value.xreplace(scope.constants).xreplace(_nominals(scope))
+    if value.has(sp.zoo, sp.nan) or value.free_symbols:
+        scope.add("singular-model", f"point '{point}' value of '{target}' is not a finite number", expr.span,
+                  f"point {point} value {target}", point=point)
+        return None
+    return value
+
+
+def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outputs: list[str],
+                        points: list[OperatingPoint], spans: dict[str, Span]) -> tuple[list[ClaimDecl], list[Waiver]]:
+    from plantlint.core.catalogue import load_catalogue
+
+    catalogue = load_catalogue()
+    point_names = {p.name for p in points}
+    claims: list[ClaimDecl] = []
+    for st in by_kind.get("expect", []):
+        claim = st.claim
+        assert claim is not None
+        ok = True
+        if claim.kind not in CLAIMS:
+            scope.add("unknown-reference", f"unknown claim '{claim.kind}'", claim.span, f"claim {claim.kind}",
+                      hint="claims: " + ", ".join(CLAIMS))
+            continue
+        if (claim.output is not None) != (claim.kind == "relative_degree"):
+            form = "relative_degree(OUTPUT) = N" if claim.kind == "relative_degree" else claim.kind
+            scope.add("syntax", f"write this claim as `expect {form}`", claim.span, f"claim form {claim.kind}")
+            continue
+        value = None
+        if claim.output is not None:
+            if claim.output.name not in outputs:
+                scope.add("unknown-reference", f"expect names '{claim.output.name}', which is not an output",
+                          claim.output.span, f"expect output {claim.output.name}",
+                          hint=("outputs: " + ", ".join(outputs)) if outputs else "the model declares no output")
+                ok = False
+            v = claim.value.value if claim.value else None
+            if v is None or not (v.is_Integer and v > 0):
+                scope.add("syntax", "a relative degree is a whole number >= 1", claim.value.span if claim.value else claim.span,
+                          f"claim value {claim.output.name}")
+                ok = False
+            else:
+                value = int(v)
+        at = st.at_point
+        if at is not None and at.name not in point_names:
+            scope.add("unknown-reference", f"expect names point '{at.name}', which is not declared", at.span,
+                      f"expect point {at.name}", hint=_choices("points", point_names))
+            ok = False
+        if ok:
+            decl = ClaimDecl(claim.kind, st.span, claim.output.name if claim.output else None, value,
+                             at.name if at else None)
+            claims.append(decl)
+            spans[decl.anchor] = st.span
+    waivers: list[Waiver] = []
+    for st in by_kind.get("waive", []):
+        rule = st.rule_id
+        assert rule is not None
+        if rule.name not in catalogue:
+            scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, f"waive {rule.name}",
+                      hint="`plantlint rules` lists the rule ids")
+            continue
+        at = st.at_point
+        if at is not None and at.name not in point_names:
+            scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,
+                      f"waive point {at.name}", hint=_choices("points", point_names))
+            continue
+        reason = (st.doc or "").strip()
+        if not reason:
+            scope.add("syntax", "a waiver needs a reason", st.span, f"waive {rule.name} reason")
+            continue
+        waivers.append(Waiver(rule.name, at.name if at else None, reason, st.span))
+    return claims, waivers
+
+
+def _choices(what: str, names: set[str]) -> str:
+    return f"{what}: " + ", ".join(sorted(names)) if names else f"the model declares no {what}"
+
+
+def _unused(scope: _Scope, statements: list[Statement], inputs: tuple[str, ...]) -> None:
+    for name, st in scope.declared.items():
+        if st.kind in ("const", "param", "let", "input") and name not in scope.used:
+            what = {"const": "constant", "param": "parameter", "let": "definition", "input": "input"}[st.kind]
+            message = f"{what} '{name}' is never used"
+            if st.kind == "input":
+                message = f"input '{name}' does not enter any rate: it cannot act on the plant"
+            scope.add("unused-name", message, st.name_span, f"{st.kind} {name} unused", severity=Severity.WARNING)
+
+
+def _less(a: sp.Expr, b: sp.Expr) -> bool:
+    return _compare(b - a) > 0
+
+
+def _less_eq(a: sp.Expr, b: sp.Expr) -> bool:
+    return _compare(b - a) >= 0
+
+
+def _compare(d: sp.Expr) -> int:
+    """Exact sign of a constant (rigorous balls, exact where they cannot decide)."""
+    from plantlint.kernel.balls import UnsupportedExpression, to_arb
+
+    if d.is_Rational:
+        return int(bool(d > 0)) - int(bool(d < 0))
+    try:
+        b = to_arb(d)
+        if b > 0:
+            return 1
+        if b < 0:
+            return -1
+    except UnsupportedExpression:
+        pass
+    return 0 if d.equals(0) else (1 if d.is_positive else -1)
+
+
+def _show(e: sp.Expr) -> str:
+    from plantlint.language.printer import show_expr
+
+    return show_expr(e)

@@ -1,0 +1,577 @@
+"""Reading ``.plant`` text into statements with exact sympy expressions.
+
+The grammar lives in ``grammar/plant.lark``. Expressions are built from the
+parse tree node by node (never from the text), with every name and function
+call remembered together with its source span so findings can point at it.
+Hostile input (huge files, deep nesting, huge exponents, bad bytes) is turned
+into a ``syntax`` finding before it can cost time or memory.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from fractions import Fraction
+from functools import lru_cache
+from typing import Callable
+
+import sympy as sp
+from lark import Lark, Token, Tree
+from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
+
+from plantlint.core.findings import Finding, Severity, Span
+from plantlint.core.resources import data_path
+
+#: Limits that keep the checker fast on hostile files; real models are far below them.
+MAX_BYTES = 1 << 20
+MAX_DEPTH = 200
+MAX_NAME = 128
+MAX_EXPONENT = 1000
+MAX_LITERAL_EXP10 = 400
+MAX_LITERAL_DIGITS = 400
+MAX_STATEMENTS = 5000
+#: Tokens per file, counted before parsing: parsing and exact arithmetic cost about
+#: 0.1-1 ms per token, and the largest realistic models have ~1,000-2,000 tokens.
+MAX_TOKENS = 20_000
+
+KEYWORDS = frozenset(
+    "plant const param state input let rate output point expect waive at in".split()
+)
+SMOOTH_FUNCTIONS: dict[str, tuple[int, Callable[..., sp.Expr]]] = {
+    "sin": (1, sp.sin),
+    "cos": (1, sp.cos),
+    "tan": (1, sp.tan),
+    "asin": (1, sp.asin),
+    "acos": (1, sp.acos),
+    "atan": (1, sp.atan),
+    "atan2": (2, sp.atan2),
+    "sinh": (1, sp.sinh),
+    "cosh": (1, sp.cosh),
+    "tanh": (1, sp.tanh),
+    "exp": (1, sp.exp),
+    "log": (1, sp.log),
+    "sqrt": (1, sp.sqrt),
+}
+NON_SMOOTH_FUNCTIONS: dict[str, tuple[int, Callable[..., sp.Expr]]] = {
+    "abs": (1, sp.Abs),
+    "sign": (1, sp.sign),
+    "min": (2, sp.Min),
+    "max": (2, sp.Max),
+    "sat": (3, lambda x, lo, hi: sp.Min(sp.Max(x, lo), hi)),
+}
+FUNCTIONS = {**SMOOTH_FUNCTIONS, **NON_SMOOTH_FUNCTIONS}
+RESERVED = KEYWORDS | frozenset(FUNCTIONS) | {"pi"}
+
+
+class ParseProblem(Exception):
+    """A problem that stops parsing; carries the finding to report."""
+
+    def __init__(self, finding: Finding):
+        super().__init__(finding.message)
+        self.finding = finding
+
+
+@dataclass(frozen=True)
+class NameRef:
+    name: str
+    span: Span
+
+
+@dataclass(frozen=True)
+class CallRef:
+    function: str
+    span: Span
+
+
+@dataclass(frozen=True)
+class Expression:
+    """A parsed expression: its exact value (names as real symbols) and what it mentions."""
+
+    value: sp.Expr
+    span: Span
+    names: tuple[NameRef, ...]
+    calls: tuple[CallRef, ...]
+
+
+@dataclass(frozen=True)
+class Claim:
+    kind: str  # relative_degree | regular | minimum_phase | state_linearizable | other text
+    span: Span
+    output: NameRef | None = None
+    value: Expression | None = None
+
+
+@dataclass(frozen=True)
+class Statement:
+    kind: str  # plant const param state input let rate output point expect waive
+    span: Span
+    name: str | None = None
+    name_span: Span | None = None
+    expr: Expression | None = None
+    unit: str | None = None
+    doc: str | None = None
+    low: Expression | None = None
+    high: Expression | None = None
+    range_span: Span | None = None
+    assignments: tuple[tuple[NameRef, Expression], ...] = ()
+    claim: Claim | None = None
+    at_point: NameRef | None = None
+    rule_id: NameRef | None = None
+
+
+@dataclass
+class Parsed:
+    statements: list[Statement] = field(default_factory=list)
+    findings: list[Finding] = field(default_factory=list)
+
+
+@lru_cache(maxsize=1)
+def parser() -> Lark:
+    grammar = (data_path("grammar") / "plant.lark").read_text(encoding="utf-8")
+    return Lark(grammar, parser="lalr", lexer="contextual", propagate_positions=True, maybe_placeholders=True)
+
+
+def symbol(name: str) -> sp.Symbol:
+    """The sympy symbol for a model name (all model quantities are real)."""
+    return sp.Symbol(name, real=True)
+
+
+def _syntax(message: str, span: Span | None, hint: str | None = None, anchor: str = "") -> Finding:
+    return Finding("syntax", Severity.ERROR, message, span, hint=hint, anchor=anchor or message)
+
+
+# -- decoding and pre-checks ------------------------------------------------------
+
+def decode(data: bytes) -> tuple[str | None, Finding | None]:
+    """Bytes to text: UTF-8 (a leading BOM is dropped), CRLF accepted."""
+    if len(data) > MAX_BYTES:
+        return None, _syntax(
+            f"file is {len(data) / 1e6:.1f} MB; plant models are limited to {MAX_BYTES // 1024} KiB",
+            Span(1, 1, 1, 2),
+            anchor="file too large",
+        )
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = data.count(b"\n", 0, exc.start) + 1
+        col = exc.start - (data.rfind(b"\n", 0, exc.start) + 1) + 1
+        return None, _syntax(
+            f"file is not valid UTF-8 (byte 0x{data[exc.start]:02x} at offset {exc.start})",
+            Span.point(line, col),
+            anchor="invalid utf-8",
+        )
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    nul = text.find("\x00")
+    if nul >= 0:
+        line = text.count("\n", 0, nul) + 1
+        col = nul - (text.rfind("\n", 0, nul) + 1) + 1
+        return None, _syntax("file contains a NUL byte; is it a binary file?", Span.point(line, col), anchor="nul byte")
+    return text, None
+
+
+_TOKEN = re.compile(r'#[^\n]*|"[^"\n]*"?|\[[^\[\]\n]*\]?|[A-Za-z0-9_.]+|\S')
+
+
+def _size_problem(text: str) -> Finding | None:
+    """Reject files with more than MAX_TOKENS tokens before parsing (comments do not count)."""
+    count = 0
+    for match in _TOKEN.finditer(text):
+        if match.group().startswith("#"):
+            continue
+        count += 1
+        if count > MAX_TOKENS:
+            start = match.start()
+            line = text.count("\n", 0, start) + 1
+            col = start - (text.rfind("\n", 0, start) + 1) + 1
+            return _syntax(f"more than {MAX_TOKENS} tokens; plant models are limited to {MAX_TOKENS}",
+                           Span.point(line, col), anchor="too many tokens")
+    return None
+
+
+def _nesting_problem(text: str) -> Finding | None:
+    """Reject parentheses nested deeper than MAX_DEPTH, or more than MAX_DEPTH
+    signs in a row (``- - - x`` nests like parentheses), before parsing (cheap scan)."""
+    depth = 0
+    signs = 0
+    line, col = 1, 0
+    in_comment = in_string = False
+    for ch in text:
+        col += 1
+        if ch == "\n":
+            line, col = line + 1, 0
+            in_comment = in_string = False
+            continue
+        if in_comment:
+            continue
+        if in_string:
+            in_string = ch != '"'
+            continue
+        if ch in "+-":
+            signs += 1
+            if signs > MAX_DEPTH:
+                return _syntax(f"more than {MAX_DEPTH} signs in a row", Span.point(line, col), anchor="nesting")
+        elif not ch.isspace():
+            signs = 0
+        if ch == "#":
+            in_comment = True
+        elif ch == '"':
+            in_string = True
+        elif ch == "(":
+            depth += 1
+            if depth > MAX_DEPTH:
+                return _syntax(
+                    f"parentheses nested more than {MAX_DEPTH} deep",
+                    Span.point(line, col),
+                    anchor="nesting",
+                )
+        elif ch == ")":
+            depth = max(depth - 1, 0)
+    return None
+
+
+# -- parsing --------------------------------------------------------------------
+
+def parse_text(text: str) -> Parsed:
+    """Parse a whole file. Never raises for bad input: problems come back as findings."""
+    out = Parsed()
+    problem = _nesting_problem(text) or _size_problem(text)
+    if problem is not None:
+        out.findings.append(problem)
+        return out
+    try:
+        tree = parser().parse(text)
+    except UnexpectedInput as exc:
+        out.findings.append(_explain_error(exc, text))
+        return out
+    except RecursionError:
+        out.findings.append(_syntax("expression too deeply nested", Span(1, 1, 1, 2), anchor="nesting"))
+        return out
+    if len(tree.children) > MAX_STATEMENTS:
+        out.findings.append(
+            _syntax(
+                f"{len(tree.children)} statements; plant models are limited to {MAX_STATEMENTS}",
+                _span(tree.children[MAX_STATEMENTS]),
+                anchor="too many statements",
+            )
+        )
+        return out
+    builder = _Builder()
+    for node in tree.children:
+        try:
+            out.statements.append(builder.statement(node))
+        except ParseProblem as problem_:
+            out.findings.append(problem_.finding)
+        except RecursionError:
+            out.findings.append(_syntax("expression too deeply nested", _span(node), anchor="nesting"))
+    return out
+
+
+def _span(node: Tree | Token) -> Span:
+    if isinstance(node, Token):
+        end_line = node.end_line or node.line or 1
+        end_col = node.end_column or ((node.column or 1) + len(node))
+        return Span(node.line or 1, node.column or 1, end_line, end_col)
+    meta = node.meta
+    if getattr(meta, "empty", True):
+        return Span(1, 1, 1, 2)
+    return Span(meta.line, meta.column, meta.end_line, meta.end_column)
+
+
+_EXPECTED_WORDS = {
+    "NAME": "a name",
+    "NUMBER": "a number",
+    "STRING": 'a "quoted" text',
+    "UNIT": "a [unit]",
+    "RULE_ID": "a rule id",
+    "EQUAL": "'='",
+    "COLON": "':'",
+    "COMMA": "','",
+    "LPAR": "'('",
+    "RPAR": "')'",
+    "DOTDOT": "'..'",
+    "IN": "'in'",
+    "AT": "'at'",
+}
+
+
+def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
+    line = getattr(exc, "line", None) or 1
+    column = getattr(exc, "column", None) or 1
+    if isinstance(exc, UnexpectedCharacters):
+        ch = text[exc.pos_in_stream] if 0 <= exc.pos_in_stream < len(text) else ""
+        if ch == '"':
+            return _syntax("unterminated text: a closing '\"' is missing on this line", Span.point(line, column), anchor="unterminated string")
+        if ch == "[":
+            return _syntax("unterminated unit: a closing ']' is missing on this line", Span.point(line, column), anchor="unterminated unit")
+        shown = repr(ch) if ch.isprintable() else f"U+{ord(ch):04X}" if ch else "end of file"
+        return _syntax(f"unexpected character {shown}", Span.point(line, column), anchor=f"unexpected character {shown}")
+    if isinstance(exc, UnexpectedEOF):
+        lines = text.splitlines() or [""]
+        last = len(lines)
+        return _syntax(
+            "file ends in the middle of a statement",
+            Span.point(last, len(lines[-1]) + 1),
+            hint="expected " + _expected(exc.expected),
+            anchor="unexpected end",
+        )
+    if isinstance(exc, UnexpectedToken):
+        tok = exc.token
+        if tok.type == "$END":
+            lines = text.splitlines() or [""]
+            return _syntax(
+                "file ends in the middle of a statement",
+                Span.point(len(lines), len(lines[-1]) + 1),
+                hint="expected " + _expected(exc.expected),
+                anchor="unexpected end",
+            )
+        span = _span(tok)
+        value = str(tok)
+        if tok.type == "NAME" and value in RESERVED:
+            message = f"'{value}' is reserved and cannot be used here"
+        elif tok.type.isupper() and tok.type not in _EXPECTED_WORDS and value in KEYWORDS:
+            message = f"unexpected keyword '{value}' (the previous statement is incomplete)"
+        else:
+            shown = value if len(value) <= 40 else value[:37] + "..."
+            message = f"unexpected '{shown}'"
+        return _syntax(message, span, hint="expected " + _expected(exc.expected), anchor=message)
+    return _syntax("cannot read this statement", Span.point(line, column), anchor="syntax")
+
+
+def _expected(names: set[str] | frozenset[str]) -> str:
+    words = sorted({_EXPECTED_WORDS.get(n, n.lower() if not n.isupper() else _keyword(n)) for n in names})
+    if len(words) > 6:
+        words = words[:6] + ["..."]
+    return ", ".join(words) if words else "something else"
+
+
+def _keyword(terminal: str) -> str:
+    table = {
+        "PLUS": "'+'", "MINUS": "'-'", "STAR": "'*'", "SLASH": "'/'", "CIRCUMFLEX": "'^'",
+    }
+    if terminal in table:
+        return table[terminal]
+    return f"'{terminal.lower()}'" if terminal.lower() in KEYWORDS else terminal.lower()
+
+
+class _Builder:
+    """Turns statement subtrees into :class:`Statement` records."""
+
+    def statement(self, node: Tree) -> Statement:
+        kind = node.data.removesuffix("_stmt") if isinstance(node.data, str) else str(node.data)
+        if kind == "header":
+            kind = "plant"
+        method = getattr(self, "_" + kind)
+        return method(node, _span(node))
+
+    # each statement kind ------------------------------------------------------
+    def _plant(self, node: Tree, span: Span) -> Statement:
+        name, doc = node.children
+        return Statement("plant", span, *self._name(name), doc=_doc(doc))
+
+    def _const(self, node: Tree, span: Span) -> Statement:
+        name, expr, unit, doc = node.children
+        return Statement("const", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit), doc=_doc(doc))
+
+    def _param(self, node: Tree, span: Span) -> Statement:
+        name, expr, rng, unit, doc = node.children
+        low, high, rspan = self._range(rng)
+        return Statement(
+            "param", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit), doc=_doc(doc),
+            low=low, high=high, range_span=rspan,
+        )
+
+    def _state(self, node: Tree, span: Span) -> Statement:
+        name, unit, rng, doc = node.children
+        low, high, rspan = self._range(rng)
+        return Statement(node.data.removesuffix("_stmt"), span, *self._name(name), unit=_unit(unit), doc=_doc(doc),
+                         low=low, high=high, range_span=rspan)
+
+    _input = _state
+
+    def _let(self, node: Tree, span: Span) -> Statement:
+        name, expr = node.children
+        return Statement("let", span, *self._name(name), expr=self.expression(expr))
+
+    def _rate(self, node: Tree, span: Span) -> Statement:
+        name, expr = node.children
+        return Statement("rate", span, *self._name(name), expr=self.expression(expr))
+
+    def _output(self, node: Tree, span: Span) -> Statement:
+        name, unit, expr, doc = node.children
+        return Statement("output", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit), doc=_doc(doc))
+
+    def _point(self, node: Tree, span: Span) -> Statement:
+        name, *assignments = node.children
+        pairs = []
+        for a in assignments:
+            target, expr = a.children
+            pairs.append((NameRef(str(target), _span(target)), self.expression(expr)))
+        return Statement("point", span, *self._name(name), assignments=tuple(pairs))
+
+    def _expect(self, node: Tree, span: Span) -> Statement:
+        claim_node, at = node.children
+        if claim_node.data == "claim_of_output":
+            kind_tok, out_tok, value = claim_node.children
+            claim = Claim(str(kind_tok), _span(claim_node), NameRef(str(out_tok), _span(out_tok)), self.expression(value))
+        else:
+            (kind_tok,) = claim_node.children
+            claim = Claim(str(kind_tok), _span(claim_node))
+        return Statement("expect", span, claim=claim, at_point=_at(at))
+
+    def _waive(self, node: Tree, span: Span) -> Statement:
+        rule, at, doc = node.children
+        return Statement("waive", span, rule_id=NameRef(str(rule), _span(rule)), at_point=_at(at), doc=_doc(doc))
+
+    # pieces -------------------------------------------------------------------
+    def _name(self, tok: Token) -> tuple[str, Span]:
+        name = str(tok)
+        span = _span(tok)
+        if len(name) > MAX_NAME:
+            raise ParseProblem(_syntax(f"name of {len(name)} characters; names are limited to {MAX_NAME}", span, anchor="long name"))
+        if name in RESERVED:
+            raise ParseProblem(_syntax(f"'{name}' is reserved and cannot name a quantity", span, anchor=f"reserved {name}"))
+        return name, span
+
+    def _range(self, rng: Tree | None) -> tuple[Expression | None, Expression | None, Span | None]:
+        if rng is None:
+            return None, None, None
+        lo, _dots, hi = rng.children
+        return self.expression(lo), self.expression(hi), _span(rng)
+
+    def expression(self, root: Tree | Token) -> Expression:
+        """Build the sympy value bottom-up without recursion (deep input is safe)."""
+        names: list[NameRef] = []
+        calls: list[CallRef] = []
+        values: dict[int, sp.Expr] = {}
+        stack: list[tuple[Tree | Token, bool]] = [(root, False)]
+        while stack:
+            node, ready = stack.pop()
+            if isinstance(node, Token):
+                values[id(node)] = self._leaf(node, names)
+                continue
+            if not ready:
+                stack.append((node, True))
+                for child in node.children:
+                    if child is not None and not (isinstance(child, Token) and node.data in ("call", "name")):
+                        stack.append((child, False))
+                continue
+            values[id(node)] = self._combine(node, values, names, calls)
+        return Expression(_done(values[id(root)]), _span(root), tuple(names), tuple(calls))
+
+    def _leaf(self, tok: Token, names: list[NameRef]) -> sp.Expr:
+        if tok.type == "NUMBER":
+            return _number(tok)
+        raise ParseProblem(_syntax(f"unexpected '{tok}'", _span(tok)))
+
+    def _combine(self, node: Tree, values: dict[int, sp.Expr], names: list[NameRef], calls: list[CallRef]) -> sp.Expr:
+        kind = node.data
+        kids = node.children
+        if kind == "number":
+            return values[id(kids[0])]
+        if kind == "name":
+            tok = kids[0]
+            name = str(tok)
+            if len(name) > MAX_NAME:
+                raise ParseProblem(_syntax(f"name of {len(name)} characters; names are limited to {MAX_NAME}", _span(tok), anchor="long name"))
+            if name == "pi":
+                return sp.pi
+            names.append(NameRef(name, _span(tok)))
+            return symbol(name)
+        if kind == "call":
+            fname = str(kids[0])
+            args = [_done(values[id(a)]) for a in kids[1:] if a is not None]
+            span = _span(node)
+            calls.append(CallRef(fname, span))
+            entry = FUNCTIONS.get(fname)
+            if entry is None:
+                raise ParseProblem(
+                    Finding("unknown-name", Severity.ERROR, f"unknown function '{fname}'", _span(kids[0]),
+                            hint="functions: " + ", ".join(sorted(FUNCTIONS)), anchor=f"function {fname}")
+                )
+            arity, fn = entry
+            if len(args) != arity:
+                raise ParseProblem(_syntax(f"{fname} takes {arity} argument{'s' if arity > 1 else ''}, got {len(args)}", span))
+            return fn(*args)
+        a = values[id(kids[0])]
+        if kind == "neg":
+            return -_done(a)
+        if kind == "pos":
+            return _done(a)
+        b = _done(values[id(kids[1])])
+        # chains of + - (and of * /) are collected and built in one step: building
+        # them pairwise costs time quadratic in their length
+        if kind in ("add", "sub"):
+            terms = a if isinstance(a, _Terms) else _Terms([_done(a)])
+            terms.append(b if kind == "add" else -b)
+            return terms
+        if kind in ("mul", "div"):
+            factors = a if isinstance(a, _Factors) else _Factors([_done(a)])
+            factors.append(b if kind == "mul" else sp.Pow(b, -1))
+            return factors
+        if kind == "pow":
+            return _power(_done(a), b, _span(node))
+        raise ParseProblem(_syntax(f"cannot read {kind}", _span(node)))
+
+
+class _Terms(list):  # type: ignore[type-arg]
+    """Terms of a sum not yet built (each tree node has one parent, so it is extended in place)."""
+
+
+class _Factors(list):  # type: ignore[type-arg]
+    """Factors of a product not yet built."""
+
+
+def _done(value: sp.Expr | _Terms | _Factors) -> sp.Expr:
+    """The sympy value of a node, building a collected sum or product."""
+    if isinstance(value, _Terms):
+        return sp.Add(*value)
+    if isinstance(value, _Factors):
+        return sp.Mul(*value)
+    return value
+
+
+def _number(tok: Token) -> sp.Rational:
+    """A decimal literal as an exact rational (never a binary float)."""
+    text = str(tok)
+    mantissa, _, exponent = text.lower().partition("e")
+    exp10 = int(exponent) if exponent else 0
+    digits = mantissa.replace(".", "")
+    if abs(exp10) > MAX_LITERAL_EXP10 or len(digits) > MAX_LITERAL_DIGITS:
+        raise ParseProblem(_syntax(f"number {text[:20]}{'...' if len(text) > 20 else ''} is out of range", _span(tok), anchor="number range"))
+    value = Fraction(mantissa) * (Fraction(10) ** exp10)
+    return sp.Rational(value.numerator, value.denominator)
+
+
+def _power(base: sp.Expr, exponent: sp.Expr, span: Span) -> sp.Expr:
+    if exponent.is_Number:
+        if exponent.is_Rational:
+            big = max(abs(int(exponent.p)), abs(int(exponent.q)))
+            if big > MAX_EXPONENT:
+                raise ParseProblem(_syntax(f"exponent {exponent} is beyond the supported range (|p|, |q| <= {MAX_EXPONENT})", span, anchor="exponent range"))
+        if base.is_Number and base.is_Rational:
+            bits = max(abs(int(base.p)), abs(int(base.q)), 1).bit_length()
+            if bits * abs(int(exponent.p)) > 100_000:
+                raise ParseProblem(_syntax("this power of a number is too large to compute exactly", span, anchor="power size"))
+    elif exponent.is_number:
+        pass
+    return base ** exponent
+
+
+def _doc(tree: Tree | None) -> str | None:
+    if tree is None:
+        return None
+    return str(tree.children[0])[1:-1]
+
+
+def _unit(tree: Tree | None) -> str | None:
+    if tree is None:
+        return None
+    return str(tree.children[0])[1:-1].strip()
+
+
+def _at(tree: Tree | None) -> NameRef | None:
+    if tree is None:
+        return None
+    tok = tree.children[0]
+    return NameRef(str(tok), _span(tok))

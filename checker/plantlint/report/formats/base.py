@@ -1,0 +1,84 @@
+"""What every output format shares: the interface and a few pure helpers.
+
+Formatters are plug-ins behind one method so the CLI can pick one by name and
+tests can render a hand-built :class:`~plantlint.core.findings.Report` into a string.
+"""
+
+from __future__ import annotations
+
+import unicodedata
+from collections.abc import Iterator
+from typing import Protocol, TextIO
+
+from plantlint.core.findings import FileReport, Finding, Report
+
+BASELINE_STATES: tuple[str, ...] = ("introduced", "known", "fixed")
+
+
+class Formatter(Protocol):
+    """One output format. ``render`` writes the whole report to ``stream``.
+
+    Output must be deterministic: files in report order, findings in
+    ``FileReport.sorted_findings()`` order.
+    """
+
+    name: str
+    description: str
+
+    def render(self, report: Report, stream: TextIO, *, color: bool = False) -> None: ...
+
+
+def one_line(text: str) -> str:
+    """``text`` made safe for a single output line: whitespace controls become
+    spaces and other control characters ``?`` (file text is untrusted and must not
+    smuggle terminal escape sequences or break line-oriented tools)."""
+    out = []
+    for ch in text:
+        if ch in "\t\n\r\v\f":
+            out.append(" ")
+        elif unicodedata.category(ch) in ("Cc", "Cs") or ch in "\u2028\u2029\x85":
+            out.append("?")
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def findings_in_order(report: Report) -> Iterator[tuple[FileReport, list[Finding]]]:
+    """Each file with its findings sorted, in report order."""
+    for file_report in report.files:
+        yield file_report, file_report.sorted_findings()
+
+
+def baseline_of(finding: Finding, report: Report) -> str | None:
+    """The finding's baseline state under ``--since`` (``None`` otherwise).
+
+    Under ``--since`` every finding must have been classified; an unclassified one
+    is a bug in the caller, reported here rather than guessed.
+    """
+    if report.since is None:
+        return None
+    if finding.baseline not in BASELINE_STATES:
+        raise ValueError(
+            f"finding {finding.rule!r} has baseline {finding.baseline!r} under --since "
+            f"(expected one of {', '.join(BASELINE_STATES)})"
+        )
+    return finding.baseline
+
+
+def baseline_counts(report: Report) -> dict[str, int]:
+    """How many findings are introduced, known and fixed (waived ones included)."""
+    counts = {state: 0 for state in BASELINE_STATES}
+    for file_report in report.files:
+        for finding in file_report.findings:
+            state = baseline_of(finding, report)
+            if state is not None:
+                counts[state] += 1
+    return counts
+
+
+def change_text(change: dict[str, object]) -> str:
+    """One structural change under --since, e.g. 'point rest: zero dynamics: minimum_phase -> critical'."""
+    def shown(value: object) -> str:
+        return "none" if value is None else str(value).lower() if isinstance(value, bool) else str(value)
+
+    return f"{one_line(str(change.get('what', '')))}: {shown(change.get('before'))} -> {shown(change.get('after'))}"

@@ -1,0 +1,46 @@
+"""One line per finding in the GNU ``file:line:col: severity: message`` form.
+
+Meant for editors, grep and CI logs, so nothing else is written: no heading, no
+summary (the exit code carries the verdict). Findings fixed since a baseline are
+left out because they no longer exist in the file.
+"""
+
+from __future__ import annotations
+
+from typing import TextIO
+
+from plantlint.core.findings import Finding, Report
+from plantlint.report.formats.base import baseline_of, change_text, findings_in_order, one_line
+
+
+def finding_line(path: str, finding: Finding, baseline: str | None = None) -> str:
+    """``path:line:col: severity: message [rule-id]`` plus optional suffixes:
+    `` (point NAME)``, `` (waived: reason)`` and, under ``--since``,
+    `` (introduced)`` or `` (known)``."""
+    where = one_line(path)
+    if finding.span is not None:
+        where += f":{finding.span.line}:{finding.span.column}"
+    line = f"{where}: {finding.severity.value}: {one_line(finding.message).strip()} [{finding.rule}]"
+    if finding.point:
+        line += f" (point {one_line(finding.point)})"
+    if finding.waived:
+        line += f" (waived: {one_line(finding.reason or 'no reason given')})"
+    if baseline is not None:
+        line += f" ({baseline})"
+    return line
+
+
+class ConciseFormatter:
+    name = "concise"
+    description = "one line per finding: path:line:col: severity: message [rule-id]"
+
+    def render(self, report: Report, stream: TextIO, *, color: bool = False) -> None:
+        for file_report, findings in findings_in_order(report):
+            for finding in findings:
+                baseline = baseline_of(finding, report)
+                if baseline == "fixed":
+                    continue
+                stream.write(finding_line(file_report.path, finding, baseline) + "\n")
+            for change in file_report.structure_changes:
+                stream.write(f"{one_line(file_report.path)}: note: structure changed since {report.since}: "
+                             f"{change_text(change)}\n")

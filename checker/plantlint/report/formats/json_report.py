@@ -1,0 +1,105 @@
+"""plantlint's own JSON report (``"format": "plantlint-report"``).
+
+The shape is documented in ``docs/report-format.md`` and fixed by
+``checker/plantlint/report/report.schema.json``; any change a consumer could trip over bumps
+``REPORT_VERSION``.
+"""
+
+from __future__ import annotations
+
+import importlib.resources
+import json
+import math
+from typing import Any, TextIO
+
+from plantlint.core.findings import FileReport, Finding, Report
+from plantlint.report.formats.base import baseline_counts, baseline_of, findings_in_order
+
+REPORT_FORMAT = "plantlint-report"
+REPORT_VERSION = 1
+
+
+def report_schema() -> dict[str, Any]:
+    """The JSON Schema (draft 2020-12) of this report, shipped in the package."""
+    text = (importlib.resources.files("plantlint.report") / "report.schema.json").read_text(encoding="utf-8")
+    schema: dict[str, Any] = json.loads(text)
+    return schema
+
+
+def plain(value: Any) -> Any:
+    """``value`` as plain JSON data, deterministically.
+
+    Analysis results may hold exact numbers, tuples or sets; they are written as
+    strings, lists and sorted lists, and non-finite floats as strings, so the
+    output is always strict JSON.
+    """
+    if value is None or isinstance(value, (bool, int, str)):
+        return value
+    if isinstance(value, float):
+        return value if math.isfinite(value) else str(value)
+    if isinstance(value, dict):
+        return {str(key): plain(item) for key, item in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [plain(item) for item in value]
+    if isinstance(value, (set, frozenset)):
+        return sorted((plain(item) for item in value), key=lambda item: json.dumps(item, sort_keys=True))
+    return str(value)
+
+
+def finding_record(finding: Finding, plant: str | None, baseline: str | None) -> dict[str, Any]:
+    span = finding.span
+    record: dict[str, Any] = {
+        "rule": finding.rule,
+        "severity": finding.severity.value,
+        "message": finding.message,
+        "line": span.line if span else None,
+        "column": span.column if span else None,
+        "end_line": span.end_line if span else None,
+        "end_column": span.end_column if span else None,
+        "point": finding.point,
+        "waived": finding.waived,
+        "reason": finding.reason if finding.waived else None,
+        "hint": finding.hint,
+        "fingerprint": finding.fingerprint(plant),
+    }
+    if baseline is not None:
+        record["baseline"] = baseline
+    return record
+
+
+def file_record(file_report: FileReport, findings: list[Finding], report: Report) -> dict[str, Any]:
+    record: dict[str, Any] = {
+        "path": file_report.path,
+        "plant": file_report.plant,
+        "findings": [finding_record(f, file_report.plant, baseline_of(f, report)) for f in findings],
+        "analysis": plain(file_report.analysis) if file_report.analysis is not None else None,
+    }
+    if report.since is not None:
+        record["structure_changes"] = plain(list(file_report.structure_changes))
+    return record
+
+
+def build_report(report: Report) -> dict[str, Any]:
+    """The whole report as JSON-ready data (what ``render`` writes)."""
+    out: dict[str, Any] = {
+        "format": REPORT_FORMAT,
+        "version": REPORT_VERSION,
+        "tool": {"name": "plantlint", "version": report.tool_version},
+    }
+    if report.since is not None:
+        out["since"] = report.since
+    out["files"] = [file_record(fr, findings, report) for fr, findings in findings_in_order(report)]
+    summary: dict[str, Any] = dict(report.counts())
+    if report.since is not None:
+        summary.update(baseline_counts(report))
+    out["summary"] = summary
+    return out
+
+
+class JsonFormatter:
+    name = "json"
+    description = "plantlint's versioned JSON report (docs/report-format.md)"
+
+    def render(self, report: Report, stream: TextIO, *, color: bool = False) -> None:
+        json.dump(build_report(report), stream, indent=2, ensure_ascii=True, allow_nan=False)
+        stream.write("\n")

@@ -1,0 +1,141 @@
+"""SARIF 2.1.0 output for code-scanning services and SARIF viewers.
+
+Rule metadata comes from the catalogue; ``partialFingerprints`` carries the
+finding's own fingerprint (rule, plant, anchor, point: no line numbers), so a
+result keeps its identity when unrelated edits move it.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+from typing import Any, TextIO
+from urllib.parse import quote
+
+from plantlint.core.catalogue import Catalogue, Rule, load_catalogue
+from plantlint.core.findings import Finding, Report, Span
+from plantlint.report.formats.base import baseline_of, findings_in_order
+
+SARIF_VERSION = "2.1.0"
+SARIF_SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
+FINGERPRINT_KEY = "plantlint/v1"
+SOURCE_ROOT = "%SRCROOT%"
+
+#: plantlint's baseline states mapped to SARIF's ``result.baselineState``.
+BASELINE_STATE = {"introduced": "new", "known": "unchanged", "fixed": "absent"}
+
+_DRIVE = re.compile(r"^[A-Za-z]:/")
+
+
+def artifact_location(path: str) -> dict[str, str]:
+    """A SARIF artifactLocation: relative paths against ``%SRCROOT%`` with forward
+    slashes, absolute paths as ``file:`` URIs."""
+    forward = path.replace("\\", "/")
+    while forward.startswith("./"):
+        forward = forward[2:]
+    if forward.startswith("/"):
+        return {"uri": "file://" + quote(forward, safe="/")}
+    if _DRIVE.match(forward):
+        return {"uri": "file:///" + quote(forward, safe="/:")}
+    return {"uri": quote(forward, safe="/"), "uriBaseId": SOURCE_ROOT}
+
+
+def _pascal(rule_id: str) -> str:
+    return "".join(part.capitalize() for part in rule_id.split("-"))
+
+
+def rule_descriptor(rule: Rule) -> dict[str, Any]:
+    """A reportingDescriptor built from one catalogue entry."""
+    refs = "\n".join(f"- {ref}" for ref in rule.references)
+    return {
+        "id": rule.id,
+        "name": _pascal(rule.id),
+        "shortDescription": {"text": rule.title},
+        "fullDescription": {"text": rule.rationale},
+        "help": {
+            "text": f"{rule.rationale}\n\nFixed example:\n{rule.good}\nReferences:\n{refs}",
+            "markdown": (
+                f"{rule.rationale}\n\nTriggers it:\n\n```\n{rule.bad}```\n\n"
+                f"Fixed:\n\n```\n{rule.good}```\n\nReferences:\n\n{refs}"
+            ),
+        },
+        "defaultConfiguration": {"level": rule.severity.value},
+        "properties": {"tags": [rule.family]},
+    }
+
+
+def _region(span: Span) -> dict[str, int] | None:
+    if span.line < 1 or span.column < 1:
+        return None
+    end_line = max(span.end_line, span.line)
+    end_column = span.end_column if end_line > span.line else max(span.end_column, span.column)
+    return {"startLine": span.line, "startColumn": span.column, "endLine": end_line, "endColumn": max(end_column, 1)}
+
+
+def sarif_result(
+    finding: Finding, path: str, plant: str | None, rule_index: int, baseline: str | None
+) -> dict[str, Any]:
+    """One SARIF result; waived findings carry an in-source suppression."""
+    physical: dict[str, Any] = {"artifactLocation": artifact_location(path)}
+    region = _region(finding.span) if finding.span is not None else None
+    if region is not None:
+        physical["region"] = region
+    result: dict[str, Any] = {
+        "ruleId": finding.rule,
+        "ruleIndex": rule_index,
+        "level": finding.severity.value,
+        "message": {"text": finding.message},
+        "locations": [{"physicalLocation": physical}],
+        "partialFingerprints": {FINGERPRINT_KEY: finding.fingerprint(plant)},
+    }
+    if finding.waived:
+        suppression: dict[str, Any] = {"kind": "inSource", "status": "accepted"}
+        if finding.reason:
+            suppression["justification"] = finding.reason
+        result["suppressions"] = [suppression]
+    if baseline is not None:
+        result["baselineState"] = BASELINE_STATE[baseline]
+    properties: dict[str, Any] = {}
+    if finding.point is not None:
+        properties["point"] = finding.point
+    if finding.hint:
+        properties["hint"] = finding.hint
+    if plant is not None:
+        properties["plant"] = plant
+    if properties:
+        result["properties"] = properties
+    return result
+
+
+def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str, Any]:
+    """The SARIF log as JSON-ready data (what ``render`` writes)."""
+    catalogue = catalogue if catalogue is not None else load_catalogue()
+    rules = [rule_descriptor(rule) for rule in catalogue]
+    index = {rule.id: i for i, rule in enumerate(catalogue)}
+    # A rule id missing from the catalogue still gets a descriptor so ruleIndex stays valid.
+    strays = sorted({f.rule for fr in report.files for f in fr.findings if f.rule not in index})
+    for rule_id in strays:
+        index[rule_id] = len(rules)
+        rules.append({"id": rule_id})
+    results = [
+        sarif_result(f, fr.path, fr.plant, index[f.rule], baseline_of(f, report))
+        for fr, findings in findings_in_order(report)
+        for f in findings
+    ]
+    driver = {"name": "plantlint", "version": report.tool_version, "rules": rules}
+    run: dict[str, Any] = {"tool": {"driver": driver}, "results": results, "columnKind": "unicodeCodePoints"}
+    if report.since is not None:
+        run["properties"] = {"since": report.since}
+        changes = {f.path: [dict(c) for c in f.structure_changes] for f in report.files if f.structure_changes}
+        if changes:
+            run["properties"]["structureChanges"] = changes
+    return {"$schema": SARIF_SCHEMA_URI, "version": SARIF_VERSION, "runs": [run]}
+
+
+class SarifFormatter:
+    name = "sarif"
+    description = "SARIF 2.1.0 log for code-scanning services"
+
+    def render(self, report: Report, stream: TextIO, *, color: bool = False) -> None:
+        json.dump(build_sarif(report), stream, indent=2, ensure_ascii=True)
+        stream.write("\n")

@@ -1,0 +1,250 @@
+"""The human-readable report: one block per finding, source excerpt underlined.
+
+Layout (plantlint's own): a heading per file, then for each finding a line with
+severity and rule id, the message indented beneath it, the source line quoted as
+``line N: ...`` with the span underlined by dashes, and the hint. Waived and
+fixed findings are shown dimmed. A summary and a one-line verdict close the run.
+All file text goes through :func:`one_line` and rich ``Text`` objects, so a model
+can never inject markup or terminal escape sequences.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass
+from typing import TextIO
+
+from rich.cells import cell_len
+from rich.console import Console
+from rich.text import Text
+
+from plantlint.core.catalogue import SEVERITY_STYLE
+from plantlint.core.findings import FileReport, Finding, Report, Span
+from plantlint.report.formats.base import baseline_counts, baseline_of, change_text, findings_in_order, one_line
+
+DEFAULT_WIDTH = 100
+TAB_WIDTH = 4
+INDENT = 11  # where messages, excerpts and hints start
+MAX_EXCERPT = 120  # cells of source shown; longer lines are cut around the span
+UNDERLINE = "-"
+_DIM = "dim"
+
+
+def make_console(stream: TextIO, color: bool) -> Console:
+    """A console that writes plain text (no escape codes at all) unless ``color``."""
+    try:
+        width = int(os.environ.get("COLUMNS", ""))
+    except ValueError:
+        width = DEFAULT_WIDTH
+    if width < 40:
+        width = DEFAULT_WIDTH
+    return Console(
+        file=stream,
+        force_terminal=color,
+        no_color=not color,
+        color_system="auto" if color else None,
+        width=width,
+        highlight=False,
+        markup=False,
+        emoji=False,
+        soft_wrap=False,
+        legacy_windows=False,
+    )
+
+
+@dataclass(frozen=True)
+class Excerpt:
+    """One source line as displayed, with the underline's start and width in cells."""
+
+    line_number: int
+    shown: str
+    start: int
+    width: int
+    continues_to: int | None  # last line of a multi-line span
+
+
+def _cells(line: str) -> list[str]:
+    """Display pieces for each character: tabs expanded, controls made visible."""
+    pieces: list[str] = []
+    used = 0
+    for ch in line:
+        piece = " " * (TAB_WIDTH - used % TAB_WIDTH) if ch == "\t" else one_line(ch)
+        pieces.append(piece)
+        used += cell_len(piece)
+    return pieces
+
+
+def excerpt(source: str | None, span: Span | None) -> Excerpt | None:
+    """The line a span starts on, with the underline placed under the exact columns.
+
+    Columns count characters (a tab is one column) and ``end_column`` is exclusive.
+    A span running over several lines is underlined to the end of its first line.
+    """
+    if source is None or span is None or span.line < 1 or span.column < 1:
+        return None
+    lines = source.split("\n")
+    if span.line > len(lines):
+        return None
+    pieces = _cells(lines[span.line - 1].rstrip("\r"))
+    first = min(span.column - 1, len(pieces))
+    if span.end_line > span.line:
+        last = len(pieces)
+    else:
+        last = min(max(span.end_column - 1, first + 1), len(pieces))
+    start = cell_len("".join(pieces[:first]))
+    width = max(cell_len("".join(pieces[first:last])), 1)
+    shown = "".join(pieces).rstrip()
+    continues_to = span.end_line if span.end_line > span.line else None
+    if cell_len(shown) > MAX_EXCERPT:
+        shown, start = _cut(pieces, first, start)
+        width = min(width, MAX_EXCERPT - start)
+    return Excerpt(span.line, shown, start, max(width, 1), continues_to)
+
+
+def _cut(pieces: list[str], first: int, start: int) -> tuple[str, int]:
+    """A window of the line around the span start, marked with ``...`` where cut."""
+    skip = 0
+    dropped = 0
+    while skip < first and start - dropped > MAX_EXCERPT // 3:
+        dropped += cell_len(pieces[skip])
+        skip += 1
+    prefix = "..." if skip else ""
+    kept: list[str] = []
+    used = len(prefix)
+    for piece in pieces[skip:]:
+        if used + cell_len(piece) > MAX_EXCERPT - 3:
+            kept.append("...")
+            break
+        kept.append(piece)
+        used += cell_len(piece)
+    return prefix + "".join(kept), start - dropped + len(prefix)
+
+
+def _indented(console: Console, text: Text) -> None:
+    """Print ``text`` wrapped to the console width, every line indented (no
+    trailing padding, so plain output stays clean)."""
+    for line in text.wrap(console, max(console.width - INDENT, 20)):
+        line.rstrip()
+        console.print(Text(" " * INDENT) + line, soft_wrap=True)
+
+
+def _counts_phrase(counts: dict[str, int]) -> str:
+    parts = [
+        f"{counts[key]} {label if counts[key] == 1 else label + 's'}"
+        for key, label in (("errors", "error"), ("warnings", "warning"), ("notes", "note"))
+    ]
+    return ", ".join(parts) + f", {counts['waived']} waived"
+
+
+def _file_counts(file_report: FileReport, report: Report) -> dict[str, int]:
+    single = Report(files=[file_report], tool_version=report.tool_version, fail_on=report.fail_on, since=report.since)
+    return single.counts()
+
+
+class TextFormatter:
+    name = "text"
+    description = "readable report with source excerpts and a summary (default)"
+
+    def render(self, report: Report, stream: TextIO, *, color: bool = False) -> None:
+        console = make_console(stream, color)
+        for file_report, findings in findings_in_order(report):
+            self._file(console, file_report, findings, report)
+        self._summary(console, report)
+
+    def _file(self, console: Console, file_report: FileReport, findings: list[Finding], report: Report) -> None:
+        heading = Text(one_line(file_report.path), style="bold underline")
+        if file_report.plant:
+            heading.append(f"  plant {one_line(file_report.plant)}", style="bold")
+        current = [f for f in findings if baseline_of(f, report) != "fixed"]
+        fixed = [f for f in findings if baseline_of(f, report) == "fixed"]
+        changes = list(file_report.structure_changes)
+        if not current and not fixed and not changes:
+            heading.append("  no findings", style="green")
+            console.print(heading, soft_wrap=True)
+            console.print()
+            return
+        console.print(heading, soft_wrap=True)
+        for finding in current:
+            self._finding(console, file_report, finding, report)
+            console.print()
+        for finding in fixed:
+            line = Text(f"  {'fixed':<{INDENT - 2}}", style="green")
+            line.append(f"{finding.rule}: {one_line(finding.message)}", style=_DIM)
+            console.print(line, soft_wrap=True)
+        for change in changes:
+            line = Text(f"  {'changed':<{INDENT - 2}}", style="yellow")
+            line.append(f"{change_text(change)}  (since {report.since})")
+            console.print(line, soft_wrap=True)
+        console.print(Text(f"  {_counts_phrase(_file_counts(file_report, report))}", style=_DIM), soft_wrap=True)
+        if file_report.analysis is None and any(f.severity.value == "error" and not f.waived for f in current):
+            console.print(Text("  the structure was not analysed: fix the errors above first", style=_DIM),
+                          soft_wrap=True)
+        console.print()
+
+    def _finding(self, console: Console, file_report: FileReport, finding: Finding, report: Report) -> None:
+        dim = _DIM if finding.waived else ""
+        head = Text("  ")
+        head.append(f"{finding.severity.value:<{INDENT - 2}}", style=SEVERITY_STYLE[finding.severity] + (" dim" if dim else ""))
+        head.append(finding.rule, style="bold " + dim if dim else "bold")
+        if finding.point:
+            head.append(f"  at point {one_line(finding.point)}", style=dim)
+        baseline = baseline_of(finding, report)
+        if baseline is not None:
+            head.append(f"  ({'new since ' + one_line(report.since or '') if baseline == 'introduced' else 'known'})", style="italic " + dim if dim else "italic")
+        if finding.waived:
+            head.append("  waived", style="magenta")
+        console.print(head, soft_wrap=True)
+        _indented(console, Text(one_line(finding.message), style=dim))
+        shown = excerpt(file_report.source, finding.span)
+        if shown is not None:
+            self._excerpt(console, shown, dim)
+        elif finding.span is not None:
+            console.print(Text(" " * INDENT + f"line {finding.span.line}, column {finding.span.column}", style=_DIM), soft_wrap=True)
+        if finding.hint:
+            _indented(console, Text("hint: " + one_line(finding.hint), style="cyan " + dim if dim else "cyan"))
+        if finding.waived:
+            reason = one_line(finding.reason) if finding.reason else "no reason given"
+            _indented(console, Text(f"reason: {reason}", style="magenta dim"))
+
+    def _excerpt(self, console: Console, shown: Excerpt, dim: str) -> None:
+        label = f"line {shown.line_number}: "
+        pad = " " * INDENT
+        console.print(Text(pad + label, style=_DIM) + Text(shown.shown, style=dim), soft_wrap=True)
+        marks = Text(pad + " " * (len(label) + shown.start))
+        marks.append(UNDERLINE * shown.width, style="bold red " + dim if dim else "bold red")
+        if shown.continues_to is not None:
+            marks.append(f" ... continues to line {shown.continues_to}", style=_DIM)
+        console.print(marks, soft_wrap=True)
+
+    def _summary(self, console: Console, report: Report) -> None:
+        counts = report.counts()
+        files = f"{counts['files']} file" + ("" if counts["files"] == 1 else "s")
+        console.print(Text(f"checked {files}: {_counts_phrase(counts)}", style="bold"), soft_wrap=True)
+        if report.since is not None:
+            moved = baseline_counts(report)
+            console.print(
+                Text(
+                    f"since {one_line(report.since)}: {moved['introduced']} introduced, "
+                    f"{moved['known']} known, {moved['fixed']} fixed"
+                ),
+                soft_wrap=True,
+            )
+        console.print(verdict(report), soft_wrap=True)
+
+
+def verdict(report: Report) -> Text:
+    """The closing line: does the run fail at its fail level, and why."""
+    failing = len(report.failing())
+    level = report.fail_on.value
+    scope = f" introduced since {one_line(report.since)}" if report.since is not None else ""
+    if failing:
+        noun = "finding" if failing == 1 else "findings"
+        text = Text("FAILED", style="bold red")
+        text.append(f": {failing} unwaived {noun} at or above {level}{scope}")
+    else:
+        text = Text("PASSED", style="bold green")
+        text.append(f": no unwaived finding at or above {level}{scope}")
+    return text
+
+
+__all__ = ["Excerpt", "TextFormatter", "excerpt", "make_console", "verdict"]

@@ -1,0 +1,1 @@
+"""run layer of plantlint."""

@@ -1,0 +1,194 @@
+"""Configuration: ``plantlint.toml`` or ``[tool.plantlint]`` in ``pyproject.toml``.
+
+Found by walking up from the working directory; a typed, frozen :class:`Config`
+comes out, and every unknown key or bad value is a :class:`ConfigError` (the CLI
+exits 2 on it). Command-line options override the file.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import sys
+from dataclasses import dataclass, field, replace
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any, Mapping
+
+from plantlint.core.findings import Severity
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover - exercised on Python 3.10 only
+    import tomli as tomllib
+
+
+class ConfigError(Exception):
+    """A configuration problem the user must fix (exit code 2)."""
+
+
+@dataclass(frozen=True)
+class Config:
+    include: tuple[str, ...] = ("**/*.plant",)
+    exclude: tuple[str, ...] = ()
+    fail_on: Severity = Severity.ERROR
+    only: frozenset[str] = frozenset()
+    skip: frozenset[str] = frozenset()
+    severity: Mapping[str, Severity] = field(default_factory=lambda: MappingProxyType({}))
+    jobs: int = 0  # 0: one per CPU
+    timeout: float = 120.0  # seconds per model
+    envelope_seconds: float = 5.0
+    envelope_boxes: int = 20000
+    cache_dir: str = ".plantlint-cache"
+    cache: bool = True
+    root: Path = field(default_factory=Path.cwd)  # folder of the config file (or cwd)
+    source: Path | None = None  # the file the settings came from
+
+    def analysis_key(self) -> str:
+        """The settings that change analysis results (part of the cache key)."""
+        return f"env={self.envelope_seconds}/{self.envelope_boxes}"
+
+
+_KEYS = {
+    "include", "exclude", "fail-on", "only", "skip", "severity", "jobs", "timeout",
+    "envelope-seconds", "envelope-boxes", "cache-dir", "cache",
+}
+
+
+def find_config(start: Path) -> tuple[Path, dict[str, Any]] | None:
+    """The nearest plantlint.toml, or pyproject.toml with a [tool.plantlint] table."""
+    here = start.resolve()
+    for folder in (here, *here.parents):
+        own = folder / "plantlint.toml"
+        if own.is_file():
+            return own, _read(own)
+        project = folder / "pyproject.toml"
+        if project.is_file():
+            data = _read(project)
+            table = data.get("tool", {}).get("plantlint")
+            if table is not None:
+                if not isinstance(table, dict):
+                    raise ConfigError(f"{project}: [tool.plantlint] must be a table")
+                return project, table
+    return None
+
+
+def _read(path: Path) -> dict[str, Any]:
+    try:
+        with path.open("rb") as fh:
+            return tomllib.load(fh)
+    except tomllib.TOMLDecodeError as exc:
+        raise ConfigError(f"{path}: not valid TOML: {exc}") from None
+    except OSError as exc:
+        raise ConfigError(f"{path}: cannot read: {exc.strerror}") from None
+
+
+def load_config(start: Path | None = None, explicit: Path | None = None, known_rules: frozenset[str] = frozenset()) -> Config:
+    """Settings from ``explicit`` or the nearest config file, else defaults."""
+    if explicit is not None:
+        if not explicit.is_file():
+            raise ConfigError(f"{explicit}: no such configuration file")
+        data = _read(explicit)
+        if explicit.name == "pyproject.toml":
+            data = data.get("tool", {}).get("plantlint", {})
+        found: tuple[Path, dict[str, Any]] | None = (explicit, data)
+    else:
+        found = find_config(start or Path.cwd())
+    if found is None:
+        return Config(root=(start or Path.cwd()).resolve())
+    path, table = found
+    return from_table(table, path, known_rules)
+
+
+def from_table(table: Mapping[str, Any], path: Path, known_rules: frozenset[str] = frozenset()) -> Config:
+    where = str(path)
+    unknown = sorted(set(table) - _KEYS)
+    if unknown:
+        raise ConfigError(f"{where}: unknown setting {', '.join(repr(k) for k in unknown)} "
+                          f"(known: {', '.join(sorted(_KEYS))})")
+    cfg = Config(root=path.parent.resolve(), source=path)
+    changes: dict[str, Any] = {}
+    if "include" in table:
+        changes["include"] = _globs(table["include"], "include", where)
+    if "exclude" in table:
+        changes["exclude"] = _globs(table["exclude"], "exclude", where)
+    if "fail-on" in table:
+        changes["fail_on"] = _severity(table["fail-on"], "fail-on", where)
+    if "only" in table:
+        changes["only"] = _rule_set(table["only"], "only", where, known_rules)
+    if "skip" in table:
+        changes["skip"] = _rule_set(table["skip"], "skip", where, known_rules)
+    if "severity" in table:
+        sev = table["severity"]
+        if not isinstance(sev, dict):
+            raise ConfigError(f"{where}: 'severity' must be a table of rule = \"error|warning|note\"")
+        _rule_set(list(sev), "severity", where, known_rules)
+        changes["severity"] = MappingProxyType({k: _severity(v, f"severity.{k}", where) for k, v in sev.items()})
+    if "jobs" in table:
+        changes["jobs"] = _int(table["jobs"], "jobs", where, low=0)
+    if "timeout" in table:
+        changes["timeout"] = _positive(table["timeout"], "timeout", where)
+    if "envelope-seconds" in table:
+        changes["envelope_seconds"] = _positive(table["envelope-seconds"], "envelope-seconds", where)
+    if "envelope-boxes" in table:
+        changes["envelope_boxes"] = _int(table["envelope-boxes"], "envelope-boxes", where, low=1)
+    if "cache-dir" in table:
+        value = table["cache-dir"]
+        if not isinstance(value, str) or not value.strip():
+            raise ConfigError(f"{where}: 'cache-dir' must be a folder name")
+        changes["cache_dir"] = value
+    if "cache" in table:
+        if not isinstance(table["cache"], bool):
+            raise ConfigError(f"{where}: 'cache' must be true or false")
+        changes["cache"] = table["cache"]
+    return replace(cfg, **changes)
+
+
+def _globs(value: Any, key: str, where: str) -> tuple[str, ...]:
+    if isinstance(value, str):
+        value = [value]
+    if not isinstance(value, list) or not all(isinstance(v, str) and v for v in value):
+        raise ConfigError(f"{where}: '{key}' must be a list of glob patterns")
+    return tuple(value)
+
+
+def _severity(value: Any, key: str, where: str) -> Severity:
+    if not isinstance(value, str):
+        raise ConfigError(f"{where}: '{key}' must be \"error\", \"warning\" or \"note\"")
+    try:
+        return Severity.parse(value)
+    except ValueError:
+        raise ConfigError(f"{where}: '{key}' = {value!r}; use \"error\", \"warning\" or \"note\"") from None
+
+
+def _rule_set(value: Any, key: str, where: str, known: frozenset[str]) -> frozenset[str]:
+    if isinstance(value, str):
+        value = [v.strip() for v in value.split(",") if v.strip()]
+    if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
+        raise ConfigError(f"{where}: '{key}' must be a list of rule ids")
+    unknown = sorted(v for v in value if known and v not in known)
+    if unknown:
+        raise ConfigError(f"{where}: '{key}' names unknown rule {', '.join(repr(u) for u in unknown)} "
+                          "(`plantlint rules` lists them)")
+    return frozenset(value)
+
+
+def _int(value: Any, key: str, where: str, low: int) -> int:
+    if isinstance(value, bool) or not isinstance(value, int) or value < low:
+        raise ConfigError(f"{where}: '{key}' must be a whole number >= {low}")
+    return value
+
+
+def _positive(value: Any, key: str, where: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
+        raise ConfigError(f"{where}: '{key}' must be a positive, finite number of seconds")
+    return float(value)
+
+
+def parse_rule_list(text: str, option: str, known: frozenset[str]) -> frozenset[str]:
+    """A comma-separated --only/--skip value, checked against the catalogue."""
+    return _rule_set(text, option, "command line", known)
+
+
+def effective_jobs(cfg: Config) -> int:
+    return cfg.jobs if cfg.jobs > 0 else max(os.cpu_count() or 1, 1)

@@ -1,0 +1,221 @@
+"""The regression gate: ``plantlint check --since REF``.
+
+Each model is compared with its version at the git revision REF, read with
+``git cat-file`` (no checkout, nothing written to the work tree). Findings are
+matched by their stable fingerprint (rule, plant, what it is about, point), so
+moving lines does not make old findings look new:
+
+- *known*: present at REF and now;
+- *introduced*: present now, not at REF (only these can fail the run);
+- *fixed*: present at REF, gone now.
+
+The structural summary (relative degrees, envelope verdict, verdicts per point)
+is compared too, so a change such as minimum phase -> critical is reported even
+when no rule fires (for example because the new finding is waived).
+"""
+
+from __future__ import annotations
+
+import subprocess
+from collections import Counter
+from dataclasses import replace
+from pathlib import Path
+from typing import Any
+
+from plantlint import __version__
+from plantlint.core.findings import FileReport, Finding, Report, Severity
+from plantlint.run.pipeline import RawResult, finish
+from plantlint.run.runner import (
+    Source,
+    UsageError,
+    _display,
+    discover,
+    raw_results,
+    read_source,
+    selected_in_folder,
+    source_text,
+)
+
+
+def _git(args: list[str], cwd: Path) -> subprocess.CompletedProcess[bytes]:
+    try:
+        return subprocess.run(["git", *args], cwd=cwd, capture_output=True, timeout=60, check=False)
+    except FileNotFoundError:
+        raise UsageError("--since needs git, which is not installed") from None
+    except subprocess.TimeoutExpired:
+        raise UsageError("git did not answer within 60 s") from None
+
+
+def repo_top(cwd: Path) -> Path:
+    out = _git(["rev-parse", "--show-toplevel"], cwd)
+    if out.returncode != 0:
+        raise UsageError("--since needs a git repository (none found here)")
+    return Path(out.stdout.decode().strip())
+
+
+def resolve_ref(ref: str, top: Path) -> str:
+    if ref.startswith("-"):
+        raise UsageError(f"--since: '{ref}' is not a revision")
+    out = _git(["rev-parse", "--verify", "--quiet", f"{ref}^{{commit}}"], top)
+    if out.returncode != 0:
+        raise UsageError(f"--since: unknown git revision '{ref}'")
+    return out.stdout.decode().strip()
+
+
+def renames(commit: str, top: Path) -> dict[str, str]:
+    """New path -> old path, for files git sees as renamed between REF and the work tree.
+
+    ``diff-index`` (plumbing) rather than ``diff``: ``diff`` refreshes and rewrites
+    ``.git/index`` when file times changed; the gate writes nothing.
+    """
+    out = _git(["diff-index", "--name-status", "-M", "-z", commit, "--"], top)
+    if out.returncode != 0:
+        return {}
+    fields = out.stdout.decode("utf-8", errors="replace").split("\0")
+    mapping: dict[str, str] = {}
+    i = 0
+    while i < len(fields) and fields[i]:
+        status = fields[i]
+        if status.startswith(("R", "C")):
+            old, new = fields[i + 1], fields[i + 2]
+            if status.startswith("R"):
+                mapping[new] = old
+            i += 3
+        else:
+            i += 2
+    return mapping
+
+
+def old_version(commit: str, path: str, top: Path) -> bytes | None:
+    """The file's bytes at ``commit``; None when the path held no file there.
+
+    ``cat-file blob`` rather than ``show``: ``show`` also answers for a folder
+    (a tree listing, coloured under ``color.ui = always``) and would be read as a model.
+    """
+    out = _git(["cat-file", "blob", f"{commit}:{path}"], top)
+    return out.stdout if out.returncode == 0 else None
+
+
+def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity], *, jobs: int, use_cache: bool,
+         cache_dir: Path | None, show_progress: bool) -> Report:
+    top = repo_top(Path.cwd())
+    commit = resolve_ref(ref, top)
+    targets = discover(paths, config.root, config.include, config.exclude)
+    moved = renames(commit, top)
+    now_sources = [read_source(t) for t in targets]
+    old_sources: list[Source | None] = []
+    for t in targets:
+        try:
+            rel = t.path.resolve().relative_to(top.resolve()).as_posix()
+        except ValueError:
+            old_sources.append(None)
+            continue
+        data = old_version(commit, moved.get(rel, rel), top)
+        old_sources.append(Source(t.display, data) if data is not None else None)
+    present_old = [s for s in old_sources if s is not None]
+    raws = raw_results(now_sources + present_old, config, jobs=jobs, use_cache=use_cache, cache_dir=cache_dir,
+                       show_progress=show_progress)
+    now_raws, old_iter = raws[: len(now_sources)], iter(raws[len(now_sources):])
+    files = []
+    for src, raw, old_src in zip(now_sources, now_raws, old_sources):
+        report = finish(src.display, raw, source_text(src.data), config, defaults)
+        old_raw = next(old_iter) if old_src is not None else None
+        files.append(compare(report, old_raw, config, defaults))
+    files.extend(_deleted(commit, top, paths, config, defaults, targets, moved, jobs=jobs, use_cache=use_cache,
+                          cache_dir=cache_dir))
+    return Report(files=files, tool_version=__version__, fail_on=config.fail_on, since=ref)
+
+
+def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: dict[str, Severity],
+             targets: list[Any], moved: dict[str, str], **run: Any) -> list[FileReport]:
+    """Models under the checked folders at REF that are gone now (and were not
+    renamed): every finding they had is fixed, and the report says they were deleted."""
+    current = {t.path.resolve() for t in targets}
+    renamed_from = set(moved.values())
+    cwd = Path.cwd()
+    gone: list[tuple[str, Path]] = []
+    for raw in paths:
+        folder = Path(raw)
+        if not folder.is_dir():
+            continue
+        try:
+            rel_dir = folder.resolve().relative_to(top.resolve()).as_posix()
+        except ValueError:
+            continue
+        listed = _git(["ls-tree", "-r", "-z", "--name-only", commit, "--", rel_dir if rel_dir != "." else "."], top)
+        if listed.returncode != 0:
+            continue
+        for name in sorted(n for n in listed.stdout.decode("utf-8", "replace").split("\0") if n.endswith(".plant")):
+            path = top / name
+            if (path.resolve() in current or name in renamed_from or path.exists()
+                    or not selected_in_folder(path, folder, config.root, config.include, config.exclude)):
+                continue
+            if name not in {g for g, _ in gone}:
+                gone.append((name, path))
+    if not gone:
+        return []
+    sources = [Source(name, old_version(commit, name, top)) for name, _ in gone]
+    raws = raw_results([s for s in sources if s.data is not None], config, show_progress=False, **run)
+    reports = []
+    for (name, path), raw in zip([g for g, s in zip(gone, sources) if s.data is not None], raws):
+        old = finish(_display(path, cwd), raw, None, config, defaults)
+        old.findings = [replace(f, baseline="fixed", span=None) for f in old.sorted_findings()]
+        old.analysis = None
+        old.structure_changes = [{"what": "model", "before": "present", "after": "deleted"}]
+        reports.append(old)
+    return reports
+
+
+def compare(report: FileReport, old_raw: RawResult | None, config: Any, defaults: dict[str, Severity]) -> FileReport:
+    """Mark each finding known/introduced, add the fixed ones, and diff the structure."""
+    if old_raw is None:
+        report.findings = [replace(f, baseline="introduced") for f in report.findings]
+        return report
+    old = finish(report.path, old_raw, None, config, defaults)
+    before = Counter(f.fingerprint(old.plant) for f in old.findings)
+    marked: list[Finding] = []
+    for f in report.sorted_findings():
+        key = f.fingerprint(report.plant)
+        if before[key] > 0:
+            before[key] -= 1
+            marked.append(replace(f, baseline="known"))
+        else:
+            marked.append(replace(f, baseline="introduced"))
+    now = Counter(f.fingerprint(report.plant) for f in report.findings)
+    for f in old.sorted_findings():
+        key = f.fingerprint(old.plant)
+        if now[key] > 0:
+            now[key] -= 1
+        else:
+            marked.append(replace(f, baseline="fixed", span=None))
+    report.findings = marked
+    report.structure_changes = structure_changes(old_raw.analysis, report.analysis)
+    return report
+
+
+def summary(analysis: dict[str, Any] | None) -> dict[str, Any]:
+    """The structural facts a reviewer cares about, flattened to comparable strings."""
+    if not analysis:
+        return {}
+    out: dict[str, Any] = {}
+    for name, r in (analysis.get("relative_degree") or {}).items():
+        out[f"relative degree of {name}"] = r
+    env = analysis.get("envelope") or {}
+    out["envelope"] = {True: "regular", False: "singular", None: "unproven"}.get(env.get("regular"))
+    for point, data in (analysis.get("points") or {}).items():
+        out[f"point {point}: equilibrium"] = data.get("equilibrium")
+        out[f"point {point}: well defined"] = data.get("well_defined")
+        zd = data.get("zero_dynamics")
+        out[f"point {point}: zero dynamics"] = zd.get("verdict") if zd else None
+        if "state_linearizable" in data:
+            out[f"point {point}: state linearizable"] = data.get("state_linearizable")
+    return out
+
+
+def structure_changes(before: dict[str, Any] | None, after: dict[str, Any] | None) -> list[dict[str, Any]]:
+    old, new = summary(before), summary(after)
+    changes = []
+    for key in sorted(set(old) | set(new)):
+        if old.get(key) != new.get(key):
+            changes.append({"what": key, "before": old.get(key), "after": new.get(key)})
+    return changes

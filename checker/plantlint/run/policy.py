@@ -1,0 +1,51 @@
+"""The decision engine: which findings are reported, at what severity, and which are waived.
+
+Pure functions over frozen records, so the rules of selection can be tested from
+tables. Severity always comes from the catalogue (or a configured override), so
+one place decides how serious a rule is.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from typing import Iterable, Mapping
+
+from plantlint.core.findings import Finding, Severity, Waiver
+
+
+def apply_policy(
+    findings: Iterable[Finding],
+    waivers: Iterable[Waiver],
+    defaults: Mapping[str, Severity],
+    overrides: Mapping[str, Severity],
+    only: frozenset[str] = frozenset(),
+    skip: frozenset[str] = frozenset(),
+) -> list[Finding]:
+    """Select, re-grade and waive findings, in that order."""
+    waivers = list(waivers)
+    out = []
+    for f in findings:
+        if only and f.rule not in only:
+            continue
+        if f.rule in skip:
+            continue
+        severity = overrides.get(f.rule) or defaults.get(f.rule) or f.severity
+        waiver = matching_waiver(f, waivers)
+        out.append(replace(f, severity=severity, waived=waiver is not None,
+                           reason=waiver.reason if waiver is not None else None))
+    return out
+
+
+def matching_waiver(finding: Finding, waivers: Iterable[Waiver]) -> Waiver | None:
+    """A waiver matches its rule everywhere in the file, or only at its point."""
+    for w in waivers:
+        if w.rule != finding.rule:
+            continue
+        if w.point is None or w.point == finding.point:
+            return w
+    return None
+
+
+def exit_code(failing: int) -> int:
+    """0 when nothing fails the run, 1 otherwise (2 is for usage errors)."""
+    return 1 if failing else 0

@@ -89,7 +89,7 @@ class DistributionStructure:
     failures: tuple[BracketFailure, ...]  # first failing pair of each non-involutive D_k
     uncertain: tuple[str, ...]  # decisions taken as zero without symbolic proof
     findings: tuple[Finding, ...]
-    _outputs: "OutputSearch | None" = field(default=None, repr=False)
+    outputs: "OutputSearch | None" = field(default=None, repr=False)  # single input only
 
     @property
     def involutive(self) -> bool:
@@ -449,9 +449,8 @@ def analyse_distributions(kernel: Kernel) -> DistributionStructure:
         failures=tuple(failures),
         uncertain=tuple(uncertain),
         findings=tuple(findings),
+        outputs=OutputSearch(kernel, n, [f.vector for f in fields if f.order <= n - 2]) if m == 1 else None,
     )
-    if m == 1:
-        structure._outputs = OutputSearch(kernel, structure)
     return structure
 
 
@@ -560,10 +559,10 @@ def distributions_at(
     linearizable = control_rank == n and not singular and structure.involutive
     findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
 
-    searched = m == 1 and linearizable and structure._outputs is not None
+    searched = m == 1 and linearizable and structure.outputs is not None
     output: sp.Expr | None = None
-    if searched and structure._outputs is not None:
-        output = structure._outputs.first_at(values)
+    if searched and structure.outputs is not None:
+        output = structure.outputs.first_at(values)
         if output is None:
             notes.append(
                 "an output of relative degree n exists near the point (state-linearization theorem) "

@@ -10,7 +10,6 @@ suggestion is never a guess.
 from __future__ import annotations
 
 from collections.abc import Iterator, Sequence
-from typing import TYPE_CHECKING
 
 import sympy as sp
 from flint import arb
@@ -18,8 +17,6 @@ from flint import arb
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.lie import Kernel, Vector
 
-if TYPE_CHECKING:
-    from plantlint.analysis.distributions import DistributionStructure
 
 #: Relative tolerance of the floating-point prefilter for output candidates
 #: (only a prefilter: every candidate kept is then verified rigorously).
@@ -32,9 +29,11 @@ class OutputSearch:
     """Simple outputs of relative degree n, screened in floating point against
     D_(n-2) and then verified rigorously with Lie derivative chains."""
 
-    def __init__(self, kernel: Kernel, structure: "DistributionStructure"):
+    def __init__(self, kernel: Kernel, n: int, low_fields: Sequence[Vector]):
+        """``low_fields``: the spanning fields of D_(n-2) (orders 0 .. n-2)."""
         self.kernel = kernel
-        self.structure = structure
+        self.n = n
+        self.low_fields = list(low_fields)
         self._lf: dict[tuple[sp.Expr, int], sp.Expr] = {}
         self._verified: dict[sp.Expr, bool] = {}
         self._screened: list[sp.Expr] | None = None
@@ -50,7 +49,7 @@ class OutputSearch:
         return self.kernel.lie(self.lie_f(phi, k), self.kernel.g[0])
 
     def first_at(self, values: dict[sp.Symbol, sp.Expr]) -> sp.Expr | None:
-        n = self.structure.n
+        n = self.n
         for phi in self.screened():
             if not self.verified(phi):
                 continue
@@ -63,7 +62,7 @@ class OutputSearch:
         """L_g L_f^k phi identically zero for k < n-1 (proved, not only screened)."""
         if phi not in self._verified:
             ok = True
-            for k in range(self.structure.n - 1):
+            for k in range(self.n - 1):
                 t = self.kernel.is_zero(self.lg_lf(phi, k))
                 if not (t.zero and t.certain):
                     ok = False
@@ -77,8 +76,8 @@ class OutputSearch:
         return self._screened
 
     def _screen(self) -> Iterator[sp.Expr]:
-        n = self.structure.n
-        fields = [f.vector for f in self.structure.fields if f.order <= n - 2]
+        n = self.n
+        fields = self.low_fields
         symbols = self.kernel.free_symbols()
         try:
             program = Program([e for v in fields for e in v], symbols)

@@ -32,7 +32,7 @@ from plantlint.run.runner import analyse_all
 from plantlint.language.syntax import parser
 
 REPO = Path(__file__).resolve().parent.parent
-SARIF_SCHEMA = REPO.parent / "shared" / "standards" / "sarif-schema-2.1.0.json"
+SARIF_SCHEMA = REPO / "tests" / "standards" / "sarif-schema-2.1.0.json"  # OASIS SARIF 2.1.0
 SEEDS = sorted((REPO / "tests" / "fixtures" / "rules").glob("*.plant")) + sorted(
     (REPO / "example_repo").rglob("*.plant"))
 SEED_TEXTS = [p.read_text(encoding="utf-8") for p in SEEDS]
@@ -60,9 +60,7 @@ def _warm_parser() -> None:
 
 def _validators() -> tuple[Any, Any]:
     json_validator = jsonschema.Draft202012Validator(report_schema())
-    sarif_validator = None
-    if SARIF_SCHEMA.is_file():
-        sarif_validator = jsonschema.Draft4Validator(json.loads(SARIF_SCHEMA.read_text(encoding="utf-8")))
+    sarif_validator = jsonschema.Draft4Validator(json.loads(SARIF_SCHEMA.read_text(encoding="utf-8")))
     return json_validator, sarif_validator
 
 
@@ -96,7 +94,7 @@ def check_output(data: bytes, raw: RawResult) -> None:
         document = json.loads(out.getvalue())
         if name == "json":
             JSON_VALIDATOR.validate(document)
-        elif SARIF_VALIDATOR is not None:
+        else:
             SARIF_VALIDATOR.validate(document)
 
 

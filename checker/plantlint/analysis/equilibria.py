@@ -10,20 +10,18 @@ linear algebra on the numbers at the point. The numbers may be transcendental
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Callable, Sequence
+from typing import Sequence
 
 import sympy as sp
 
 from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.core.findings import Finding, Severity
+from plantlint.kernel.exact import ZeroDecider, gauss_jordan, number_decider
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant, as_expr
 
 #: Outcomes of :func:`solve_point`.
 STATUSES = ("equilibrium", "not_equilibrium", "undetermined", "no_solution", "missing_states", "undefined")
-
-ZeroDecider = Callable[[sp.Expr], "bool | None"]
-
 
 @dataclass(frozen=True)
 class Equilibrium:
@@ -43,26 +41,7 @@ class Equilibrium:
     findings: tuple[Finding, ...] = field(default_factory=tuple)
 
 
-# -- exact numbers -------------------------------------------------------------
-def number_decider(kernel: Kernel) -> ZeroDecider:
-    """``decide(c)`` -> True/False for "c is exactly zero", None when undefined."""
-
-    def decide(value: sp.Expr) -> bool | None:
-        return kernel.constant_is_zero(as_expr(value))
-
-    return decide
-
-
-def magnitude(value: sp.Expr) -> float:
-    """A float size for pivot choice only (never for a zero decision)."""
-    if value.is_Rational:
-        return abs(float(value))
-    try:
-        return abs(complex(value.evalf(30)))
-    except (TypeError, ValueError):
-        return 0.0
-
-
+# -- exact numbers ---------------------------------------------------------------
 def show_number(value: sp.Expr) -> str:
     """Exact when rational, otherwise ``~`` and a decimal."""
     if value.is_Rational:
@@ -71,57 +50,6 @@ def show_number(value: sp.Expr) -> str:
         return "~" + format(float(value.evalf(20)), ".6g")
     except (TypeError, ValueError):
         return "undefined"
-
-
-def gauss_jordan(
-    rows: list[list[sp.Expr]], ncols: int, decide: ZeroDecider
-) -> tuple[list[list[sp.Expr]], list[int]]:
-    """Reduced row echelon form over the first ``ncols`` columns, exactly.
-
-    Entries decided zero are replaced by an exact 0 so that later tests stay
-    cheap; the pivot in each column is the entry of largest size (stability of
-    the exact expressions' later numeric use). Returns the rows and pivot columns.
-    """
-    work = [list(r) for r in rows]
-    pivots: list[int] = []
-    top = 0
-    for col in range(ncols):
-        best, best_size = -1, -1.0
-        for i in range(top, len(work)):
-            if work[i][col] == 0:
-                continue
-            z = decide(work[i][col])
-            if z is not False:
-                work[i][col] = sp.Integer(0)
-                continue
-            size = magnitude(work[i][col])
-            if size > best_size:
-                best, best_size = i, size
-        if best < 0:
-            continue
-        work[top], work[best] = work[best], work[top]
-        piv = work[top][col]
-        work[top] = [e / piv if e != 0 else e for e in work[top]]
-        work[top][col] = sp.Integer(1)
-        for i in range(len(work)):
-            if i == top or work[i][col] == 0:
-                continue
-            factor = work[i][col]
-            work[i] = [a - factor * b if b != 0 else a for a, b in zip(work[i], work[top])]
-            work[i][col] = sp.Integer(0)
-        pivots.append(col)
-        top += 1
-        if top == len(work):
-            break
-    return work, pivots
-
-
-def exact_rank(rows: Sequence[Sequence[sp.Expr]], decide: ZeroDecider) -> int:
-    """Rank of a matrix of exact numbers, with rigorous zero decisions."""
-    if not rows:
-        return 0
-    _, pivots = gauss_jordan([[as_expr(e) for e in r] for r in rows], len(rows[0]), decide)
-    return len(pivots)
 
 
 # -- the point -------------------------------------------------------------------
@@ -140,11 +68,7 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
     missing = [s for s in plant.states if s not in given]
     findings.extend(_envelope_findings(plant, name, values, decide, solved=()))
     if missing:
-        report(
-            "point-incomplete",
-            Severity.ERROR,
-            f"point {name} does not give the state(s) {_names(missing)}; every state must be given",
-        )
+        # reported once, by the model (language.model), at the point that leaves them out
         return Equilibrium(name, False, "missing_states", values, findings=tuple(findings))
 
     subs = dict(plant.param_nominal)
@@ -177,7 +101,7 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
         [G0[i][j] for j in unknown] + [-c[i]] + [sp.Integer(1 if a == i else 0) for a in range(n)]
         for i in range(n)
     ]
-    reduced, pivots = gauss_jordan(rows, k, decide)
+    reduced, pivots, _ = gauss_jordan(rows, k, decide)
     conflicts: list[list[int]] = []
     for row in reduced[len(pivots):]:
         rhs = row[k]

@@ -16,7 +16,7 @@ from typing import Iterator, Sequence
 
 import sympy as sp
 
-from plantlint.analysis.equilibria import ZeroDecider, exact_rank, number_decider
+from plantlint.kernel.exact import ZeroDecider, number_decider, rank as exact_rank
 from plantlint.language.printer import show_expr
 from plantlint.kernel.lie import Kernel
 
@@ -61,7 +61,7 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     xi = [kernel.lf(i, k) for i in range(plant.p) for k in range(degrees[i])]
     names = [xi_name(kernel.lf(i, k), plant.outputs[i], k) for i in range(plant.p) for k in range(degrees[i])]
     rows = [_gradient_at(kernel, e, point) for e in xi]
-    rank = exact_rank(rows, decide) if rows else 0
+    rank = exact_rank(rows, decide)[0] if rows else 0
     if rank < len(xi):
         return NormalForm(tuple(names), (), rank, False, False,
                           note="the output derivatives are dependent at the point")
@@ -120,7 +120,7 @@ def _try_add(
 ) -> int:
     """Keep ``phi`` when its differential raises the exact rank at the point."""
     row = _gradient_at(kernel, phi, point)
-    new_rank = exact_rank([*rows, row], decide)
+    new_rank = exact_rank([*rows, row], decide)[0]
     if new_rank > rank:
         rows.append(row)
         chosen.append(phi)

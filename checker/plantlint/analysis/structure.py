@@ -28,6 +28,7 @@ from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
 from plantlint.language.printer import show_expr
+from plantlint.kernel import exact
 from plantlint.kernel.lie import Kernel, matrix_at
 
 #: Expressions up to this size are factored for messages; larger ones are cut.
@@ -180,9 +181,10 @@ def _generic_rank(kernel: Kernel, A: sp.Matrix) -> tuple[int, bool]:
     """
     full = min(A.rows, A.cols)
     best = 0
+    decide = exact.number_decider(kernel)
     for sample in kernel.samples():
         point = {s: sp.Rational(v.numerator, v.denominator) for s, v in sample.items()}
-        rank, _ = exact_rank(kernel, matrix_at(kernel, A.tolist(), point))
+        rank, _ = exact.rank(matrix_at(kernel, A.tolist(), point).tolist(), decide)
         best = max(best, rank)
         if best == full:
             return best, True
@@ -194,7 +196,7 @@ def _generic_rank(kernel: Kernel, A: sp.Matrix) -> tuple[int, bool]:
     certain = True
     for r in rows:
         for c in cols:
-            test = kernel.is_zero(laplace_det(A.extract(list(r), list(c))))
+            test = kernel.is_zero(exact.laplace_det(A.extract(list(r), list(c))))
             if not test.zero:
                 return k, True  # cannot happen after screening, but a proof beats a guess
             certain = certain and test.certain
@@ -212,59 +214,6 @@ def _extension_hint(inputs: Sequence[str], zero_cols: Sequence[int]) -> str:
     )
 
 
-def laplace_det(M: sp.Matrix) -> sp.Expr:
-    """Determinant by cofactor expansion with memoised minors, no simplification
-    (fraction-free, and cheap for the small matrices met here)."""
-    n = M.rows
-    memo: dict[tuple[int, ...], sp.Expr] = {}
-
-    def minor(row: int, cols: tuple[int, ...]) -> sp.Expr:
-        if row == n:
-            return sp.Integer(1)
-        if cols in memo:
-            return memo[cols]
-        total = sp.Integer(0)
-        for pos, c in enumerate(cols):
-            entry = M[row, c]
-            if entry == 0:
-                continue
-            rest = minor(row + 1, cols[:pos] + cols[pos + 1 :])
-            if rest == 0:
-                continue
-            total += (-1) ** pos * entry * rest
-        memo[cols] = total
-        return total
-
-    return minor(0, tuple(range(M.cols)))
-
-
-# -- exact rank at a point -------------------------------------------------------------------
-def exact_rank(kernel: Kernel, M: sp.Matrix) -> tuple[int, bool]:
-    """Rank of a matrix of exact constants, by division-free elimination whose
-    pivots are decided rigorously. Returns (rank, certain); an undecidable
-    pivot makes the rank a lower bound only."""
-    rows = [list(M.row(i)) for i in range(M.rows)]
-    rank, certain = 0, True
-    for col in range(M.cols):
-        pivot, undecided = None, False
-        for i in range(rank, len(rows)):
-            z = kernel.constant_is_zero(rows[i][col])
-            if z is None:
-                undecided = True
-            elif not z:
-                pivot = i
-                break
-        if pivot is None:
-            certain = certain and not undecided
-            continue
-        rows[rank], rows[pivot] = rows[pivot], rows[rank]
-        p_row = rows[rank]
-        for i in range(rank + 1, len(rows)):
-            factor = rows[i][col]
-            if factor != 0:
-                rows[i] = [p_row[col] * rows[i][k] - factor * p_row[k] for k in range(M.cols)]
-        rank += 1
-    return rank, certain
 
 
 # -- at a point ----------------------------------------------------------------------------
@@ -303,7 +252,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
     if not defined_rows:
         return PointStructure(name, degrees, False, 0, True, tuple(findings))
     A0 = matrix_at(kernel, defined_rows, point)
-    rank, certain = exact_rank(kernel, A0)
+    rank, certain = exact.rank(A0.tolist(), exact.number_decider(kernel))
     full_rank = rank == plant.p
     if all_defined and not full_rank and (structure.generic_rank or 0) >= plant.p:
         if certain:
@@ -543,8 +492,8 @@ def _regularity_expressions(kernel: Kernel, structure: Structure) -> tuple[list[
             return [entries[0][1]], entries[0][0]
         return [e for _, e in entries], "every entry of the row " + ", ".join(n for n, _ in entries)
     if p == m:
-        return [kernel.compact(laplace_det(A))], "det A (the decoupling matrix)"
-    minors = [kernel.compact(laplace_det(A.extract(list(range(p)), list(c)))) for c in combinations(range(m), p)]
+        return [kernel.compact(exact.laplace_det(A))], "det A (the decoupling matrix)"
+    minors = [kernel.compact(exact.laplace_det(A.extract(list(range(p)), list(c)))) for c in combinations(range(m), p)]
     return [e for e in minors if e != 0] or [sp.Integer(0)], f"every {p} x {p} minor of the decoupling matrix"
 
 
@@ -567,6 +516,6 @@ def envelope_json(env: Envelope) -> dict[str, Any]:
 
 __all__ = [
     "Envelope", "OutputStructure", "PointStructure", "Structure", "analyse_structure",
-    "certify_envelope", "domain_conditions", "envelope_json", "exact_rank", "laplace_det",
+    "certify_envelope", "domain_conditions", "envelope_json", 
     "point_json", "structure_at_point", "structure_json",
 ]

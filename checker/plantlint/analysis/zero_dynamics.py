@@ -22,7 +22,7 @@ import mpmath
 import sympy as sp
 from flint import acb, fmpq, fmpq_mat, fmpz_poly
 
-from plantlint.analysis.equilibria import number_decider
+from plantlint.kernel.exact import number_decider, rank as exact_rank
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.lie import Kernel
 
@@ -126,9 +126,8 @@ def _point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Symbol, s
 
 def _singular(A0: sp.Matrix, decide: "object") -> bool:
     """Exact (rigorous) singularity of the decoupling matrix at the point."""
-    from plantlint.analysis.equilibria import exact_rank
 
-    return exact_rank(A0.tolist(), decide) < A0.rows  # type: ignore[arg-type]
+    return exact_rank(A0.tolist(), decide)[0] < A0.rows  # type: ignore[arg-type]
 
 
 def _assemble(data: _PointData, to: "object", inverse: "object", zeros: "object") -> tuple[object, object, object]:

@@ -1,0 +1,125 @@
+"""Exact linear algebra on numbers that may be transcendental (``sin(1/3)``).
+
+Every "is this entry zero?" goes through a :data:`ZeroDecider` (rigorous balls, then
+exact confirmation in the kernel), never through a float comparison. One routine per
+question: :func:`rank` (with whether every pivot decision was certain),
+:func:`gauss_jordan` (the reduced rows, for the solvers), :func:`laplace_det` (a
+determinant without division, for symbolic matrices).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+
+import sympy as sp
+
+from plantlint.kernel.plant import as_expr
+
+#: ``decide(c)``: True when c is exactly zero, False when it is certainly not, None when
+#: it is undefined or could not be decided.
+ZeroDecider = Callable[[sp.Expr], "bool | None"]
+
+
+def number_decider(kernel: "object") -> ZeroDecider:
+    """The kernel's exact-constant zero decision as a :data:`ZeroDecider`."""
+
+    def decide(value: sp.Expr) -> bool | None:
+        return kernel.constant_is_zero(as_expr(value))  # type: ignore[attr-defined]
+
+    return decide
+
+
+def magnitude(value: sp.Expr) -> float:
+    """A float size for pivot choice only (never for a zero decision)."""
+    if value.is_Rational:
+        return abs(float(value))
+    try:
+        return abs(complex(value.evalf(30)))
+    except (TypeError, ValueError):
+        return 0.0
+
+
+def gauss_jordan(
+    rows: list[list[sp.Expr]], ncols: int, decide: ZeroDecider
+) -> tuple[list[list[sp.Expr]], list[int], bool]:
+    """Reduced row echelon form over the first ``ncols`` columns, exactly.
+
+    Entries decided zero are replaced by an exact 0 so that later tests stay cheap; an
+    entry that could not be decided is treated as zero and makes the result uncertain.
+    The pivot in each column is the entry of largest size (for the later numeric use of
+    the exact expressions). Returns the rows, the pivot columns and whether every
+    decision was certain.
+    """
+    work = [list(r) for r in rows]
+    pivots: list[int] = []
+    certain = True
+    top = 0
+    for col in range(ncols):
+        best, best_size = -1, -1.0
+        for i in range(top, len(work)):
+            if work[i][col] == 0:
+                continue
+            z = decide(work[i][col])
+            if z is not False:
+                certain = certain and z is True
+                work[i][col] = sp.Integer(0)
+                continue
+            size = magnitude(work[i][col])
+            if size > best_size:
+                best, best_size = i, size
+        if best < 0:
+            continue
+        work[top], work[best] = work[best], work[top]
+        piv = work[top][col]
+        work[top] = [e / piv if e != 0 else e for e in work[top]]
+        work[top][col] = sp.Integer(1)
+        for i in range(len(work)):
+            if i == top or work[i][col] == 0:
+                continue
+            factor = work[i][col]
+            work[i] = [a - factor * b if b != 0 else a for a, b in zip(work[i], work[top])]
+            work[i][col] = sp.Integer(0)
+        pivots.append(col)
+        top += 1
+        if top == len(work):
+            break
+    return work, pivots, certain
+
+
+def rank(rows: Sequence[Sequence[sp.Expr]], decide: ZeroDecider) -> tuple[int, bool]:
+    """Rank of a matrix of exact numbers, and whether it is certain.
+
+    An entry that could not be decided is taken as zero, so an uncertain rank is a
+    lower bound.
+    """
+    rows = [list(r) for r in rows]
+    if not rows or not rows[0]:
+        return 0, True
+    _, pivots, certain = gauss_jordan([[as_expr(e) for e in r] for r in rows], len(rows[0]), decide)
+    return len(pivots), certain
+
+
+def laplace_det(M: sp.Matrix) -> sp.Expr:
+    """Determinant by cofactor expansion with memoised minors, no simplification
+    (fraction-free, and cheap for the small matrices met here)."""
+    n = M.rows
+    memo: dict[tuple[int, ...], sp.Expr] = {}
+
+    def minor(row: int, cols: tuple[int, ...]) -> sp.Expr:
+        if row == n:
+            return sp.Integer(1)
+        if cols in memo:
+            return memo[cols]
+        total = sp.Integer(0)
+        for pos, c in enumerate(cols):
+            entry = M[row, c]
+            if entry == 0:
+                continue
+            rest = minor(row + 1, cols[:pos] + cols[pos + 1 :])
+            if rest == 0:
+                continue
+            total += (-1) ** pos * entry * rest
+        memo[cols] = total
+        return total
+
+    return minor(0, tuple(range(M.cols)))

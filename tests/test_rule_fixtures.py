@@ -8,8 +8,10 @@ Fixtures mark what they expect beside the offending line (mypy's habit):
     #= timeout: 0.001                         per-model time budget for this file
 
 Each triggering file must produce exactly its marked findings (rule, line,
-column), nothing else apart from ignored rules; each ``*.ok.plant`` counterpart
-must produce none of the rules its triggering sibling is about.
+column), each as often as it is marked (a mark written twice expects two
+findings: one cause, one finding), nothing else apart from ignored rules; each
+``*.ok.plant`` counterpart must produce none of the rules its triggering sibling
+is about.
 """
 
 from __future__ import annotations
@@ -28,8 +30,11 @@ FIXTURES = Path(__file__).parent / "fixtures" / "rules"
 MARK = re.compile(r"#=(?:L(\d+))?\s+(.*)$")
 
 
-def _marks(path: Path) -> tuple[set[tuple[str, int, int]], set[str], float | None]:
-    expected: set[tuple[str, int, int]] = set()
+Mark = tuple[str, int, int]
+
+
+def _marks(path: Path) -> tuple[list[Mark], set[str], float | None]:
+    expected: list[Mark] = []
     ignored: set[str] = set()
     timeout = None
     for number, line in enumerate(path.read_text(encoding="utf-8").splitlines(), start=1):
@@ -45,18 +50,19 @@ def _marks(path: Path) -> tuple[set[tuple[str, int, int]], set[str], float | Non
         else:
             for item in body.split():
                 rule, col = item.split(":")
-                expected.add((rule, at, int(col)))
-    return expected, ignored, timeout
+                expected.append((rule, at, int(col)))
+    return sorted(expected), ignored, timeout
 
 
-def _findings(path: Path, timeout: float | None = None) -> set[tuple[str, int, int]]:
+def _findings(path: Path, timeout: float | None = None) -> list[Mark]:
+    """Every finding as (rule, line, column), sorted, duplicates kept."""
     config = Config(root=FIXTURES, envelope_seconds=3.0)
     if timeout is not None:
         config = replace(config, timeout=timeout)
     defaults = {r.id: r.severity for r in load_catalogue()}
     (report,) = check_targets([Target(path, path.name)], config, defaults, jobs=1, use_cache=False,
                               cache_dir=None, show_progress=False)
-    return {(f.rule, f.span.line if f.span else 0, f.span.column if f.span else 0) for f in report.findings}
+    return sorted((f.rule, f.span.line if f.span else 0, f.span.column if f.span else 0) for f in report.findings)
 
 
 TRIGGERS = sorted(p for p in FIXTURES.glob("*.plant") if not p.name.endswith(".ok.plant"))
@@ -67,7 +73,7 @@ CLEAN = sorted(FIXTURES.glob("*.ok.plant"))
 def test_trigger_gives_exactly_its_marked_findings(path: Path) -> None:
     expected, ignored, timeout = _marks(path)
     assert expected, f"{path.name} marks no expected finding"
-    got = {f for f in _findings(path, timeout) if f[0] not in ignored}
+    got = [f for f in _findings(path, timeout) if f[0] not in ignored]
     assert got == expected
 
 
@@ -78,8 +84,8 @@ def test_clean_counterpart_is_clean_of_its_rule(path: Path) -> None:
     assert trigger.exists(), f"{path.name} has no triggering sibling"
     about = {r for r, _, _ in _marks(trigger)[0]}
     expected, ignored, _ = _marks(path)
-    got = {f for f in _findings(path) if f[0] not in ignored}
-    assert not {f for f in got if f[0] in about}, f"{path.name} still triggers {about}"
+    got = [f for f in _findings(path) if f[0] not in ignored]
+    assert not [f for f in got if f[0] in about], f"{path.name} still triggers {about}"
     assert got == expected
 
 

@@ -471,6 +471,7 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inpu
         seen[name] = st
         values: dict[str, sp.Expr] = {}
         value_spans: dict[str, Span] = {}
+        given: set[str] = set()
         for target, expr in st.assignments:
             kind = scope.declared.get(target.name)
             if kind is None or kind.kind not in ("state", "input"):
@@ -482,11 +483,13 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inpu
                 scope.add("duplicate-name", f"point '{name}' sets '{target.name}' twice", target.span,
                           f"point {name} sets {target.name} twice", point=name)
                 continue
+            given.add(target.name)
             value = _point_value(scope, name, target.name, expr)
             if value is not None:
                 values[target.name] = value
                 value_spans[target.name] = expr.span
-        missing = [s for s in states if s not in values]
+        # a state given with a bad value is reported once, at the value, not again as missing
+        missing = [s for s in states if s not in given]
         if missing:
             scope.add("point-incomplete", f"point '{name}' does not give state{'s' if len(missing) > 1 else ''} "
                       + ", ".join(repr(m) for m in missing), st.name_span, f"point {name}", point=name,
@@ -498,15 +501,27 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inpu
 
 
 def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp.Expr | None:
+    """A point value: a constant expression in numbers, constants, parameters and
+    definitions (``let``) whose expansion uses only those."""
     _mark_used(scope, expr)
     for ref in expr.names:
         decl = scope.declared.get(ref.name)
-        if decl is None or decl.kind not in ("const", "param"):
+        if decl is not None and decl.kind in ("const", "param"):
+            continue
+        if decl is not None and decl.kind == "let" and symbol(ref.name) in scope.lets:
+            dynamic = sorted(str(s) for s in scope.lets[symbol(ref.name)].free_symbols
+                             if (scope.declared.get(str(s)) or decl).kind in ("state", "input"))
+            if not dynamic:
+                continue
+            kind = scope.declared[dynamic[0]].kind
+            what = f"the definition '{ref.name}', which depends on the {kind} '{dynamic[0]}'"
+        else:
             what = f"the {decl.kind} '{ref.name}'" if decl is not None else f"unknown name '{ref.name}'"
-            scope.add("unknown-name", f"point '{point}' value uses {what}; point values must be constant",
-                      ref.span, f"point {point} value {target}", point=point)
-            return None
-    value = expr.value.xreplace(scope.constants).xreplace(_nominals(scope))
+        scope.add("unknown-name", f"point '{point}' value uses {what}; point values must be constant",
+                  ref.span, f"point {point} value {target}", point=point,
+                  hint="a point value may use numbers, constants, parameters and definitions built from them")
+        return None
+    value = expr.value.xreplace(scope.lets).xreplace(scope.constants).xreplace(_nominals(scope))
     if value.has(sp.zoo, sp.nan) or value.free_symbols:
         scope.add("singular-model", f"point '{point}' value of '{target}' is not a finite number", expr.span,
                   f"point {point} value {target}", point=point)

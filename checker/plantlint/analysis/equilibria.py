@@ -18,6 +18,7 @@ from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.exact import ZeroDecider, gauss_jordan, number_decider
 from plantlint.kernel.lie import Kernel
+from plantlint.language.printer import show_number
 from plantlint.kernel.plant import Plant, as_expr
 
 #: Outcomes of :func:`solve_point`.
@@ -42,16 +43,6 @@ class Equilibrium:
 
 
 # -- exact numbers ---------------------------------------------------------------
-def show_number(value: sp.Expr) -> str:
-    """Exact when rational, otherwise ``~`` and a decimal."""
-    if value.is_Rational:
-        return str(value)
-    try:
-        return "~" + format(float(value.evalf(20)), ".6g")
-    except (TypeError, ValueError):
-        return "undefined"
-
-
 # -- the point -------------------------------------------------------------------
 def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel: Kernel | None = None) -> Equilibrium:
     """Check the declared point ``name`` and solve for the inputs it leaves out."""
@@ -150,7 +141,7 @@ def _check_residual(
     """Every input is given: the point is an equilibrium iff every rate vanishes."""
     bad = [(plant.states[i], r) for i, r in enumerate(residual) if decide(r) is not True]
     if bad:
-        shown = ", ".join(f"d{s}/dt = {show_number(r)}" for s, r in bad)
+        shown = ", ".join(f"d{s}/dt = {show_number(r, mark_inexact=True)}" for s, r in bad)
         findings.append(
             Finding(
                 "point-not-equilibrium",
@@ -181,7 +172,7 @@ def _no_solution(
     if alone:
         parts.append(
             "no input acts on "
-            + ", ".join(f"d{plant.states[i]}/dt = {show_number(c[i])}" for i in alone)
+            + ", ".join(f"d{plant.states[i]}/dt = {show_number(c[i], mark_inexact=True)}" for i in alone)
         )
     joint = [group for group in conflicts if not (len(group) == 1 and group[0] in alone)]
     for group in joint:
@@ -223,8 +214,8 @@ def _envelope_findings(
             Finding(
                 "point-outside-envelope",
                 Severity.WARNING,
-                f"at point {name} the {kind} {sym} = {show_number(value)} lies outside its range "
-                f"{show_number(lo)} .. {show_number(hi)}",
+                f"at point {name} the {kind} {sym} = {show_number(value, mark_inexact=True)} lies outside its range "
+                f"{show_number(lo, mark_inexact=True)} .. {show_number(hi, mark_inexact=True)}",
                 point=name,
                 anchor=f"point {name}",
             )

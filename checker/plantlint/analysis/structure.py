@@ -27,7 +27,7 @@ import sympy as sp
 from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
-from plantlint.language.printer import show_expr
+from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.kernel import exact
 from plantlint.kernel.lie import Kernel, matrix_at
 
@@ -113,10 +113,6 @@ def compact(expr: sp.Expr) -> str:
             factored = text
         text = min(text, factored, key=len)
     return text if len(text) <= MESSAGE_CHARS else text[: MESSAGE_CHARS - 3] + "..."
-
-
-def _format_point(values: dict[str, float]) -> str:
-    return ", ".join(f"{k} = {v:.6g}" for k, v in values.items())
 
 
 # -- generic structure --------------------------------------------------------------------
@@ -373,7 +369,7 @@ def certify_envelope(
             findings.append(Finding(
                 "singular-model", Severity.ERROR,
                 f"the {what} in {anchor} {_violation(kind)} inside the envelope, "
-                f"e.g. at {_format_point(verdict.witness)}",
+                f"e.g. at {show_point(verdict.witness)}",
                 anchor=anchor, hint="narrow the state ranges or reformulate the model",
             ))
         elif verdict.regular is None:
@@ -390,14 +386,14 @@ def certify_envelope(
         findings.append(Finding(
             "envelope-singular", Severity.ERROR,
             f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
-            f"at {_format_point(verdict.witness)}"
+            f"at {show_point(verdict.witness)}"
             + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)"),
             anchor="envelope", hint="narrow the envelope, move it off the singular set, or choose other outputs",
         ))
         return Envelope(False, None, verdict.witness, tuple(findings), clock.boxes, clock.seconds, certified)
     if verdict.regular is None:
         shown = "; ".join(
-            ", ".join(f"{k} in [{lo:.6g}, {hi:.6g}]" for k, (lo, hi) in b.items()) for b in verdict.undecided[:2]
+            ", ".join(f"{k} in [{show_number(lo)}, {show_number(hi)}]" for k, (lo, hi) in b.items()) for b in verdict.undecided[:2]
         )
         findings.append(Finding(
             "envelope-unproven", Severity.WARNING,

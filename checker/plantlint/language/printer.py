@@ -33,8 +33,13 @@ def show_expr(expr: sp.Expr, limit: int = 120) -> str:
     return text
 
 
-def show_number(value: sp.Expr | float, digits: int = 6) -> str:
-    """Exact when short (rationals, 1/3), else a decimal with ``digits`` significant digits."""
+def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = False) -> str:
+    """Exact when short (rationals, 1/3), else a decimal with ``digits`` significant digits.
+
+    With ``mark_inexact`` a value that is shown rounded (an irrational number, or a
+    rational too long to write out) is prefixed with ``~``, so a reader can tell a
+    rounded residual from an exact one.
+    """
     if isinstance(value, sp.Basic):
         if value.is_Integer:
             return str(value)
@@ -45,10 +50,16 @@ def show_number(value: sp.Expr | float, digits: int = 6) -> str:
             if len(str(value)) <= 12:
                 return str(value)
         try:
-            value = float(value)
+            value = float(value.evalf(digits + 14)) if not value.is_Float else float(value)
         except (TypeError, ValueError):
             return show_expr(value)
+        return ("~" if mark_inexact else "") + f"{value:.{digits}g}"
     return f"{value:.{digits}g}"
+
+
+def show_point(values: dict[str, float] | dict[str, sp.Expr], digits: int = 6) -> str:
+    """``th = 0.5, w = -1`` for a point given by name."""
+    return ", ".join(f"{k} = {show_number(v, digits)}" for k, v in values.items())
 
 
 def _decimal(r: sp.Rational) -> str | None:

@@ -21,7 +21,7 @@ from plantlint.run.config import Config, ConfigError, load_config
 from plantlint.core.findings import Finding
 from plantlint.run.pipeline import BLOCKING, locate, read_model
 from plantlint.run.policy import apply_policy
-from plantlint.language.printer import show_expr, show_number
+from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.analysis.structure import lie_name
 from plantlint.analysis.zero_dynamics import show_eigenvalues
 
@@ -221,7 +221,7 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
     if env.get("margin") is not None:
         line += f"; certified margin {env['margin']:.4g}"
     if env.get("witness"):
-        line += "; vanishes at " + ", ".join(f"{k} = {v:.6g}" for k, v in env["witness"].items())
+        line += "; vanishes at " + show_point(env["witness"])
     if env.get("boxes"):
         line += f"  [{env['boxes']} boxes, {env['seconds']} s]"
     console.print(line)

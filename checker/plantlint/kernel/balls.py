@@ -11,7 +11,7 @@ sub-expressions, then run many times; nothing is ever turned into Python code.
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Sequence
 from fractions import Fraction
 from typing import Callable
 
@@ -115,13 +115,6 @@ def rational_power(x: arb, exponent: sp.Rational) -> arb:
 Step = Callable[[list[arb], Sequence[arb]], arb]
 
 
-def _constant(make: Callable[[], arb]) -> arb:
-    old = flint.ctx.prec
-    flint.ctx.prec = 256
-    try:
-        return make()
-    finally:
-        flint.ctx.prec = old
 
 
 def _step(name: str, args: tuple[int, ...], data: object) -> Step:
@@ -276,29 +269,3 @@ def to_arb(value: object) -> arb:
     if e.free_symbols:
         raise UnsupportedExpression(f"not a constant: {e}")
     return Program([e], []).run([])[0]
-
-
-def is_certainly_nonzero(x: arb) -> bool:
-    return x.is_finite() and not x.contains(0)
-
-
-def mid_float(x: arb) -> float:
-    return float(x.mid())
-
-
-def compile_many(exprs: Sequence[sp.Expr], symbols: Sequence[sp.Symbol]) -> Program:
-    return Program(list(exprs), list(symbols))
-
-
-def evaluate_at(
-    exprs: Sequence[sp.Expr],
-    point: Mapping[sp.Symbol, object],
-    prec: int = 128,
-) -> list[arb]:
-    """Balls for ``exprs`` at an exact point (all free symbols must be given)."""
-    symbols = list(point)
-    prog = Program(list(exprs), symbols)
-    return prog.run([to_arb(point[s]) for s in symbols], prec=prec)
-
-
-BallFunction = Callable[[Sequence[arb]], list[arb]]

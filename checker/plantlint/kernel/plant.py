@@ -54,9 +54,6 @@ class Plant:
             return expr
         return expr.xreplace(self.param_nominal)
 
-    def envelope_complete(self) -> bool:
-        """True when every state has a declared range (the envelope is a box)."""
-        return all(s in self.state_box for s in self.states)
 
     @classmethod
     def from_matrices(

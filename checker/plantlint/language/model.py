@@ -86,9 +86,6 @@ class Model:
     def symbol(self, name: str) -> sp.Symbol:
         return symbol(name)
 
-    def span_of(self, anchor: str) -> Span | None:
-        return self.spans.get(anchor)
-
     def point(self, name: str) -> OperatingPoint | None:
         return next((p for p in self.points if p.name == name), None)
 

@@ -83,7 +83,7 @@ def measure(cwd: Path, paths: list[str], repeat: int, timeout: float | None) -> 
 def topped_up_copy(folder: Path, models: list[Path], leave_out: list[str]) -> None:
     """``example_repo`` (configuration and models) copied to ``folder``, without the models
     in ``leave_out``, and filled up to TARGET_MODELS models with commented variants."""
-    shutil.copytree(EXAMPLE, folder, ignore=shutil.ignore_patterns(".plantlint-cache", ".git"))
+    shutil.copytree(EXAMPLE, folder, ignore=shutil.ignore_patterns(".plantlint", ".git"))
     for name in leave_out:
         (folder / name).unlink()
     kept = [m.relative_to(EXAMPLE) for m in models if m.relative_to(EXAMPLE).as_posix() not in leave_out]

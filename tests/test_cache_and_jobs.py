@@ -191,8 +191,11 @@ def test_no_cache_writes_nothing(tmp_path: Path) -> None:
     sub = project / "sub"
     sub.mkdir()
     assert plantlint(sub, "check", "../tail.plant").code == 0
-    assert len(cache_entries(project / ".plantlint-cache")) == 1
-    assert (project / ".plantlint-cache" / ".gitignore").read_text(encoding="utf-8").splitlines()[-1] == "*"
+    assert sorted(p.name for p in project.iterdir()) == [".plantlint", "plantlint.toml", "sub", "tail.plant"]
+    assert len(cache_entries(project / ".plantlint" / "cache")) == 1
+    # one project folder, ignoring itself (everything beneath it, the .gitignore included)
+    assert sorted(p.name for p in (project / ".plantlint").iterdir()) == [".gitignore", "cache"]
+    assert (project / ".plantlint" / ".gitignore").read_text(encoding="utf-8").splitlines()[-1] == "*"
 
 
 def test_cache_off_in_the_configuration_writes_nothing(tmp_path: Path) -> None:
@@ -253,7 +256,7 @@ def test_tiny_budget_stops_each_model_and_the_run_goes_on(workspace: Path, tmp_p
 
 def test_budget_beyond_any_wait_is_accepted(workspace: Path) -> None:
     """Selectors reject waits this long; the runner must wait in slices instead."""
-    run = plantlint(workspace, "check", "--format", "concise", "--no-cache", "--timeout", "1e12",
+    run = plantlint(workspace, "check", "--format", "lines", "--no-cache", "--timeout", "1e12",
                     "models/a_unstable.plant")
     assert run.code == 1 and run.stderr == ""
     assert "[zero-dynamics-unstable]" in run.stdout

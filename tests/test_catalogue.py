@@ -225,6 +225,20 @@ def test_one_rule_in_full(catalogue: Catalogue) -> None:
         assert ref in squashed
 
 
+def test_rule_page_reads_in_the_projects_own_order(catalogue: Catalogue) -> None:
+    """Protection first, then when the check fires, a failing and a passing model, sources."""
+    rule = catalogue.get("expectation-failed")
+    lines = _render(catalogue, rule.id).splitlines()
+    headings = ["What it protects", "When it fires", "A model that fails it", "A model that passes it", "Sources"]
+    positions = [lines.index(h) for h in headings]
+    assert positions == sorted(positions)
+    text = "\n".join(lines)
+    assert "expect relative_degree(pos) = 1" in text.split(headings[3])[0].split(headings[2])[1]
+    assert "expect relative_degree(pos) = 2" in text.split(headings[4])[0].split(headings[3])[1]
+    for old_word in ("triggers it", "fixed", "References"):
+        assert old_word not in text
+
+
 def test_rules_view_rejects_unknown_ids(catalogue: Catalogue) -> None:
     with pytest.raises(KeyError):
         _render(catalogue, "zero-dynamic-unstable")

@@ -95,6 +95,7 @@ def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli: CLI) -> No
 
 @pytest.mark.parametrize("args", [
     ["check", "--bogus", "x.plant"],
+    ["check", "--format", "concise", "x.plant"],  # the one-line format is `lines`; no alias
     ["check", "--only", "zero-dynamics-unstable,no-such-rule", "x.plant"],
     ["check", "--skip", "no-such-rule", "x.plant"],
     ["check", "--fail-on", "fatal", "x.plant"],
@@ -399,7 +400,7 @@ def test_endless_device_is_read_only_up_to_the_limit(tmp_path: Path, cli: CLI) -
 def test_bad_inputs_in_one_real_process(bad_inputs: tuple[Path, dict[str, str]]) -> None:
     """The same files through a real interpreter: stderr stays empty, one finding each."""
     folder, says = bad_inputs
-    out = subprocess.run([sys.executable, "-m", "plantlint", "check", "--format", "concise", "--no-cache", "."],
+    out = subprocess.run([sys.executable, "-m", "plantlint", "check", "--format", "lines", "--no-cache", "."],
                          cwd=folder, capture_output=True, text=True, timeout=300)
     assert out.returncode == 1 and out.stderr == ""
     lines = out.stdout.splitlines()
@@ -444,7 +445,7 @@ def test_wheel_installs_and_finds_its_grammar_and_rules(tmp_path: Path) -> None:
     assert version.stdout.strip() == f"plantlint {__version__}"
     copy(UNSTABLE, elsewhere / "unstable.plant")
     copy(CLEAN, elsewhere / "clean.plant")
-    check = subprocess.run([str(script), "check", "--no-cache", "--format", "concise", "unstable.plant", "clean.plant"],
+    check = subprocess.run([str(script), "check", "--no-cache", "--format", "lines", "unstable.plant", "clean.plant"],
                            cwd=elsewhere, capture_output=True, text=True, timeout=300)
     assert check.returncode == 1 and check.stderr == ""
     assert check.stdout.strip().endswith("[zero-dynamics-unstable] (point rest)")

@@ -78,7 +78,7 @@ def _render(name: str, report: Report, color: bool = False) -> str:
 
 
 def test_registry_names_and_lookup() -> None:
-    assert list(FORMATS) == ["text", "concise", "json", "sarif"]
+    assert list(FORMATS) == ["text", "lines", "json", "sarif"]
     assert get_formatter("sarif") is FORMATS["sarif"]
     with pytest.raises(ValueError, match="unknown format 'xml'"):
         get_formatter("xml")
@@ -90,11 +90,11 @@ def test_output_is_deterministic(name: str) -> None:
     assert _render(name, _since_report()) == _render(name, _since_report())
 
 
-# -- concise ------------------------------------------------------------------------
+# -- lines --------------------------------------------------------------------------
 
 
-def test_concise_lines_exactly() -> None:
-    assert _render("concise", _report()).splitlines() == [
+def test_lines_format_lines_exactly() -> None:
+    assert _render("lines", _report()).splitlines() == [
         (
             "models/demo.plant: warning: eigenvalue 0 at rest [zero-dynamics-critical] (point rest)"
             " (waived: free integrator, reviewed)"
@@ -105,8 +105,8 @@ def test_concise_lines_exactly() -> None:
     ]
 
 
-def test_concise_under_since_marks_baseline_and_drops_fixed() -> None:
-    lines = _render("concise", _since_report()).splitlines()
+def test_lines_format_under_since_marks_baseline_and_drops_fixed() -> None:
+    lines = _render("lines", _since_report()).splitlines()
     assert len(lines) == 5
     assert lines[1] == "models/demo.plant:2:7: warning: param k is unused [unused-name] (introduced)"
     assert lines[3].endswith("[non-smooth] (introduced)")
@@ -114,16 +114,16 @@ def test_concise_under_since_marks_baseline_and_drops_fixed() -> None:
     assert not any("missing-rate" in line for line in lines)
 
 
-def test_concise_keeps_one_finding_per_line_and_no_escapes() -> None:
+def test_lines_format_keeps_one_finding_per_line_and_no_escapes() -> None:
     nasty = Finding("syntax", Severity.ERROR, "bad\nbyte \x1b[31m here\r", Span(1, 1, 1, 2))
     report = Report([FileReport("x.plant", None, [nasty])], "0.1.0")
-    assert _render("concise", report) == "x.plant:1:1: error: bad byte ?[31m here [syntax]\n"
+    assert _render("lines", report) == "x.plant:1:1: error: bad byte ?[31m here [syntax]\n"
 
 
 def test_baseline_missing_under_since_is_a_caller_bug() -> None:
     report = _report(since="main")
     with pytest.raises(ValueError, match="baseline"):
-        _render("concise", report)
+        _render("lines", report)
 
 
 # -- json -----------------------------------------------------------------------------

@@ -283,9 +283,9 @@ def test_every_format_says_which_is_which(scenario: Scenario) -> None:
     text = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--cache-dir", str(scenario.cache), *paths)
     assert text.code == 1
     assert "new since base" in text.stdout and "known" in text.stdout and "fixed" in text.stdout
-    concise = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "concise",
-                        "--cache-dir", str(scenario.cache), *paths)
-    lines = concise.stdout.splitlines()
+    lines = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "lines",
+                      "--cache-dir", str(scenario.cache), *paths)
+    lines = lines.stdout.splitlines()
     assert any(line.startswith("plants/tail.plant:") and "(introduced)" in line for line in lines)
     assert any(line.startswith("plants/shaker.plant:") and "(known)" in line for line in lines)
     sarif = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "sarif",
@@ -297,7 +297,7 @@ def test_every_format_says_which_is_which(scenario: Scenario) -> None:
 
 def test_gate_leaves_the_work_tree_untouched(scenario: Scenario) -> None:
     assert scenario.status_before == scenario.status_after == ""
-    assert not (scenario.repo / ".plantlint-cache").exists()
+    assert not (scenario.repo / ".plantlint").exists()
 
 
 # -- usage errors --------------------------------------------------------------------------
@@ -339,5 +339,5 @@ def test_model_deleted_since_ref_reports_its_findings_as_fixed(tmp_path: Path) -
     assert rules_by_state(gone) == [("zero-dynamics-unstable", "fixed")]
     assert gone["structure_changes"] == [{"what": "model", "before": "present", "after": "deleted"}]
     assert run.json()["summary"]["fixed"] == 1
-    concise = plantlint(repo, env, "check", "--since", "HEAD", "--format", "concise", "--no-cache", "models")
-    assert "models/gone.plant: note: structure changed since HEAD: model: present -> deleted" in concise.stdout
+    lines = plantlint(repo, env, "check", "--since", "HEAD", "--format", "lines", "--no-cache", "models")
+    assert "models/gone.plant: note: structure changed since HEAD: model: present -> deleted" in lines.stdout

@@ -47,7 +47,7 @@ def build_parser() -> argparse.ArgumentParser:
     check = sub.add_parser("check", help="check model files or folders", epilog=CAUTION,
                            description="Check .plant files (folders are searched for *.plant).")
     check.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: the configured root)")
-    check.add_argument("--format", choices=("text", "concise", "json", "sarif"), default="text",
+    check.add_argument("--format", choices=("text", "lines", "json", "sarif"), default="text",
                        help="report format (default: text)")
     check.add_argument("--output", metavar="FILE", help="write the report to FILE instead of standard output")
     check.add_argument("--only", metavar="IDS", help="comma-separated rule ids to report (all others are dropped)")
@@ -59,7 +59,7 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--jobs", type=int, metavar="N", help="models analysed in parallel (default: CPU count)")
     check.add_argument("--timeout", type=float, metavar="SECONDS", help="time budget per model (default: 120)")
     check.add_argument("--no-cache", action="store_true", help="neither read nor write the result cache")
-    check.add_argument("--cache-dir", metavar="DIR", help="cache folder (default: .plantlint-cache beside the configuration)")
+    check.add_argument("--cache-dir", metavar="DIR", help="cache folder (default: .plantlint/cache beside the configuration)")
     check.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
     check.add_argument("--color", choices=("auto", "always", "never"), default="auto",
                        help="colour in text output (default: auto; NO_COLOR is honoured)")
@@ -196,7 +196,7 @@ def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> in
             return _fail(f"{output}: cannot write: {exc.strerror}")
         if fmt in ("json", "sarif"):
             # keep the terminal informed when the report went to a file
-            summary = get_formatter("concise")
+            summary = get_formatter("lines")
             summary.render(report, sys.stdout, color=False)
     else:
         formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))

@@ -7,7 +7,7 @@
 #     fail level configured in plantlint.toml (fail-on = "error");
 #   * findings that disappeared are reported as "fixed".
 # The SARIF report (plantlint.sarif) is for the CI system's code-scanning upload; the
-# concise report goes to the job log, one line per finding (path:line:col: ...).
+# one-line report (--format lines) goes to the job log, one line per finding (path:line:col: ...).
 #
 # Environment:
 #   BASE_REF   git revision to compare with (default: origin/main). The CI checkout must
@@ -25,14 +25,14 @@ base_ref="${BASE_REF:-origin/main}"
 
 # `set -e` would stop the script at the first non-zero exit: capture the status instead.
 # (When the report goes to a file plantlint also prints a short summary; it is dropped
-# here because the concise run below writes the log.)
+# here because the --format lines run below writes the log.)
 status=0
 plantlint check --since "$base_ref" --format sarif --output plantlint.sarif models >/dev/null \
   || status=$?
 
 # Human-readable report for the log. The result cache makes this second run cheap.
 # Its exit status is ignored: the gate's verdict is the SARIF run's.
-plantlint check --since "$base_ref" --format concise models || true
+plantlint check --since "$base_ref" --format lines models || true
 
 case "$status" in
   0) echo "plantlint: no new findings at or above the fail level" ;;

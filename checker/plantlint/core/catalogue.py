@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import difflib
 import sys
+import textwrap
 from collections.abc import Iterator
 from dataclasses import dataclass
 from functools import cache
@@ -17,8 +18,6 @@ from pathlib import Path
 from typing import Any
 
 from rich.console import Console, Group
-from rich.padding import Padding
-from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
@@ -225,17 +224,45 @@ def _rules_table(catalogue: Catalogue) -> Table:
     return table
 
 
+#: Section headings of one rule's page, in the order they are shown.
+PAGE_SECTIONS: tuple[str, ...] = ("What it protects", "When it fires", "A model that fails it",
+                                  "A model that passes it", "Sources")
+
+
 def _rule_page(rule: Rule) -> Group:
-    heading = Text.assemble((rule.id, "bold"), "  ", _severity_text(rule.severity), f"  ({rule.family} family)")
+    """One rule for a control engineer: what the check protects in a design first, then
+    the condition it reports, then two model excerpts (one failing, one passing), then
+    where the theory comes from."""
+    protects, fires, fails, passes, sources = PAGE_SECTIONS
+
+    def heading(text: str) -> Text:
+        return Text(text, style="bold underline")
+
+    def model(text: str) -> Text:
+        lines = text.rstrip("\n").split("\n")
+        width = len(str(len(lines)))
+        return Text("\n".join(f"    {n:>{width}} | {line}" for n, line in enumerate(lines, start=1)))
+
+    def prose(text: str) -> Text:
+        return Text("\n".join(textwrap.wrap(text, 84, initial_indent="    ", subsequent_indent="    ")))
+
     parts: list[Any] = [
-        heading,
-        Text(rule.title, style="italic"),
+        Text.assemble((rule.id, "bold"), f"  {rule.family} check, reported as ", _severity_text(rule.severity),
+                      " by default"),
         Text(""),
-        Padding(Text(rule.rationale), (0, 0, 0, 2)),
+        heading(protects),
+        prose(rule.rationale),
         Text(""),
-        Panel(Text(rule.bad.rstrip("\n")), title="triggers it", title_align="left", expand=False),
-        Panel(Text(rule.good.rstrip("\n")), title="fixed", title_align="left", expand=False),
-        Text("References", style="bold"),
+        heading(fires),
+        prose(rule.title + "."),
+        Text(""),
+        heading(fails),
+        model(rule.bad),
+        Text(""),
+        heading(passes),
+        model(rule.good),
+        Text(""),
+        heading(sources),
     ]
-    parts.extend(Text(f"  - {ref}") for ref in rule.references)
+    parts.extend(prose(f"[{n}] {ref}") for n, ref in enumerate(rule.references, start=1))
     return Group(*parts)

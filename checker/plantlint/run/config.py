@@ -39,7 +39,7 @@ class Config:
     timeout: float = 120.0  # seconds per model
     envelope_seconds: float = 5.0
     envelope_boxes: int = 20000
-    cache_dir: str = ".plantlint-cache"
+    cache_dir: str = ".plantlint/cache"  # under the project folder .plantlint/
     cache: bool = True
     root: Path = field(default_factory=Path.cwd)  # folder of the config file (or cwd)
     source: Path | None = None  # the file the settings came from

@@ -163,7 +163,7 @@ class Cache:
         target = self._file(key)
         try:
             target.parent.mkdir(parents=True, exist_ok=True)
-            marker = self.folder / ".gitignore"
+            marker = ignore_marker(self.folder)
             if not marker.exists():
                 marker.write_text("# plantlint's cache; safe to delete\n*\n", encoding="utf-8")
             tmp = target.with_suffix(f".{os.getpid()}.tmp")
@@ -184,6 +184,15 @@ def _worker(conn: Connection, data: bytes, config: Any) -> None:
     except (ImportError, ValueError, OSError):
         pass
     from plantlint.run.pipeline import analyse_bytes
+
+PROJECT_FOLDER = ".plantlint"  # everything plantlint writes lives under this one folder
+
+
+def ignore_marker(folder: Path) -> Path:
+    """Where the self-ignoring ``.gitignore`` goes: in the project folder ``.plantlint/``
+    when the cache lives inside it (the default ``.plantlint/cache``), else in the cache folder."""
+    return (folder.parent if folder.parent.name == PROJECT_FOLDER else folder) / ".gitignore"
+
 
     try:
         raw = analyse_bytes(data, config, progress=lambda s: conn.send(("stage", s)))

@@ -30,8 +30,8 @@ def finding_line(path: str, finding: Finding, baseline: str | None = None) -> st
     return line
 
 
-class ConciseFormatter:
-    name = "concise"
+class LinesFormatter:
+    name = "lines"
     description = "one line per finding: path:line:col: severity: message [rule-id]"
 
     def render(self, report: Report, stream: TextIO, *, color: bool = False) -> None:

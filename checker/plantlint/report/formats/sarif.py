@@ -12,7 +12,7 @@ import re
 from typing import Any, TextIO
 from urllib.parse import quote
 
-from plantlint.core.catalogue import Catalogue, Rule, load_catalogue
+from plantlint.core.catalogue import PAGE_SECTIONS, Catalogue, Rule, load_catalogue
 from plantlint.core.findings import Finding, Report, Span
 from plantlint.report.formats.base import baseline_of, findings_in_order
 
@@ -46,17 +46,20 @@ def _pascal(rule_id: str) -> str:
 
 def rule_descriptor(rule: Rule) -> dict[str, Any]:
     """A reportingDescriptor built from one catalogue entry."""
-    refs = "\n".join(f"- {ref}" for ref in rule.references)
+    protects, fires, fails, passes, sources = PAGE_SECTIONS
+    refs = "\n".join(f"[{n}] {ref}" for n, ref in enumerate(rule.references, start=1))
     return {
         "id": rule.id,
         "name": _pascal(rule.id),
         "shortDescription": {"text": rule.title},
         "fullDescription": {"text": rule.rationale},
         "help": {
-            "text": f"{rule.rationale}\n\nFixed example:\n{rule.good}\nReferences:\n{refs}",
+            "text": f"{protects}: {rule.rationale}\n\n{fires}: {rule.title}.\n\n{passes}:\n{rule.good}\n"
+                    f"{sources}:\n{refs}",
             "markdown": (
-                f"{rule.rationale}\n\nTriggers it:\n\n```\n{rule.bad}```\n\n"
-                f"Fixed:\n\n```\n{rule.good}```\n\nReferences:\n\n{refs}"
+                f"**{protects}.** {rule.rationale}\n\n**{fires}.** {rule.title}.\n\n"
+                f"**{fails}:**\n\n```\n{rule.bad}```\n\n**{passes}:**\n\n```\n{rule.good}```\n\n"
+                f"**{sources}:**\n\n{refs}"
             ),
         },
         "defaultConfiguration": {"level": rule.severity.value},

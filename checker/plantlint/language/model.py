@@ -18,7 +18,7 @@ import sympy as sp
 from plantlint.core.findings import Finding, Severity, Span, Waiver
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
-from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Expression, Parsed, Statement, symbol
+from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Expression, Parsed, Statement, near_miss, symbol
 
 CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
 QUANTITY_KINDS = ("const", "param", "state", "input", "let", "output")
@@ -229,8 +229,9 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
         target = scope.declared.get(name)
         if target is None or target.kind != "state":
             what = f"the {target.kind} '{name}'" if target is not None else f"'{name}', which is not declared"
+            close = _did_you_mean(scope, name, ("state",)) if target is None else None
             scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, f"rate {name}",
-                      hint=f"declare `state {name}` or remove this rate")
+                      hint=close or f"declare `state {name}` or remove this rate")
             _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"rate {name}")
             continue
         if name in rate_stmts:
@@ -326,7 +327,8 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
     for ref in expr.names:
         target = scope.declared.get(ref.name)
         if target is None:
-            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in {st.kind} {st.name}")
+            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in {st.kind} {st.name}",
+                      hint=_did_you_mean(scope, ref.name, ("const", "param")))
             ok = False
         elif target.kind not in ("const", "param") or target.span.line > st.span.line or target is st:
             why = "is declared later" if target.kind in ("const", "param") else f"is a {target.kind}"
@@ -361,7 +363,8 @@ def _range_value(scope: _Scope, st: Statement, expr: Expression) -> sp.Expr | No
     for ref in expr.names:
         target = scope.declared.get(ref.name)
         if target is None:
-            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in range {st.name}")
+            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in range {st.name}",
+                      hint=_did_you_mean(scope, ref.name, ("const", "param")))
             return None
         if target.kind not in ("const", "param"):
             scope.add("bad-range", f"range of '{st.name}' uses the {target.kind} '{ref.name}'; ranges must be constant",
@@ -385,7 +388,7 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
         target = scope.declared.get(ref.name)
         if target is None:
             message = f"unknown name '{ref.name}'"
-            hint = None
+            hint = _did_you_mean(scope, ref.name, ("const", "param", "state", "input", "let"))
         elif target.kind == "let":
             message = f"'{ref.name}' is defined later (line {target.span.line}); define it before use"
             hint = None
@@ -474,7 +477,8 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inpu
             if kind is None or kind.kind not in ("state", "input"):
                 what = f"a {kind.kind}" if kind is not None else "not declared"
                 scope.add("unknown-name", f"point '{name}' sets '{target.name}', which is {what}; points set states and inputs",
-                          target.span, f"point {name} sets {target.name}", point=name)
+                          target.span, f"point {name} sets {target.name}", point=name,
+                          hint=_did_you_mean(scope, target.name, ("state", "input")))
                 continue
             if target.name in values:
                 scope.add("duplicate-name", f"point '{name}' sets '{target.name}' twice", target.span,
@@ -516,7 +520,8 @@ def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp
             what = f"the {decl.kind} '{ref.name}'" if decl is not None else f"unknown name '{ref.name}'"
         scope.add("unknown-name", f"point '{point}' value uses {what}; point values must be constant",
                   ref.span, f"point {point} value {target}", point=point,
-                  hint="a point value may use numbers, constants, parameters and definitions built from them")
+                  hint=(_did_you_mean(scope, ref.name, ("const", "param", "let")) if decl is None else None)
+                  or "a point value may use numbers, constants, parameters and definitions built from them")
         return None
     value = expr.value.xreplace(scope.lets).xreplace(scope.constants).xreplace(_nominals(scope))
     if value.has(sp.zoo, sp.nan) or value.free_symbols:
@@ -538,8 +543,9 @@ def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outp
         assert claim is not None
         ok = True
         if claim.kind not in CLAIMS:
+            close = near_miss(claim.kind, CLAIMS)
             scope.add("unknown-reference", f"unknown claim '{claim.kind}'", claim.span, f"claim {claim.kind}",
-                      hint="claims: " + ", ".join(CLAIMS))
+                      hint=f"did you mean `{close}`?" if close else "claims: " + ", ".join(CLAIMS))
             continue
         if (claim.output is not None) != (claim.kind == "relative_degree"):
             form = "relative_degree(OUTPUT) = N" if claim.kind == "relative_degree" else claim.kind
@@ -550,7 +556,8 @@ def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outp
             if claim.output.name not in outputs:
                 scope.add("unknown-reference", f"expect names '{claim.output.name}', which is not an output",
                           claim.output.span, f"expect output {claim.output.name}",
-                          hint=("outputs: " + ", ".join(outputs)) if outputs else "the model declares no output")
+                          hint=_suggest(claim.output.name, outputs) or (("outputs: " + ", ".join(outputs)) if outputs
+                                                                        else "the model declares no output"))
                 ok = False
             v = claim.value.value if claim.value else None
             if v is None or not (v.is_Integer and v > 0):
@@ -562,7 +569,7 @@ def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outp
         at = st.at_point
         if at is not None and at.name not in point_names:
             scope.add("unknown-reference", f"expect names point '{at.name}', which is not declared", at.span,
-                      f"expect point {at.name}", hint=_choices("points", point_names))
+                      f"expect point {at.name}", hint=_suggest(at.name, point_names) or _choices("points", point_names))
             ok = False
         if ok:
             decl = ClaimDecl(claim.kind, st.span, claim.output.name if claim.output else None, value,
@@ -575,12 +582,12 @@ def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outp
         assert rule is not None
         if rule.name not in catalogue:
             scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, f"waive {rule.name}",
-                      hint="`plantlint rules` lists the rule ids")
+                      hint=_suggest(rule.name, catalogue.ids()) or "`plantlint rules` lists the rule ids")
             continue
         at = st.at_point
         if at is not None and at.name not in point_names:
             scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,
-                      f"waive point {at.name}", hint=_choices("points", point_names))
+                      f"waive point {at.name}", hint=_suggest(at.name, point_names) or _choices("points", point_names))
             continue
         reason = (st.doc or "").strip()
         if not reason:
@@ -588,6 +595,21 @@ def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outp
             continue
         waivers.append(Waiver(rule.name, at.name if at else None, reason, st.span))
     return claims, waivers
+
+
+def _suggest(name: str, candidates: "list[str] | set[str] | tuple[str, ...]") -> str | None:
+    close = near_miss(name, set(candidates))
+    return f"did you mean `{close}`?" if close else None
+
+
+def _did_you_mean(scope: _Scope, name: str, kinds: tuple[str, ...]) -> str | None:
+    """``did you mean `z` (the state)?`` for a near-miss of a declared name of these kinds."""
+    pool = {n: st.kind for n, st in scope.declared.items() if st.kind in kinds}
+    close = near_miss(name, set(pool))
+    if close is None:
+        return None
+    kind = {"const": "constant", "param": "parameter", "let": "definition"}.get(pool[close], pool[close])
+    return f"did you mean `{close}` (the {kind})?"
 
 
 def _choices(what: str, names: set[str]) -> str:

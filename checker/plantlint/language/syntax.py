@@ -12,8 +12,9 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass, field
 from fractions import Fraction
+from difflib import get_close_matches
 from functools import lru_cache
-from typing import Callable
+from typing import Callable, Sequence
 
 import sympy as sp
 from lark import Lark, Token, Tree
@@ -284,15 +285,11 @@ _EXPECTED_WORDS = {
     "STRING": 'a "quoted" text',
     "UNIT": "a [unit]",
     "RULE_ID": "a rule id",
-    "EQUAL": "'='",
-    "COLON": "':'",
-    "COMMA": "','",
-    "LPAR": "'('",
-    "RPAR": "')'",
-    "DOTDOT": "'..'",
-    "IN": "'in'",
-    "AT": "'at'",
+    "$END": "the end of the file",
 }
+#: Statements start with these keywords (the order is the usual order in a file).
+STATEMENT_KEYWORDS = ("plant", "const", "param", "state", "input", "let", "rate", "output", "point",
+                      "expect", "waive")
 
 
 def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
@@ -306,52 +303,148 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
             return _syntax("unterminated unit: a closing ']' is missing on this line", Span.point(line, column), anchor="unterminated unit")
         shown = repr(ch) if ch.isprintable() else f"U+{ord(ch):04X}" if ch else "end of file"
         return _syntax(f"unexpected character {shown}", Span.point(line, column), anchor=f"unexpected character {shown}")
-    if isinstance(exc, UnexpectedEOF):
-        lines = text.splitlines() or [""]
-        last = len(lines)
-        return _syntax(
-            "file ends in the middle of a statement",
-            Span.point(last, len(lines[-1]) + 1),
-            hint="expected " + _expected(exc.expected),
-            anchor="unexpected end",
-        )
-    if isinstance(exc, UnexpectedToken):
-        tok = exc.token
-        if tok.type == "$END":
-            lines = text.splitlines() or [""]
-            return _syntax(
-                "file ends in the middle of a statement",
-                Span.point(len(lines), len(lines[-1]) + 1),
-                hint="expected " + _expected(exc.expected),
-                anchor="unexpected end",
-            )
+    if isinstance(exc, (UnexpectedEOF, UnexpectedToken)):
+        tok = getattr(exc, "token", None)
+        consumed = _consumed_backwards(exc)
+        if tok is None or tok.type == "$END":
+            last = consumed[0] if consumed else None
+            where = _after(last) if last is not None else Span.point(1, 1)
+            after = f" after '{_short(str(last))}'" if last is not None else ""
+            return _syntax(f"file ends in the middle of a statement{after}", where,
+                           hint="expected " + _expected(_accepted_after(text, last, exc.expected)),
+                           anchor="unexpected end")
+        broken = _incomplete_before_keyword(tok, consumed, text)
+        if broken is not None:
+            keyword, last = broken
+            message = f"incomplete statement: it stops after '{_short(str(last))}'"
+            return _syntax(message + f" (the next line starts a new `{keyword}` statement)", _after(last),
+                           hint="expected " + _expected(_accepted_after(text, last, exc.expected)),
+                           anchor=f"incomplete statement before {keyword}")
         span = _span(tok)
         value = str(tok)
+        expected_keywords = [k for k in STATEMENT_KEYWORDS if k.upper() in exc.expected]
+        if tok.type in ("NAME", "RULE_ID") and value not in RESERVED and expected_keywords \
+                and (_starts_line(tok, text) or not _expects_operand(exc.expected)):
+            message = f"unknown statement '{_short(value)}'; a statement starts with a keyword"
+            close = near_miss(value, STATEMENT_KEYWORDS)
+            hint = f"did you mean `{close}`?" if close else "keywords: " + ", ".join(STATEMENT_KEYWORDS)
+            return _syntax(message, span, hint=hint, anchor=f"unknown statement {value}")
         if tok.type == "NAME" and value in RESERVED:
             message = f"'{value}' is reserved and cannot be used here"
-        elif tok.type.isupper() and tok.type not in _EXPECTED_WORDS and value in KEYWORDS:
+        elif value in KEYWORDS:
             message = f"unexpected keyword '{value}' (the previous statement is incomplete)"
         else:
-            shown = value if len(value) <= 40 else value[:37] + "..."
-            message = f"unexpected '{shown}'"
+            message = f"unexpected '{_short(value)}'"
         return _syntax(message, span, hint="expected " + _expected(exc.expected), anchor=message)
     return _syntax("cannot read this statement", Span.point(line, column), anchor="syntax")
 
 
-def _expected(names: set[str] | frozenset[str]) -> str:
-    words = sorted({_EXPECTED_WORDS.get(n, n.lower() if not n.isupper() else _keyword(n)) for n in names})
+def _short(text: str, limit: int = 40) -> str:
+    """A quoted literal cut to a readable length (``2^1000^1000`` has 3,001 digits)."""
+    if len(text) <= limit:
+        return text
+    what = "digits" if text.lstrip("-").isdigit() else "characters"
+    return f"{text[: limit - 16]}... ({len(text)} {what})"
+
+
+def near_miss(name: str, candidates: "Sequence[str] | set[str] | frozenset[str]") -> str | None:
+    """The candidate a misspelt ``name`` most likely means (same letters in another case
+    first, then the closest spelling), or None."""
+    pool = sorted(set(candidates) - {name})
+    same = [c for c in pool if c.lower() == name.lower()]
+    if same:
+        return same[0]
+    close = get_close_matches(name, pool, n=1, cutoff=0.75 if len(name) <= 3 else 0.6)
+    return close[0] if close else None
+
+
+def _after(tok: Token) -> Span:
+    """A zero-width place just after a token (where something is missing)."""
+    line = tok.end_line or tok.line or 1
+    column = tok.end_column or ((tok.column or 1) + len(tok))
+    return Span.point(line, column)
+
+
+def _consumed_backwards(exc: UnexpectedInput, limit: int = 64) -> list[Token]:
+    """The tokens the parser had accepted before the error, newest first (at most ``limit``)."""
+    parser_ = getattr(exc, "interactive_parser", None)
+    stack = list(getattr(getattr(parser_, "parser_state", None), "value_stack", None) or [])
+    out: list[Token] = []
+    while stack and len(out) < limit:
+        item = stack.pop()
+        if isinstance(item, Token):
+            out.append(item)
+        elif isinstance(item, Tree):
+            stack.extend(c for c in item.children if c is not None)
+    return out
+
+
+def _starts_line(tok: Token, text: str) -> bool:
+    start = tok.start_pos if tok.start_pos is not None else 0
+    return text[text.rfind("\n", 0, start) + 1:start].strip() == ""
+
+
+def _incomplete_before_keyword(tok: Token, consumed: list[Token], text: str) -> tuple[str, Token] | None:
+    """(keyword, last token of the broken statement) when the error comes from a statement
+    keyword at the start of a line, read as part of an unfinished expression on the lines
+    before it (``rate x = v +`` followed by ``rate v = ...``)."""
+    for i, candidate in enumerate([tok, *consumed]):
+        value = str(candidate)
+        keyword_typed = candidate.type == value.upper() and value in STATEMENT_KEYWORDS
+        if value in STATEMENT_KEYWORDS and _starts_line(candidate, text) and (i == 0 or not keyword_typed):
+            before = consumed[i] if i < len(consumed) else None
+            return (value, before) if before is not None else None
+        if keyword_typed:
+            return None  # reached the start of the statement the parser was reading
+    return None
+
+
+def _expects_operand(expected: "set[str] | frozenset[str]") -> bool:
+    return bool({"PLUS", "STAR", "EQUAL", "COMMA", "RPAR", "DOTDOT"} & set(expected))
+
+
+def _accepted_after(text: str, last: Token | None, fallback: "set[str] | frozenset[str]") -> "set[str] | frozenset[str]":
+    """What the grammar accepts right after ``last`` (the parser is run again on the text up
+    to there; cheap, and only after an error)."""
+    if last is None or last.end_pos is None:
+        return fallback
+    try:
+        interactive = parser().parse_interactive(text[: last.end_pos])
+        interactive.exhaust_lexer()
+        return interactive.accepts() or fallback
+    except Exception:  # noqa: BLE001 - only a hint is at stake; the finding stands without it
+        return fallback
+
+
+def _expected(names: "set[str] | frozenset[str]") -> str:
+    words = sorted({_word(n) for n in names} - {""})
     if len(words) > 6:
         words = words[:6] + ["..."]
     return ", ".join(words) if words else "something else"
 
 
-def _keyword(terminal: str) -> str:
-    table = {
-        "PLUS": "'+'", "MINUS": "'-'", "STAR": "'*'", "SLASH": "'/'", "CIRCUMFLEX": "'^'",
-    }
-    if terminal in table:
-        return table[terminal]
-    return f"'{terminal.lower()}'" if terminal.lower() in KEYWORDS else terminal.lower()
+@lru_cache(maxsize=1)
+def _literal_terminals() -> dict[str, str]:
+    """Terminal name -> the text it stands for, for the grammar's fixed tokens ('+', 'state')."""
+    from lark.lexer import PatternStr
+
+    out = {}
+    for terminal in parser().terminals:
+        if isinstance(terminal.pattern, PatternStr):
+            out[terminal.name] = terminal.pattern.value
+        elif terminal.name == "DOTDOT":
+            out[terminal.name] = ".."
+    return out
+
+
+def _word(terminal: str) -> str:
+    """A grammar terminal in words a model author reads (never an internal name)."""
+    if terminal in _EXPECTED_WORDS:
+        return _EXPECTED_WORDS[terminal]
+    literal = _literal_terminals().get(terminal)
+    if literal is not None:
+        return f"'{literal}'"
+    return ""  # an internal terminal: left out rather than shown
 
 
 class _Builder:
@@ -462,7 +555,7 @@ class _Builder:
     def _leaf(self, tok: Token, names: list[NameRef]) -> sp.Expr:
         if tok.type == "NUMBER":
             return _number(tok)
-        raise ParseProblem(_syntax(f"unexpected '{tok}'", _span(tok)))
+        raise ParseProblem(_syntax(f"unexpected '{_short(str(tok))}'", _span(tok)))
 
     def _combine(self, node: Tree, values: dict[int, sp.Expr], names: list[NameRef], calls: list[CallRef]) -> sp.Expr:
         kind = node.data
@@ -485,9 +578,11 @@ class _Builder:
             calls.append(CallRef(fname, span))
             entry = FUNCTIONS.get(fname)
             if entry is None:
+                close = near_miss(fname, FUNCTIONS)
                 raise ParseProblem(
                     Finding("unknown-name", Severity.ERROR, f"unknown function '{fname}'", _span(kids[0]),
-                            hint="functions: " + ", ".join(sorted(FUNCTIONS)), anchor=f"function {fname}")
+                            hint=f"did you mean `{close}`?" if close else "functions: " + ", ".join(sorted(FUNCTIONS)),
+                            anchor=f"function {fname}")
                 )
             arity, fn = entry
             if len(args) != arity:
@@ -548,7 +643,8 @@ def _power(base: sp.Expr, exponent: sp.Expr, span: Span) -> sp.Expr:
         if exponent.is_Rational:
             big = max(abs(int(exponent.p)), abs(int(exponent.q)))
             if big > MAX_EXPONENT:
-                raise ParseProblem(_syntax(f"exponent {exponent} is beyond the supported range (|p|, |q| <= {MAX_EXPONENT})", span, anchor="exponent range"))
+                raise ParseProblem(_syntax(f"exponent {_short(str(exponent))} is beyond the supported range "
+                                           f"(|p|, |q| <= {MAX_EXPONENT})", span, anchor="exponent range"))
         if base.is_Number and base.is_Rational:
             bits = max(abs(int(base.p)), abs(int(base.q)), 1).bit_length()
             if bits * abs(int(exponent.p)) > 100_000:

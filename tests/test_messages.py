@@ -1,0 +1,96 @@
+"""Messages a model author reads: near-miss suggestions, where an incomplete
+statement is reported, no internal parser names, long literals cut. Models are
+invented."""
+
+from __future__ import annotations
+
+import re
+
+import pytest
+
+from plantlint.language.syntax import parse_text, parser
+from plantlint.run.pipeline import read_model
+
+GOOD = """plant lag "first-order lag (invented)"
+param k = 2 in 1 .. 3
+state z [m] in -1 .. 1
+input u in -1 .. 1
+let e = -k*z
+rate z = e + (u + 1)*sin(z + 1)
+output y = z
+point rest: z = 0
+expect relative_degree(y) = 1 at rest
+waive unused-name "demo"
+"""
+
+
+def findings(text: str):  # type: ignore[no-untyped-def]
+    return read_model(text.encode())[1]
+
+
+def test_near_miss_name_gets_a_suggestion() -> None:
+    (f,) = [f for f in findings(GOOD.replace("rate z = e", "rate z = Z + e")) if f.rule == "unknown-name"]
+    assert f.message == "unknown name 'Z'" and f.hint == "did you mean `z` (the state)?"
+    (g,) = [f for f in findings(GOOD.replace("rest: z = 0", "rest: z = 0, U = 0")) if f.rule == "unknown-name"]
+    assert g.hint == "did you mean `u` (the input)?"
+    (h,) = findings(GOOD.replace("sin(z + 1)", "sine(z + 1)"))
+    assert h.hint == "did you mean `sin`?"
+    (c,) = findings(GOOD.replace("expect relative_degree(y) = 1 at rest", "expect regulr"))
+    assert c.rule == "unknown-reference" and c.hint == "did you mean `regular`?"
+    (w,) = findings(GOOD.replace("unused-name", "unused-nam"))
+    assert w.hint == "did you mean `unused-name`?"
+    # nothing close: no guess
+    (far,) = [f for f in findings(GOOD.replace("rate z = e", "rate z = qqq + e")) if f.rule == "unknown-name"]
+    assert far.hint is None
+
+
+def test_misspelt_keyword_gets_a_suggestion() -> None:
+    (f,) = findings(GOOD.replace("state z", "stat z"))
+    assert f.rule == "syntax" and (f.span.line, f.span.column) == (3, 1)
+    assert "unknown statement 'stat'" in f.message and f.hint == "did you mean `state`?"
+    (g,) = findings(GOOD.replace("rate z", "rat z"))  # after a complete statement, at a line start
+    assert "unknown statement 'rat'" in g.message and g.hint == "did you mean `rate`?"
+
+
+def test_incomplete_expression_is_reported_where_it_ends() -> None:
+    text = "plant p\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput u\nrate x = v +\nrate v = u\noutput y = x\n"
+    (f,) = findings(text)
+    assert (f.span.line, f.span.column) == (5, 13)  # just after the '+', not at the next line
+    assert "stops after '+'" in f.message and "`rate`" in f.message
+    assert f.hint == "expected '(', '+', '-', a name, a number"
+    # the same with a comment and blank lines in between, and a missing ')'
+    (g,) = findings(text.replace("v +\n", "v *   # damping\n\n"))
+    assert (g.span.line, g.span.column) == (5, 13)
+    (h,) = findings("plant p\nstate x in -1 .. 1\ninput u\nrate x = (x + u\noutput y = x\n")
+    assert (h.span.line, h.span.column) == (4, 16) and "')'" in (h.hint or "")
+    # at the end of the file: after the last token, not on a trailing comment line
+    (e,) = findings("plant p\nstate x in -1 .. 1\ninput u\nrate x = x +\n# trailing\n\n")
+    assert (e.span.line, e.span.column) == (4, 13) and "ends in the middle" in e.message
+
+
+INTERNAL = re.compile(r"\$END|\$end|__ANON|\b(" + "|".join(t.name for t in parser().terminals) + r")\b")
+
+
+def _cuts(text: str) -> list[str]:
+    """The model cut after every token, and with every token left out (broken files)."""
+    spans = [m.span() for m in re.finditer(r'"[^"]*"|\[[^\]]*\]|[A-Za-z_][A-Za-z0-9_-]*|\d+(?:\.\d+)?|\.\.|\S', text)]
+    return [text[:end] for _, end in spans] + [text[:start] + text[end:] for start, end in spans]
+
+
+@pytest.mark.parametrize("half", [0, 1])
+def test_no_internal_parser_names_reach_users(half: int) -> None:
+    cuts = _cuts(GOOD)
+    cuts = cuts[half::2]
+    seen = 0
+    for text in cuts:
+        for f in parse_text(text).findings:
+            seen += 1
+            shown = f"{f.message} {f.hint or ''}"
+            assert not INTERNAL.search(shown), (text, shown)
+    assert seen > 50  # the cuts really are broken files
+
+
+def test_huge_literal_is_cut_in_messages() -> None:
+    (f,) = findings("plant p\nstate x in -1 .. 1\ninput u\nrate x = 2^1000^1000 + u\noutput y = x\n")
+    assert f.rule == "syntax" and len(f.message) < 120
+    assert "(3001 digits)" in f.message  # 1000^1000 = 10^3000 has 3,001 digits

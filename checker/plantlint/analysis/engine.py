@@ -2,7 +2,8 @@
 
 Stages: structure (relative degrees, decoupling matrix), envelope (certified
 regularity and model singularities over the box), points (equilibria and the
-structure at each), zero dynamics (and the normal form), distributions
+structure at each), zero dynamics (and the normal form), linearisation (A, B, C,
+poles, ranks, zeros), distributions
 (controllability and involutivity), claims (`expect` lines). Each stage reports
 its completion, so a stopped run can say what was and was not checked.
 """
@@ -22,6 +23,7 @@ from plantlint.analysis.distributions import (
     distributions_json,
 )
 from plantlint.analysis.equilibria import Equilibrium, equilibrium_json, solve_point
+from plantlint.analysis.linearisation import Linearisation, linearisation_json, linearise_at
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.lie import Kernel
 from plantlint.language.model import ClaimDecl, Model
@@ -49,6 +51,7 @@ class PointAnalysis:
     zero_dynamics: ZeroDynamics | None = None
     normal_form: NormalForm | None = None
     distributions: PointDistributions | None = None
+    linearisation: Linearisation | None = None
 
 
 @dataclass
@@ -77,6 +80,8 @@ class Analysis:
             entry["zero_dynamics"] = zero_dynamics_json(zd) if zd is not None and zd.verdict != "undefined" else None
             if pa.normal_form is not None:
                 entry["normal_form"] = normal_form_json(pa.normal_form)
+            entry["linearisation"] = (linearisation_json(pa.linearisation, len(m.outputs), len(m.inputs))
+                                      if pa.linearisation is not None else None)
             if pa.distributions is not None:
                 entry.update(distributions_json(pa.distributions))
             points[pa.name] = entry
@@ -144,6 +149,12 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
         elif pa.zero_dynamics.verdict != "undefined" and sum(ints) < plant.n:
             pa.normal_form = normal_form_at(kernel, ints, pa.equilibrium.values)
     stage("zero dynamics")
+
+    for pa in result.points:  # A, B, C at each equilibrium, cross-checked with the zero dynamics
+        if pa.equilibrium.equilibrium and all(s in pa.equilibrium.values for s in plant.states):
+            pa.linearisation = linearise_at(kernel, pa.equilibrium, pa.zero_dynamics)
+            result.findings.extend(pa.linearisation.findings)
+    stage("linearisation")
 
     if plant.m >= 1:
         by_outputs = outputs_linearize(structure, plant.n, plant.m)

@@ -24,6 +24,7 @@ from plantlint.run.policy import apply_policy
 from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.analysis.structure import lie_name
 from plantlint.analysis.zero_dynamics import show_eigenvalues
+from plantlint.analysis.linearisation import Linearisation, ModeGroup
 
 #: Expressions longer than this (characters) are shown with sub-expressions named.
 LONG = 60
@@ -134,6 +135,9 @@ def _point(a: Analysis, pa: PointAnalysis) -> dict[str, Any]:
                                 "eigenvalues": show_eigenvalues(zd.eigenvalues) if zd.eigenvalues else "",
                                 "exact": zd.exact, "characteristic_polynomial": zd.characteristic_polynomial,
                                 "reason": zd.reason}
+    lin = pa.linearisation
+    if lin is not None:
+        out["linearisation"] = _linearisation(lin)
     pd = pa.distributions
     if pd is not None:
         out["distributions"] = {"ranks": list(pd.ranks), "controllability_rank": pd.controllability_rank,
@@ -144,6 +148,43 @@ def _point(a: Analysis, pa: PointAnalysis) -> dict[str, Any]:
                                 if pd.linearizing_output is not None else None,
                                 "notes": list(pd.notes)}
     return out
+
+
+def _linearisation(lin: Linearisation) -> dict[str, Any]:
+    """The linearisation for display: exact entries where the data are rational."""
+
+    def matrix(rows: tuple[tuple[sp.Expr, ...], ...]) -> list[list[str]]:
+        return [[show_number(e, mark_inexact=True) for e in row] for row in rows]
+
+    def groups(gs: tuple[ModeGroup, ...]) -> list[dict[str, Any]]:
+        return [{"modes": show_repeated(g.eigenvalues), "polynomial": g.polynomial,
+                 "directions": list(g.directions)} for g in gs]
+
+    return {
+        "status": lin.status, "reason": lin.reason, "exact": lin.exact, "parameters": "nominal",
+        "A": matrix(lin.A), "B": matrix(lin.B), "C": matrix(lin.C), "D": "0",
+        "poles": show_repeated(lin.poles), "characteristic_polynomial": lin.characteristic_polynomial,
+        "controllability_rank": lin.controllability_rank, "uncontrollable": groups(lin.uncontrollable),
+        "observability_rank": lin.observability_rank, "unobservable": groups(lin.unobservable),
+        "transmission_zeros": show_repeated(lin.zeros) if lin.zeros is not None else None,
+        "zero_polynomial": lin.zero_polynomial, "zeros_note": lin.zeros_note, "tolerance": lin.tolerance,
+        "cross_check": {"status": lin.cross_check.status, "detail": lin.cross_check.detail},
+    }
+
+
+def show_repeated(values: tuple[complex, ...]) -> str:
+    """Eigenvalues with repeated ones counted: ``0 (4 times), -1``."""
+    distinct: list[tuple[complex, int]] = []
+    for z in values:
+        if distinct and distinct[-1][0] == z:
+            distinct[-1] = (z, distinct[-1][1] + 1)
+        else:
+            distinct.append((z, 1))
+    shown = []
+    for z, count in distinct:
+        text = show_eigenvalues([z])
+        shown.append(f"{text} ({count} times)" if count > 1 else text)
+    return show_eigenvalues([z for z, _ in distinct]) if all(c == 1 for _, c in distinct) else ", ".join(shown)
 
 
 # -- rendering ----------------------------------------------------------------------
@@ -269,6 +310,9 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
             console.print(text + (" (exact)" if zd["exact"] and zd["dimension"] else ""))
             if zd["reason"]:
                 console.print(f"    ({zd['reason']})")
+        lin = p.get("linearisation")
+        if lin is not None:
+            _render_linearisation(console, lin, len(d["states"]))
         pd = p.get("distributions")
         if pd is not None:
             text = (f"  distributions here: ranks {pd['ranks']}; controllability rank {pd['controllability_rank']}; "
@@ -290,6 +334,48 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
         console.print(f"  {f['severity']:<8} {f['rule']}{at} ({where}): {f['message']}{waived}")
     console.print()
     console.print(Text("plantlint checks structure, not safety; see the README.", style="dim"))
+
+
+def _render_linearisation(console: Any, lin: dict[str, Any], n: int) -> None:
+    how = "exact" if lin["exact"] else "exact constants; poles and zeros at 50 digits"
+    console.print(f"  linearisation (nominal parameter values, {how}):")
+    if lin["status"] != "computed":
+        console.print(f"    not computed: {lin['reason']}")
+        return
+    for label in ("A", "B", "C"):
+        rows = lin[label]
+        if not rows or not rows[0]:
+            continue
+        width = max(len(e) for row in rows for e in row)
+        for k, row in enumerate(rows):
+            head = f"{label} = " if k == 0 else "    "
+            console.print(f"    {head}[{', '.join(e.rjust(width) for e in row)}]")
+    console.print("    D = 0 (outputs do not depend on inputs)")
+    poly = f"; det(sI - A) = {lin['characteristic_polynomial']}" if lin["characteristic_polynomial"] else ""
+    console.print(f"    open-loop poles: {lin['poles'] or 'none'}{poly}")
+    for kind, rank, groups, what in (
+        ("controllability", lin["controllability_rank"], lin["uncontrollable"], "uncontrollable (the input cannot change)"),
+        ("observability", lin["observability_rank"], lin["unobservable"], "unobservable (the outputs cannot see)"),
+    ):
+        if rank is None:
+            continue
+        console.print(f"    {kind} rank {rank} of {n}")
+        for g in groups:
+            modes = g["polynomial"] or g["modes"]
+            console.print(f"      {what}: {'; '.join(g['directions'])}  (mode{'s' if ',' in g['modes'] else ''} "
+                          f"at s = {g['modes']}{'; ' + modes if g['polynomial'] else ''})")
+    if lin["transmission_zeros"] is not None:
+        zp = f"; zero polynomial {lin['zero_polynomial']}" if lin["zero_polynomial"] else ""
+        console.print(f"    transmission zeros: {lin['transmission_zeros'] or 'none'}{zp}")
+    if lin["zeros_note"]:
+        console.print(f"    ({lin['zeros_note']})")
+    check = lin["cross_check"]
+    if check["status"] == "agrees":
+        console.print(f"    cross-check with the zero dynamics: agrees ({check['detail']})")
+    elif check["status"] == "disagrees":
+        console.print(f"    cross-check with the zero dynamics: DISAGREES ({check['detail']})")
+    if lin["reason"]:
+        console.print(f"    ({lin['reason']})")
 
 
 def _section(console: Any, title: str) -> None:

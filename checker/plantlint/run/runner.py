@@ -26,7 +26,7 @@ from plantlint import __version__
 from plantlint.core.findings import FileReport, Finding, Severity, Span
 from plantlint.run.pipeline import RawResult, budget_finding, finish
 
-STAGES = ("structure", "envelope", "points", "zero dynamics", "distributions", "claims")
+STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
 CACHE_FORMAT = 1
 MAX_BYTES = 1 << 20  # same limit as plantlint.language.syntax.MAX_BYTES (not imported: it pulls in sympy)
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker

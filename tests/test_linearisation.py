@@ -1,0 +1,403 @@
+"""The linearisation at operating points, held against outside sources: numpy
+(eigenvalues, ranks of Kalman matrices built here independently, PBH tests),
+scipy.signal.ss2zpk (SISO zeros), scipy.linalg.eig of the Rosenbrock pencil
+(square MIMO zeros) on seeded random linear plants, and published worked examples
+(book or paper beside each test; "from memory" where recalled)."""
+
+from __future__ import annotations
+
+import json
+import math
+import re
+from pathlib import Path
+
+import jsonschema
+import numpy as np
+import pytest
+import scipy.linalg
+import scipy.signal
+import sympy as sp
+
+import plantlint.analysis.engine as engine
+from plantlint.analysis.equilibria import solve_point
+from plantlint.analysis.linearisation import Linearisation, cross_check, linearisation_json, linearise_at
+from plantlint.analysis.zero_dynamics import ZeroDynamics
+from plantlint.core.catalogue import load_catalogue
+from plantlint.core.findings import Severity
+from plantlint.kernel.lie import Kernel
+from plantlint.kernel.plant import Plant
+from plantlint.report.explain import explain_data, render_text
+from plantlint.report.formats.json_report import report_schema
+from plantlint.run.config import Config
+from plantlint.run.pipeline import read_model
+
+FIXTURES = Path(__file__).parent / "fixtures" / "models"
+
+
+# -- helpers -------------------------------------------------------------------------------
+def linear_plant(A: np.ndarray, B: np.ndarray, C: np.ndarray, scale: sp.Expr = sp.Integer(1)) -> Plant:
+    n, m = B.shape
+    xs = sp.symbols(f"x1:{n + 1}")
+    us = sp.symbols(f"u1:{m + 1}")
+    f = [sum((scale * int(A[i, k]) * xs[k] for k in range(n)), sp.Integer(0)) for i in range(n)]
+    cols = [[int(B[i, j]) for i in range(n)] for j in range(m)]
+    h = [sum((int(C[i, k]) * xs[k] for k in range(n)), sp.Integer(0)) for i in range(C.shape[0])]
+    return Plant.from_matrices("linear", list(xs), list(us), f, cols, h)
+
+
+def linearise_origin(P: Plant) -> Linearisation:
+    kernel = Kernel(P)
+    eq = solve_point(P, "origin", {s: sp.Integer(0) for s in (*P.states, *P.inputs)}, kernel)
+    assert eq.equilibrium
+    return linearise_at(kernel, eq, None)
+
+
+def assert_same_set(ours: list[complex], ref: list[complex], tol: float = 1e-6) -> None:
+    assert len(ours) == len(ref), (ours, ref)
+    rest = list(ref)
+    for z in ours:
+        k = min(range(len(rest)), key=lambda q: abs(rest[q] - z))
+        assert abs(rest[k] - z) <= tol * (1 + abs(z)), (ours, ref)
+        rest.pop(k)
+
+
+def kalman(A: np.ndarray, B: np.ndarray) -> np.ndarray:
+    n = A.shape[0]
+    return np.hstack([np.linalg.matrix_power(A, k) @ B for k in range(n)])
+
+
+def vector(text: str, n: int) -> np.ndarray:
+    """A direction as printed ("x1 - 2*x3") back to a vector (test-side reading of our own output)."""
+    v = np.zeros(n)
+    for sign, coeff, index in re.findall(r"([+-]?)\s*(?:([0-9.]+)\*)?x(\d+)", text):
+        v[int(index) - 1] = (-1 if sign == "-" else 1) * (float(coeff) if coeff else 1.0)
+    return v
+
+
+def random_system(rng: np.random.Generator, n: int, m: int, p: int, deficient: bool) -> tuple[np.ndarray, ...]:
+    """Integer (A, B, C); when ``deficient``, with a block the input cannot reach and a
+    block the output cannot see, hidden by an integer change of coordinates."""
+    A = rng.integers(-3, 4, (n, n))
+    B = rng.integers(-2, 3, (n, m))
+    C = rng.integers(-2, 3, (p, n))
+    if deficient:
+        k = int(rng.integers(1, n))
+        A[k:, :k] = 0  # x[k:] evolve on their own ...
+        B[k:, :] = 0  # ... and no input reaches them
+        if rng.random() < 0.5:
+            C[:, :k] = 0  # x[:k] is A-invariant (A[k:, :k] = 0): unseen by the outputs
+        T = np.eye(n, dtype=int) + np.tril(rng.integers(-1, 2, (n, n)), -1)  # unimodular
+        Ti = np.rint(np.linalg.inv(T)).astype(int)
+        A, B, C = T @ A @ Ti, T @ B, C @ Ti
+    return A, B, C
+
+
+# -- random linear plants against numpy / scipy ---------------------------------------------
+@pytest.mark.parametrize("deficient", [False, True])
+def test_poles_and_ranks_against_numpy(deficient: bool) -> None:
+    # references: numpy.linalg.eigvals (poles), numpy.linalg.matrix_rank of the Kalman
+    # matrices [B, AB, ...] and [C; CA; ...] built here, and the PBH test with numpy
+    rng = np.random.default_rng(7 if deficient else 11)
+    for _ in range(12):
+        n, m, p = int(rng.integers(2, 6)), int(rng.integers(1, 3)), int(rng.integers(1, 3))
+        A, B, C = random_system(rng, n, m, p, deficient)
+        lin = linearise_origin(linear_plant(A, B, C))
+        assert lin.exact and lin.status == "computed"
+        assert_same_set(list(lin.poles), list(np.linalg.eigvals(A.astype(float))), tol=1e-5)
+        Af = A.astype(float)
+        ctrl = np.linalg.matrix_rank(kalman(Af, B.astype(float)))
+        obs = np.linalg.matrix_rank(kalman(Af.T, C.T.astype(float)).T)
+        assert lin.controllability_rank == ctrl and lin.observability_rank == obs
+        K, O = kalman(Af, B.astype(float)), kalman(Af.T, C.T.astype(float)).T
+        left = [vector(d, n) for g in lin.uncontrollable for d in g.directions]
+        right = [vector(d, n) for g in lin.unobservable for d in g.directions]
+        assert len(left) == n - ctrl and len(right) == n - obs
+        for w in left:
+            assert np.allclose(w @ K, 0)
+        for v in right:
+            assert np.allclose(O @ v, 0)
+        if left:
+            assert np.linalg.matrix_rank(np.array(left)) == n - ctrl
+        # PBH: lambda is an uncontrollable mode iff rank [lambda I - A, B] < n
+        modes = [z for g in lin.uncontrollable for z in g.eigenvalues]
+        for lam in set(np.round(np.linalg.eigvals(Af), 6)):
+            pbh = np.linalg.matrix_rank(np.hstack([lam * np.eye(n) - Af, B.astype(float)]), tol=1e-6)
+            assert (pbh < n) == any(abs(z - lam) < 1e-5 for z in modes), (A, B, lam)
+
+
+@pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
+def test_siso_zeros_against_scipy_ss2zpk() -> None:
+    # reference: scipy.signal.ss2zpk (the zeros of the transfer function numerator);
+    # minimal realisations only, where transmission and invariant zeros coincide
+    rng = np.random.default_rng(2026)
+    checked = 0
+    while checked < 25:
+        n = int(rng.integers(2, 6))
+        A, B, C = random_system(rng, n, 1, 1, deficient=False)
+        Af, Bf, Cf = A.astype(float), B.astype(float), C.astype(float)
+        if np.linalg.matrix_rank(kalman(Af, Bf)) < n or np.linalg.matrix_rank(kalman(Af.T, Cf.T)) < n:
+            continue
+        if not np.any(np.abs([(Cf @ np.linalg.matrix_power(Af, k) @ Bf).item() for k in range(n)]) > 0):
+            continue
+        lin = linearise_origin(linear_plant(A, B, C))
+        z, _, _ = scipy.signal.ss2zpk(Af, Bf, Cf, np.zeros((1, 1)))
+        assert lin.zeros is not None
+        assert_same_set(list(lin.zeros), list(z), tol=1e-5)
+        checked += 1
+
+
+def test_square_mimo_zeros_against_rosenbrock_pencil() -> None:
+    # reference: scipy.linalg.eig(M, N) of the pencil M - s N, M = [[A, B], [-C, 0]],
+    # N = diag(I, 0): the finite generalized eigenvalues are the invariant zeros
+    rng = np.random.default_rng(99)
+    checked = 0
+    while checked < 20:
+        n = int(rng.integers(3, 6))
+        A, B, C = random_system(rng, n, 2, 2, deficient=False)
+        M = np.block([[A, B], [-C, np.zeros((2, 2))]]).astype(float)
+        N = scipy.linalg.block_diag(np.eye(n), np.zeros((2, 2)))
+        w = scipy.linalg.eig(M, N, right=False)
+        finite = [z for z in w if np.isfinite(z) and abs(z) < 1e6]
+        lin = linearise_origin(linear_plant(A, B, C))
+        if lin.zeros is None:  # pencil singular for every s: scipy's eigenvalues are then arbitrary
+            assert "vanishes for every s" in lin.zeros_note
+            continue
+        assert_same_set(list(lin.zeros), finite, tol=1e-5)
+        checked += 1
+
+
+@pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
+def test_irrational_entries_take_the_numeric_route() -> None:
+    # A scaled by sqrt(2): poles and zeros scale with it; references numpy.linalg.eigvals,
+    # numpy.linalg.matrix_rank and scipy.signal.ss2zpk on the scaled floats
+    rng = np.random.default_rng(5)
+    checked = 0
+    while checked < 6:
+        n = int(rng.integers(2, 5))
+        A, B, C = random_system(rng, n, 1, 1, deficient=checked % 2 == 1)
+        lin = linearise_origin(linear_plant(A, B, C, scale=sp.sqrt(2)))
+        As, Bf, Cf = math.sqrt(2) * A.astype(float), B.astype(float), C.astype(float)
+        assert not lin.exact
+        assert_same_set(list(lin.poles), list(np.linalg.eigvals(As)), tol=1e-6)
+        # (a tolerance above the rounding of the irrational products)
+        assert lin.controllability_rank == np.linalg.matrix_rank(kalman(As, Bf), tol=1e-9)
+        assert lin.observability_rank == np.linalg.matrix_rank(kalman(As.T, Cf.T), tol=1e-9)
+        if lin.zeros is not None and lin.controllability_rank == n and lin.observability_rank == n:
+            z, _, _ = scipy.signal.ss2zpk(As, Bf, Cf, np.zeros((1, 1)))
+            assert_same_set(list(lin.zeros), list(z), tol=1e-5)
+        checked += 1
+
+
+def test_named_directions_of_a_hand_built_plant() -> None:
+    # two identical first-order lags driven by the same input cannot be told apart by
+    # it (x1 - x2 obeys d/dt (x1 - x2) = -(x1 - x2)); x3 is neither driven nor measured;
+    # PBH by hand: rank [sI - A, B] < 3 at s = -1 and s = -3
+    A = np.diag([-1, -1, -3])
+    B = np.array([[1], [1], [0]])
+    C = np.array([[1, 1, 0]])
+    lin = linearise_origin(linear_plant(A, B, C))
+    assert lin.controllability_rank == 1 and lin.observability_rank == 1
+    assert [(g.polynomial, g.directions) for g in lin.uncontrollable] == [("s + 1", ("x1 - x2",)), ("s + 3", ("x3",))]
+    assert [(g.polynomial, g.directions) for g in lin.unobservable] == [("s + 1", ("x1 - x2",)), ("s + 3", ("x3",))]
+    assert lin.zeros == (-3, -1)  # the decoupling zeros: invariant zeros of a non-minimal realisation
+
+
+def test_non_square_plant_has_no_zeros_but_says_why() -> None:
+    lin = linearise_origin(linear_plant(np.array([[0, 1], [0, 0]]), np.array([[0], [1]]), np.eye(2, dtype=int)))
+    assert lin.zeros is None and "not square" in lin.zeros_note
+    assert lin.controllability_rank == 2 and lin.observability_rank == 2
+
+
+# -- published worked examples -------------------------------------------------------------
+CART_PENDULUM = """
+# Inverted pendulum on a cart, point mass on a massless rod, numbers of Ogata's example
+plant cart_pendulum "Inverted pendulum on a cart"
+const g = 9.81
+param M = 2
+param m = 0.1
+param l = 0.5
+state th
+state w
+state x
+state v
+input u
+let ddx = (u + m*l*w^2*sin(th) - m*g*sin(th)*cos(th)) / (M + m*sin(th)^2)
+rate th = w
+rate w = (g*sin(th) - cos(th)*ddx) / l
+rate x = v
+rate v = ddx
+output y = x
+point up: th = 0, w = 0, x = 0, v = 0
+"""
+
+
+def analyse_text(text: str) -> engine.Analysis:
+    model, findings = read_model(text.encode(), "model.plant")
+    assert model is not None, findings
+    return engine.run_analysis(model, Config())
+
+
+def test_inverted_pendulum_on_a_cart_ogata() -> None:
+    # Ogata, Modern Control Engineering (4th/5th ed.), inverted-pendulum pole-placement
+    # example (from memory): M = 2 kg, m = 0.1 kg, l = 0.5 m, states (th, th', x, x'),
+    # A = [[0, 1, 0, 0], [20.601, 0, 0, 0], [0, 0, 0, 1], [-0.4905, 0, 0, 0]],
+    # B = [0, -1, 0, 0.5]; x/u = (l s^2 - g) / (s^2 (M l s^2 - (M + m) g)), derived from
+    # the linearised equations: zeros +-sqrt(g/l), which are also the zero dynamics
+    a = analyse_text(CART_PENDULUM)
+    (pa,) = a.points
+    lin = pa.linearisation
+    assert lin is not None and lin.exact
+    assert [[float(e) for e in row] for row in lin.A] == [[0, 1, 0, 0], [20.601, 0, 0, 0], [0, 0, 0, 1],
+                                                         [-0.4905, 0, 0, 0]]
+    assert [float(row[0]) for row in lin.B] == [0, -1, 0, 0.5]
+    assert lin.C == ((0, 0, 1, 0),)
+    assert_same_set(list(lin.poles), [0, 0, -math.sqrt(20.601), math.sqrt(20.601)], tol=1e-12)
+    assert lin.characteristic_polynomial == "s^4 - 20601*s^2/1000"
+    assert lin.controllability_rank == 4 and lin.observability_rank == 4
+    assert lin.zero_polynomial == "s^2 - 981/50"
+    assert_same_set(list(lin.zeros or ()), [-math.sqrt(9.81 / 0.5), math.sqrt(9.81 / 0.5)], tol=1e-12)
+    assert lin.cross_check.status == "agrees"
+    assert not [f for f in a.findings if f.rule == "internal-inconsistency"]
+
+
+def test_pvtol_hauser_sastry_meyer() -> None:
+    # Hauser, Sastry & Meyer, "Nonlinear control design for slightly non-minimum phase
+    # systems: application to V/STOL aircraft", Automatica 28(4), 1992 (from memory):
+    # with outputs (x, y) the zero dynamics at hover are eps th'' = g sin th, eigenvalues
+    # +-sqrt(g/eps); the linearisation there has the gravity term -g th in x'' and eps u2
+    a = analyse_text((FIXTURES / "pvtol.plant").read_text())
+    (pa,) = a.points
+    lin = pa.linearisation
+    assert lin is not None and lin.exact
+    states = [str(s) for s in a.kernel.plant.states]
+    assert float(lin.A[states.index("vx")][states.index("th")]) == -9.81
+    assert float(lin.B[states.index("vx")][1]) == 0.05
+    assert lin.zero_polynomial == "s^2 - 981/5"  # g/eps = 9.81/0.05
+    assert_same_set(list(lin.zeros or ()), [-math.sqrt(196.2), math.sqrt(196.2)], tol=1e-12)
+    assert lin.controllability_rank == 6 and lin.observability_rank == 6
+    assert lin.cross_check.status == "agrees"
+
+
+def test_uncontrollable_mode_named_on_a_nonlinear_model() -> None:
+    # a tank level h that no input reaches and no output sees, beside a driven cart
+    # (invented). By hand: d/dh (1/4 - k sqrt(h)) = -k / (2 sqrt(h)) = -1/2 at h = 1/4,
+    # k = 1/2, so the mode s = -1/2 lives on h alone
+    text = """
+plant side_tank "cart beside an undriven tank (invented)"
+param k = 0.5
+state p
+state v
+state h
+input F
+rate p = v
+rate v = F
+rate h = 0.25 - k*sqrt(h)
+output y = p
+point rest: p = 0, v = 0, h = 0.25
+"""
+    a = analyse_text(text)
+    lin = a.points[0].linearisation
+    assert lin is not None and lin.exact  # sqrt(1/4) = 1/2: rational
+    assert [(g.polynomial, g.directions) for g in lin.uncontrollable] == [("s + 1/2", ("h",))]
+    assert [(g.polynomial, g.directions) for g in lin.unobservable] == [("s + 1/2", ("h",))]
+
+
+@pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
+def test_transcendental_point_numeric_route_and_cross_check() -> None:
+    # held at th = 1/3 by the input (invented model): A = [[0, 1, 0], [-cos(1/3), 0, 0],
+    # [cos(1/3), 0, -1]], B = e2, C = [1, 0, 1] by hand; references numpy.linalg.eigvals
+    # and scipy.signal.ss2zpk on those floats
+    a = analyse_text("""
+plant held_arm "arm held off vertical (invented)"
+state th
+state w
+state z
+input u
+rate th = w
+rate w = -sin(th) + u
+rate z = -z + sin(th)
+output y = th + z
+point held: th = 1/3, w = 0, z = sin(1/3)
+""")
+    lin = a.points[0].linearisation
+    assert lin is not None and not lin.exact and lin.status == "computed"
+    c = math.cos(1 / 3)
+    A = np.array([[0, 1, 0], [-c, 0, 0], [c, 0, -1]])
+    B, C = np.array([[0], [1], [0]]), np.array([[1, 0, 1]])
+    assert np.allclose(np.array([[float(e) for e in row] for row in lin.A]), A)
+    assert_same_set(list(lin.poles), list(np.linalg.eigvals(A)), tol=1e-9)
+    z, _, _ = scipy.signal.ss2zpk(A, B, C, np.zeros((1, 1)))
+    assert_same_set(list(lin.zeros or ()), list(z), tol=1e-9)
+    assert lin.controllability_rank == 3 and lin.observability_rank == 3
+    assert lin.cross_check.status == "agrees"
+
+
+# -- the cross-check ------------------------------------------------------------------------
+def test_disagreement_is_an_internal_inconsistency(monkeypatch: pytest.MonkeyPatch) -> None:
+    # no honest model can make the two computations disagree, so one of them is
+    # replaced by a wrong one: the zero dynamics shifted by +1
+    real = engine.zero_dynamics_at
+
+    def shifted(*args: object, **kwargs: object) -> ZeroDynamics:
+        zd = real(*args, **kwargs)  # type: ignore[arg-type]
+        from dataclasses import replace
+
+        return replace(zd, eigenvalues=tuple(z + 1 for z in zd.eigenvalues))
+
+    monkeypatch.setattr(engine, "zero_dynamics_at", shifted)
+    a = analyse_text(CART_PENDULUM)
+    (finding,) = [f for f in a.findings if f.rule == "internal-inconsistency"]
+    assert finding.point == "up" and "disagree" in finding.message
+    assert load_catalogue().get("internal-inconsistency").severity is Severity.ERROR
+    lin = a.points[0].linearisation
+    assert lin is not None and lin.cross_check.status == "disagrees"
+    assert a.to_json()["points"]["up"]["linearisation"]["cross_check"]["status"] == "disagrees"
+
+
+def test_cross_check_not_applicable_without_zero_dynamics() -> None:
+    lin = linearise_origin(linear_plant(np.diag([-1, -2]), np.array([[1], [1]]), np.array([[1, 0]])))
+    assert cross_check(lin, None).status == "not_applicable"
+
+
+def test_full_relative_degree_agrees_with_no_zeros() -> None:
+    # double integrator, y = position: r = n, no zero dynamics and (scipy ss2zpk agrees) no zeros
+    a = analyse_text("""
+plant dint "double integrator"
+state p
+state v
+input F
+rate p = v
+rate v = F
+output y = p
+point rest: p = 0, v = 0
+""")
+    lin = a.points[0].linearisation
+    assert lin is not None and lin.zeros == () and lin.cross_check.status == "agrees"
+
+
+# -- reports --------------------------------------------------------------------------------
+def test_analysis_json_validates_and_non_equilibria_have_none() -> None:
+    a = analyse_text(CART_PENDULUM + "point off: th = 0.1, w = 0, x = 0, v = 0, u = 0\n")
+    data = json.loads(json.dumps(a.to_json()))
+    schema = report_schema()
+    validator = jsonschema.Draft202012Validator({"$defs": schema["$defs"], **schema["$defs"]["linearisation"]})
+    up = data["points"]["up"]["linearisation"]
+    validator.validate(up)
+    assert up["parameters"] == "nominal" and up["D"] == [[0.0]]
+    assert data["points"]["off"]["linearisation"] is None  # not an equilibrium
+
+
+def test_explain_shows_the_linearisation() -> None:
+    import io
+
+    a = analyse_text((FIXTURES / "pvtol.plant").read_text())
+    data = explain_data(a, None, [])
+    lin = data["points"][0]["linearisation"]
+    assert lin["A"][1][4] == "-9.81" and lin["zero_polynomial"] == "s^2 - 981/5"
+    assert lin["poles"] == "0 (6 times)"
+    out = io.StringIO()
+    render_text(data, out, color=False)
+    text = out.getvalue()
+    assert "linearisation (nominal parameter values, exact)" in text
+    assert "transmission zeros: -14.0071, 14.0071" in text
+    assert "cross-check with the zero dynamics: agrees" in text

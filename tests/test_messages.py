@@ -5,15 +5,17 @@ invented."""
 from __future__ import annotations
 
 import re
+from pathlib import Path
 
 import pytest
 
+from plantlint.language import syntax
 from plantlint.language.syntax import parse_text, parser
 from plantlint.run.pipeline import read_model
 
 GOOD = """plant lag "first-order lag (invented)"
 param k = 2 in 1 .. 3
-state z [m] in -1 .. 1
+state z in -1 .. 1
 input u in -1 .. 1
 let e = -k*z
 rate z = e + (u + 1)*sin(z + 1)
@@ -88,6 +90,31 @@ def test_no_internal_parser_names_reach_users(half: int) -> None:
             shown = f"{f.message} {f.hint or ''}"
             assert not INTERNAL.search(shown), (text, shown)
     assert seen > 50  # the cuts really are broken files
+
+
+def test_documented_limits_are_the_codes_limits() -> None:
+    doc = (Path(__file__).resolve().parent.parent / "docs" / "language.md").read_text(encoding="utf-8")
+    table = doc.split("## Limits for hostile input", 1)[1]
+    rows = {line.split("|")[1].strip(): line.split("|", 2)[2] for line in table.splitlines() if line.startswith("| ")}
+
+    def row(start: str) -> str:
+        return next(v for k, v in rows.items() if k.startswith(start))
+
+    assert f"{syntax.MAX_BYTES:,} bytes" in row("file size")
+    assert f"{syntax.MAX_TOKENS:,}" in row("tokens per file")
+    assert f"{syntax.MAX_STATEMENTS:,}" in row("statements")
+    assert f"{syntax.MAX_DEPTH}" in row("parentheses")
+    assert f"{syntax.MAX_NAME}" in row("characters in a name")
+    assert f"{syntax.MAX_LITERAL_DIGITS}" in row("digits") and f"±{syntax.MAX_LITERAL_EXP10}" in row("digits")
+    assert f"{syntax.MAX_EXPONENT:,}" in row("a number's exponent")
+    assert f"{syntax.MAX_POWER_BITS:,} bits" in row("a power of a number")
+    # and both counting limits really stop a file, each with its own message
+    many_tokens = "plant p\n" + "let a = " + " + ".join(["1"] * (syntax.MAX_TOKENS // 2 + 1)) + "\n"
+    (f,) = parse_text(many_tokens).findings
+    assert f"more than {syntax.MAX_TOKENS} tokens" in f.message
+    many_statements = "plant p\n" + "".join(f"state s{i}\n" for i in range(syntax.MAX_STATEMENTS))
+    (g,) = parse_text(many_statements).findings
+    assert f"plant models are limited to {syntax.MAX_STATEMENTS}" in g.message
 
 
 def test_huge_literal_is_cut_in_messages() -> None:

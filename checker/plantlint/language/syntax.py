@@ -31,6 +31,8 @@ MAX_EXPONENT = 1000
 MAX_LITERAL_EXP10 = 400
 MAX_LITERAL_DIGITS = 400
 MAX_STATEMENTS = 5000
+#: Bits of an exact power of a number (``2^1000`` has 1,001): about 30,000 decimal digits.
+MAX_POWER_BITS = 100_000
 #: Tokens per file, counted before parsing: parsing and exact arithmetic cost about
 #: 0.1-1 ms per token, and the largest realistic models have ~1,000-2,000 tokens.
 MAX_TOKENS = 20_000
@@ -647,7 +649,7 @@ def _power(base: sp.Expr, exponent: sp.Expr, span: Span) -> sp.Expr:
                                            f"(|p|, |q| <= {MAX_EXPONENT})", span, anchor="exponent range"))
         if base.is_Number and base.is_Rational:
             bits = max(abs(int(base.p)), abs(int(base.q)), 1).bit_length()
-            if bits * abs(int(exponent.p)) > 100_000:
+            if bits * abs(int(exponent.p)) > MAX_POWER_BITS:
                 raise ParseProblem(_syntax("this power of a number is too large to compute exactly", span, anchor="power size"))
     elif exponent.is_number:
         pass

@@ -50,25 +50,85 @@ def discover(paths: list[str], root: Path, include: tuple[str, ...], exclude: tu
     """Files named on the command line, and ``*.plant`` files under folders.
 
     Folders are filtered by ``include``; ``exclude`` applies to everything
-    (so a pre-commit run honours the configuration too).
+    (so a pre-commit run honours the configuration too). A path that cannot be
+    read as a model (a broken or looping symbolic link, a pipe or device) is an
+    I/O problem, never skipped in silence: all of them are named in one
+    :class:`UsageError` and nothing is checked.
     """
     found: dict[Path, Target] = {}
+    problems: list[str] = []
     cwd = Path.cwd()
     for raw in paths:
         p = Path(raw)
+        problem = path_problem(p, raw, named=True)
+        if problem is not None:
+            problems.append(problem)
+            continue
         if not p.exists():
             raise UsageError(f"{raw}: no such file or folder")
         if p.is_dir():
-            every = [q for q in sorted(p.rglob("*.plant")) if q.is_file() and not _hidden(q, p)]
+            every: list[Path] = []
+            for q in sorted(p.rglob("*.plant")):
+                if _hidden(q, p) or q.is_dir():
+                    continue
+                problem = path_problem(q, q.as_posix())  # the link's own name, not its target's
+                if problem is None:
+                    every.append(q)
+                elif selected_in_folder(q, p, root, include, exclude):
+                    problems.append(problem)
             hits = [q for q in every if selected_in_folder(q, p, root, include, exclude)]
-            if not hits:
+            if not hits and not problems:
                 filtered = f" ({len(every)} left out by include/exclude)" if every else ""
                 raise UsageError(f"{raw}: no .plant files here{filtered}")
             for q in hits:
                 found.setdefault(q.resolve(), Target(q, _display(q, cwd)))
         elif not _excluded(p, root, exclude):
             found.setdefault(p.resolve(), Target(p, _display(p, cwd)))
+    if problems:
+        if len(problems) == 1:
+            raise UsageError(problems[0] + "; nothing was checked")
+        raise UsageError(f"{len(problems)} paths cannot be read as models; nothing was checked:\n  "
+                         + "\n  ".join(problems))
     return list(found.values())
+
+
+def path_problem(p: Path, shown: str, named: bool = False) -> str | None:
+    """Why ``p`` cannot be read as a model file or searched as a folder, or None
+    (also None when it simply does not exist: the caller says so in its own words).
+    A character device ``named`` on the command line is read (up to the size limit);
+    a pipe or socket never is: reading one can wait for ever."""
+    import errno
+    import stat
+
+    try:
+        mode = p.stat().st_mode
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            return f"{shown}: symbolic link loop (following the link leads back to itself)"
+        if p.is_symlink():
+            try:
+                dest = os.readlink(p)
+            except OSError:
+                dest = "?"
+            return f"{shown}: symbolic link to '{dest}', which does not exist"
+        if exc.errno in (errno.ENOENT, errno.ENOTDIR):
+            return None
+        return f"{shown}: cannot read: {exc.strerror or exc}"
+    except RuntimeError:  # pathlib's own loop detection
+        return f"{shown}: symbolic link loop (following the link leads back to itself)"
+    if stat.S_ISDIR(mode) or stat.S_ISREG(mode) or (named and stat.S_ISCHR(mode)):
+        return None
+    return f"{shown}: not a regular file ({_file_kind(mode)}); a model is read from a regular file"
+
+
+def _file_kind(mode: int) -> str:
+    import stat
+
+    for test, word in ((stat.S_ISFIFO, "a named pipe"), (stat.S_ISSOCK, "a socket"),
+                       (stat.S_ISCHR, "a character device"), (stat.S_ISBLK, "a block device")):
+        if test(mode):
+            return word
+    return "a special file"
 
 
 def selected_in_folder(q: Path, folder: Path, root: Path, include: tuple[str, ...], exclude: tuple[str, ...]) -> bool:
@@ -88,9 +148,23 @@ def _hidden(q: Path, base: Path) -> bool:
 
 def _relative(q: Path, base: Path) -> str | None:
     try:
-        return q.resolve().relative_to(base.resolve()).as_posix()
+        return _resolved(q).relative_to(_resolved(base)).as_posix()
     except ValueError:
         return None
+
+
+def _resolved(q: Path) -> Path:
+    """``q.resolve()``; a broken or looping link is taken where it lies (its folder
+    resolved, its own name kept), so include/exclude match the name a user sees."""
+    try:
+        if not q.is_symlink() or q.exists():
+            return q.resolve()
+    except (RuntimeError, OSError):
+        pass
+    try:
+        return q.parent.resolve() / q.name
+    except (RuntimeError, OSError):
+        return Path(os.path.abspath(q))
 
 
 def _matches(q: Path, base: Path, patterns: tuple[str, ...]) -> bool:
@@ -313,13 +387,23 @@ class Source:
 
 
 def read_source(target: Target) -> Source:
-    """Read a model file (never written to); oversize and unreadable files become findings.
+    """Read a model file (never written to); an oversize file becomes a finding, a file
+    that cannot be read is an I/O problem (:class:`UsageError`, exit 2), never a finding
+    about its content.
 
     At most ``MAX_BYTES + 1`` bytes are read, so a device or a file that grows
-    while it is read (``/dev/zero``) cannot exhaust memory.
+    while it is read (``/dev/zero``) cannot exhaust memory; the file is opened
+    without blocking, so a pipe that took the place of a file cannot hang the run.
     """
+    import stat
+
     try:
-        with target.path.open("rb") as fh:
+        fd = os.open(target.path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
+        with os.fdopen(fd, "rb") as fh:
+            mode = os.fstat(fh.fileno()).st_mode
+            if not (stat.S_ISREG(mode) or stat.S_ISCHR(mode)):
+                kind = "a folder" if stat.S_ISDIR(mode) else _file_kind(mode)
+                raise UsageError(f"{target.display}: not a regular file ({kind}); nothing was checked")
             size = os.fstat(fh.fileno()).st_size
             data = b"" if size > MAX_BYTES else fh.read(MAX_BYTES + 1)
         if size > MAX_BYTES or len(data) > MAX_BYTES:
@@ -330,8 +414,7 @@ def read_source(target: Target) -> Source:
                 Span(1, 1, 1, 2), anchor="file too large"))
         return Source(target.display, data)
     except OSError as exc:
-        return Source(target.display, None, Finding(
-            "syntax", Severity.ERROR, f"cannot read file: {exc.strerror or exc}", Span(1, 1, 1, 2), anchor="unreadable"))
+        raise UsageError(f"{target.display}: cannot read: {exc.strerror or exc}; nothing was checked") from None
 
 
 def check_targets(

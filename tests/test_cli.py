@@ -131,12 +131,22 @@ def test_no_command_shows_help_and_exits_2(tmp_path: Path, cli: CLI) -> None:
     ("timeout = -1\n", "timeout"),
     ("jobs = 1.5\n", "jobs"),
     ('include = [""]\n', "include"),
-    ('[severity]\nno-such-rule = "error"\n', "no-such-rule"),
-    ('[severity]\nzero-dynamics-critical = "fatal"\n', "zero-dynamics-critical"),
+    ('[severity.no-such-rule]\nlevel = "error"\nreason = "r"\n', "no-such-rule"),
+    ('[severity.zero-dynamics-critical]\nlevel = "fatal"\nreason = "r"\n', "zero-dynamics-critical"),
     ("cache = 1\n", "cache"),
     ("fail-on = \n", "TOML"),
+    # every skip, selection and severity override needs a reason; the older forms say how to migrate
+    ('skip = ["unused-name"]\n', '[skip] and one line per rule (unused-name = "why it is left out")'),
+    ('[skip]\nunused-name = ""\n', "skip.unused-name needs a reason"),
+    ('[skip]\nunused-name = true\n', "skip.unused-name needs a reason"),
+    ('only = ["unused-name"]\n', "'only' is a table now, with a reason"),
+    ('[only]\nrules = ["unused-name"]\n', "only needs a reason"),
+    ('[severity]\nunused-name = "note"\n',
+     'by a table [severity.unused-name] with level = "note" and reason = "why"'),
+    ('[severity.unused-name]\nlevel = "note"\n', "'severity.unused-name' must be written"),
 ], ids=["unknown key", "fail-on", "timeout", "jobs", "include", "severity rule", "severity value", "cache",
-        "not toml"])
+        "not toml", "skip list", "skip empty reason", "skip not text", "only list", "only without reason",
+        "severity without table", "severity without reason"])
 def test_bad_configuration_exits_2(tmp_path: Path, cli: CLI, toml: str, mentions: str) -> None:
     (tmp_path / "plantlint.toml").write_text(toml, encoding="utf-8")
     copy(CLEAN, tmp_path / "x.plant")
@@ -153,8 +163,9 @@ def project(tmp_path: Path) -> Path:
     (root / "plantlint.toml").write_text(
         'include = ["models/**/*.plant"]\n'
         'exclude = ["models/archive/**"]\n'
-        "[severity]\n"
-        'zero-dynamics-critical = "error"\n', encoding="utf-8")
+        "[severity.zero-dynamics-critical]\n"
+        'level = "error"\n'
+        'reason = "the drift controller needs strictly stable zero dynamics"\n', encoding="utf-8")
     copy(UNSTABLE, root / "models" / "tail.plant")
     copy(CRITICAL, root / "models" / "line" / "drift.plant")
     copy(UNSTABLE, root / "models" / "archive" / "old_tail.plant")
@@ -183,6 +194,32 @@ def test_severity_override_from_plantlint_toml(project: Path, tmp_path: Path, cl
     assert raised.code == 1 and rules_of(raised) == [("zero-dynamics-critical", "error")]
 
 
+def test_every_suppression_is_shown_with_its_reason(project: Path, cli: CLI) -> None:
+    (project / "plantlint.toml").write_text(
+        'include = ["models/**/*.plant"]\n'
+        "[skip]\n"
+        'zero-dynamics-unstable = "the tail loop is closed on another output"\n'
+        "[severity.zero-dynamics-critical]\n"
+        'level = "error"\n'
+        'reason = "the drift controller needs strictly stable zero dynamics"\n', encoding="utf-8")
+    text = cli(project, "check", "models/tail.plant")
+    assert text.code == 0 and "zero-dynamics-unstable" in text.stdout  # silenced, but not without a trace
+    assert ("rule zero-dynamics-unstable skipped by plantlint.toml: the tail loop is closed on another output"
+            in " ".join(text.stdout.split()))
+    lines = cli(project, "check", "--format", "lines", "models/tail.plant")
+    assert ("plantlint.toml: note: rule zero-dynamics-critical reported as error: the drift controller needs "
+            "strictly stable zero dynamics") in lines.stdout.splitlines()
+    data = cli(project, "check", "--format", "json", "--skip", "unused-name", "models/tail.plant").json()
+    # --skip on the command line replaces the configured skips, and says so
+    assert [(a["kind"], a["rules"], a["source"]) for a in data["adjustments"]] == [
+        ("skip", ["unused-name"], "--skip on the command line"),
+        ("severity", ["zero-dynamics-critical"], "plantlint.toml")]
+    sarif = json.loads(cli(project, "check", "--format", "sarif", "models/tail.plant").stdout)
+    overrides = sarif["runs"][0]["invocations"][0]["ruleConfigurationOverrides"]
+    assert {o["descriptor"]["id"]: o["configuration"].get("enabled", True) for o in overrides} == {
+        "zero-dynamics-unstable": False, "zero-dynamics-critical": True}
+
+
 def test_configuration_is_found_from_a_subfolder(project: Path, cli: CLI) -> None:
     run = cli(project / "models" / "line" / "deeper", "check", "--format", "json", "../drift.plant")
     assert run.code == 1 and rules_of(run) == [("zero-dynamics-critical", "error")]
@@ -193,7 +230,8 @@ def test_severity_override_from_pyproject(tmp_path: Path, cli: CLI) -> None:
     root = tmp_path / "repo"
     root.mkdir()
     (root / "pyproject.toml").write_text(
-        '[project]\nname = "demo"\n\n[tool.plantlint.severity]\nzero-dynamics-unstable = "note"\n', encoding="utf-8")
+        '[project]\nname = "demo"\n\n[tool.plantlint.severity.zero-dynamics-unstable]\nlevel = "note"\n'
+        'reason = "the output is not inverted"\n', encoding="utf-8")
     copy(UNSTABLE, root / "tail.plant")
     # a pyproject.toml without [tool.plantlint] on the way up is passed over
     sub = root / "sub"

@@ -17,7 +17,7 @@ import jsonschema
 import pytest
 
 from plantlint.core.catalogue import load_catalogue
-from plantlint.core.findings import FileReport, Finding, Report, Severity, Span
+from plantlint.core.findings import Adjustment, FileReport, Finding, Report, Severity, Span
 from plantlint.report.formats import FORMATS, get_formatter
 from plantlint.report.formats.json_report import build_report, report_schema
 from plantlint.report.formats.sarif import artifact_location, build_sarif
@@ -96,8 +96,8 @@ def test_output_is_deterministic(name: str) -> None:
 def test_lines_format_lines_exactly() -> None:
     assert _render("lines", _report()).splitlines() == [
         (
-            "models/demo.plant: warning: eigenvalue 0 at rest [zero-dynamics-critical] (point rest)"
-            " (waived: free integrator, reviewed)"
+            "models/demo.plant: waived: eigenvalue 0 at rest [zero-dynamics-critical] (point rest)"
+            " (warning waived: free integrator, reviewed)"
         ),
         "models/demo.plant:2:7: warning: param k is unused [unused-name]",
         "models/demo.plant:3:17: error: range of x is empty (4 >= -4) [bad-range]",
@@ -118,6 +118,18 @@ def test_lines_format_keeps_one_finding_per_line_and_no_escapes() -> None:
     nasty = Finding("syntax", Severity.ERROR, "bad\nbyte \x1b[31m here\r", Span(1, 1, 1, 2))
     report = Report([FileReport("x.plant", None, [nasty])], "0.1.0")
     assert _render("lines", report) == "x.plant:1:1: error: bad byte ?[31m here [syntax]\n"
+
+
+def test_lines_format_gives_waived_findings_their_own_word() -> None:
+    """Counting `error:` in a CI log counts exactly the unwaived errors."""
+    report = _report()
+    demo = report.files[0]
+    demo.findings = [replace(f, waived=True, reason="accepted in review 12") if f.rule == "bad-range" else f
+                     for f in demo.findings]
+    out = _render("lines", report)
+    assert out.count(": error:") == 1 == report.counts()["errors"]
+    assert "models/demo.plant:3:17: waived: range of x is empty (4 >= -4) [bad-range]" \
+           " (error waived: accepted in review 12)" in out.splitlines()
 
 
 def test_baseline_missing_under_since_is_a_caller_bug() -> None:
@@ -142,7 +154,7 @@ def test_json_validates_and_round_trips(make: Any, report_validator: Any) -> Non
     data = json.loads(_render("json", report))
     report_validator.validate(data)
     assert data == json.loads(json.dumps(build_report(report)))
-    assert data["format"] == "plantlint-report" and data["version"] == 1
+    assert data["format"] == "plantlint-report" and data["version"] == 2
 
 
 def test_json_content() -> None:
@@ -177,7 +189,10 @@ def test_json_schema_rejects_what_it_should(report_validator: Any) -> None:
         lambda d: d["summary"].pop("fixed"),
         lambda d: d["files"][0]["findings"][0].update(severity="fatal"),
         lambda d: d["files"][0]["findings"][0].update(extra=1),
-        lambda d: d.update(version=2),
+        lambda d: d.update(version=1),
+        lambda d: d.pop("adjustments"),
+        lambda d: d["adjustments"].append({"kind": "hide", "rules": ["syntax"], "level": None, "reason": None,
+                                           "source": "x"}),
         lambda d: d.pop("since"),  # baseline keys without since
     ]
     for breaks in broken:
@@ -342,6 +357,24 @@ def test_text_under_since() -> None:
     assert out.rstrip().splitlines()[-1] == "FAILED: 1 unwaived finding at or above error introduced since main"
 
 
+def test_text_and_lines_use_one_word_for_new_findings() -> None:
+    text = _render("text", _since_report())
+    lines = _render("lines", _since_report())
+    assert "(introduced)" in text and "(introduced)" in lines
+    assert "new since" not in text and "new since" not in lines
+
+
+def test_a_deleted_model_is_not_counted_as_checked() -> None:
+    report = _since_report()
+    gone = FileReport("models/gone.plant", "gone", [Finding("unused-name", Severity.WARNING, "param q is unused",
+                                                            None, anchor="param q", baseline="fixed")],
+                      structure_changes=[{"what": "model", "before": "present", "after": "deleted"}], deleted=True)
+    report.files.append(gone)
+    assert report.counts()["files"] == 2
+    assert "checked 2 files (1 deleted since main, not counted): " in _render("text", report)
+    assert json.loads(_render("json", report))["summary"]["files"] == 2
+
+
 def test_text_never_interprets_file_text() -> None:
     source = "plant x\nrate x = [bold]y[/bold] \x1b[2J :smile:\n"
     finding = Finding("syntax", Severity.ERROR, "[red]oops[/red] \x1b[31m", Span(2, 10, 2, 25))
@@ -387,3 +420,63 @@ def test_text_says_when_the_structure_was_not_analysed() -> None:
     text = out.getvalue()
     assert text.count("was not analysed") == 1
     assert text.index("was not analysed") < text.index("n.plant")
+
+
+# -- settings that drop or re-grade findings (skip, only, severity) -------------------
+
+def _adjusted(report: Report) -> Report:
+    report.adjustments = (
+        Adjustment("skip", ("not-involutive",), "full-state linearization is not used on this line",
+                   "plantlint.toml"),
+        Adjustment("severity", ("unused-name",), "spare parameters are kept for the next revision",
+                   "plantlint.toml", Severity.NOTE),
+        Adjustment("only", ("bad-range", "non-smooth", "unused-name", "zero-dynamics-critical"), "",
+                   "--only on the command line"),
+    )
+    return report
+
+
+@pytest.mark.parametrize("make", [_report, _since_report])
+def test_every_format_lists_the_active_settings_with_reasons(make: Any, report_validator: Any,
+                                                               sarif_validator: Any) -> None:
+    report = _adjusted(make())
+    text = " ".join(_render("text", report).split())
+    assert ("rule not-involutive skipped by plantlint.toml: full-state linearization is not used on this line"
+            in text)
+    assert "rule unused-name reported as note by plantlint.toml: spare parameters are kept for the next revision" in text
+    assert "only rules bad-range, non-smooth, unused-name, zero-dynamics-critical reported by --only on the command line" in text
+    lines = _render("lines", report).splitlines()
+    assert "plantlint.toml: note: rule not-involutive skipped: full-state linearization is not used on this line" in lines
+    assert ("plantlint.toml: note: rule unused-name reported as note: spare parameters are kept for the next revision"
+            in lines)
+    assert ("plantlint: note: only rules bad-range, non-smooth, unused-name, zero-dynamics-critical reported by --only"
+            " on the command line") in lines
+    data = json.loads(_render("json", report))
+    report_validator.validate(data)
+    assert data["adjustments"][:2] == [
+        {"kind": "skip", "rules": ["not-involutive"], "level": None,
+         "reason": "full-state linearization is not used on this line", "source": "plantlint.toml"},
+        {"kind": "severity", "rules": ["unused-name"], "level": "note",
+         "reason": "spare parameters are kept for the next revision", "source": "plantlint.toml"},
+    ]
+    assert data["adjustments"][2]["reason"] is None
+    sarif = json.loads(_render("sarif", report))
+    sarif_validator.validate(sarif)
+    (invocation,) = sarif["runs"][0]["invocations"]
+    overrides = {o["descriptor"]["id"]: o["configuration"] for o in invocation["ruleConfigurationOverrides"]
+                 if o["configuration"]["properties"]["setting"] != "only"}
+    assert overrides["not-involutive"]["enabled"] is False
+    assert overrides["not-involutive"]["properties"]["reason"] == "full-state linearization is not used on this line"
+    assert overrides["unused-name"]["level"] == "note"
+    rules = sarif["runs"][0]["tool"]["driver"]["rules"]
+    for o in invocation["ruleConfigurationOverrides"]:
+        assert rules[o["descriptor"]["index"]]["id"] == o["descriptor"]["id"]
+    left_out = {o["descriptor"]["id"] for o in invocation["ruleConfigurationOverrides"]
+                if o["configuration"]["properties"]["setting"] == "only"}
+    assert left_out == set(load_catalogue().ids()) - set(report.adjustments[2].rules)
+
+
+def test_no_settings_means_no_settings_section() -> None:
+    assert "settings that change" not in _render("text", _report())
+    assert json.loads(_render("json", _report()))["adjustments"] == []
+    assert "invocations" not in json.loads(_render("sarif", _report()))["runs"][0]

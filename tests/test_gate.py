@@ -31,6 +31,9 @@ import pytest
 
 from support import Run, git, git_env
 
+from plantlint.report.formats.base import change_text
+from plantlint.run.gate import structure_changes
+
 # Linear two-state plant: z' = a*z + x, x' = u, y = x. With y held at zero the
 # internal state obeys z' = a*z, so the zero dynamics are stable for a < 0,
 # unstable for a > 0 and critical for a = 0.
@@ -163,7 +166,7 @@ def test_edit_to_non_minimum_phase_gives_exactly_the_introduced_finding(scenario
     assert (finding["rule"], finding["baseline"], finding["point"]) == ("zero-dynamics-unstable", "introduced", "rest")
     assert finding["severity"] == "error" and not finding["waived"]
     change = {c["what"]: (c["before"], c["after"]) for c in tail["structure_changes"]}
-    assert change == {"point rest: zero dynamics": ("minimum_phase", "non_minimum_phase")}
+    assert change == {"point rest: zero dynamics": ("minimum phase", "non-minimum phase")}
     alone = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "json",
                       "--cache-dir", str(scenario.cache), "plants/tail.plant")
     assert alone.code == 1 and "Traceback" not in alone.stderr
@@ -194,7 +197,7 @@ def test_fix_is_reported_as_fixed(scenario: Scenario) -> None:
     fixme = scenario.file("fixme.plant")
     assert rules_by_state(fixme) == [("zero-dynamics-unstable", "fixed")]
     change = {c["what"]: (c["before"], c["after"]) for c in fixme["structure_changes"]}
-    assert change == {"point rest: zero dynamics": ("non_minimum_phase", "minimum_phase")}
+    assert change == {"point rest: zero dynamics": ("non-minimum phase", "minimum phase")}
 
 
 def test_model_added_since_ref_has_everything_introduced(scenario: Scenario) -> None:
@@ -263,7 +266,7 @@ def test_change_to_critical_is_reported_even_when_waived(scenario: Scenario) -> 
     (finding,) = drift["findings"]
     assert (finding["rule"], finding["baseline"], finding["waived"]) == ("zero-dynamics-critical", "introduced", True)
     change = {c["what"]: (c["before"], c["after"]) for c in drift["structure_changes"]}
-    assert change["point rest: zero dynamics"] == ("minimum_phase", "critical")
+    assert change["point rest: zero dynamics"] == ("minimum phase", "critical")
 
 
 def test_unchanged_model_has_nothing(scenario: Scenario) -> None:
@@ -282,7 +285,8 @@ def test_every_format_says_which_is_which(scenario: Scenario) -> None:
     paths = ["plants/tail.plant", "plants/shaker.plant", "plants/fixme.plant"]
     text = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--cache-dir", str(scenario.cache), *paths)
     assert text.code == 1
-    assert "new since base" in text.stdout and "known" in text.stdout and "fixed" in text.stdout
+    assert "(introduced)" in text.stdout and "(known)" in text.stdout and "fixed" in text.stdout
+    assert "new since" not in text.stdout  # one term in every format: introduced
     lines = plantlint(scenario.repo, scenario.env, "check", "--since", "base", "--format", "lines",
                       "--cache-dir", str(scenario.cache), *paths)
     lines = lines.stdout.splitlines()
@@ -341,3 +345,16 @@ def test_model_deleted_since_ref_reports_its_findings_as_fixed(tmp_path: Path) -
     assert run.json()["summary"]["fixed"] == 1
     lines = plantlint(repo, env, "check", "--since", "HEAD", "--format", "lines", "--no-cache", "models")
     assert "models/gone.plant: note: structure changed since HEAD: model: present -> deleted" in lines.stdout
+
+
+def test_structure_changes_are_worded_for_readers_not_in_internal_names() -> None:
+    before = {"relative_degree": {"y": 2}, "envelope": {"regular": True},
+              "points": {"rest": {"equilibrium": True, "well_defined": True,
+                                  "zero_dynamics": {"verdict": "non_minimum_phase"}, "state_linearizable": False}}}
+    after = {"relative_degree": {"y": 2}, "envelope": {"regular": True},
+             "points": {"rest": {"equilibrium": True, "well_defined": False,
+                                 "zero_dynamics": {"verdict": "minimum_phase"}, "state_linearizable": True}}}
+    shown = [change_text(c) for c in structure_changes(before, after)]
+    assert shown == ["point rest: state linearizable: no -> yes", "point rest: well defined: yes -> no",
+                     "point rest: zero dynamics: non-minimum phase -> minimum phase"]
+    assert not any("_" in line for line in shown)

@@ -130,10 +130,12 @@ def _check(args: argparse.Namespace) -> int:
     try:
         config = load_config(_config_start(args.paths), Path(args.config) if args.config else None, known)
         changes = {}
-        if args.only:
-            changes["only"] = parse_rule_list(args.only, "--only", known)
+        if args.only:  # replaces the configuration's selection; every report says so
+            changes.update(only=parse_rule_list(args.only, "--only", known), only_reason="",
+                           only_source="--only on the command line")
         if args.skip:
-            changes["skip"] = parse_rule_list(args.skip, "--skip", known)
+            changes.update(skip=parse_rule_list(args.skip, "--skip", known), skip_reasons={},
+                           skip_source="--skip on the command line")
         if args.fail_on:
             changes["fail_on"] = Severity.parse(args.fail_on)
         if args.timeout is not None:
@@ -164,6 +166,7 @@ def _check(args: argparse.Namespace) -> int:
             report = Report(files=files, tool_version=__version__, fail_on=config.fail_on)
     except UsageError as exc:
         return _fail(str(exc))
+    report.adjustments = config.adjustments()
     return _emit(report, args.format, args.output, args.color)
 
 
@@ -175,13 +178,7 @@ def _config_start(paths: list[str]) -> Path:
     """
     if not paths:
         return Path.cwd()
-    def folder(p: Path) -> Path:
-        try:
-            return p.resolve() if p.is_dir() else p.resolve().parent
-        except (RuntimeError, OSError):  # a symbolic link loop: discovery reports it
-            return Path(os.path.abspath(p)).parent
-
-    folders = [folder(Path(p)) for p in paths]
+    folders = [Path(p).resolve() if Path(p).is_dir() else Path(p).resolve().parent for p in paths]
     try:
         return Path(os.path.commonpath([str(f) for f in folders]))
     except ValueError:

@@ -88,6 +88,33 @@ class Waiver:
     span: Span
 
 
+@dataclass(frozen=True)
+class Adjustment:
+    """A setting that drops or re-grades findings for the whole run, with its reason:
+    ``only`` (report these rules, nothing else), ``skip`` (leave a rule out) or
+    ``severity`` (report a rule at ``level``). ``source`` says where it was set (the
+    configuration file, or the command line). Every report lists the active ones."""
+
+    kind: str  # "only" | "skip" | "severity"
+    rules: tuple[str, ...]
+    reason: str
+    source: str
+    level: Severity | None = None  # for "severity"
+
+    def describe(self) -> str:
+        """In words, e.g. 'rule unused-name reported as note' (without reason or source)."""
+        rules = ", ".join(self.rules)
+        if self.kind == "only":
+            return f"only rule{'s' if len(self.rules) > 1 else ''} {rules} reported"
+        if self.kind == "skip":
+            return f"rule {rules} skipped"
+        return f"rule {rules} reported as {self.level.value if self.level else '?'}"
+
+    def to_data(self) -> dict[str, Any]:
+        return {"kind": self.kind, "rules": list(self.rules), "level": self.level.value if self.level else None,
+                "reason": self.reason or None, "source": self.source}
+
+
 @dataclass
 class FileReport:
     """Everything plantlint says about one file."""
@@ -98,6 +125,7 @@ class FileReport:
     analysis: dict[str, Any] | None = None
     source: str | None = None  # the text, for showing spans; never written back
     structure_changes: list[dict[str, Any]] = field(default_factory=list)
+    deleted: bool = False  # under --since: the model existed at the baseline and is gone (not checked)
 
     def sorted_findings(self) -> list[Finding]:
         return sorted(self.findings, key=lambda f: f.sort_key)
@@ -111,9 +139,10 @@ class Report:
     tool_version: str
     fail_on: Severity = Severity.ERROR
     since: str | None = None
+    adjustments: tuple[Adjustment, ...] = ()  # active only/skip/severity settings, with reasons
 
     def counts(self) -> dict[str, int]:
-        out = {"files": len(self.files), "errors": 0, "warnings": 0, "notes": 0, "waived": 0}
+        out = {"files": sum(not r.deleted for r in self.files), "errors": 0, "warnings": 0, "notes": 0, "waived": 0}
         for report in self.files:
             for f in report.findings:
                 if f.baseline == "fixed":

@@ -15,7 +15,7 @@ from pathlib import Path
 from types import MappingProxyType
 from typing import Any, Mapping
 
-from plantlint.core.findings import Severity
+from plantlint.core.findings import Adjustment, Severity
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -35,6 +35,13 @@ class Config:
     only: frozenset[str] = frozenset()
     skip: frozenset[str] = frozenset()
     severity: Mapping[str, Severity] = field(default_factory=lambda: MappingProxyType({}))
+    #: why each rule is skipped, why `only` selects, why each severity is changed, and where
+    #: each was set (the configuration file, or "--skip on the command line"); shown in every report
+    skip_reasons: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
+    only_reason: str = ""
+    severity_reasons: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
+    skip_source: str = ""
+    only_source: str = ""
     jobs: int = 0  # 0: one per CPU
     timeout: float = 120.0  # seconds per model
     envelope_seconds: float = 5.0
@@ -43,6 +50,18 @@ class Config:
     cache: bool = True
     root: Path = field(default_factory=Path.cwd)  # folder of the config file (or cwd)
     source: Path | None = None  # the file the settings came from
+
+    def adjustments(self) -> tuple[Adjustment, ...]:
+        """The active settings that drop or re-grade findings, with their reasons."""
+        out: list[Adjustment] = []
+        if self.only:
+            out.append(Adjustment("only", tuple(sorted(self.only)), self.only_reason, self.only_source))
+        for rule in sorted(self.skip):
+            out.append(Adjustment("skip", (rule,), self.skip_reasons.get(rule, ""), self.skip_source))
+        where = shown_path(self.source) if self.source is not None else "configuration"
+        for rule, level in sorted(self.severity.items()):
+            out.append(Adjustment("severity", (rule,), self.severity_reasons.get(rule, ""), where, level))
+        return tuple(out)
 
     def analysis_key(self) -> str:
         """The settings that change analysis results (part of the cache key)."""
@@ -101,7 +120,7 @@ def load_config(start: Path | None = None, explicit: Path | None = None, known_r
 
 
 def from_table(table: Mapping[str, Any], path: Path, known_rules: frozenset[str] = frozenset()) -> Config:
-    where = str(path)
+    where = shown_path(path)
     unknown = sorted(set(table) - _KEYS)
     if unknown:
         raise ConfigError(f"{where}: unknown setting {', '.join(repr(k) for k in unknown)} "
@@ -115,15 +134,14 @@ def from_table(table: Mapping[str, Any], path: Path, known_rules: frozenset[str]
     if "fail-on" in table:
         changes["fail_on"] = _severity(table["fail-on"], "fail-on", where)
     if "only" in table:
-        changes["only"] = _rule_set(table["only"], "only", where, known_rules)
+        rules, reason = _only(table["only"], where, known_rules)
+        changes.update(only=rules, only_reason=reason, only_source=where)
     if "skip" in table:
-        changes["skip"] = _rule_set(table["skip"], "skip", where, known_rules)
+        reasons = _skip(table["skip"], where, known_rules)
+        changes.update(skip=frozenset(reasons), skip_reasons=MappingProxyType(reasons), skip_source=where)
     if "severity" in table:
-        sev = table["severity"]
-        if not isinstance(sev, dict):
-            raise ConfigError(f"{where}: 'severity' must be a table of rule = \"error|warning|note\"")
-        _rule_set(list(sev), "severity", where, known_rules)
-        changes["severity"] = MappingProxyType({k: _severity(v, f"severity.{k}", where) for k, v in sev.items()})
+        levels, reasons = _severities(table["severity"], where, known_rules)
+        changes.update(severity=MappingProxyType(levels), severity_reasons=MappingProxyType(reasons))
     if "jobs" in table:
         changes["jobs"] = _int(table["jobs"], "jobs", where, low=0)
     if "timeout" in table:
@@ -142,6 +160,64 @@ def from_table(table: Mapping[str, Any], path: Path, known_rules: frozenset[str]
             raise ConfigError(f"{where}: 'cache' must be true or false")
         changes["cache"] = table["cache"]
     return replace(cfg, **changes)
+
+
+def _reason(value: Any, key: str, where: str, how: str) -> str:
+    if not isinstance(value, str) or not value.strip():
+        raise ConfigError(f"{where}: {key} needs a reason, as text: {how}")
+    return " ".join(value.split())
+
+
+def _skip(value: Any, where: str, known: frozenset[str]) -> dict[str, str]:
+    """``[skip]`` maps each rule id to the reason it is left out."""
+    how = '[skip] then RULE = "why it is left out", one line per rule'
+    if value == []:
+        return {}
+    if isinstance(value, (list, str)):
+        named = [r for r in (value if isinstance(value, list) else [value]) if isinstance(r, str)] or ["RULE"]
+        lines = "; ".join(f'{r} = "why it is left out"' for r in named)
+        raise ConfigError(f"{where}: 'skip' is a table now, with a reason for each rule: replace `skip = [...]` "
+                          f"by [skip] and one line per rule ({lines})")
+    if not isinstance(value, dict):
+        raise ConfigError(f"{where}: 'skip' must be written {how}")
+    _rule_set(list(value), "skip", where, known)
+    return {rule: _reason(reason, f"skip.{rule}", where, how) for rule, reason in value.items()}
+
+
+def _only(value: Any, where: str, known: frozenset[str]) -> tuple[frozenset[str], str]:
+    """``[only]`` with ``rules = [...]`` and one ``reason`` for reporting nothing else."""
+    how = '[only] then rules = ["RULE", ...] and reason = "why no other rule is reported"'
+    if value == []:
+        return frozenset(), ""
+    if isinstance(value, (list, str)):
+        raise ConfigError(f"{where}: 'only' is a table now, with a reason: replace `only = [...]` by {how}")
+    if not isinstance(value, dict):
+        raise ConfigError(f"{where}: 'only' must be written {how}")
+    extra = sorted(set(value) - {"rules", "reason"})
+    if extra or "rules" not in value:
+        raise ConfigError(f"{where}: 'only' must be written {how}")
+    rules = _rule_set(value["rules"], "only.rules", where, known)
+    return rules, (_reason(value.get("reason"), "only", where, how) if rules else "")
+
+
+def _severities(value: Any, where: str, known: frozenset[str]) -> tuple[dict[str, Severity], dict[str, str]]:
+    """``[severity.RULE]`` tables with ``level`` and ``reason``."""
+    how = '[severity.RULE] then level = "error|warning|note" and reason = "why"'
+    if not isinstance(value, dict):
+        raise ConfigError(f"{where}: 'severity' must be written {how}")
+    _rule_set(list(value), "severity", where, known)
+    levels: dict[str, Severity] = {}
+    reasons: dict[str, str] = {}
+    for rule, entry in value.items():
+        if isinstance(entry, str):
+            raise ConfigError(f"{where}: severity override of '{rule}' needs a reason: replace "
+                              f'`{rule} = "{entry}"` under [severity] by a table [severity.{rule}] with '
+                              f'level = "{entry}" and reason = "why"')
+        if not isinstance(entry, dict) or sorted(entry) != ["level", "reason"]:
+            raise ConfigError(f"{where}: 'severity.{rule}' must be written {how}")
+        levels[rule] = _severity(entry["level"], f"severity.{rule}.level", where)
+        reasons[rule] = _reason(entry["reason"], f"severity.{rule}", where, how)
+    return levels, reasons
 
 
 def _globs(value: Any, key: str, where: str) -> tuple[str, ...]:
@@ -188,6 +264,15 @@ def _positive(value: Any, key: str, where: str) -> float:
 def parse_rule_list(text: str, option: str, known: frozenset[str]) -> frozenset[str]:
     """A comma-separated --only/--skip value, checked against the catalogue."""
     return _rule_set(text, option, "command line", known)
+
+
+def shown_path(path: Path | str) -> str:
+    """A configuration file as reports show it: relative to the working folder where it can be."""
+    try:
+        return Path(path).resolve().relative_to(Path.cwd().resolve()).as_posix()
+    except (ValueError, OSError):
+        return Path(path).as_posix()
+
 
 
 def effective_jobs(cfg: Config) -> int:

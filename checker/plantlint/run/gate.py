@@ -162,6 +162,7 @@ def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: di
         old.findings = [replace(f, baseline="fixed", span=None) for f in old.sorted_findings()]
         old.analysis = None
         old.structure_changes = [{"what": "model", "before": "present", "after": "deleted"}]
+        old.deleted = True  # listed with its findings fixed, but not counted as checked
         reports.append(old)
     return reports
 
@@ -193,8 +194,27 @@ def compare(report: FileReport, old_raw: RawResult | None, config: Any, defaults
     return report
 
 
+#: Zero-dynamics verdicts in the words the reports use (the analysis' own identifiers stay internal).
+VERDICT_WORDS = {
+    "minimum_phase": "minimum phase",
+    "non_minimum_phase": "non-minimum phase",
+    "critical": "critical",
+    "not_applicable": "not applicable",
+    "undefined": "not defined",
+}
+
+
+def _words(value: Any) -> Any:
+    """A summary value as a reader sees it: yes/no for booleans, verdicts in words."""
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, str):
+        return VERDICT_WORDS.get(value, value.replace("_", " "))
+    return value
+
+
 def summary(analysis: dict[str, Any] | None) -> dict[str, Any]:
-    """The structural facts a reviewer cares about, flattened to comparable strings."""
+    """The structural facts a reviewer cares about, flattened to comparable values in words."""
     if not analysis:
         return {}
     out: dict[str, Any] = {}
@@ -203,12 +223,12 @@ def summary(analysis: dict[str, Any] | None) -> dict[str, Any]:
     env = analysis.get("envelope") or {}
     out["envelope"] = {True: "regular", False: "singular", None: "unproven"}.get(env.get("regular"))
     for point, data in (analysis.get("points") or {}).items():
-        out[f"point {point}: equilibrium"] = data.get("equilibrium")
-        out[f"point {point}: well defined"] = data.get("well_defined")
+        out[f"point {point}: equilibrium"] = _words(data.get("equilibrium"))
+        out[f"point {point}: well defined"] = _words(data.get("well_defined"))
         zd = data.get("zero_dynamics")
-        out[f"point {point}: zero dynamics"] = zd.get("verdict") if zd else None
+        out[f"point {point}: zero dynamics"] = _words(zd.get("verdict")) if zd else None
         if "state_linearizable" in data:
-            out[f"point {point}: state linearizable"] = data.get("state_linearizable")
+            out[f"point {point}: state linearizable"] = _words(data.get("state_linearizable"))
     return out
 
 

@@ -10,7 +10,7 @@ import unicodedata
 from collections.abc import Iterator
 from typing import Protocol, TextIO
 
-from plantlint.core.findings import FileReport, Finding, Report
+from plantlint.core.findings import Adjustment, FileReport, Finding, Report
 
 BASELINE_STATES: tuple[str, ...] = ("introduced", "known", "fixed")
 
@@ -74,6 +74,13 @@ def baseline_counts(report: Report) -> dict[str, int]:
             if state is not None:
                 counts[state] += 1
     return counts
+
+
+def adjustment_text(adjustment: Adjustment) -> str:
+    """One active only/skip/severity setting in words, e.g.
+    'rule unused-name skipped by plantlint.toml: spare parameters kept for the next revision'."""
+    text = f"{adjustment.describe()} by {one_line(adjustment.source)}"
+    return text + (f": {one_line(adjustment.reason)}" if adjustment.reason else "")
 
 
 def change_text(change: dict[str, object]) -> str:

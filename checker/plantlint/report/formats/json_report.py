@@ -16,7 +16,7 @@ from plantlint.core.findings import FileReport, Finding, Report
 from plantlint.report.formats.base import baseline_counts, baseline_of, findings_in_order
 
 REPORT_FORMAT = "plantlint-report"
-REPORT_VERSION = 1
+REPORT_VERSION = 2  # 2: top-level "adjustments" (active only/skip/severity settings with reasons)
 
 
 def report_schema() -> dict[str, Any]:
@@ -88,6 +88,7 @@ def build_report(report: Report) -> dict[str, Any]:
     }
     if report.since is not None:
         out["since"] = report.since
+    out["adjustments"] = [adjustment.to_data() for adjustment in report.adjustments]
     out["files"] = [file_record(fr, findings, report) for fr, findings in findings_in_order(report)]
     summary: dict[str, Any] = dict(report.counts())
     if report.since is not None:

@@ -1,8 +1,10 @@
 """One line per finding in the GNU ``file:line:col: severity: message`` form.
 
-Meant for editors, grep and CI logs, so nothing else is written: no heading, no
-summary (the exit code carries the verdict). Findings fixed since a baseline are
-left out because they no longer exist in the file.
+Meant for editors, grep and CI logs: no heading and no summary (the exit code
+carries the verdict). Besides findings, only ``note:`` lines are written: structure
+changes under ``--since`` and the active settings that drop or re-grade findings
+(``skip``, ``only``, ``[severity]``), each with its reason. Findings fixed since a
+baseline are left out because they no longer exist in the file.
 """
 
 from __future__ import annotations
@@ -10,21 +12,28 @@ from __future__ import annotations
 from typing import TextIO
 
 from plantlint.core.findings import Finding, Report
-from plantlint.report.formats.base import baseline_of, change_text, findings_in_order, one_line
+from plantlint.report.formats.base import adjustment_text, baseline_of, change_text, findings_in_order, one_line
+
+#: The word in the severity position for a waived finding.
+WAIVED = "waived"
 
 
 def finding_line(path: str, finding: Finding, baseline: str | None = None) -> str:
     """``path:line:col: severity: message [rule-id]`` plus optional suffixes:
-    `` (point NAME)``, `` (waived: reason)`` and, under ``--since``,
-    `` (introduced)`` or `` (known)``."""
+    `` (point NAME)``, `` (SEVERITY waived: reason)`` and, under ``--since``,
+    `` (introduced)`` or `` (known)``.
+
+    A waived finding says ``waived`` where the severity goes, so that counting
+    ``error:`` in a log counts only what is not waived."""
     where = one_line(path)
     if finding.span is not None:
         where += f":{finding.span.line}:{finding.span.column}"
-    line = f"{where}: {finding.severity.value}: {one_line(finding.message).strip()} [{finding.rule}]"
+    word = WAIVED if finding.waived else finding.severity.value
+    line = f"{where}: {word}: {one_line(finding.message).strip()} [{finding.rule}]"
     if finding.point:
         line += f" (point {one_line(finding.point)})"
     if finding.waived:
-        line += f" (waived: {one_line(finding.reason or 'no reason given')})"
+        line += f" ({finding.severity.value} waived: {one_line(finding.reason or 'no reason given')})"
     if baseline is not None:
         line += f" ({baseline})"
     return line
@@ -44,3 +53,9 @@ class LinesFormatter:
             for change in file_report.structure_changes:
                 stream.write(f"{one_line(file_report.path)}: note: structure changed since {report.since}: "
                              f"{change_text(change)}\n")
+        for adjustment in report.adjustments:  # settings that drop or re-grade findings
+            if adjustment.source.startswith("-"):  # an option on the command line
+                stream.write(f"plantlint: note: {adjustment_text(adjustment)}\n")
+            else:
+                reason = f": {one_line(adjustment.reason)}" if adjustment.reason else ""
+                stream.write(f"{one_line(adjustment.source)}: note: {adjustment.describe()}{reason}\n")

@@ -9,11 +9,11 @@ from __future__ import annotations
 
 import json
 import re
-from typing import Any, TextIO
+from typing import Any, Iterable, TextIO
 from urllib.parse import quote
 
 from plantlint.core.catalogue import PAGE_SECTIONS, Catalogue, Rule, load_catalogue
-from plantlint.core.findings import Finding, Report, Span
+from plantlint.core.findings import Adjustment, Finding, Report, Span
 from plantlint.report.formats.base import baseline_of, findings_in_order
 
 SARIF_VERSION = "2.1.0"
@@ -110,6 +110,31 @@ def sarif_result(
     return result
 
 
+def rule_overrides(adjustments: Iterable[Adjustment], index: dict[str, int]) -> list[dict[str, Any]]:
+    """The active only/skip/severity settings as SARIF ``ruleConfigurationOverrides``
+    (SARIF 2.1.0, 3.20.5): a skipped rule, or one left out by ``only``, is
+    ``enabled: false``; a re-graded rule carries its ``level``. The reason and where it
+    was set go into the override's property bag."""
+    out: list[dict[str, Any]] = []
+    for adjustment in adjustments:
+        if adjustment.kind == "only":
+            affected = [rule for rule in index if rule not in adjustment.rules]
+            configuration: dict[str, Any] = {"enabled": False}
+        elif adjustment.kind == "skip":
+            affected, configuration = list(adjustment.rules), {"enabled": False}
+        else:
+            affected = list(adjustment.rules)
+            configuration = {"level": adjustment.level.value if adjustment.level else "warning"}
+        bag = {"setting": adjustment.kind, "source": adjustment.source}
+        if adjustment.reason:
+            bag["reason"] = adjustment.reason
+        for rule in affected:
+            if rule in index:
+                out.append({"descriptor": {"id": rule, "index": index[rule]},
+                            "configuration": {**configuration, "properties": dict(bag)}})
+    return out
+
+
 def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str, Any]:
     """The SARIF log as JSON-ready data (what ``render`` writes)."""
     catalogue = catalogue if catalogue is not None else load_catalogue()
@@ -127,6 +152,9 @@ def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str,
     ]
     driver = {"name": "plantlint", "version": report.tool_version, "rules": rules}
     run: dict[str, Any] = {"tool": {"driver": driver}, "results": results, "columnKind": "unicodeCodePoints"}
+    overrides = rule_overrides(report.adjustments, index)
+    if overrides:
+        run["invocations"] = [{"executionSuccessful": True, "ruleConfigurationOverrides": overrides}]
     if report.since is not None:
         run["properties"] = {"since": report.since}
         changes = {f.path: [dict(c) for c in f.structure_changes] for f in report.files if f.structure_changes}

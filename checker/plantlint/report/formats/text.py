@@ -20,7 +20,14 @@ from rich.text import Text
 
 from plantlint.core.catalogue import SEVERITY_STYLE
 from plantlint.core.findings import FileReport, Finding, Report, Span
-from plantlint.report.formats.base import baseline_counts, baseline_of, change_text, findings_in_order, one_line
+from plantlint.report.formats.base import (
+    adjustment_text,
+    baseline_counts,
+    baseline_of,
+    change_text,
+    findings_in_order,
+    one_line,
+)
 
 DEFAULT_WIDTH = 100
 TAB_WIDTH = 4
@@ -190,7 +197,7 @@ class TextFormatter:
             head.append(f"  at point {one_line(finding.point)}", style=dim)
         baseline = baseline_of(finding, report)
         if baseline is not None:
-            head.append(f"  ({'new since ' + one_line(report.since or '') if baseline == 'introduced' else 'known'})", style="italic " + dim if dim else "italic")
+            head.append(f"  ({baseline})", style="italic " + dim if dim else "italic")  # the same word in every format
         if finding.waived:
             head.append("  waived", style="magenta")
         console.print(head, soft_wrap=True)
@@ -219,7 +226,9 @@ class TextFormatter:
     def _summary(self, console: Console, report: Report) -> None:
         counts = report.counts()
         files = f"{counts['files']} file" + ("" if counts["files"] == 1 else "s")
-        console.print(Text(f"checked {files}: {_counts_phrase(counts)}", style="bold"), soft_wrap=True)
+        gone = sum(f.deleted for f in report.files)
+        deleted = f" ({gone} deleted since {one_line(report.since or '')}, not counted)" if gone else ""
+        console.print(Text(f"checked {files}{deleted}: {_counts_phrase(counts)}", style="bold"), soft_wrap=True)
         if report.since is not None:
             moved = baseline_counts(report)
             console.print(
@@ -229,7 +238,17 @@ class TextFormatter:
                 ),
                 soft_wrap=True,
             )
+        if report.adjustments:
+            console.print(Text("settings that change what is reported:", style="bold"), soft_wrap=True)
+            for adjustment in report.adjustments:
+                _indented_by(console, 2, Text(adjustment_text(adjustment)))
         console.print(verdict(report), soft_wrap=True)
+
+
+def _indented_by(console: Console, indent: int, text: Text) -> None:
+    for line in text.wrap(console, max(console.width - indent - 2, 20)):
+        line.rstrip()
+        console.print(Text(" " * indent) + line, soft_wrap=True)
 
 
 def verdict(report: Report) -> Text:

@@ -178,7 +178,13 @@ def _config_start(paths: list[str]) -> Path:
     """
     if not paths:
         return Path.cwd()
-    folders = [Path(p).resolve() if Path(p).is_dir() else Path(p).resolve().parent for p in paths]
+    def folder(p: Path) -> Path:
+        try:
+            return p.resolve() if p.is_dir() else p.resolve().parent
+        except (RuntimeError, OSError):  # a symbolic link loop: discovery reports it
+            return Path(os.path.abspath(p)).parent
+
+    folders = [folder(Path(p)) for p in paths]
     try:
         return Path(os.path.commonpath([str(f) for f in folders]))
     except ValueError:

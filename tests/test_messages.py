@@ -117,6 +117,17 @@ def test_documented_limits_are_the_codes_limits() -> None:
     assert f"plant models are limited to {syntax.MAX_STATEMENTS}" in g.message
 
 
+def test_envelope_findings_point_at_the_state_ranges_in_every_model() -> None:
+    from plantlint.run.config import Config
+    from plantlint.run.pipeline import analyse_bytes
+
+    # the actuator gain 1 + x changes sign at x = -1 inside the envelope (invented)
+    base = "plant flipper\nstate x in -2 .. 2\ninput u\nrate x = -x + (1 + x)*u\noutput y = x\n"
+    for text in (base, base + "expect regular\n"):
+        (f,) = [f for f in analyse_bytes(text.encode(), Config()).findings if f.rule == "envelope-singular"]
+        assert (f.span.line, f.span.column) == (2, 9), text  # `in -2 .. 2`, not the plant or the claim
+
+
 def test_huge_literal_is_cut_in_messages() -> None:
     (f,) = findings("plant p\nstate x in -1 .. 1\ninput u\nrate x = 2^1000^1000 + u\noutput y = x\n")
     assert f.rule == "syntax" and len(f.message) < 120

@@ -209,6 +209,15 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
             scope.constants[symbol(p)] = q.value
 
     states = tuple(st.name for st in by_kind.get("state", []) if scope.declared.get(st.name or "") is st)
+    # Findings about the operating envelope (anchor "envelope") point at the state ranges in
+    # every model, with or without `expect regular`: the first state without a range when the
+    # envelope is not a box, else the range of the first state.
+    state_stmts = [st for st in by_kind.get("state", []) if scope.declared.get(st.name or "") is st]
+    unranged = [st for st in state_stmts if st.range_span is None]
+    if unranged:
+        spans["envelope"] = unranged[0].name_span or unranged[0].span
+    elif state_stmts and state_stmts[0].range_span is not None:
+        spans["envelope"] = state_stmts[0].range_span
     inputs = tuple(st.name for st in by_kind.get("input", []) if scope.declared.get(st.name or "") is st)
     dynamic = set(states) | set(inputs) | set(ranged)
 

@@ -50,6 +50,7 @@ EXPECTED: dict[str, list[tuple[str, str]]] = {
         ("bad-range", "error"),
         ("unknown-reference", "error"),
     ],
+    "units": [("unit-mismatch", "error"), ("unit-unknown", "error")],
     "structure": [
         ("singular-model", "error"),
         ("relative-degree-undefined", "error"),

@@ -23,6 +23,7 @@ from pathlib import Path
 from typing import Any, Callable
 
 from plantlint import __version__
+from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
 from plantlint.core.findings import FileReport, Finding, Severity, Span
 from plantlint.run.pipeline import RawResult, budget_finding, finish
 
@@ -211,7 +212,7 @@ class Cache:
 
     def key(self, data: bytes) -> str:
         h = hashlib.sha256()
-        h.update(f"plantlint {__version__} cache {CACHE_FORMAT} {self.settings}\0".encode())
+        h.update(f"plantlint {__version__} cache {CACHE_FORMAT} units {UNITS_VERSION} {self.settings}\0".encode())
         h.update(data)
         return h.hexdigest()
 
@@ -303,6 +304,10 @@ def analyse_all(
     from plantlint.language.syntax import parser
 
     parser()  # build the LALR tables once, not in every worker
+    from plantlint.language import units
+
+    if any(units.declares_units(d) for d in datas):
+        units.preload()  # pint's registry once (~0.5 s), not in every worker
 
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)

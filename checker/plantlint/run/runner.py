@@ -28,7 +28,7 @@ from plantlint.core.findings import FileReport, Finding, Severity, Span
 from plantlint.run.pipeline import RawResult, budget_finding, finish
 
 STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
-CACHE_FORMAT = 1
+CACHE_FORMAT = 2  # 2: the analysis has a linearisation per point
 MAX_BYTES = 1 << 20  # same limit as plantlint.language.syntax.MAX_BYTES (not imported: it pulls in sympy)
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker
 MAX_WAIT = 3600.0  # seconds; longest single wait for worker messages

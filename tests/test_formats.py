@@ -78,7 +78,7 @@ def _render(name: str, report: Report, color: bool = False) -> str:
 
 
 def test_registry_names_and_lookup() -> None:
-    assert list(FORMATS) == ["text", "lines", "json", "sarif"]
+    assert list(FORMATS) == ["text", "lines", "json", "sarif", "markdown"]
     assert get_formatter("sarif") is FORMATS["sarif"]
     with pytest.raises(ValueError, match="unknown format 'xml'"):
         get_formatter("xml")

@@ -47,8 +47,8 @@ def build_parser() -> argparse.ArgumentParser:
     check = sub.add_parser("check", help="check model files or folders", epilog=CAUTION,
                            description="Check .plant files (folders are searched for *.plant).")
     check.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: the configured root)")
-    check.add_argument("--format", choices=("text", "lines", "json", "sarif"), default="text",
-                       help="report format (default: text)")
+    check.add_argument("--format", choices=("text", "lines", "json", "sarif", "markdown"), default="text",
+                       help="report format (default: text; markdown: a summary for a merge-request comment)")
     check.add_argument("--output", metavar="FILE", help="write the report to FILE instead of standard output")
     check.add_argument("--only", metavar="IDS", help="comma-separated rule ids to report (all others are dropped)")
     check.add_argument("--skip", metavar="IDS", help="comma-separated rule ids to drop")
@@ -63,6 +63,37 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
     check.add_argument("--color", choices=("auto", "always", "never"), default="auto",
                        help="colour in text output (default: auto; NO_COLOR is honoured)")
+    check.add_argument("--shard", metavar="K/N",
+                       help="check only shard K of N (a deterministic share of the models; "
+                       "`plantlint merge` joins the shards' JSON reports)")
+
+    merge = sub.add_parser("merge", help="merge the JSON reports of a sharded run into one report",
+                           description="Join the JSON reports written by `check --shard K/N --format json` "
+                           "for K = 1..N into the report the unsharded run would have written, with the "
+                           "same exit code. Refuses a missing, repeated or foreign shard.")
+    merge.add_argument("reports", nargs="+", metavar="REPORT.json")
+    merge.add_argument("--format", choices=("text", "lines", "json", "sarif", "markdown"), default="text",
+                       help="format of the merged report (default: text)")
+    merge.add_argument("--output", metavar="FILE", help="write the merged report to FILE")
+    merge.add_argument("--fail-on", choices=("error", "warning", "note"),
+                       help="lowest severity that fails (default: the level the shards ran with)")
+    merge.add_argument("--color", choices=("auto", "always", "never"), default="auto")
+
+    plot = sub.add_parser("plot", help="draw envelope slices and zero-dynamics traces (needs the plot extra)",
+                          description="Per model: a 2-D slice of the operating envelope shaded where the "
+                          "decoupling matrix is singular or nearly so, with the envelope proof's witness; and the "
+                          "zero-dynamics eigenvalues across each ranged parameter, with the imaginary axis and "
+                          "the crossing. Needs matplotlib: pip install \"plantlint[plot]\".")
+    plot.add_argument("paths", nargs="+", metavar="PATH", help="model files or folders")
+    plot.add_argument("--states", metavar="A,B", help="the two states of the slice (default: those the decoupling "
+                      "matrix depends on)")
+    plot.add_argument("--point", metavar="NAME", help="hold the other states at this operating point, and trace "
+                      "the zero dynamics there (default: the envelope witness, else the range centres; the first point)")
+    plot.add_argument("--param", metavar="NAME", help="trace only this ranged parameter (default: every one)")
+    plot.add_argument("--out", metavar="DIR", default="plantlint-plots", help="folder for the pictures "
+                      "(default: plantlint-plots)")
+    plot.add_argument("--format", choices=("png", "svg"), default="png")
+    plot.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
 
     rules = sub.add_parser("rules", help="list the rule catalogue, or show one rule",
                            description="The rule catalogue: ids, default severities and rationale.")
@@ -96,6 +127,10 @@ def main(argv: Sequence[str] | None = None) -> int:
             return _check(args)
         if args.command == "rules":
             return _rules(args)
+        if args.command == "merge":
+            return _merge(args)
+        if args.command == "plot":
+            return _plot(args)
         return _explain(args)
     except KeyboardInterrupt:
         print("plantlint: interrupted", file=sys.stderr)
@@ -153,19 +188,33 @@ def _check(args: argparse.Namespace) -> int:
     paths = args.paths or [str(config.root)]
     cache_dir = Path(args.cache_dir) if args.cache_dir else config.root / config.cache_dir
     use_cache = config.cache and not args.no_cache
+    shard = None
+    if args.shard:
+        from plantlint.run.shard import Shard, ShardError, parse_shard
+
+        try:
+            shard = Shard(*parse_shard(args.shard), root=config.root)
+        except ShardError as exc:
+            return _fail(str(exc))
     try:
         if args.since:
             from plantlint.run.gate import gate
 
             report = gate(args.since, paths, config, defaults, jobs=effective_jobs(config), use_cache=use_cache,
-                          cache_dir=cache_dir, show_progress=sys.stderr.isatty())
+                          cache_dir=cache_dir, show_progress=sys.stderr.isatty(), shard=shard)
         else:
             targets = discover(paths, config.root, config.include, config.exclude)
+            if shard is not None:
+                targets = shard.pick(targets)
             files = check_targets(targets, config, defaults, jobs=effective_jobs(config), use_cache=use_cache,
                                   cache_dir=cache_dir, show_progress=sys.stderr.isatty())
             report = Report(files=files, tool_version=__version__, fail_on=config.fail_on)
     except UsageError as exc:
         return _fail(str(exc))
+    if shard is not None:
+        report.shard = shard.record(config.fail_on)
+        print(f"plantlint: shard {shard.index}/{shard.count}: {len(report.files)} of {shard.models} models",
+              file=sys.stderr)
     report.adjustments = config.adjustments()
     return _emit(report, args.format, args.output, args.color)
 
@@ -242,6 +291,84 @@ def _explain(args: argparse.Namespace) -> int:
         return _fail(f"{args.file}: no such file")
     color = args.format == "text" and _use_color(args.color, sys.stdout)
     return explain_file(path, args.point, args.format, sys.stdout, color)
+
+
+def _merge(args: argparse.Namespace) -> int:
+    import json
+
+    from plantlint.core.findings import Severity
+    from plantlint.run.runner import read_source, source_text, Target
+    from plantlint.run.shard import ShardError, merge_reports
+
+    named = []
+    for name in args.reports:
+        try:
+            with open(name, "r", encoding="utf-8") as fh:
+                named.append((name, json.load(fh)))
+        except OSError as exc:
+            return _fail(f"{name}: cannot read: {exc.strerror}")
+        except ValueError as exc:
+            return _fail(f"{name}: not JSON ({exc})")
+    try:
+        report = merge_reports(named, Severity.parse(args.fail_on) if args.fail_on else None)
+    except ShardError as exc:
+        return _fail(str(exc))
+    for file_report in report.files:  # source lines for the text view, when the checkout has the file
+        path = Path(file_report.path)
+        if not file_report.deleted and path.is_file():
+            file_report.source = source_text(read_source(Target(path, file_report.path)).data)
+    return _emit(report, args.format, args.output, args.color)
+
+
+def _plot(args: argparse.Namespace) -> int:
+    from plantlint.report.plots import INSTALL_HINT, matplotlib_missing
+
+    if matplotlib_missing():
+        print(f"plantlint: {INSTALL_HINT}", file=sys.stderr)
+        return EXIT_USAGE
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.report.plots import plot_model
+    from plantlint.run.config import ConfigError, load_config
+    from plantlint.run.runner import UsageError, discover, read_source
+
+    states = [s.strip() for s in args.states.split(",")] if args.states else None
+    if states is not None and (len(states) != 2 or not all(states)):
+        return _fail("--states needs two state names separated by a comma, e.g. --states th,w")
+    try:
+        config = load_config(_config_start(args.paths), Path(args.config) if args.config else None,
+                             frozenset(load_catalogue().ids()))
+        targets = discover(args.paths, config.root, config.include, config.exclude)
+    except (ConfigError, UsageError) as exc:
+        return _fail(str(exc))
+    out = Path(args.out)
+    status = EXIT_OK
+    written: set[str] = set()
+    for target in targets:
+        source = read_source(target)
+        if source.data is None:
+            print(f"{target.display}: cannot plot: {source.problem.message if source.problem else 'unreadable'}",
+                  file=sys.stderr)
+            status = EXIT_FINDINGS
+            continue
+        outcome = plot_model(source.data, args.format, states=states, point=args.point, param=args.param,
+                             envelope_seconds=getattr(config, "envelope_seconds", 5.0),
+                             envelope_boxes=getattr(config, "envelope_boxes", 20000))
+        if outcome.error:
+            print(f"{target.display}: cannot plot: {outcome.error}", file=sys.stderr)
+            status = EXIT_FINDINGS
+        for note in outcome.notes:
+            print(f"{target.display}: {note}")
+        for name, data in outcome.pictures:
+            if name in written:  # two models with one plant name: keep both
+                name = f"{Path(target.display).stem}-{name}"
+            written.add(name)
+            try:
+                out.mkdir(parents=True, exist_ok=True)
+                (out / name).write_bytes(data)
+            except OSError as exc:
+                return _fail(f"{out / name}: cannot write: {exc.strerror}")
+            print(f"{target.display}: wrote {out / name}")
+    return status
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -388,3 +388,28 @@ def zero_dynamics_json(zd: ZeroDynamics) -> dict[str, object]:
         "eigenvalues": [[z.real, z.imag] for z in sorted(zd.eigenvalues, key=lambda z: (z.real, z.imag))],
         "verdict": zd.verdict,
     }
+
+
+def approximate_eigenvalues(
+    kernel: Kernel, degrees: Sequence[int], point: dict[sp.Symbol, sp.Expr], digits: int = 30
+) -> tuple[complex, ...] | None:
+    """Eigenvalues of the linearised zero dynamics at a point known only approximately
+    (an equilibrium solved numerically, for pictures): the numeric route of
+    :func:`zero_dynamics_at` without its exact rest-point test, so never a verdict.
+    None when the zero dynamics are not defined there."""
+    plant = kernel.plant
+    n, r = plant.n, sum(degrees)
+    if len(degrees) != plant.p or plant.m != plant.p or any(d < 1 for d in degrees) or r >= n:
+        return None
+    full = dict(plant.param_nominal)
+    full.update(point)
+    if any(s not in full for s in plant.states):
+        return None
+    data = _point_data(kernel, degrees, full)
+    try:
+        with mpmath.workdps(digits):
+            if mpmath.fabs(mpmath.det(_to_mp(data.A0))) == 0:
+                return None
+            return _numeric_once("", n, r, data, digits).eigenvalues
+    except (ZeroDivisionError, ValueError, TypeError):
+        return None

@@ -140,6 +140,7 @@ class Report:
     fail_on: Severity = Severity.ERROR
     since: str | None = None
     adjustments: tuple[Adjustment, ...] = ()  # active only/skip/severity settings, with reasons
+    shard: dict[str, Any] | None = None  # under --shard: index, count, models, positions, fail_on
 
     def counts(self) -> dict[str, int]:
         out = {"files": sum(not r.deleted for r in self.files), "errors": 0, "warnings": 0, "notes": 0, "waived": 0}

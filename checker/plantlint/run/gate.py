@@ -97,10 +97,12 @@ def old_version(commit: str, path: str, top: Path) -> bytes | None:
 
 
 def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity], *, jobs: int, use_cache: bool,
-         cache_dir: Path | None, show_progress: bool) -> Report:
+         cache_dir: Path | None, show_progress: bool, shard: Any = None) -> Report:
+    """The gate over ``paths``; with ``shard`` (run.shard.Shard) only that shard's models."""
     top = repo_top(Path.cwd())
     commit = resolve_ref(ref, top)
-    targets = discover(paths, config.root, config.include, config.exclude)
+    every = discover(paths, config.root, config.include, config.exclude)
+    targets = shard.pick(every) if shard is not None else every
     moved = renames(commit, top)
     now_sources = [read_source(t) for t in targets]
     old_sources: list[Source | None] = []
@@ -121,13 +123,15 @@ def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity],
         report = finish(src.display, raw, source_text(src.data), config, defaults)
         old_raw = next(old_iter) if old_src is not None else None
         files.append(compare(report, old_raw, config, defaults))
-    files.extend(_deleted(commit, top, paths, config, defaults, targets, moved, jobs=jobs, use_cache=use_cache,
-                          cache_dir=cache_dir))
+        if old_raw is not None:
+            files[-1].structure_changes.extend(waiver_changes(old_raw.waivers, raw.waivers))
+    files.extend(_deleted(commit, top, paths, config, defaults, every, moved, jobs=jobs, use_cache=use_cache,
+                          cache_dir=cache_dir, shard=shard))
     return Report(files=files, tool_version=__version__, fail_on=config.fail_on, since=ref)
 
 
 def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: dict[str, Severity],
-             targets: list[Any], moved: dict[str, str], **run: Any) -> list[FileReport]:
+             targets: list[Any], moved: dict[str, str], shard: Any = None, **run: Any) -> list[FileReport]:
     """Models under the checked folders at REF that are gone now (and were not
     renamed): every finding they had is fixed, and the report says they were deleted."""
     current = {t.path.resolve() for t in targets}
@@ -152,6 +156,8 @@ def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: di
                 continue
             if name not in {g for g, _ in gone}:
                 gone.append((name, path))
+    if shard is not None:
+        gone = [gone[i] for i in shard.pick_gone([path for _, path in gone])]
     if not gone:
         return []
     sources = [Source(name, old_version(commit, name, top)) for name, _ in gone]
@@ -211,6 +217,17 @@ def _words(value: Any) -> Any:
     if isinstance(value, str):
         return VERDICT_WORDS.get(value, value.replace("_", " "))
     return value
+
+
+def waiver_changes(before: list[Any], after: list[Any]) -> list[dict[str, Any]]:
+    """Waivers added, removed or given another reason: ``what`` is 'waiver RULE [at POINT]',
+    ``before``/``after`` the reasons (None where there was no such waiver)."""
+    def keyed(waivers: list[Any]) -> dict[str, str]:
+        return {f"waiver {w.rule}" + (f" at {w.point}" if w.point else ""): w.reason for w in waivers}
+
+    old, new = keyed(before), keyed(after)
+    return [{"what": k, "before": old.get(k), "after": new.get(k)}
+            for k in sorted(set(old) | set(new)) if old.get(k) != new.get(k)]
 
 
 def summary(analysis: dict[str, Any] | None) -> dict[str, Any]:

@@ -4,13 +4,14 @@ from __future__ import annotations
 
 from plantlint.report.formats.base import Formatter
 from plantlint.report.formats.lines import LinesFormatter
+from plantlint.report.formats.markdown import MarkdownFormatter
 from plantlint.report.formats.json_report import JsonFormatter
 from plantlint.report.formats.sarif import SarifFormatter
 from plantlint.report.formats.text import TextFormatter
 
 FORMATS: dict[str, Formatter] = {
     formatter.name: formatter
-    for formatter in (TextFormatter(), LinesFormatter(), JsonFormatter(), SarifFormatter())
+    for formatter in (TextFormatter(), LinesFormatter(), JsonFormatter(), SarifFormatter(), MarkdownFormatter())
 }
 
 

@@ -12,7 +12,9 @@ import json
 import math
 from typing import Any, TextIO
 
-from plantlint.core.findings import FileReport, Finding, Report
+from dataclasses import dataclass
+
+from plantlint.core.findings import Adjustment, FileReport, Finding, Report, Severity, Span
 from plantlint.report.formats.base import baseline_counts, baseline_of, findings_in_order
 
 REPORT_FORMAT = "plantlint-report"
@@ -89,12 +91,67 @@ def build_report(report: Report) -> dict[str, Any]:
     if report.since is not None:
         out["since"] = report.since
     out["adjustments"] = [adjustment.to_data() for adjustment in report.adjustments]
+    if report.shard is not None:
+        out["shard"] = plain(report.shard)
     out["files"] = [file_record(fr, findings, report) for fr, findings in findings_in_order(report)]
     summary: dict[str, Any] = dict(report.counts())
     if report.since is not None:
         summary.update(baseline_counts(report))
     out["summary"] = summary
     return out
+
+
+class ReportReadError(ValueError):
+    """A JSON document that is not a plantlint report of this version."""
+
+
+@dataclass(frozen=True)
+class RecordedFinding(Finding):
+    """A finding read back from a JSON report. The anchor it was made from is not in
+    the report, so its fingerprint is the recorded one."""
+
+    recorded: str = ""
+
+    def fingerprint(self, plant: str | None) -> str:
+        return self.recorded
+
+
+def read_report(data: Any) -> Report:
+    """The :class:`Report` a JSON report was written from (``plantlint merge``).
+
+    ``build_report(read_report(build_report(r)))`` equals ``build_report(r)``
+    (tests/test_shard.py holds it), so a key added to the report needs its reader here.
+    Source text is not in the report; the caller may attach it.
+    """
+    if not isinstance(data, dict) or data.get("format") != REPORT_FORMAT:
+        raise ReportReadError("not a plantlint JSON report")
+    if data.get("version") != REPORT_VERSION:
+        raise ReportReadError(f"report version {data.get('version')!r}; this plantlint reads version {REPORT_VERSION}")
+    try:
+        since = data.get("since")
+        files = []
+        for rec in data["files"]:
+            findings: list[Finding] = []
+            for f in rec["findings"]:
+                span = Span(f["line"], f["column"], f["end_line"], f["end_column"]) if f["line"] is not None else None
+                findings.append(RecordedFinding(
+                    f["rule"], Severity(f["severity"]), f["message"], span, point=f["point"], hint=f["hint"],
+                    waived=bool(f["waived"]), reason=f["reason"], baseline=f.get("baseline"),
+                    recorded=f["fingerprint"]))
+            changes = list(rec.get("structure_changes", []))
+            deleted = any(c.get("what") == "model" and c.get("after") == "deleted" for c in changes)
+            files.append(FileReport(path=rec["path"], plant=rec["plant"], findings=findings, analysis=rec["analysis"],
+                                    structure_changes=changes, deleted=deleted))
+        adjustments = tuple(
+            Adjustment(a["kind"], tuple(a["rules"]), a["reason"] or "", a["source"],
+                       Severity(a["level"]) if a["level"] else None)
+            for a in data.get("adjustments", []))
+        shard = data.get("shard")
+        fail_on = Severity(shard["fail_on"]) if shard else Severity.ERROR
+        return Report(files=files, tool_version=data["tool"]["version"], fail_on=fail_on, since=since,
+                      adjustments=adjustments, shard=shard)
+    except (KeyError, TypeError, ValueError) as exc:
+        raise ReportReadError(f"malformed report ({type(exc).__name__}: {exc})") from None
 
 
 class JsonFormatter:

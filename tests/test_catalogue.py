@@ -50,6 +50,7 @@ EXPECTED: dict[str, list[tuple[str, str]]] = {
         ("bad-range", "error"),
         ("unknown-reference", "error"),
     ],
+    "units": [("unit-mismatch", "error"), ("unit-unknown", "error")],
     "structure": [
         ("singular-model", "error"),
         ("relative-degree-undefined", "error"),
@@ -72,7 +73,7 @@ def catalogue() -> Catalogue:
 
 def test_exactly_the_required_rules_in_family_order(catalogue: Catalogue) -> None:
     assert list(catalogue.ids()) == ALL_IDS
-    assert len(ALL_IDS) == 27
+    assert len(ALL_IDS) == 29
     for family, entries in EXPECTED.items():
         for rule_id, severity in entries:
             rule = catalogue.get(rule_id)

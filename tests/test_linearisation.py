@@ -32,6 +32,7 @@ from plantlint.run.config import Config
 from plantlint.run.pipeline import read_model
 
 FIXTURES = Path(__file__).parent / "fixtures" / "models"
+REPO = Path(__file__).parent.parent
 
 
 # -- helpers -------------------------------------------------------------------------------
@@ -276,6 +277,24 @@ def test_pvtol_hauser_sastry_meyer() -> None:
     assert_same_set(list(lin.zeros or ()), [-math.sqrt(196.2), math.sqrt(196.2)], tol=1e-12)
     assert lin.controllability_rank == 6 and lin.observability_rank == 6
     assert lin.cross_check.status == "agrees"
+
+
+def test_boost_converter_right_half_plane_zero_erickson() -> None:
+    # Erickson & Maksimovic, Fundamentals of Power Electronics (2nd ed.), ch. 8, the
+    # boost converter's control-to-output transfer function (from memory): RHP zero at
+    # D'^2 R / L, poles from s^2 + s/(R C) + D'^2/(L C), D' = 1 - D = v_in / v_out.
+    # The model's numbers are invented (example_repo); the formulas are the book's.
+    a = analyse_text((REPO / "example_repo" / "models" / "power" / "dc_bus_boost.plant").read_text())
+    R, L, C, v_in = 12, 0.0005, 0.0022, 24
+    for pa in a.points:
+        lin = pa.linearisation
+        assert lin is not None and lin.exact
+        v_out = float(next(v for k, v in pa.equilibrium.values.items() if str(k) == "v_C"))
+        d_prime = v_in / v_out
+        assert_same_set(list(lin.zeros or ()), [d_prime**2 * R / L], tol=1e-12)
+        poles = np.roots([1, 1 / (R * C), d_prime**2 / (L * C)])
+        assert_same_set(list(lin.poles), list(poles), tol=1e-12)
+        assert lin.cross_check.status == "agrees"
 
 
 def test_uncontrollable_mode_named_on_a_nonlinear_model() -> None:

@@ -37,6 +37,7 @@ import numpy as np
 import sympy as sp
 from flint import arb
 
+from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
@@ -158,6 +159,8 @@ class _PointEchelon:
 
 #: Entries at least this large (tree nodes) are left as they are by _normal.
 NORMAL_SIZE = 2000
+#: Wall-clock bound of working out the missing directions named in a message.
+MESSAGE_SECONDS = 1.0
 
 
 class _BorderedMinors:
@@ -544,9 +547,18 @@ def distributions_at(
             if len(basis) < n and echelon.add(column):
                 basis.append(column)
         control_rank = len(basis)
-    vectors = _orthogonal_complement(kernel, basis) if control_rank < n else []
-    missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
     notes: list[str] = list(structure.uncertain)
+    vectors: list[list[sp.Expr]] = []
+    if control_rank < n:  # the missing directions only name what is wrong in a message: bounded
+        try:
+            with within(MESSAGE_SECONDS) as step:
+                vectors = _orthogonal_complement(kernel, basis)
+        except TimeUp as exc:
+            if not expired(exc, step):
+                raise
+            notes.append(f"the missing directions were not worked out: it took longer than {MESSAGE_SECONDS:g} s "
+                         "(they only name the problem; the rank does not depend on them)")
+    missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
     if undefined:
         notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds")
     for k in singular:

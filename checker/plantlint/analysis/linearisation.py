@@ -568,7 +568,9 @@ def cross_check(lin: Linearisation, zd: ZeroDynamics | None) -> CrossCheck:
     if len(ours) != len(theirs) or not _same_multiset(ours, theirs, CROSS_CHECK_TOLERANCE):
         return CrossCheck("disagrees", f"transmission zeros {show_eigenvalues(ours) or 'none'}; zero-dynamics "
                                        f"eigenvalues {show_eigenvalues(theirs) or 'none'}")
-    return CrossCheck("agrees", f"{len(ours)} transmission zero(s) equal the zero-dynamics eigenvalues "
+    if not ours:
+        return CrossCheck("agrees", "no transmission zeros and no zero dynamics (total relative degree n)")
+    return CrossCheck("agrees", f"the {len(ours)} transmission zero(s) equal the zero-dynamics eigenvalues "
                                 f"(relative tolerance {CROSS_CHECK_TOLERANCE:g})")
 
 

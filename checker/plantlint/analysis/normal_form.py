@@ -16,6 +16,7 @@ from typing import Iterator, Sequence
 
 import sympy as sp
 
+from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.exact import ZeroDecider, number_decider, rank as exact_rank
 from plantlint.language.printer import show_expr
 from plantlint.kernel.lie import Kernel
@@ -25,6 +26,9 @@ MAX_SOLVE_UNKNOWNS = 4
 MAX_SOLVE_OPS = 120
 MAX_NONLINEAR_UNKNOWNS = 2
 MAX_RESULT_OPS = 100
+#: Wall-clock bound of writing the zero dynamics out (display only: the verdict comes from
+#: zero_dynamics.py); beyond it the step is dropped with a note.
+DISPLAY_SECONDS = 1.0
 
 
 @dataclass(frozen=True)
@@ -82,7 +86,14 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     eta = tuple(chosen)
     dynamics, note = None, ""
     if rank == n:
-        dynamics, note = _symbolic_zero_dynamics(kernel, degrees, xi, eta, point, decide)
+        try:
+            with within(DISPLAY_SECONDS) as step:
+                dynamics, note = _symbolic_zero_dynamics(kernel, degrees, xi, eta, point, decide)
+        except TimeUp as exc:
+            if not expired(exc, step):
+                raise
+            dynamics, note = None, (f"the zero dynamics were not written out: solving for them took longer than "
+                                    f"{DISPLAY_SECONDS:g} s (display only; the verdict does not depend on it)")
     return NormalForm(
         tuple(names), tuple(map(show_expr, eta)), rank, rank == n, input_free, dynamics, note
     )
@@ -249,4 +260,5 @@ def normal_form_json(nf: NormalForm) -> dict[str, object]:
         "invertible": nf.invertible,
         "input_free": nf.input_free,
         "zero_dynamics": list(nf.zero_dynamics) if nf.zero_dynamics is not None else None,
+        "note": nf.note or None,
     }

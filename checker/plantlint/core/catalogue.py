@@ -30,7 +30,7 @@ else:  # pragma: no cover - exercised only on Python 3.10
     import tomli as tomllib
 
 #: Families in presentation order; each lives in ``rules/<family with _>.toml``.
-FAMILIES: tuple[str, ...] = ("model", "structure", "zero-dynamics", "linearization", "run")
+FAMILIES: tuple[str, ...] = ("model", "units", "structure", "zero-dynamics", "linearization", "run")
 
 _REQUIRED_KEYS = ("id", "family", "severity", "title", "rationale", "bad", "good", "references")
 _STRING_KEYS = ("id", "family", "title", "rationale", "bad", "good")

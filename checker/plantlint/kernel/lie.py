@@ -25,6 +25,7 @@ from typing import Sequence
 import sympy as sp
 from flint import arb
 
+from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.plant import Plant
 
@@ -296,9 +297,10 @@ class Kernel:
         if not _has_functions(exact):
             c = sp.nsimplify(exact) if exact.has(sp.Float) else sp.cancel(exact)
             return PointValue(to_arb(0) if c == 0 else _safe_ball(c), c == 0)
-        is_zero = exact.equals(0)
-        if is_zero is None:
-            return PointValue(_safe_ball(exact), True)  # within 2^-1024 of zero
+        is_zero = bounded_equals_zero(exact)
+        if is_zero is None:  # within 2^-1024 of zero, not proven symbolically: taken as zero, reported
+            self.uncertain.append(exact)
+            return PointValue(_safe_ball(exact), True)
         return PointValue(_safe_ball(exact), bool(is_zero))
 
 
@@ -374,6 +376,25 @@ def screen_then_confirm(
                 if b.is_finite() and b.rad() < 2.0 ** (-prec // 2):
                     break  # a tight ball around zero: more digits will not help
     return confirm_zero(expr)
+
+
+#: Bounds of sympy's ``equals(0)`` on a constant whose balls all contain zero (its run
+#: time has no limit of its own: a disguised trigonometric identity can take minutes).
+EQUALS_OPS_LIMIT = 400
+EQUALS_SECONDS = 2.0
+
+
+def bounded_equals_zero(exact: sp.Expr) -> bool | None:
+    """``exact.equals(0)`` within a size and a time bound; None when undecided."""
+    if sp.count_ops(exact) > EQUALS_OPS_LIMIT:
+        return None
+    try:
+        with within(EQUALS_SECONDS) as step:
+            return exact.equals(0)
+    except TimeUp as exc:
+        if not expired(exc, step):
+            raise
+        return None
 
 
 def has_symbolic_denominator(e: sp.Expr) -> bool:

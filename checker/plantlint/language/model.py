@@ -657,7 +657,9 @@ def _compare(d: sp.Expr) -> int:
             return -1
     except UnsupportedExpression:
         pass
-    return 0 if d.equals(0) else (1 if d.is_positive else -1)
+    from plantlint.kernel.lie import bounded_equals_zero
+
+    return 0 if bounded_equals_zero(d) else (1 if d.is_positive else -1)
 
 
 def _show(e: sp.Expr) -> str:

@@ -94,6 +94,8 @@ class Expression:
     span: Span
     names: tuple[NameRef, ...]
     calls: tuple[CallRef, ...]
+    #: the parse tree it was built from (read by the unit checker; not part of equality)
+    tree: Tree | Token | None = field(default=None, compare=False, repr=False)
 
 
 @dataclass(frozen=True)
@@ -112,6 +114,7 @@ class Statement:
     name_span: Span | None = None
     expr: Expression | None = None
     unit: str | None = None
+    unit_span: Span | None = None  # the unit text inside the brackets
     doc: str | None = None
     low: Expression | None = None
     high: Expression | None = None
@@ -466,21 +469,23 @@ class _Builder:
 
     def _const(self, node: Tree, span: Span) -> Statement:
         name, expr, unit, doc = node.children
-        return Statement("const", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit), doc=_doc(doc))
+        return Statement("const", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit),
+                         unit_span=_unit_span(unit), doc=_doc(doc))
 
     def _param(self, node: Tree, span: Span) -> Statement:
         name, expr, rng, unit, doc = node.children
         low, high, rspan = self._range(rng)
         return Statement(
-            "param", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit), doc=_doc(doc),
+            "param", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit),
+            unit_span=_unit_span(unit), doc=_doc(doc),
             low=low, high=high, range_span=rspan,
         )
 
     def _state(self, node: Tree, span: Span) -> Statement:
         name, unit, rng, doc = node.children
         low, high, rspan = self._range(rng)
-        return Statement(node.data.removesuffix("_stmt"), span, *self._name(name), unit=_unit(unit), doc=_doc(doc),
-                         low=low, high=high, range_span=rspan)
+        return Statement(node.data.removesuffix("_stmt"), span, *self._name(name), unit=_unit(unit),
+                         unit_span=_unit_span(unit), doc=_doc(doc), low=low, high=high, range_span=rspan)
 
     _input = _state
 
@@ -494,7 +499,8 @@ class _Builder:
 
     def _output(self, node: Tree, span: Span) -> Statement:
         name, unit, expr, doc = node.children
-        return Statement("output", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit), doc=_doc(doc))
+        return Statement("output", span, *self._name(name), expr=self.expression(expr), unit=_unit(unit),
+                         unit_span=_unit_span(unit), doc=_doc(doc))
 
     def _point(self, node: Tree, span: Span) -> Statement:
         name, *assignments = node.children
@@ -552,7 +558,7 @@ class _Builder:
                         stack.append((child, False))
                 continue
             values[id(node)] = self._combine(node, values, names, calls)
-        return Expression(_done(values[id(root)]), _span(root), tuple(names), tuple(calls))
+        return Expression(_done(values[id(root)]), _span(root), tuple(names), tuple(calls), root)
 
     def _leaf(self, tok: Token, names: list[NameRef]) -> sp.Expr:
         if tok.type == "NUMBER":
@@ -666,6 +672,20 @@ def _unit(tree: Tree | None) -> str | None:
     if tree is None:
         return None
     return str(tree.children[0])[1:-1].strip()
+
+
+def _unit_span(tree: Tree | None) -> Span | None:
+    """Span of the unit text between the brackets, without surrounding blanks
+    (a unit token never spans lines); an empty unit gets the span of its brackets."""
+    if tree is None:
+        return None
+    tok = tree.children[0]
+    raw = str(tok)[1:-1]
+    text = raw.strip()
+    if not text:
+        return _span(tok)
+    start = (tok.column or 1) + 1 + len(raw) - len(raw.lstrip())
+    return Span(tok.line or 1, start, tok.line or 1, start + len(text))
 
 
 def _at(tree: Tree | None) -> NameRef | None:

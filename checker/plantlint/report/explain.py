@@ -153,8 +153,14 @@ def _point(a: Analysis, pa: PointAnalysis) -> dict[str, Any]:
 def _linearisation(lin: Linearisation) -> dict[str, Any]:
     """The linearisation for display: exact entries where the data are rational."""
 
+    def entry(e: sp.Expr) -> str:
+        shown = show_number(e, mark_inexact=True)
+        if e.is_Rational and shown.startswith("~") and len(str(e)) <= 24:
+            return str(e)  # exact data are shown exactly while they stay readable
+        return shown
+
     def matrix(rows: tuple[tuple[sp.Expr, ...], ...]) -> list[list[str]]:
-        return [[show_number(e, mark_inexact=True) for e in row] for row in rows]
+        return [[entry(e) for e in row] for row in rows]
 
     def groups(gs: tuple[ModeGroup, ...]) -> list[dict[str, Any]]:
         return [{"modes": show_repeated(g.eigenvalues), "polynomial": g.polynomial,
@@ -312,7 +318,7 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
                 console.print(f"    ({zd['reason']})")
         lin = p.get("linearisation")
         if lin is not None:
-            _render_linearisation(console, lin, len(d["states"]))
+            _render_linearisation(console, lin, d["states"], d["inputs"], list(d["outputs"]))
         pd = p.get("distributions")
         if pd is not None:
             text = (f"  distributions here: ranks {pd['ranks']}; controllability rank {pd['controllability_rank']}; "
@@ -336,12 +342,15 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
     console.print(Text("plantlint checks structure, not safety; see the README.", style="dim"))
 
 
-def _render_linearisation(console: Any, lin: dict[str, Any], n: int) -> None:
+def _render_linearisation(console: Any, lin: dict[str, Any], states: list[str], inputs: list[str],
+                          outputs: list[str]) -> None:
+    n = len(states)
     how = "exact" if lin["exact"] else "exact constants; poles and zeros at 50 digits"
     console.print(f"  linearisation (nominal parameter values, {how}):")
     if lin["status"] != "computed":
         console.print(f"    not computed: {lin['reason']}")
         return
+    console.print(f"    order: x = ({', '.join(states)}), u = ({', '.join(inputs)}), y = ({', '.join(outputs)})")
     for label in ("A", "B", "C"):
         rows = lin[label]
         if not rows or not rows[0]:
@@ -364,16 +373,18 @@ def _render_linearisation(console: Any, lin: dict[str, Any], n: int) -> None:
             modes = g["polynomial"] or g["modes"]
             console.print(f"      {what}: {'; '.join(g['directions'])}  (mode{'s' if ',' in g['modes'] else ''} "
                           f"at s = {g['modes']}{'; ' + modes if g['polynomial'] else ''})")
-    if lin["transmission_zeros"] is not None:
+    if lin["transmission_zeros"]:
         zp = f"; zero polynomial {lin['zero_polynomial']}" if lin["zero_polynomial"] else ""
-        console.print(f"    transmission zeros: {lin['transmission_zeros'] or 'none'}{zp}")
+        console.print(f"    transmission zeros: {lin['transmission_zeros']}{zp}")
+    elif lin["transmission_zeros"] is not None:
+        console.print("    transmission zeros: none (det [[sI - A, -B], [C, 0]] is a non-zero constant)")
     if lin["zeros_note"]:
         console.print(f"    ({lin['zeros_note']})")
     check = lin["cross_check"]
     if check["status"] == "agrees":
-        console.print(f"    cross-check with the zero dynamics: agrees ({check['detail']})")
+        console.print(f"    cross-check with the zero dynamics: agrees; {check['detail']}")
     elif check["status"] == "disagrees":
-        console.print(f"    cross-check with the zero dynamics: DISAGREES ({check['detail']})")
+        console.print(f"    cross-check with the zero dynamics: DISAGREES; {check['detail']}")
     if lin["reason"]:
         console.print(f"    ({lin['reason']})")
 

@@ -65,7 +65,13 @@ def read_model(data: bytes, path: str = "") -> tuple[Any, list[Finding]]:
     text, problem = decode(data)
     if problem is not None or text is None:
         return None, [problem] if problem else []
-    return build_model(parse_text(text), path)
+    parsed = parse_text(text)
+    model, findings = build_model(parsed, path)
+    if model is not None and not parsed.findings:
+        from plantlint.language.units import check_units  # pint only when units are declared
+
+        findings = [*findings, *check_units(parsed.statements)]
+    return model, findings
 
 
 def analyse_bytes(data: bytes, config: Any, progress: Callable[[str], None] | None = None) -> RawResult:

@@ -23,11 +23,12 @@ from pathlib import Path
 from typing import Any, Callable
 
 from plantlint import __version__
+from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
 from plantlint.core.findings import FileReport, Finding, Severity, Span
 from plantlint.run.pipeline import RawResult, budget_finding, finish
 
 STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
-CACHE_FORMAT = 1
+CACHE_FORMAT = 2  # 2: the analysis has a linearisation per point
 MAX_BYTES = 1 << 20  # same limit as plantlint.language.syntax.MAX_BYTES (not imported: it pulls in sympy)
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker
 MAX_WAIT = 3600.0  # seconds; longest single wait for worker messages
@@ -211,7 +212,7 @@ class Cache:
 
     def key(self, data: bytes) -> str:
         h = hashlib.sha256()
-        h.update(f"plantlint {__version__} cache {CACHE_FORMAT} {self.settings}\0".encode())
+        h.update(f"plantlint {__version__} cache {CACHE_FORMAT} units {UNITS_VERSION} {self.settings}\0".encode())
         h.update(data)
         return h.hexdigest()
 
@@ -303,6 +304,10 @@ def analyse_all(
     from plantlint.language.syntax import parser
 
     parser()  # build the LALR tables once, not in every worker
+    from plantlint.language import units
+
+    if any(units.declares_units(d) for d in datas):
+        units.preload()  # pint's registry once (~0.5 s), not in every worker
 
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)

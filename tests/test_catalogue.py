@@ -60,7 +60,7 @@ EXPECTED: dict[str, list[tuple[str, str]]] = {
         ("envelope-unproven", "warning"),
     ],
     "zero-dynamics": [("zero-dynamics-unstable", "error"), ("zero-dynamics-critical", "warning")],
-    "linearization": [("not-involutive", "note"), ("not-controllable", "note")],
+    "linearization": [("not-involutive", "note"), ("distribution-rank-drop", "note"), ("not-controllable", "note")],
     "run": [("expectation-failed", "error"), ("analysis-budget", "warning"), ("internal-inconsistency", "error")],
 }
 ALL_IDS = [rule_id for family in FAMILIES for rule_id, _ in EXPECTED[family]]
@@ -221,7 +221,7 @@ def test_one_rule_in_full(catalogue: Catalogue) -> None:
     assert rule.title in squashed
     assert "non-minimum phase" in squashed
     assert "output y [1] = x2 - x1" in text  # the bad example, verbatim
-    assert "output y [1] = x2 + x1" in text  # the good example
+    assert "output y [1] = x2 + 3*x1" in text  # the good example
     for ref in rule.references:
         assert ref in squashed
 
@@ -294,7 +294,14 @@ def test_nmp_example_has_a_right_half_plane_zero(catalogue: Catalogue) -> None:
     # (Khalil 3rd ed. sec. 13.2, from memory); zeros computed by scipy.signal.
     rule = catalogue.get("zero-dynamics-unstable")
     assert np.allclose(_transmission_zeros(rule.bad), [1.0])
-    assert np.allclose(_transmission_zeros(rule.good), [-1.0])
+    # the good example is really good: its zero (-3) is in the left half-plane and cancels
+    # no pole (-1, -2), so the realisation stays minimal (observable: numpy's rank of
+    # [C; CA]); a good example with y = x1 + x2 would cancel the pole at -1
+    assert np.allclose(_transmission_zeros(rule.good), [-3.0])
+    A, _, C = _linear(rule.good)
+    poles = np.linalg.eigvals(A)
+    assert np.linalg.matrix_rank(np.vstack([C, C @ A])) == 2
+    assert min(abs(p - z) for p in poles for z in _transmission_zeros(rule.good)) > 0.5
 
 
 @pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")

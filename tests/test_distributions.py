@@ -169,6 +169,8 @@ def test_controllable_canonical_form_gives_the_first_state(seed: int) -> None:
     assert distributions_json(pd) == {
         "controllability_rank": n,
         "involutive": True,
+        "constant_rank": True,
+        "rank_drops": [],
         "state_linearizable": True,
         "linearizing_output": "x1",
     }
@@ -249,7 +251,7 @@ def test_rank_drop_at_a_point_is_reported() -> None:
     assert pd.missing_vectors == ((1, 0),) and pd.missing_directions == ("d/dx1",)
 
 
-def test_rank_drop_in_a_lower_distribution_is_a_point_involutivity_failure() -> None:
+def test_rank_drop_in_a_lower_distribution_is_the_constant_rank_condition() -> None:
     """x1' = x2, x2' = x3^3, x3' = u (constructed; by hand: g = e3,
     ad_f g = (0, -3 x3^2, 0), ad_f^2 g = (3 x3^2, 0, 0)): D_1 has generic rank 2
     but rank 1 at x3 = 0, so the origin is a singular point of D_1."""
@@ -258,8 +260,9 @@ def test_rank_drop_in_a_lower_distribution_is_a_point_involutivity_failure() -> 
     assert structure.ranks == (1, 2, 3) and structure.involutive
     assert pd.ranks == (1, 1, 1) and pd.singular_orders == (1, 2)
     rules = sorted(f.rule for f in pd.findings)
-    assert rules == ["not-controllable", "not-involutive"]
-    assert not pd.involutive and not pd.state_linearizable
+    assert rules == ["distribution-rank-drop", "not-controllable"]
+    # the brackets stay in the distributions (involutive), but D_1 loses rank at the origin
+    assert pd.involutive and not pd.constant_rank and not pd.state_linearizable
     # away from x3 = 0 all is well and x1 has relative degree 3
     away = {x1: 0, x2: 0, x3: 1}
     pd2 = distributions_at(Kernel(plant), structure, "away", away)

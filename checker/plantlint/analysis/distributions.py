@@ -22,8 +22,11 @@ are eliminated with pivots decided by Kernel.value_at.
 
 Findings: the generic ``not-involutive`` (anchor "plant") sits in
 ``DistributionStructure.findings``; per point, ``not-controllable`` and a
-``not-involutive`` for a distribution whose rank drops at the point (a singular
-point: not of constant rank there) sit in ``PointDistributions.findings``.
+``distribution-rank-drop`` for a distribution whose rank drops at the point (a
+singular point: not of constant rank there, whether or not it is involutive) sit
+in ``PointDistributions.findings``. Involutivity is a property near a point: a
+failing bracket may vanish, or lie in D_k, at the point itself, so the reason
+names a nearby point where it is proven to leave D_k.
 """
 
 from __future__ import annotations
@@ -71,6 +74,9 @@ class BracketFailure:
     left: str
     right: str
     certain: bool
+    #: the bracket itself and a basis of D_k (for a witness near a point; not compared)
+    bracket: Vector = field(default=(), compare=False, repr=False)
+    basis: tuple[Vector, ...] = field(default=(), compare=False, repr=False)
 
     @property
     def pair(self) -> str:
@@ -126,6 +132,45 @@ class PointDistributions:
     linearizing_output: sp.Expr | None
     notes: tuple[str, ...]
     findings: tuple[Finding, ...]
+    #: every D_k, k <= n-2, has at the point the rank it has around it (Frobenius needs it);
+    #: ``involutive`` only says whether brackets stay in the distributions near the point
+    constant_rank: bool = True
+    #: when not involutive: whether the failing bracket lies in D_k at the point itself
+    #: (involutivity is a property of a neighbourhood, so it can) and a nearby point where it
+    #: is proven to leave D_k (state name -> value)
+    bracket_inside_at_point: bool | None = None
+    witness: dict[str, float] | None = None
+    m: int = 1  # inputs (names D_k for one, G_k for several)
+
+
+def involutivity_reason(pd: PointDistributions, name: str) -> str:
+    """Why the distributions are not involutive near a point, in words, with the witness."""
+    failure = pd.failure
+    if failure is None:
+        return ""
+    d = distribution_name(pd.m, failure.order)
+    text = f"{d} is not involutive near '{name}': the bracket {failure.pair} leaves it"
+    if pd.bracket_inside_at_point is False:
+        return text + f" at '{name}' itself"
+    where = show_witness(pd.witness) if pd.witness else None
+    text += f" at points arbitrarily close to '{name}'" + (f", e.g. at {where}" if where else "")
+    if pd.bracket_inside_at_point:
+        text += f" (at '{name}' itself it lies in {d}, but involutivity is a property of a neighbourhood)"
+    return text
+
+
+def show_witness(values: dict[str, float]) -> str:
+    return ", ".join(f"{k} = {v:.6g}" for k, v in values.items())
+
+
+def rank_drop_reason(pd: PointDistributions, name: str) -> str:
+    """The constant-rank condition, in words: which distributions lose rank at the point."""
+    low = [k for k in pd.singular_orders if k <= len(pd.ranks) - 2]
+    if not low:
+        return ""
+    parts = [f"{distribution_name(pd.m, k)} has rank {pd.ranks[k]} there but {pd.generic_ranks[k]} "
+             "around it" for k in low]
+    return f"the distributions lose rank at '{name}' ({'; '.join(parts)}): the constant-rank condition fails"
 
 
 def distribution_name(m: int, k: int) -> str:
@@ -493,7 +538,8 @@ class _Involutivity:
                             f"{distribution_name(self.m, k)} without symbolic proof"
                         )
                     continue
-                return BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain)
+                return BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain, bracket,
+                                      tuple(fields[i].vector for i in basis))
         return None
 
 
@@ -567,8 +613,14 @@ def distributions_at(
             f"{name} is a singular point of the distribution"
         )
     singular_low = [k for k in singular if k <= n - 2]
-    involutive = structure.involutive and not singular_low
+    # `involutive` keeps its meaning (brackets stay in the distributions near the point; a
+    # one-dimensional distribution always is); a rank drop is the constant-rank condition
+    involutive = structure.involutive
     linearizable = control_rank == n and not singular and structure.involutive
+    inside_at_point: bool | None = None
+    witness: dict[str, float] | None = None
+    if structure.failure is not None and structure.failure.bracket:
+        inside_at_point, witness = _involutivity_witness(kernel, structure.failure, values)
     findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
 
     searched = m == 1 and linearizable and structure.outputs is not None
@@ -595,7 +647,65 @@ def distributions_at(
         linearizing_output=output,
         notes=tuple(notes),
         findings=tuple(findings),
+        constant_rank=not singular_low,
+        bracket_inside_at_point=inside_at_point,
+        witness=witness,
+        m=m,
     )
+
+
+#: Steps tried for a witness, as fractions of each state's range (1 where it has none).
+WITNESS_STEPS = (sp.Rational(1, 1000), sp.Rational(1, 100), sp.Rational(1, 10))
+
+
+def _involutivity_witness(kernel: Kernel, failure: BracketFailure, values: dict[sp.Symbol, sp.Expr]
+                          ) -> tuple[bool | None, dict[str, float] | None]:
+    """Does the failing bracket lie in D_k at the point, and where near it is it proven to leave?
+
+    At a point y the bracket c leaves D_k when [B(y) | c(y)] has rank r + 1 for a basis B of
+    D_k (r its generic rank): every rank decision is rigorous (exact, or balls proven
+    non-zero). The nearest of a few points x0 + t * step along each state axis is returned.
+    """
+    plant = kernel.plant
+    r = len(failure.basis)
+
+    def leaves(point: dict[sp.Symbol, sp.Expr]) -> bool | None:
+        decided = True
+
+        def decide(e: sp.Expr) -> Decision:
+            nonlocal decided
+            v = kernel.value_at(e, {})
+            if v.zero is None:
+                decided = False
+                return Decision(True, False)
+            return Decision(v.zero, True)
+
+        try:
+            rows = matrix_at(kernel, [*failure.basis, failure.bracket], point)
+            echelon = _PointEchelon(decide)
+            rank = sum(1 for i in range(r) if echelon.add(list(rows.row(i))))
+            out = echelon.add(list(rows.row(r)))
+        except (UnsupportedExpression, ZeroDivisionError, TypeError, ValueError):
+            return None
+        if not decided or rank < r:
+            return None  # undefined there, or D_k itself loses rank there: no verdict from this point
+        return out
+
+    at_point = leaves(values)
+    if at_point:
+        return False, None
+    for step in WITNESS_STEPS:
+        for s in plant.states:
+            lo, hi = plant.state_box.get(s, (sp.Integer(-1), sp.Integer(1)))
+            width = plant.nominal(hi) - plant.nominal(lo)
+            x0 = values.get(s, sp.Integer(0))
+            for sign in (1, -1):
+                y = dict(values)
+                y[s] = x0 + sign * step * width
+                if leaves(y):
+                    shown = {str(k): float(sp.N(y[k], 17)) for k in plant.states if k in y}
+                    return (None if at_point is None else True), shown
+    return (None if at_point is None else True), None
 
 
 def _kalman_columns(
@@ -656,12 +766,14 @@ def _point_findings(
         ]
         out.append(
             Finding(
-                rule="not-involutive",
+                rule="distribution-rank-drop",
                 severity=Severity.ERROR,
                 message=f"{'; '.join(parts)}: {name} is a singular point of the distribution, which "
-                "must be involutive and of constant rank near the point",
+                "must have constant rank near the point (it may well be involutive)",
                 point=name,
                 anchor=f"point {name}",
+                hint="an input field that vanishes at the point makes the rank drop there; choose "
+                "another operating point or another input",
             )
         )
     return out
@@ -723,8 +835,12 @@ def distributions_json(pd: PointDistributions) -> dict[str, object]:
     out: dict[str, object] = {
         "controllability_rank": pd.controllability_rank,
         "involutive": pd.involutive,
+        "constant_rank": pd.constant_rank,
+        "rank_drops": [distribution_name(pd.m, k) for k in pd.singular_orders if k <= len(pd.ranks) - 2],
         "state_linearizable": pd.state_linearizable,
     }
+    if not pd.involutive:
+        out["involutivity_witness"] = pd.witness
     if pd.output_searched:
         out["linearizing_output"] = None if pd.linearizing_output is None else str(pd.linearizing_output)
     return out

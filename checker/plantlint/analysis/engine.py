@@ -21,6 +21,8 @@ from plantlint.analysis.distributions import (
     analyse_distributions,
     distributions_at,
     distributions_json,
+    involutivity_reason,
+    rank_drop_reason,
 )
 from plantlint.analysis.equilibria import Equilibrium, equilibrium_json, solve_point
 from plantlint.analysis.linearisation import Linearisation, linearisation_json, linearise_at
@@ -381,8 +383,10 @@ def _state_linearizable_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | Non
             if pd.controllability_rank < n:
                 why.append(f"controllability rank {pd.controllability_rank} < {n}")
             if not pd.involutive and pd.failure is not None:
-                why.append(f"{ds.name(pd.failure.order)} is not involutive ({pd.failure.pair} leaves it)")
-            if pd.singular_orders:
+                why.append(involutivity_reason(pd, pa.name))
+            if not pd.constant_rank:
+                why.append(rank_drop_reason(pd, pa.name))
+            elif pd.singular_orders:
                 why.append("rank of " + ", ".join(ds.name(k) for k in pd.singular_orders) + " drops at the point")
             out.append((pa.name, f"at point '{pa.name}': " + ("; ".join(why) or "conditions fail")))
     return out

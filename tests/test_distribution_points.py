@@ -1,0 +1,94 @@
+"""Full-state linearization conditions at a point: involutivity is a property near
+the point (with a proven witness), a rank drop is the constant-rank condition and is
+reported as such. Plants: the gantry crane of the language contract (demo numbers,
+invented) and an invented plant whose input field vanishes at the point."""
+
+from __future__ import annotations
+
+import numpy as np
+import sympy as sp
+
+from plantlint.run.config import Config
+from plantlint.run.pipeline import analyse_bytes
+
+CRANE = b"""plant gantry_crane
+const g   = 9.81
+param m_c = 12.0
+param m_p = 3.5
+param L   = 2.2
+state x   in -4 .. 4
+state v   in -2 .. 2
+state th  in -0.5 .. 0.5
+state w   in -3 .. 3
+input F   in -400 .. 400
+let den = m_c + m_p*sin(th)^2
+rate x  = v
+rate v  = (F + m_p*sin(th)*(L*w^2 + g*cos(th))) / den
+rate th = w
+rate w  = -(F*cos(th) + m_p*L*w^2*sin(th)*cos(th) + (m_c + m_p)*g*sin(th)) / (L*den)
+output y = x
+point upright: x = 0, v = 0, th = 0, w = 0
+expect state_linearizable
+"""
+
+VANISH = b"""plant gain_through_x
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u
+rate x1 = x2
+rate x2 = -x1 + x1*u
+output y = x1
+point rest: x1 = 0, x2 = 0, u = 0
+expect state_linearizable
+"""
+
+
+def _crane_fields() -> tuple[list[sp.Symbol], sp.Matrix, sp.Matrix]:
+    x, v, th, w = sp.symbols("x v th w")
+    g, m_c, m_p, L = sp.Rational(981, 100), 12, sp.Rational(7, 2), sp.Rational(11, 5)
+    den = m_c + m_p * sp.sin(th) ** 2
+    f = sp.Matrix([v, m_p * sp.sin(th) * (L * w**2 + g * sp.cos(th)) / den, w,
+                   -(m_p * L * w**2 * sp.sin(th) * sp.cos(th) + (m_c + m_p) * g * sp.sin(th)) / (L * den)])
+    gv = sp.Matrix([0, 1 / den, 0, -sp.cos(th) / (L * den)])
+    return [x, v, th, w], f, gv
+
+
+def test_involutivity_is_judged_near_the_point_with_a_proven_witness() -> None:
+    raw = analyse_bytes(CRANE, Config())
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert "not involutive near 'upright'" in claim.message
+    assert "at 'upright' itself it lies in D_1" in claim.message
+    point = raw.analysis["points"]["upright"]
+    assert point["involutive"] is False and point["constant_rank"] is True
+    witness = point["involutivity_witness"]
+    assert witness is not None and max(abs(v) for v in witness.values()) <= 0.01  # near the point
+    # Reference, computed another way: the Lie bracket by plain sympy Jacobians,
+    # evaluated in floats by numpy (singular values, not the checker's exact ranks).
+    # The crane (a cart with a pendulum) is known not to be full-state linearizable
+    # (Spong, Underactuated mechanical systems, 1998, from memory).
+    X, f, gv = _crane_fields()
+    ad = gv.jacobian(X) * f - f.jacobian(X) * gv
+    bracket = ad.jacobian(X) * gv - gv.jacobian(X) * ad
+
+    def singular_values(at: dict[sp.Symbol, float]) -> np.ndarray:
+        M = np.array(sp.Matrix.hstack(gv, ad, bracket).subs(at).evalf(), dtype=float)
+        return np.linalg.svd(M, compute_uv=False)
+
+    at_point = singular_values({s: 0.0 for s in X})
+    near = singular_values({s: witness[str(s)] for s in X})
+    assert at_point[2] < 1e-12 * at_point[0]  # the bracket lies in D_1 at the point itself
+    assert near[2] > 1e-6 * near[0]  # and leaves it at the witness
+
+
+def test_rank_drop_is_the_constant_rank_condition_not_involutivity() -> None:
+    raw = analyse_bytes(VANISH, Config())
+    rules = sorted(f.rule for f in raw.findings)
+    assert "distribution-rank-drop" in rules and "not-involutive" not in rules
+    point = raw.analysis["points"]["rest"]
+    # D_0 = span{g} is one-dimensional: always involutive; it has rank 0 at the point
+    # (g = (0, x1) vanishes there) and rank 1 around it
+    assert point["involutive"] is True
+    assert point["constant_rank"] is False and point["rank_drops"] == ["D_0"]
+    assert "involutivity_witness" not in point  # only written when not involutive
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert "constant-rank condition fails" in claim.message and "not involutive" not in claim.message

@@ -124,9 +124,9 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
     A = A.applyfunc(_tidy)
     B = sp.Matrix(plant.n, plant.m, lambda i, j: at(plant.g[j][i]))
     C = kernel.jacobian(plant.h).applyfunc(at) if plant.p else sp.zeros(0, plant.n)
-    rows = [tuple(A.row(i)) for i in range(A.rows)]
-    b_rows = [tuple(B.row(i)) for i in range(B.rows)]
-    c_rows = [tuple(C.row(i)) for i in range(C.rows)]
+    rows = [tuple(r) for r in A.tolist()]
+    b_rows = [tuple(r) for r in B.tolist()]
+    c_rows = [tuple(r) for r in C.tolist()]
     entries = [e for M in (A, B, C) for e in M]
     if any(e.has(sp.zoo, sp.nan, sp.oo, -sp.oo) for e in entries):
         return Linearisation(name, "undefined", reason="a derivative of the rates or outputs is undefined at the point",
@@ -166,13 +166,13 @@ def _exact(name: str, A_: sp.Matrix, B_: sp.Matrix, C_: sp.Matrix, states: Seque
     chi = A.charpoly()
     ctrl_rank, uncontrollable = None, ()
     if m:
-        K = _hstack([_power(A, k) * B for k in range(n)])
+        K = _hstack(_krylov(A, B, n))
         ctrl_rank = K.rank()
         if ctrl_rank < n:
             uncontrollable = _uncontrollable(A, K, states)
     obs_rank, unobservable = None, ()
     if p:
-        O = _vstack([C * _power(A, k) for k in range(n)])
+        O = _vstack([block.transpose() for block in _krylov(A.transpose(), C.transpose(), n)])
         obs_rank = O.rank()
         if obs_rank < n:
             unobservable = _unobservable(A, O, states)
@@ -193,13 +193,12 @@ def _exact(name: str, A_: sp.Matrix, B_: sp.Matrix, C_: sp.Matrix, states: Seque
                          unobservable=unobservable, zeros=zeros, zero_polynomial=zpoly, zeros_note=note)
 
 
-def _power(A: fmpq_mat, k: int) -> fmpq_mat:
-    out = fmpq_mat(A.nrows(), A.ncols())
-    for i in range(A.nrows()):
-        out[i, i] = 1
-    for _ in range(k):
-        out = out * A
-    return out
+def _krylov(A: fmpq_mat, B: fmpq_mat, count: int) -> list[fmpq_mat]:
+    """[B, AB, ..., A^(count-1) B], one product per block."""
+    blocks = [B]
+    for _ in range(count - 1):
+        blocks.append(A * blocks[-1])
+    return blocks
 
 
 def _hstack(blocks: Sequence[fmpq_mat]) -> fmpq_mat:

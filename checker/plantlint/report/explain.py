@@ -163,7 +163,7 @@ def _linearisation(lin: Linearisation) -> dict[str, Any]:
         return [[entry(e) for e in row] for row in rows]
 
     def groups(gs: tuple[ModeGroup, ...]) -> list[dict[str, Any]]:
-        return [{"modes": show_repeated(g.eigenvalues), "polynomial": g.polynomial,
+        return [{"modes": show_repeated(g.eigenvalues), "count": len(g.eigenvalues), "polynomial": g.polynomial,
                  "directions": list(g.directions)} for g in gs]
 
     return {
@@ -370,9 +370,9 @@ def _render_linearisation(console: Any, lin: dict[str, Any], states: list[str], 
             continue
         console.print(f"    {kind} rank {rank} of {n}")
         for g in groups:
-            modes = g["polynomial"] or g["modes"]
-            console.print(f"      {what}: {'; '.join(g['directions'])}  (mode{'s' if ',' in g['modes'] else ''} "
-                          f"at s = {g['modes']}{'; ' + modes if g['polynomial'] else ''})")
+            factor = f"; factor {g['polynomial']} of det(sI - A)" if g["polynomial"] else ""
+            console.print(f"      {what}: {'; '.join(g['directions'])}  (mode{'s' if g['count'] > 1 else ''} "
+                          f"at s = {g['modes']}{factor})")
     if lin["transmission_zeros"]:
         zp = f"; zero polynomial {lin['zero_polynomial']}" if lin["zero_polynomial"] else ""
         console.print(f"    transmission zeros: {lin['transmission_zeros']}{zp}")

@@ -192,8 +192,16 @@ def _full_normal_form(kernel: Kernel, degrees: list[int]) -> NormalForm:
     (the rank lemma: Isidori, Nonlinear Control Systems, 3rd ed., Lemmas 4.1.1 and
     5.1.1), so no Jacobian has to be formed."""
     plant = kernel.plant
-    xi = tuple(xi_name(kernel.lf(i, k), plant.outputs[i], k) for i in range(plant.p) for k in range(degrees[i]))
-    return NormalForm(xi, (), plant.n, True, True, None,
+    xi: list[str] = []
+    for i in range(plant.p):
+        shown = True  # L_f^k h is formed only while the previous one was short enough to show
+        for k in range(degrees[i]):
+            generic = plant.outputs[i] if k == 0 else (f"L_f {plant.outputs[i]}" if k == 1 else
+                                                       f"L_f^{k} {plant.outputs[i]}")
+            name = xi_name(kernel.lf(i, k), plant.outputs[i], k) if shown else generic
+            shown = shown and name != generic
+            xi.append(name)
+    return NormalForm(tuple(xi), (), plant.n, True, True, None,
                       note="total relative degree n: no internal coordinates, no zero dynamics")
 
 

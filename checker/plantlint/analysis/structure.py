@@ -158,6 +158,83 @@ def analyse_structure(kernel: Kernel) -> Structure:
 
 
 def _output_structure(kernel: Kernel, i: int) -> OutputStructure:
+    fast = numeric_output_structure(kernel, i)
+    if fast is not None:
+        return fast
+    return _symbolic_output_structure(kernel, i)
+
+
+#: Precisions (bits) of the Taylor-mode balls that prove a decoupling term non-zero.
+TAYLOR_PRECISIONS = (128, 512)
+#: How many of the kernel's samples the numeric route tries before giving up.
+TAYLOR_SAMPLES = 3
+
+
+def numeric_output_structure(kernel: Kernel, i: int) -> OutputStructure | None:
+    """The default route: relative degree without symbolic towers.
+
+    Below the structural index every L_gj L_f^k h_i is zero by the dependency
+    graph (a proof). At the structural index the term is formed in layered
+    form (products of first derivatives of f; no tower) and proven non-zero by
+    Taylor-mode balls at a reproducible sample; the layered value must agree
+    with the Taylor ball there (a self-check). None when that does not settle
+    it (a cancellation at the structural index, an expression the programs do
+    not evaluate): the symbolic route then decides.
+    """
+    plant = kernel.plant
+    structural = kernel.structural()
+    layers = structural.layers(i)
+    degree = layers.structural_degree
+    name = plant.outputs[i]
+    if degree is None:  # no actuated state ever reaches the states h_i reads: zero for every k
+        for j in range(plant.m):
+            for k in range(plant.n):
+                kernel._lglf[(j, i, k)] = sp.Integer(0)
+        return OutputStructure(name, None, ())
+    towers = kernel.towers()
+    if towers is None:
+        return None
+    k = degree - 1
+    row = tuple(structural.decoupling_entry(j, i)[1] if layers.index[j] == k else sp.Integer(0)
+                for j in range(plant.m))
+    if not _proven_by_taylor(kernel, towers, i, k, row):
+        return None
+    for j in range(plant.m):
+        for q in range(k):
+            kernel._lglf[(j, i, q)] = sp.Integer(0)
+        kernel._lglf[(j, i, k)] = row[j]
+    return OutputStructure(name, degree, row)
+
+
+def _proven_by_taylor(kernel: Kernel, towers: Any, i: int, k: int, row: tuple[sp.Expr, ...]) -> bool:
+    from flint import arb
+
+    from plantlint.kernel.balls import Program as BallProgram, rational_ball
+    from plantlint.kernel.taylor import ArbField, Undefined
+
+    symbols = kernel.free_symbols()
+    try:
+        layered = BallProgram(list(row), symbols)
+    except UnsupportedExpression:
+        return False
+    for sample in kernel.samples()[:TAYLOR_SAMPLES]:
+        point = [sample[s] for s in symbols]
+        for prec in TAYLOR_PRECISIONS:
+            try:
+                values = towers.lglf(point, k, ArbField(prec))[i][k]
+            except (Undefined, ZeroDivisionError):
+                break
+            check = layered.run([rational_ball(v, prec) for v in point], prec=prec)
+            if not all(isinstance(v, arb) and v.is_finite() for v in values):
+                continue
+            if any(c.is_finite() and not c.overlaps(v) for c, v in zip(check, values)):
+                return False  # the layered form disagrees with the flow: never trust either
+            if any(not v.contains(0) for v in values):
+                return True
+    return False
+
+
+def _symbolic_output_structure(kernel: Kernel, i: int) -> OutputStructure:
     plant = kernel.plant
     unconfirmed: list[str] = []
     for k in range(1, plant.n + 1):
@@ -419,10 +496,12 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
     each factor usually involves few variables and has far less dependency, so it
     is certified on its own (the margin is the product of the factors' margins)."""
     factors = kernel.factors(exprs[0]) if len(exprs) == 1 else []
+    if len(factors) < 2 and len(exprs) == 1:
+        factors = product_factors(exprs[0])
     if len(factors) < 2:
         return clock.spent(certify_nonzero(exprs, box, clock.budget()))
     (constant, _), parts = factors[0], factors[1:]
-    margin = abs(float(constant))
+    margin: float | None = abs(float(constant))
     undecided: list[EnvelopeVerdict] = []
     boxes = 0
     for part, multiplicity in parts:
@@ -432,13 +511,37 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
             return verdict
         if verdict.regular is None:
             undecided.append(verdict)
-        elif verdict.margin is not None:
+        elif verdict.margin is not None and margin is not None and multiplicity > 0:
             margin *= verdict.margin ** multiplicity
+        else:
+            margin = None  # a denominator's lower bound needs an upper bound of its base
     if undecided:
         first = undecided[0]
         return EnvelopeVerdict(None, None, None, first.undecided, boxes,
                                sum(v.undecided_count for v in undecided))
     return EnvelopeVerdict(True, margin, None, [], boxes)
+
+
+def product_factors(expr: sp.Expr) -> list[tuple[sp.Expr, int]]:
+    """[(constant, 1), (factor, exponent), ...] of a product (a chain's decoupling
+    term in layered form is one product of per-link factors, by the chain rule);
+    [] when ``expr`` is not a product of at least two non-constant factors.
+    A product (with integer exponents) is non-zero exactly where every factor is
+    non-zero and finite, so each factor is certified on its own."""
+    if not expr.is_Mul:
+        return []
+    constant = sp.Integer(1)
+    parts: list[tuple[sp.Expr, int]] = []
+    for arg in expr.args:
+        if not arg.free_symbols:
+            constant *= arg
+        elif arg.is_Pow and arg.exp.is_Integer:
+            parts.append((arg.base, int(arg.exp)))
+        else:
+            parts.append((arg, 1))
+    if len(parts) < 2 or not constant.is_number:
+        return []
+    return [(constant, 1), *parts]
 
 
 def _violation(kind: str) -> str:

@@ -12,6 +12,7 @@ sub-expressions, then run many times; nothing is ever turned into Python code.
 from __future__ import annotations
 
 from collections.abc import Sequence
+import math
 from fractions import Fraction
 from typing import Callable
 
@@ -39,7 +40,81 @@ class UnsupportedExpression(ValueError):
     """The expression uses something ball arithmetic cannot enclose here."""
 
 
+#: Balls wider than this (radius) get endpoint enclosures for the elementary functions.
+WIDE_RADIUS = 1e-6
+
+
+def _endpoints(x: arb) -> tuple[arb, arb]:
+    """Exact balls at the two ends of ``x`` (a wide ball seen as an interval)."""
+    return x.lower(), x.upper()
+
+
+def _hull(*parts: arb) -> arb:
+    out = parts[0]
+    for q in parts[1:]:
+        out = out.union(q)
+    return out
+
+
+def tight_periodic(name: str, x: arb) -> arb:
+    """sin/cos over a wide ball: the ends plus every extremum inside (period-aware).
+
+    cos has its extrema at k*pi, sin at pi/2 + k*pi; between two consecutive
+    extrema the function is monotone, so the range over [lo, hi] is the hull of
+    the values at the ends and at the extrema inside (an extremum whose
+    position cannot be separated from an end is included: never too narrow).
+    """
+    lo, hi = _endpoints(x)
+    values = [getattr(lo, name)(), getattr(hi, name)()]
+    pi = arb.pi()
+    shift = arb(0) if name == "cos" else pi / 2
+    # extremum positions c_k = shift + k pi with lo <= c_k <= hi
+    k_lo = int(math.floor(float(((lo - shift) / pi).lower().mid()))) - 1
+    k_hi = int(math.ceil(float(((hi - shift) / pi).upper().mid()))) + 1
+    if k_hi - k_lo > 4:
+        return arb(0, 1)  # at least a whole period: [-1, 1]
+    for k in range(k_lo, k_hi + 1):
+        c = shift + k * pi
+        if (c < lo) or (c > hi):
+            continue  # certainly outside
+        values.append(getattr(c, name)())
+    out = _hull(*values)
+    return out.intersection(arb(0, 1)) if out.is_finite() else arb(0, 1)
+
+
+def tight_monotone(name: str, x: arb) -> arb:
+    """exp, log, sqrt, atan, tanh, sinh, asinh-like increasing functions: the ends."""
+    lo, hi = _endpoints(x)
+    return getattr(lo, name)().union(getattr(hi, name)())
+
+
+def tight_tan(x: arb) -> arb:
+    """tan over a ball that stays inside one branch (between two poles): the ends."""
+    lo, hi = _endpoints(x)
+    pi = arb.pi()
+    k = int(math.floor(float(((lo + pi / 2) / pi).mid())))
+    left, right = -pi / 2 + k * pi, pi / 2 + k * pi
+    if lo > left and hi < right:
+        return lo.tan().union(hi.tan())
+    return _nan()
+
+
 def _ball_unary(name: str, x: arb) -> arb:
+    if x.is_finite() and x.rad() > WIDE_RADIUS:
+        if name in ("sin", "cos"):
+            return tight_periodic(name, x)
+        if name in ("exp", "atan", "tanh", "sinh"):
+            return tight_monotone(name, x)
+        if name == "log" and _positive(x):
+            return tight_monotone(name, x)
+        if name == "sqrt" and _nonnegative(x):
+            return x.lower().nonnegative_part().sqrt().union(x.upper().sqrt())
+        if name == "tan":
+            return tight_tan(x)
+        if name == "cosh":
+            lo, hi = _endpoints(x)
+            out = lo.cosh().union(hi.cosh())
+            return out.union(arb(1)) if x.contains(0) else out
     if name == "asin":
         return x.asin() if _inside(x, -1, 1) else _nan()
     if name == "acos":

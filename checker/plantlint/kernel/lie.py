@@ -20,7 +20,7 @@ import hashlib
 import random
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 import sympy as sp
 from flint import arb
@@ -28,6 +28,10 @@ from flint import arb
 from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.plant import Plant
+
+if TYPE_CHECKING:
+    from plantlint.kernel.structural import StructuralPlant
+    from plantlint.kernel.taylor import Towers
 
 Vector = tuple[sp.Expr, ...]
 
@@ -81,6 +85,48 @@ class Kernel:
         self.seed = seed if seed is not None else _seed_for(plant)
         self._samples: list[dict[sp.Symbol, Fraction]] | None = None
         self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
+        self._structural: "StructuralPlant | None" = None
+        self._towers: "Towers | None | bool" = False
+
+    # -- the numeric route: dependency graph and Taylor-mode towers ----------
+    def structural(self) -> "StructuralPlant":
+        """The dependency graph of f, g, h (structural zeros, layered decoupling terms)."""
+        if self._structural is None:
+            from plantlint.kernel.structural import StructuralPlant
+
+            self._structural = StructuralPlant(self.x, self.f, self.g, self.h)
+        return self._structural
+
+    def towers(self) -> "Towers | None":
+        """f, g, h compiled for Taylor-mode towers at points; None when an expression
+        is outside what the straight-line programs evaluate."""
+        if self._towers is False:
+            from plantlint.kernel.dag import UnsupportedNode
+            from plantlint.kernel.taylor import Towers
+
+            try:
+                self._towers = Towers(self.x, self.plant.params, self.f, self.g, self.h)
+            except UnsupportedNode:
+                self._towers = None
+        return self._towers  # type: ignore[return-value]
+
+    def point_vector(self, point: dict[sp.Symbol, object]) -> list[Fraction] | None:
+        """States then ranged parameters of an exact rational point (missing parameters
+        at their nominal values); None when a value is not rational."""
+        full: dict[sp.Symbol, object] = dict(self.plant.param_nominal)
+        full.update(point)
+        out: list[Fraction] = []
+        for s in self.free_symbols():
+            v = full.get(s)
+            if isinstance(v, Fraction):
+                out.append(v)
+            elif isinstance(v, sp.Basic) and v.is_Rational:
+                out.append(Fraction(int(v.p), int(v.q)))
+            elif isinstance(v, int) and not isinstance(v, bool):
+                out.append(Fraction(v))
+            else:
+                return None
+        return out
 
     # -- elementary operations ---------------------------------------------
     def lie(self, expr: sp.Expr, field: Vector) -> sp.Expr:

@@ -324,3 +324,29 @@ def test_cache_key_follows_the_units_checker(monkeypatch: pytest.MonkeyPatch) ->
     before = cache.key(PENDULUM.encode())
     monkeypatch.setattr(runner, "UNITS_VERSION", runner.UNITS_VERSION + 1)
     assert cache.key(PENDULUM.encode()) != before
+
+
+# -- hostile input ------------------------------------------------------------------------------
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(alphabet="kgmsNA1234567890*/^()-. _%\u00b5xyzOhm", max_size=40))
+def test_any_unit_text_is_read_or_refused_cleanly(text: str) -> None:
+    try:
+        parse_unit_text(text)
+    except UnitTextError as exc:
+        assert 0 <= exc.offset <= len(text)
+    model = f"plant u\nparam p = 1 [{text}]\nstate x [m] in 0 .. 1\nrate x = p*x\n"
+    if "]" not in text and "[" not in text:
+        unit_findings(model)  # never raises
+
+
+def test_long_sums_and_deep_nesting_are_fine() -> None:
+    terms = " + ".join(f"a*{i}" for i in range(3000))
+    deep = "(" * 150 + "x" + ")" * 150
+    text = f"plant l\nparam a = 1 [m/s]\nstate x [m] in 0 .. 1\nrate x = {terms} + {deep}\n"
+    (finding,) = unit_findings(text)
+    assert finding[0] == "unit-mismatch" and "'x'" in finding[4]  # the one term in m, not m/s

@@ -19,6 +19,7 @@ import pytest
 from plantlint.core.catalogue import load_catalogue
 from plantlint.core.findings import Adjustment, FileReport, Finding, Report, Severity, Span
 from plantlint.report.formats import FORMATS, get_formatter
+from plantlint.report.formats.base import change_text
 from plantlint.report.formats.json_report import build_report, report_schema
 from plantlint.report.formats.sarif import artifact_location, build_sarif
 from plantlint.report.formats.text import excerpt
@@ -480,3 +481,16 @@ def test_no_settings_means_no_settings_section() -> None:
     assert "settings that change" not in _render("text", _report())
     assert json.loads(_render("json", _report()))["adjustments"] == []
     assert "invocations" not in json.loads(_render("sarif", _report()))["runs"][0]
+
+
+def test_waiver_changes_under_since_are_worded_as_waivers() -> None:
+    assert change_text({"what": "waiver zero-dynamics-critical at rest", "before": None, "after": "outer loop"}) == \
+        'waiver added: zero-dynamics-critical at rest: "outer loop"'
+    assert change_text({"what": "waiver unused-name", "before": "spare", "after": None}) == \
+        'waiver removed: unused-name (was: "spare")'
+    assert change_text({"what": "waiver unused-name", "before": "spare", "after": "kept"}) == \
+        'waiver reason changed: unused-name: "spare" -> "kept"'
+    report = _since_report()
+    report.files[0].structure_changes = [{"what": "waiver unused-name", "before": None, "after": "spare"}]
+    assert 'models/demo.plant: note: changed since main: waiver added: unused-name: "spare"' in \
+        _render("lines", report).splitlines()

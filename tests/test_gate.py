@@ -157,7 +157,8 @@ def test_whole_gate_fails_on_the_introduced_findings_only(scenario: Scenario) ->
     assert introduced == [("plants/added.plant", "zero-dynamics-unstable"),
                           ("plants/tail.plant", "zero-dynamics-unstable")]
     summary = data["summary"]
-    assert (summary["introduced"], summary["known"], summary["fixed"]) == (3, 2, 1)
+    # fixed: fixme's finding, and drift's waiver that silenced nothing at base (unused-waiver)
+    assert (summary["introduced"], summary["known"], summary["fixed"]) == (3, 2, 2)
 
 
 def test_edit_to_non_minimum_phase_gives_exactly_the_introduced_finding(scenario: Scenario) -> None:
@@ -263,8 +264,9 @@ def test_path_that_was_a_folder_at_ref_counts_as_added(tmp_path: Path) -> None:
 
 def test_change_to_critical_is_reported_even_when_waived(scenario: Scenario) -> None:
     drift = scenario.file("drift.plant")
-    (finding,) = drift["findings"]
-    assert (finding["rule"], finding["baseline"], finding["waived"]) == ("zero-dynamics-critical", "introduced", True)
+    # the waiver silenced nothing at base (unused-waiver), and now silences the new finding
+    assert {f["rule"]: (f["baseline"], f["waived"]) for f in drift["findings"]} == {
+        "zero-dynamics-critical": ("introduced", True), "unused-waiver": ("fixed", False)}
     change = {c["what"]: (c["before"], c["after"]) for c in drift["structure_changes"]}
     assert change["point rest: zero dynamics"] == ("minimum phase", "critical")
 
@@ -345,6 +347,27 @@ def test_model_deleted_since_ref_reports_its_findings_as_fixed(tmp_path: Path) -
     assert run.json()["summary"]["fixed"] == 1
     lines = plantlint(repo, env, "check", "--since", "HEAD", "--format", "lines", "--no-cache", "models")
     assert "models/gone.plant: note: structure changed since HEAD: model: present -> deleted" in lines.stdout
+    text = plantlint(repo, env, "check", "--since", "HEAD", "--no-cache", "models")
+    assert "checked 1 file (1 deleted since HEAD, not counted): " in text.stdout
+
+
+def test_a_waiver_added_since_ref_is_shown_with_its_reason(tmp_path: Path) -> None:
+    repo = tmp_path / "repo"
+    repo.mkdir()
+    env = git_env(tmp_path)
+    git(repo, env, "init", "-q")
+    (repo / "tail.plant").write_text(model("tail", UNSTABLE), encoding="utf-8")
+    git(repo, env, "add", "-A")
+    git(repo, env, "commit", "-q", "-m", "base")
+    reason = "the tail is driven through an outer loop on z (invented)"
+    (repo / "tail.plant").write_text(model("tail", UNSTABLE, f'waive zero-dynamics-unstable at rest "{reason}"\n'),
+                                     encoding="utf-8")
+    text = plantlint(repo, env, "check", "--since", "HEAD", "--no-cache", "tail.plant")
+    assert text.code == 0, text.stdout + text.stderr  # the known finding is now waived
+    assert f'waiver added: zero-dynamics-unstable at rest: "{reason}"' in " ".join(text.stdout.split())
+    lines = plantlint(repo, env, "check", "--since", "HEAD", "--format", "lines", "--no-cache", "tail.plant")
+    assert (f'tail.plant: note: changed since HEAD: waiver added: zero-dynamics-unstable at rest: "{reason}"'
+            in lines.stdout.splitlines())
 
 
 def test_structure_changes_are_worded_for_readers_not_in_internal_names() -> None:

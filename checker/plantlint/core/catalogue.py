@@ -34,6 +34,9 @@ FAMILIES: tuple[str, ...] = ("model", "units", "structure", "zero-dynamics", "li
 
 _REQUIRED_KEYS = ("id", "family", "severity", "title", "rationale", "bad", "good", "references")
 _STRING_KEYS = ("id", "family", "title", "rationale", "bad", "good")
+#: Optional keys: ``waivable = false`` for findings a ``waive`` line may not silence
+#: (the file could not be read as a model, so nothing about it was checked).
+_OPTIONAL_KEYS = ("waivable",)
 
 SEVERITY_STYLE: dict[Severity, str] = {
     Severity.ERROR: "bold red",
@@ -71,6 +74,7 @@ class Rule:
     bad: str
     good: str
     references: tuple[str, ...]
+    waivable: bool = True
 
     def to_data(self) -> dict[str, Any]:
         """The rule as plain JSON data (``plantlint rules --format json``)."""
@@ -83,6 +87,7 @@ class Rule:
             "bad": self.bad,
             "good": self.good,
             "references": list(self.references),
+            "waivable": self.waivable,
         }
 
 
@@ -131,7 +136,7 @@ def family_file(family: str) -> str:
 
 def _rule_from_table(table: dict[str, Any], where: str, family: str) -> Rule:
     label = f"{where}: rule {table.get('id', '?')!r}"
-    unknown = sorted(set(table) - set(_REQUIRED_KEYS))
+    unknown = sorted(set(table) - set(_REQUIRED_KEYS) - set(_OPTIONAL_KEYS))
     if unknown:
         raise CatalogueError(f"{label}: unknown key(s) {', '.join(unknown)}")
     missing = [key for key in _REQUIRED_KEYS if key not in table]
@@ -150,6 +155,9 @@ def _rule_from_table(table: dict[str, Any], where: str, family: str) -> Rule:
     refs = table["references"]
     if not isinstance(refs, list) or not refs or not all(isinstance(r, str) and r.strip() for r in refs):
         raise CatalogueError(f"{label}: references must be a non-empty list of strings")
+    waivable = table.get("waivable", True)
+    if not isinstance(waivable, bool):
+        raise CatalogueError(f"{label}: waivable must be true or false")
     return Rule(
         id=table["id"],
         family=family,
@@ -159,6 +167,7 @@ def _rule_from_table(table: dict[str, Any], where: str, family: str) -> Rule:
         bad=table["bad"].strip("\n") + "\n",
         good=table["good"].strip("\n") + "\n",
         references=tuple(r.strip() for r in refs),
+        waivable=waivable,
     )
 
 
@@ -248,7 +257,7 @@ def _rule_page(rule: Rule) -> Group:
 
     parts: list[Any] = [
         Text.assemble((rule.id, "bold"), f"  {rule.family} check, reported as ", _severity_text(rule.severity),
-                      " by default"),
+                      " by default" + ("" if rule.waivable else "; cannot be waived")),
         Text(""),
         heading(protects),
         prose(rule.rationale),

@@ -593,6 +593,11 @@ def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outp
             scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, f"waive {rule.name}",
                       hint=_suggest(rule.name, catalogue.ids()) or "`plantlint rules` lists the rule ids")
             continue
+        if not catalogue.get(rule.name).waivable:
+            scope.add("waiver-refused", f"findings of '{rule.name}' cannot be waived: they mean the file was not "
+                      "read as a model, so nothing about it was checked", rule.span, f"waive {rule.name}",
+                      hint="remove this waiver and fix what the rule reports")
+            continue
         at = st.at_point
         if at is not None and at.name not in point_names:
             scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,

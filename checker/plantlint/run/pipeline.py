@@ -113,11 +113,25 @@ def locate(f: Finding, spans: Any) -> Finding:
     return replace(f, span=span)
 
 
+def _judged(raw: RawResult) -> Callable[[str], bool]:
+    """Which rules' absence this result can vouch for: every rule of the catalogue when
+    the file was read and its analysis completed, none otherwise (a model with errors
+    that stop the analysis, or an analysis cut short, cannot say what would have fired)."""
+    from plantlint.core.catalogue import load_catalogue
+
+    catalogue = load_catalogue()
+    rules = {f.rule for f in raw.findings}
+    complete = (raw.analysis is not None and getattr(raw, "stop", None) is None
+                and not rules & (BLOCKING | {"analysis-budget", "analysis-incomplete"}))
+    return lambda rule: complete and rule in catalogue
+
+
 def finish(path: str, raw: RawResult, source: str | None, config: Any, defaults: dict[str, Severity]) -> FileReport:
     """Apply the policy to a raw result and make the file's report."""
-    from plantlint.run.policy import apply_policy
+    from plantlint.run.policy import apply_policy, unused_waivers
 
-    findings = apply_policy(raw.findings, raw.waivers, defaults, config.severity, config.only, config.skip)
+    findings = raw.findings + unused_waivers(raw.findings, raw.waivers, _judged(raw))
+    findings = apply_policy(findings, raw.waivers, defaults, config.severity, config.only, config.skip)
     return FileReport(path=path, plant=raw.plant, findings=findings, analysis=raw.analysis, source=source)
 
 

@@ -8,7 +8,7 @@ one place decides how serious a rule is.
 from __future__ import annotations
 
 from dataclasses import replace
-from typing import Iterable, Mapping
+from typing import Callable, Iterable, Mapping
 
 from plantlint.core.findings import Finding, Severity, Waiver
 
@@ -33,6 +33,27 @@ def apply_policy(
         waiver = matching_waiver(f, waivers)
         out.append(replace(f, severity=severity, waived=waiver is not None,
                            reason=waiver.reason if waiver is not None else None))
+    return out
+
+
+def unused_waivers(findings: Iterable[Finding], waivers: Iterable[Waiver], judged: Callable[[str], bool]) -> list[Finding]:
+    """An ``unused-waiver`` finding for each waiver that matches none of ``findings``
+    (the findings before selection, so a waiver of a skipped rule still counts as used).
+
+    ``judged(rule)`` says whether the run can tell that the rule did not fire: not when
+    the analysis was cut short, for rules that need the analysis."""
+    findings = list(findings)
+    out = []
+    for w in waivers:
+        if not judged(w.rule) or any(matching_waiver(f, [w]) is not None for f in findings):
+            continue
+        where = f" at point {w.point}" if w.point else ""
+        out.append(Finding(
+            "unused-waiver", Severity.WARNING,
+            f"the waiver of '{w.rule}'{where} silences nothing: the rule does not fire "
+            + (f"at point {w.point}" if w.point else "in this model"),
+            w.span, point=w.point, anchor=f"waiver {w.rule}" + (f" at {w.point}" if w.point else ""),
+            hint="remove the waiver, or correct its rule id or point"))
     return out
 
 

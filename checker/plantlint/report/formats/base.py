@@ -84,8 +84,19 @@ def adjustment_text(adjustment: Adjustment) -> str:
 
 
 def change_text(change: dict[str, object]) -> str:
-    """One structural change under --since, e.g. 'point rest: zero dynamics: minimum_phase -> critical'."""
+    """One structural change under --since, e.g. 'point rest: zero dynamics: minimum phase -> critical';
+    a waiver added, removed or re-worded since the baseline (``what`` = 'waiver RULE [at POINT]',
+    the reasons before and after) reads 'waiver added: RULE at POINT: "REASON"'."""
     def shown(value: object) -> str:
         return "none" if value is None else str(value).lower() if isinstance(value, bool) else str(value)
 
-    return f"{one_line(str(change.get('what', '')))}: {shown(change.get('before'))} -> {shown(change.get('after'))}"
+    what = one_line(str(change.get("what", "")))
+    before, after = change.get("before"), change.get("after")
+    if what.startswith("waiver ") and (isinstance(before, str) or isinstance(after, str)):
+        subject = what.removeprefix("waiver ")
+        if before is None:
+            return f'waiver added: {subject}: "{one_line(str(after))}"'
+        if after is None:
+            return f'waiver removed: {subject} (was: "{one_line(str(before))}")'
+        return f'waiver reason changed: {subject}: "{one_line(str(before))}" -> "{one_line(str(after))}"'
+    return f"{what}: {shown(before)} -> {shown(after)}"

@@ -51,8 +51,9 @@ class LinesFormatter:
                     continue
                 stream.write(finding_line(file_report.path, finding, baseline) + "\n")
             for change in file_report.structure_changes:
-                stream.write(f"{one_line(file_report.path)}: note: structure changed since {report.since}: "
-                             f"{change_text(change)}\n")
+                shown = change_text(change)
+                kind = "" if shown.startswith("waiver ") else "structure "
+                stream.write(f"{one_line(file_report.path)}: note: {kind}changed since {report.since}: {shown}\n")
         for adjustment in report.adjustments:  # settings that drop or re-grade findings
             if adjustment.source.startswith("-"):  # an option on the command line
                 stream.write(f"plantlint: note: {adjustment_text(adjustment)}\n")

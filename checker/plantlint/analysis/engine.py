@@ -26,6 +26,9 @@ from plantlint.analysis.distributions import (
 )
 from plantlint.analysis.equilibria import Equilibrium, equilibrium_json, solve_point
 from plantlint.analysis.linearisation import Linearisation, linearisation_json, linearise_at
+from plantlint.analysis.parametric import (
+    ParametricPoint, box_controllability, box_point, box_zero_dynamics, claim_failure, clock, parametric_json,
+)
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.lie import Kernel
 from plantlint.language.model import ClaimDecl, Model
@@ -54,6 +57,7 @@ class PointAnalysis:
     normal_form: NormalForm | None = None
     distributions: PointDistributions | None = None
     linearisation: Linearisation | None = None
+    parametric: ParametricPoint | None = None  # verdicts over the parameter box (ranged parameters)
 
 
 @dataclass
@@ -86,6 +90,8 @@ class Analysis:
                                       if pa.linearisation is not None else None)
             if pa.distributions is not None:
                 entry.update(distributions_json(pa.distributions))
+            if pa.parametric is not None:
+                entry["parameter_box"] = parametric_json(pa.parametric)
             points[pa.name] = entry
         out: dict[str, Any] = {
             "states": list(m.states),
@@ -126,6 +132,7 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
     result.findings.extend(result.envelope.findings)
     stage("envelope")
 
+    timer = clock(getattr(config, "envelope_seconds", 5.0), getattr(config, "envelope_boxes", 20000))
     for op in model.points:
         given = {model.symbol(k): v for k, v in op.values.items()}
         eq = solve_point(plant, op.name, given, kernel)
@@ -134,6 +141,10 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
         if all(s in eq.values for s in plant.states):
             pa.structure = structure_at_point(kernel, structure, op.name, eq.values)
             result.findings.extend(pa.structure.findings)
+            written = {model.symbol(k): v for k, v in op.parametric.items()}
+            pa.parametric = box_point(kernel, structure.vector_relative_degree, structure.decoupling, op.name, eq,
+                                      written, pa.structure.well_defined, timer)
+            result.findings.extend(pa.parametric.findings if pa.parametric is not None else [])
         result.points.append(pa)
     stage("points")
 
@@ -146,6 +157,7 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
         ints = [int(d) for d in degrees if d is not None]
         pa.zero_dynamics = zero_dynamics_at(kernel, ints, pa.equilibrium.values, pa.name)
         result.findings.extend(pa.zero_dynamics.findings)
+        result.findings.extend(box_zero_dynamics(pa.parametric, ints, pa.zero_dynamics))
         if pa.zero_dynamics.verdict == "not_applicable" and sum(ints) == plant.n:
             pa.normal_form = _full_normal_form(kernel, ints)
         elif pa.zero_dynamics.verdict != "undefined" and sum(ints) < plant.n:
@@ -178,6 +190,8 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
             at_kernel, at_structure = _feedback_shifted(kernel, brackets(), pa.equilibrium, shifted)
             pa.distributions = distributions_at(at_kernel, at_structure, pa.name, pa.equilibrium.values)
             result.findings.extend(pa.distributions.findings)
+            if any(c.kind == "state_linearizable" and c.point in (None, pa.name) for c in model.claims):
+                result.findings.extend(box_controllability(pa.parametric, pa.distributions.controllability_rank))
         result.distributions = by_outputs if by_outputs is not None else brackets()
     stage("distributions")
 
@@ -339,7 +353,18 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
         if pa.structure is None or not pa.structure.well_defined:
             out.append((pa.name, f"at point '{pa.name}' the relative degree is not well defined "
                                  "or the decoupling matrix is singular"))
+        else:
+            out.extend(_box_failure(pa, "decoupling"))
     return out
+
+
+def _box_failure(pa: PointAnalysis, prop: str) -> list[tuple[str | None, str]]:
+    """A claim that holds at the nominal parameter values must hold over the parameter box."""
+    found = claim_failure(pa.parametric, prop)
+    if found is None:
+        return []
+    message, _decided = found
+    return [(pa.name, message)]
 
 
 def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
@@ -363,6 +388,8 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
             out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues on the "
                                  f"imaginary axis ({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
                                  "asymptotic stability"))
+        elif zd.verdict == "minimum_phase":
+            out.extend(_box_failure(pa, "zero_dynamics"))
     if c.point is None and not any(p.equilibrium.equilibrium for p in points):
         out.append((None, "no declared point is an equilibrium"))
     return out
@@ -397,6 +424,9 @@ def _state_linearizable_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | Non
             elif pd.singular_orders:
                 why.append("rank of " + ", ".join(ds.name(k) for k in pd.singular_orders) + " drops at the point")
             out.append((pa.name, f"at point '{pa.name}': " + ("; ".join(why) or "conditions fail")))
+        else:
+            box = pa.parametric.controllability if pa.parametric is not None else None
+            out.extend(_box_failure(pa, "controllability" if box is not None else "decoupling"))
     return out
 
 

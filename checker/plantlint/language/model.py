@@ -46,6 +46,8 @@ class OperatingPoint:
     name_span: Span
     values: Mapping[str, sp.Expr]  # exact values by state/input name
     value_spans: Mapping[str, Span]
+    # values as written, ranged parameters kept symbolic (only those that use one)
+    parametric: Mapping[str, sp.Expr] = field(default_factory=lambda: MappingProxyType({}))
 
 
 @dataclass(frozen=True)
@@ -506,8 +508,20 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inpu
                       hint="every state must be given; inputs may be left out to be solved for")
         spans[f"point {name}"] = st.name_span or st.span
         points.append(OperatingPoint(name, st.span, st.name_span or st.span, MappingProxyType(values),
-                                     MappingProxyType(value_spans)))
+                                     MappingProxyType(value_spans), _parametric_values(scope, st, values)))
     return points
+
+
+def _parametric_values(scope: _Scope, st: Statement, values: dict[str, sp.Expr]) -> MappingProxyType:
+    """The point's values with ranged parameters kept as symbols (a point written in
+    terms of parameters follows them over the parameter box)."""
+    out: dict[str, sp.Expr] = {}
+    for target, expr in st.assignments:
+        if target.name in values:
+            kept = expr.value.xreplace(scope.lets).xreplace(scope.constants)
+            if kept.free_symbols and not kept.has(sp.zoo, sp.nan):
+                out[target.name] = kept
+    return MappingProxyType(out)
 
 
 def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp.Expr | None:

@@ -185,6 +185,17 @@ def test_include_and_exclude_choose_the_models(project: Path, cli: CLI) -> None:
     assert excluded.code == 2 and "left out by include/exclude" in excluded.stderr
 
 
+def test_an_explicitly_named_excluded_file_is_named_with_its_setting(project: Path, cli: CLI) -> None:
+    run = cli(project, "check", "models/archive/old_tail.plant")
+    assert run.code == 0  # nothing checked, nothing failed; a hook passing staged files must not break
+    assert run.stderr.splitlines() == [
+        'plantlint: note: models/archive/old_tail.plant is not checked: it is excluded by exclude pattern '
+        '"models/archive/**" in plantlint.toml']
+    both = cli(project, "check", "--format", "json", "models/archive/old_tail.plant", "models/tail.plant")
+    assert [f["path"] for f in both.json()["files"]] == ["models/tail.plant"]
+    assert "old_tail.plant is not checked" in both.stderr
+
+
 def test_severity_override_from_plantlint_toml(project: Path, tmp_path: Path, cli: CLI) -> None:
     plain = tmp_path / "plain.toml"
     plain.write_text("", encoding="utf-8")

@@ -50,8 +50,42 @@ def test_text_report_has_every_section_and_no_markup_loss() -> None:
 def test_point_filter_and_unknown_point() -> None:
     data = json.loads(_explain("json", "rest"))
     assert [p["name"] for p in data["points"]] == ["rest"]
-    out = io.StringIO()
-    assert explain_file(SAMPLE, "nowhere", "text", out, color=False) == 2
+    out, err = io.StringIO(), io.StringIO()
+    assert explain_file(SAMPLE, "nowhere", "text", out, color=False, errors=err) == 2
+    assert out.getvalue() == "" and "has no point 'nowhere' (its points: rest)" in err.getvalue()
+
+
+def _cli(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]:
+    return subprocess.run([sys.executable, "-m", "plantlint", "explain", *args], capture_output=True, text=True,
+                          cwd=cwd, timeout=300)
+
+
+def test_cli_explain_unknown_point_is_a_usage_error_on_standard_error() -> None:
+    run = _cli(str(SAMPLE), "--point", "nope")
+    assert run.returncode == 2 and run.stdout == ""
+    assert run.stderr.startswith("plantlint: error: ") and "'nope'" in run.stderr
+
+
+def test_cli_explain_of_a_folder_names_its_models(tmp_path: Path) -> None:
+    (tmp_path / "line").mkdir()
+    for name in ("line/a.plant", "b.plant"):
+        (tmp_path / name).write_text(SAMPLE.read_text(encoding="utf-8"), encoding="utf-8")
+    run = _cli(str(tmp_path))
+    assert run.returncode == 2 and run.stdout == ""
+    assert "is a folder; explain needs one model file (models here: b.plant, line/a.plant)" in run.stderr
+    assert "no such file" not in run.stderr
+
+
+def test_cli_explain_honours_only_and_skip() -> None:
+    rules = lambda run: [f["rule"] for f in json.loads(run.stdout)["findings"]]  # noqa: E731
+    everything = _cli(str(SAMPLE), "--format", "json")
+    assert everything.returncode == 0 and "zero-dynamics-critical" in rules(everything)
+    skipped = _cli(str(SAMPLE), "--format", "json", "--skip", "zero-dynamics-critical")
+    assert skipped.returncode == 0 and "zero-dynamics-critical" not in rules(skipped)
+    only = _cli(str(SAMPLE), "--format", "json", "--only", "zero-dynamics-critical")
+    assert set(rules(only)) == {"zero-dynamics-critical"}
+    bad = _cli(str(SAMPLE), "--skip", "no-such-rule")
+    assert bad.returncode == 2 and "no-such-rule" in bad.stderr and bad.stdout == ""
 
 
 def test_cli_explain_on_a_broken_model(tmp_path: Path) -> None:

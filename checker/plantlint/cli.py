@@ -106,6 +106,8 @@ def build_parser() -> argparse.ArgumentParser:
                              "decoupling matrix, envelope, normal form, zero dynamics, distributions.")
     explain.add_argument("file", metavar="FILE")
     explain.add_argument("--point", metavar="NAME", help="only this operating point")
+    explain.add_argument("--only", metavar="IDS", help="comma-separated rule ids to list among the findings")
+    explain.add_argument("--skip", metavar="IDS", help="comma-separated rule ids to leave out of the findings")
     explain.add_argument("--format", choices=("text", "json"), default="text")
     explain.add_argument("--color", choices=("auto", "always", "never"), default="auto")
     return top
@@ -188,6 +190,7 @@ def _check(args: argparse.Namespace) -> int:
     paths = args.paths or [str(config.root)]
     cache_dir = Path(args.cache_dir) if args.cache_dir else config.root / config.cache_dir
     use_cache = config.cache and not args.no_cache
+    _say_excluded(args.paths, config)
     shard = None
     if args.shard:
         from plantlint.run.shard import Shard, ShardError, parse_shard
@@ -217,6 +220,20 @@ def _check(args: argparse.Namespace) -> int:
               file=sys.stderr)
     report.adjustments = config.adjustments()
     return _emit(report, args.format, args.output, args.color)
+
+
+def _say_excluded(paths: list[str], config: object) -> None:
+    """A file named on the command line that the configuration excludes is not checked;
+    say so on standard error, naming the pattern and where it is set (not an error: a
+    pre-commit hook passes whatever is staged)."""
+    from plantlint.run.config import Config, shown_path
+    from plantlint.run.runner import excluded_by
+
+    assert isinstance(config, Config)
+    where = shown_path(config.source) if config.source is not None else "the configuration"
+    for path, pattern in excluded_by(paths, config.root, config.exclude):
+        print(f"plantlint: note: {path} is not checked: it is excluded by exclude pattern "
+              f"\"{pattern}\" in {where}", file=sys.stderr)
 
 
 def _config_start(paths: list[str]) -> Path:
@@ -286,11 +303,25 @@ def _rules(args: argparse.Namespace) -> int:
 def _explain(args: argparse.Namespace) -> int:
     from plantlint.report.explain import explain_file
 
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.run.config import ConfigError, parse_rule_list
+
     path = Path(args.file)
+    if path.is_dir():  # one derivation at a time: the report is long; name the models to choose from
+        models = sorted(p.relative_to(path).as_posix() for p in path.rglob("*.plant") if p.is_file())
+        listed = ", ".join(models[:5]) + (f", ... ({len(models)} in all)" if len(models) > 5 else "")
+        return _fail(f"{args.file}: is a folder; explain needs one model file"
+                     + (f" (models here: {listed})" if models else " (there is no .plant file in it)"))
     if not path.is_file():
         return _fail(f"{args.file}: no such file")
+    known = frozenset(load_catalogue().ids())
+    try:
+        only = parse_rule_list(args.only, "--only", known) if args.only else None
+        skip = parse_rule_list(args.skip, "--skip", known) if args.skip else None
+    except ConfigError as exc:
+        return _fail(str(exc))
     color = args.format == "text" and _use_color(args.color, sys.stdout)
-    return explain_file(path, args.point, args.format, sys.stdout, color)
+    return explain_file(path, args.point, args.format, sys.stdout, color, only=only, skip=skip, errors=sys.stderr)
 
 
 def _merge(args: argparse.Namespace) -> int:

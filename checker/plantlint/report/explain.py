@@ -10,6 +10,7 @@ expressions are shown with their common sub-expressions named (c1, c2, ...).
 from __future__ import annotations
 
 import json
+import sys
 from pathlib import Path
 from typing import Any, TextIO
 
@@ -195,11 +196,16 @@ def show_repeated(values: tuple[complex, ...]) -> str:
 
 # -- rendering ----------------------------------------------------------------------
 
-def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color: bool) -> int:
+def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color: bool, *,
+                 only: frozenset[str] | None = None, skip: frozenset[str] | None = None,
+                 errors: TextIO | None = None) -> int:
+    """Explain one model to ``stream``; usage errors go to ``errors`` (standard error) and
+    return 2. ``only``/``skip`` replace the configuration's selection, as in ``check``."""
+    errors = errors if errors is not None else sys.stderr
     try:
         config = load_config(path.parent)
     except ConfigError as exc:
-        print(f"plantlint: error: {exc}", file=stream)
+        print(f"plantlint: error: {exc}", file=errors)
         return 2
     model, findings = read_model(path.read_bytes(), str(path))
     blocking = [f for f in findings if f.rule in BLOCKING]
@@ -210,12 +216,14 @@ def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color:
         print("plantlint: the model cannot be analysed until these are fixed", file=stream)
         return 1
     if point is not None and model.point(point) is None:
-        print(f"plantlint: error: {path} has no point '{point}'", file=stream)
+        names = ", ".join(p.name for p in model.points) or "none"
+        print(f"plantlint: error: {path} has no point '{point}' (its points: {names})", file=errors)
         return 2
     analysis = run_analysis(model, config if isinstance(config, Config) else Config())
     catalogue = load_catalogue()
     located = [locate(f, model.spans) for f in findings + analysis.findings]
-    shown = apply_policy(located, model.waivers, {r.id: r.severity for r in catalogue}, config.severity)
+    shown = apply_policy(located, model.waivers, {r.id: r.severity for r in catalogue}, config.severity,
+                         only if only is not None else config.only, skip if skip is not None else config.skip)
     report = explain_data(analysis, point, shown)
     if fmt == "json":
         json.dump(report, stream, indent=2, default=str)

@@ -179,6 +179,21 @@ def _excluded(q: Path, root: Path, patterns: tuple[str, ...]) -> bool:
     return bool(patterns) and _matches(q, root, patterns)
 
 
+def excluded_by(paths: list[str], root: Path, exclude: tuple[str, ...]) -> list[tuple[str, str]]:
+    """Files named explicitly that ``exclude`` leaves out, each with the pattern that
+    matched it (``discover`` drops them; the command line says so instead of staying silent)."""
+    out = []
+    for raw in paths:
+        p = Path(raw)
+        if p.is_dir() or not p.exists():
+            continue
+        rel = _relative(p, root)
+        pattern = next((pat for pat in exclude if rel is not None and _glob_match(rel, pat)), None)
+        if pattern is not None:
+            out.append((raw, pattern))
+    return out
+
+
 def _glob_match(rel: str, pattern: str) -> bool:
     """fnmatch where a whole ``**/`` may also match nothing, at the start or after a
     ``/`` (``**/*.plant`` matches ``a.plant``; ``models/**/*.plant`` matches ``models/a.plant``)."""

@@ -610,14 +610,16 @@ def _zero_dynamics(params: _Params, degrees: list[int], values: dict[sp.Symbol, 
     boundary = _boundary(params, failed.expr, w)
     crossing = _crossing(params, failed.expr, w)
     what = "unstable (non-minimum phase)" if zd.verdict == "non_minimum_phase" else "critical"
-    detail = (f"{what} at {show_values(params.named(w))}: zero-dynamics eigenvalues "
-              f"{show_eigenvalues(zd.eigenvalues)} ({'exact' if zd.exact else 'high precision'})")
-    if boundary:
+    at_witness = (f"{show_values(params.named(w))}: zero-dynamics eigenvalues {show_eigenvalues(zd.eigenvalues)} "
+                  f"({'exact' if zd.exact else 'high precision'})")
+    if boundary and zd.verdict == "non_minimum_phase":
         # a negative Lienard-Chipart condition means a root in the open right half-plane:
         # a polynomial with every root in the closed left half-plane is a limit of Hurwitz
         # ones, so its coefficients and Hurwitz determinants are all >= 0
-        detail += (f"; non-minimum phase wherever {boundary} ({failed.label} of the zero-dynamics "
-                   "polynomial is negative exactly there)")
+        detail = (f"non-minimum phase wherever {boundary} ({failed.label} of the zero-dynamics polynomial "
+                  f"is negative exactly there); witness {at_witness}")
+    else:
+        detail = f"{what} at {at_witness}"
     return BoxVerdict("violated", detail, params.named(w), zd.verdict, zd.eigenvalues, boundary, crossing)
 
 

@@ -18,14 +18,16 @@ import numpy as np
 import pytest
 from scipy import signal
 
-pytest.importorskip("matplotlib")
+from plantlint.cli import main
+from plantlint.kernel.lie import Kernel
+from plantlint.analysis.structure import analyse_structure
+from plantlint.language.model import build_model
+from plantlint.language.syntax import parse_text
+from plantlint.report.plots import envelope_slice, plot_model, zero_dynamics_trace
 
-from plantlint.cli import main  # noqa: E402
-from plantlint.kernel.lie import Kernel  # noqa: E402
-from plantlint.analysis.structure import analyse_structure  # noqa: E402
-from plantlint.language.model import build_model  # noqa: E402
-from plantlint.language.syntax import parse_text  # noqa: E402
-from plantlint.report.plots import envelope_slice, plot_model, zero_dynamics_trace  # noqa: E402
+# drawing needs the plot extra; the computations and the two import tests do not
+needs_matplotlib = pytest.mark.skipif(__import__("importlib").util.find_spec("matplotlib") is None,
+                                      reason='needs the plot extra: pip install -e ".[plot]"')
 
 # Zero dynamics (y = x held at 0, u = -z1): z1' = z2, z2' = -4 z1 + (c - 3/10) z2,
 # eigenvalues ((c - 3/10) +- sqrt((c - 3/10)^2 - 16)) / 2: the pair crosses the
@@ -133,6 +135,7 @@ def test_crossing_with_a_moving_equilibrium_is_resolved() -> None:
         assert np.allclose(sorted(sampled, key=lambda z: (z.real, z.imag)), expected, atol=1e-7)
 
 
+@needs_matplotlib
 def test_the_crossing_drawn_is_the_crossing_returned() -> None:
     outcome = plot_model(SWING.encode(), "svg", samples=21)
     assert outcome.crossings == {"c@rest": [pytest.approx(0.3, abs=1e-12)]}
@@ -151,6 +154,7 @@ def test_envelope_slice_samples_and_witness() -> None:
     assert "tilted" in s.points
 
 
+@needs_matplotlib
 def test_cli_writes_png_and_svg(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     model = tmp_path / "hinge.plant"
     model.write_text(HINGE, encoding="utf-8")

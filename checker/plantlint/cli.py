@@ -381,9 +381,15 @@ def _plot(args: argparse.Namespace) -> int:
                   file=sys.stderr)
             status = EXIT_FINDINGS
             continue
-        outcome = plot_model(source.data, args.format, states=states, point=args.point, param=args.param,
-                             envelope_seconds=getattr(config, "envelope_seconds", 5.0),
-                             envelope_boxes=getattr(config, "envelope_boxes", 20000))
+        try:
+            outcome = plot_model(source.data, args.format, states=states, point=args.point, param=args.param,
+                                 envelope_seconds=getattr(config, "envelope_seconds", 5.0),
+                                 envelope_boxes=getattr(config, "envelope_boxes", 20000))
+        except (Exception, RecursionError) as exc:  # a hostile model must not end in a traceback
+            print(f"{target.display}: cannot plot: internal error ({type(exc).__name__}); "
+                  "`plantlint check` reports what it can", file=sys.stderr)
+            status = EXIT_FINDINGS
+            continue
         if outcome.error:
             print(f"{target.display}: cannot plot: {outcome.error}", file=sys.stderr)
             status = EXIT_FINDINGS

@@ -423,7 +423,11 @@ def draw_slice(s: Slice, fmt: str) -> bytes:
         X, Y = np.meshgrid(s.grids[0], s.grids[1], indexing="ij")
         floor = float(positive.min()) if positive.size else 1e-300
         shown = np.where(np.isfinite(s.sigma), np.maximum(s.sigma, floor), np.nan)
-        norm = mcolors.LogNorm(vmin=floor, vmax=float(finite.max())) if positive.size and finite.max() > floor else None
+        if positive.size and finite.max() > 20 * floor:  # wide range: logarithmic colours
+            norm = mcolors.LogNorm(vmin=floor, vmax=float(finite.max()))
+        else:
+            norm = mcolors.Normalize(vmin=float(finite.min()) if finite.size else 0.0,
+                                     vmax=float(finite.max()) if finite.size else 1.0)
         mesh = ax.pcolormesh(X, Y, np.ma.masked_invalid(shown), shading="auto", cmap="viridis", norm=norm)
         fig.colorbar(mesh, cax=cax, label=s.measure)
         if np.any(~np.isfinite(s.sigma)):
@@ -478,8 +482,9 @@ def draw_slice(s: Slice, fmt: str) -> bytes:
             "Nothing held fixed: the two axes are the whole envelope (no other state, no ranged parameter)")
     fig.text(0.03, 0.115, held, fontsize=8.5, wrap=True)
     fig.text(0.03, 0.07, s.verdict, fontsize=8.5, wrap=True)
-    fig.text(0.03, 0.025, f"Grid samples of {s.measure} (a picture, not a proof); shaded below {_show(s.small)}"
-             + ("." if shaded else ": nowhere on this slice."), fontsize=8, color="#444444", wrap=True)
+    fig.text(0.03, 0.025, f"{'x'.join(str(len(g)) for g in s.grids)} grid samples (a picture, not a proof); shaded below {_show(s.small)}"
+             + ("" if shaded else " (nowhere here)") + ("; points projected onto the slice." if s.points else "."),
+             fontsize=8, color="#444444", wrap=True)
     return _save(fig, fmt)
 
 

@@ -125,8 +125,6 @@ def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity],
         files.append(compare(report, old_raw, config, defaults))
         if old_raw is not None:
             files[-1].structure_changes.extend(waiver_changes(old_raw.waivers, raw.waivers))
-        if old_raw is not None:
-            files[-1].structure_changes.extend(waiver_changes(old_raw.waivers, raw.waivers))
     files.extend(_deleted(commit, top, paths, config, defaults, every, moved, jobs=jobs, use_cache=use_cache,
                           cache_dir=cache_dir, shard=shard))
     return Report(files=files, tool_version=__version__, fail_on=config.fail_on, since=ref)
@@ -219,17 +217,6 @@ def _words(value: Any) -> Any:
     if isinstance(value, str):
         return VERDICT_WORDS.get(value, value.replace("_", " "))
     return value
-
-
-def waiver_changes(before: list[Any], after: list[Any]) -> list[dict[str, Any]]:
-    """Waivers added, removed or given another reason: ``what`` is 'waiver RULE [at POINT]',
-    ``before``/``after`` the reasons (None where there was no such waiver)."""
-    def keyed(waivers: list[Any]) -> dict[str, str]:
-        return {f"waiver {w.rule}" + (f" at {w.point}" if w.point else ""): w.reason for w in waivers}
-
-    old, new = keyed(before), keyed(after)
-    return [{"what": k, "before": old.get(k), "after": new.get(k)}
-            for k in sorted(set(old) | set(new)) if old.get(k) != new.get(k)]
 
 
 def waiver_changes(before: list[Any], after: list[Any]) -> list[dict[str, Any]]:

@@ -17,7 +17,7 @@ from __future__ import annotations
 from typing import Any, TextIO
 
 from plantlint.core.findings import FileReport, Finding, Report
-from plantlint.report.formats.base import baseline_of, findings_in_order, one_line
+from plantlint.report.formats.base import adjustment_text, baseline_of, findings_in_order, one_line
 
 LONG = 6  # longer lists are collapsed
 _SPECIAL = set("\\`*[]|")  # always escaped; parentheses are harmless once brackets are
@@ -159,6 +159,7 @@ def render_markdown(report: Report) -> str:
         if failed and new_failing:
             line += f" **{_plural(new_failing, 'introduced finding')} at or above {report.fail_on.value} fail the check.**"
         out += [line + _undecided_note(counts), ""]
+        out += _settings(report)
         if not changed:
             out += ["No model changed its structure or its findings.", ""]
             return "\n".join(out)
@@ -186,6 +187,7 @@ def render_markdown(report: Report) -> str:
                       (("errors", "error"), ("warnings", "warning"), ("notes", "note")))
     out += [f"{_plural(len(report.files), 'model')} checked: {tally}, {counts.get('waived', 0)} waived "
             f"(fail level: {report.fail_on.value}).{_undecided_note(counts)}", ""]
+    out += _settings(report)
     if not with_findings:
         out += ["No findings.", ""]
         return "\n".join(out).rstrip("\n") + "\n"
@@ -202,6 +204,16 @@ def render_markdown(report: Report) -> str:
         _block([finding_item(f) for f in fs if not f.waived], "Findings", out)
         _block([finding_item(f) for f in fs if f.waived], "Waived", out, collapse=True)
     return "\n".join(out).rstrip("\n") + "\n"
+
+
+def _settings(report: Report) -> list[str]:
+    """The active settings that change what is reported or what fails, with their reasons."""
+    lines = [f"- {text(adjustment_text(a))}" for a in report.adjustments]
+    relaxed = getattr(report, "relaxation", None)
+    if relaxed is not None:
+        lines.append(f"- not-decided results do not fail this run (set in {text(relaxed.source)}): "
+                     f"{text(relaxed.reason)}")
+    return ["Settings in force:", "", *lines, ""] if lines else []
 
 
 def _undecided_note(counts: dict[str, int]) -> str:

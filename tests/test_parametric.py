@@ -290,3 +290,22 @@ def test_controllability_proven_when_the_coupling_stays_away_from_zero(lo: str) 
     A = np.array([[-1.0, float(lo)], [0.0, 0.0]])  # numpy: full Kalman rank at the low end
     assert np.linalg.matrix_rank(np.hstack([[[0.0], [1.0]], A @ [[0.0], [1.0]]])) == 2
     assert not [f for f in findings if f.rule == "expectation-failed"]
+
+
+def test_explain_shows_the_box_verdicts(tmp_path: Path) -> None:
+    # the text derivation names each property over the box; JSON carries the same record
+    import io
+    import json
+
+    from plantlint.report.explain import explain_file
+
+    model = tmp_path / "tank.plant"
+    model.write_text(_tank("0.70 in 0.55 .. 0.9", "0.60 in 0.55 .. 0.9"), encoding="utf-8")
+    text, data = io.StringIO(), io.StringIO()
+    assert explain_file(model, "op", "text", text, color=False) == 0
+    assert "over the parameter box (gam1 in 0.55 .. 0.9, gam2 in 0.55 .. 0.9)" in text.getvalue()
+    assert "minimum phase: proven" in text.getvalue()
+    assert explain_file(model, "op", "json", data, color=False) == 0
+    (op,) = json.loads(data.getvalue())["points"]
+    assert op["parameter_box"]["zero_dynamics"]["outcome"] == "proven"
+    assert max(_johansson_zeros(0.55, 0.55).real) < 0  # the worst corner, by the closed form

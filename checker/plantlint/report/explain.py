@@ -26,6 +26,7 @@ from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.analysis.structure import lie_name
 from plantlint.analysis.zero_dynamics import show_eigenvalues
 from plantlint.analysis.linearisation import Linearisation, ModeGroup
+from plantlint.analysis.parametric import parametric_json
 
 #: Expressions longer than this (characters) are shown with sub-expressions named.
 LONG = 60
@@ -148,7 +149,23 @@ def _point(a: Analysis, pa: PointAnalysis) -> dict[str, Any]:
                                 "linearizing_output": show_expr(pd.linearizing_output)
                                 if pd.linearizing_output is not None else None,
                                 "notes": list(pd.notes)}
+    if pa.parametric is not None:
+        out["parameter_box"] = parametric_json(pa.parametric)
     return out
+
+
+def _render_parameter_box(console: Any, box: dict[str, Any]) -> None:
+    """What holds over the whole box of ranged parameters, property by property."""
+    ranges = ", ".join(f"{k} in {show_number(lo)} .. {show_number(hi)}" for k, (lo, hi) in box["box"].items())
+    console.print(f"  over the parameter box ({ranges}):")
+    if box["solved_inputs"]:
+        console.print("    inputs solved in the parameters: "
+                      + ", ".join(f"{k} = {v}" for k, v in box["solved_inputs"].items()))
+    for key, label in (("equilibrium", "equilibrium"), ("decoupling", "decoupling matrix"),
+                       ("zero_dynamics", "minimum phase"), ("controllability", "controllability rank")):
+        v = box.get(key)
+        if v is not None:
+            console.print(f"    {label}: {v['outcome'].replace('_', ' ')}; {v['detail']}")
 
 
 def _linearisation(lin: Linearisation) -> dict[str, Any]:
@@ -337,6 +354,9 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
                 console.print(f"    linearizing output (relative degree n, verified): {pd['linearizing_output']}")
             for note in pd["notes"]:
                 console.print(f"    ({note})")
+        box = p.get("parameter_box")
+        if box is not None:
+            _render_parameter_box(console, box)
 
     _section(console, "Findings")
     if not d["findings"]:

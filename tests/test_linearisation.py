@@ -183,6 +183,12 @@ def test_irrational_entries_take_the_numeric_route() -> None:
         # (a tolerance above the rounding of the irrational products)
         assert lin.controllability_rank == np.linalg.matrix_rank(kalman(As, Bf), tol=1e-9)
         assert lin.observability_rank == np.linalg.matrix_rank(kalman(As.T, Cf.T), tol=1e-9)
+        # the uncontrollable quantities w satisfy w K = 0 (numpy); a rank drop found only to the
+        # working precision is reported as a proven lower bound, never as a certain rank
+        for w in (vector(d, n) for g in lin.uncontrollable for d in g.directions):
+            assert np.allclose(w @ kalman(As, Bf), 0, atol=1e-6)
+        if lin.controllability_rank < n:
+            assert "proven lower bound" in lin.reason
         if lin.zeros is not None and lin.controllability_rank == n and lin.observability_rank == n:
             z, _, _ = scipy.signal.ss2zpk(As, Bf, Cf, np.zeros((1, 1)))
             assert_same_set(list(lin.zeros), list(z), tol=1e-5)
@@ -349,6 +355,30 @@ point held: th = 1/3, w = 0, z = sin(1/3)
     assert_same_set(list(lin.zeros or ()), list(z), tol=1e-9)
     assert lin.controllability_rank == 3 and lin.observability_rank == 3
     assert lin.cross_check.status == "agrees"
+
+
+def test_numeric_route_proves_a_structural_rank_drop() -> None:
+    # an undriven, unmeasured state h beside a pendulum held at 1/3 (invented): its row of
+    # the Kalman matrix is exactly zero, so the rank drop is proven, not just numerical;
+    # by hand: d/dh (-h cos(1/3)) = -cos(1/3), the mode of h
+    a = analyse_text("""
+plant held_with_tank "held arm beside an undriven tank (invented)"
+state th
+state w
+state h
+input u
+rate th = w
+rate w = -sin(th) - w + u
+rate h = -h*cos(1/3)
+output y = th
+point held: th = 1/3, w = 0, h = 0
+""")
+    lin = a.points[0].linearisation
+    assert lin is not None and not lin.exact
+    assert lin.controllability_rank == 2 and lin.observability_rank == 2 and lin.reason == ""
+    (group,) = lin.uncontrollable
+    assert group.directions == ("h",)
+    assert_same_set(list(group.eigenvalues), [-math.cos(1 / 3)], tol=1e-9)
 
 
 # -- the cross-check ------------------------------------------------------------------------

@@ -12,9 +12,10 @@ the characteristic polynomial, the Kalman ranks, the uncontrollable and
 unobservable subspaces split by the irreducible factors of their modes, and the
 invariant zeros of a square plant as the roots of det [[sI - A, -B], [C, 0]]
 (interpolated exactly from n + 1 rational determinants). Otherwise the entries
-stay exact constants (sin(1/3), sqrt(2)): ranks and directions come from
-elimination with rigorous zero decisions by the kernel, and poles and zeros
-from mpmath at ``DIGITS`` digits, with the tolerance stated.
+are exact constants (sin(1/3), sqrt(2)) evaluated as rigorous balls: a rank is
+proven by pivots whose balls exclude zero and a remainder of exact zeros (or
+reported as a lower bound), and poles and zeros come from mpmath at ``DIGITS``
+digits, with the tolerance stated.
 
 At a regular point the invariant zeros must equal the eigenvalues of the
 linearised zero dynamics (Isidori, Nonlinear Control Systems, 3rd ed., sec. 4.3
@@ -29,21 +30,21 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from fractions import Fraction
 from math import gcd, lcm
-from typing import Callable, Sequence
+from typing import Sequence
 
 import flint
 import mpmath
 import sympy as sp
-from flint import fmpq, fmpq_mat, fmpq_poly, fmpz_poly
+from flint import acb, acb_mat, acb_poly, arb, arb_mat, fmpq, fmpq_mat, fmpq_poly, fmpz_poly
 
 from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues
 from plantlint.core.findings import Finding, Severity
-from plantlint.kernel.exact import number_decider, rank as exact_rank
+from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.lie import Kernel
 from plantlint.language.printer import show_number
 
-#: Working precision (decimal digits) of the numeric route.
+#: Working precision (decimal digits) for the roots of a ball polynomial with multiple roots.
 DIGITS = 50
 #: Coefficients of the zero polynomial below this fraction of the largest are
 #: taken as zero on the numeric route (the degree decision).
@@ -51,9 +52,6 @@ COEFFICIENT_TOLERANCE = 1e-30
 #: Relative tolerance of the cross-check |z - w| <= tol * (1 + |z|).
 CROSS_CHECK_TOLERANCE = 1e-8
 _ROOT_BITS = 128
-#: Entries of a non-rational Kalman matrix beyond this size (operations) are not
-#: built; the ranks are then not decided.
-_SIZE_LIMIT = 4000
 
 CROSS_CHECK_STATES = ("agrees", "disagrees", "not_applicable")
 
@@ -134,7 +132,7 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
     if all(e.is_Rational for e in entries):
         lin = _exact(name, A, B, C, plant.states)
     else:
-        lin = _numeric(name, A, B, C, plant.states, number_decider(kernel))
+        lin = _numeric(name, A, B, C, plant.states)
     lin = _with(lin, A=tuple(rows), B=tuple(b_rows), C=tuple(c_rows))
     check = cross_check(lin, zero_dynamics)
     findings = _inconsistency(name, check)
@@ -389,154 +387,259 @@ def _terms(pairs: Sequence[tuple[sp.Expr, sp.Symbol]]) -> str:
 
 
 # -- numeric route -------------------------------------------------------------------------
-Decide = Callable[[sp.Expr], "bool | None"]
+#: Working precisions (bits) of the ball route; the second is tried when the first
+#: leaves a rank undecided.
+BALL_BITS = (256, 1024)
 
 
-def _numeric(name: str, A: sp.Matrix, B: sp.Matrix, C: sp.Matrix, states: Sequence[sp.Symbol],
-             decide: Decide) -> Linearisation:
-    """Entries with exact irrational constants: ranks and directions by elimination with
-    rigorous zero decisions; poles and zeros at ``DIGITS`` digits."""
+def _numeric(name: str, A: sp.Matrix, B: sp.Matrix, C: sp.Matrix, states: Sequence[sp.Symbol]) -> Linearisation:
+    """Entries with exact irrational constants (cos(1/5), sqrt(2)).
+
+    Ranks come from Gaussian elimination in ball arithmetic: a pivot whose ball excludes
+    zero is proven non-zero (a rank lower bound), and a remainder of balls that are
+    exactly zero (radius 0: structural zeros stay exact) proves the rank. A remainder
+    that is only tiny leaves the rank a lower bound, said in ``reason``. Poles and
+    zeros come from mpmath at ``DIGITS`` digits.
+    """
     n, m, p = A.rows, B.cols, C.rows
-    with mpmath.workdps(DIGITS):
-        An = _mp(A)
-        poles = _eig(An) if n else []
-        ctrl_rank: int | None = None
-        unctrl: tuple[ModeGroup, ...] = ()
-        reason = ""
-        if m:
-            K = _kalman(A, B)
-            if K is None:
-                reason = "the Kalman matrix grew too large to decide its rank exactly"
-            else:
-                ctrl_rank, certain = exact_rank(K.T.tolist(), decide)
-                if not certain:
-                    reason = "some entries of the Kalman matrix could not be decided zero or not: its rank is a lower bound"
-                if ctrl_rank < n:
-                    unctrl = _numeric_group(K.T, A, states, decide, left=True)
-        obs_rank: int | None = None
-        unobs: tuple[ModeGroup, ...] = ()
-        if p:
-            O = _kalman(A.T, C.T)
-            if O is None:
-                reason = reason or "the observability matrix grew too large to decide its rank exactly"
-            else:
-                obs_rank, certain = exact_rank(O.T.tolist(), decide)
-                if not certain:
-                    reason = reason or ("some entries of the observability matrix could not be decided zero or not: "
-                                        "its rank is a lower bound")
-                if obs_rank < n:
-                    unobs = _numeric_group(O.T, A, states, decide, left=False)  # O.T: [C; CA; ...]
+    reason = ""
+    ctrl: tuple[int, bool, list[list[float]], tuple[complex, ...]] | None = None
+    obs: tuple[int, bool, list[list[float]], tuple[complex, ...]] | None = None
+    for bits in BALL_BITS:
+        balls = _balls([*A, *B, *C], bits)
+        if balls is None:
+            return Linearisation(name, "undefined", reason="an entry of A, B or C cannot be evaluated at the point")
+        Ab = [balls[i * n:(i + 1) * n] for i in range(n)]
+        Bb = [balls[n * n + i * m: n * n + (i + 1) * m] for i in range(n)]
+        Cb = [balls[n * n + n * m + i * n: n * n + n * m + (i + 1) * n] for i in range(p)]
+        old = flint.ctx.prec
+        flint.ctx.prec = bits
+        try:
+            if m:
+                K = _ball_krylov(Ab, Bb, n)  # n x nm
+                ctrl = _ball_subspace([list(col) for col in zip(*K)], Ab, left=True)  # w K = 0
+            if p:
+                O = _ball_krylov([list(col) for col in zip(*Ab)], [list(col) for col in zip(*Cb)], n)  # O^T
+                obs = _ball_subspace([list(col) for col in zip(*O)], Ab, left=False)  # O v = 0
+        finally:
+            flint.ctx.prec = old
+        if (ctrl is None or ctrl[1]) and (obs is None or obs[1]):
+            break
+    old = flint.ctx.prec
+    flint.ctx.prec = bits
+    try:
+        poles = _ball_eigenvalues(Ab)
         zeros: tuple[complex, ...] | None = None
         note, tol = "", None
         if p == m and m:
-            coeffs = _pencil_coefficients(An, _mp(B), _mp(C))
             tol = COEFFICIENT_TOLERANCE
-            top = max((abs(c) for c in coeffs), default=mpmath.mpf(0))
-            kept = list(coeffs)
-            while kept and abs(kept[-1]) <= tol * top:
-                kept.pop()
-            if not kept:
-                note = ("det [[sI - A, -B], [C, 0]] vanishes for every s (numerically, relative coefficient "
-                        f"tolerance {tol:g}): no finite set of zeros")
+            coeffs = _ball_pencil_coefficients(Ab, Bb, Cb, tol)
+            if not coeffs:
+                note = ("det [[sI - A, -B], [C, 0]] vanishes for every s (to the working precision, relative "
+                        f"coefficient tolerance {tol:g}): no finite set of zeros")
             else:
-                zeros = tuple(sorted(_polyroots(kept), key=lambda z: (z.real, z.imag)))
+                zeros = tuple(sorted(_ball_roots(coeffs), key=lambda z: (z.real, z.imag)))
         elif p != m:
             note = f"not square ({p} output(s), {m} input(s)): transmission zeros are computed for square plants"
+    finally:
+        flint.ctx.prec = old
+    undecided = [what for what, r in (("controllability", ctrl), ("observability", obs)) if r is not None and not r[1]]
+    if undecided:
+        reason = (f"the {' and '.join(undecided)} rank{'s are' if len(undecided) > 1 else ' is'} a proven lower bound: "
+                  f"the rest of the elimination vanishes to about {int(BALL_BITS[-1] * 0.30103)} digits but is not "
+                  "proven zero")
     return Linearisation(name, "computed", reason=reason, exact=False,
                          poles=tuple(sorted(poles, key=lambda z: (z.real, z.imag))),
-                         controllability_rank=ctrl_rank, uncontrollable=unctrl, observability_rank=obs_rank,
-                         unobservable=unobs, zeros=zeros, zeros_note=note, tolerance=tol)
+                         controllability_rank=ctrl[0] if ctrl else None,
+                         uncontrollable=_ball_groups(ctrl, states),
+                         observability_rank=obs[0] if obs else None,
+                         unobservable=_ball_groups(obs, states), zeros=zeros, zeros_note=note, tolerance=tol)
 
 
-def _mp(M: sp.Matrix) -> mpmath.matrix:
-    out = mpmath.matrix(M.rows, M.cols)
-    for i in range(M.rows):
-        for j in range(M.cols):
-            e = M[i, j]
-            out[i, j] = mpmath.mpf(int(e.p)) / int(e.q) if e.is_Rational else mpmath.mpf(
-                sp.N(e, mpmath.mp.dps + 10))
+def _balls(entries: Sequence[sp.Expr], bits: int) -> list[arb] | None:
+    """Rigorous balls for exact constants; exact zeros stay exact."""
+    try:
+        program = Program(list(entries), [])
+    except UnsupportedExpression:
+        return None
+    out = program.run([], prec=bits)
+    if not all(b.is_finite() for b in out):
+        return None
     return out
 
 
-def _eig(M: mpmath.matrix) -> list[complex]:
-    if M.rows == 1:  # mpmath.eig returns a tuple for 1 x 1 whatever the flags
-        return [complex(M[0, 0])]
-    return [_clean(complex(z)) for z in mpmath.eig(M, left=False, right=False)]
+def _ball_krylov(A: list[list[arb]], B: list[list[arb]], count: int) -> list[list[arb]]:
+    """[B, AB, ..., A^(count-1) B] as rows of balls; exact zeros are skipped so that
+    structural zeros stay exact."""
+    n = len(A)
+    block = [list(row) for row in B]
+    columns = [list(col) for col in zip(*block)]
+    for _ in range(count - 1):
+        nxt = []
+        for i in range(n):
+            row = []
+            for j in range(len(block[0])):
+                acc = arb(0)
+                for k in range(n):
+                    a, b = A[i][k], block[k][j]
+                    if not (a.is_zero() or b.is_zero()):
+                        acc += a * b
+                row.append(acc)
+            nxt.append(row)
+        block = nxt
+        columns.extend(list(col) for col in zip(*block))
+    return [list(row) for row in zip(*columns)]
 
 
-def _clean(z: complex) -> complex:
-    """Drop a rounding-level imaginary part of a real eigenvalue (display only)."""
-    return complex(z.real, 0.0) if abs(z.imag) <= 1e-30 * (1 + abs(z)) else z
+def _ball_subspace(rows: list[list[arb]], A: list[list[arb]], left: bool
+                   ) -> tuple[int, bool, list[list[float]], tuple[complex, ...]]:
+    """Rank of ``rows`` (proven lower bound; ``certain`` when the remainder is exactly
+    zero), a basis of its null space (floats, for display) and the eigenvalues of A
+    restricted to that subspace (``left``: the null vectors are left vectors w, w A = M w)."""
+    n = len(rows[0])
+    work = [list(r) for r in rows]
+    pivots: list[int] = []
+    top = 0
+    for col in range(n):
+        best, size = -1, -1.0
+        for i in range(top, len(work)):
+            e = work[i][col]
+            if not e.contains(0):
+                lower = float(e.abs_lower())
+                if lower > size:
+                    best, size = i, lower
+        if best < 0:
+            continue
+        work[top], work[best] = work[best], work[top]
+        pivot = work[top][col]
+        work[top] = [e / pivot if not e.is_zero() else e for e in work[top]]
+        work[top][col] = arb(1)
+        for i in range(len(work)):
+            factor = work[i][col]
+            if i == top or factor.is_zero():
+                continue
+            work[i] = [a - factor * b if not b.is_zero() else a for a, b in zip(work[i], work[top])]
+            work[i][col] = arb(0)
+        pivots.append(col)
+        top += 1
+        if top == len(work):
+            break
+    certain = all(e.is_zero() for row in work[top:] for e in row)
+    free = [c for c in range(n) if c not in pivots]
+    vectors = []
+    for fc in free:
+        v = [0.0] * n
+        v[fc] = 1.0
+        for i, pc in enumerate(pivots):
+            v[pc] = -float(work[i][fc].mid())
+        vectors.append(v)
+    modes: tuple[complex, ...] = ()
+    if vectors:
+        with mpmath.workdps(30):
+            V = mpmath.matrix(vectors)
+            Am = mpmath.matrix([[float(a.mid()) for a in row] for row in A])
+            image = V * Am if left else V * Am.T  # left: W A = M W; right: V A^T = M^T V
+            restricted = image * V.T * mpmath.inverse(V * V.T)
+            modes = tuple(sorted(_eig(restricted, noise=1e-10), key=lambda z: (z.real, z.imag)))  # from doubles
+    return top, certain, vectors, modes
 
 
-def _kalman(A: sp.Matrix, B: sp.Matrix) -> sp.Matrix | None:
-    """[B, AB, ..., A^(n-1) B] with exact constant entries, or None beyond the size limit."""
-    blocks = [B]
-    for _ in range(A.rows - 1):
-        nxt = (A * blocks[-1]).applyfunc(_tidy)
-        if any(sp.count_ops(e) > _SIZE_LIMIT for e in nxt):
-            return None
-        blocks.append(nxt)
-    return sp.Matrix.hstack(*blocks)
-
-
-def _numeric_group(M: sp.Matrix, A: sp.Matrix, states: Sequence[sp.Symbol], decide: Decide,
-                   left: bool) -> tuple[ModeGroup, ...]:
-    """The null space of ``M`` (K^T for the uncontrollable quantities w, w K = 0; the
-    observability matrix for the unobservable directions) as one group, with the
-    eigenvalues of A restricted to it (numerically)."""
-
-    def is_zero(e: sp.Expr) -> bool:
-        return decide(e) is not False
-
-    vectors = [list(v) for v in M.nullspace(simplify=False, iszerofunc=is_zero)]
-    if not vectors:
+def _ball_groups(result: tuple[int, bool, list[list[float]], tuple[complex, ...]] | None,
+                 states: Sequence[sp.Symbol]) -> tuple[ModeGroup, ...]:
+    if result is None or not result[2]:
         return ()
-    V = _mp(sp.Matrix([v for v in vectors]).applyfunc(_tidy))  # d x n, rows span the subspace
-    An = _mp(A)
-    image = V * An if left else V * An.T  # left: W A = M W; right: V A^T = M^T V
-    d = V.rows
-    # least-squares restriction: M = image V^T (V V^T)^(-1)
-    restricted = image * V.T * mpmath.inverse(V * V.T)
-    modes = _eig(restricted) if d else []
-    return (ModeGroup(tuple(sorted(modes, key=lambda z: (z.real, z.imag))), None,
-                      tuple(_scaled_terms(v, states, decide) for v in vectors)),)
+    return (ModeGroup(result[3], None, tuple(_float_terms(v, states) for v in result[2])),)
 
 
-def _scaled_terms(v: list[sp.Expr], states: Sequence[sp.Symbol], decide: Decide) -> str:
-    lead = next((e for e in v if e != 0 and decide(e) is False), None)
-    if lead is None:
-        return "0"
-    scaled = [sp.Integer(0) if decide(e) is not False else _tidy(e / lead) for e in v]
-    shown = [sp.Float(sp.N(e, 15), 6) if not e.is_Rational else e for e in scaled]
-    return _terms(list(zip(shown, states)))
+def _float_terms(v: list[float], states: Sequence[sp.Symbol]) -> str:
+    """A numeric direction, scaled so that its first entry is 1 (display only)."""
+    lead = next((x for x in v if abs(x) > 1e-12 * max(abs(y) for y in v)), 1.0)
+    scaled = [x / lead for x in v]
+    top = max(abs(x) for x in scaled)
+
+    def shown(x: float) -> sp.Expr:
+        if abs(x) <= 1e-12 * top:
+            return sp.Integer(0)
+        if abs(x - round(x)) <= 1e-9 * max(1.0, abs(x)):
+            return sp.Integer(round(x))
+        return sp.Float(x, 6)
+
+    return _terms([(shown(x), s) for x, s in zip(scaled, states)])
 
 
-def _pencil_coefficients(A: mpmath.matrix, B: mpmath.matrix, C: mpmath.matrix) -> list[mpmath.mpf]:
-    """Coefficients (constant first) of det [[sI - A, -B], [C, 0]], from its values at the
-    (n + 1)-th roots of unity (an exact inverse transform for a degree <= n polynomial)."""
-    n, m = A.rows, B.cols
+def _ball_eigenvalues(A: list[list[arb]]) -> list[complex]:
+    """Eigenvalues of a ball matrix: flint's rigorous solver (clusters allowed), else the
+    roots of the (rigorous) characteristic polynomial found numerically."""
+    n = len(A)
+    if not n:
+        return []
+    found = acb_mat(n, n, [e for row in A for e in row]).eig(multiple=True, nonstop=True)
+    if all(z.is_finite() for z in found):
+        return [_mid(z) for z in found]
+    chi = arb_mat(n, n, [e for row in A for e in row]).charpoly()
+    return _ball_roots([acb(c) for c in chi.coeffs()])
+
+
+def _mid(z: acb) -> complex:
+    re = 0.0 if z.real.contains(0) else float(z.real.mid())  # zero to the working precision
+    im = 0.0 if z.imag.contains(0) and z.imag.rad() < 1e-20 * (1 + abs(re)) else float(z.imag.mid())
+    return complex(re, im)
+
+
+def _ball_pencil_coefficients(A: list[list[arb]], B: list[list[arb]], C: list[list[arb]], tol: float) -> list[acb]:
+    """Coefficients (constant first) of det [[sI - A, -B], [C, 0]] from its values at the
+    (n + 1)-th roots of unity (the inverse transform is exact for degree <= n); leading
+    coefficients that are zero to the precision (ball contains 0, or below ``tol`` times
+    the largest) are dropped."""
+    n, m = len(A), len(B[0])
     k = n + 1
+    roots = [acb(arb(2 * t) / k).exp_pi_i() for t in range(k)]
     values = []
-    for t in range(k):
-        s = mpmath.expjpi(mpmath.mpf(2 * t) / k)
-        M = mpmath.matrix(n + m, n + m)
+    for s in roots:
+        M = acb_mat(n + m, n + m)
         for i in range(n):
             for j in range(n):
-                M[i, j] = (s if i == j else 0) - A[i, j]
+                M[i, j] = (s if i == j else 0) - A[i][j]
             for j in range(m):
-                M[i, n + j] = -B[i, j]
+                M[i, n + j] = -B[i][j]
         for i in range(m):
             for j in range(n):
-                M[n + i, j] = C[i, j]
-        values.append(mpmath.det(M))
+                M[n + i, j] = C[i][j]
+        values.append(M.det())
     coeffs = []
     for q in range(k):
-        total = mpmath.mpc(0)
+        total = acb(0)
         for t in range(k):
-            total += values[t] * mpmath.expjpi(-mpmath.mpf(2 * t * q) / k)
-        coeffs.append((total / k).real)  # real data: the imaginary parts are rounding
+            total += values[t] * roots[(-t * q) % k]
+        coeffs.append(acb((total / k).real))  # real data: the imaginary part is rounding
+    top = max((float(abs(c).mid()) for c in coeffs), default=0.0)
+    while coeffs and (coeffs[-1].contains(0) or float(abs(coeffs[-1]).mid()) <= tol * top):
+        coeffs.pop()
     return coeffs
+
+
+def _ball_roots(coeffs: list[acb]) -> list[complex]:
+    """Roots of a ball polynomial (constant first): isolated rigorously when squarefree,
+    else found by mpmath from the midpoints (multiple roots)."""
+    if len(coeffs) <= 1:
+        return []
+    try:
+        return [_mid(z) for z in acb_poly(coeffs).roots()]
+    except ValueError:
+        with mpmath.workdps(DIGITS):
+            mids = [mpmath.mpf(c.real.mid().str(DIGITS + 10, radius=False)) for c in coeffs]
+            return _polyroots(mids)
+
+
+def _eig(M: mpmath.matrix, noise: float = 1e-30) -> list[complex]:
+    if M.rows == 1:  # mpmath.eig returns a tuple for 1 x 1 whatever the flags
+        return [complex(M[0, 0])]
+    return [_clean(complex(z), noise) for z in mpmath.eig(M, left=False, right=False)]
+
+
+def _clean(z: complex, noise: float = 1e-30) -> complex:
+    """Drop a rounding-level imaginary part of a real eigenvalue (display only)."""
+    return complex(z.real, 0.0) if abs(z.imag) <= noise * (1 + abs(z)) else z
 
 
 def _polyroots(coeffs: list[mpmath.mpf]) -> list[complex]:

@@ -373,11 +373,11 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
 def _render_linearisation(console: Any, lin: dict[str, Any], states: list[str], inputs: list[str],
                           outputs: list[str]) -> None:
     n = len(states)
-    how = "exact" if lin["exact"] else "exact constants; poles and zeros at 50 digits"
-    console.print(f"  linearisation (nominal parameter values, {how}):")
     if lin["status"] != "computed":
-        console.print(f"    not computed: {lin['reason']}")
+        console.print(f"  linearisation (nominal parameter values): not computed, {lin['reason']}")
         return
+    how = "exact" if lin["exact"] else "irrational entries: rigorous ball arithmetic"
+    console.print(f"  linearisation (nominal parameter values, {how}):")
     console.print(f"    order: x = ({', '.join(states)}), u = ({', '.join(inputs)}), y = ({', '.join(outputs)})")
     for label in ("A", "B", "C"):
         rows = lin[label]

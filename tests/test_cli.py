@@ -349,7 +349,8 @@ def test_colour_on_a_terminal_and_no_color(tmp_path: Path, cache: Path) -> None:
 
 def test_rules_lists_the_whole_catalogue(tmp_path: Path, cli: CLI) -> None:
     ids = sorted(load_catalogue().ids())
-    assert len(ids) == 26
+    in_files = sum(p.read_text(encoding="utf-8").count("\nid = ") for p in (PROJECT / "rules").glob("*.toml"))
+    assert len(ids) == in_files
     as_json = cli(tmp_path, "rules", "--format", "json")
     assert as_json.code == 0 and sorted(r["id"] for r in json.loads(as_json.stdout)) == ids
     text = cli(tmp_path, "rules")
@@ -500,4 +501,4 @@ def test_wheel_installs_and_finds_its_grammar_and_rules(tmp_path: Path) -> None:
     assert check.stdout.strip().endswith("[zero-dynamics-unstable] (point rest)")
     listed = subprocess.run([str(script), "rules", "--format", "json"], cwd=elsewhere, capture_output=True,
                             text=True, timeout=120)
-    assert listed.returncode == 0 and len(json.loads(listed.stdout)) == 26
+    assert listed.returncode == 0 and len(json.loads(listed.stdout)) == len(load_catalogue())

@@ -476,7 +476,7 @@ class _Checker:
         except UnitTextError as exc:
             self._add(RULE_UNKNOWN, f"cannot read the unit of '{st.name}': {exc.message}",
                       _sub_span(span, exc.offset, exc.width) if st.unit else span, f"unit of {st.kind} {st.name}",
-                      exc.hint or "a unit is names joined by *, / and ^ (whole exponents), as in kg*m^2/s^2")
+                      exc.hint or "a unit is names joined by *, / and ^, as in kg*m^2/s^2 or 1/min")
             return None
         names: dict[str, Unit] = {}
         ok = True
@@ -686,9 +686,12 @@ class _Checker:
                     message += (f": the same dimension on different scales (factor {u.factor / ref.factor:.6g}), "
                                 f"so the numbers do not add up" if what == "term" else
                                 f": the same dimension on different scales (factor {u.factor / ref.factor:.6g})")
-                self._add(RULE_MISMATCH, message, _node_span(node), f"{where}: {what} {text}",
-                          "the terms of a sum must have the same unit" if what == "term"
-                          else "these arguments must have the same unit")
+                if u.same_dimension(ref):
+                    hint = "check the units declared for the names in it (a prefix such as mm for m, cm^2 for m^2)"
+                else:
+                    hint = "the terms of a sum must have the same unit" if what == "term" else \
+                        "these arguments must have the same unit"
+                self._add(RULE_MISMATCH, message, _node_span(node), f"{where}: {what} {text}", hint)
         return replace(ref, text=ref.text if all(u.text == ref.text for _, u in main) else None)
 
     def _power(self, node: Any, base: _Result, exponent: _Result, where: str) -> _Result:

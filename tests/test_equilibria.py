@@ -121,8 +121,10 @@ def test_no_solution_names_rates() -> None:
     # hand: x1' = x2 + 1 at x2 = 0 is 1 whatever u
     P = Plant.from_matrices("nos", [x1, x2], [u], [x2 + 1, 0], [[0, 1]], [x1])
     eq = solve_point(P, "p", {x1: 0, x2: 0})
-    assert eq.status == "no_solution" and rules(eq) == ["point-incomplete"]
+    # one rule for a point that misses an equilibrium, inputs given or not
+    assert eq.status == "no_solution" and rules(eq) == ["point-not-equilibrium"]
     assert "no input acts on dx1/dt = 1" in eq.findings[0].message
+    assert "it is an exact equilibrium with x2 = -1 (written 0)" in eq.findings[0].message  # hand: x2 + 1 = 0
     # hand: x1' = u + 1 and x2' = u - 1 need u = -1 and u = 1 at once
     P2 = Plant.from_matrices("nos2", [x1, x2], [u], [1, -1], [[1, 1]], [x1])
     eq2 = solve_point(P2, "p", {x1: 0, x2: 0})
@@ -153,7 +155,7 @@ def test_outside_envelope_decided_exactly() -> None:
     # Hand: a tilted payload cannot rest, v' = 0 needs F = -m_p g sin cos while w' = 0 then
     # needs g sin(th) (m_c + m_p sin^2) = 0, so no force makes it an equilibrium.
     tilted = solve_point(P, "tilt", {x: 0, v: 0, th: sp.pi / 4, w: 0})
-    assert rules(tilted) == ["point-incomplete", "point-outside-envelope"]
+    assert rules(tilted) == ["point-not-equilibrium", "point-outside-envelope"]
     assert "v, w cannot vanish together" in tilted.findings[-1].message
     big = solve_point(P, "big", {x: 0, v: 0, th: 0, w: 0, F: 500})
     assert rules(big) == ["point-not-equilibrium", "point-outside-envelope"]

@@ -5,8 +5,12 @@ a source is named."""
 from __future__ import annotations
 
 import math
+from dataclasses import replace
+from pathlib import Path
 
-from plantlint.run.config import Config
+import pytest
+
+from plantlint.run.config import Config, ConfigError, load_config
 from plantlint.run.pipeline import analyse_bytes, read_model
 
 # One tank of a quadruple-tank rig (demo numbers, invented): the level at the
@@ -59,3 +63,97 @@ def test_missing_state_is_reported_once() -> None:
     text = b"plant cart\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput F\nrate x = v\nrate v = F\n" \
            b"output y = x\npoint home: x = 0\n"
     assert rules(text) == ["point-incomplete"]
+
+
+# Magnetic levitation with the coil current as a state (demo numbers, invented):
+# x' = v, v' = g - k i^2 / (m x^2), i' = (-R i + u) / L.
+MAGLEV = b"""plant maglev
+const grav = 9.81
+param k = 0.0001
+param m = 0.05
+param R = 2
+param L = 0.1
+state x in 0.005 .. 0.02
+state v in -1 .. 1
+state i in 0.1 .. 2
+input u in -20 .. 20
+rate x = v
+rate v = grav - k*i^2/(m*x^2)
+rate i = (-R*i + u)/L
+output y = x
+point hover: x = 0.01, v = 0, i = 0.7004
+"""
+# The force balance m g = k i^2 / x^2 gives i = x sqrt(m g / k) (the magnetic suspension
+# of Khalil, Nonlinear Systems 3rd ed., Exercise 1.18, from memory), here by math.sqrt:
+I_EXACT = 0.01 * math.sqrt(0.05 * 9.81 / 0.0001)
+# dv/dt at i = 0.7004 by hand: 9.81 - 1e-4 * 0.7004^2 / (0.05 * 1e-4) = -0.0012032, and the
+# size of its terms is the larger of 9.81 and 9.8112032
+RELATIVE = 0.0012032 / 9.8112032
+
+
+def _one(raw, rule):  # type: ignore[no-untyped-def]
+    (f,) = [f for f in raw.findings if f.rule == rule]
+    return f
+
+
+def test_rounded_state_is_one_rule_with_relative_residual_and_the_value_to_write() -> None:
+    raw = analyse_bytes(MAGLEV, Config())
+    assert "point-incomplete" not in [f.rule for f in raw.findings]
+    f = _one(raw, "point-not-equilibrium")
+    assert "dv/dt = -0.0012032" in f.message and "1.2e-4 of the size of its terms" in f.message
+    assert f"i = {I_EXACT:.10g} (written 0.7004)" in f.message
+    assert "tolerance 2e-4" in (f.hint or "")
+    refinement = raw.analysis["points"]["hover"]["refinement"]
+    assert math.isclose(refinement["relative_residual"], RELATIVE, rel_tol=1e-9)
+    assert math.isclose(refinement["equilibrium_near"]["changed"]["i"]["value"], I_EXACT, rel_tol=1e-12)
+    # the same mismatch with the input written: the same rule, both values refined
+    written = analyse_bytes(MAGLEV.replace(b"i = 0.7004", b"i = 0.7004, u = 1.4"), Config())
+    g = _one(written, "point-not-equilibrium")
+    assert f"i = {I_EXACT:.10g} (written 0.7004)" in g.message
+    assert f"u = {2 * I_EXACT:.10g} (written 1.4)" in g.message  # u = R i at rest
+
+
+def test_exact_value_is_given_when_one_exists() -> None:
+    text = b"plant cart\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput F\nrate x = v\nrate v = F\n" \
+           b"output y = x\npoint moving: x = 0, v = 0.5, F = 0\n"
+    f = _one(analyse_bytes(text, Config()), "point-not-equilibrium")
+    assert "dx/dt = 0.5" in f.message and "an exact equilibrium with v = 0 (written 0.5)" in f.message
+
+
+def test_tolerance_in_the_file_runs_the_analysis_at_the_refined_equilibrium() -> None:
+    raw = analyse_bytes(MAGLEV.replace(b"i = 0.7004", b"i = 0.7004 tolerance 1e-3"), Config())
+    assert "point-not-equilibrium" not in [f.rule for f in raw.findings]
+    note = _one(raw, "point-refined")
+    assert "within its tolerance 0.001 (written on the point)" in note.message
+    assert f"refined equilibrium i = {I_EXACT:.10g} (written 0.7004)" in note.message
+    point = raw.analysis["points"]["hover"]
+    assert point["equilibrium"] is True and point["refinement"]["refined"] is True
+    assert math.isclose(point["values"]["i"], I_EXACT, rel_tol=1e-12)
+    assert math.isclose(point["values"]["u"], 2 * I_EXACT, rel_tol=1e-12)
+    # the linearisation at the refined point: poles +-sqrt(2 g / x) and -R/L by hand
+    poles = sorted(p[0] for p in point["linearisation"]["poles"])
+    expected = sorted([-math.sqrt(2 * 9.81 / 0.01), math.sqrt(2 * 9.81 / 0.01), -20.0])
+    assert all(math.isclose(a, b, rel_tol=1e-9) for a, b in zip(poles, expected))
+    # a tolerance below the residual does not hide the miss
+    tight = analyse_bytes(MAGLEV.replace(b"i = 0.7004", b"i = 0.7004 tolerance 1e-5"), Config())
+    assert "point-not-equilibrium" in [f.rule for f in tight.findings]
+
+
+def test_tolerance_in_the_configuration_and_the_point_taking_precedence() -> None:
+    raw = analyse_bytes(MAGLEV, replace(Config(), point_tolerance=1e-3))
+    assert "point-tolerance in the configuration" in _one(raw, "point-refined").message
+    strict = analyse_bytes(MAGLEV.replace(b"i = 0.7004", b"i = 0.7004 tolerance 0"),
+                           replace(Config(), point_tolerance=1e-3))
+    assert "point-not-equilibrium" in [f.rule for f in strict.findings]
+
+
+def test_tolerance_values_are_validated(tmp_path: Path) -> None:
+    bad = read_model(MAGLEV.replace(b"i = 0.7004", b"i = 0.7004 tolerance 2"))[1]
+    assert [f.rule for f in bad] == ["bad-range"] and "0 <= T < 1" in bad[0].message
+    config = tmp_path / "plantlint.toml"
+    config.write_text("point-tolerance = 1e-4\n", encoding="utf-8")
+    assert load_config(tmp_path).point_tolerance == 1e-4
+    for wrong in ("-1", "1.5", '"small"', "true"):
+        config.write_text(f"point-tolerance = {wrong}\n", encoding="utf-8")
+        with pytest.raises(ConfigError, match="point-tolerance"):
+            load_config(tmp_path)

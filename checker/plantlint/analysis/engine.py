@@ -135,7 +135,9 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
     timer = clock(getattr(config, "envelope_seconds", 5.0), getattr(config, "envelope_boxes", 20000))
     for op in model.points:
         given = {model.symbol(k): v for k, v in op.values.items()}
-        eq = solve_point(plant, op.name, given, kernel)
+        tolerance, source = ((float(op.tolerance), "written on the point") if op.tolerance is not None else
+                             (float(getattr(config, "point_tolerance", 0.0)), "point-tolerance in the configuration"))
+        eq = solve_point(plant, op.name, given, kernel, tolerance, source)
         pa = PointAnalysis(op.name, eq)
         result.findings.extend(eq.findings)
         if all(s in eq.values for s in plant.states):

@@ -22,7 +22,8 @@ from plantlint.language.printer import show_number
 from plantlint.kernel.plant import Plant, as_expr
 
 #: Outcomes of :func:`solve_point`.
-STATUSES = ("equilibrium", "not_equilibrium", "undetermined", "no_solution", "missing_states", "undefined")
+STATUSES = ("equilibrium", "not_equilibrium", "undetermined", "no_solution", "missing_states", "undefined",
+            "refined")
 
 @dataclass(frozen=True)
 class Equilibrium:
@@ -40,12 +41,23 @@ class Equilibrium:
     undetermined_inputs: tuple[sp.Symbol, ...] = ()
     residual: tuple[sp.Expr, ...] = ()
     findings: tuple[Finding, ...] = field(default_factory=tuple)
+    #: a point that misses an equilibrium: its relative residual, the equilibrium near it and
+    #: (status "refined") the tolerance within which the analysis runs there instead
+    refinement: dict[str, object] | None = None
 
 
 # -- exact numbers ---------------------------------------------------------------
 # -- the point -------------------------------------------------------------------
-def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel: Kernel | None = None) -> Equilibrium:
-    """Check the declared point ``name`` and solve for the inputs it leaves out."""
+def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel: Kernel | None = None,
+                tolerance: float = 0.0, tolerance_source: str = "") -> Equilibrium:
+    """Check the declared point ``name`` and solve for the inputs it leaves out.
+
+    A point that misses an equilibrium is one finding, ``point-not-equilibrium``, whether
+    its inputs are given or left out, with its residual relative to the size of the
+    rates' terms and the equilibrium near it. Within ``tolerance`` (a relative residual)
+    the point counts as a rounded equilibrium: the analysis runs at the refined one
+    (status ``refined``) and a ``point-refined`` note says so.
+    """
     kernel = kernel or Kernel(plant)
     given = {s: as_expr(v) for s, v in given.items()}
     decide = number_decider(kernel)
@@ -83,7 +95,8 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
     c = [f0[i] + sum((G0[i][j] * values[plant.inputs[j]] for j in known), sp.Integer(0)) for i in range(plant.n)]
 
     if not unknown:
-        return _check_residual(plant, name, values, c, decide, findings)
+        return _rounded(plant, name, given, _check_residual(plant, name, values, c, decide, findings), kernel,
+                        tolerance, tolerance_source)
 
     n, k = plant.n, len(unknown)
     # augmented rows [G_unknown | -c | e_i]: the identity part records which rates
@@ -99,7 +112,8 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
         if decide(rhs) is False:
             conflicts.append([a for a in range(n) if row[k + 1 + a] != 0])
     if conflicts:
-        return _no_solution(plant, name, values, unknown, G0, c, conflicts, decide, findings)
+        return _rounded(plant, name, given, _no_solution(plant, name, values, unknown, G0, c, conflicts, decide,
+                                                         findings), kernel, tolerance, tolerance_source)
 
     free = [col for col in range(k) if col not in pivots]
     solved: dict[sp.Symbol, sp.Expr] = {}
@@ -249,6 +263,108 @@ def _names(symbols: Sequence[sp.Symbol]) -> str:
     return ", ".join(str(s) for s in symbols)
 
 
+def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equilibrium, kernel: Kernel,
+             tolerance: float, source: str) -> Equilibrium:
+    """One rule for a point that misses an equilibrium: the residual relative to the model's
+    scale, the value to write instead (exact when a short exact value is an equilibrium,
+    else refined), and within ``tolerance`` the analysis at the refined equilibrium."""
+    from dataclasses import replace
+
+    from plantlint.analysis.refine import near_miss
+
+    missed = [f for f in eq.findings if f.rule in ("point-not-equilibrium", "point-incomplete")]
+    if eq.equilibrium or not missed:
+        return eq
+    others = tuple(f for f in eq.findings if f not in missed)
+    written = {s: v for s, v in given.items() if s in plant.states or s in plant.inputs}
+    unknown = [u for u in plant.inputs if u not in given]
+    try:
+        miss = near_miss(plant, written, unknown)
+    except (ArithmeticError, ValueError, TypeError):  # a refinement is advice: the finding stands without it
+        miss = None
+    values: dict[sp.Symbol, sp.Expr] | None = None
+    exact = False
+    if miss is not None and miss.candidates:
+        trial = dict(given)
+        trial.update(dict(miss.candidates))
+        again = solve_point(plant, name, trial, kernel)
+        if again.equilibrium:
+            values, exact = dict(again.values), True
+    if values is None and miss is not None and miss.values is not None:
+        values = miss.values
+    changed = [(z, w) for z, w, _ in miss.changed] if miss is not None else []
+    moved = ", ".join(f"{z} = {_shown(values[z], exact)} (written {show_number(w)})" for z, w in changed) \
+        if values is not None else ""
+    solved = ", ".join(f"{u} = {_shown(values[u], exact)}" for u in unknown) if values is not None else ""
+    refinement: dict[str, object] = {
+        "relative_residual": miss.relative if miss is not None else None,
+        "tolerance": tolerance,
+        "equilibrium_near": None if values is None else {
+            "changed": {str(z): {"written": _float(w), "value": _float(values[z])} for z, w in changed},
+            "exact": exact,
+        },
+    }
+    if miss is not None and values is not None and tolerance > 0 and miss.relative <= tolerance:
+        where = f" ({source})" if source else ""
+        note = Finding(
+            "point-refined", Severity.NOTE,
+            f"point {name} is an equilibrium within its tolerance {tolerance:g}{where}: its rates are "
+            f"{_ratio(miss.relative)} of the size of their terms; the analysis runs at the "
+            f"{'exact' if exact else 'refined'} equilibrium {moved}" + (f", {solved}" if solved and moved else solved),
+            point=name, anchor=f"point {name}",
+            hint=f"write {moved.split(' (written')[0]} to make the point exact" if moved else None,
+        )
+        return Equilibrium(name, True, "refined", values, tuple(unknown), (), eq.residual, (*others, note),
+                           refinement={**refinement, "refined": True})
+    base = missed[0].message
+    size = f" (the largest rate is {_ratio(miss.relative)} of the size of its terms)" if miss is not None else ""
+    message = base + size
+    hint = None
+    if values is not None and moved:
+        message += f"; it is {'an exact' if exact else 'an'} equilibrium with {moved}"
+        hint = f"write {moved.split(' (written')[0]}"
+        if miss is not None and miss.relative < 0.1:
+            hint += (f", or accept the rounding: `tolerance {_above(miss.relative)}` at the end of the point "
+                     f"(or point-tolerance in plantlint.toml)")
+    elif miss is not None and miss.values is None:
+        message += "; no equilibrium was found near it by changing the values written"
+    finding = Finding("point-not-equilibrium", Severity.ERROR, message, point=name, anchor=f"point {name}",
+                      hint=hint)
+    return replace(eq, findings=(*others, finding), refinement={**refinement, "refined": False})
+
+
+def _shown(value: sp.Expr, exact: bool) -> str:
+    if exact or value.is_Integer:
+        return show_number(value)
+    return format(float(value), ".10g")
+
+
+def _ratio(value: float) -> str:
+    """1.2e-4 rather than 0.00012; plain decimals from 0.01 up."""
+    if value == 0 or value >= 0.01:
+        return f"{value:.2g}"
+    mantissa, exponent = f"{value:.1e}".split("e")
+    return f"{mantissa}e{int(exponent)}"
+
+
+def _float(value: sp.Expr) -> float | None:
+    try:
+        return float(value)
+    except (TypeError, ValueError):
+        return None
+
+
+def _above(relative: float) -> str:
+    """A round tolerance just above a relative residual (1.2e-4 -> 2e-4)."""
+    import math
+
+    exponent = math.floor(math.log10(relative)) if relative > 0 else -12
+    digit = math.floor(relative / 10**exponent) + 1
+    if digit >= 10:
+        digit, exponent = 1, exponent + 1
+    return f"{digit}e{exponent}"
+
+
 def equilibrium_json(eq: Equilibrium) -> dict[str, object]:
     """The analysis record for one point (floats for display; exact values stay in Python)."""
     out: dict[str, float] = {}
@@ -257,4 +373,7 @@ def equilibrium_json(eq: Equilibrium) -> dict[str, object]:
             out[str(sym)] = float(value) if value.is_Rational else float(value.evalf(20))
         except (TypeError, ValueError):
             continue
-    return {"equilibrium": eq.equilibrium, "values": out}
+    record: dict[str, object] = {"equilibrium": eq.equilibrium, "values": out}
+    if eq.refinement is not None:
+        record["refinement"] = eq.refinement
+    return record

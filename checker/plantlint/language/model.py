@@ -48,6 +48,10 @@ class OperatingPoint:
     value_spans: Mapping[str, Span]
     # values as written, ranged parameters kept symbolic (only those that use one)
     parametric: Mapping[str, sp.Expr] = field(default_factory=lambda: MappingProxyType({}))
+    #: `tolerance T` written at the end of the point: relative residual within which it counts
+    #: as a rounded equilibrium (None: the configured `point-tolerance` applies)
+    tolerance: sp.Expr | None = None
+    tolerance_span: Span | None = None
 
 
 @dataclass(frozen=True)
@@ -284,6 +288,7 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
     input_affine = _check_affine(scope, rates, rate_stmts, states, inputs, ranged)
 
     points = _points(scope, by_kind.get("point", []), states, inputs, spans)
+    points = _with_tolerances(scope, points, by_kind.get("point", []))
     claims, waivers = _claims_and_waivers(scope, by_kind, outputs, points, spans)
     _unused(scope, statements, inputs)
 
@@ -522,6 +527,28 @@ def _parametric_values(scope: _Scope, st: Statement, values: dict[str, sp.Expr])
             if kept.free_symbols and not kept.has(sp.zoo, sp.nan):
                 out[target.name] = kept
     return MappingProxyType(out)
+
+
+def _with_tolerances(scope: _Scope, points: list[OperatingPoint], stmts: list[Statement]) -> list[OperatingPoint]:
+    """Each point's `tolerance T`: a constant with 0 <= T < 1 (a relative residual)."""
+    from dataclasses import replace
+
+    written = {st.name: st.tolerance for st in stmts if st.tolerance is not None}
+    out = []
+    for p in points:
+        expr = written.get(p.name)
+        if expr is None:
+            out.append(p)
+            continue
+        value = _point_value(scope, p.name, "tolerance", expr)
+        if value is not None and not (value.is_number and value.is_finite and _compare(value) >= 0
+                                      and _compare(1 - value) > 0):
+            scope.add("bad-range", f"tolerance of point '{p.name}' is {_show(value)}; it must be a number with "
+                      "0 <= T < 1 (a residual relative to the size of the rates' terms)", expr.span,
+                      f"point {p.name} tolerance", point=p.name)
+            value = None
+        out.append(replace(p, tolerance=value, tolerance_span=expr.span) if value is not None else p)
+    return out
 
 
 def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp.Expr | None:

@@ -123,6 +123,7 @@ class Statement:
     claim: Claim | None = None
     at_point: NameRef | None = None
     rule_id: NameRef | None = None
+    tolerance: Expression | None = None  # point: `tolerance EXPR` at its end
 
 
 @dataclass
@@ -504,11 +505,15 @@ class _Builder:
 
     def _point(self, node: Tree, span: Span) -> Statement:
         name, *assignments = node.children
+        tolerance = None
+        if assignments and (assignments[-1] is None or assignments[-1].data == "tolerance"):
+            clause = assignments.pop()
+            tolerance = self.expression(clause.children[0]) if clause is not None else None
         pairs = []
         for a in assignments:
             target, expr = a.children
             pairs.append((NameRef(str(target), _span(target)), self.expression(expr)))
-        return Statement("point", span, *self._name(name), assignments=tuple(pairs))
+        return Statement("point", span, *self._name(name), assignments=tuple(pairs), tolerance=tolerance)
 
     def _expect(self, node: Tree, span: Span) -> Statement:
         claim_node, at = node.children

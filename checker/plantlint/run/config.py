@@ -46,6 +46,9 @@ class Config:
     timeout: float = 120.0  # seconds per model
     envelope_seconds: float = 5.0
     envelope_boxes: int = 20000
+    #: relative residual within which a declared point counts as a rounded equilibrium
+    #: (0: only exact equilibria); a point's own `tolerance T` takes precedence
+    point_tolerance: float = 0.0
     cache_dir: str = ".plantlint/cache"  # under the project folder .plantlint/
     cache: bool = True
     root: Path = field(default_factory=Path.cwd)  # folder of the config file (or cwd)
@@ -65,12 +68,12 @@ class Config:
 
     def analysis_key(self) -> str:
         """The settings that change analysis results (part of the cache key)."""
-        return f"env={self.envelope_seconds}/{self.envelope_boxes}"
+        return f"env={self.envelope_seconds}/{self.envelope_boxes} tol={self.point_tolerance!r}"
 
 
 _KEYS = {
     "include", "exclude", "fail-on", "only", "skip", "severity", "jobs", "timeout",
-    "envelope-seconds", "envelope-boxes", "cache-dir", "cache",
+    "envelope-seconds", "envelope-boxes", "cache-dir", "cache", "point-tolerance",
 }
 
 
@@ -150,6 +153,8 @@ def from_table(table: Mapping[str, Any], path: Path, known_rules: frozenset[str]
         changes["envelope_seconds"] = _positive(table["envelope-seconds"], "envelope-seconds", where)
     if "envelope-boxes" in table:
         changes["envelope_boxes"] = _int(table["envelope-boxes"], "envelope-boxes", where, low=1)
+    if "point-tolerance" in table:
+        changes["point_tolerance"] = _tolerance(table["point-tolerance"], where)
     if "cache-dir" in table:
         value = table["cache-dir"]
         if not isinstance(value, str) or not value.strip():
@@ -258,6 +263,15 @@ def _int(value: Any, key: str, where: str, low: int) -> int:
 def _positive(value: Any, key: str, where: str) -> float:
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
         raise ConfigError(f"{where}: '{key}' must be a positive, finite number of seconds")
+    return float(value)
+
+
+def _tolerance(value: Any, where: str) -> float:
+    """``point-tolerance``: a relative residual, 0 <= T < 1."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) \
+            or not 0 <= value < 1:
+        raise ConfigError(f"{where}: 'point-tolerance' must be a number with 0 <= T < 1 (a residual relative "
+                          f"to the size of the rates' terms, e.g. 1e-6), not {value!r}")
     return float(value)
 
 

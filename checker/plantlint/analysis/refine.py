@@ -1,0 +1,243 @@
+"""A declared point that misses an equilibrium: by how much, and where the equilibrium is.
+
+Engineers write operating points with rounded numbers (``i = 0.7004`` where the
+equilibrium needs 0.700357...). This module measures the miss relative to the
+model's own scale and finds the equilibrium nearby:
+
+* **relative residual**: each rate F_i(x0, u0) divided by the size of its terms
+  at the point (the largest |term| of f_i and of each g_ij u_j), the inputs left
+  out of the point at their least-squares values; the largest ratio counts. It is
+  dimensionless: 1e-4 means the rate is ten thousand times smaller than the
+  forces that make it up, the mark of a rounded value.
+* **refined point**: Newton's method (least squares, 200-bit balls through
+  :class:`~plantlint.kernel.balls.Program`, never a float comparison for a
+  decision) with one written value free at a time, plus the inputs left out; the
+  value that needs the smallest relative change wins. When no single value will
+  do, every written value moves by the smallest scaled step (minimum norm).
+
+Nothing here decides that a point *is* an equilibrium: the caller checks exact
+candidates exactly and reports refined ones as what they are.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Sequence
+
+import flint
+import mpmath
+import sympy as sp
+from flint import arb
+
+from plantlint.kernel.balls import Program, UnsupportedExpression
+from plantlint.kernel.plant import Plant
+
+PREC = 200  # bits for every evaluation (about 60 digits)
+DIGITS = 50  # mpmath working digits
+CONVERGED = mpmath.mpf("1e-40")  # relative residual taken as converged (far below any rounding)
+MAX_STEPS = 40
+FAR = 1.0  # a refined value may differ from the written one by at most its own size (or range)
+
+
+@dataclass(frozen=True)
+class NearMiss:
+    """How far a declared point is from an equilibrium, and the equilibrium near it."""
+
+    relative: float  # largest |rate| / size of its terms (inputs left out at their best values)
+    rates: tuple[tuple[sp.Symbol, float, float], ...]  # (state, rate, size of its terms), rates not zero
+    changed: tuple[tuple[sp.Symbol, sp.Expr, sp.Expr], ...]  # (name, written, refined) written values moved
+    values: dict[sp.Symbol, sp.Expr] | None  # the refined point (states and every input); None: not found
+    candidates: tuple[tuple[sp.Symbol, sp.Expr], ...] = ()  # short exact values worth an exact check
+
+    @property
+    def found(self) -> bool:
+        return self.values is not None
+
+
+class _System:
+    """F(x, u) = f + g u at the nominal parameters, its terms and its Jacobian, as one program."""
+
+    def __init__(self, plant: Plant):
+        self.plant = plant
+        self.symbols = (*plant.states, *plant.inputs)
+        n = plant.n
+        rates = []
+        terms: list[list[sp.Expr]] = []
+        for i in range(n):
+            f_i = plant.nominal(plant.f[i])
+            parts = [t for t in sp.Add.make_args(f_i) if t != 0]
+            rate = f_i
+            for j, u in enumerate(plant.inputs):
+                g_ij = plant.nominal(plant.g[j][i])
+                if g_ij != 0:
+                    parts.append(g_ij * u)
+                    rate = rate + g_ij * u
+            rates.append(rate)
+            terms.append(parts)
+        self.n = n
+        self.sizes = [len(t) for t in terms]
+        jac = [sp.diff(r, v) for r in rates for v in self.symbols]
+        flat = rates + [t for ts in terms for t in ts] + jac
+        self.program = Program(flat, self.symbols)
+
+    def run(self, point: dict[sp.Symbol, mpmath.mpf]) -> tuple[list, list, list[list]] | None:
+        """(rates, size of each rate's terms, Jacobian rows) at a point, or None when undefined."""
+        old = flint.ctx.prec
+        flint.ctx.prec = PREC  # the decimal inputs are read at full precision too
+        try:
+            inputs = [arb(mpmath.nstr(point[s], DIGITS + 10, min_fixed=-mpmath.inf, max_fixed=mpmath.inf))
+                      for s in self.symbols]
+            values = self.program.run(inputs, PREC)
+        except (UnsupportedExpression, ValueError, ZeroDivisionError):
+            return None
+        finally:
+            flint.ctx.prec = old
+        if not all(b.is_finite() for b in values):
+            return None
+        mids = [mpmath.mpf(b.mid().str(DIGITS + 5, radius=False)) for b in values]
+        n, k = self.n, len(self.symbols)
+        rates = mids[:n]
+        at = n
+        sizes = []
+        for count in self.sizes:
+            sizes.append(max((abs(v) for v in mids[at:at + count]), default=mpmath.mpf(0)))
+            at += count
+        jac = [mids[at + i * k: at + (i + 1) * k] for i in range(n)]
+        return rates, sizes, jac
+
+
+def _relative(rates: Sequence, sizes: Sequence) -> mpmath.mpf:
+    worst = mpmath.mpf(0)
+    for r, s in zip(rates, sizes):
+        if r != 0:
+            worst = max(worst, abs(r) / s if s != 0 else mpmath.inf)
+    return worst
+
+
+def _least_squares(A: list[list], b: list) -> list | None:
+    """The minimum-norm x minimising |A x - b| (pseudo-inverse by the SVD: any shape or rank)."""
+    rows, cols = len(A), len(A[0]) if A else 0
+    if cols == 0 or rows == 0:
+        return [mpmath.mpf(0)] * cols
+    try:
+        U, S, V = mpmath.svd_r(mpmath.matrix(A))
+    except (ZeroDivisionError, ValueError):
+        return None
+    top = max((abs(S[i]) for i in range(len(S))), default=mpmath.mpf(0))
+    x = [mpmath.mpf(0)] * cols
+    for k in range(len(S)):
+        if top == 0 or abs(S[k]) <= top * mpmath.mpf(10) ** (-DIGITS + 5):
+            continue
+        coefficient = sum(U[i, k] * b[i] for i in range(rows)) / S[k]
+        for j in range(cols):
+            x[j] += coefficient * V[k, j]
+    return x
+
+
+def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.Symbol],
+            scales: dict[sp.Symbol, mpmath.mpf]) -> dict[sp.Symbol, mpmath.mpf] | None:
+    """Gauss-Newton on the ``free`` variables (scaled) until the relative residual vanishes."""
+    point = dict(start)
+    index = {s: i for i, s in enumerate(system.symbols)}
+    for _ in range(MAX_STEPS):
+        out = system.run(point)
+        if out is None:
+            return None
+        rates, sizes, jac = out
+        if _relative(rates, sizes) < CONVERGED:
+            return point
+        A = [[row[index[v]] * scales[v] for v in free] for row in jac]
+        step = _least_squares(A, [-r for r in rates])
+        if step is None:
+            return None
+        for v, d in zip(free, step):
+            point[v] = point[v] + d * scales[v]
+    return None
+
+
+def _scale(plant: Plant, s: sp.Symbol, value: mpmath.mpf) -> mpmath.mpf:
+    if value != 0:
+        return abs(value)
+    box = {**plant.state_box, **plant.input_box}.get(s)
+    if box is not None:
+        lo, hi = (plant.nominal(b) for b in box)
+        width = mpmath.mpf(str(sp.N(hi - lo, DIGITS)))
+        if width > 0:
+            return width
+    return mpmath.mpf(1)
+
+
+def _exact(value: sp.Expr) -> mpmath.mpf:
+    return mpmath.mpf(str(sp.N(value, DIGITS + 10)))
+
+
+def _rational(value: mpmath.mpf) -> sp.Rational:
+    """A refined value as an exact rational of 40 significant digits (no text is parsed as code)."""
+    f = Fraction(mpmath.nstr(value, 40, min_fixed=-mpmath.inf, max_fixed=mpmath.inf))
+    return sp.Rational(f.numerator, f.denominator)
+
+
+def _short(value: mpmath.mpf) -> sp.Rational | None:
+    """A short rational (denominator <= 10^6) within 1e-35 of a refined value, worth an exact check."""
+    f = Fraction(mpmath.nstr(value, 45, min_fixed=-mpmath.inf, max_fixed=mpmath.inf)).limit_denominator(10**6)
+    if abs(mpmath.mpf(f.numerator) / f.denominator - value) <= mpmath.mpf("1e-35") * max(1, abs(value)):
+        return sp.Rational(f.numerator, f.denominator)
+    return None
+
+
+def near_miss(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[sp.Symbol]) -> NearMiss | None:
+    """Measure the miss and look for the equilibrium nearby. ``given`` holds every state and
+    the inputs written in the point; ``unknown`` the inputs left out. None when the rates
+    cannot be evaluated there (a function outside the balls' reach)."""
+    with mpmath.workdps(DIGITS):
+        try:
+            system = _System(plant)
+        except UnsupportedExpression:
+            return None
+        start = {s: _exact(v) for s, v in given.items()}
+        start.update({u: mpmath.mpf(0) for u in unknown})
+        # the inputs left out at their least-squares values (the rates are affine in them)
+        out = system.run(start)
+        if out is None:
+            return None
+        if unknown:
+            index = {s: i for i, s in enumerate(system.symbols)}
+            best = _least_squares([[row[index[u]] for u in unknown] for row in out[2]], [-r for r in out[0]])
+            if best is not None:
+                start.update({u: b for u, b in zip(unknown, best)})
+                out = system.run(start) or out
+        rates, sizes, _ = out
+        relative = _relative(rates, sizes)
+        shown = tuple((s, float(r), float(z)) for s, r, z in zip(plant.states, rates, sizes)
+                      if r != 0 and (z == 0 or abs(r) / z > CONVERGED))
+        written = [s for s in (*plant.states, *plant.inputs) if s in given]
+        scales = {s: _scale(plant, s, start[s]) for s in (*written, *unknown)}
+        # one written value free (with the inputs left out); else one state with every input;
+        # else every written value by the smallest scaled step
+        given_inputs = [u for u in plant.inputs if u in given]
+        stages = ([[z] for z in written], [[z, *given_inputs] for z in plant.states] if given_inputs else [])
+        tried: list[tuple[mpmath.mpf, list[sp.Symbol], dict[sp.Symbol, mpmath.mpf]]] = []
+        for stage in stages:
+            for free in stage:
+                found = _newton(system, start, [*free, *unknown], scales)
+                if found is None:
+                    continue
+                change = max(abs(found[z] - start[z]) / scales[z] for z in free)
+                if change <= FAR:
+                    tried.append((change, free, found))
+            if tried:
+                break
+        if tried:
+            _, free, found = min(tried, key=lambda t: (t[0], [str(s) for s in t[1]]))
+            moved = [z for z in free if abs(found[z] - start[z]) > mpmath.mpf("1e-30") * scales[z]]
+        else:
+            found = _newton(system, start, [*written, *unknown], scales)
+            if found is None or any(abs(found[v] - start[v]) / scales[v] > FAR for v in written):
+                return NearMiss(float(relative), shown, (), None)
+            moved = [v for v in written if abs(found[v] - start[v]) > mpmath.mpf("1e-30") * scales[v]]
+        values = {s: (given[s] if s not in moved else _rational(found[s])) for s in written}
+        values.update({u: _rational(found[u]) for u in unknown})
+        changed = tuple((v, given[v], values[v]) for v in moved)
+        candidates = tuple((v, c) for v in moved if (c := _short(found[v])) is not None)
+        return NearMiss(float(relative), shown, changed, values, candidates)

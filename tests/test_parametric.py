@@ -309,3 +309,36 @@ def test_explain_shows_the_box_verdicts(tmp_path: Path) -> None:
     (op,) = json.loads(data.getvalue())["points"]
     assert op["parameter_box"]["zero_dynamics"]["outcome"] == "proven"
     assert max(_johansson_zeros(0.55, 0.55).real) < 0  # the worst corner, by the closed form
+
+
+ROWS = """
+# invented: two decoupled channels; the gain b of the first may vanish
+plant channels
+param b = 1 in -1 .. 2
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u1
+input u2
+rate x1 = -x1 + b*u1
+rate x2 = -x2 + u2
+output y1 = x1
+output y2 = x2
+point rest: x1 = 0, x2 = 0
+expect relative_degree(y1) = 1 at rest
+expect relative_degree(y2) = 1 at rest
+"""
+
+
+def test_relative_degree_at_a_point_over_the_box_per_output() -> None:
+    analysis, findings = _check(ROWS)
+    box = analysis["points"]["rest"]["parameter_box"]
+    assert box["decoupling"]["outcome"] == "violated"
+    rows = box["relative_degree"]
+    assert rows["y1"]["outcome"] == "violated" and rows["y1"]["witness"] == {"b": 0.0}
+    assert rows["y2"]["outcome"] == "proven"
+    # reference: numpy Markov parameters C_1 A^k B at the witness all vanish (no relative degree)
+    A, B, C1 = -np.eye(2), np.array([[0.0, 0.0], [0.0, 1.0]]), np.array([[1.0, 0.0]])
+    assert all(not np.any(C1 @ np.linalg.matrix_power(A, k) @ B) for k in range(2))
+    failed = [f for f in findings if f.rule == "expectation-failed"]
+    assert len(failed) == 1 and "relative_degree(y1)" in failed[0].message and "b = 0" in failed[0].message
+    assert {"decoupling-singular", "relative-degree-ill-defined"} <= set(_rules(findings))

@@ -333,6 +333,8 @@ def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, 
             why = f"it is {_degree(at)} there" if at is not None else (
                 f"it is not well defined there (generic relative degree {_degree(generic)})")
             out.append((pa.name, f"at point '{pa.name}' {why}"))
+        else:
+            out.extend(_box_failure(pa, "rows", c.output))
     return out
 
 
@@ -360,9 +362,9 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
     return out
 
 
-def _box_failure(pa: PointAnalysis, prop: str) -> list[tuple[str | None, str]]:
+def _box_failure(pa: PointAnalysis, prop: str, key: str | None = None) -> list[tuple[str | None, str]]:
     """A claim that holds at the nominal parameter values must hold over the parameter box."""
-    found = claim_failure(pa.parametric, prop)
+    found = claim_failure(pa.parametric, prop, key)
     if found is None:
         return []
     message, _decided = found

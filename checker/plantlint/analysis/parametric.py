@@ -92,6 +92,7 @@ class ParametricPoint:
     decoupling: BoxVerdict | None = None
     zero_dynamics: BoxVerdict | None = None
     controllability: BoxVerdict | None = None
+    rows: dict[str, BoxVerdict] = field(default_factory=dict)  # per output: its relative degree at the point
     findings: list[Finding] = field(default_factory=list)
     params: "_Params | None" = field(default=None, repr=False, compare=False)
     solved: tuple[sp.Symbol, ...] = ()  # inputs solved as functions of the parameters
@@ -277,8 +278,40 @@ def box_point(
             out.decoupling = BoxVerdict(out.equilibrium.outcome, out.equilibrium.detail)
         else:
             out.decoupling = _guarded(params, lambda: _decoupling(params, decoupling, values))
+        out.rows = _rows(params, decoupling, values, out.decoupling)
         _report_decoupling(out, params, name)
     return out
+
+
+def _rows(params: _Params, A: sp.Matrix, values: dict[sp.Symbol, sp.Expr] | None,
+          decoupling: BoxVerdict) -> dict[str, BoxVerdict]:
+    """The relative degree of each output at the point over the box: its row of A must
+    not vanish (implied when det A does not; one output: the same question)."""
+    outputs = params.kernel.plant.outputs
+    if len(outputs) == 1 or values is None:
+        return {o: decoupling for o in outputs}
+    if decoupling.outcome == "proven":
+        return {o: BoxVerdict("proven", "implied by the nonsingular decoupling matrix") for o in outputs}
+    return {o: _guarded(params, lambda i=i: _row(params, A, values, i)) for i, o in enumerate(outputs)}
+
+
+def _row(params: _Params, A: sp.Matrix, values: dict[sp.Symbol, sp.Expr], i: int) -> BoxVerdict:
+    plant = params.kernel.plant
+    at = {s: values[s] for s in plant.states}
+    exprs = [e for e in (params.tidy(x.xreplace(at)) for x in A.row(i)) if e != 0] or [sp.Integer(0)]
+    v = params.clock.spent(certify_nonzero(exprs, params.box, params.clock.budget()))
+    if v.regular:
+        return BoxVerdict("proven", f"the row of {plant.outputs[i]} in A is non-zero over the whole box")
+    if v.regular is None:
+        return BoxVerdict("undecided", f"the row of {plant.outputs[i]} in A could not be certified non-zero "
+                          f"over the box within the budget (e.g. {_show_boxes(v)})")
+    w = _exact_point(params, v.witness or {})
+    for candidate in [w, *_snapped(params, v.witness or {})]:
+        if all(sp.cancel(e.xreplace(candidate)) == 0 for e in exprs):
+            return BoxVerdict("violated", f"the row of {plant.outputs[i]} in A vanishes at "
+                              f"{show_values(params.named(candidate))} (exactly)", params.named(candidate), "undefined")
+    return BoxVerdict("undecided", f"the row of {plant.outputs[i]} in A comes close to zero near "
+                      f"{show_values(params.named(w))} but a common zero is not proven")
 
 
 def box_zero_dynamics(out: ParametricPoint | None, degrees: Sequence[int], zero_dynamics: ZeroDynamics | None
@@ -800,6 +833,12 @@ def _report_decoupling(out: ParametricPoint, params: _Params, name: str) -> None
                  hint="narrow the parameter range, or move the point off the singular set")
     elif out.equilibrium is None or out.equilibrium.outcome in ("proven", "violated"):
         _not_covered(out, params, "the decoupling matrix", v)  # else the equilibrium finding says why
+    lost = [o for o, r in out.rows.items() if r.outcome == "violated" and r is not v]
+    if lost:
+        _finding(out, "relative-degree-ill-defined", Severity.ERROR,
+                 f"at point {name} the relative degree of {', '.join(lost)} is defined at the nominal parameter "
+                 "values but not over the whole parameter box: " + "; ".join(out.rows[o].detail for o in lost),
+                 hint="narrow the parameter range, or move the point off the singular set")
 
 
 def _report_zero_dynamics(out: ParametricPoint, params: _Params, name: str) -> None:
@@ -832,11 +871,14 @@ def _report_controllability(out: ParametricPoint, params: _Params, name: str) ->
 
 
 # -- claims and JSON -----------------------------------------------------------------------------------
-def claim_failure(pp: ParametricPoint | None, prop: str) -> tuple[str, bool] | None:
-    """(message, decided) when the box verdict of ``prop`` makes a claim at this point fail."""
+def claim_failure(pp: ParametricPoint | None, prop: str, key: str | None = None) -> tuple[str, bool] | None:
+    """(message, decided) when the box verdict of ``prop`` (``rows``: of output ``key``)
+    makes a claim at this point fail."""
     if pp is None:
         return None
     v = getattr(pp, prop)
+    if key is not None:
+        v = v.get(key)
     if v is None or v.outcome == "proven":
         return None
     box = ", ".join(f"{k} in {show_number(lo)} .. {show_number(hi)}" for k, (lo, hi) in pp.box.items())
@@ -873,6 +915,7 @@ def parametric_json(pp: ParametricPoint) -> dict[str, Any]:
         "decoupling": verdict_json(pp.decoupling),
         "zero_dynamics": verdict_json(pp.zero_dynamics),
         "controllability": verdict_json(pp.controllability),
+        "relative_degree": {o: verdict_json(v) for o, v in pp.rows.items()},
     }
 
 

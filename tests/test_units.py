@@ -350,3 +350,11 @@ def test_long_sums_and_deep_nesting_are_fine() -> None:
     text = f"plant l\nparam a = 1 [m/s]\nstate x [m] in 0 .. 1\nrate x = {terms} + {deep}\n"
     (finding,) = unit_findings(text)
     assert finding[0] == "unit-mismatch" and "'x'" in finding[4]  # the one term in m, not m/s
+
+
+def test_extreme_unit_scales_do_not_crash() -> None:
+    # yoctometre^12 is 1e-288 m^12 (SI prefixes, SI Brochure table 7); its cube underflows a float
+    text = ("plant e\nparam a = 1 [ym^12]\nparam b = 1 [Ym^12]\nstate x [m] in 0 .. 1\n"
+            "let c = a*a*a\nlet d = b*b*b\nrate x = x/c + x*d + x/(c*d)\n")
+    for rule, *_ in unit_findings(text):
+        assert rule == "unit-mismatch"

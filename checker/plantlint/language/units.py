@@ -74,10 +74,10 @@ class Unit:
     text: str | None = None  # as declared, for messages
 
     def __mul__(self, other: "Unit") -> "Unit":
-        return Unit(self.factor * other.factor, _merge(self.dims, other.dims, 1))
+        return Unit(_checked(self.factor * other.factor), _merge(self.dims, other.dims, 1))
 
     def __truediv__(self, other: "Unit") -> "Unit":
-        return Unit(self.factor / other.factor, _merge(self.dims, other.dims, -1))
+        return Unit(_checked(self.factor / other.factor), _merge(self.dims, other.dims, -1))
 
     def power(self, p: Fraction) -> "Unit":
         factor = self.factor ** float(p)
@@ -119,6 +119,14 @@ class Unit:
 
 ONE = Unit(1.0)
 SECOND = Unit(1.0, ((TIME, Fraction(1)),), "s")
+
+
+def _checked(factor: float) -> float:
+    """A unit's scale stays a finite positive float (hostile units such as ym^12 cubed
+    would underflow): beyond that the unit counts as unknown."""
+    if not math.isfinite(factor) or factor <= 0.0:
+        raise OverflowError("unit scale out of range")
+    return factor
 
 
 def _merge(a: tuple[tuple[str, Fraction], ...], b: tuple[tuple[str, Fraction], ...], sign: int
@@ -530,7 +538,10 @@ class _Checker:
         value = self.evaluate(st.expr, f"rate {name}", expected)
         if not isinstance(value, Unit) or not isinstance(state, Unit) or self.nondimensional:
             return
-        per = value / state
+        try:
+            per = value / state
+        except OverflowError:
+            return
         if per.dims != ((TIME, Fraction(-1)),):
             expected = replace(state / SECOND, text=None)
             self._add(RULE_MISMATCH,
@@ -789,10 +800,13 @@ def _expectations(root: Any, unit: Unit, closed: dict[int, _Result]) -> dict[int
             targets = [(kids[0], want)]
         elif node.data in ("mul", "div"):
             a, b = known(kids[0]), known(kids[1])
-            if node.data == "mul":
-                targets = ([(kids[0], want / b)] if b else []) + ([(kids[1], want / a)] if a else [])
-            else:
-                targets = ([(kids[0], want * b)] if b else []) + ([(kids[1], a / want)] if a else [])
+            try:
+                if node.data == "mul":
+                    targets = ([(kids[0], want / b)] if b else []) + ([(kids[1], want / a)] if a else [])
+                else:
+                    targets = ([(kids[0], want * b)] if b else []) + ([(kids[1], a / want)] if a else [])
+            except OverflowError:
+                targets = []
         for child, u in targets:
             out[id(child)] = u
             stack.append(child)
@@ -808,7 +822,10 @@ def _product(a: _Result, b: _Result, divide: bool) -> _Result:
         return _Num(a.value / b.value if divide else a.value * b.value)
     ua = a if isinstance(a, Unit) else ONE
     ub = b if isinstance(b, Unit) else ONE
-    out = ua / ub if divide else ua * ub
+    try:
+        out = ua / ub if divide else ua * ub
+    except OverflowError:
+        return None
     if isinstance(b, _Num):  # a coefficient keeps the unit (and its declared text)
         return replace(out, text=ua.text)
     if isinstance(a, _Num) and not divide:

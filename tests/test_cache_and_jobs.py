@@ -85,7 +85,7 @@ def reference(workspace: Path) -> Run:
     run = plantlint(workspace, "check", "--format", "json", "--jobs", "1", "--no-cache", "models")
     assert run.code == 1 and "Traceback" not in run.stderr, run.stderr
     stopped = [(file["path"], f["message"]) for file in json.loads(run.stdout)["files"] for f in file["findings"]
-               if f["rule"] == "analysis-budget"]
+               if f["rule"] == "analysis-incomplete"]
     assert stopped == [], f"the runner stopped an analysis (never cached, so cache counts would be off): {stopped}"
     return run
 
@@ -238,16 +238,21 @@ def test_tiny_budget_stops_each_model_and_the_run_goes_on(workspace: Path, tmp_p
     paths = ["models/a_unstable.plant", "models/c_clean.plant", "models/line/h_chain.plant"]
     run = plantlint(workspace, "check", "--format", "json", "--jobs", "1", "--timeout", "0.001",
                     "--cache-dir", str(cache), *paths)
-    assert run.code == 0 and "Traceback" not in run.stderr  # analysis-budget is a warning
-    files = json.loads(run.stdout)["files"]
+    # not decided is not a pass: every model could not be checked, so the run fails
+    assert run.code == 1 and "Traceback" not in run.stderr
+    report = json.loads(run.stdout)
+    files = report["files"]
     assert [f["path"] for f in files] == paths
     stages = ("structure", "envelope", "points", "zero dynamics", "distributions", "claims")
     for file in files:
-        (finding,) = file["findings"]
-        assert finding["rule"] == "analysis-budget" and finding["severity"] == "warning"
-        message = finding["message"]
-        assert "0.001 s" in message and "completed:" in message and "not completed:" in message
+        stop = [f for f in file["findings"] if f["rule"] == "analysis-incomplete"]
+        assert len(stop) == 1 and stop[0]["severity"] == "error" and stop[0]["decided"] is False
+        message = stop[0]["message"]
+        assert message.startswith("could not be checked: the analysis stopped at its 0.001 s budget")
+        assert "completed:" in message and "not completed:" in message
         assert all(stage in message for stage in stages)
+        assert file["outcome"] == "not-decided" and file["stop"]["kind"] == "time"
+    assert report["summary"]["not_checked"] == report["summary"]["cut_short"] == 3
     # a stop by the runner depends on the machine: it is never cached
     assert cache_entries(cache) == []
     full = plantlint(workspace, "check", "--format", "json", "--cache-dir", str(cache), paths[0])

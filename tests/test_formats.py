@@ -169,7 +169,8 @@ def test_json_content() -> None:
     multi = demo["findings"][3]
     assert (multi["line"], multi["column"], multi["end_line"], multi["end_column"]) == (5, 10, 6, 10)
     assert multi["fingerprint"] == _findings()[0].fingerprint("demo")
-    assert data["summary"] == {"files": 2, "errors": 2, "warnings": 1, "notes": 0, "waived": 1}
+    assert data["summary"] == {"files": 2, "errors": 2, "warnings": 1, "notes": 0, "waived": 1, "not_decided": 0,
+                               "not_checked": 0, "cut_short": 0, "outcome": "defect"}
     assert "since" not in data and "structure_changes" not in demo and "baseline" not in multi
 
 

@@ -9,6 +9,7 @@ from __future__ import annotations
 import argparse
 import math
 import os
+import signal
 import sys
 from pathlib import Path
 from typing import Sequence, TextIO
@@ -23,6 +24,19 @@ CAUTION = (
 )
 
 EXIT_OK, EXIT_FINDINGS, EXIT_USAGE = 0, 1, 2
+EXIT_SIGINT, EXIT_SIGTERM = 130, 143  # 128 + signal number, as shells report it
+
+EXIT_CODES = (
+    "Exit codes: 0 every model checked and nothing at or above the fail level; 1 a defect found "
+    "at or above the fail level, or a model or claim not decided (the analysis was cut short or "
+    "failed: the model could not be checked); 2 usage or configuration error; 130 interrupted "
+    "(SIGINT, Ctrl-C), 143 terminated (SIGTERM): workers stopped, no report written."
+)
+BUDGETS = (
+    "Time budget per model: 20 s in an interactive or pre-commit run, 120 s in CI (the CI "
+    "environment variable is set, or --profile ci); --timeout or `timeout` in the configuration "
+    "overrides both, `timeout-interactive` and `timeout-ci` change them."
+)
 
 
 class _Parser(argparse.ArgumentParser):
@@ -37,15 +51,16 @@ def build_parser() -> argparse.ArgumentParser:
         prog="plantlint",
         description="Static checks for nonlinear plant models (.plant files): relative degree, "
         "decoupling, regularity over the operating envelope, zero dynamics, involutivity.",
-        epilog=CAUTION + "\n\nExit codes: 0 nothing at or above the fail level, 1 findings at or "
-        "above it, 2 usage or configuration error.",
+        epilog=CAUTION + "\n\n" + EXIT_CODES + "\n\n" + BUDGETS,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     top.add_argument("--version", action="version", version=f"plantlint {__version__}")
     sub = top.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
-    check = sub.add_parser("check", help="check model files or folders", epilog=CAUTION,
-                           description="Check .plant files (folders are searched for *.plant).")
+    check = sub.add_parser("check", help="check model files or folders",
+                           epilog=CAUTION + "\n\n" + EXIT_CODES + "\n\n" + BUDGETS,
+                           description="Check .plant files (folders are searched for *.plant). Each model "
+                           "passes, has a defect found, or is not decided (could not be checked).")
     check.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: the configured root)")
     check.add_argument("--format", choices=("text", "lines", "json", "sarif", "markdown"), default="text",
                        help="report format (default: text; markdown: a summary for a merge-request comment)")
@@ -57,7 +72,10 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--since", metavar="REF",
                        help="regression gate: fail only on findings introduced since git revision REF")
     check.add_argument("--jobs", type=int, metavar="N", help="models analysed in parallel (default: CPU count)")
-    check.add_argument("--timeout", type=float, metavar="SECONDS", help="time budget per model (default: 120)")
+    check.add_argument("--timeout", type=float, metavar="SECONDS",
+                       help="time budget per model (default: by profile, 20 s interactive, 120 s CI)")
+    check.add_argument("--profile", choices=("auto", "interactive", "ci"),
+                       help="budget profile (default: auto, which is ci when the CI environment variable is set)")
     check.add_argument("--no-cache", action="store_true", help="neither read nor write the result cache")
     check.add_argument("--cache-dir", metavar="DIR", help="cache folder (default: .plantlint/cache beside the configuration)")
     check.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
@@ -124,6 +142,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         parser.print_help()
         return EXIT_USAGE
+    previous = _on_sigterm()
     try:
         if args.command == "check":
             return _check(args)
@@ -135,10 +154,42 @@ def main(argv: Sequence[str] | None = None) -> int:
             return _plot(args)
         return _explain(args)
     except KeyboardInterrupt:
-        print("plantlint: interrupted", file=sys.stderr)
-        return 130
+        _quiet_exit("interrupted")
+        return EXIT_SIGINT
+    except Terminated:
+        _quiet_exit("terminated")
+        return EXIT_SIGTERM
     except BrokenPipeError:
         return EXIT_OK
+    finally:
+        if previous is not None:
+            signal.signal(signal.SIGTERM, previous)  # type: ignore[arg-type]
+
+
+class Terminated(BaseException):
+    """SIGTERM arrived: unwind (the runner's cleanup stops every worker), then exit 143."""
+
+
+def _on_sigterm() -> object:
+    """Turn SIGTERM into :class:`Terminated` so that the run ends as on Ctrl-C:
+    workers stopped, one line on stderr, no traceback."""
+    def handler(_signum: int, _frame: object) -> None:
+        raise Terminated()
+
+    try:
+        return signal.signal(signal.SIGTERM, handler)
+    except (ValueError, OSError):  # not the main thread
+        return None
+
+
+def _quiet_exit(what: str) -> None:
+    """One line on stderr; further interrupts while exiting are ignored."""
+    for sig in (signal.SIGINT, signal.SIGTERM):
+        try:
+            signal.signal(sig, signal.SIG_IGN)
+        except (ValueError, OSError):
+            pass
+    print(f"plantlint: {what}; workers stopped, no report written", file=sys.stderr)
 
 
 def _fail(message: str) -> int:
@@ -179,6 +230,8 @@ def _check(args: argparse.Namespace) -> int:
             if not math.isfinite(args.timeout) or args.timeout <= 0:
                 raise ConfigError("--timeout must be a positive, finite number of seconds")
             changes["timeout"] = args.timeout
+        if args.profile is not None:
+            changes["profile"] = args.profile
         if args.jobs is not None:
             if args.jobs < 0:
                 raise ConfigError("--jobs must be >= 0 (0: one per CPU)")
@@ -219,6 +272,11 @@ def _check(args: argparse.Namespace) -> int:
         print(f"plantlint: shard {shard.index}/{shard.count}: {len(report.files)} of {shard.models} models",
               file=sys.stderr)
     report.adjustments = config.adjustments()
+    report.budget = config.budget()[1]
+    if not config.undecided_fail:
+        from plantlint.core.findings import Relaxation
+
+        report.relaxation = Relaxation(config.undecided_reason or "", str(config.source or "the configuration"))
     return _emit(report, args.format, args.output, args.color)
 
 
@@ -275,7 +333,7 @@ def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> in
             summary.render(report, sys.stdout, color=False)
     else:
         formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))
-    return EXIT_FINDINGS if report.failing() else EXIT_OK
+    return EXIT_FINDINGS if report.fails() else EXIT_OK
 
 
 def _rules(args: argparse.Namespace) -> int:

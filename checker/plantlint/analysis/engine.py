@@ -45,7 +45,11 @@ from plantlint.analysis.structure import (
 )
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at, zero_dynamics_json
 
-Stage = Callable[[str], None]
+#: The stages in order; each is reported when it completes, so a stopped run keeps
+#: what finished and can still decide the claims those stages settle.
+STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
+
+Stage = Callable[[str, "Analysis"], None]
 
 
 @dataclass
@@ -71,6 +75,12 @@ class Analysis:
     points: list[PointAnalysis] = field(default_factory=list)
     distributions: DistributionStructure | None = None
     findings: list[Finding] = field(default_factory=list)
+    completed: list[str] = field(default_factory=list)  # stages finished, in order
+
+    def done(self, name: str, stage: Stage | None) -> None:
+        self.completed.append(name)
+        if stage is not None:
+            stage(name, self)
 
     def to_json(self) -> dict[str, Any]:
         m = self.model
@@ -113,24 +123,28 @@ class Analysis:
             }
         if self.kernel.uncertain:
             out["unconfirmed_zero_tests"] = len(self.kernel.uncertain)
+        out["stages"] = {"completed": list(self.completed),
+                         "not_completed": [s for s in STAGES if s not in self.completed]}
         return out
 
 
 def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analysis:
-    """All stages for one model whose model-family checks passed."""
-    stage = stage or (lambda _s: None)
+    """All stages for one model whose model-family checks passed.
+
+    ``stage(name, analysis)`` is called as each stage completes (the runner sends a
+    snapshot then, so that a stop keeps the completed work)."""
     plant = model.plant()
     assert plant is not None, "analysis needs an input-affine model"
     kernel = Kernel(plant)
     structure = analyse_structure(kernel)
     result = Analysis(model, kernel, structure)
     result.findings.extend(structure.findings)
-    stage("structure")
+    result.done("structure", stage)
 
     result.envelope = certify_envelope(kernel, structure, getattr(config, "envelope_seconds", 5.0),
                                        getattr(config, "envelope_boxes", 20000))
     result.findings.extend(result.envelope.findings)
-    stage("envelope")
+    result.done("envelope", stage)
 
     timer = clock(getattr(config, "envelope_seconds", 5.0), getattr(config, "envelope_boxes", 20000))
     for op in model.points:
@@ -148,7 +162,7 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
                                       written, pa.structure.well_defined, timer)
             result.findings.extend(pa.parametric.findings if pa.parametric is not None else [])
         result.points.append(pa)
-    stage("points")
+    result.done("points", stage)
 
     degrees = structure.vector_relative_degree
     for pa in result.points:
@@ -164,13 +178,13 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
             pa.normal_form = _full_normal_form(kernel, ints)
         elif pa.zero_dynamics.verdict != "undefined" and sum(ints) < plant.n:
             pa.normal_form = normal_form_at(kernel, ints, pa.equilibrium.values)
-    stage("zero dynamics")
+    result.done("zero dynamics", stage)
 
     for pa in result.points:  # A, B, C at each equilibrium, cross-checked with the zero dynamics
         if pa.equilibrium.equilibrium and all(s in pa.equilibrium.values for s in plant.states):
             pa.linearisation = linearise_at(kernel, pa.equilibrium, pa.zero_dynamics)
             result.findings.extend(pa.linearisation.findings)
-    stage("linearisation")
+    result.done("linearisation", stage)
 
     if plant.m >= 1:
         by_outputs = outputs_linearize(structure, plant.n, plant.m)
@@ -195,10 +209,10 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
             if any(c.kind == "state_linearizable" and c.point in (None, pa.name) for c in model.claims):
                 result.findings.extend(box_controllability(pa.parametric, pa.distributions.controllability_rank))
         result.distributions = by_outputs if by_outputs is not None else brackets()
-    stage("distributions")
+    result.done("distributions", stage)
 
     result.findings.extend(check_claims(result))
-    stage("claims")
+    result.done("claims", stage)
     return result
 
 
@@ -297,18 +311,53 @@ def analyse(model: Model, config: Any, stage: Stage | None = None) -> tuple[dict
 
 # -- claims -------------------------------------------------------------------------
 
+class Undecided(str):
+    """A claim checker's message for "could not be decided" (as opposed to "fails")."""
+
+
+def claim_stage(claim: ClaimDecl) -> str:
+    """The stage after which ``claim`` can be decided."""
+    if claim.kind == "relative_degree":
+        return "structure" if claim.point is None else "points"
+    return {"regular": "points", "minimum_phase": "zero dynamics", "state_linearizable": "distributions"}[claim.kind]
+
+
 def check_claims(a: Analysis) -> list[Finding]:
+    """Every claim, decided or not (all stages before ``claims`` have completed)."""
+    decided, pending = claims_so_far(a)
+    return decided + pending
+
+
+def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
+    """The claims the completed stages settle, and the rest (not decided yet).
+
+    A pending claim's message ends in ``not decided``; whoever stops the analysis
+    appends why (``: the analysis stopped at ...``).
+    """
     out: list[Finding] = []
+    pending: list[Finding] = []
     for claim in a.model.claims:
-        checker = _CLAIM_CHECKS[claim.kind]
-        failures = checker(a, claim)
+        text = _claim_text(claim)
         if claim.kind in ("regular", "minimum_phase") and not a.model.outputs:
-            failures = [(claim.point, "the model declares no output, so there is no relative degree or zero "
-                                      "dynamics to check")]
+            failures: list[tuple[str | None, str]] = [
+                (claim.point, "the model declares no output, so there is no relative degree or zero dynamics to check")]
+        elif claim_stage(claim) in a.completed:
+            failures = _CLAIM_CHECKS[claim.kind](a, claim)
+        elif claim.kind == "regular" and claim.point is None and a.envelope is not None and a.envelope.regular is False:
+            failures = [f for f in _regular_claim(a, claim) if f[0] is None]  # the envelope alone refutes it
+        else:
+            pending.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` not decided",
+                                   point=claim.point, anchor=claim.anchor, undecided=True,
+                                   hint=f"needs the stage '{claim_stage(claim)}' to complete"))
+            continue
         for point, message in failures:
-            out.append(Finding("expectation-failed", Severity.ERROR, f"`{_claim_text(claim)}` does not hold: {message}",
-                               point=point, anchor=claim.anchor))
-    return out
+            if isinstance(message, Undecided):
+                out.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` not decided: {message}",
+                                   point=point, anchor=claim.anchor, undecided=True))
+            else:
+                out.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` does not hold: {message}",
+                                   point=point, anchor=claim.anchor))
+    return out, pending
 
 
 def _claim_text(c: ClaimDecl) -> str:
@@ -347,8 +396,8 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
     if c.point is None:
         env = a.envelope
         if env is None or env.regular is None:
-            out.append((None, "regularity over the envelope could not be proven "
-                              "(see the envelope-unproven finding)"))
+            out.append((None, Undecided("regularity over the envelope could not be proven within its budget "
+                                        "(see the envelope-unproven finding)")))
         elif env.regular is False:
             where = ", ".join(f"{k} = {v:.6g}" for k, v in (env.witness or {}).items())
             out.append((None, "the relative degree is not well defined everywhere in the envelope"
@@ -441,4 +490,4 @@ _CLAIM_CHECKS: dict[str, Callable[[Analysis, ClaimDecl], list[tuple[str | None, 
     "state_linearizable": _state_linearizable_claim,
 }
 
-__all__ = ["Analysis", "PointAnalysis", "analyse", "check_claims", "run_analysis"]
+__all__ = ["STAGES", "Analysis", "PointAnalysis", "analyse", "check_claims", "claims_so_far", "run_analysis"]

@@ -43,7 +43,12 @@ class Config:
     skip_source: str = ""
     only_source: str = ""
     jobs: int = 0  # 0: one per CPU
-    timeout: float = 120.0  # seconds per model
+    timeout: float | None = None  # seconds per model; None: the budget of the profile
+    profile: str = "auto"  # "interactive", "ci" or "auto" (ci when the CI variable is set)
+    timeout_interactive: float = 20.0  # the budget per model of an interactive / pre-commit run
+    timeout_ci: float = 120.0  # the budget per model in CI
+    undecided_fail: bool = True  # not-decided models and claims fail the run
+    undecided_reason: str | None = None  # required when undecided_fail is False
     envelope_seconds: float = 5.0
     envelope_boxes: int = 20000
     #: relative residual within which a declared point counts as a rounded equilibrium
@@ -66,6 +71,30 @@ class Config:
             out.append(Adjustment("severity", (rule,), self.severity_reasons.get(rule, ""), where, level))
         return tuple(out)
 
+    def resolved_profile(self, env: Mapping[str, str] | None = None) -> str:
+        """``interactive`` or ``ci``: ``auto`` means ci when the ``CI`` environment
+        variable is set to anything but empty, 0, false or no (as CI services do)."""
+        if self.profile != "auto":
+            return self.profile
+        value = (os.environ if env is None else env).get("CI", "").strip().lower()
+        return "ci" if value not in ("", "0", "false", "no") else "interactive"
+
+    def budget(self, env: Mapping[str, str] | None = None) -> tuple[float, str]:
+        """The time budget per model and how it was chosen, in words."""
+        if self.timeout is not None:
+            return self.timeout, f"{self.timeout:g} s per model, set explicitly"
+        profile = self.resolved_profile(env)
+        if profile == "ci":
+            why = "" if self.profile == "ci" else ", the CI variable is set"
+            return self.timeout_ci, f"{self.timeout_ci:g} s per model, CI profile{why}"
+        return self.timeout_interactive, (f"{self.timeout_interactive:g} s per model, interactive profile "
+                                          f"(CI runs get {self.timeout_ci:g} s)")
+
+    @property
+    def seconds(self) -> float:
+        """The time budget per model in effect."""
+        return self.budget()[0]
+
     def analysis_key(self) -> str:
         """The settings that change analysis results (part of the cache key)."""
         return f"env={self.envelope_seconds}/{self.envelope_boxes} tol={self.point_tolerance!r}"
@@ -74,7 +103,9 @@ class Config:
 _KEYS = {
     "include", "exclude", "fail-on", "only", "skip", "severity", "jobs", "timeout",
     "envelope-seconds", "envelope-boxes", "cache-dir", "cache", "point-tolerance",
+    "profile", "timeout-interactive", "timeout-ci", "undecided",
 }
+PROFILES = ("auto", "interactive", "ci")
 
 
 def find_config(start: Path) -> tuple[Path, dict[str, Any]] | None:
@@ -149,6 +180,14 @@ def from_table(table: Mapping[str, Any], path: Path, known_rules: frozenset[str]
         changes["jobs"] = _int(table["jobs"], "jobs", where, low=0)
     if "timeout" in table:
         changes["timeout"] = _positive(table["timeout"], "timeout", where)
+    if "timeout-interactive" in table:
+        changes["timeout_interactive"] = _positive(table["timeout-interactive"], "timeout-interactive", where)
+    if "timeout-ci" in table:
+        changes["timeout_ci"] = _positive(table["timeout-ci"], "timeout-ci", where)
+    if "profile" in table:
+        changes["profile"] = parse_profile(table["profile"], f"{where}: 'profile'")
+    if "undecided" in table:
+        changes["undecided_fail"], changes["undecided_reason"] = _undecided(table["undecided"], where)
     if "envelope-seconds" in table:
         changes["envelope_seconds"] = _positive(table["envelope-seconds"], "envelope-seconds", where)
     if "envelope-boxes" in table:
@@ -223,6 +262,35 @@ def _severities(value: Any, where: str, known: frozenset[str]) -> tuple[dict[str
         levels[rule] = _severity(entry["level"], f"severity.{rule}.level", where)
         reasons[rule] = _reason(entry["reason"], f"severity.{rule}", where, how)
     return levels, reasons
+
+
+def parse_profile(value: Any, what: str) -> str:
+    if not isinstance(value, str) or value not in PROFILES:
+        raise ConfigError(f"{what} must be one of {', '.join(repr(p) for p in PROFILES)}")
+    return value
+
+
+def _undecided(value: Any, where: str) -> tuple[bool, str | None]:
+    """``[undecided] fail = false, reason = "..."``: letting not-decided results pass is
+    an explicit choice with a reason (shown in every report)."""
+    if not isinstance(value, dict):
+        raise ConfigError(f"{where}: 'undecided' must be a table: [undecided] fail = false, reason = \"...\"")
+    unknown = sorted(set(value) - {"fail", "reason"})
+    if unknown:
+        raise ConfigError(f"{where}: unknown setting {', '.join(repr(f'undecided.{k}') for k in unknown)} "
+                          "(known: undecided.fail, undecided.reason)")
+    fail = value.get("fail", True)
+    if not isinstance(fail, bool):
+        raise ConfigError(f"{where}: 'undecided.fail' must be true or false")
+    reason = value.get("reason")
+    if reason is not None and (not isinstance(reason, str) or not reason.strip()):
+        raise ConfigError(f"{where}: 'undecided.reason' must be a non-empty string")
+    if not fail and reason is None:
+        raise ConfigError(f"{where}: 'undecided.fail = false' lets models that could not be checked pass; "
+                          "say why with undecided.reason = \"...\"")
+    if fail and reason is not None:
+        raise ConfigError(f"{where}: 'undecided.reason' only applies with undecided.fail = false")
+    return fail, (reason.strip() if reason else None)
 
 
 def _globs(value: Any, key: str, where: str) -> tuple[str, ...]:

@@ -7,6 +7,7 @@ by :func:`finish`, which needs neither sympy nor the model.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
@@ -15,6 +16,7 @@ from plantlint.core.findings import (
     Finding,
     Severity,
     Span,
+    Stop,
     Waiver,
     finding_from_data,
     finding_to_data,
@@ -36,6 +38,9 @@ class RawResult:
     waivers: list[Waiver] = field(default_factory=list)
     analysis: dict[str, Any] | None = None
     stages: list[str] = field(default_factory=list)  # analysis stages completed
+    #: claims the completed stages cannot settle yet (only in a snapshot of an unfinished run)
+    pending: list[Finding] = field(default_factory=list)
+    stop: Stop | None = None  # set when the analysis did not complete
 
     def to_data(self) -> dict[str, Any]:
         return {
@@ -44,6 +49,8 @@ class RawResult:
             "waivers": [waiver_to_data(w) for w in self.waivers],
             "analysis": self.analysis,
             "stages": self.stages,
+            "pending": [finding_to_data(f) for f in self.pending],
+            "stop": self.stop.to_data() if self.stop is not None else None,
         }
 
     @classmethod
@@ -54,6 +61,8 @@ class RawResult:
             waivers=[waiver_from_data(x) for x in d.get("waivers", [])],
             analysis=d.get("analysis"),
             stages=list(d.get("stages", [])),
+            pending=[finding_from_data(x) for x in d.get("pending", [])],
+            stop=Stop.from_data(d["stop"]) if d.get("stop") else None,
         )
 
 
@@ -74,27 +83,55 @@ def read_model(data: bytes, path: str = "") -> tuple[Any, list[Finding]]:
     return model, findings
 
 
-def analyse_bytes(data: bytes, config: Any, progress: Callable[[str], None] | None = None) -> RawResult:
-    """Parse, build and analyse one model held in ``data``. Never raises on bad input."""
+Progress = Callable[[str, RawResult], None]
+
+
+def analyse_bytes(data: bytes, config: Any, progress: Progress | None = None) -> RawResult:
+    """Parse, build and analyse one model held in ``data``. Never raises on bad input.
+
+    ``progress(stage, snapshot)`` gets a snapshot after the model is read (stage
+    ``model``) and after every analysis stage: what a stop at that moment keeps.
+    """
     model, findings = read_model(data)
     result = RawResult(findings=list(findings))
     if model is None:
         return result
     result.plant = model.name
     result.waivers = list(model.waivers)
-    if not any(f.rule in BLOCKING for f in findings):
-        from plantlint.analysis.engine import analyse
+    if any(f.rule in BLOCKING for f in findings):
+        result.findings = [locate(f, model.spans) for f in result.findings]
+        return result
+    from plantlint.analysis.engine import Analysis, claims_so_far, run_analysis
 
-        def stage(name: str) -> None:
-            result.stages.append(name)
-            if progress is not None:
-                progress(name)
+    if progress is not None:
+        progress("model", RawResult(plant=model.name, findings=[locate(f, model.spans) for f in findings],
+                                    waivers=list(model.waivers),
+                                    pending=[locate(f, model.spans) for f in _claims_before_analysis(model)]))
 
-        analysis, more = analyse(model, config, stage)
-        result.analysis = analysis
-        result.findings.extend(more)
-    result.findings = [locate(f, model.spans) for f in result.findings]
+    def stage(name: str, analysis: Analysis) -> None:
+        if progress is None:
+            return
+        decided, pending = claims_so_far(analysis) if name != "claims" else ([], [])
+        progress(name, RawResult(
+            plant=model.name, waivers=list(model.waivers), analysis=analysis.to_json(),
+            stages=list(analysis.completed),
+            findings=[locate(f, model.spans) for f in [*findings, *analysis.findings, *decided]],
+            pending=[locate(f, model.spans) for f in pending]))
+
+    analysis = run_analysis(model, config, stage)
+    result.analysis = analysis.to_json()
+    result.stages = list(analysis.completed)
+    result.findings = [locate(f, model.spans) for f in [*findings, *analysis.findings]]
     return result
+
+
+def _claims_before_analysis(model: Any) -> list[Finding]:
+    """Every claim, not decided yet (what a stop before the first stage leaves)."""
+    from plantlint.analysis.engine import _claim_text, claim_stage
+
+    return [Finding("expectation-failed", Severity.ERROR, f"`{_claim_text(c)}` not decided", point=c.point,
+                    anchor=c.anchor, undecided=True, hint=f"needs the stage '{claim_stage(c)}' to complete")
+            for c in model.claims]
 
 
 def locate(f: Finding, spans: Any) -> Finding:
@@ -132,15 +169,73 @@ def finish(path: str, raw: RawResult, source: str | None, config: Any, defaults:
 
     findings = raw.findings + unused_waivers(raw.findings, raw.waivers, _judged(raw))
     findings = apply_policy(findings, raw.waivers, defaults, config.severity, config.only, config.skip)
-    return FileReport(path=path, plant=raw.plant, findings=findings, analysis=raw.analysis, source=source)
+    return FileReport(path=path, plant=raw.plant, findings=findings, analysis=raw.analysis, source=source,
+                      stop=raw.stop, stages=list(raw.stages))
 
 
-def budget_finding(completed: list[str], pending: list[str], seconds: float, reason: str = "time",
-                   line: int = 1) -> Finding:
-    done = ", ".join(completed) if completed else "none"
-    todo = ", ".join(pending) if pending else "the rest"
-    what = f"exceeded its time budget of {seconds:g} s" if reason == "time" else reason
-    return Finding("analysis-budget", Severity.WARNING,
-                   f"analysis {what}; completed: {done}; not completed: {todo}",
-                   Span(line, 1, line, 6), anchor="analysis budget",
-                   hint="raise --timeout (or `timeout` in the configuration) or simplify the model")
+#: Anchor of the finding that says a model could not be checked (the runner's own stops).
+STOP_ANCHOR = "analysis budget"
+
+_STOP_HINTS = {
+    "time": "raise the budget (--timeout, `timeout` in the configuration, or the longer CI budget: "
+            "--profile ci) or simplify the model",
+    "memory": "simplify the model (shorter definitions, fewer nested functions) or split it",
+    "internal-error": "please report it with the model; meanwhile simplify the model around the stage named",
+}
+
+
+_CLAIM = re.compile(r"[ \t]*expect[ \t]+([a-z_]+)(?:[ \t]*\([ \t]*([A-Za-z_][A-Za-z0-9_]*)[ \t]*\))?"
+                    r"(?:[ \t]*=[ \t]*([0-9]+))?(?:[ \t]+at[ \t]+([A-Za-z_][A-Za-z0-9_]*))?[ \t]*(?:#.*)?$")
+
+
+def claims_in_text(data: bytes) -> list[Finding]:
+    """The `expect` lines of a model that was not read (the analysis stopped before it was
+    parsed), found line by line without parsing: each is a claim not decided."""
+    out = []
+    for number, raw in enumerate(data[:1 << 20].decode("utf-8", errors="replace").splitlines(), start=1):
+        m = _CLAIM.fullmatch(raw)
+        if m is None:
+            continue
+        kind, output, value, point = m.groups()
+        anchor = f"expect {kind}" + (f"({output})" if output else "") + (f" at {point}" if point else "")
+        text = f"expect {kind}" + (f"({output}) = {value}" if output else "") + (f" at {point}" if point else "")
+        start = len(raw) - len(raw.lstrip()) + 1
+        out.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` not decided",
+                           Span(number, start, number, len(raw.split("#")[0].rstrip()) + 1), point=point,
+                           anchor=anchor, undecided=True))
+    return out
+
+
+def stopped(snapshot: RawResult | None, kind: str, stages: list[str], all_stages: tuple[str, ...],
+            seconds: float, detail: str = "", header: tuple[int, str | None] = (1, None),
+            text: bytes = b"") -> RawResult:
+    """The result of an analysis that did not complete: the last snapshot (plant, completed
+    stages, their findings and the claims they settle), every other claim not decided, and
+    an ``analysis-incomplete`` finding at the plant header saying why.
+
+    ``kind`` is ``time``, ``memory`` or ``internal-error``; ``detail`` the error text.
+    """
+    base = snapshot or RawResult(plant=header[1], pending=claims_in_text(text))
+    done = [s for s in all_stages if s in stages]
+    running = next((s for s in all_stages if s not in stages), None)
+    if snapshot is None:
+        running = "reading the model"
+    where = f" in stage {running}" if running else ""
+    if kind == "time":
+        what = f"stopped at its {seconds:g} s budget{where}"
+    elif kind == "memory":
+        what = f"ran out of its memory budget{where}"
+    else:
+        what = f"stopped by an internal error{where} ({detail})"
+    stop = Stop(kind, running, tuple(done), what)
+    todo = [s for s in all_stages if s not in done]
+    line = header[0]
+    finding = Finding("analysis-incomplete", Severity.ERROR,
+                      f"could not be checked: the analysis {what}; completed: {', '.join(done) or 'none'}; "
+                      f"not completed: {', '.join(todo) or 'none'}",
+                      Span(line, 1, line, 6), anchor=STOP_ANCHOR, hint=_STOP_HINTS[kind], undecided=True)
+    from dataclasses import replace
+
+    claims = [replace(p, message=f"{p.message}: the analysis {what}", hint=None) for p in base.pending]
+    return RawResult(plant=base.plant, findings=[*base.findings, *claims, finding], waivers=list(base.waivers),
+                     analysis=base.analysis, stages=done, stop=stop)

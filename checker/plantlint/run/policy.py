@@ -30,7 +30,8 @@ def apply_policy(
         if f.rule in skip:
             continue
         severity = overrides.get(f.rule) or defaults.get(f.rule) or f.severity
-        waiver = matching_waiver(f, waivers)
+        # not decided is not a defect to accept: only `[undecided]` in the configuration relaxes it
+        waiver = None if f.undecided else matching_waiver(f, waivers)
         out.append(replace(f, severity=severity, waived=waiver is not None,
                            reason=waiver.reason if waiver is not None else None))
     return out

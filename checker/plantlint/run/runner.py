@@ -2,9 +2,17 @@
 
 Each uncached model is analysed in its own worker process (forked from a parent
 that has already imported the analysis code, so starting one is cheap). A worker
-reports the analysis stages it completes; when it exceeds the time budget it is
-stopped and the model gets an ``analysis-budget`` finding naming what completed.
-Output order never depends on scheduling: results are kept in input order.
+sends a snapshot as each analysis stage completes; when it exceeds the time budget
+(or its memory, or fails internally) it is stopped, the last snapshot is kept, the
+claims it cannot settle are "not decided", and the model gets an
+``analysis-incomplete`` finding: it could not be checked.
+
+Workers never outlive the run: each one enforces its own budget (a watchdog thread
+and a CPU-time limit as a hard backstop), ends itself when its parent goes away
+(parent-death signal on Linux, and the watchdog notices the new parent), ignores
+Ctrl-C (the parent stops it), and the parent kills every running worker on any exit,
+including SIGINT and SIGTERM. Output order never depends on scheduling: results
+are kept in input order.
 """
 
 from __future__ import annotations
@@ -13,10 +21,13 @@ import hashlib
 import json
 import multiprocessing
 import os
+import signal
 import sys
+import threading
 import time
 import traceback
-from dataclasses import dataclass
+import re
+from dataclasses import dataclass, field
 from fnmatch import fnmatch
 from multiprocessing.connection import Connection, wait
 from pathlib import Path
@@ -25,14 +36,16 @@ from typing import Any, Callable
 from plantlint import __version__
 from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
 from plantlint.core.findings import FileReport, Finding, Severity, Span
-from plantlint.run.pipeline import RawResult, budget_finding, finish
+from plantlint.run.pipeline import STOP_ANCHOR, RawResult, finish, stopped
 
 STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
 CACHE_FORMAT = 2  # 2: the analysis has a linearisation per point
 MAX_BYTES = 1 << 20  # same limit as plantlint.language.syntax.MAX_BYTES (not imported: it pulls in sympy)
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker
 MAX_WAIT = 3600.0  # seconds; longest single wait for worker messages
-BUDGET_ANCHOR = "analysis budget"  # anchor of pipeline.budget_finding (the runner's own stops)
+BUDGET_ANCHOR = STOP_ANCHOR  # anchor of the runner's own stops (analysis-incomplete)
+GRACE = 2.0  # seconds a worker's own watchdog waits beyond the budget before it ends itself
+WATCH_EVERY = 0.25  # seconds between the watchdog's looks at the parent and the clock
 
 
 class UsageError(Exception):
@@ -263,18 +276,6 @@ class Cache:
             pass  # a read-only tree just runs uncached
 
 
-# -- workers ---------------------------------------------------------------------
-
-def _worker(conn: Connection, data: bytes, config: Any) -> None:
-    """Child process: analyse one model, report stages, send the raw result."""
-    try:
-        import resource
-
-        resource.setrlimit(resource.RLIMIT_AS, (MEMORY_LIMIT, MEMORY_LIMIT))
-    except (ImportError, ValueError, OSError):
-        pass
-    from plantlint.run.pipeline import analyse_bytes
-
 PROJECT_FOLDER = ".plantlint"  # everything plantlint writes lives under this one folder
 
 
@@ -284,19 +285,90 @@ def ignore_marker(folder: Path) -> Path:
     return (folder.parent if folder.parent.name == PROJECT_FOLDER else folder) / ".gitignore"
 
 
+# -- workers ---------------------------------------------------------------------
+
+def _guard_worker(parent: int, budget: float) -> None:
+    """A worker's own limits, so that it never outlives the run even if the parent
+    dies without cleaning up (SIGKILL, a crash):
+
+    - Ctrl-C reaches the whole process group; the worker ignores it (no traceback,
+      no stray lines) and the parent stops it; SIGTERM keeps its default (end);
+    - Linux: the kernel sends SIGKILL to the worker when its parent dies
+      (``prctl(PR_SET_PDEATHSIG)`` through ctypes);
+    - a watchdog thread ends the process when the parent changes (it died and the
+      worker was re-parented) or when the budget plus a grace period has passed;
+    - a CPU-time limit (RLIMIT_CPU) a little beyond the budget is the hard backstop
+      when a long call in C holds the interpreter and the watchdog cannot run.
+    """
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
     try:
-        raw = analyse_bytes(data, config, progress=lambda s: conn.send(("stage", s)))
-        conn.send(("done", raw.to_data()))
-    except MemoryError:
-        conn.send(("memory", None))
-    except RecursionError:
-        conn.send(("crash", "expression nesting too deep for the analysis"))
-    except Exception as exc:  # an internal error must not take the run down
-        last = traceback.extract_tb(exc.__traceback__)[-1:]
-        where = f" at {Path(last[0].filename).name}:{last[0].lineno}" if last else ""
-        conn.send(("crash", f"{type(exc).__name__}: {exc}{where}"))
-    finally:
+        import resource
+
+        resource.setrlimit(resource.RLIMIT_AS, (MEMORY_LIMIT, MEMORY_LIMIT))
+        if budget < MAX_WAIT:
+            cpu = int(budget + GRACE) + 2
+            soft, hard = resource.getrlimit(resource.RLIMIT_CPU)
+            if hard == resource.RLIM_INFINITY or hard > cpu:
+                resource.setrlimit(resource.RLIMIT_CPU, (cpu, cpu + 3))
+    except (ImportError, ValueError, OSError):
+        pass
+    _die_with_parent()
+    if os.getppid() != parent:  # the parent died before the request above took effect
+        os._exit(EXIT_ORPHANED)
+    deadline = time.monotonic() + budget + GRACE
+
+    def watch() -> None:
+        while True:
+            time.sleep(WATCH_EVERY)
+            if os.getppid() != parent:
+                os._exit(EXIT_ORPHANED)
+            if time.monotonic() > deadline:
+                os._exit(EXIT_OVER_BUDGET)
+
+    threading.Thread(target=watch, name="plantlint-watchdog", daemon=True).start()
+
+
+EXIT_ORPHANED, EXIT_OVER_BUDGET = 3, 4  # a worker's own exit codes (the parent never sees them as results)
+
+
+def _die_with_parent() -> None:
+    """Ask Linux to SIGKILL this process when its parent dies (no-op elsewhere)."""
+    if not sys.platform.startswith("linux"):
+        return
+    try:
+        import ctypes
+
+        libc = ctypes.CDLL(None, use_errno=True)
+        PR_SET_PDEATHSIG = 1
+        libc.prctl(PR_SET_PDEATHSIG, signal.SIGKILL, 0, 0, 0)
+    except (OSError, AttributeError):
+        pass
+
+
+def _worker(conn: Connection, data: bytes, config: Any, parent: int, budget: float) -> None:
+    """Child process: analyse one model, send a snapshot per stage, then the raw result."""
+    _guard_worker(parent, budget)
+    from plantlint.run.pipeline import analyse_bytes
+
+    try:
+        try:
+            raw = analyse_bytes(data, config, progress=lambda s, snap: conn.send(("stage", (s, snap.to_data()))))
+            message: tuple[str, Any] = ("done", raw.to_data())
+        except (BrokenPipeError, ConnectionResetError):
+            raise
+        except MemoryError:
+            message = ("memory", None)
+        except RecursionError:
+            message = ("crash", "expressions nested too deep for the analysis")
+        except Exception as exc:  # an internal error must not take the run down
+            last = traceback.extract_tb(exc.__traceback__)[-1:]
+            where = f" at {Path(last[0].filename).name}:{last[0].lineno}" if last else ""
+            message = ("crash", f"{type(exc).__name__}: {exc}{where}")
+        conn.send(message)
         conn.close()
+    except OSError:  # the parent is gone or stopped listening: end quietly
+        os._exit(EXIT_ORPHANED)
 
 
 def _context() -> Any:
@@ -327,44 +399,77 @@ def analyse_all(
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)
     queue = list(range(len(datas)))
-    running: dict[Connection, tuple[int, Any, float, list[str]]] = {}
-    while queue or running:
-        while queue and len(running) < max(jobs, 1):
-            i = queue.pop(0)
-            parent, child = ctx.Pipe(duplex=False)
-            proc = ctx.Process(target=_worker, args=(child, datas[i], config), daemon=True)
-            proc.start()
-            child.close()
-            running[parent] = (i, proc, time.monotonic(), [])
-        now = time.monotonic()
-        deadline = min(start + timeout for (_, _, start, _) in running.values())
-        ready = wait(list(running), timeout=_wait_seconds(deadline - now))
-        for conn in ready:
-            i, proc, start, stages = running[conn]
-            try:
-                kind, payload = conn.recv()
-            except (EOFError, OSError):
-                kind, payload = "crash", f"worker ended unexpectedly (exit code {proc.exitcode})"
-            if kind == "stage":
-                stages.append(payload)
-                continue
-            del running[conn]
+    running: dict[Connection, _Running] = {}
+    me = os.getpid()
+    try:
+        while queue or running:
+            while queue and len(running) < max(jobs, 1):
+                i = queue.pop(0)
+                parent, child = ctx.Pipe(duplex=False)
+                proc = ctx.Process(target=_worker, args=(child, datas[i], config, me, timeout), daemon=True)
+                proc.start()
+                child.close()
+                running[parent] = _Running(i, proc, time.monotonic())
+            now = time.monotonic()
+            deadline = min(r.start + timeout for r in running.values())
+            ready = wait(list(running), timeout=_wait_seconds(deadline - now))
+            for conn in ready:
+                _receive(conn, running, results, timeout, datas, on_done)
+            now = time.monotonic()
+            for conn, r in list(running.items()):
+                if now - r.start >= timeout:
+                    while conn in running and conn.poll():  # what arrived just before the budget ran out
+                        _receive(conn, running, results, timeout, datas, on_done)
+                    if conn not in running:
+                        continue
+                    r.proc.kill()
+                    r.proc.join()
+                    del running[conn]
+                    conn.close()
+                    results[r.index] = _outcome("timeout", None, r, timeout, datas[r.index])
+                    if on_done:
+                        on_done(r.index)
+    finally:  # an interrupt (SIGINT, SIGTERM) or any error: no worker outlives the run
+        for conn, r in running.items():
+            if r.proc.is_alive():
+                r.proc.kill()
+            r.proc.join()
             conn.close()
-            proc.join()
-            results[i] = _outcome(kind, payload, stages, timeout, datas[i])
-            if on_done:
-                on_done(i)
-        now = time.monotonic()
-        for conn, (i, proc, start, stages) in list(running.items()):
-            if now - start >= timeout:
-                proc.kill()
-                proc.join()
-                del running[conn]
-                conn.close()
-                results[i] = _outcome("timeout", None, stages, timeout, datas[i])
-                if on_done:
-                    on_done(i)
     return [r if r is not None else RawResult() for r in results]
+
+
+@dataclass
+class _Running:
+    index: int
+    proc: Any
+    start: float
+    stages: list[str] = field(default_factory=list)
+    snapshot: dict[str, Any] | None = None  # the last stage's snapshot (RawResult data)
+
+
+def _receive(conn: Connection, running: dict[Connection, _Running], results: list[RawResult | None],
+             timeout: float, datas: list[bytes], on_done: Callable[[int], None] | None) -> None:
+    r = running[conn]
+    try:
+        kind, payload = conn.recv()
+    except (EOFError, OSError):
+        r.proc.join()
+        code = r.proc.exitcode
+        xcpu = getattr(signal, "SIGXCPU", None)
+        why = {EXIT_OVER_BUDGET: "watchdog", **({-xcpu: "cpu limit"} if xcpu else {})}.get(code or 0)
+        kind, payload = ("timeout", None) if why else (
+            "crash", f"the worker ended unexpectedly (exit code {code})")
+    if kind == "stage":
+        name, snapshot = payload
+        r.stages.append(name)
+        r.snapshot = snapshot
+        return
+    del running[conn]
+    conn.close()
+    r.proc.join()
+    results[r.index] = _outcome(kind, payload, r, timeout, datas[r.index])
+    if on_done:
+        on_done(r.index)
 
 
 def _wait_seconds(left: float) -> float:
@@ -373,26 +478,25 @@ def _wait_seconds(left: float) -> float:
     return max(left, 0.0) if left < MAX_WAIT else MAX_WAIT
 
 
-def _outcome(kind: str, payload: Any, stages: list[str], timeout: float, data: bytes) -> RawResult:
+def _outcome(kind: str, payload: Any, r: _Running, timeout: float, data: bytes) -> RawResult:
     if kind == "done":
         return RawResult.from_data(payload)
-    pending = [s for s in STAGES if s not in stages]
-    reason = {
-        "timeout": "time",
-        "memory": "ran out of its memory budget",
-        "crash": f"stopped by an internal error ({payload}); please report it",
-    }[kind]
-    raw = RawResult(stages=stages)
-    raw.findings.append(budget_finding(stages, pending, timeout, reason, _header_line(data)))
-    return raw
+    snapshot = RawResult.from_data(r.snapshot) if r.snapshot is not None else None
+    stop_kind = {"timeout": "time", "memory": "memory", "crash": "internal-error"}[kind]
+    return stopped(snapshot, stop_kind, r.stages, STAGES, timeout, str(payload or ""), _header(data), data)
 
 
-def _header_line(data: bytes) -> int:
-    """Line of the `plant` header (found without parsing: the worker did not finish)."""
+_HEADER = re.compile(rb"\s*plant\s+([A-Za-z_][A-Za-z0-9_]*)")
+
+
+def _header(data: bytes) -> tuple[int, str | None]:
+    """Line and name of the `plant` header, found without parsing (used when the
+    worker stopped before it had read the model)."""
     for number, line in enumerate(data[:65536].splitlines(), start=1):
-        if line.lstrip().startswith(b"plant"):
-            return number
-    return 1
+        m = _HEADER.match(line)
+        if m:
+            return number, m.group(1).decode("ascii")
+    return 1, None
 
 
 # -- the whole run ---------------------------------------------------------------
@@ -479,7 +583,7 @@ def raw_results(
     if todo:
         progress = _Progress(len(todo)) if show_progress and len(todo) > 3 else None
         try:
-            fresh = analyse_all([sources[i].data or b"" for i in todo], config, jobs, config.timeout,
+            fresh = analyse_all([sources[i].data or b"" for i in todo], config, jobs, config.seconds,
                                 on_done=(lambda _i: progress.advance()) if progress else None)
         finally:
             if progress:
@@ -498,7 +602,7 @@ def cut_short(raw: RawResult) -> bool:
     analysis' own budget findings (for example an unconfirmed zero decision) are a
     deterministic outcome of the model and the settings and are cached like any other.
     """
-    return any(f.rule == "analysis-budget" and f.anchor == BUDGET_ANCHOR for f in raw.findings)
+    return raw.stop is not None
 
 
 def source_text(data: bytes | None) -> str | None:

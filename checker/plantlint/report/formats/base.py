@@ -100,3 +100,35 @@ def change_text(change: dict[str, object]) -> str:
             return f'waiver removed: {subject} (was: "{one_line(str(before))}")'
         return f'waiver reason changed: {subject}: "{one_line(str(before))}" -> "{one_line(str(after))}"'
     return f"{what}: {shown(before)} -> {shown(after)}"
+
+
+# -- not decided ---------------------------------------------------------------------
+
+def claims_not_decided(report: Report) -> int:
+    """Claims (``expect`` lines) not decided, unwaived, not fixed."""
+    return sum(1 for fr in report.files for f in fr.findings
+               if f.undecided and f.rule == "expectation-failed" and not f.waived and f.baseline != "fixed")
+
+
+def undecided_phrase(report: Report) -> str | None:
+    """What was not decided, in words ('1 model could not be checked (1 cut short by its
+    budget), 2 claims not decided'); None when everything was decided."""
+    counts = report.counts()
+    models, cut, claims = counts["not_checked"], counts["cut_short"], claims_not_decided(report)
+    parts = []
+    if models:
+        parts.append(f"{models} model{'' if models == 1 else 's'} could not be checked"
+                     + (f" ({cut} cut short; budget {report.budget})" if cut and report.budget else
+                        f" ({cut} cut short by the budget)" if cut else ""))
+    if claims:
+        parts.append(f"{claims} claim{'' if claims == 1 else 's'} not decided")
+    return ", ".join(parts) or None
+
+
+def relaxation_text(report: Report) -> str | None:
+    """The active choice to let not-decided results pass, with its reason and source."""
+    r = report.relaxation
+    if r is None:
+        return None
+    return (f"not-decided results do not fail this run ([undecided] fail = false in {one_line(r.source)}): "
+            f"{one_line(r.reason)}")

@@ -14,11 +14,13 @@ from typing import Any, TextIO
 
 from dataclasses import dataclass
 
-from plantlint.core.findings import Adjustment, FileReport, Finding, Report, Severity, Span
+from plantlint.core.findings import Adjustment, FileReport, Finding, Relaxation, Report, Severity, Span, Stop
 from plantlint.report.formats.base import baseline_counts, baseline_of, findings_in_order
 
 REPORT_FORMAT = "plantlint-report"
-REPORT_VERSION = 2  # 2: top-level "adjustments" (active only/skip/severity settings with reasons)
+REPORT_VERSION = 2  # 2: top-level "adjustments" (active only/skip/severity settings with reasons);
+# outcomes: "undecided" and "budget" at the top, each file's "outcome" and "stop", each finding's
+# "decided", and the summary's "not_decided", "not_checked", "cut_short" and "outcome"
 
 
 def report_schema() -> dict[str, Any]:
@@ -63,6 +65,7 @@ def finding_record(finding: Finding, plant: str | None, baseline: str | None) ->
         "reason": finding.reason if finding.waived else None,
         "hint": finding.hint,
         "fingerprint": finding.fingerprint(plant),
+        "decided": not finding.undecided,
     }
     if baseline is not None:
         record["baseline"] = baseline
@@ -75,6 +78,8 @@ def file_record(file_report: FileReport, findings: list[Finding], report: Report
         "plant": file_report.plant,
         "findings": [finding_record(f, file_report.plant, baseline_of(f, report)) for f in findings],
         "analysis": plain(file_report.analysis) if file_report.analysis is not None else None,
+        "outcome": report.outcome_of(file_report),
+        "stop": file_report.stop.to_data() if file_report.stop is not None else None,
     }
     if report.since is not None:
         record["structure_changes"] = plain(list(file_report.structure_changes))
@@ -91,10 +96,15 @@ def build_report(report: Report) -> dict[str, Any]:
     if report.since is not None:
         out["since"] = report.since
     out["adjustments"] = [adjustment.to_data() for adjustment in report.adjustments]
+    relaxed = report.relaxation
+    out["undecided"] = {"fail": relaxed is None, "reason": relaxed.reason if relaxed else None,
+                        "source": relaxed.source if relaxed else None}
+    out["budget"] = report.budget
     if report.shard is not None:
         out["shard"] = plain(report.shard)
     out["files"] = [file_record(fr, findings, report) for fr, findings in findings_in_order(report)]
     summary: dict[str, Any] = dict(report.counts())
+    summary["outcome"] = report.outcome()
     if report.since is not None:
         summary.update(baseline_counts(report))
     out["summary"] = summary
@@ -137,19 +147,23 @@ def read_report(data: Any) -> Report:
                 findings.append(RecordedFinding(
                     f["rule"], Severity(f["severity"]), f["message"], span, point=f["point"], hint=f["hint"],
                     waived=bool(f["waived"]), reason=f["reason"], baseline=f.get("baseline"),
-                    recorded=f["fingerprint"]))
+                    undecided=not f["decided"], recorded=f["fingerprint"]))
             changes = list(rec.get("structure_changes", []))
             deleted = any(c.get("what") == "model" and c.get("after") == "deleted" for c in changes)
+            stop = Stop.from_data(rec["stop"]) if rec["stop"] is not None else None
             files.append(FileReport(path=rec["path"], plant=rec["plant"], findings=findings, analysis=rec["analysis"],
-                                    structure_changes=changes, deleted=deleted))
+                                    structure_changes=changes, deleted=deleted, stop=stop,
+                                    stages=list(stop.completed) if stop else []))
         adjustments = tuple(
             Adjustment(a["kind"], tuple(a["rules"]), a["reason"] or "", a["source"],
                        Severity(a["level"]) if a["level"] else None)
             for a in data.get("adjustments", []))
         shard = data.get("shard")
         fail_on = Severity(shard["fail_on"]) if shard else Severity.ERROR
+        undecided = data["undecided"]
+        relaxation = None if undecided["fail"] else Relaxation(undecided["reason"], undecided["source"])
         return Report(files=files, tool_version=data["tool"]["version"], fail_on=fail_on, since=since,
-                      adjustments=adjustments, shard=shard)
+                      adjustments=adjustments, shard=shard, relaxation=relaxation, budget=data["budget"])
     except (KeyError, TypeError, ValueError) as exc:
         raise ReportReadError(f"malformed report ({type(exc).__name__}: {exc})") from None
 

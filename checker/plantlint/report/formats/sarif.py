@@ -91,6 +91,12 @@ def sarif_result(
         "locations": [{"physicalLocation": physical}],
         "partialFingerprints": {FINGERPRINT_KEY: finding.fingerprint(plant)},
     }
+    if finding.undecided:
+        # SARIF 2.1.0, 3.27.9: kind "open" = the tool could not determine whether the rule
+        # holds; a kind other than "fail" requires level "none" (the run's invocation
+        # carries an error-level notification for each, see not_decided_notifications)
+        result["kind"] = "open"
+        result["level"] = "none"
     if finding.waived:
         suppression: dict[str, Any] = {"kind": "inSource", "status": "accepted"}
         if finding.reason:
@@ -103,6 +109,9 @@ def sarif_result(
         properties["point"] = finding.point
     if finding.hint:
         properties["hint"] = finding.hint
+    if finding.undecided:
+        properties["decided"] = False
+        properties["severity"] = finding.severity.value
     if plant is not None:
         properties["plant"] = plant
     if properties:
@@ -135,6 +144,27 @@ def rule_overrides(adjustments: Iterable[Adjustment], index: dict[str, int]) -> 
     return out
 
 
+def not_decided_notifications(report: Report, index: dict[str, int]) -> list[dict[str, Any]]:
+    """One ``toolExecutionNotification`` per model that could not be checked and per claim
+    not decided (SARIF 2.1.0, 3.20.21): level ``error`` when it fails the run, ``warning``
+    when ``[undecided] fail = false`` lets it pass."""
+    level = "warning" if report.relaxation is not None else "error"
+    out: list[dict[str, Any]] = []
+    for fr, findings in findings_in_order(report):
+        for f in findings:
+            if not f.undecided or f.waived or baseline_of(f, report) == "fixed":
+                continue
+            physical: dict[str, Any] = {"artifactLocation": artifact_location(fr.path)}
+            region = _region(f.span) if f.span is not None else None
+            if region is not None:
+                physical["region"] = region
+            note: dict[str, Any] = {"level": level, "message": {"text": f.message},
+                                    "locations": [{"physicalLocation": physical}],
+                                    "associatedRule": {"id": f.rule, "index": index[f.rule]}}
+            out.append(note)
+    return out
+
+
 def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str, Any]:
     """The SARIF log as JSON-ready data (what ``render`` writes)."""
     catalogue = catalogue if catalogue is not None else load_catalogue()
@@ -153,8 +183,24 @@ def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str,
     driver = {"name": "plantlint", "version": report.tool_version, "rules": rules}
     run: dict[str, Any] = {"tool": {"driver": driver}, "results": results, "columnKind": "unicodeCodePoints"}
     overrides = rule_overrides(report.adjustments, index)
-    if overrides:
-        run["invocations"] = [{"executionSuccessful": True, "ruleConfigurationOverrides": overrides}]
+    notifications = not_decided_notifications(report, index)
+    if overrides or notifications or report.relaxation is not None:
+        # executionSuccessful: false when the analysis of some model did not complete
+        invocation: dict[str, Any] = {"executionSuccessful": not report.not_checked()}
+        if overrides:
+            invocation["ruleConfigurationOverrides"] = overrides
+        if notifications:
+            invocation["toolExecutionNotifications"] = notifications
+        counts = report.counts()
+        bag: dict[str, Any] = {"outcome": report.outcome(), "notDecided": counts["not_decided"],
+                               "notChecked": counts["not_checked"], "cutShort": counts["cut_short"]}
+        if report.budget:
+            bag["budget"] = report.budget
+        if report.relaxation is not None:
+            bag["undecided"] = {"fail": False, "reason": report.relaxation.reason,
+                                "source": report.relaxation.source}
+        invocation["properties"] = bag
+        run["invocations"] = [invocation]
     if report.since is not None:
         run["properties"] = {"since": report.since}
         changes = {f.path: [dict(c) for c in f.structure_changes] for f in report.files if f.structure_changes}

@@ -27,6 +27,8 @@ from plantlint.report.formats.base import (
     change_text,
     findings_in_order,
     one_line,
+    relaxation_text,
+    undecided_phrase,
 )
 
 DEFAULT_WIDTH = 100
@@ -140,11 +142,13 @@ def _counts_phrase(counts: dict[str, int]) -> str:
         f"{counts[key]} {label if counts[key] == 1 else label + 's'}"
         for key, label in (("errors", "error"), ("warnings", "warning"), ("notes", "note"))
     ]
-    return ", ".join(parts) + f", {counts['waived']} waived"
+    return ", ".join(parts) + f", {counts['waived']} waived" + (
+        f", {counts['not_decided']} not decided" if counts.get("not_decided") else "")
 
 
 def _file_counts(file_report: FileReport, report: Report) -> dict[str, int]:
-    single = Report(files=[file_report], tool_version=report.tool_version, fail_on=report.fail_on, since=report.since)
+    single = Report(files=[file_report], tool_version=report.tool_version, fail_on=report.fail_on, since=report.since,
+                    relaxation=report.relaxation, budget=report.budget)
     return single.counts()
 
 
@@ -165,6 +169,9 @@ class TextFormatter:
         current = [f for f in findings if baseline_of(f, report) != "fixed"]
         fixed = [f for f in findings if baseline_of(f, report) == "fixed"]
         changes = list(file_report.structure_changes)
+        if file_report.stop is not None:
+            heading.append(f"  could not be checked: the analysis {one_line(file_report.stop.detail)}",
+                           style="bold yellow")
         if not current and not fixed and not changes:
             heading.append("  no findings", style="green")
             console.print(heading, soft_wrap=True)
@@ -183,7 +190,8 @@ class TextFormatter:
             line.append(f"{change_text(change)}  (since {report.since})")
             console.print(line, soft_wrap=True)
         console.print(Text(f"  {_counts_phrase(_file_counts(file_report, report))}", style=_DIM), soft_wrap=True)
-        if file_report.analysis is None and any(f.severity.value == "error" and not f.waived for f in current):
+        if file_report.analysis is None and file_report.stop is None and any(
+                f.severity.value == "error" and not f.waived for f in current):
             console.print(Text("  the structure was not analysed: fix the errors above first", style=_DIM),
                           soft_wrap=True)
         console.print()
@@ -200,6 +208,9 @@ class TextFormatter:
             head.append(f"  ({baseline})", style="italic " + dim if dim else "italic")  # the same word in every format
         if finding.waived:
             head.append("  waived", style="magenta")
+        if finding.undecided:
+            head.append("  not decided" + (", allowed by the configuration" if report.relaxation else ""),
+                        style="yellow")
         console.print(head, soft_wrap=True)
         _indented(console, Text(one_line(finding.message), style=dim))
         shown = excerpt(file_report.source, finding.span)
@@ -238,6 +249,12 @@ class TextFormatter:
                 ),
                 soft_wrap=True,
             )
+        undecided = undecided_phrase(report)
+        if undecided:
+            console.print(Text(f"not decided: {undecided}", style="bold yellow"), soft_wrap=True)
+        relaxed = relaxation_text(report)
+        if relaxed:
+            console.print(Text(relaxed, style="magenta"), soft_wrap=True)
         if report.adjustments:
             console.print(Text("settings that change what is reported:", style="bold"), soft_wrap=True)
             for adjustment in report.adjustments:
@@ -256,13 +273,21 @@ def verdict(report: Report) -> Text:
     failing = len(report.failing())
     level = report.fail_on.value
     scope = f" introduced since {one_line(report.since)}" if report.since is not None else ""
+    undecided = undecided_phrase(report)
     if failing:
         noun = "finding" if failing == 1 else "findings"
         text = Text("FAILED", style="bold red")
         text.append(f": {failing} unwaived {noun} at or above {level}{scope}")
+        if undecided:
+            text.append(f"; also not decided: {undecided}")
+    elif undecided and report.relaxation is None:
+        text = Text("NOT DECIDED", style="bold yellow")
+        text.append(f": {undecided}; the run fails (no defect found, but not everything could be checked)")
     else:
         text = Text("PASSED", style="bold green")
         text.append(f": no unwaived finding at or above {level}{scope}")
+        if undecided:
+            text.append(f"; not decided but allowed by the configuration: {undecided}")
     return text
 
 

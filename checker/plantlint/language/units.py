@@ -99,14 +99,24 @@ class Unit:
         return self.same_dimension(other) and self.same_scale(other)
 
     def base_text(self) -> str:
-        """In SI base units, with the scale in front when it is not 1: ``kg*m/s^2``, ``0.001 m^3``."""
-        pos = [_power_text(_symbol(d), e) for d, e in self.dims if e > 0]
-        neg = [_power_text(_symbol(d), -e) for d, e in self.dims if e < 0]
+        """In SI base units, with the scale in front when it is not 1: ``kg*m/s^2``,
+        ``0.001 m^3``; a scale that is a unit of time to the time exponent is shown as
+        that unit (``K/min``, not ``0.0166667 K/s``)."""
+        time = dict(self.dims).get(TIME)
+        symbols = dict(BASE_SYMBOLS)
+        factor = self.factor
+        if time and not self.same_scale(ONE):
+            for symbol, seconds in (("min", 60.0), ("h", 3600.0), ("d", 86400.0), ("ms", 1e-3)):
+                if math.isclose(factor, seconds ** float(time), rel_tol=1e-9):
+                    symbols[TIME], factor = symbol, 1.0
+                    break
+        pos = [_power_text(symbols.get(d, _symbol(d)), e) for d, e in self.dims if e > 0]
+        neg = [_power_text(symbols.get(d, _symbol(d)), -e) for d, e in self.dims if e < 0]
         text = "*".join(pos) or "1"
         if neg:
             text += "/" + (neg[0] if len(neg) == 1 else "(" + "*".join(neg) + ")")
-        if not self.same_scale(ONE):
-            return f"{self.factor:.6g} {text}" if pos or neg else f"{self.factor:.6g}"
+        if not math.isclose(factor, 1.0, rel_tol=1e-9):
+            return f"{factor:.6g} {text}" if pos or neg else f"{factor:.6g}"
         return text
 
     def show(self) -> str:

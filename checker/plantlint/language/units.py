@@ -18,11 +18,12 @@ plain numbers, so ``x [m] + y [mm]`` adds metres to millimetres. A name without
 a unit has an unknown dimension and every check that involves it is skipped
 (never guessed). A number written in the model is a coefficient in products
 and takes the unit of the other terms in a sum (``1 - (w/w_max)^2``, ``h - 0.5``).
-Operating-point values are not checked (they are commonly written with the
-operating values inline).
+A model whose declared units are all dimensionless is taken as non-dimensionalised
+(time included): its rates are not held to a unit of time. Operating-point values
+are not checked (they are commonly written with the operating values inline).
 
 Unit text is first read by the small grammar below (names, ``*``, ``/``, ``^``
-with whole or ``(p/q)`` exponents, parentheses, ``1``); only single names that
+with exponents such as ``2``, ``-1``, ``2.5``, ``(1/2)``, parentheses, ``1``); only single names that
 passed it are handed to pint, whose registry resolves prefixes, plurals and
 aliases. The algebra is exact and done here. pint is imported only when a
 model declares a unit other than ``[1]``.

@@ -20,7 +20,7 @@ import sympy as sp
 
 import plantlint.analysis.engine as engine
 from plantlint.analysis.equilibria import solve_point
-from plantlint.analysis.linearisation import Linearisation, cross_check, linearisation_json, linearise_at
+from plantlint.analysis.linearisation import Linearisation, cross_check, linearise_at
 from plantlint.analysis.zero_dynamics import ZeroDynamics
 from plantlint.core.catalogue import load_catalogue
 from plantlint.core.findings import Severity
@@ -450,3 +450,19 @@ def test_explain_shows_the_linearisation() -> None:
     assert "linearisation (nominal parameter values, exact)" in text
     assert "transmission zeros: -14.0071, 14.0071" in text
     assert "cross-check with the zero dynamics: agrees" in text
+
+
+def test_check_json_carries_the_linearisation_and_validates() -> None:
+    # the whole `plantlint check --format json` report against the shipped schema
+    import subprocess
+    import sys
+
+    run = subprocess.run([sys.executable, "-m", "plantlint", "check", "--no-cache", "--format", "json",
+                          str(FIXTURES / "pvtol.plant")], capture_output=True, text=True, timeout=300)
+    data = json.loads(run.stdout)
+    jsonschema.Draft202012Validator(report_schema()).validate(data)
+    lin = data["files"][0]["analysis"]["points"]["hover"]["linearisation"]
+    assert lin["exact"] and lin["zero_polynomial"] == "s^2 - 981/5"
+    assert lin["A"][1][4] == -9.81 and lin["D"] == [[0.0, 0.0], [0.0, 0.0]]
+    assert lin["cross_check"]["status"] == "agrees"
+

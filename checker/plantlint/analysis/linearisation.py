@@ -27,7 +27,7 @@ inconsistency of the checker.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from math import gcd, lcm
 from typing import Sequence
@@ -140,8 +140,6 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
 
 
 def _with(lin: Linearisation, **changes: object) -> Linearisation:
-    from dataclasses import replace
-
     return replace(lin, **changes)  # type: ignore[arg-type]
 
 

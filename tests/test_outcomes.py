@@ -405,3 +405,11 @@ def test_claims_of_a_model_not_read_are_found_as_the_parser_finds_them() -> None
     assert [f.message for f in found] == ["`expect relative_degree(y) = 2` not decided", "`expect regular` not decided",
                                           "`expect minimum_phase` not decided",
                                           "`expect relative_degree(y) = 2 at high` not decided"]
+
+
+def test_markdown_summary_counts_models_and_claims_not_decided(lift: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    report = _stopped_report(lift, monkeypatch)
+    text = _render(report, "markdown")
+    assert "### plantlint — FAILED" in text
+    assert ("**Not decided: 1 model could not be checked (1 cut short; budget 2 s per model, set explicitly), "
+            "2 claims not decided.**") in text

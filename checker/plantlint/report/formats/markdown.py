@@ -17,7 +17,7 @@ from __future__ import annotations
 from typing import Any, TextIO
 
 from plantlint.core.findings import FileReport, Finding, Report
-from plantlint.report.formats.base import adjustment_text, baseline_of, findings_in_order, one_line
+from plantlint.report.formats.base import adjustment_text, baseline_of, findings_in_order, one_line, undecided_phrase
 
 LONG = 6  # longer lists are collapsed
 _SPECIAL = set("\\`*[]|")  # always escaped; parentheses are harmless once brackets are
@@ -158,7 +158,7 @@ def render_markdown(report: Report) -> str:
                 f"{len(changed)} changed; findings introduced {introduced}, fixed {fixed}, known {known}.")
         if failed and new_failing:
             line += f" **{_plural(new_failing, 'introduced finding')} at or above {report.fail_on.value} fail the check.**"
-        out += [line + _undecided_note(counts), ""]
+        out += [line + _undecided_note(report), ""]
         out += _settings(report)
         if not changed:
             out += ["No model changed its structure or its findings.", ""]
@@ -186,7 +186,7 @@ def render_markdown(report: Report) -> str:
     tally = ", ".join(_plural(counts.get(k, 0), w) for k, w in
                       (("errors", "error"), ("warnings", "warning"), ("notes", "note")))
     out += [f"{_plural(len(report.files), 'model')} checked: {tally}, {counts.get('waived', 0)} waived "
-            f"(fail level: {report.fail_on.value}).{_undecided_note(counts)}", ""]
+            f"(fail level: {report.fail_on.value}).{_undecided_note(report)}", ""]
     out += _settings(report)
     if not with_findings:
         out += ["No findings.", ""]
@@ -216,13 +216,11 @@ def _settings(report: Report) -> list[str]:
     return ["Settings in force:", "", *lines, ""] if lines else []
 
 
-def _undecided_note(counts: dict[str, int]) -> str:
-    parts = []
-    if counts.get("not_decided"):
-        parts.append(_plural(counts["not_decided"], "claim") + " not decided")
-    if counts.get("not_checked"):
-        parts.append(_plural(counts["not_checked"], "model") + " not checked")
-    return (" " + "; ".join(parts) + ".") if parts else ""
+def _undecided_note(report: Report) -> str:
+    """The models that could not be checked and the claims not decided (they fail the run
+    unless [undecided] fail = false lets them pass)."""
+    phrase = undecided_phrase(report)
+    return f" **Not decided: {text(phrase)}.**" if phrase else ""
 
 
 class MarkdownFormatter:

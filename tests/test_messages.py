@@ -132,3 +132,17 @@ def test_huge_literal_is_cut_in_messages() -> None:
     (f,) = findings("plant p\nstate x in -1 .. 1\ninput u\nrate x = 2^1000^1000 + u\noutput y = x\n")
     assert f.rule == "syntax" and len(f.message) < 120
     assert "(3001 digits)" in f.message  # 1000^1000 = 10^3000 has 3,001 digits
+
+
+def test_huge_exact_values_are_cut_in_model_messages() -> None:
+    from plantlint.run.config import Config
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = (b"plant p\nstate x in -1 .. 1\ninput u\nrate x = -x + k*u\noutput y = x\n"
+            b"param k = 3^600 in 1 .. 2\npoint big: x = 2^1000\n")
+    found = analyse_bytes(text, Config()).findings
+    by_rule = {f.rule: f.message for f in found}
+    # 2^1000 = 1.07151e301 has 302 digits; 3^600 = 1.87393e286 has 287 (Python's own integers)
+    assert f"~1.07151e301 (an integer of {len(str(2**1000))} digits)" in by_rule["point-outside-envelope"]
+    assert f"~1.87393e286 (an integer of {len(str(3**600))} digits)" in by_rule["bad-range"]
+    assert all(len(f.message) < 200 for f in found)

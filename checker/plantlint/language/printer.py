@@ -26,6 +26,8 @@ def show_expr(expr: sp.Expr, limit: int = 120) -> str:
         decimal = _decimal(expr)
         if decimal is not None:
             return decimal
+    if expr.is_Rational and len(str(expr)) > LONG_NUMBER:
+        return show_number(expr)
     text = _PRINTER.doprint(expr).replace("**", "^")
     if len(text) > limit:
         ops = sp.count_ops(expr)
@@ -41,6 +43,8 @@ def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = Fa
     rounded residual from an exact one.
     """
     if isinstance(value, sp.Basic):
+        if value.is_Integer and len(str(value)) > LONG_NUMBER:
+            return _long(value)
         if value.is_Integer:
             return str(value)
         if value.is_Rational:
@@ -55,6 +59,23 @@ def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = Fa
             return show_expr(value)
         return ("~" if mark_inexact else "") + f"{value:.{digits}g}"
     return f"{value:.{digits}g}"
+
+
+#: Exact numbers longer than this many characters are shown rounded, with their length.
+LONG_NUMBER = 24
+
+
+def _long(value: sp.Rational) -> str:
+    """A huge exact number in a readable form: ``~1.07151e+301 (an integer of 302 digits)``."""
+    text = str(abs(int(value.p)))
+    if not value.is_Integer:
+        return show_number(sp.Float(value, 15))
+    sign = "-" if value < 0 else ""
+    exponent = len(text) - 1
+    mantissa = int(text) / 10**exponent  # exact integer division to the nearest float in [1, 10]
+    if round(mantissa, 5) >= 10:
+        mantissa, exponent = mantissa / 10, exponent + 1
+    return f"~{sign}{mantissa:.5f}e{exponent} (an integer of {len(text)} digits)"
 
 
 def show_point(values: dict[str, float] | dict[str, sp.Expr], digits: int = 6) -> str:

@@ -670,8 +670,10 @@ def cross_check(lin: Linearisation, zd: ZeroDynamics | None) -> CrossCheck:
                                        f"eigenvalues {show_eigenvalues(theirs) or 'none'}")
     if not ours:
         return CrossCheck("agrees", "no transmission zeros and no zero dynamics (total relative degree n)")
-    return CrossCheck("agrees", f"the {len(ours)} transmission zero(s) equal the zero-dynamics eigenvalues "
-                                f"(relative tolerance {CROSS_CHECK_TOLERANCE:g})")
+    plural = "s" if len(ours) > 1 else ""
+    return CrossCheck("agrees", f"transmission zero{plural} {show_eigenvalues(ours)} = zero-dynamics "
+                                f"eigenvalue{plural} {show_eigenvalues(theirs)} (relative tolerance "
+                                f"{CROSS_CHECK_TOLERANCE:g})")
 
 
 def _same_multiset(a: list[complex], b: list[complex], tol: float) -> bool:

@@ -620,7 +620,14 @@ def distributions_at(
     inside_at_point: bool | None = None
     witness: dict[str, float] | None = None
     if structure.failure is not None and structure.failure.bracket:
-        inside_at_point, witness = _involutivity_witness(kernel, structure.failure, values)
+        try:  # the witness only illustrates the verdict (made generically): bounded, dropped with a note
+            with within(MESSAGE_SECONDS) as step:
+                inside_at_point, witness = _involutivity_witness(kernel, structure.failure, values)
+        except TimeUp as exc:
+            if not expired(exc, step):
+                raise
+            notes.append(f"no point near {name} where the bracket leaves the distribution was worked out "
+                         f"within {MESSAGE_SECONDS:g} s")
     findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
 
     searched = m == 1 and linearizable and structure.outputs is not None

@@ -271,6 +271,7 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     from dataclasses import replace
 
     from plantlint.analysis.refine import near_miss
+    from plantlint.core.deadline import TimeUp, expired, within
 
     missed = [f for f in eq.findings if f.rule in ("point-not-equilibrium", "point-incomplete")]
     if eq.equilibrium or not missed:
@@ -278,10 +279,16 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     others = tuple(f for f in eq.findings if f not in missed)
     written = {s: v for s, v in given.items() if s in plant.states or s in plant.inputs}
     unknown = [u for u in plant.inputs if u not in given]
+    late = False
     try:
-        miss = near_miss(plant, written, unknown)
+        with within(REFINE_SECONDS) as step:
+            miss = near_miss(plant, written, unknown)
     except (ArithmeticError, ValueError, TypeError):  # a refinement is advice: the finding stands without it
         miss = None
+    except TimeUp as exc:  # bounded: without it the point stays not an equilibrium
+        if not expired(exc, step):
+            raise
+        miss, late = None, True
     values: dict[sp.Symbol, sp.Expr] | None = None
     exact = False
     if miss is not None and miss.candidates:
@@ -328,9 +335,15 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
                      f"(or point-tolerance in plantlint.toml)")
     elif miss is not None and miss.values is None:
         message += "; no equilibrium was found near it by changing the values written"
+    elif late:
+        message += f"; the equilibrium near it was not worked out within {REFINE_SECONDS:g} s"
     finding = Finding("point-not-equilibrium", Severity.ERROR, message, point=name, anchor=f"point {name}",
                       hint=hint)
     return replace(eq, findings=(*others, finding), refinement={**refinement, "refined": False})
+
+
+#: Wall-clock bound of the search for the equilibrium near a point that misses one.
+REFINE_SECONDS = 3.0
 
 
 def _shown(value: sp.Expr, exact: bool) -> str:

@@ -52,8 +52,8 @@ def _rules(findings: list) -> list[str]:
 
 
 def _undecided(f: object) -> bool:
-    """A claim reported as not decided (rather than as failing)."""
-    return "not decided" in f.message  # type: ignore[attr-defined]
+    """A claim reported as not decided (its own outcome, rather than a defect found)."""
+    return bool(f.undecided) and "not decided" in f.message  # type: ignore[attr-defined]
 
 
 # -- the quadruple tank -----------------------------------------------------------------------

@@ -416,8 +416,8 @@ def _box_failure(pa: PointAnalysis, prop: str, key: str | None = None) -> list[t
     found = claim_failure(pa.parametric, prop, key)
     if found is None:
         return []
-    message, _decided = found
-    return [(pa.name, message)]
+    message, decided = found
+    return [(pa.name, message if decided else Undecided(message))]
 
 
 def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:

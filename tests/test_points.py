@@ -139,6 +139,16 @@ def test_tolerance_in_the_file_runs_the_analysis_at_the_refined_equilibrium() ->
     assert "point-not-equilibrium" in [f.rule for f in tight.findings]
 
 
+def test_explain_says_the_point_was_refined(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    from plantlint.cli import main
+
+    model = tmp_path / "maglev.plant"
+    model.write_bytes(MAGLEV.replace(b"i = 0.7004", b"i = 0.7004 tolerance 1e-3"))
+    main(["explain", str(model)])
+    out = capsys.readouterr().out
+    assert "equilibrium: yes, refined from the written values" in out
+
+
 def test_tolerance_in_the_configuration_and_the_point_taking_precedence() -> None:
     raw = analyse_bytes(MAGLEV, replace(Config(), point_tolerance=1e-3))
     assert "point-tolerance in the configuration" in _one(raw, "point-refined").message

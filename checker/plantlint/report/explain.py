@@ -317,7 +317,11 @@ def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
         values = ", ".join(f"{k} = {v}" for k, v in p["values"].items())
         solved = f" (solved for {', '.join(p['solved_inputs'])})" if p["solved_inputs"] else ""
         console.print(f"  {values}{solved}")
-        console.print(f"  equilibrium: {'yes' if p['equilibrium'] else 'no (' + p['status'].replace('_', ' ') + ')'}")
+        if p["status"] == "refined":
+            console.print("  equilibrium: yes, refined from the written values within the point's tolerance "
+                          "(see the point-refined note)")
+        else:
+            console.print(f"  equilibrium: {'yes' if p['equilibrium'] else 'no (' + p['status'].replace('_', ' ') + ')'}")
         if "relative_degree" in p:
             rd = ", ".join(f"{k} = {v if v is not None else 'not defined'}" for k, v in p["relative_degree"].items())
             console.print(f"  relative degree here: {rd}; decoupling rank {p['decoupling_rank']}"

@@ -39,6 +39,13 @@ BUDGETS = (
 )
 
 
+def _paragraphs(*texts: str) -> str:
+    """Help text kept in paragraphs (argparse would run them together)."""
+    import textwrap
+
+    return "\n\n".join(textwrap.fill(t, 79) for t in texts)
+
+
 class _Parser(argparse.ArgumentParser):
     """argparse that exits with 2 and one line on usage errors (never a traceback)."""
 
@@ -51,14 +58,15 @@ def build_parser() -> argparse.ArgumentParser:
         prog="plantlint",
         description="Static checks for nonlinear plant models (.plant files): relative degree, "
         "decoupling, regularity over the operating envelope, zero dynamics, involutivity.",
-        epilog=CAUTION + "\n\n" + EXIT_CODES + "\n\n" + BUDGETS,
+        epilog=_paragraphs(CAUTION, EXIT_CODES, BUDGETS),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     top.add_argument("--version", action="version", version=f"plantlint {__version__}")
     sub = top.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
     check = sub.add_parser("check", help="check model files or folders",
-                           epilog=CAUTION + "\n\n" + EXIT_CODES + "\n\n" + BUDGETS,
+                           epilog=_paragraphs(CAUTION, EXIT_CODES, BUDGETS),
+                           formatter_class=argparse.RawDescriptionHelpFormatter,
                            description="Check .plant files (folders are searched for *.plant). Each model "
                            "passes, has a defect found, or is not decided (could not be checked).")
     check.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: the configured root)")

@@ -345,7 +345,8 @@ def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> in
 
 
 def _rules(args: argparse.Namespace) -> int:
-    from plantlint.core.catalogue import load_catalogue, render_rules
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.report.rules_view import render_rules
 
     catalogue = load_catalogue()
     if args.rule and args.rule not in catalogue:

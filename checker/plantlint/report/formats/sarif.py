@@ -12,7 +12,8 @@ import re
 from typing import Any, Iterable, TextIO
 from urllib.parse import quote
 
-from plantlint.core.catalogue import PAGE_SECTIONS, Catalogue, Rule, load_catalogue
+from plantlint.core.catalogue import Catalogue, Rule, load_catalogue
+from plantlint.report.rules_view import PAGE_SECTIONS
 from plantlint.core.findings import Adjustment, Finding, Report, Span
 from plantlint.report.formats.base import baseline_of, findings_in_order
 

@@ -283,6 +283,33 @@ def spring_bank(n: int, m: int) -> ModelSpec:
     return spec
 
 
+def dense_chain(n: int) -> ModelSpec:
+    """n states, every rate coupled to both neighbours through products, quotients and exp;
+    input on the first state, output the last (relative degree n). Each link's
+    derivative d(rate x_i)/d(x_(i-1)) stays positive on the envelope (|x| <= 1/2):
+    (1 + x_(i-1)^2) exp(-x_i^2/4)/(2 + x_(i+1)^2) >= 0.41 beats |b x_(i+1)/(1 + x_i^2)| <= 0.125."""
+    spec = ModelSpec(f"dense_chain_{n}", f"{n} neighbour-coupled states, products, quotients and exp",
+                     "dense_chain", n)
+    spec.constants = [("a", R(1), "1/s"), ("b", R(1, 4), "1/s")]
+    a, b = sym("a"), sym("b")
+    x = [sym(f"x{i + 1}") for i in range(n)]
+    spec.states = [Quantity(f"x{i + 1}", None, R(-1, 2), R(1, 2)) for i in range(n)]
+    spec.inputs = [Quantity("u", None, R(-10), R(10))]
+    for i in range(n):
+        rate = -a * x[i]
+        right = x[i + 1] if i < n - 1 else sp.Integer(0)
+        if i > 0:
+            left = x[i - 1]
+            rate += (left + left**3 / 3) * sp.exp(-x[i] ** 2 / 4) / (2 + right**2) + b * left * right / (1 + x[i] ** 2)
+        else:
+            rate += x[0] * right / (1 + right**2) + (1 + x[0] ** 2 / 4) * sym("u")
+        spec.rates[f"x{i + 1}"] = rate
+    spec.outputs = [("y", None, x[n - 1])]
+    spec.points = [("rest", {s.name: R(0) for s in spec.states})]
+    spec.expects = [f"relative_degree(y) = {n}", "regular", "state_linearizable"]
+    return spec
+
+
 def hovercraft() -> ModelSpec:
     spec = ModelSpec("hovercraft", "Planar hovercraft, surge and sway thrusters and a yaw motor", "vehicle", 3)
     spec.constants = [("mass", R(120), "kg"), ("Jz", R(40), "kg*m^2"), ("du", R(15), "N*s/m"),
@@ -359,6 +386,7 @@ def suite(quick: bool = False) -> list[ModelSpec]:
         lambda: spring_bank(10, 5), lambda: pendulum_bank(10), lambda: spring_bank(12, 6),
     ]
     specs = [b() for b in builders]
+    specs += scaling_suite()
     if quick:
         keep = {"spring_chain_1", "pendulum_arm_1", "spring_chain_2", "pendulum_chain_2", "spring_chain_3",
                 "hovercraft", "pendulum_bank_4", "spring_bank_6_4", "quadrotor", "spring_bank_8_4"}
@@ -366,10 +394,21 @@ def suite(quick: bool = False) -> list[ModelSpec]:
     return specs
 
 
-def write_suite(folder: Path, quick: bool = False) -> list[tuple[ModelSpec, Path]]:
+#: Sizes of the scaling families (issue: growth fitted from n = 2 to 20).
+CHAIN_SIZES = (2, 3, 4, 5, 6, 8, 10, 12, 14, 16, 18, 20)
+DENSE_SIZES = (2, 4, 6, 8, 10, 12, 14, 16)
+
+
+def scaling_suite() -> list[ModelSpec]:
+    """The pendulum chain up to n = 20 (40 states) and the dense chain up to 16 states."""
+    return [pendulum_chain(n) for n in CHAIN_SIZES if n > 3] + [dense_chain(n) for n in DENSE_SIZES]
+
+
+def write_suite(folder: Path, quick: bool = False, specs: list[ModelSpec] | None = None
+                ) -> list[tuple[ModelSpec, Path]]:
     folder.mkdir(parents=True, exist_ok=True)
     out = []
-    for spec in suite(quick):
+    for spec in (specs if specs is not None else suite(quick)):
         path = folder / f"{spec.name}.plant"
         path.write_text(spec.text(), encoding="utf-8")
         out.append((spec, path))

@@ -37,11 +37,17 @@ HERE = Path(__file__).resolve().parent
 REPO = HERE.parent
 RESULTS = HERE / "results"
 sys.path.insert(0, str(HERE))
-from generate import ModelSpec, write_suite  # noqa: E402
+from generate import ModelSpec, quadrotor, scaling_suite, spring_chain, write_suite  # noqa: E402
 
-TARGET_RATIO = 50.0
+TARGET_RATIO = 100.0
 TARGET_12x4_SECONDS = 10.0
 TARGET_VERSION_SECONDS = 0.3
+TARGET_CHAIN6_SECONDS = 1.0
+TARGET_CHAIN20_SECONDS = 10.0
+TARGET_CHAIN20_MB = 200.0
+TARGET_EXPONENT = 3.0
+TARGET_SMALL_SECONDS = 0.5
+TARGET_STARTUP_SECONDS = 0.25
 
 
 @dataclass
@@ -117,13 +123,13 @@ def _findings(report: dict[str, Any]) -> tuple[dict[str, int], bool, dict[str, A
         analysis = file.get("analysis") or {}
         for f in file.get("findings", []):
             counts[f["rule"]] = counts.get(f["rule"], 0) + 1
-    return counts, "analysis-budget" in counts, analysis
+    return counts, "analysis-budget" in counts or "analysis-incomplete" in counts, analysis
 
 
 def _stages(report: dict[str, Any]) -> list[str]:
     for file in report.get("files", []):
         for f in file.get("findings", []):
-            if f["rule"] == "analysis-budget":
+            if f["rule"] in ("analysis-budget", "analysis-incomplete"):
                 text = f["message"].split("completed: ", 1)[-1].split(";")[0]
                 return [s.strip() for s in text.split(",") if s.strip() and s.strip() != "none"]
     return ["all"]
@@ -232,15 +238,43 @@ def trivial_floor(folder: Path, timeout: float) -> float:
     return float(np.median(runs))
 
 
+def _complete(r: Row) -> bool:
+    return not r.budget_hit and r.stages == ["all"] and r.plantlint_exit in (0, 1)
+
+
 def targets(rows: list[Row], fits: dict[str, Any], version: dict[str, float]) -> dict[str, Any]:
     slow = [r for r in rows if r.naive_s is not None and r.naive_s > 10]
     ratio_ok = all((r.ratio or 0) >= TARGET_RATIO for r in slow)
     big = [r for r in rows if r.states == 12 and r.inputs == 4]
     families = {k: v for k, v in fits.items() if isinstance(v, dict) and k != "all generated"}
     stopped = sorted(r.model for r in rows if r.source == "generated" and r.budget_hit)
-    return {
-        "ratio_50x_where_naive_over_10s": {"met": ratio_ok if slow else None,
-                                           "models": {r.model: r.ratio for r in slow}},
+    by_name = {r.model: r for r in rows}
+    chain6, chain20 = by_name.get("pendulum_chain_6"), by_name.get("pendulum_chain_20")
+    small = [r for r in rows if r.source == "example_repo" or r.model == "quadrotor"]
+    two = [r for r in rows if r.model == "spring_chain_1"]
+    chain_fits = {k: f for k, f in families.items() if k in ("pendulum_chain", "dense_chain")}
+    out = {
+        "pendulum_chain_6_complete_under_1s": {
+            "met": bool(chain6) and _complete(chain6) and chain6.plantlint_s < TARGET_CHAIN6_SECONDS
+            and "envelope-unproven" not in chain6.findings if chain6 else None,
+            "seconds": chain6.plantlint_s if chain6 else None, "findings": chain6.findings if chain6 else None},
+        "pendulum_chain_20_under_10s_200MB": {
+            "met": bool(chain20) and _complete(chain20) and chain20.plantlint_s < TARGET_CHAIN20_SECONDS
+            and chain20.plantlint_peak_mb < TARGET_CHAIN20_MB if chain20 else None,
+            "seconds": chain20.plantlint_s if chain20 else None, "peak_mb": chain20.plantlint_peak_mb if chain20 else None},
+        "chain_growth_exponent_at_most_3": {
+            "met": all(f["exponent_net"] <= TARGET_EXPONENT for f in chain_fits.values()) if chain_fits else None,
+            "exponents_net": {k: f["exponent_net"] for k, f in chain_fits.items()},
+            "exponents_raw": {k: f["exponent_raw"] for k, f in chain_fits.items()}},
+        "example_repo_and_quadrotor_under_0.5s": {
+            "met": all(r.plantlint_s < TARGET_SMALL_SECONDS for r in small) if small else None,
+            "models": {r.model: r.plantlint_s for r in small}},
+        "two_state_check_under_0.25s": {
+            "met": all(r.plantlint_s < TARGET_STARTUP_SECONDS for r in two) if two else None,
+            "models": {r.model: r.plantlint_s for r in two}},
+        "ratio_100x_where_naive_over_10s": {"met": ratio_ok if slow else None,
+                                            "models": {r.model: r.ratio for r in slow},
+                                            "naive_capped": {r.model: r.naive_capped for r in slow}},
         "12_state_4_input_under_10s": {"met": bool(big) and all(r.plantlint_s < TARGET_12x4_SECONDS and not r.budget_hit
                                                                  for r in big),
                                        "models": {r.model: r.plantlint_s for r in big}},
@@ -251,6 +285,26 @@ def targets(rows: list[Row], fits: dict[str, Any], version: dict[str, float]) ->
                               "stopped_by_budget": stopped},
         "version_under_0.3s": {"met": version["median_s"] < TARGET_VERSION_SECONDS, **version},
     }
+    return out
+
+
+def check_import_profile(model: Path, top: int = 12) -> list[tuple[str, float]]:
+    """The slowest top-level imports of an in-process `check` of one model."""
+    code = ("import sys; from plantlint.cli import main; "
+            f"sys.argv = ['plantlint', 'check', '--no-cache', '--jobs', '1', {str(model)!r}]\n"
+            "try:\n    main()\nexcept SystemExit:\n    pass")
+    err = measure([sys.executable, "-X", "importtime", "-c", code], cap=120).stderr
+    rows: list[tuple[str, float]] = []
+    for line in err.splitlines():
+        if not line.startswith("import time:") or "cumulative" in line:
+            continue
+        parts = line[len("import time:"):].split("|")
+        if len(parts) == 3 and parts[1].strip().isdigit():
+            name = parts[2].rstrip()
+            depth = len(name) - len(name.lstrip())
+            if depth <= 1:
+                rows.append((name.strip(), int(parts[1]) / 1e6))
+    return sorted(rows, key=lambda r: -r[1])[:top]
 
 
 def markdown(rows: list[Row], fits: dict[str, Any], goals: dict[str, Any], meta: dict[str, Any]) -> str:
@@ -282,11 +336,15 @@ def markdown(rows: list[Row], fits: dict[str, Any], goals: dict[str, Any], meta:
         if isinstance(fit, dict):
             lines.append(f"- {name}: time ~ n^{fit['exponent_net']} (raw {fit['exponent_raw']}); "
                          f"exponential rate {fit['exp_rate_per_state']}/state; better fit: {fit['better_fit']}")
-    lines += ["", "## Targets", ""]
+    lines += ["", "## Targets", "", "| target | verdict | measured |", "|---|---|---|"]
     for name, goal in goals.items():
         met = {True: "met", False: "NOT met", None: "not applicable"}[goal["met"]]
         detail = {k: v for k, v in goal.items() if k != "met"}
-        lines.append(f"- {name}: **{met}** {json.dumps(detail)}")
+        lines.append(f"| {name} | **{met}** | `{json.dumps(detail)}` |")
+    if meta.get("imports"):
+        lines += ["", "## Start-up: slowest imports of `check` on a 2-state model (python -X importtime)", "",
+                  "| module | cumulative s |", "|---|---:|"]
+        lines += [f"| {name} | {seconds:.3f} |" for name, seconds in meta["imports"]]
     return "\n".join(lines) + "\n"
 
 
@@ -327,7 +385,7 @@ def profile(model: Path, limit: float) -> None:
     start = time.perf_counter()
     last = [start]
 
-    def stage(name: str) -> None:
+    def stage(name: str, _snapshot: Any = None) -> None:
         now = time.perf_counter()
         print(f"stage {name:>14}: {now - last[0]:8.2f} s", flush=True)
         last[0] = now
@@ -377,6 +435,9 @@ def main() -> None:
     ap.add_argument("--timeout", type=float, default=120.0, help="plantlint's per-model budget (s)")
     ap.add_argument("--profile", metavar="MODEL", help="profile one model in-process and stop")
     ap.add_argument("--profile-seconds", type=float, default=120.0, help="stop the profile after this long")
+    ap.add_argument("--scaling", action="store_true",
+                    help="only the scaling families (pendulum chain to n = 20, dense chain to 16 states), "
+                         "the 2-state spring chain, the quadrotor and example_repo")
     ap.add_argument("--report-only", action="store_true",
                     help="recompute fits, targets and the table from results/results.json (no measuring)")
     args = ap.parse_args()
@@ -388,7 +449,13 @@ def main() -> None:
         return
     models = RESULTS / "models"
     RESULTS.mkdir(parents=True, exist_ok=True)
-    suite = write_suite(models, args.quick)
+    if args.scaling:
+        from generate import pendulum_chain
+
+        chosen = [spring_chain(1), pendulum_chain(2), pendulum_chain(3), quadrotor(), *scaling_suite()]
+        suite = write_suite(models, specs=chosen)
+    else:
+        suite = write_suite(models, args.quick)
     rows: list[Row] = []
     for spec, path in suite:
         rows.append(bench_model(path, spec, args.cap, args.timeout))
@@ -404,8 +471,11 @@ def main() -> None:
 
     meta = {"date": time.strftime("%Y-%m-%d"), "machine": f"{platform.machine()}, {os.cpu_count()} CPUs",
             "python": platform.python_version(), "version": __version__,
-            "command": "python benchmarks/run.py" + (" --quick" if args.quick else ""),
-            "cap": args.cap, "timeout": args.timeout}
+            "command": "python benchmarks/run.py" + (" --quick" if args.quick else "")
+            + (" --scaling" if args.scaling else "") + (f" --cap {args.cap:g}" if args.cap != 120 else "")
+            + (f" --timeout {args.timeout:g}" if args.timeout != 120 else ""),
+            "cap": args.cap, "timeout": args.timeout,
+            "imports": check_import_profile(models / "spring_chain_1.plant")}
     data = {"meta": meta, "rows": [asdict(r) for r in rows], "growth": fits, "targets": goals}
     write(data, rows)
 

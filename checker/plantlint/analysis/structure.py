@@ -158,7 +158,7 @@ def analyse_structure(kernel: Kernel) -> Structure:
 
 
 def _output_structure(kernel: Kernel, i: int) -> OutputStructure:
-    fast = numeric_output_structure(kernel, i)
+    fast = numeric_output_structure(kernel, i) if kernel.route == "numeric" else None
     if fast is not None:
         return fast
     return _symbolic_output_structure(kernel, i)

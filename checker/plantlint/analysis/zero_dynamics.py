@@ -97,6 +97,61 @@ def zero_dynamics_at(
 
 # -- exact numbers at the point --------------------------------------------------
 def _point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Symbol, sp.Expr]) -> _PointData:
+    fast = _taylor_point_data(kernel, degrees, point)
+    if fast is not None:
+        return fast
+    return _symbolic_point_data(kernel, degrees, point)
+
+
+def _taylor_point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Symbol, sp.Expr]) -> _PointData | None:
+    """The same numbers from Taylor-mode towers in exact rationals (no symbolic tower):
+    b, dXi and db from the flow with unit-vector dual numbers, A and dA from nested
+    duals. None when a value at the point is not rational (sin(1/3)), undefined, or
+    the numeric route is switched off: the symbolic route then computes them."""
+    from plantlint.kernel.taylor import Inexact, QField, Undefined
+
+    if kernel.route != "numeric":
+        return None
+    towers = kernel.towers()
+    vector = kernel.point_vector(point)
+    if towers is None or vector is None:
+        return None
+    plant = kernel.plant
+    n, m, p = plant.n, plant.m, plant.p
+    top = max(degrees)
+    field = QField()
+    try:
+        values, grads = towers.gradients(vector, top, field)
+        decoupling = towers.decoupling_gradients(vector, top - 1, field)
+        f0, G0, _ = towers.values(vector, field)
+    except (Inexact, Undefined, ZeroDivisionError):
+        return None
+
+    def q(v: object) -> sp.Rational:
+        return sp.Rational(int(v.p), int(v.q))  # type: ignore[attr-defined]
+
+    A0 = sp.Matrix([[q(decoupling[j][i][degrees[i] - 1][0]) for j in range(m)] for i in range(p)])
+    dA = [sp.Matrix([[q(decoupling[j][i][degrees[i] - 1][1][k]) for j in range(m)] for i in range(p)])
+          for k in range(n)]
+    at = {s: v for s, v in point.items()}
+    Df0 = kernel.jacobian(plant.f).xreplace(at)
+    DG0 = [kernel.jacobian(plant.g[j]).xreplace(at) for j in range(m)]
+    if not all(e.is_Rational for M in (Df0, *DG0) for e in M):
+        return None
+    return _PointData(
+        f0=sp.Matrix([q(v) for v in f0]),
+        G0=sp.Matrix([[q(G0[j][i]) for j in range(m)] for i in range(n)]),
+        Df0=Df0,
+        DG0=DG0,
+        A0=A0,
+        b0=sp.Matrix([q(values[i][degrees[i]]) for i in range(p)]),
+        dA=dA,
+        db=[sp.Matrix([q(grads[i][degrees[i]][k]) for i in range(p)]) for k in range(n)],
+        dXi=sp.Matrix([[q(v) for v in grads[i][k]] for i in range(p) for k in range(degrees[i])]),
+    )
+
+
+def _symbolic_point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Symbol, sp.Expr]) -> _PointData:
     plant = kernel.plant
     n, m = plant.n, plant.m
 

@@ -66,11 +66,18 @@ class PointValue:
         return float(self.ball.mid())
 
 
+#: "numeric": structural zeros, layered terms and Taylor-mode towers first, symbolic
+#: towers only where those do not decide; "symbolic": the symbolic towers only (kept
+#: as the confirmation route and for comparisons).
+DEFAULT_ROUTE = "numeric"
+
+
 class Kernel:
     """Memoised differential-geometric quantities of one plant."""
 
-    def __init__(self, plant: Plant, seed: int | None = None):
+    def __init__(self, plant: Plant, seed: int | None = None, route: str | None = None):
         self.plant = plant
+        self.route = route or DEFAULT_ROUTE
         self.x = plant.states
         self.f: Vector = plant.f
         self.g: tuple[Vector, ...] = plant.g
@@ -154,7 +161,10 @@ class Kernel:
     def jacobian(self, field: Vector) -> sp.Matrix:
         J = self._jacobians.get(field)
         if J is None:
-            J = sp.Matrix([[sp.diff(Fi, xj) for xj in self.x] for Fi in field])
+            # a derivative along a state the entry does not contain is 0 without asking sympy
+            # (most entries of a large plant's Jacobian: the dependency graph is sparse)
+            J = sp.Matrix([[sp.diff(Fi, xj) if xj in free else sp.Integer(0) for xj in self.x]
+                           for Fi, free in ((Fi, Fi.free_symbols) for Fi in field)])
             self._jacobians[field] = J
         return J
 
@@ -227,7 +237,13 @@ class Kernel:
         Interval enclosures suffer from every repeated occurrence of a variable,
         so certification works on the compact form.
         """
-        if expr.is_Atom or sp.count_ops(expr) > COMPACT_OPS_LIMIT:
+        if expr.is_Atom:
+            return expr
+        if expr.is_Mul and len(expr.args) > 2 and _has_functions(expr):
+            # a product (a chain's layered decoupling term) stays a product: compacting
+            # factor by factor never multiplies the factors out
+            return sp.Mul(*(self.compact(a) for a in expr.args))
+        if sp.count_ops(expr) > COMPACT_OPS_LIMIT:
             return expr
         cached = self._compact.get(expr)
         if cached is None:

@@ -612,15 +612,19 @@ class Towers:
         self.f_nodes, self.g_nodes, self.h_nodes = list(f), [list(c) for c in g], list(h)
 
     # -- one flow ------------------------------------------------------------------------
-    def flow(self, point: Sequence[Any], order: int, field: Any, directions: Sequence[Sequence[Any]] | None = None
-             ) -> list[list[Any]]:
+    def flow(self, point: Sequence[Any], order: int, field: Any, directions: Sequence[Sequence[Any]] | None = None,
+             start: Sequence[Any] | None = None) -> list[list[Any]]:
         """Series (coefficients 0..order) of every program output along the flow of f
-        from ``point`` (states then parameters), optionally moved by e * direction."""
+        from ``point`` (states then parameters), optionally moved by e * direction;
+        ``start`` gives the starting numbers (jets of any kind) directly."""
         old = flint.ctx.prec
         if isinstance(field, ArbField):
             flint.ctx.prec = field.prec
         try:
-            start = [field.number(v) for v in point]
+            if start is None:
+                start = [field.number(v) for v in point]
+            else:
+                start = list(start)
             if directions is not None:
                 zero = field.const(Fraction(0))
                 q = len(directions)
@@ -688,6 +692,42 @@ class Towers:
         """(L_f^k h_i(x0), dL_f^k h_i(x0) as n-vectors) for k <= order."""
         unit = [[1 if a == b else 0 for b in range(self.n)] for a in range(self.n)]
         return self.directional(point, order, field, unit)
+
+    def decoupling_gradients(self, point: Sequence[Any], order: int, field: Any
+                             ) -> list[list[list[tuple[Any, list[Any]]]]]:
+        """[j][i][k] = (L_gj L_f^k h_i(x0), its gradient) for k <= order, by nested
+        dual numbers: the flow from x0 + e.a + d g_j(x0 + e.a) (d^2 = e_a e_b = 0)
+        carries d(dL_f^k h . g_j)/dx_a in its d e_a parts. Second-order information
+        without a symbolic tower (the zero-dynamics Jacobian needs it)."""
+        n = self.n
+        unit = [[1 if a == b else 0 for b in range(n)] for a in range(n)]
+        at_jets = self.flow(point, 0, field, unit)  # g_j(x0 + e.a) as jets
+        out = []
+        for j in range(self.m):
+            start: list[Any] = []
+            for i, v in enumerate(point):
+                if i < n:
+                    x = Jet(field.number(v), [field.number(unit[a][i]) for a in range(n)])
+                    gj = at_jets[n + j * n + i][0]
+                    start.append(Dual(x, gj if isinstance(gj, Jet) else Jet(gj, [field.const(Fraction(0))] * n)))
+                else:
+                    start.append(field.number(v))
+            s = self.flow(point, order, field, start=start)
+            rows = []
+            for i in range(self.p):
+                ser = self._out(s, "h", i)
+                entries = []
+                for k, c in enumerate(ser):
+                    d = c.d if isinstance(c, Dual) else None
+                    if isinstance(d, Jet):
+                        entries.append((d.v * factorial(k), [t * factorial(k) for t in d.d]))
+                    else:
+                        zero = field.const(Fraction(0))
+                        value = d * factorial(k) if d is not None else zero
+                        entries.append((value, [zero] * n))
+                rows.append(entries)
+            out.append(rows)
+        return out
 
     def brackets(self, point: Sequence[Any], order: int, field: Any) -> list[list[list[Any]]]:
         """[j][k] = ad_f^k g_j(x0) (n-vectors) for k <= order, from w(t) = M(t)^-1 g(x(t))."""

@@ -215,3 +215,61 @@ def test_tight_enclosures_on_wide_intervals(name: str, fn: object) -> None:
     assert float(cos.lower().mid()) == pytest.approx(math.cos(1), abs=1e-8)
     assert float(cos.upper().mid()) == pytest.approx(math.cos(0.5), abs=1e-8)
     assert not _ball_unary("tan", arb(1).union(arb(2))).is_finite()  # a pole inside: no enclosure
+
+
+def _chain_text(n: int) -> str:
+    """Spring-coupled pendulums (invented numbers, as in benchmarks/generate.py)."""
+    lines = [f"plant chain{n}", "const k = 40", "const J = 0.25", "const c = 0.3", "const mgl = 4.905"]
+    lines += [f"state q{i} in -1/2 .. 1/2" for i in range(1, n + 1)]
+    lines += [f"state w{i} in -3 .. 3" for i in range(1, n + 1)]
+    lines.append("input tau in -50 .. 50")
+    for i in range(1, n + 1):
+        torque = f"-mgl*sin(q{i}) - c*w{i}"
+        if i > 1:
+            torque += f" - k*sin(q{i} - q{i - 1})"
+        if i < n:
+            torque += f" + k*sin(q{i + 1} - q{i})"
+        if i == 1:
+            torque += " + tau"
+        lines += [f"rate q{i} = w{i}", f"rate w{i} = ({torque})/J"]
+    lines += [f"output tip = q{n}", "point hang: " + ", ".join(f"{s}{i} = 0" for s in "qw" for i in range(1, n + 1))]
+    return "\n".join(lines) + "\n"
+
+
+def test_eight_state_chain_is_proven_regular_factor_by_factor() -> None:
+    """4 pendulums: L_g L_f^7 tip = (1/J) (k/J)^3 prod cos(q_i - q_(i+1)) (chain rule, by hand),
+    positive on the envelope since |q_i - q_(i+1)| <= 1 < pi/2; its minimum there is
+    4 * 160^3 * cos(1)^3 (math.cos), so a certified margin lies in (0, that]."""
+    from plantlint.kernel.lie import Kernel
+    from plantlint.analysis.structure import analyse_structure, certify_envelope
+    from plantlint.run.pipeline import read_model
+
+    model, _ = read_model(_chain_text(4).encode())
+    kernel = Kernel(model.plant())
+    structure = analyse_structure(kernel)
+    assert structure.relative_degree == {"tip": 8}
+    env = certify_envelope(kernel, structure)
+    assert env.regular is True
+    assert 0 < env.margin <= 4 * 160**3 * math.cos(1) ** 3 * (1 + 1e-9)
+    assert kernel._lf.get((0, 7)) is None  # the tower L_f^7 tip was never formed
+
+
+def test_cancellation_at_the_structural_index_falls_back_to_the_symbolic_route() -> None:
+    """g reaches x2 and x3, h = x1 reads both through x2 - x3: the layered term at the
+    structural index is 1 - 1 = 0, so the relative degree is 3, not 2 (plain sympy towers)."""
+    from plantlint.kernel.lie import Kernel
+    from plantlint.kernel.plant import Plant
+    from plantlint.analysis.structure import analyse_structure
+
+    u = sp.Symbol("u")
+    f = [x2 - x3, x1**2, -x2]
+    g = [0, 1, 1]
+    kernel = Kernel(Plant.from_matrices("cancel", X, [u], f, [g], [x1]))
+    phi, expected = x1, None
+    for k in range(3):
+        if sp.expand(_lie(phi, g, X)) != 0:
+            expected = k + 1
+            break
+        phi = _lie(phi, f, X)
+    assert expected == 3
+    assert analyse_structure(kernel).relative_degree == {"y1": 3}

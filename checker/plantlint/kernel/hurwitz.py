@@ -22,6 +22,7 @@ import sympy as sp
 
 from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Bound, Budget, EnvelopeVerdict, certify_sign
+from plantlint.kernel.plant import as_expr
 
 
 @dataclass(frozen=True)
@@ -38,7 +39,7 @@ def hurwitz_matrix(coeffs: Sequence[sp.Expr]) -> sp.Matrix:
     d = len(coeffs) - 1
 
     def c(k: int) -> sp.Expr:
-        return sp.sympify(coeffs[k]) if 0 <= k <= d else sp.Integer(0)
+        return as_expr(coeffs[k]) if 0 <= k <= d else sp.Integer(0)
 
     return sp.Matrix(d, d, lambda i, j: c(2 * (j + 1) - (i + 1)))
 
@@ -58,10 +59,10 @@ def lienard_chipart(coeffs: Sequence[sp.Expr]) -> list[Condition]:
     already a coefficient condition).
     """
     d = len(coeffs) - 1
-    out = [Condition("the constant coefficient" if d > 0 else "the leading coefficient", sp.sympify(coeffs[d]))]
+    out = [Condition("the constant coefficient" if d > 0 else "the leading coefficient", as_expr(coeffs[d]))]
     for k in range(d - 1, 0, -1):
         out.append(Condition(f"the coefficient of s^{d - k}" if d - k > 1 else "the coefficient of s",
-                             sp.sympify(coeffs[k])))
+                             as_expr(coeffs[k])))
     for k in range(d - 1, 1, -2):
         out.append(Condition(f"the Hurwitz determinant Delta_{k}", hurwitz_determinant(coeffs, k)))
     return out

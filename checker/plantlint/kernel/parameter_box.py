@@ -32,6 +32,7 @@ from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_sign
 from plantlint.kernel.lie import Kernel, random_samples
+from plantlint.kernel.plant import as_expr
 
 #: Expressions larger than this (operations) are not brought over a common denominator.
 TIDY_OPS = 1500
@@ -81,7 +82,7 @@ class ParameterBox:
     def tidy(self, e: sp.Expr) -> sp.Expr:
         """Absolute values resolved by certified signs, then a common denominator when
         the expression is a rational function of p (with numeric radicals)."""
-        e = self.resolve_signs(factor_radicands(sp.sympify(e)))
+        e = self.resolve_signs(factor_radicands(as_expr(e)))
         if e.is_Number or sp.count_ops(e) > TIDY_OPS or has_symbolic_functions(e):
             return e
         try:

@@ -32,6 +32,7 @@ from plantlint.analysis.parametric import (
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.lie import Kernel
 from plantlint.language.model import ClaimDecl, Model
+from plantlint.language.printer import show_point
 from plantlint.analysis.normal_form import NormalForm, normal_form_at, normal_form_json, xi_name
 from plantlint.analysis.structure import (
     Envelope,
@@ -399,7 +400,7 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
             out.append((None, Undecided("regularity over the envelope could not be proven within its budget "
                                         "(see the envelope-unproven finding)")))
         elif env.regular is False:
-            where = ", ".join(f"{k} = {v:.6g}" for k, v in (env.witness or {}).items())
+            where = show_point(env.witness or {})
             out.append((None, "the relative degree is not well defined everywhere in the envelope"
                               + (f" (singular at {where})" if where else "")))
     for pa in _points_for(a, c):

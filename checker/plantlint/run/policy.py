@@ -66,8 +66,3 @@ def matching_waiver(finding: Finding, waivers: Iterable[Waiver]) -> Waiver | Non
         if w.point is None or w.point == finding.point:
             return w
     return None
-
-
-def exit_code(failing: int) -> int:
-    """0 when nothing fails the run, 1 otherwise (2 is for usage errors)."""
-    return 1 if failing else 0

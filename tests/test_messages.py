@@ -9,7 +9,7 @@ from pathlib import Path
 
 import pytest
 
-from plantlint.language import syntax
+from plantlint.core import limits
 from plantlint.language.syntax import parse_text, parser
 from plantlint.run.pipeline import read_model
 
@@ -100,21 +100,25 @@ def test_documented_limits_are_the_codes_limits() -> None:
     def row(start: str) -> str:
         return next(v for k, v in rows.items() if k.startswith(start))
 
-    assert f"{syntax.MAX_BYTES:,} bytes" in row("file size")
-    assert f"{syntax.MAX_TOKENS:,}" in row("tokens per file")
-    assert f"{syntax.MAX_STATEMENTS:,}" in row("statements")
-    assert f"{syntax.MAX_DEPTH}" in row("parentheses")
-    assert f"{syntax.MAX_NAME}" in row("characters in a name")
-    assert f"{syntax.MAX_LITERAL_DIGITS}" in row("digits") and f"±{syntax.MAX_LITERAL_EXP10}" in row("digits")
-    assert f"{syntax.MAX_EXPONENT:,}" in row("a number's exponent")
-    assert f"{syntax.MAX_POWER_BITS:,} bits" in row("a power of a number")
+    assert f"{limits.MAX_BYTES:,} bytes" in row("file size")
+    assert f"{limits.MAX_TOKENS:,}" in row("tokens per file")
+    assert f"{limits.MAX_STATEMENTS:,}" in row("statements")
+    assert f"{limits.MAX_DEPTH}" in row("parentheses")
+    assert f"{limits.MAX_NAME}" in row("characters in a name")
+    assert f"{limits.MAX_LITERAL_DIGITS}" in row("digits") and f"±{limits.MAX_LITERAL_EXP10}" in row("digits")
+    assert f"{limits.MAX_EXPONENT:,}" in row("a number's exponent")
+    assert f"{limits.MAX_POWER_BITS:,} bits" in row("a power of a number")
+    unit = row("a unit text")
+    assert f"{limits.MAX_UNIT_TEXT} characters" in unit and f"unit name {limits.MAX_UNIT_NAME} characters" in unit
+    assert f"nested {limits.MAX_UNIT_DEPTH} deep" in unit and f"at most {limits.MAX_UNIT_EXPONENT} in size" in unit
+    assert f"denominators up to {limits.MAX_UNIT_EXPONENT}" in unit
     # and both counting limits really stop a file, each with its own message
-    many_tokens = "plant p\n" + "let a = " + " + ".join(["1"] * (syntax.MAX_TOKENS // 2 + 1)) + "\n"
+    many_tokens = "plant p\n" + "let a = " + " + ".join(["1"] * (limits.MAX_TOKENS // 2 + 1)) + "\n"
     (f,) = parse_text(many_tokens).findings
-    assert f"more than {syntax.MAX_TOKENS} tokens" in f.message
-    many_statements = "plant p\n" + "".join(f"state s{i}\n" for i in range(syntax.MAX_STATEMENTS))
+    assert f"more than {limits.MAX_TOKENS} tokens" in f.message
+    many_statements = "plant p\n" + "".join(f"state s{i}\n" for i in range(limits.MAX_STATEMENTS))
     (g,) = parse_text(many_statements).findings
-    assert f"plant models are limited to {syntax.MAX_STATEMENTS}" in g.message
+    assert f"plant models are limited to {limits.MAX_STATEMENTS}" in g.message
 
 
 def test_envelope_findings_point_at_the_state_ranges_in_every_model() -> None:
@@ -146,3 +150,21 @@ def test_huge_exact_values_are_cut_in_model_messages() -> None:
     assert f"~1.07151e301 (an integer of {len(str(2**1000))} digits)" in by_rule["point-outside-envelope"]
     assert f"~1.87393e286 (an integer of {len(str(3**600))} digits)" in by_rule["bad-range"]
     assert all(len(f.message) < 200 for f in found)
+
+
+def test_input_limits_are_defined_once_in_a_light_module() -> None:
+    """Each limit is assigned only in core/limits.py, and importing it loads no sympy
+    (the runner reads MAX_BYTES from there before any model is parsed)."""
+    import re
+    import subprocess
+    import sys
+
+    names = [n for n in vars(limits) if n.startswith("MAX_")]
+    assigned = re.compile(r"^\s*(" + "|".join(names) + r")\s*(:[^=]*)?=", re.M)
+    package = Path(limits.__file__).resolve().parent.parent
+    elsewhere = [str(p.relative_to(package)) for p in package.rglob("*.py")
+                 if p.name != "limits.py" and assigned.search(p.read_text(encoding="utf-8"))]
+    assert elsewhere == []
+    code = "import sys, plantlint.core.limits; print('sympy' in sys.modules)"
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
+    assert out.strip() == "False"

@@ -19,7 +19,7 @@ import pytest
 from plantlint.run.config import Config
 from plantlint.core.findings import Finding
 from plantlint.run.pipeline import RawResult, analyse_bytes
-from plantlint.language.syntax import MAX_BYTES
+from plantlint.core.limits import MAX_BYTES
 
 REPO = Path(__file__).resolve().parent.parent
 

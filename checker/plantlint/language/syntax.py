@@ -21,21 +21,10 @@ from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from plantlint.core.findings import Finding, Severity, Span
+from plantlint.core.limits import (MAX_BYTES, MAX_DEPTH, MAX_EXPONENT, MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10,
+                                   MAX_NAME, MAX_POWER_BITS, MAX_STATEMENTS, MAX_TOKENS)
 from plantlint.core.resources import data_path
 
-#: Limits that keep the checker fast on hostile files; real models are far below them.
-MAX_BYTES = 1 << 20
-MAX_DEPTH = 200
-MAX_NAME = 128
-MAX_EXPONENT = 1000
-MAX_LITERAL_EXP10 = 400
-MAX_LITERAL_DIGITS = 400
-MAX_STATEMENTS = 5000
-#: Bits of an exact power of a number (``2^1000`` has 1,001): about 30,000 decimal digits.
-MAX_POWER_BITS = 100_000
-#: Tokens per file, counted before parsing: parsing and exact arithmetic cost about
-#: 0.1-1 ms per token, and the largest realistic models have ~1,000-2,000 tokens.
-MAX_TOKENS = 20_000
 
 KEYWORDS = frozenset(
     "plant const param state input let rate output point expect waive at in".split()

@@ -39,6 +39,8 @@ from functools import lru_cache
 from typing import TYPE_CHECKING, Any, Union
 
 from plantlint.core.findings import Finding, Severity, Span
+from plantlint.core.limits import (MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10, MAX_UNIT_DEPTH, MAX_UNIT_EXPONENT,
+                                   MAX_UNIT_NAME, MAX_UNIT_TEXT)
 
 if TYPE_CHECKING:
     from plantlint.language.syntax import Statement
@@ -46,9 +48,6 @@ if TYPE_CHECKING:
 #: Part of the cache key: raise it when the unit checks change their results.
 UNITS_VERSION = 1
 
-MAX_UNIT_TEXT = 200
-MAX_UNIT_DEPTH = 10
-MAX_UNIT_EXPONENT = 12
 TEXT_WIDTH = 60
 
 TIME = "[time]"
@@ -261,7 +260,7 @@ class _UnitParser:
         kind, value, at = tok
         self.i += 1
         if kind == "name":
-            if len(value) > 64:
+            if len(value) > MAX_UNIT_NAME:
                 raise UnitTextError("unit name too long", at, len(value))
             return UnitName(value, at)
         if kind == "int":
@@ -848,7 +847,7 @@ def _number(text: str) -> _Num:
     mantissa, _, exponent = text.lower().partition("e")
     try:
         exp10 = int(exponent) if exponent else 0
-        if abs(exp10) > 400 or len(mantissa) > 400:
+        if abs(exp10) > MAX_LITERAL_EXP10 or len(mantissa) > MAX_LITERAL_DIGITS:
             return _Num(None)
         return _Num(Fraction(mantissa) * Fraction(10) ** exp10)
     except (ValueError, ZeroDivisionError):

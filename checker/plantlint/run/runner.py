@@ -36,11 +36,11 @@ from typing import Any, Callable
 from plantlint import __version__
 from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
 from plantlint.core.findings import FileReport, Finding, Severity, Span
+from plantlint.core.limits import MAX_BYTES  # one definition of the input limits; no sympy
 from plantlint.run.pipeline import STOP_ANCHOR, RawResult, finish, stopped
 
 STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
 CACHE_FORMAT = 2  # 2: the analysis has a linearisation per point
-MAX_BYTES = 1 << 20  # same limit as plantlint.language.syntax.MAX_BYTES (not imported: it pulls in sympy)
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker
 MAX_WAIT = 3600.0  # seconds; longest single wait for worker messages
 BUDGET_ANCHOR = STOP_ANCHOR  # anchor of the runner's own stops (analysis-incomplete)

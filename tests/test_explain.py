@@ -9,7 +9,8 @@ import subprocess
 import sys
 from pathlib import Path
 
-from plantlint.report.explain import compact_many, explain_file
+from plantlint.cli import explain_file
+from plantlint.report.explain import compact_many
 
 SAMPLE = Path(__file__).parent / "fixtures" / "models" / "contract_sample.plant"
 
@@ -106,3 +107,43 @@ def test_common_subexpressions_are_named_only_when_shorter() -> None:
     defs, shown = compact_many([big / (1 + big), big * x, big + y])
     assert defs and any(name in s for name, _ in defs for s in shown)
     assert sum(map(len, shown)) < 3 * len(str(big))
+
+
+STALLED_ENVELOPE = """
+import sys
+import plantlint.analysis.engine as engine
+
+def endless(*args, **kwargs):
+    while True:  # stands in for a runaway envelope proof
+        pass
+
+engine.certify_envelope = endless  # forked workers inherit it
+from plantlint.cli import main
+sys.exit(main(sys.argv[1:]))
+"""
+
+
+def test_explain_runs_under_the_budget_and_says_it_was_cut_short(tmp_path: Path) -> None:
+    """explain goes through the worker and its budget: a stop keeps the completed stages,
+    says that the report was cut short, lists the analysis-incomplete finding and fails."""
+    model = tmp_path / "sample.plant"
+    model.write_text(SAMPLE.read_text(encoding="utf-8"), encoding="utf-8")
+    (tmp_path / "plantlint.toml").write_text("timeout = 2\n", encoding="utf-8")
+    script = tmp_path / "stalled.py"
+    script.write_text(STALLED_ENVELOPE, encoding="utf-8")
+    run = subprocess.run([sys.executable, str(script), "explain", str(model)], capture_output=True, text=True,
+                         cwd=tmp_path, timeout=120)
+    assert run.returncode == 1, run.stderr
+    text = run.stdout
+    assert "CUT SHORT: the analysis stopped at its 2 s budget in stage envelope" in text
+    assert "completed: structure;" in text
+    assert "y: relative degree 2" in text  # the structure stage completed and is shown
+    assert "not computed: the analysis was cut short before the stage 'envelope' completed" in text
+    assert "analysis-incomplete" in text and "Traceback" not in run.stderr
+    data = subprocess.run([sys.executable, str(script), "explain", str(model), "--format", "json"],
+                          capture_output=True, text=True, cwd=tmp_path, timeout=120)
+    assert data.returncode == 1
+    report = json.loads(data.stdout)
+    assert report["stop"]["kind"] == "time" and report["completed"] == ["structure"]
+    assert report["relative_degree"] == {"y": 2} and report["points"] == []
+    assert "analysis-incomplete" in [f["rule"] for f in report["findings"]]

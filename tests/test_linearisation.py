@@ -26,9 +26,10 @@ from plantlint.core.catalogue import load_catalogue
 from plantlint.core.findings import Severity
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant
+from plantlint.analysis.serialise import analysis_json
+from plantlint.core.settings import AnalysisSettings
 from plantlint.report.explain import explain_data, render_text
 from plantlint.report.formats.json_report import report_schema
-from plantlint.run.config import Config
 from plantlint.run.pipeline import read_model
 
 FIXTURES = Path(__file__).parent / "fixtures" / "models"
@@ -241,7 +242,7 @@ point up: th = 0, w = 0, x = 0, v = 0
 def analyse_text(text: str) -> engine.Analysis:
     model, findings = read_model(text.encode(), "model.plant")
     assert model is not None, findings
-    return engine.run_analysis(model, Config())
+    return engine.run_analysis(model, AnalysisSettings())
 
 
 def test_inverted_pendulum_on_a_cart_ogata() -> None:
@@ -400,7 +401,7 @@ def test_disagreement_is_an_internal_inconsistency(monkeypatch: pytest.MonkeyPat
     assert load_catalogue().get("internal-inconsistency").severity is Severity.ERROR
     lin = a.points[0].linearisation
     assert lin is not None and lin.cross_check.status == "disagrees"
-    assert a.to_json()["points"]["up"]["linearisation"]["cross_check"]["status"] == "disagrees"
+    assert analysis_json(a)["points"]["up"]["linearisation"]["cross_check"]["status"] == "disagrees"
 
 
 def test_cross_check_not_applicable_without_zero_dynamics() -> None:
@@ -427,7 +428,7 @@ point rest: p = 0, v = 0
 # -- reports --------------------------------------------------------------------------------
 def test_analysis_json_validates_and_non_equilibria_have_none() -> None:
     a = analyse_text(CART_PENDULUM + "point off: th = 0.1, w = 0, x = 0, v = 0, u = 0\n")
-    data = json.loads(json.dumps(a.to_json()))
+    data = json.loads(json.dumps(analysis_json(a)))
     schema = report_schema()
     validator = jsonschema.Draft202012Validator({"$defs": schema["$defs"], **schema["$defs"]["linearisation"]})
     up = data["points"]["up"]["linearisation"]

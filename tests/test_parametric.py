@@ -297,7 +297,7 @@ def test_explain_shows_the_box_verdicts(tmp_path: Path) -> None:
     import io
     import json
 
-    from plantlint.report.explain import explain_file
+    from plantlint.cli import explain_file
 
     model = tmp_path / "tank.plant"
     model.write_text(_tank("0.70 in 0.55 .. 0.9", "0.60 in 0.55 .. 0.9"), encoding="utf-8")

@@ -368,8 +368,6 @@ def _rules(args: argparse.Namespace) -> int:
 
 
 def _explain(args: argparse.Namespace) -> int:
-    from plantlint.report.explain import explain_file
-
     from plantlint.core.catalogue import load_catalogue
     from plantlint.run.config import ConfigError, parse_rule_list
 
@@ -389,6 +387,60 @@ def _explain(args: argparse.Namespace) -> int:
         return _fail(str(exc))
     color = args.format == "text" and _use_color(args.color, sys.stdout)
     return explain_file(path, args.point, args.format, sys.stdout, color, only=only, skip=skip, errors=sys.stderr)
+
+
+def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color: bool, *,
+                 only: frozenset[str] | None = None, skip: frozenset[str] | None = None,
+                 errors: TextIO | None = None) -> int:
+    """Explain one model to ``stream`` through the pipeline of ``check``: a worker under the
+    per-model budget, the policy with waivers and the selection (``only``/``skip`` replace
+    the configuration's, as on ``check``); uncached, so explain writes nothing. Usage errors go to ``errors`` (standard
+    error) and return 2; a model that cannot be analysed, or an analysis cut short (not
+    decided), returns 1 after showing what there is."""
+    from dataclasses import replace
+
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.report.explain import explain_view, render_blocked, render_json, render_text
+    from plantlint.run.config import ConfigError, load_config
+    from plantlint.run.pipeline import BLOCKING, finish
+    from plantlint.run.runner import Target, UsageError, raw_results, read_source
+
+    errors = errors if errors is not None else sys.stderr
+    try:
+        config = load_config(path.parent)
+    except ConfigError as exc:
+        print(f"plantlint: error: {exc}", file=errors)
+        return EXIT_USAGE
+    config = replace(config, only=only if only is not None else config.only,
+                     skip=skip if skip is not None else config.skip)
+    defaults = {r.id: r.severity for r in load_catalogue()}
+    try:
+        source = read_source(Target(path, str(path)))
+    except UsageError as exc:
+        print(f"plantlint: error: {exc}", file=errors)
+        return EXIT_USAGE
+    (raw,) = raw_results([source], config, jobs=1, use_cache=False, cache_dir=None, show_progress=False,
+                         explain=True)
+    report = finish(str(path), raw, None, config, defaults)
+    data = raw.explain
+    if data is None:  # not read, blocked by model errors, or stopped before the first stage completed
+        if raw.stop is not None:
+            render_blocked(str(path), report.sorted_findings(), stream,
+                           "plantlint: the analysis was cut short before its first stage completed; nothing to explain")
+        else:
+            render_blocked(str(path), [f for f in raw.findings if f.rule in BLOCKING] or raw.findings, stream,
+                           "plantlint: the model cannot be analysed until these are fixed")
+        return EXIT_FINDINGS
+    if point is not None and point not in data["point_names"]:
+        names = ", ".join(data["point_names"]) or "none"
+        print(f"plantlint: error: {path} has no point '{point}' (its points: {names})", file=errors)
+        return EXIT_USAGE
+    view = explain_view(data, report.findings, point, report.stop)
+    if fmt == "json":
+        render_json(view, stream)
+    else:
+        render_text(view, stream, color)
+    return EXIT_FINDINGS if report.stop is not None and config.undecided_fail else EXIT_OK
 
 
 def _merge(args: argparse.Namespace) -> int:
@@ -450,8 +502,7 @@ def _plot(args: argparse.Namespace) -> int:
             continue
         try:
             outcome = plot_model(source.data, args.format, states=states, point=args.point, param=args.param,
-                                 envelope_seconds=getattr(config, "envelope_seconds", 5.0),
-                                 envelope_boxes=getattr(config, "envelope_boxes", 20000))
+                                 envelope_seconds=config.envelope_seconds, envelope_boxes=config.envelope_boxes)
         except (Exception, RecursionError) as exc:  # a hostile model must not end in a traceback
             print(f"{target.display}: cannot plot: internal error ({type(exc).__name__}); "
                   "`plantlint check` reports what it can", file=sys.stderr)

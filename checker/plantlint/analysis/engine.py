@@ -11,7 +11,7 @@ its completion, so a stopped run can say what was and was not checked.
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import Any, Callable
+from typing import Callable
 
 import sympy as sp
 
@@ -20,35 +20,30 @@ from plantlint.analysis.distributions import (
     PointDistributions,
     analyse_distributions,
     distributions_at,
-    distributions_json,
     involutivity_reason,
     rank_drop_reason,
 )
-from plantlint.analysis.equilibria import Equilibrium, equilibrium_json, solve_point
-from plantlint.analysis.linearisation import Linearisation, linearisation_json, linearise_at
+from plantlint.analysis.equilibria import Equilibrium, solve_point
+from plantlint.analysis.linearisation import Linearisation, linearise_at
 from plantlint.analysis.parametric import (
-    ParametricPoint, box_controllability, box_point, box_zero_dynamics, claim_failure, clock, parametric_json,
+    ParametricPoint, box_controllability, box_point, box_zero_dynamics, claim_failure, clock,
 )
+from plantlint.analysis.stages import STAGES
 from plantlint.core.findings import Finding, Severity
+from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.lie import Kernel
 from plantlint.language.model import ClaimDecl, Model
 from plantlint.language.printer import show_point
-from plantlint.analysis.normal_form import NormalForm, normal_form_at, normal_form_json, xi_name
+from plantlint.analysis.normal_form import NormalForm, normal_form_at, xi_name
 from plantlint.analysis.structure import (
     Envelope,
     PointStructure,
     Structure,
     analyse_structure,
     certify_envelope,
-    envelope_json,
-    point_json,
     structure_at_point,
 )
-from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at, zero_dynamics_json
-
-#: The stages in order; each is reported when it completes, so a stopped run keeps
-#: what finished and can still decide the claims those stages settle.
-STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
+from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
 
 Stage = Callable[[str, "Analysis"], None]
 
@@ -67,7 +62,7 @@ class PointAnalysis:
 
 @dataclass
 class Analysis:
-    """Everything computed for one model (Python objects; ``to_json`` for reports)."""
+    """Everything computed for one model (Python objects; :mod:`plantlint.analysis.serialise` for reports)."""
 
     model: Model
     kernel: Kernel
@@ -83,53 +78,9 @@ class Analysis:
         if stage is not None:
             stage(name, self)
 
-    def to_json(self) -> dict[str, Any]:
-        m = self.model
-        points: dict[str, Any] = {}
-        for pa in self.points:
-            entry: dict[str, Any] = dict(equilibrium_json(pa.equilibrium))
-            if pa.structure is not None:
-                entry.update(point_json(pa.structure))
-            else:
-                entry.update({"relative_degree": {o: None for o in m.outputs}, "well_defined": False,
-                              "decoupling_rank": None})
-            zd = pa.zero_dynamics
-            entry["zero_dynamics"] = zero_dynamics_json(zd) if zd is not None and zd.verdict != "undefined" else None
-            if pa.normal_form is not None:
-                entry["normal_form"] = normal_form_json(pa.normal_form)
-            entry["linearisation"] = (linearisation_json(pa.linearisation, len(m.outputs), len(m.inputs))
-                                      if pa.linearisation is not None else None)
-            if pa.distributions is not None:
-                entry.update(distributions_json(pa.distributions))
-            if pa.parametric is not None:
-                entry["parameter_box"] = parametric_json(pa.parametric)
-            points[pa.name] = entry
-        out: dict[str, Any] = {
-            "states": list(m.states),
-            "inputs": list(m.inputs),
-            "outputs": list(m.outputs),
-            "input_affine": m.input_affine,
-            "relative_degree": dict(self.structure.relative_degree),
-            "decoupling_rank": self.structure.generic_rank,
-            "envelope": envelope_json(self.envelope) if self.envelope is not None else
-            {"regular": None, "margin": None, "witness": None},
-            "points": points,
-        }
-        if self.distributions is not None:
-            ds = self.distributions
-            out["distributions"] = {
-                "ranks": list(ds.ranks),
-                "involutive": ds.involutive,
-                "failing_bracket": ds.failure.pair if ds.failure else None,
-            }
-        if self.kernel.uncertain:
-            out["unconfirmed_zero_tests"] = len(self.kernel.uncertain)
-        out["stages"] = {"completed": list(self.completed),
-                         "not_completed": [s for s in STAGES if s not in self.completed]}
-        return out
 
-
-def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analysis:
+def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
+                 stage: Stage | None = None) -> Analysis:
     """All stages for one model whose model-family checks passed.
 
     ``stage(name, analysis)`` is called as each stage completes (the runner sends a
@@ -142,16 +93,15 @@ def run_analysis(model: Model, config: Any, stage: Stage | None = None) -> Analy
     result.findings.extend(structure.findings)
     result.done("structure", stage)
 
-    result.envelope = certify_envelope(kernel, structure, getattr(config, "envelope_seconds", 5.0),
-                                       getattr(config, "envelope_boxes", 20000))
+    result.envelope = certify_envelope(kernel, structure, settings.envelope_seconds, settings.envelope_boxes)
     result.findings.extend(result.envelope.findings)
     result.done("envelope", stage)
 
-    timer = clock(getattr(config, "envelope_seconds", 5.0), getattr(config, "envelope_boxes", 20000))
+    timer = clock(settings.envelope_seconds, settings.envelope_boxes)
     for op in model.points:
         given = {model.symbol(k): v for k, v in op.values.items()}
         tolerance, source = ((float(op.tolerance), "written on the point") if op.tolerance is not None else
-                             (float(getattr(config, "point_tolerance", 0.0)), "point-tolerance in the configuration"))
+                             (float(settings.point_tolerance), "point-tolerance in the configuration"))
         eq = solve_point(plant, op.name, given, kernel, tolerance, source)
         pa = PointAnalysis(op.name, eq)
         result.findings.extend(eq.findings)
@@ -304,12 +254,6 @@ def _feedback_shifted(kernel: Kernel, structure: DistributionStructure, eq: Equi
     return memo[key]
 
 
-def analyse(model: Model, config: Any, stage: Stage | None = None) -> tuple[dict[str, Any], list[Finding]]:
-    """Entry point used by the pipeline: JSON-ready analysis and findings."""
-    result = run_analysis(model, config, stage)
-    return result.to_json(), result.findings
-
-
 # -- claims -------------------------------------------------------------------------
 
 class Undecided(str):
@@ -338,7 +282,7 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
     out: list[Finding] = []
     pending: list[Finding] = []
     for claim in a.model.claims:
-        text = _claim_text(claim)
+        text = claim_text(claim)
         if claim.kind in ("regular", "minimum_phase") and not a.model.outputs:
             failures: list[tuple[str | None, str]] = [
                 (claim.point, "the model declares no output, so there is no relative degree or zero dynamics to check")]
@@ -361,7 +305,7 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
     return out, pending
 
 
-def _claim_text(c: ClaimDecl) -> str:
+def claim_text(c: ClaimDecl) -> str:
     text = f"expect relative_degree({c.output}) = {c.value}" if c.kind == "relative_degree" else f"expect {c.kind}"
     return text + (f" at {c.point}" if c.point else "")
 
@@ -491,4 +435,5 @@ _CLAIM_CHECKS: dict[str, Callable[[Analysis, ClaimDecl], list[tuple[str | None, 
     "state_linearizable": _state_linearizable_claim,
 }
 
-__all__ = ["STAGES", "Analysis", "PointAnalysis", "analyse", "check_claims", "claims_so_far", "run_analysis"]
+__all__ = ["STAGES", "Analysis", "PointAnalysis", "check_claims", "claim_stage", "claim_text", "claims_so_far",
+           "run_analysis"]

@@ -16,6 +16,7 @@ from types import MappingProxyType
 from typing import Any, Mapping
 
 from plantlint.core.findings import Adjustment, Severity
+from plantlint.core.settings import AnalysisSettings
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -29,6 +30,9 @@ class ConfigError(Exception):
 
 @dataclass(frozen=True)
 class Config:
+    """Everything the command line and the configuration file set (the run layer's settings);
+    the analysis sees only :attr:`analysis`."""
+
     include: tuple[str, ...] = ("**/*.plant",)
     exclude: tuple[str, ...] = ()
     fail_on: Severity = Severity.ERROR
@@ -95,9 +99,14 @@ class Config:
         """The time budget per model in effect."""
         return self.budget()[0]
 
+    @property
+    def analysis(self) -> AnalysisSettings:
+        """What the analysis reads of these settings (all that a worker receives)."""
+        return AnalysisSettings(self.envelope_seconds, self.envelope_boxes, self.point_tolerance)
+
     def analysis_key(self) -> str:
         """The settings that change analysis results (part of the cache key)."""
-        return f"env={self.envelope_seconds}/{self.envelope_boxes} tol={self.point_tolerance!r}"
+        return self.analysis.key()
 
 
 _KEYS = {

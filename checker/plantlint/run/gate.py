@@ -24,6 +24,7 @@ from typing import Any
 
 from plantlint import __version__
 from plantlint.core.findings import FileReport, Finding, Report, Severity
+from plantlint.run.config import Config
 from plantlint.run.pipeline import RawResult, finish
 from plantlint.run.runner import (
     Source,
@@ -96,7 +97,7 @@ def old_version(commit: str, path: str, top: Path) -> bytes | None:
     return out.stdout if out.returncode == 0 else None
 
 
-def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity], *, jobs: int, use_cache: bool,
+def gate(ref: str, paths: list[str], config: Config, defaults: dict[str, Severity], *, jobs: int, use_cache: bool,
          cache_dir: Path | None, show_progress: bool, shard: Any = None) -> Report:
     """The gate over ``paths``; with ``shard`` (run.shard.Shard) only that shard's models."""
     top = repo_top(Path.cwd())
@@ -130,7 +131,7 @@ def gate(ref: str, paths: list[str], config: Any, defaults: dict[str, Severity],
     return Report(files=files, tool_version=__version__, fail_on=config.fail_on, since=ref)
 
 
-def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: dict[str, Severity],
+def _deleted(commit: str, top: Path, paths: list[str], config: Config, defaults: dict[str, Severity],
              targets: list[Any], moved: dict[str, str], shard: Any = None, **run: Any) -> list[FileReport]:
     """Models under the checked folders at REF that are gone now (and were not
     renamed): every finding they had is fixed, and the report says they were deleted."""
@@ -173,7 +174,7 @@ def _deleted(commit: str, top: Path, paths: list[str], config: Any, defaults: di
     return reports
 
 
-def compare(report: FileReport, old_raw: RawResult | None, config: Any, defaults: dict[str, Severity]) -> FileReport:
+def compare(report: FileReport, old_raw: RawResult | None, config: Config, defaults: dict[str, Severity]) -> FileReport:
     """Mark each finding known/introduced, add the fixed ones, and diff the structure."""
     if old_raw is None:
         report.findings = [replace(f, baseline="introduced") for f in report.findings]
@@ -231,22 +232,11 @@ def waiver_changes(before: list[Any], after: list[Any]) -> list[dict[str, Any]]:
 
 
 def summary(analysis: dict[str, Any] | None) -> dict[str, Any]:
-    """The structural facts a reviewer cares about, flattened to comparable values in words."""
-    if not analysis:
-        return {}
-    out: dict[str, Any] = {}
-    for name, r in (analysis.get("relative_degree") or {}).items():
-        out[f"relative degree of {name}"] = r
-    env = analysis.get("envelope") or {}
-    out["envelope"] = {True: "regular", False: "singular", None: "unproven"}.get(env.get("regular"))
-    for point, data in (analysis.get("points") or {}).items():
-        out[f"point {point}: equilibrium"] = _words(data.get("equilibrium"))
-        out[f"point {point}: well defined"] = _words(data.get("well_defined"))
-        zd = data.get("zero_dynamics")
-        out[f"point {point}: zero dynamics"] = _words(zd.get("verdict")) if zd else None
-        if "state_linearizable" in data:
-            out[f"point {point}: state linearizable"] = _words(data.get("state_linearizable"))
-    return out
+    """The structural facts a reviewer cares about, flattened to comparable values in words
+    (read from the one serialisation by :func:`plantlint.analysis.serialise.structural_facts`)."""
+    from plantlint.analysis.serialise import structural_facts
+
+    return {what: _words(value) for what, value in structural_facts(analysis).items()}
 
 
 def structure_changes(before: dict[str, Any] | None, after: dict[str, Any] | None) -> list[dict[str, Any]]:

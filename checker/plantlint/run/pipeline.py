@@ -2,11 +2,13 @@
 
 The result (:class:`RawResult`) is plain data so it can cross a process boundary
 and be cached; the policy (selection, severities, waivers) is applied afterwards
-by :func:`finish`, which needs neither sympy nor the model.
+by :func:`finish`, which needs neither sympy nor the model. ``check`` and ``explain``
+both go through here; explain asks for its derivation data as well (``explain=True``).
 """
 
 from __future__ import annotations
 
+import json
 import re
 from dataclasses import dataclass, field
 from typing import Any, Callable
@@ -23,6 +25,8 @@ from plantlint.core.findings import (
     waiver_from_data,
     waiver_to_data,
 )
+from plantlint.core.settings import AnalysisSettings
+from plantlint.run.config import Config
 
 #: Model findings after which the plant cannot be analysed meaningfully.
 BLOCKING = frozenset({"syntax", "unknown-name", "duplicate-name", "missing-rate", "orphan-rate",
@@ -41,6 +45,8 @@ class RawResult:
     #: claims the completed stages cannot settle yet (only in a snapshot of an unfinished run)
     pending: list[Finding] = field(default_factory=list)
     stop: Stop | None = None  # set when the analysis did not complete
+    #: the derivation for ``explain`` (analysis.serialise.explain_json), only when asked for
+    explain: dict[str, Any] | None = None
 
     def to_data(self) -> dict[str, Any]:
         return {
@@ -51,6 +57,7 @@ class RawResult:
             "stages": self.stages,
             "pending": [finding_to_data(f) for f in self.pending],
             "stop": self.stop.to_data() if self.stop is not None else None,
+            "explain": self.explain,
         }
 
     @classmethod
@@ -63,6 +70,7 @@ class RawResult:
             stages=list(d.get("stages", [])),
             pending=[finding_from_data(x) for x in d.get("pending", [])],
             stop=Stop.from_data(d["stop"]) if d.get("stop") else None,
+            explain=d.get("explain"),
         )
 
 
@@ -86,12 +94,18 @@ def read_model(data: bytes, path: str = "") -> tuple[Any, list[Finding]]:
 Progress = Callable[[str, RawResult], None]
 
 
-def analyse_bytes(data: bytes, config: Any, progress: Progress | None = None) -> RawResult:
+def analyse_bytes(data: bytes, settings: AnalysisSettings | Config = AnalysisSettings(),
+                  progress: Progress | None = None, *, explain: bool = False) -> RawResult:
     """Parse, build and analyse one model held in ``data``. Never raises on bad input.
 
-    ``progress(stage, snapshot)`` gets a snapshot after the model is read (stage
-    ``model``) and after every analysis stage: what a stop at that moment keeps.
+    ``settings`` are the analysis settings (a :class:`Config` is read for its
+    ``analysis`` settings: all that the analysis sees of it). ``progress(stage,
+    snapshot)`` gets a snapshot after the model is read (stage ``model``) and after
+    every analysis stage: what a stop at that moment keeps. With ``explain`` the result
+    (and every snapshot) also carries the derivation that ``plantlint explain`` shows.
     """
+    if isinstance(settings, Config):
+        settings = settings.analysis
     model, findings = read_model(data)
     result = RawResult(findings=list(findings))
     if model is None:
@@ -102,6 +116,12 @@ def analyse_bytes(data: bytes, config: Any, progress: Progress | None = None) ->
         result.findings = [locate(f, model.spans) for f in result.findings]
         return result
     from plantlint.analysis.engine import Analysis, claims_so_far, run_analysis
+    from plantlint.analysis.serialise import analysis_json, explain_json
+
+    memo: dict[str, Any] = {}  # the explain derivation, built once
+
+    def derivation(analysis: Analysis) -> dict[str, Any] | None:
+        return _plain(explain_json(analysis, memo)) if explain else None
 
     if progress is not None:
         progress("model", RawResult(plant=model.name, findings=[locate(f, model.spans) for f in findings],
@@ -113,23 +133,29 @@ def analyse_bytes(data: bytes, config: Any, progress: Progress | None = None) ->
             return
         decided, pending = claims_so_far(analysis) if name != "claims" else ([], [])
         progress(name, RawResult(
-            plant=model.name, waivers=list(model.waivers), analysis=analysis.to_json(),
+            plant=model.name, waivers=list(model.waivers), analysis=analysis_json(analysis),
             stages=list(analysis.completed),
             findings=[locate(f, model.spans) for f in [*findings, *analysis.findings, *decided]],
-            pending=[locate(f, model.spans) for f in pending]))
+            pending=[locate(f, model.spans) for f in pending], explain=derivation(analysis)))
 
-    analysis = run_analysis(model, config, stage)
-    result.analysis = analysis.to_json()
+    analysis = run_analysis(model, settings, stage)
+    result.analysis = analysis_json(analysis)
+    result.explain = derivation(analysis)
     result.stages = list(analysis.completed)
     result.findings = [locate(f, model.spans) for f in [*findings, *analysis.findings]]
     return result
 
 
+def _plain(data: dict[str, Any]) -> dict[str, Any]:
+    """JSON-ready data (anything else shown as text), as the cache and the reports hold it."""
+    return json.loads(json.dumps(data, default=str))
+
+
 def _claims_before_analysis(model: Any) -> list[Finding]:
     """Every claim, not decided yet (what a stop before the first stage leaves)."""
-    from plantlint.analysis.engine import _claim_text, claim_stage
+    from plantlint.analysis.engine import claim_stage, claim_text
 
-    return [Finding("expectation-failed", Severity.ERROR, f"`{_claim_text(c)}` not decided", point=c.point,
+    return [Finding("expectation-failed", Severity.ERROR, f"`{claim_text(c)}` not decided", point=c.point,
                     anchor=c.anchor, undecided=True, hint=f"needs the stage '{claim_stage(c)}' to complete")
             for c in model.claims]
 
@@ -163,7 +189,7 @@ def _judged(raw: RawResult) -> Callable[[str], bool]:
     return lambda rule: complete and rule in catalogue
 
 
-def finish(path: str, raw: RawResult, source: str | None, config: Any, defaults: dict[str, Severity]) -> FileReport:
+def finish(path: str, raw: RawResult, source: str | None, config: Config, defaults: dict[str, Severity]) -> FileReport:
     """Apply the policy to a raw result and make the file's report."""
     from plantlint.run.policy import apply_policy, unused_waivers
 
@@ -238,4 +264,4 @@ def stopped(snapshot: RawResult | None, kind: str, stages: list[str], all_stages
 
     claims = [replace(p, message=f"{p.message}: the analysis {what}", hint=None) for p in base.pending]
     return RawResult(plant=base.plant, findings=[*base.findings, *claims, finding], waivers=list(base.waivers),
-                     analysis=base.analysis, stages=done, stop=stop)
+                     analysis=base.analysis, stages=done, stop=stop, explain=base.explain)

@@ -37,9 +37,11 @@ from plantlint import __version__
 from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
 from plantlint.core.findings import FileReport, Finding, Severity, Span
 from plantlint.core.limits import MAX_BYTES  # one definition of the input limits; no sympy
+from plantlint.analysis.stages import STAGES  # light: the stage names only
+from plantlint.core.settings import AnalysisSettings
+from plantlint.run.config import Config
 from plantlint.run.pipeline import STOP_ANCHOR, RawResult, finish, stopped
 
-STAGES = ("structure", "envelope", "points", "zero dynamics", "linearisation", "distributions", "claims")
 CACHE_FORMAT = 2  # 2: the analysis has a linearisation per point
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker
 MAX_WAIT = 3600.0  # seconds; longest single wait for worker messages
@@ -346,14 +348,17 @@ def _die_with_parent() -> None:
         pass
 
 
-def _worker(conn: Connection, data: bytes, config: Any, parent: int, budget: float) -> None:
-    """Child process: analyse one model, send a snapshot per stage, then the raw result."""
+def _worker(conn: Connection, data: bytes, settings: AnalysisSettings, parent: int, budget: float,
+            explain: bool = False) -> None:
+    """Child process: analyse one model, send a snapshot per stage, then the raw result.
+    It receives the model's bytes and the analysis settings, nothing else of the run."""
     _guard_worker(parent, budget)
     from plantlint.run.pipeline import analyse_bytes
 
     try:
         try:
-            raw = analyse_bytes(data, config, progress=lambda s, snap: conn.send(("stage", (s, snap.to_data()))))
+            raw = analyse_bytes(data, settings, progress=lambda s, snap: conn.send(("stage", (s, snap.to_data()))),
+                                explain=explain)
             message: tuple[str, Any] = ("done", raw.to_data())
         except (BrokenPipeError, ConnectionResetError):
             raise
@@ -379,12 +384,14 @@ def _context() -> Any:
 
 def analyse_all(
     datas: list[bytes],
-    config: Any,
+    settings: AnalysisSettings,
     jobs: int,
     timeout: float,
     on_done: Callable[[int], None] | None = None,
+    explain: bool = False,
 ) -> list[RawResult]:
-    """Analyse every model in worker processes, at most ``jobs`` at a time."""
+    """Analyse every model in worker processes, at most ``jobs`` at a time (with
+    ``explain``, each result also carries the derivation that explain shows)."""
     if not datas:
         return []
     import plantlint.analysis.engine  # noqa: F401  (imported before forking: workers start warm)
@@ -406,7 +413,7 @@ def analyse_all(
             while queue and len(running) < max(jobs, 1):
                 i = queue.pop(0)
                 parent, child = ctx.Pipe(duplex=False)
-                proc = ctx.Process(target=_worker, args=(child, datas[i], config, me, timeout), daemon=True)
+                proc = ctx.Process(target=_worker, args=(child, datas[i], settings, me, timeout, explain), daemon=True)
                 proc.start()
                 child.close()
                 running[parent] = _Running(i, proc, time.monotonic())
@@ -543,7 +550,7 @@ def read_source(target: Target) -> Source:
 
 def check_targets(
     targets: list[Target],
-    config: Any,
+    config: Config,
     defaults: dict[str, Severity],
     *,
     jobs: int,
@@ -560,15 +567,17 @@ def check_targets(
 
 def raw_results(
     sources: list[Source],
-    config: Any,
+    config: Config,
     *,
     jobs: int,
     use_cache: bool,
     cache_dir: Path | None,
     show_progress: bool,
+    explain: bool = False,
 ) -> list[RawResult]:
-    """Raw results (before policy) for every source, from the cache where possible."""
-    cache = Cache(cache_dir if use_cache else None, config.analysis_key())
+    """Raw results (before policy) for every source, from the cache where possible
+    (results with the explain derivation are cached apart from those without)."""
+    cache = Cache(cache_dir if use_cache else None, config.analysis_key() + (" explain" if explain else ""))
     raws: list[RawResult | None] = []
     keys: list[str | None] = []
     for src in sources:
@@ -583,8 +592,8 @@ def raw_results(
     if todo:
         progress = _Progress(len(todo)) if show_progress and len(todo) > 3 else None
         try:
-            fresh = analyse_all([sources[i].data or b"" for i in todo], config, jobs, config.seconds,
-                                on_done=(lambda _i: progress.advance()) if progress else None)
+            fresh = analyse_all([sources[i].data or b"" for i in todo], config.analysis, jobs, config.seconds,
+                                on_done=(lambda _i: progress.advance()) if progress else None, explain=explain)
         finally:
             if progress:
                 progress.close()

@@ -168,3 +168,15 @@ def test_input_limits_are_defined_once_in_a_light_module() -> None:
     code = "import sys, plantlint.core.limits; print('sympy' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "False"
+
+
+def test_expression_mentions_and_problems_come_last_first() -> None:
+    """The builder's documented order (language/syntax.py, _ExpressionBuilder): of two
+    problems in one expression the last is reported, and names and calls are listed
+    last mention first. Invented models."""
+    (f,) = parse_text("plant p\nstate x\nrate x = foo(x) + bar(x)\n").findings
+    assert f.message == "unknown function 'bar'" and f.span.column == 19
+    expr = parse_text("plant p\nstate x\nrate x = a*b + sin(cos(c))\n").statements[-1].expr
+    assert expr is not None
+    assert [n.name for n in expr.names] == ["c", "b", "a"]
+    assert [c.function for c in expr.calls] == ["cos", "sin"]

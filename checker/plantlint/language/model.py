@@ -9,7 +9,7 @@ span of the offending name, call or statement.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Mapping
 
@@ -18,7 +18,7 @@ import sympy as sp
 from plantlint.core.findings import Finding, Severity, Span, Waiver
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
-from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Expression, Parsed, Statement, near_miss, symbol
+from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Claim, Expression, Parsed, Statement, near_miss, symbol
 
 CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
 QUANTITY_KINDS = ("const", "param", "state", "input", "let", "output")
@@ -131,148 +131,250 @@ class Model:
 
 @dataclass
 class _Scope:
-    """Bookkeeping while the model is being built."""
+    """Bookkeeping while the model is being built: the passes below add to it in turn."""
 
     findings: list[Finding] = field(default_factory=list)
     declared: dict[str, Statement] = field(default_factory=dict)
     used: set[str] = field(default_factory=set)
     constants: dict[sp.Symbol, sp.Expr] = field(default_factory=dict)  # const + unranged params
     lets: dict[sp.Symbol, sp.Expr] = field(default_factory=dict)
+    quantities: dict[str, Quantity] = field(default_factory=dict)
+    spans: dict[str, Span] = field(default_factory=dict)  # anchor -> span
 
     def add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None,
             severity: Severity = Severity.ERROR, point: str | None = None) -> None:
         self.findings.append(Finding(rule, severity, message, span, point=point, hint=hint, anchor=anchor))
 
+    def owns(self, st: Statement) -> bool:
+        """Is ``st`` the declaration its name resolves to (not a duplicate)?"""
+        return self.declared.get(st.name or "") is st
+
+    def allowed(self, dynamic: set[str]) -> set[str]:
+        """Names an expression of the dynamics may use: states, inputs, ranged parameters
+        and the definitions made so far."""
+        return dynamic | set(_let_names(self))
+
 
 def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]:
-    """Resolve a parsed file. Returns (model or None, findings)."""
+    """Resolve a parsed file. Returns (model or None, findings).
+
+    The passes run in this order, and the findings come out in it: declarations,
+    constants and parameters, states and inputs, ranges, definitions, rates, outputs,
+    smoothness, input-affinity, points, claims and waivers, unused names.
+    """
     scope = _Scope(findings=list(parsed.findings))
-    if parsed.findings:
+    header = _header(scope, parsed)
+    if header is None:
         return None, scope.findings
+    statements = parsed.statements
+    body = statements[1:]
+    by_kind: dict[str, list[Statement]] = {}
+    for st in body:
+        by_kind.setdefault(st.kind, []).append(st)
+    scope.spans["plant"] = header.name_span or header.span  # the first anchor
+
+    for st in body:
+        if st.kind in QUANTITY_KINDS and st.name:
+            _declare(scope, st)
+    ranged = _constants_and_parameters(scope, body)
+    _states_and_inputs(scope, body)
+    ranged = _ranges(scope, body, ranged)
+    states = _owned_names(scope, by_kind.get("state", []))
+    inputs = _owned_names(scope, by_kind.get("input", []))
+    _envelope_span(scope, by_kind.get("state", []))
+    dynamic = set(states) | set(inputs) | set(ranged)
+    _definitions(scope, by_kind.get("let", []), dynamic)
+    rates, rate_stmts = _rates(scope, by_kind, dynamic)
+    outputs, output_exprs = _outputs(scope, by_kind.get("output", []), dynamic, inputs)
+
+    smooth = _check_smooth(scope, statements)
+    input_affine = _check_affine(scope, rates, rate_stmts, states, inputs, ranged)
+    points = _points(scope, by_kind.get("point", []), states)
+    points = _with_tolerances(scope, points, by_kind.get("point", []))
+    claims = _claims(scope, by_kind.get("expect", []), outputs, points)
+    waivers = _waivers(scope, by_kind.get("waive", []), points)
+    _unused(scope)
+
+    model = Model(
+        path=path,
+        name=header.name,
+        title=header.doc,
+        quantities=MappingProxyType(scope.quantities),
+        states=tuple(s for s in states if s in rates),
+        inputs=inputs,
+        outputs=tuple(outputs),
+        rates=MappingProxyType(rates),
+        output_exprs=MappingProxyType(output_exprs),
+        points=tuple(points),
+        claims=tuple(claims),
+        waivers=tuple(waivers),
+        spans=MappingProxyType(scope.spans),
+        ranged_params=tuple(ranged),
+        input_affine=input_affine,
+        smooth=smooth,
+    )
+    return model, scope.findings
+
+
+# -- the passes, in the order build_model runs them ---------------------------------
+
+def _header(scope: _Scope, parsed: Parsed) -> Statement | None:
+    """The `plant NAME` header, or None when the file cannot be read as a model (a syntax
+    problem, no statement, no header first). A second header is reported and ignored."""
+    if parsed.findings:
+        return None
     statements = parsed.statements
     if not statements:
         scope.add("syntax", "empty model: a file starts with `plant NAME`", Span(1, 1, 1, 2), "empty")
-        return None, scope.findings
+        return None
     header = statements[0]
     if header.kind != "plant":
         scope.add("syntax", "a model file must start with `plant NAME`", header.span, "no header")
-        return None, scope.findings
+        return None
     for extra in (s for s in statements[1:] if s.kind == "plant"):
         scope.add("syntax", "a file holds one plant: a second `plant` header", extra.span, "second header")
+    return header
 
-    spans: dict[str, Span] = {"plant": header.name_span or header.span}
-    quantities: dict[str, Quantity] = {}
-    by_kind: dict[str, list[Statement]] = {}
-    for st in statements[1:]:
-        by_kind.setdefault(st.kind, []).append(st)
 
-    # declarations, in file order, with duplicate detection
-    for st in statements[1:]:
-        if st.kind in QUANTITY_KINDS and st.name:
-            _declare(scope, st)
-
+def _constants_and_parameters(scope: _Scope, body: list[Statement]) -> list[str]:
+    """Values of constants and parameters (each may use only earlier ones). Returns the
+    parameters written with a range; the others become constants."""
     ranged: list[str] = []
-    # constants and parameters: values use earlier constants/parameters only
-    for st in statements[1:]:
-        if st.kind not in ("const", "param") or scope.declared.get(st.name or "") is not st:
+    for st in body:
+        if st.kind not in ("const", "param") or not scope.owns(st):
             continue
         value = _constant_value(scope, st, st.expr)
         q = Quantity(st.name or "", st.kind, st.span, st.name_span or st.span, st.unit, st.doc, value)
         if st.kind == "param" and st.low is not None:
             ranged.append(q.name)
-        else:
-            if value is not None:
-                scope.constants[symbol(q.name)] = value
-        quantities[q.name] = q
-        spans[f"{st.kind} {q.name}"] = q.name_span
+        elif value is not None:
+            scope.constants[symbol(q.name)] = value
+        scope.quantities[q.name] = q
+        scope.spans[f"{st.kind} {q.name}"] = q.name_span
+    return ranged
 
-    for st in statements[1:]:
-        if st.kind in ("state", "input") and scope.declared.get(st.name or "") is st:
-            quantities[st.name or ""] = Quantity(st.name or "", st.kind, st.span, st.name_span or st.span, st.unit, st.doc)
-            spans[f"{st.kind} {st.name}"] = st.name_span or st.span
 
-    # ranges (after all constants are known) -------------------------------------
-    for st in statements[1:]:
-        if st.low is None or st.high is None or scope.declared.get(st.name or "") is not st:
+def _states_and_inputs(scope: _Scope, body: list[Statement]) -> None:
+    for st in body:
+        if st.kind in ("state", "input") and scope.owns(st):
+            name = st.name or ""
+            scope.quantities[name] = Quantity(name, st.kind, st.span, st.name_span or st.span, st.unit, st.doc)
+            scope.spans[f"{st.kind} {name}"] = st.name_span or st.span
+
+
+def _ranges(scope: _Scope, body: list[Statement], ranged: list[str]) -> list[str]:
+    """Check and attach every `in LO .. HI` (after all constants are known). Returns the
+    ranged parameters whose range holds; a parameter whose range does not is used at its
+    nominal value, as a constant."""
+    for st in body:
+        if st.low is None or st.high is None or not scope.owns(st):
             continue
-        lo = _range_value(scope, st, st.low)
-        hi = _range_value(scope, st, st.high)
-        q = quantities[st.name or ""]
-        if lo is None or hi is None:
-            continue
-        if not _less(lo, hi):
-            scope.add("bad-range", f"range of '{q.name}' is empty: {_show(lo)} .. {_show(hi)} needs LO < HI",
-                      st.range_span, f"range {q.name}")
-            continue
-        if q.kind == "param" and q.value is not None and not (_less_eq(lo, q.value) and _less_eq(q.value, hi)):
-            scope.add("bad-range", f"nominal value {_show(q.value)} of '{q.name}' lies outside its range {_show(lo)} .. {_show(hi)}",
-                      st.range_span, f"nominal {q.name}")
-        quantities[q.name] = Quantity(q.name, q.kind, q.span, q.name_span, q.unit, q.doc, q.value, lo, hi)
-    ranged = [p for p in ranged if quantities[p].low is not None]
-    for p in list(quantities):
-        q = quantities[p]
+        q = scope.quantities[st.name or ""]
+        bounds = _range_bounds(scope, st, q)
+        if bounds is not None:
+            scope.quantities[q.name] = replace(q, low=bounds[0], high=bounds[1])
+    for name, q in scope.quantities.items():
         if q.kind == "param" and q.low is None and q.value is not None:
-            scope.constants[symbol(p)] = q.value
+            scope.constants[symbol(name)] = q.value
+    return [p for p in ranged if scope.quantities[p].low is not None]
 
-    states = tuple(st.name for st in by_kind.get("state", []) if scope.declared.get(st.name or "") is st)
-    # Findings about the operating envelope (anchor "envelope") point at the state ranges in
-    # every model, with or without `expect regular`: the first state without a range when the
-    # envelope is not a box, else the range of the first state.
-    state_stmts = [st for st in by_kind.get("state", []) if scope.declared.get(st.name or "") is st]
-    unranged = [st for st in state_stmts if st.range_span is None]
+
+def _range_bounds(scope: _Scope, st: Statement, q: Quantity) -> tuple[sp.Expr, sp.Expr] | None:
+    """(LO, HI) of a declaration's range when both are constant and LO < HI; a nominal
+    value outside its range is reported but the range is kept."""
+    assert st.low is not None and st.high is not None
+    lo = _range_value(scope, st, st.low)
+    hi = _range_value(scope, st, st.high)
+    if lo is None or hi is None:
+        return None
+    if not _less(lo, hi):
+        scope.add("bad-range", f"range of '{q.name}' is empty: {_show(lo)} .. {_show(hi)} needs LO < HI",
+                  st.range_span, f"range {q.name}")
+        return None
+    if q.kind == "param" and q.value is not None and not (_less_eq(lo, q.value) and _less_eq(q.value, hi)):
+        scope.add("bad-range", f"nominal value {_show(q.value)} of '{q.name}' lies outside its range {_show(lo)} .. {_show(hi)}",
+                  st.range_span, f"nominal {q.name}")
+    return lo, hi
+
+
+def _owned_names(scope: _Scope, stmts: list[Statement]) -> tuple[str, ...]:
+    return tuple(st.name or "" for st in stmts if scope.owns(st))
+
+
+def _envelope_span(scope: _Scope, state_stmts: list[Statement]) -> None:
+    """Findings about the operating envelope (anchor "envelope") point at the state ranges in
+    every model, with or without `expect regular`: the first state without a range when the
+    envelope is not a box, else the range of the first state."""
+    declared = [st for st in state_stmts if scope.owns(st)]
+    unranged = [st for st in declared if st.range_span is None]
     if unranged:
-        spans["envelope"] = unranged[0].name_span or unranged[0].span
-    elif state_stmts and state_stmts[0].range_span is not None:
-        spans["envelope"] = state_stmts[0].range_span
-    inputs = tuple(st.name for st in by_kind.get("input", []) if scope.declared.get(st.name or "") is st)
-    dynamic = set(states) | set(inputs) | set(ranged)
+        scope.spans["envelope"] = unranged[0].name_span or unranged[0].span
+    elif declared and declared[0].range_span is not None:
+        scope.spans["envelope"] = declared[0].range_span
 
-    # definitions: may use states, inputs, parameters and earlier definitions
-    for st in by_kind.get("let", []):
-        if scope.declared.get(st.name or "") is not st or st.expr is None:
+
+def _definitions(scope: _Scope, lets: list[Statement], dynamic: set[str]) -> None:
+    """`let` definitions: may use states, inputs, ranged parameters and earlier definitions."""
+    for st in lets:
+        if not scope.owns(st) or st.expr is None:
             continue
-        value = _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"let {st.name}")
-        scope.lets[symbol(st.name or "")] = value
-        quantities[st.name or ""] = Quantity(st.name or "", "let", st.span, st.name_span or st.span, value=value)
-        spans[f"let {st.name}"] = st.name_span or st.span
+        name = st.name or ""
+        value = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"let {st.name}")
+        scope.lets[symbol(name)] = value
+        scope.quantities[name] = Quantity(name, "let", st.span, st.name_span or st.span, value=value)
+        scope.spans[f"let {st.name}"] = st.name_span or st.span
 
-    # rates -------------------------------------------------------------------
+
+def _rates(scope: _Scope, by_kind: dict[str, list[Statement]], dynamic: set[str]
+           ) -> tuple[dict[str, sp.Expr], dict[str, Statement]]:
+    """F(x, u) per state, resolved: one rate per declared state (rates for anything else
+    and second rates are reported), then the states left without one."""
     rates: dict[str, sp.Expr] = {}
     rate_stmts: dict[str, Statement] = {}
     for st in by_kind.get("rate", []):
         name = st.name or ""
         target = scope.declared.get(name)
         if target is None or target.kind != "state":
-            what = f"the {target.kind} '{name}'" if target is not None else f"'{name}', which is not declared"
-            close = _did_you_mean(scope, name, ("state",)) if target is None else None
-            scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, f"rate {name}",
-                      hint=close or f"declare `state {name}` or remove this rate")
-            _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"rate {name}")
-            continue
-        if name in rate_stmts:
+            _orphan_rate(scope, st, target, dynamic)
+        elif name in rate_stmts:
             first = rate_stmts[name].span.line
             scope.add("duplicate-name", f"second rate for state '{name}' (the first is on line {first})",
                       st.name_span, f"rate {name} twice")
-            continue
-        rate_stmts[name] = st
-        rates[name] = _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"rate {name}")
-        spans[f"rate {name}"] = st.expr.span if st.expr else st.span
+        else:
+            rate_stmts[name] = st
+            rates[name] = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"rate {name}")
+            scope.spans[f"rate {name}"] = st.expr.span if st.expr else st.span
     for st in by_kind.get("state", []):
         name = st.name or ""
-        if scope.declared.get(name) is st and name not in rate_stmts:
+        if scope.owns(st) and name not in rate_stmts:
             scope.add("missing-rate", f"state '{name}' has no rate", st.name_span, f"state {name}",
                       hint=f"add `rate {name} = ...`")
+    return rates, rate_stmts
 
-    # outputs -------------------------------------------------------------------
+
+def _orphan_rate(scope: _Scope, st: Statement, target: Statement | None, dynamic: set[str]) -> None:
+    """A rate for a name that is not a state: reported, and its expression still checked."""
+    name = st.name or ""
+    what = f"the {target.kind} '{name}'" if target is not None else f"'{name}', which is not declared"
+    close = _did_you_mean(scope, name, ("state",)) if target is None else None
+    scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, f"rate {name}",
+              hint=close or f"declare `state {name}` or remove this rate")
+    _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"rate {name}")
+
+
+def _outputs(scope: _Scope, stmts: list[Statement], dynamic: set[str], inputs: tuple[str, ...]
+             ) -> tuple[list[str], dict[str, sp.Expr]]:
+    """y = h(x) per output, resolved; an output that uses an input is reported and taken
+    with the inputs at zero."""
     output_exprs: dict[str, sp.Expr] = {}
     outputs = []
     input_syms = {symbol(u) for u in inputs}
-    for st in by_kind.get("output", []):
+    for st in stmts:
         name = st.name or ""
-        if scope.declared.get(name) is not st or st.expr is None:
+        if not scope.owns(st) or st.expr is None:
             continue
-        value = _resolve(scope, st.expr, allowed=dynamic | set(_let_names(scope)), where=f"output {name}")
-        spans[f"output {name}"] = st.expr.span
+        value = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"output {name}")
+        scope.spans[f"output {name}"] = st.expr.span
         used_inputs = sorted(str(s) for s in value.free_symbols & input_syms)
         if used_inputs:
             ref = next((r for r in st.expr.names if r.name in used_inputs), None)
@@ -283,34 +385,7 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
             value = value.xreplace({s: sp.Integer(0) for s in input_syms})
         output_exprs[name] = value
         outputs.append(name)
-
-    smooth = _check_smooth(scope, statements)
-    input_affine = _check_affine(scope, rates, rate_stmts, states, inputs, ranged)
-
-    points = _points(scope, by_kind.get("point", []), states, inputs, spans)
-    points = _with_tolerances(scope, points, by_kind.get("point", []))
-    claims, waivers = _claims_and_waivers(scope, by_kind, outputs, points, spans)
-    _unused(scope, statements, inputs)
-
-    model = Model(
-        path=path,
-        name=header.name,
-        title=header.doc,
-        quantities=MappingProxyType(quantities),
-        states=tuple(s for s in states if s in rates),
-        inputs=inputs,
-        outputs=tuple(outputs),
-        rates=MappingProxyType(rates),
-        output_exprs=MappingProxyType(output_exprs),
-        points=tuple(points),
-        claims=tuple(claims),
-        waivers=tuple(waivers),
-        spans=MappingProxyType(spans),
-        ranged_params=tuple(ranged),
-        input_affine=input_affine,
-        smooth=smooth,
-    )
-    return model, scope.findings
+    return outputs, output_exprs
 
 
 # -- helpers ----------------------------------------------------------------------
@@ -474,8 +549,8 @@ def _check_affine(scope: _Scope, rates: dict[str, sp.Expr], rate_stmts: dict[str
     return affine
 
 
-def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inputs: tuple[str, ...],
-            spans: dict[str, Span]) -> list[OperatingPoint]:
+def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...]) -> list[OperatingPoint]:
+    """Operating points: each sets every state (inputs may be left out to be solved for)."""
     points: list[OperatingPoint] = []
     seen: dict[str, Statement] = {}
     for st in stmts:
@@ -485,36 +560,44 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...], inpu
                       st.name_span, f"point {name} twice")
             continue
         seen[name] = st
-        values: dict[str, sp.Expr] = {}
-        value_spans: dict[str, Span] = {}
-        given: set[str] = set()
-        for target, expr in st.assignments:
-            kind = scope.declared.get(target.name)
-            if kind is None or kind.kind not in ("state", "input"):
-                what = f"a {kind.kind}" if kind is not None else "not declared"
-                scope.add("unknown-name", f"point '{name}' sets '{target.name}', which is {what}; points set states and inputs",
-                          target.span, f"point {name} sets {target.name}", point=name,
-                          hint=_did_you_mean(scope, target.name, ("state", "input")))
-                continue
-            if target.name in values:
-                scope.add("duplicate-name", f"point '{name}' sets '{target.name}' twice", target.span,
-                          f"point {name} sets {target.name} twice", point=name)
-                continue
-            given.add(target.name)
-            value = _point_value(scope, name, target.name, expr)
-            if value is not None:
-                values[target.name] = value
-                value_spans[target.name] = expr.span
+        values, value_spans, given = _point_assignments(scope, st)
         # a state given with a bad value is reported once, at the value, not again as missing
         missing = [s for s in states if s not in given]
         if missing:
             scope.add("point-incomplete", f"point '{name}' does not give state{'s' if len(missing) > 1 else ''} "
                       + ", ".join(repr(m) for m in missing), st.name_span, f"point {name}", point=name,
                       hint="every state must be given; inputs may be left out to be solved for")
-        spans[f"point {name}"] = st.name_span or st.span
+        scope.spans[f"point {name}"] = st.name_span or st.span
         points.append(OperatingPoint(name, st.span, st.name_span or st.span, MappingProxyType(values),
                                      MappingProxyType(value_spans), _parametric_values(scope, st, values)))
     return points
+
+
+def _point_assignments(scope: _Scope, st: Statement) -> tuple[dict[str, sp.Expr], dict[str, Span], set[str]]:
+    """A point's values by state/input name, their spans, and the names it sets (also
+    those whose value was reported as not constant)."""
+    name = st.name or ""
+    values: dict[str, sp.Expr] = {}
+    value_spans: dict[str, Span] = {}
+    given: set[str] = set()
+    for target, expr in st.assignments:
+        kind = scope.declared.get(target.name)
+        if kind is None or kind.kind not in ("state", "input"):
+            what = f"a {kind.kind}" if kind is not None else "not declared"
+            scope.add("unknown-name", f"point '{name}' sets '{target.name}', which is {what}; points set states and inputs",
+                      target.span, f"point {name} sets {target.name}", point=name,
+                      hint=_did_you_mean(scope, target.name, ("state", "input")))
+            continue
+        if target.name in values:
+            scope.add("duplicate-name", f"point '{name}' sets '{target.name}' twice", target.span,
+                      f"point {name} sets {target.name} twice", point=name)
+            continue
+        given.add(target.name)
+        value = _point_value(scope, name, target.name, expr)
+        if value is not None:
+            values[target.name] = value
+            value_spans[target.name] = expr.span
+    return values, value_spans, given
 
 
 def _parametric_values(scope: _Scope, st: Statement, values: dict[str, sp.Expr]) -> MappingProxyType:
@@ -531,8 +614,6 @@ def _parametric_values(scope: _Scope, st: Statement, values: dict[str, sp.Expr])
 
 def _with_tolerances(scope: _Scope, points: list[OperatingPoint], stmts: list[Statement]) -> list[OperatingPoint]:
     """Each point's `tolerance T`: a constant with 0 <= T < 1 (a relative residual)."""
-    from dataclasses import replace
-
     written = {st.name: st.tolerance for st in stmts if st.tolerance is not None}
     out = []
     for p in points:
@@ -581,75 +662,87 @@ def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp
     return value
 
 
-def _claims_and_waivers(scope: _Scope, by_kind: dict[str, list[Statement]], outputs: list[str],
-                        points: list[OperatingPoint], spans: dict[str, Span]) -> tuple[list[ClaimDecl], list[Waiver]]:
+def _claims(scope: _Scope, stmts: list[Statement], outputs: list[str],
+            points: list[OperatingPoint]) -> list[ClaimDecl]:
+    """The `expect` lines that name a known claim, output and point."""
+    point_names = {p.name for p in points}
+    claims: list[ClaimDecl] = []
+    for st in stmts:
+        decl = _claim(scope, st, outputs, point_names)
+        if decl is not None:
+            claims.append(decl)
+            scope.spans[decl.anchor] = st.span
+    return claims
+
+
+def _claim(scope: _Scope, st: Statement, outputs: list[str], point_names: set[str]) -> ClaimDecl | None:
+    claim = st.claim
+    assert claim is not None
+    if claim.kind not in CLAIMS:
+        close = near_miss(claim.kind, CLAIMS)
+        scope.add("unknown-reference", f"unknown claim '{claim.kind}'", claim.span, f"claim {claim.kind}",
+                  hint=f"did you mean `{close}`?" if close else "claims: " + ", ".join(CLAIMS))
+        return None
+    if (claim.output is not None) != (claim.kind == "relative_degree"):
+        form = "relative_degree(OUTPUT) = N" if claim.kind == "relative_degree" else claim.kind
+        scope.add("syntax", f"write this claim as `expect {form}`", claim.span, f"claim form {claim.kind}")
+        return None
+    ok, value = _claimed_degree(scope, claim, outputs) if claim.output is not None else (True, None)
+    at = st.at_point
+    if at is not None and at.name not in point_names:
+        scope.add("unknown-reference", f"expect names point '{at.name}', which is not declared", at.span,
+                  f"expect point {at.name}", hint=_suggest(at.name, point_names) or _choices("points", point_names))
+        ok = False
+    if not ok:
+        return None
+    return ClaimDecl(claim.kind, st.span, claim.output.name if claim.output else None, value, at.name if at else None)
+
+
+def _claimed_degree(scope: _Scope, claim: Claim, outputs: list[str]) -> tuple[bool, int | None]:
+    """(the output is known and the degree is a whole number >= 1, the degree) of
+    `expect relative_degree(OUTPUT) = N`."""
+    assert claim.output is not None
+    ok = True
+    if claim.output.name not in outputs:
+        scope.add("unknown-reference", f"expect names '{claim.output.name}', which is not an output",
+                  claim.output.span, f"expect output {claim.output.name}",
+                  hint=_suggest(claim.output.name, outputs) or (("outputs: " + ", ".join(outputs)) if outputs
+                                                                else "the model declares no output"))
+        ok = False
+    v = claim.value.value if claim.value else None
+    if v is None or not (v.is_Integer and v > 0):
+        scope.add("syntax", "a relative degree is a whole number >= 1", claim.value.span if claim.value else claim.span,
+                  f"claim value {claim.output.name}")
+        return False, None
+    return ok, int(v)
+
+
+def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]) -> list[Waiver]:
+    """The `waive` lines that name a rule that may be waived, a known point and a reason."""
     from plantlint.core.catalogue import load_catalogue
 
     catalogue = load_catalogue()
     point_names = {p.name for p in points}
-    claims: list[ClaimDecl] = []
-    for st in by_kind.get("expect", []):
-        claim = st.claim
-        assert claim is not None
-        ok = True
-        if claim.kind not in CLAIMS:
-            close = near_miss(claim.kind, CLAIMS)
-            scope.add("unknown-reference", f"unknown claim '{claim.kind}'", claim.span, f"claim {claim.kind}",
-                      hint=f"did you mean `{close}`?" if close else "claims: " + ", ".join(CLAIMS))
-            continue
-        if (claim.output is not None) != (claim.kind == "relative_degree"):
-            form = "relative_degree(OUTPUT) = N" if claim.kind == "relative_degree" else claim.kind
-            scope.add("syntax", f"write this claim as `expect {form}`", claim.span, f"claim form {claim.kind}")
-            continue
-        value = None
-        if claim.output is not None:
-            if claim.output.name not in outputs:
-                scope.add("unknown-reference", f"expect names '{claim.output.name}', which is not an output",
-                          claim.output.span, f"expect output {claim.output.name}",
-                          hint=_suggest(claim.output.name, outputs) or (("outputs: " + ", ".join(outputs)) if outputs
-                                                                        else "the model declares no output"))
-                ok = False
-            v = claim.value.value if claim.value else None
-            if v is None or not (v.is_Integer and v > 0):
-                scope.add("syntax", "a relative degree is a whole number >= 1", claim.value.span if claim.value else claim.span,
-                          f"claim value {claim.output.name}")
-                ok = False
-            else:
-                value = int(v)
-        at = st.at_point
-        if at is not None and at.name not in point_names:
-            scope.add("unknown-reference", f"expect names point '{at.name}', which is not declared", at.span,
-                      f"expect point {at.name}", hint=_suggest(at.name, point_names) or _choices("points", point_names))
-            ok = False
-        if ok:
-            decl = ClaimDecl(claim.kind, st.span, claim.output.name if claim.output else None, value,
-                             at.name if at else None)
-            claims.append(decl)
-            spans[decl.anchor] = st.span
     waivers: list[Waiver] = []
-    for st in by_kind.get("waive", []):
+    for st in stmts:
         rule = st.rule_id
         assert rule is not None
+        at = st.at_point
         if rule.name not in catalogue:
             scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, f"waive {rule.name}",
                       hint=_suggest(rule.name, catalogue.ids()) or "`plantlint rules` lists the rule ids")
-            continue
-        if not catalogue.get(rule.name).waivable:
+        elif not catalogue.get(rule.name).waivable:
             scope.add("waiver-refused", f"findings of '{rule.name}' cannot be waived: they mean the file was not "
                       "read as a model, so nothing about it was checked", rule.span, f"waive {rule.name}",
                       hint="remove this waiver and fix what the rule reports")
-            continue
-        at = st.at_point
-        if at is not None and at.name not in point_names:
+        elif at is not None and at.name not in point_names:
             scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,
                       f"waive point {at.name}", hint=_suggest(at.name, point_names) or _choices("points", point_names))
-            continue
-        reason = (st.doc or "").strip()
-        if not reason:
+        elif not (st.doc or "").strip():
             scope.add("syntax", "a waiver needs a reason", st.span, f"waive {rule.name} reason")
-            continue
-        waivers.append(Waiver(rule.name, at.name if at else None, reason, st.span))
-    return claims, waivers
+        else:
+            waivers.append(Waiver(rule.name, at.name if at else None, (st.doc or "").strip(), st.span))
+    return waivers
 
 
 def _suggest(name: str, candidates: "list[str] | set[str] | tuple[str, ...]") -> str | None:
@@ -671,7 +764,8 @@ def _choices(what: str, names: set[str]) -> str:
     return f"{what}: " + ", ".join(sorted(names)) if names else f"the model declares no {what}"
 
 
-def _unused(scope: _Scope, statements: list[Statement], inputs: tuple[str, ...]) -> None:
+def _unused(scope: _Scope) -> None:
+    """Constants, parameters, definitions and inputs that nothing uses (a warning)."""
     for name, st in scope.declared.items():
         if st.kind in ("const", "param", "let", "input") and name not in scope.used:
             what = {"const": "constant", "param": "parameter", "let": "definition", "input": "input"}[st.kind]

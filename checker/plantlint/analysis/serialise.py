@@ -11,31 +11,36 @@
   It is built in the worker only when explain asks for it, so ``check`` never pays for it.
 
 Everything here is plain data (str, numbers, bools, lists, dicts), so it crosses a
-process boundary and goes through the same budget and policy as ``check``.
+process boundary and goes through the same budget and policy as ``check``. The readers
+of that data (:func:`structural_facts`, :func:`envelope_witness`) need no sympy, so the
+analysis modules are imported only by the functions that build it.
 """
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import sympy as sp
-
-from plantlint.analysis.distributions import distributions_json
-from plantlint.analysis.engine import Analysis, PointAnalysis
-from plantlint.analysis.equilibria import equilibrium_json
-from plantlint.analysis.linearisation import Linearisation, ModeGroup, linearisation_json
-from plantlint.analysis.normal_form import normal_form_json
-from plantlint.analysis.parametric import parametric_json
 from plantlint.analysis.stages import STAGES
-from plantlint.analysis.structure import envelope_json, lie_name, point_json
-from plantlint.analysis.zero_dynamics import show_eigenvalues, zero_dynamics_json
-from plantlint.language.printer import show_expr, show_number
+
+if TYPE_CHECKING:
+    import sympy as sp
+
+    from plantlint.analysis.engine import Analysis, PointAnalysis
+    from plantlint.analysis.linearisation import Linearisation
 
 
 # -- the analysis object of the reports --------------------------------------------
 
 def analysis_json(a: Analysis) -> dict[str, Any]:
     """The ``analysis`` object of the JSON report (docs/report-format.md)."""
+    from plantlint.analysis.distributions import distributions_json
+    from plantlint.analysis.equilibria import equilibrium_json
+    from plantlint.analysis.linearisation import linearisation_json
+    from plantlint.analysis.normal_form import normal_form_json
+    from plantlint.analysis.parametric import parametric_json
+    from plantlint.analysis.structure import envelope_json, point_json
+    from plantlint.analysis.zero_dynamics import zero_dynamics_json
+
     m = a.model
     points: dict[str, Any] = {}
     for pa in a.points:
@@ -108,6 +113,11 @@ def structural_facts(data: dict[str, Any] | None) -> dict[str, Any]:
     return out
 
 
+def envelope_witness(data: dict[str, Any] | None) -> dict[str, float]:
+    """Where the relative degree fails in the envelope (state and parameter values), or {}."""
+    return ((data or {}).get("envelope") or {}).get("witness") or {}
+
+
 # -- the derivation shown by explain -----------------------------------------------
 
 #: Expressions longer than this (characters) are shown with sub-expressions named.
@@ -116,6 +126,10 @@ LONG = 60
 
 def compact_many(exprs: list[sp.Expr]) -> tuple[list[tuple[str, str]], list[str]]:
     """Name the common sub-expressions of ``exprs`` when that makes them shorter."""
+    import sympy as sp
+
+    from plantlint.language.printer import show_expr
+
     plain = [show_expr(e, limit=10**6) for e in exprs]
     if all(len(p) <= LONG for p in plain):
         return [], plain
@@ -151,6 +165,8 @@ def explain_json(a: Analysis, memo: dict[str, Any] | None = None) -> dict[str, A
 
 
 def _header(a: Analysis) -> dict[str, Any]:
+    from plantlint.language.printer import show_expr, show_number
+
     m = a.model
     return {
         "plant": m.name,
@@ -167,6 +183,8 @@ def _header(a: Analysis) -> dict[str, Any]:
 
 def _derivation(a: Analysis) -> dict[str, Any]:
     """The Lie-derivative table (with names), the decoupling matrix A and b = L_f^r h."""
+    from plantlint.analysis.structure import lie_name
+
     k, st = a.kernel, a.structure
     plant = k.plant
     table = []
@@ -196,6 +214,8 @@ def _derivation(a: Analysis) -> dict[str, Any]:
 
 
 def _envelope(a: Analysis) -> dict[str, Any]:
+    from plantlint.language.printer import show_number
+
     env = a.envelope
     box = {str(s): [show_number(lo), show_number(hi)]
            for s, (lo, hi) in {**a.kernel.plant.state_box, **a.kernel.plant.param_box}.items()}
@@ -219,6 +239,10 @@ def _distributions(a: Analysis) -> dict[str, Any] | None:
 
 
 def _point(pa: PointAnalysis) -> dict[str, Any]:
+    from plantlint.analysis.parametric import parametric_json
+    from plantlint.analysis.zero_dynamics import show_eigenvalues
+    from plantlint.language.printer import show_expr, show_number
+
     eq = pa.equilibrium
     out: dict[str, Any] = {
         "name": pa.name,
@@ -260,6 +284,10 @@ def _point(pa: PointAnalysis) -> dict[str, Any]:
 
 def _linearisation(lin: Linearisation) -> dict[str, Any]:
     """The linearisation for display: exact entries where the data are rational."""
+    import sympy as sp
+
+    from plantlint.analysis.linearisation import ModeGroup
+    from plantlint.language.printer import show_number
 
     def entry(e: sp.Expr) -> str:
         shown = show_number(e, mark_inexact=True)
@@ -288,6 +316,8 @@ def _linearisation(lin: Linearisation) -> dict[str, Any]:
 
 def show_repeated(values: tuple[complex, ...]) -> str:
     """Eigenvalues with repeated ones counted: ``0 (4 times), -1``."""
+    from plantlint.analysis.zero_dynamics import show_eigenvalues
+
     distinct: list[tuple[complex, int]] = []
     for z in values:
         if distinct and distinct[-1][0] == z:
@@ -301,4 +331,5 @@ def show_repeated(values: tuple[complex, ...]) -> str:
     return show_eigenvalues([z for z, _ in distinct]) if all(c == 1 for _, c in distinct) else ", ".join(shown)
 
 
-__all__ = ["analysis_json", "compact_many", "explain_json", "show_repeated", "structural_facts"]
+__all__ = ["analysis_json", "compact_many", "envelope_witness", "explain_json", "show_repeated",
+           "structural_facts"]

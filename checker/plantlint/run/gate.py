@@ -23,6 +23,7 @@ from pathlib import Path
 from typing import Any
 
 from plantlint import __version__
+from plantlint.analysis.serialise import structural_facts
 from plantlint.core.findings import FileReport, Finding, Report, Severity
 from plantlint.run.config import Config
 from plantlint.run.pipeline import RawResult, finish
@@ -234,8 +235,6 @@ def waiver_changes(before: list[Any], after: list[Any]) -> list[dict[str, Any]]:
 def summary(analysis: dict[str, Any] | None) -> dict[str, Any]:
     """The structural facts a reviewer cares about, flattened to comparable values in words
     (read from the one serialisation by :func:`plantlint.analysis.serialise.structural_facts`)."""
-    from plantlint.analysis.serialise import structural_facts
-
     return {what: _words(value) for what, value in structural_facts(analysis).items()}
 
 

@@ -16,6 +16,7 @@ from __future__ import annotations
 
 from typing import Any, TextIO
 
+from plantlint.analysis.serialise import envelope_witness
 from plantlint.core.findings import FileReport, Finding, Report
 from plantlint.report.formats.base import adjustment_text, baseline_of, findings_in_order, one_line, undecided_phrase
 
@@ -86,7 +87,7 @@ def _value(key: str, value: object, analysis: dict[str, Any] | None, after: bool
     if key.endswith("zero dynamics") and isinstance(value, str):
         return _VERDICTS.get(value, value)
     if key == "envelope" and value == "singular" and after and analysis:
-        witness = (analysis.get("envelope") or {}).get("witness") or {}
+        witness = envelope_witness(analysis)
         if witness:
             where = ", ".join(f"{k} = {format(v, '.6g') if isinstance(v, float) else v}" for k, v in witness.items())
             return f"singular at ({where})"

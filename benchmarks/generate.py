@@ -290,7 +290,7 @@ def dense_chain(n: int) -> ModelSpec:
     (1 + x_(i-1)^2) exp(-x_i^2/4)/(2 + x_(i+1)^2) >= 0.41 beats |b x_(i+1)/(1 + x_i^2)| <= 0.125."""
     spec = ModelSpec(f"dense_chain_{n}", f"{n} neighbour-coupled states, products, quotients and exp",
                      "dense_chain", n)
-    spec.constants = [("a", R(1), "1/s"), ("b", R(1, 4), "1/s")]
+    spec.constants = [("a", R(1), "1/s")] + ([("b", R(1, 4), "1/s")] if n > 2 else [])
     a, b = sym("a"), sym("b")
     x = [sym(f"x{i + 1}") for i in range(n)]
     spec.states = [Quantity(f"x{i + 1}", None, R(-1, 2), R(1, 2)) for i in range(n)]

@@ -243,7 +243,8 @@ def test_tiny_budget_stops_each_model_and_the_run_goes_on(workspace: Path, tmp_p
     report = json.loads(run.stdout)
     files = report["files"]
     assert [f["path"] for f in files] == paths
-    stages = ("structure", "envelope", "points", "zero dynamics", "distributions", "claims")
+    from plantlint.analysis.stages import STAGES as stages  # every stage is named, in words
+
     for file in files:
         stop = [f for f in file["findings"] if f["rule"] == "analysis-incomplete"]
         assert len(stop) == 1 and stop[0]["severity"] == "error" and stop[0]["decided"] is False
@@ -298,3 +299,28 @@ def test_progress_goes_to_a_terminal_only(workspace: Path, reference: Run) -> No
     expected = [f for f in json.loads(reference.stdout)["files"] if f["path"] in paths]
     assert json.loads(stdout)["files"] == expected
     assert b"analysing models" in drawn and b"Traceback" not in drawn
+
+
+def test_workers_get_the_analysis_settings_and_the_cache_key_follows_them() -> None:
+    """What a worker receives is the frozen AnalysisSettings (the run's Config stays in the
+    parent), and every analysis setting is part of the cache key, exactly as before."""
+    from dataclasses import FrozenInstanceError, replace
+
+    from plantlint.core.settings import AnalysisSettings
+    from plantlint.run.config import Config
+    from plantlint.run.runner import Cache, analyse_all
+
+    settings = Config(envelope_seconds=2.0, envelope_boxes=50, point_tolerance=1e-3).analysis
+    assert settings == AnalysisSettings(2.0, 50, 1e-3)
+    with pytest.raises(FrozenInstanceError):
+        settings.envelope_boxes = 1  # type: ignore[misc]
+    model = b"plant p\nstate x in -1 .. 1\ninput u\nrate x = -x + u\noutput y = x\npoint o: x = 0\n"
+    (raw,) = analyse_all([model], settings, jobs=1, timeout=60.0)
+    assert raw.plant == "p" and raw.stop is None and raw.analysis is not None
+    # y' = -x + u: the input appears in the first derivative, relative degree 1 (definition in
+    # Khalil, Nonlinear Systems, 3rd ed., sec. 13.2; from memory)
+    assert raw.analysis["relative_degree"] == {"y": 1}
+    keys = {Cache(None, replace(Config(), **change).analysis_key()).key(model)
+            for change in ({}, {"envelope_seconds": 4.0}, {"envelope_boxes": 7}, {"point_tolerance": 1e-6})}
+    assert len(keys) == 4
+    assert Config().analysis_key() == "env=5.0/20000 tol=0.0"  # the key text of earlier versions: old entries stay valid

@@ -25,6 +25,7 @@ from plantlint.core.findings import (
     waiver_from_data,
     waiver_to_data,
 )
+from plantlint.core.limits import MAX_BYTES
 from plantlint.core.settings import AnalysisSettings
 from plantlint.run.config import Config
 
@@ -218,7 +219,7 @@ def claims_in_text(data: bytes) -> list[Finding]:
     """The `expect` lines of a model that was not read (the analysis stopped before it was
     parsed), found line by line without parsing: each is a claim not decided."""
     out = []
-    for number, raw in enumerate(data[:1 << 20].decode("utf-8", errors="replace").splitlines(), start=1):
+    for number, raw in enumerate(data[:MAX_BYTES].decode("utf-8", errors="replace").splitlines(), start=1):
         m = _CLAIM.fullmatch(raw)
         if m is None:
             continue

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from difflib import get_close_matches
 from functools import lru_cache
-from typing import Callable, Iterator, Sequence, Union
+from typing import Callable, Iterator, Sequence, TypeVar, Union
 
 import sympy as sp
 from lark import Lark, Token, Tree
@@ -542,6 +542,7 @@ class _Builder:
 #: What an expression node stands for while its parent is being built: an exact value,
 #: or the terms of a sum / factors of a product still being collected.
 _Value = Union[sp.Expr, "_Terms", "_Factors"]
+_Chain = TypeVar("_Chain", "_Terms", "_Factors")
 
 
 class _ExpressionBuilder:
@@ -628,30 +629,31 @@ class _ExpressionBuilder:
     # chains of + - (and of * /) are collected and built in one step: building them
     # pairwise costs time quadratic in their length
     def _add(self, node: Tree) -> _Terms:
-        return self._terms(node, lambda b: b)
-
-    def _sub(self, node: Tree) -> _Terms:
-        return self._terms(node, lambda b: -b)
-
-    def _mul(self, node: Tree) -> _Factors:
-        return self._factors(node, lambda b: b)
-
-    def _div(self, node: Tree) -> _Factors:
-        return self._factors(node, lambda b: sp.Pow(b, -1))
-
-    def _terms(self, node: Tree, signed: Callable[[sp.Expr], sp.Expr]) -> _Terms:
-        left, right = node.children
-        a, b = self.values[id(left)], self._built(right)
-        terms = a if isinstance(a, _Terms) else _Terms([_done(a)])
-        terms.append(signed(b))
+        terms, b = self._collected(node, _Terms)
+        terms.append(b)
         return terms
 
-    def _factors(self, node: Tree, power: Callable[[sp.Expr], sp.Expr]) -> _Factors:
+    def _sub(self, node: Tree) -> _Terms:
+        terms, b = self._collected(node, _Terms)
+        terms.append(-b)
+        return terms
+
+    def _mul(self, node: Tree) -> _Factors:
+        factors, b = self._collected(node, _Factors)
+        factors.append(b)
+        return factors
+
+    def _div(self, node: Tree) -> _Factors:
+        factors, b = self._collected(node, _Factors)
+        factors.append(sp.Pow(b, -1))
+        return factors
+
+    def _collected(self, node: Tree, chain: type[_Chain]) -> tuple[_Chain, sp.Expr]:
+        """The left operand as a chain of terms or factors (extended in place when it is
+        one already) and the right operand's value."""
         left, right = node.children
         a, b = self.values[id(left)], self._built(right)
-        factors = a if isinstance(a, _Factors) else _Factors([_done(a)])
-        factors.append(power(b))
-        return factors
+        return (a if isinstance(a, chain) else chain([_done(a)])), b
 
     def _pow(self, node: Tree) -> sp.Expr:
         base, exponent = node.children
@@ -670,13 +672,14 @@ def _operands_first(root: Tree | Token) -> Iterator[Tree | Token]:
     stack: list[tuple[Tree | Token, bool]] = [(root, False)]
     while stack:
         node, expanded = stack.pop()
-        if isinstance(node, Token) or expanded:
+        if expanded or isinstance(node, Token):
             yield node
             continue
         stack.append((node, True))
         named = node.data in ("call", "name")
-        stack.extend((child, False) for child in node.children
-                     if child is not None and not (named and isinstance(child, Token)))
+        for child in node.children:
+            if child is not None and not (named and isinstance(child, Token)):
+                stack.append((child, False))
 
 
 class _Terms(list):  # type: ignore[type-arg]

@@ -547,7 +547,8 @@ _Chain = TypeVar("_Chain", "_Terms", "_Factors")
 
 class _ExpressionBuilder:
     """Builds one expression's exact value from its parse tree, node by node, without
-    recursion (the nesting is bounded by MAX_DEPTH, checked on the text before parsing).
+    recursion (deep input cannot overflow the stack here; parentheses and runs of signs
+    are limited to MAX_DEPTH on the text, before parsing).
 
     Nodes are visited after their operands, which come off a stack: the last operand
     first. That order is part of the behaviour. Of two problems in one expression
@@ -555,11 +556,12 @@ class _ExpressionBuilder:
     mention first, which decides the mention a model finding points at (the first
     offending name in ``names``).
 
-    lark's ``Transformer_NonRecursive`` was tried in its place: the same spans (through
-    ``v_args(meta=True)``) and the same time on the largest benchmark models, but about
-    a fifth slower on a 9,000-term sum, and it visits left to right. The lists can be
-    put back in this order afterwards, but which of two problems is reported cannot,
-    and every problem would come wrapped in a ``VisitError``. So the walk stays here.
+    lark's ``Transformer_NonRecursive`` was tried in its place: no recursion either, the
+    same spans (node spans through ``v_args(meta=True)``) and the same time within the
+    noise of measurement (the largest benchmark models, a 9,000-term sum), but it visits
+    left to right. The lists can be put back in this order afterwards; which of two
+    problems is reported cannot, and every problem would come wrapped in a
+    ``VisitError``. So the walk stays here, small and explicit.
     """
 
     def __init__(self) -> None:

@@ -10,7 +10,8 @@ import random
 import numpy as np
 import sympy as sp
 
-from plantlint.analysis.equilibria import equilibrium_json, solve_point
+from plantlint.analysis.equilibria import solve_point
+from plantlint.analysis.serialise import equilibrium_json
 from plantlint.kernel.exact import number_decider, rank
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant

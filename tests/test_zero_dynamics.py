@@ -12,7 +12,8 @@ import scipy.signal
 import sympy as sp
 
 from plantlint.kernel.lie import Kernel
-from plantlint.analysis.normal_form import normal_form_at, normal_form_json
+from plantlint.analysis.normal_form import normal_form_at
+from plantlint.analysis.serialise import normal_form_json
 from plantlint.kernel.plant import Plant
 from plantlint.analysis.zero_dynamics import zero_dynamics_at, zero_dynamics_json
 

@@ -376,17 +376,3 @@ def _above(relative: float) -> str:
     if digit >= 10:
         digit, exponent = 1, exponent + 1
     return f"{digit}e{exponent}"
-
-
-def equilibrium_json(eq: Equilibrium) -> dict[str, object]:
-    """The analysis record for one point (floats for display; exact values stay in Python)."""
-    out: dict[str, float] = {}
-    for sym, value in eq.values.items():
-        try:
-            out[str(sym)] = float(value) if value.is_Rational else float(value.evalf(20))
-        except (TypeError, ValueError):
-            continue
-    record: dict[str, object] = {"equilibrium": eq.equilibrium, "values": out}
-    if eq.refinement is not None:
-        record["refinement"] = eq.refinement
-    return record

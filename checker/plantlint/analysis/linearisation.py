@@ -699,44 +699,4 @@ def _inconsistency(name: str, check: CrossCheck) -> tuple[Finding, ...]:
     ),)
 
 
-# -- report -------------------------------------------------------------------------------------
-def _pairs(values: Sequence[complex]) -> list[list[float]]:
-    return [[z.real, z.imag] for z in values]
-
-
-def _floats(rows: Sequence[Sequence[sp.Expr]]) -> list[list[float]]:
-    return [[float(e) if e.is_Rational else float(sp.N(e, 20)) for e in row] for row in rows]
-
-
-def _groups_json(groups: Sequence[ModeGroup]) -> list[dict[str, object]]:
-    return [{"eigenvalues": _pairs(g.eigenvalues), "polynomial": g.polynomial, "directions": list(g.directions)}
-            for g in groups]
-
-
-def linearisation_json(lin: Linearisation, outputs: int, inputs: int) -> dict[str, object]:
-    """The analysis record for one point (floats; exact values are in ``plantlint explain``)."""
-    computed = lin.status == "computed"
-    return {
-        "status": lin.status,
-        "reason": lin.reason or None,
-        "parameters": "nominal",
-        "exact": lin.exact,
-        "A": _floats(lin.A) if computed else None,
-        "B": _floats(lin.B) if computed else None,
-        "C": _floats(lin.C) if computed else None,
-        "D": [[0.0] * inputs for _ in range(outputs)],
-        "poles": _pairs(lin.poles),
-        "characteristic_polynomial": lin.characteristic_polynomial,
-        "controllability_rank": lin.controllability_rank,
-        "uncontrollable": _groups_json(lin.uncontrollable),
-        "observability_rank": lin.observability_rank,
-        "unobservable": _groups_json(lin.unobservable),
-        "transmission_zeros": _pairs(lin.zeros) if lin.zeros is not None else None,
-        "zero_polynomial": lin.zero_polynomial,
-        "zeros_note": lin.zeros_note or None,
-        "tolerance": lin.tolerance,
-        "cross_check": {"status": lin.cross_check.status, "detail": lin.cross_check.detail},
-    }
-
-
-__all__ = ["CrossCheck", "Linearisation", "ModeGroup", "cross_check", "linearisation_json", "linearise_at"]
+__all__ = ["CrossCheck", "Linearisation", "ModeGroup", "cross_check", "linearise_at"]

@@ -249,16 +249,3 @@ def _compact(expr: sp.Expr) -> sp.Expr:
     if angles:
         out = sp.cancel(out.subs({sp.cos(a) ** 2: 1 - sp.sin(a) ** 2 for a in angles}))
     return out
-
-
-def normal_form_json(nf: NormalForm) -> dict[str, object]:
-    """The analysis record of the normal form at one point."""
-    return {
-        "xi": list(nf.xi),
-        "eta": list(nf.eta),
-        "jacobian_rank": nf.jacobian_rank,
-        "invertible": nf.invertible,
-        "input_free": nf.input_free,
-        "zero_dynamics": list(nf.zero_dynamics) if nf.zero_dynamics is not None else None,
-        "note": nf.note or None,
-    }

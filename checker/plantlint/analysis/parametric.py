@@ -32,7 +32,7 @@ from __future__ import annotations
 import itertools
 import time
 from dataclasses import dataclass, field
-from typing import Any, Callable, Sequence
+from typing import Callable, Sequence
 
 import sympy as sp
 
@@ -607,35 +607,5 @@ def claim_failure(pp: ParametricPoint | None, prop: str, key: str | None = None)
            f"it is not decided: {v.detail}", False
 
 
-def verdict_json(v: BoxVerdict | None) -> dict[str, Any] | None:
-    if v is None:
-        return None
-    out: dict[str, Any] = {"outcome": v.outcome, "detail": v.detail}
-    if v.witness is not None:
-        out["witness"] = {k: float(x) for k, x in v.witness.items()}
-        out["witness_verdict"] = v.witness_verdict
-    if v.witness_eigenvalues:
-        out["witness_eigenvalues"] = [[z.real, z.imag] for z in v.witness_eigenvalues]
-    if v.boundary is not None:
-        out["boundary"] = v.boundary
-    if v.crossing is not None:
-        out["crossing"] = v.crossing
-    return out
-
-
-def parametric_json(pp: ParametricPoint) -> dict[str, Any]:
-    """The ``parameter_box`` record of a point in the JSON analysis."""
-    solved = {str(s): show_expr(v, 200) for s, v in pp.values.items() if s in pp.solved}
-    return {
-        "box": {k: [float(lo), float(hi)] for k, (lo, hi) in pp.box.items()},
-        "solved_inputs": solved,
-        "equilibrium": verdict_json(pp.equilibrium),
-        "decoupling": verdict_json(pp.decoupling),
-        "zero_dynamics": verdict_json(pp.zero_dynamics),
-        "controllability": verdict_json(pp.controllability),
-        "relative_degree": {o: verdict_json(v) for o, v in pp.rows.items()},
-    }
-
-
 __all__ = ["BoxVerdict", "OUTCOMES", "ParametricPoint", "box_controllability", "box_point", "box_zero_dynamics",
-           "claim_failure", "clock", "parametric_json", "verdict_json", "zero_polynomial"]
+           "claim_failure", "clock", "zero_polynomial"]

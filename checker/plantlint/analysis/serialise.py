@@ -23,10 +23,15 @@ from typing import TYPE_CHECKING, Any
 from plantlint.analysis.stages import STAGES
 
 if TYPE_CHECKING:
+    from collections.abc import Sequence
+
     import sympy as sp
 
     from plantlint.analysis.engine import Analysis, PointAnalysis
-    from plantlint.analysis.linearisation import Linearisation
+    from plantlint.analysis.equilibria import Equilibrium
+    from plantlint.analysis.linearisation import Linearisation, ModeGroup
+    from plantlint.analysis.normal_form import NormalForm
+    from plantlint.analysis.parametric import BoxVerdict, ParametricPoint
 
 
 # -- the analysis object of the reports --------------------------------------------
@@ -34,10 +39,6 @@ if TYPE_CHECKING:
 def analysis_json(a: Analysis) -> dict[str, Any]:
     """The ``analysis`` object of the JSON report (docs/report-format.md)."""
     from plantlint.analysis.distributions import distributions_json
-    from plantlint.analysis.equilibria import equilibrium_json
-    from plantlint.analysis.linearisation import linearisation_json
-    from plantlint.analysis.normal_form import normal_form_json
-    from plantlint.analysis.parametric import parametric_json
     from plantlint.analysis.structure import envelope_json, point_json
     from plantlint.analysis.zero_dynamics import zero_dynamics_json
 
@@ -84,6 +85,110 @@ def analysis_json(a: Analysis) -> dict[str, Any]:
     out["stages"] = {"completed": list(a.completed),
                      "not_completed": [s for s in STAGES if s not in a.completed]}
     return out
+
+
+# -- the records of one point (each stage's result, as the report holds it) ---------
+
+def equilibrium_json(eq: Equilibrium) -> dict[str, object]:
+    """The analysis record for one point (floats for display; exact values stay in Python)."""
+    out: dict[str, float] = {}
+    for sym, value in eq.values.items():
+        try:
+            out[str(sym)] = float(value) if value.is_Rational else float(value.evalf(20))
+        except (TypeError, ValueError):
+            continue
+    record: dict[str, object] = {"equilibrium": eq.equilibrium, "values": out}
+    if eq.refinement is not None:
+        record["refinement"] = eq.refinement
+    return record
+
+
+def normal_form_json(nf: NormalForm) -> dict[str, object]:
+    """The analysis record of the normal form at one point."""
+    return {
+        "xi": list(nf.xi),
+        "eta": list(nf.eta),
+        "jacobian_rank": nf.jacobian_rank,
+        "invertible": nf.invertible,
+        "input_free": nf.input_free,
+        "zero_dynamics": list(nf.zero_dynamics) if nf.zero_dynamics is not None else None,
+        "note": nf.note or None,
+    }
+
+
+def _pairs(values: Sequence[complex]) -> list[list[float]]:
+    return [[z.real, z.imag] for z in values]
+
+
+def _floats(rows: Sequence[Sequence[sp.Expr]]) -> list[list[float]]:
+    import sympy as sp
+
+    return [[float(e) if e.is_Rational else float(sp.N(e, 20)) for e in row] for row in rows]
+
+
+def _groups_json(groups: Sequence[ModeGroup]) -> list[dict[str, object]]:
+    return [{"eigenvalues": _pairs(g.eigenvalues), "polynomial": g.polynomial, "directions": list(g.directions)}
+            for g in groups]
+
+
+def linearisation_json(lin: Linearisation, outputs: int, inputs: int) -> dict[str, object]:
+    """The analysis record for one point (floats; exact values are in ``plantlint explain``)."""
+    computed = lin.status == "computed"
+    return {
+        "status": lin.status,
+        "reason": lin.reason or None,
+        "parameters": "nominal",
+        "exact": lin.exact,
+        "A": _floats(lin.A) if computed else None,
+        "B": _floats(lin.B) if computed else None,
+        "C": _floats(lin.C) if computed else None,
+        "D": [[0.0] * inputs for _ in range(outputs)],
+        "poles": _pairs(lin.poles),
+        "characteristic_polynomial": lin.characteristic_polynomial,
+        "controllability_rank": lin.controllability_rank,
+        "uncontrollable": _groups_json(lin.uncontrollable),
+        "observability_rank": lin.observability_rank,
+        "unobservable": _groups_json(lin.unobservable),
+        "transmission_zeros": _pairs(lin.zeros) if lin.zeros is not None else None,
+        "zero_polynomial": lin.zero_polynomial,
+        "zeros_note": lin.zeros_note or None,
+        "tolerance": lin.tolerance,
+        "cross_check": {"status": lin.cross_check.status, "detail": lin.cross_check.detail},
+    }
+
+
+
+
+def verdict_json(v: BoxVerdict | None) -> dict[str, Any] | None:
+    if v is None:
+        return None
+    out: dict[str, Any] = {"outcome": v.outcome, "detail": v.detail}
+    if v.witness is not None:
+        out["witness"] = {k: float(x) for k, x in v.witness.items()}
+        out["witness_verdict"] = v.witness_verdict
+    if v.witness_eigenvalues:
+        out["witness_eigenvalues"] = [[z.real, z.imag] for z in v.witness_eigenvalues]
+    if v.boundary is not None:
+        out["boundary"] = v.boundary
+    if v.crossing is not None:
+        out["crossing"] = v.crossing
+    return out
+
+
+def parametric_json(pp: ParametricPoint) -> dict[str, Any]:
+    """The ``parameter_box`` record of a point in the JSON analysis."""
+    from plantlint.language.printer import show_expr
+
+    solved = {str(s): show_expr(v, 200) for s, v in pp.values.items() if s in pp.solved}
+    return {
+        "box": {k: [float(lo), float(hi)] for k, (lo, hi) in pp.box.items()},
+        "solved_inputs": solved,
+        "equilibrium": verdict_json(pp.equilibrium),
+        "decoupling": verdict_json(pp.decoupling),
+        "zero_dynamics": verdict_json(pp.zero_dynamics),
+        "controllability": verdict_json(pp.controllability),
+        "relative_degree": {o: verdict_json(v) for o, v in pp.rows.items()},
+    }
 
 
 def structural_facts(data: dict[str, Any] | None) -> dict[str, Any]:
@@ -239,7 +344,6 @@ def _distributions(a: Analysis) -> dict[str, Any] | None:
 
 
 def _point(pa: PointAnalysis) -> dict[str, Any]:
-    from plantlint.analysis.parametric import parametric_json
     from plantlint.analysis.zero_dynamics import show_eigenvalues
     from plantlint.language.printer import show_expr, show_number
 
@@ -284,9 +388,6 @@ def _point(pa: PointAnalysis) -> dict[str, Any]:
 
 def _linearisation(lin: Linearisation) -> dict[str, Any]:
     """The linearisation for display: exact entries where the data are rational."""
-    import sympy as sp
-
-    from plantlint.analysis.linearisation import ModeGroup
     from plantlint.language.printer import show_number
 
     def entry(e: sp.Expr) -> str:
@@ -331,5 +432,6 @@ def show_repeated(values: tuple[complex, ...]) -> str:
     return show_eigenvalues([z for z, _ in distinct]) if all(c == 1 for _, c in distinct) else ", ".join(shown)
 
 
-__all__ = ["analysis_json", "compact_many", "envelope_witness", "explain_json", "show_repeated",
-           "structural_facts"]
+__all__ = ["analysis_json", "compact_many", "envelope_witness", "equilibrium_json", "explain_json",
+           "linearisation_json", "normal_form_json", "parametric_json", "show_repeated", "structural_facts",
+           "verdict_json"]

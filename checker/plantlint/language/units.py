@@ -664,7 +664,7 @@ class _Checker:
         if kind == "call":
             fname = str(kids[0])
             args = [(a, self._close(results[id(a)], where, a)) for a in kids[1:] if a is not None]
-            return self._call(fname, node, args, where)
+            return self._call(fname, args, where)
         return None
 
     def _close(self, value: Any, where: str, node: Any) -> _Result:
@@ -747,7 +747,7 @@ class _Checker:
             return None
         return _Num(None) if isinstance(base, _Num) and isinstance(exponent, _Num) else ONE
 
-    def _call(self, fname: str, node: Any, args: list[tuple[Any, _Result]], where: str) -> _Result:
+    def _call(self, fname: str, args: list[tuple[Any, _Result]], where: str) -> _Result:
         values = [u for _, u in args]
         if fname in DIMENSIONLESS_ARGUMENT:
             for arg, u in args:

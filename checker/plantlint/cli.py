@@ -12,9 +12,12 @@ import os
 import signal
 import sys
 from pathlib import Path
-from typing import Sequence, TextIO
+from typing import TYPE_CHECKING, Sequence, TextIO
 
 from plantlint import __version__
+
+if TYPE_CHECKING:  # imported lazily at run time (no sympy for --version or warm runs)
+    from plantlint.run.config import Config
 
 CAUTION = (
     "plantlint checks the structure of a plant model (relative degree, regularity, zero "
@@ -288,14 +291,13 @@ def _check(args: argparse.Namespace) -> int:
     return _emit(report, args.format, args.output, args.color)
 
 
-def _say_excluded(paths: list[str], config: object) -> None:
+def _say_excluded(paths: list[str], config: Config) -> None:
     """A file named on the command line that the configuration excludes is not checked;
     say so on standard error, naming the pattern and where it is set (not an error: a
     pre-commit hook passes whatever is staged)."""
-    from plantlint.run.config import Config, shown_path
+    from plantlint.run.config import shown_path
     from plantlint.run.runner import excluded_by
 
-    assert isinstance(config, Config)
     where = shown_path(config.source) if config.source is not None else "the configuration"
     for path, pattern in excluded_by(paths, config.root, config.exclude):
         print(f"plantlint: note: {path} is not checked: it is excluded by exclude pattern "

@@ -41,6 +41,7 @@ from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.balls import Program, UnsupportedExpression
+from plantlint.kernel.exact import gauss_jordan
 from plantlint.kernel.lie import Kernel
 from plantlint.language.printer import show_number
 
@@ -495,34 +496,10 @@ def _ball_subspace(rows: list[list[arb]], A: list[list[arb]], left: bool
     zero), a basis of its null space (floats, for display) and the eigenvalues of A
     restricted to that subspace (``left``: the null vectors are left vectors w, w A = M w)."""
     n = len(rows[0])
-    work = [list(r) for r in rows]
-    pivots: list[int] = []
-    top = 0
-    for col in range(n):
-        best, size = -1, -1.0
-        for i in range(top, len(work)):
-            e = work[i][col]
-            if not e.contains(0):
-                lower = float(e.abs_lower())
-                if lower > size:
-                    best, size = i, lower
-        if best < 0:
-            continue
-        work[top], work[best] = work[best], work[top]
-        pivot = work[top][col]
-        work[top] = [e / pivot if not e.is_zero() else e for e in work[top]]
-        work[top][col] = arb(1)
-        for i in range(len(work)):
-            factor = work[i][col]
-            if i == top or factor.is_zero():
-                continue
-            work[i] = [a - factor * b if not b.is_zero() else a for a, b in zip(work[i], work[top])]
-            work[i][col] = arb(0)
-        pivots.append(col)
-        top += 1
-        if top == len(work):
-            break
-    certain = all(e.is_zero() for row in work[top:] for e in row)
+    work, pivots, certain = gauss_jordan(
+        rows, n, decide=lambda e: True if e.is_zero() else (None if e.contains(0) else False),
+        size=lambda e: float(e.abs_lower()), zero=arb(0), one=arb(1))
+    top = len(pivots)
     free = [c for c in range(n) if c not in pivots]
     vectors = []
     for fc in free:

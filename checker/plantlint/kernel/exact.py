@@ -10,8 +10,10 @@ determinant without division, for symbolic matrices).
 from __future__ import annotations
 
 from collections.abc import Callable, Sequence
+from typing import Any
 
 import sympy as sp
+from flint import arb
 
 from plantlint.kernel.plant import as_expr
 
@@ -40,15 +42,21 @@ def magnitude(value: sp.Expr) -> float:
 
 
 def gauss_jordan(
-    rows: list[list[sp.Expr]], ncols: int, decide: ZeroDecider
-) -> tuple[list[list[sp.Expr]], list[int], bool]:
+    rows: list[list[Any]], ncols: int, decide: ZeroDecider,
+    size: Callable[[Any], float] = magnitude, zero: Any = sp.Integer(0), one: Any = sp.Integer(1),
+) -> tuple[list[list[Any]], list[int], bool]:
     """Reduced row echelon form over the first ``ncols`` columns, exactly.
 
     Entries decided zero are replaced by an exact 0 so that later tests stay cheap; an
     entry that could not be decided is treated as zero and makes the result uncertain.
-    The pivot in each column is the entry of largest size (for the later numeric use of
-    the exact expressions). Returns the rows, the pivot columns and whether every
+    The pivot in each column is the entry of largest ``size`` (for the later numeric use
+    of the exact expressions). Returns the rows, the pivot columns and whether every
     decision was certain.
+
+    The same elimination serves other number types: rigorous balls (``decide`` says
+    False only for a ball that excludes zero, ``size`` its lower bound), with their own
+    ``zero`` and ``one``; the rank found is then a proven lower bound, certain when every
+    skipped entry was exactly zero.
     """
     work = [list(r) for r in rows]
     pivots: list[int] = []
@@ -57,33 +65,38 @@ def gauss_jordan(
     for col in range(ncols):
         best, best_size = -1, -1.0
         for i in range(top, len(work)):
-            if work[i][col] == 0:
+            if _exactly_zero(work[i][col]):
                 continue
             z = decide(work[i][col])
             if z is not False:
                 certain = certain and z is True
-                work[i][col] = sp.Integer(0)
+                work[i][col] = zero
                 continue
-            size = magnitude(work[i][col])
-            if size > best_size:
-                best, best_size = i, size
+            here = size(work[i][col])
+            if here > best_size:
+                best, best_size = i, here
         if best < 0:
             continue
         work[top], work[best] = work[best], work[top]
         piv = work[top][col]
-        work[top] = [e / piv if e != 0 else e for e in work[top]]
-        work[top][col] = sp.Integer(1)
+        work[top] = [e if _exactly_zero(e) else e / piv for e in work[top]]
+        work[top][col] = one
         for i in range(len(work)):
-            if i == top or work[i][col] == 0:
+            if i == top or _exactly_zero(work[i][col]):
                 continue
             factor = work[i][col]
-            work[i] = [a - factor * b if b != 0 else a for a, b in zip(work[i], work[top])]
-            work[i][col] = sp.Integer(0)
+            work[i] = [a if _exactly_zero(b) else a - factor * b for a, b in zip(work[i], work[top])]
+            work[i][col] = zero
         pivots.append(col)
         top += 1
         if top == len(work):
             break
     return work, pivots, certain
+
+
+def _exactly_zero(e: Any) -> bool:
+    """A literal zero (a sympy 0, or a ball that is exactly 0): no decision needed."""
+    return e.is_zero() if isinstance(e, arb) else e == 0
 
 
 def rank(rows: Sequence[Sequence[sp.Expr]], decide: ZeroDecider) -> tuple[int, bool]:

@@ -183,8 +183,8 @@ import sys, time
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
 import plantlint.analysis.engine  # imports are not the analysis
-# warm-up on a one-state model: parser tables, the unit registry and other lazy caches
-analyse_bytes(b"plant warm\\nstate x in -1 .. 1\\ninput u in -1 .. 1\\nrate x = -x + u\\noutput y = x\\n", Config())
+# warm-up on a one-state model with units: parser tables, the unit registry, other lazy caches
+analyse_bytes(b"plant warm\\nstate x [m] in -1 .. 1\\ninput u [m/s] in -1 .. 1\\nrate x = -x + u\\noutput y [m] = x\\n", Config())
 data = open(sys.argv[1], "rb").read()
 start = time.perf_counter()
 analyse_bytes(data, Config())

@@ -66,3 +66,39 @@ def test_factored_row_is_certified_factor_by_factor() -> None:
     kernel = Kernel(Plant.from_matrices("p", [x1, x2], [u], f, [g], [x1], state_box=wide))
     env = certify_envelope(kernel, analyse_structure(kernel))
     assert env.regular is False and env.witness is not None and abs(env.witness["x2"] - 2) < 1e-9
+
+
+def test_zero_decisions_share_one_type() -> None:
+    """The kernel's identity test, its values at points and its constants answer with the
+    one decision type; the expected answers are standard identities and handbook values."""
+    from flint import arb
+
+    from plantlint.kernel import decision as zd
+    from plantlint.kernel.exact import number_decider, rank
+
+    kernel = Kernel(Plant.from_matrices("p", [x1, x2], [u], [x2, -sp.sin(x1)], [[0, 1]], [x1]))
+    # sin^2 + cos^2 = 1 (Pythagorean identity): proven zero, symbolically
+    pythagoras = kernel.is_zero(sp.sin(x1) ** 2 + sp.cos(x1) ** 2 - 1)
+    assert pythagoras.proven_zero and pythagoras.certain and pythagoras.taken_zero
+    assert pythagoras.how == "simplify"
+    # x1^2 + 1 > 0 for real x1: proven non-zero by a ball at a sample
+    positive = kernel.is_zero(x1**2 + 1)
+    assert positive.proven_nonzero and positive.certain and not positive.taken_zero
+    # forty shifted copies of the identity: zero at every sample, too large for the bounded
+    # simplification, so zero unconfirmed (taken as zero, listed as uncertain)
+    big = sum((sp.sin(x1 + k) ** 2 + sp.cos(x1 + k) ** 2 - 1 for k in range(1, 41)), sp.Integer(0))
+    unconfirmed = kernel.is_zero(big)
+    assert unconfirmed.outcome is zd.Outcome.ZERO_UNCONFIRMED and unconfirmed.taken_zero
+    assert not unconfirmed.certain and big in kernel.uncertain
+    # sin(pi/3) = sqrt(3)/2 (handbook value): exactly zero as a constant
+    assert kernel.constant_is_zero(sp.sin(sp.pi / 3) - sp.sqrt(3) / 2).proven_zero
+    assert kernel.constant_is_zero(sp.sin(sp.Rational(1, 3))).proven_nonzero
+    # 1/(x1 - 1) at x1 = 1 is undefined: neither zero nor non-zero
+    pole = kernel.value_at(1 / (x1 - 1), {x1: sp.Integer(1), x2: sp.Integer(0)}).decision
+    assert pole.outcome is zd.Outcome.UNDEFINED and not pole.taken_zero and not pole.proven_nonzero
+    # balls: exactly 0 is zero, a ball without 0 non-zero, a ball around 0 undecided
+    assert [zd.of_ball(b).outcome for b in (arb(0), arb(1), arb(0, 1e-3), arb("nan"))] == [
+        zd.Outcome.ZERO, zd.Outcome.NONZERO, zd.Outcome.UNDECIDED, zd.Outcome.UNDECIDED]
+    # the exact rank reads the same type: rank 1 as sympy's Matrix.rank finds it
+    rows = [[sp.sin(sp.Rational(1, 3)), sp.Integer(1)], [2 * sp.sin(sp.Rational(1, 3)), sp.Integer(2)]]
+    assert rank(rows, number_decider(kernel)) == (sp.Matrix(rows).rank(), True) == (1, True)

@@ -43,17 +43,11 @@ from flint import arb
 from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
 from plantlint.core.findings import Finding, Severity
+from plantlint.kernel import decision as zd
+from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
 from plantlint.analysis.linearizing_output import OutputSearch
 
-
-
-@dataclass(frozen=True)
-class Decision:
-    """Is a value zero? ``certain`` is False when zero was not proved."""
-
-    zero: bool
-    certain: bool
 
 
 @dataclass(frozen=True)
@@ -182,7 +176,7 @@ class _PointEchelon:
     """Column echelon form of exact numbers (a point), one column at a time;
     each pivot is proved non-zero by ``decide`` (exact / rigorous ball tests)."""
 
-    def __init__(self, decide: Callable[[sp.Expr], Decision]):
+    def __init__(self, decide: Callable[[sp.Expr], ZeroDecision]):
         self.decide = decide
         self.pivots: list[tuple[int, list[sp.Expr]]] = []
 
@@ -196,7 +190,7 @@ class _PointEchelon:
                 v[row] = sp.Integer(0)
         used = {row for row, _ in self.pivots}
         for i in sorted((i for i in range(len(v)) if i not in used and v[i] != 0), key=lambda i: _size(v[i])):
-            if not self.decide(v[i]).zero:
+            if self.decide(v[i]).proven_nonzero:
                 self.pivots.append((i, v))
                 return True
         return False
@@ -302,12 +296,12 @@ class _BorderedMinors:
         M = [[columns[j][i] for j in range(len(basis))] for i in rows]  # type: ignore[index]
         return _ball_det_nonzero(M)
 
-    def _bordered(self, column: Vector, upto: int) -> Iterator[tuple[int, Decision]]:
+    def _bordered(self, column: Vector, upto: int) -> Iterator[tuple[int, ZeroDecision]]:
         basis = self.columns[:upto] + [column]
         for i in self._row_order(column, upto):
             rows = tuple(sorted(self.rows[:upto] + [i]))
             if self._nonzero_at_sample(rows, basis):
-                yield i, Decision(False, True)
+                yield i, zd.proven_nonzero("ball")
                 continue
             minor = self._det(rows, basis, upto)
             yield i, _decide_generic(self.kernel, minor)
@@ -316,7 +310,7 @@ class _BorderedMinors:
         """Add a column; True when it is independent of the basis so far."""
         certain = True
         for i, d in self._bordered(column, len(self.columns)):
-            if not d.zero:
+            if d.proven_nonzero:
                 self._floats.append(self._numeric(column))
                 self.columns.append(column)
                 self.rows.append(i)
@@ -329,7 +323,7 @@ class _BorderedMinors:
         """(column in span of the first ``upto`` basis columns, decided with proof)."""
         certain = True
         for _, d in self._bordered(column, upto):
-            if not d.zero:
+            if d.proven_nonzero:
                 return False, True
             certain = certain and d.certain
         return True, certain
@@ -350,7 +344,7 @@ def _ball_det_nonzero(M: list[list[arb]]) -> bool:
         A = [list(row) for row in M]
         k = len(A)
         for c in range(k):
-            candidates = [r for r in range(c, k) if A[r][c].is_finite() and not A[r][c].contains(0)]
+            candidates = [r for r in range(c, k) if zd.of_ball(A[r][c]).proven_nonzero]
             if not candidates:
                 return False
             p = max(candidates, key=lambda r: abs(float(A[r][c].mid())))
@@ -363,19 +357,18 @@ def _ball_det_nonzero(M: list[list[arb]]) -> bool:
         flint.ctx.prec = old
 
 
-def _decide_generic(kernel: Kernel, e: sp.Expr) -> Decision:
+def _decide_generic(kernel: Kernel, e: sp.Expr) -> ZeroDecision:
     """Is a minor identically zero? Balls at the kernel's samples prove "non-zero";
     a minor without symbolic denominators that multiplies out to 0 is proved
     zero (far cheaper than putting a large polynomial over a common
     denominator); everything else goes to the kernel's two-stage test."""
     if e == 0:
-        return Decision(True, True)
+        return zd.proven_zero("structural")
     if _screened_nonzero(kernel, e):
-        return Decision(False, True)
+        return zd.proven_nonzero("screened")
     if not has_symbolic_denominator(e) and sp.expand(e) == 0:
-        return Decision(True, True)
-    t = kernel.is_zero(e)
-    return Decision(t.zero, t.certain)
+        return zd.proven_zero("expand")
+    return kernel.is_zero(e)
 
 
 def _screened_nonzero(kernel: Kernel, e: sp.Expr) -> bool:
@@ -386,7 +379,7 @@ def _screened_nonzero(kernel: Kernel, e: sp.Expr) -> bool:
         return False
     for sample in kernel.samples():
         b = program.run([arb(sample[s].numerator) / sample[s].denominator for s in symbols], 128)[0]
-        if b.is_finite() and not b.contains(0):
+        if zd.of_ball(b).proven_nonzero:
             return True
     return False
 
@@ -554,12 +547,11 @@ def distributions_at(
     n, m = structure.n, structure.m
     undefined: list[str] = []
 
-    def decide(e: sp.Expr) -> Decision:
-        v = kernel.value_at(e, {})
-        if v.zero is None:
+    def decide(e: sp.Expr) -> ZeroDecision:
+        d = kernel.value_at(e, {}).decision
+        if d.outcome is zd.Outcome.UNDEFINED:
             undefined.append(str(e))
-            return Decision(True, False)
-        return Decision(v.zero, True)
+        return d
 
     echelon = _PointEchelon(decide)
     ranks: list[int] = []
@@ -679,13 +671,12 @@ def _involutivity_witness(kernel: Kernel, failure: BracketFailure, values: dict[
     def leaves(point: dict[sp.Symbol, sp.Expr]) -> bool | None:
         decided = True
 
-        def decide(e: sp.Expr) -> Decision:
+        def decide(e: sp.Expr) -> ZeroDecision:
             nonlocal decided
-            v = kernel.value_at(e, {})
-            if v.zero is None:
+            d = kernel.value_at(e, {}).decision
+            if d.outcome is zd.Outcome.UNDEFINED:
                 decided = False
-                return Decision(True, False)
-            return Decision(v.zero, True)
+            return d
 
         try:
             rows = matrix_at(kernel, [*failure.basis, failure.bracket], point)
@@ -716,13 +707,13 @@ def _involutivity_witness(kernel: Kernel, failure: BracketFailure, values: dict[
 
 
 def _kalman_columns(
-    kernel: Kernel, values: dict[sp.Symbol, sp.Expr], decide: Callable[[sp.Expr], Decision]
+    kernel: Kernel, values: dict[sp.Symbol, sp.Expr], decide: Callable[[sp.Expr], ZeroDecision]
 ) -> list[list[sp.Expr]] | None:
     """[B, AB, ..., A^(n-1) B] at the point, or None when the point is not an
     equilibrium of the drift (then the identity with the brackets does not hold)."""
     plant = kernel.plant
     f0 = matrix_at(kernel, [plant.f], values)
-    if any(not decide(e).zero for e in f0):
+    if any(decide(e).proven_nonzero for e in f0):
         return None
     A = matrix_at(kernel, [list(kernel.jacobian(plant.f).row(i)) for i in range(plant.n)], values)
     columns = [list(matrix_at(kernel, [g], values).row(0)) for g in plant.g]
@@ -794,7 +785,7 @@ def _orthogonal_complement(kernel: Kernel, basis_rows: list[list[sp.Expr]]) -> l
         return [[sp.Integer(int(i == j)) for j in range(n)] for i in range(n)]
 
     def is_zero(e: sp.Expr) -> bool:
-        return kernel.value_at(e, {}).zero is not False
+        return not kernel.value_at(e, {}).decision.proven_nonzero
 
     null = sp.Matrix(basis_rows).nullspace(simplify=False, iszerofunc=is_zero)
     return [_scaled(list(v)) for v in null]

@@ -109,7 +109,7 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
     conflicts: list[list[int]] = []
     for row in reduced[len(pivots):]:
         rhs = row[k]
-        if decide(rhs) is False:
+        if decide(rhs).proven_nonzero:
             conflicts.append([a for a in range(n) if row[k + 1 + a] != 0])
     if conflicts:
         return _rounded(plant, name, given, _no_solution(plant, name, values, unknown, G0, c, conflicts, decide,
@@ -153,7 +153,7 @@ def _check_residual(
     findings: list[Finding],
 ) -> Equilibrium:
     """Every input is given: the point is an equilibrium iff every rate vanishes."""
-    bad = [(plant.states[i], r) for i, r in enumerate(residual) if decide(r) is not True]
+    bad = [(plant.states[i], r) for i, r in enumerate(residual) if not decide(r).taken_zero]
     if bad:
         shown = ", ".join(f"d{s}/dt = {show_number(r, mark_inexact=True)}" for s, r in bad)
         findings.append(
@@ -181,7 +181,8 @@ def _no_solution(
     findings: list[Finding],
 ) -> Equilibrium:
     """No input makes the point an equilibrium: say which rates stand in the way."""
-    alone = [i for i in range(plant.n) if all(decide(G0[i][j]) is True for j in unknown) and decide(c[i]) is False]
+    alone = [i for i in range(plant.n)
+             if all(decide(G0[i][j]).taken_zero for j in unknown) and decide(c[i]).proven_nonzero]
     parts = []
     if alone:
         parts.append(
@@ -240,7 +241,7 @@ def _envelope_findings(
 def _certainly_negative(value: sp.Expr, decide: ZeroDecider) -> bool:
     if value.is_Rational:
         return bool(value < 0)
-    if decide(value) is not False:
+    if not decide(value).proven_nonzero:
         return False
     from plantlint.kernel.balls import to_arb
 

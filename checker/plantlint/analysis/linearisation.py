@@ -41,6 +41,7 @@ from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.balls import Program, UnsupportedExpression
+from plantlint.kernel import decision as zd
 from plantlint.kernel.exact import gauss_jordan
 from plantlint.kernel.lie import Kernel
 from plantlint.language.printer import show_number
@@ -497,7 +498,7 @@ def _ball_subspace(rows: list[list[arb]], A: list[list[arb]], left: bool
     restricted to that subspace (``left``: the null vectors are left vectors w, w A = M w)."""
     n = len(rows[0])
     work, pivots, certain = gauss_jordan(
-        rows, n, decide=lambda e: True if e.is_zero() else (None if e.contains(0) else False),
+        rows, n, decide=lambda e: zd.ZERO if e.is_zero() else (zd.UNDECIDED if e.contains(0) else zd.NONZERO),
         size=lambda e: float(e.abs_lower()), zero=arb(0), one=arb(1))
     top = len(pivots)
     free = [c for c in range(n) if c not in pivots]

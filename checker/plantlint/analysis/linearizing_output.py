@@ -54,7 +54,7 @@ class OutputSearch:
             if not self.verified(phi):
                 continue
             v = self.kernel.value_at(self.lg_lf(phi, n - 1), values)
-            if v.zero is False:
+            if v.decision.proven_nonzero:
                 return phi
         return None
 
@@ -64,7 +64,7 @@ class OutputSearch:
             ok = True
             for k in range(self.n - 1):
                 t = self.kernel.is_zero(self.lg_lf(phi, k))
-                if not (t.zero and t.certain):
+                if not t.proven_zero:
                     ok = False
                     break
             self._verified[phi] = ok

@@ -104,7 +104,7 @@ def _gradient_at(kernel: Kernel, expr: sp.Expr, point: dict[sp.Symbol, sp.Expr])
 
 
 def _input_free(kernel: Kernel, phi: sp.Expr) -> bool:
-    return all(kernel.is_zero(kernel.lie(phi, g)).zero for g in kernel.g)
+    return all(kernel.is_zero(kernel.lie(phi, g)).taken_zero for g in kernel.g)
 
 
 def _candidates(kernel: Kernel, prefer_input_free: bool) -> Iterator[sp.Expr]:
@@ -221,7 +221,7 @@ def _solve_through(
     for sol in candidates:
         if set(sol) != set(unknowns) or any(v.has(*unknowns) for v in sol.values()):
             continue
-        if all(decide(sol[s].xreplace(at_eta) - point[s]) is True for s in unknowns):
+        if all(decide(sol[s].xreplace(at_eta) - point[s]).taken_zero for s in unknowns):
             return {s: _compact(v) for s, v in sol.items()}
     return None
 

@@ -40,6 +40,7 @@ from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
 from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.core.findings import Finding, Severity
+from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.kernel.exact import laplace_det, number_decider, rank as exact_rank
 from plantlint.kernel.hurwitz import certify_hurwitz, lienard_chipart
@@ -284,7 +285,7 @@ def _equilibrium(params: ParameterBox, eq: Equilibrium, written: dict[sp.Symbol,
                 f"at {show_values(params.named(witness))} (inside the parameter box) {rate}",
                 params.named(witness), "not_equilibrium"), values
         test = confirm_zero(r)
-        if not (test.zero and test.certain):
+        if not test.proven_zero:
             uncertain.append(f"d{plant.states[i]}/dt")
     if uncertain:
         return BoxVerdict("undecided", "the residual(s) " + ", ".join(uncertain) + " vanish at every parameter "
@@ -302,7 +303,7 @@ def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr
     chosen: list[int] | None = None
     for rows in itertools.islice(itertools.combinations(range(plant.n), k), 200):
         minor = sp.Matrix([[G0[i][j] for j in unknown] for i in rows])
-        if decide(laplace_det(minor).xreplace(params.nominal)) is False:
+        if decide(laplace_det(minor).xreplace(params.nominal)).proven_nonzero:
             chosen = list(rows)
             break
     if chosen is None:
@@ -327,8 +328,7 @@ def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr
 def _nonzero_at(params: ParameterBox, e: sp.Expr) -> dict[sp.Symbol, sp.Expr] | None:
     """A parameter value (exact) where ``e`` is certainly non-zero, if one is found."""
     for values in params.candidates():
-        b = params.ball(e, values)
-        if b.is_finite() and not b.contains(0):
+        if zd.of_ball(params.ball(e, values)).proven_nonzero:
             return values
     return None
 

@@ -28,7 +28,8 @@ from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.core.findings import Finding, Severity
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
 from plantlint.language.printer import show_expr, show_number, show_point
-from plantlint.kernel import exact
+from plantlint.kernel import decision as zd, exact
+from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.lie import Kernel, matrix_at
 
 #: Expressions up to this size are factored for messages; larger ones are cut.
@@ -144,7 +145,7 @@ def analyse_structure(kernel: Kernel) -> Structure:
         return Structure(tuple(outputs), None, None, False, (), tuple(findings), names)
     A = sp.Matrix([list(o.row) for o in outputs])
     rank, certain = _generic_rank(kernel, A)
-    zero_cols = tuple(j for j in range(plant.m) if all(kernel.is_zero(A[i, j]).zero for i in range(plant.p)))
+    zero_cols = tuple(j for j in range(plant.m) if all(kernel.is_zero(A[i, j]).taken_zero for i in range(plant.p)))
     if rank < plant.p:
         findings.append(Finding(
             "decoupling-singular", Severity.ERROR,
@@ -229,7 +230,7 @@ def _proven_by_taylor(kernel: Kernel, towers: Any, i: int, k: int, row: tuple[sp
                 continue
             if any(c.is_finite() and not c.overlaps(v) for c, v in zip(check, values)):
                 return False  # the layered form disagrees with the flow: never trust either
-            if any(not v.contains(0) for v in values):
+            if any(zd.of_ball(v).proven_nonzero for v in values):
                 return True
     return False
 
@@ -240,7 +241,7 @@ def _symbolic_output_structure(kernel: Kernel, i: int) -> OutputStructure:
     for k in range(1, plant.n + 1):
         row = tuple(kernel.lglf(j, i, k - 1) for j in range(plant.m))
         tests = [kernel.is_zero(e) for e in row]
-        if any(not t.zero for t in tests):
+        if any(t.proven_nonzero for t in tests):
             return OutputStructure(plant.outputs[i], k, row, tuple(unconfirmed))
         unconfirmed += [lie_name(kernel, j, i, k - 1) for j, t in enumerate(tests) if not t.certain]
     return OutputStructure(plant.outputs[i], None, (), tuple(unconfirmed))
@@ -270,7 +271,7 @@ def _generic_rank(kernel: Kernel, A: sp.Matrix) -> tuple[int, bool]:
     for r in rows:
         for c in cols:
             test = kernel.is_zero(exact.laplace_det(A.extract(list(r), list(c))))
-            if not test.zero:
+            if test.proven_nonzero:
                 return k, True  # cannot happen after screening, but a proof beats a guess
             certain = certain and test.certain
     return best, certain
@@ -305,13 +306,13 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
             all_defined = False
             continue
         states = [_point_state(kernel, e, point) for e in out.row]
-        if any(s is False for s in states):
+        if any(s.proven_nonzero for s in states):
             degrees[out.name] = r
             defined_rows.append(out.row)
             continue
         degrees[out.name] = None
         all_defined = False
-        undefined = any(s is None for s in states)
+        undefined = any(not s.taken_zero for s in states)
         shown = "; ".join(f"{lie_name(kernel, j, i, r - 1)} = {compact(e)}" for j, e in enumerate(out.row))
         findings.append(Finding(
             "relative-degree-ill-defined", Severity.ERROR,
@@ -330,7 +331,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
     if all_defined and not full_rank and (structure.generic_rank or 0) >= plant.p:
         if certain:
             zero_cols = tuple(
-                j for j in range(plant.m) if all(kernel.constant_is_zero(A0[i, j]) for i in range(A0.rows))
+                j for j in range(plant.m) if all(kernel.constant_is_zero(A0[i, j]).taken_zero for i in range(A0.rows))
             )
             findings.append(Finding(
                 "decoupling-singular", Severity.ERROR,
@@ -348,15 +349,14 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
     return PointStructure(name, degrees, all_defined and full_rank and certain, rank, certain, tuple(findings))
 
 
-def _point_state(kernel: Kernel, e: sp.Expr, point: dict[sp.Symbol, sp.Expr]) -> bool | None:
-    """False: non-zero at the point; True: zero; None: undefined or undecidable."""
+def _point_state(kernel: Kernel, e: sp.Expr, point: dict[sp.Symbol, sp.Expr]) -> ZeroDecision:
+    """Is an entry zero at the point (undecided when beyond the evaluator)?"""
     if e == 0:
-        return True
+        return zd.proven_zero("structural")
     try:
-        z = kernel.value_at(e, point).zero
+        return kernel.value_at(e, point).decision
     except UnsupportedExpression:
-        return None
-    return None if z is None else bool(z)
+        return zd.UNDECIDED
 
 
 # -- over the envelope ----------------------------------------------------------------------

@@ -308,7 +308,7 @@ def _numeric_route(
 ) -> ZeroDynamics:
     d = n - r
     rest_exact = data.f0 + data.G0 * (-(data.A0.LUsolve(data.b0)))
-    if any(decide(e) is not True for e in rest_exact):  # type: ignore[operator]
+    if any(not decide(e).taken_zero for e in rest_exact):  # type: ignore[operator]
         return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics")
     result: ZeroDynamics | None = None
     for digits in _NUMERIC_DIGITS:

@@ -1,7 +1,8 @@
 """Exact linear algebra on numbers that may be transcendental (``sin(1/3)``).
 
 Every "is this entry zero?" goes through a :data:`ZeroDecider` (rigorous balls, then
-exact confirmation in the kernel), never through a float comparison. One routine per
+exact confirmation in the kernel), never through a float comparison; it answers with the
+one zero-decision type (:class:`plantlint.kernel.decision.ZeroDecision`). One routine per
 question: :func:`rank` (with whether every pivot decision was certain),
 :func:`gauss_jordan` (the reduced rows, for the solvers), :func:`laplace_det` (a
 determinant without division, for symbolic matrices).
@@ -15,17 +16,18 @@ from typing import Any
 import sympy as sp
 from flint import arb
 
+from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.plant import as_expr
 
-#: ``decide(c)``: True when c is exactly zero, False when it is certainly not, None when
-#: it is undefined or could not be decided.
-ZeroDecider = Callable[[sp.Expr], "bool | None"]
+#: ``decide(c)``: whether c is zero (proven non-zero, zero, zero unconfirmed, undefined,
+#: undecided).
+ZeroDecider = Callable[[sp.Expr], ZeroDecision]
 
 
 def number_decider(kernel: "object") -> ZeroDecider:
     """The kernel's exact-constant zero decision as a :data:`ZeroDecider`."""
 
-    def decide(value: sp.Expr) -> bool | None:
+    def decide(value: sp.Expr) -> ZeroDecision:
         return kernel.constant_is_zero(as_expr(value))  # type: ignore[attr-defined]
 
     return decide
@@ -47,14 +49,14 @@ def gauss_jordan(
 ) -> tuple[list[list[Any]], list[int], bool]:
     """Reduced row echelon form over the first ``ncols`` columns, exactly.
 
-    Entries decided zero are replaced by an exact 0 so that later tests stay cheap; an
-    entry that could not be decided is treated as zero and makes the result uncertain.
+    Entries not proven non-zero are replaced by an exact 0 so that later tests stay cheap;
+    an entry that is not taken as zero (undefined, undecided) makes the result uncertain.
     The pivot in each column is the entry of largest ``size`` (for the later numeric use
     of the exact expressions). Returns the rows, the pivot columns and whether every
-    decision was certain.
+    skipped entry was taken as zero.
 
     The same elimination serves other number types: rigorous balls (``decide`` says
-    False only for a ball that excludes zero, ``size`` its lower bound), with their own
+    non-zero only for a ball that excludes zero, ``size`` its lower bound), with their own
     ``zero`` and ``one``; the rank found is then a proven lower bound, certain when every
     skipped entry was exactly zero.
     """
@@ -68,8 +70,8 @@ def gauss_jordan(
             if _exactly_zero(work[i][col]):
                 continue
             z = decide(work[i][col])
-            if z is not False:
-                certain = certain and z is True
+            if not z.proven_nonzero:
+                certain = certain and z.taken_zero
                 work[i][col] = zero
                 continue
             here = size(work[i][col])

@@ -31,6 +31,7 @@ import flint
 import sympy as sp
 from flint import arb
 
+from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import Program, UnsupportedExpression, to_arb
 
 Interval = tuple[float, float]
@@ -230,7 +231,11 @@ def _certain_sign(x: arb) -> int:
 
 
 # -- the search -------------------------------------------------------------------------
-Decision = tuple[str, object]  # ("proven", margin) | ("violated", (point, exact)) | ("split", None)
+#: One box's step of the search: ("proven", margin) | ("violated", (point, exact)) | ("split", None).
+#: A verdict on a condition over a box (for ``certify_sign`` a violation is a negative
+#: value, not a zero), so not a :class:`~plantlint.kernel.decision.ZeroDecision`; the
+#: zero tests inside it (an enclosure without 0) are.
+BoxStep = tuple[str, object]
 
 
 class _Search:
@@ -248,7 +253,7 @@ class _Search:
     def relative_widths(self, box: FloatBox) -> list[float]:
         return [(hi - lo) / w for (lo, hi), w in zip(box, self.widths)]
 
-    def run(self, decide: Callable[[FloatBox, bool], Decision]) -> EnvelopeVerdict:
+    def run(self, decide: Callable[[FloatBox, bool], BoxStep]) -> EnvelopeVerdict:
         start = time.perf_counter()
         queue: deque[FloatBox] = deque([self.root])
         stuck: list[FloatBox] = []
@@ -327,9 +332,9 @@ def certify_nonzero(
     search = _Search(fbox, used, budget)
     single = len(exprs) == 1 and not exprs[0].has(sp.atan2)
 
-    def decide(b: FloatBox, centred: bool) -> Decision:
+    def decide(b: FloatBox, centred: bool) -> BoxStep:
         enclosures = ev.enclose(b, centred)
-        clean = [_float_below(x.abs_lower()) for x in enclosures if x.is_finite() and not x.contains(0)]
+        clean = [_float_below(x.abs_lower()) for x in enclosures if zd.of_ball(x).proven_nonzero]
         if clean:
             return "proven", max(clean)
         points = [_centre(b)] + _corners(b)
@@ -372,7 +377,7 @@ def certify_sign(
     ev = _Evaluator([expr], used)
     search = _Search(fbox, used, budget)
 
-    def decide(b: FloatBox, centred: bool) -> Decision:
+    def decide(b: FloatBox, centred: bool) -> BoxStep:
         x = ev.enclose(b, centred)[0]
         if x.is_finite() and (x > 0 if strict else x >= 0):
             return "proven", _float_below(x)

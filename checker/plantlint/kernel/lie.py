@@ -26,6 +26,8 @@ import sympy as sp
 from flint import arb
 
 from plantlint.core.deadline import TimeUp, expired, within
+from plantlint.kernel import decision as zd
+from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.plant import Plant
 
@@ -46,20 +48,12 @@ SCREEN_POINTS = 6
 
 
 @dataclass(frozen=True)
-class ZeroTest:
-    """Outcome of asking "is this expression identically zero?"."""
-
-    zero: bool
-    certain: bool
-    how: str  # "structural", "screened", "cancel", "simplify", "unconfirmed"
-
-
-@dataclass(frozen=True)
 class PointValue:
-    """An expression's value at a point: a rigorous ball, and whether it is zero."""
+    """An expression's value at a point: a rigorous ball, and whether it is zero
+    (zero, non-zero, zero unconfirmed, or undefined there)."""
 
     ball: arb
-    zero: bool | None  # None when the value could not be decided (undefined there)
+    decision: ZeroDecision
 
     @property
     def value(self) -> float:
@@ -85,7 +79,7 @@ class Kernel:
         self._lf: dict[tuple[int, int], sp.Expr] = {}
         self._lglf: dict[tuple[int, int, int], sp.Expr] = {}
         self._ad: dict[tuple[int, int], Vector] = {}
-        self._zero: dict[sp.Expr, ZeroTest] = {}
+        self._zero: dict[sp.Expr, ZeroDecision] = {}
         self._jacobians: dict[Vector, sp.Matrix] = {}
         self._compact: dict[sp.Expr, sp.Expr] = {}
         self._poly: "_PolynomialTowers | None | bool" = False
@@ -292,16 +286,16 @@ class Kernel:
         return out
 
     # -- zero tests -------------------------------------------------------------
-    def is_zero(self, expr: sp.Expr) -> ZeroTest:
-        """Is ``expr`` identically zero (as a function of states and ranged params)?"""
+    def is_zero(self, expr: sp.Expr) -> ZeroDecision:
+        """Is ``expr`` identically zero (as a function of states and ranged params)?
+        Zero, non-zero, or zero unconfirmed (listed in ``uncertain``)."""
         if expr == 0:
-            return ZeroTest(True, True, "structural")
+            return zd.proven_zero("structural")
         if not expr.free_symbols & set(self.free_symbols()):
             # a constant: decide it exactly / rigorously
             try:
-                b = to_arb(expr)
-                if b.is_finite() and not b.contains(0):
-                    return ZeroTest(False, True, "screened")
+                if zd.of_ball(to_arb(expr)).proven_nonzero:
+                    return zd.proven_nonzero("screened")
             except UnsupportedExpression:
                 pass
         cached = self._zero.get(expr)
@@ -309,61 +303,62 @@ class Kernel:
             return cached
         result = self._screen_then_confirm(expr)
         self._zero[expr] = result
-        if result.zero and not result.certain:
+        if result.outcome is zd.Outcome.ZERO_UNCONFIRMED:
             self.uncertain.append(expr)
         return result
 
-    def _screen_then_confirm(self, expr: sp.Expr) -> ZeroTest:
+    def _screen_then_confirm(self, expr: sp.Expr) -> ZeroDecision:
         return screen_then_confirm(expr, self.free_symbols(), self.samples())
 
-    def constant_is_zero(self, value: sp.Expr) -> bool | None:
-        """Is an exact constant (sin(1/3), pi/2, ...) exactly zero? None when it is
-        undefined there (a division by zero) or cannot be evaluated."""
+    def constant_is_zero(self, value: sp.Expr) -> ZeroDecision:
+        """Is an exact constant (sin(1/3), pi/2, ...) exactly zero? Undefined when it is
+        undefined there (a division by zero), undecided when it cannot be evaluated."""
         if value == 0:
-            return True
+            return zd.proven_zero("exact")
         if value.is_Rational:
-            return False
+            return zd.proven_nonzero("exact")
         if value.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
-            return None
+            return zd.UNDEFINED
         try:
-            return self.value_at(value, {}).zero
+            return self.value_at(value, {}).decision
         except UnsupportedExpression:
-            return None
+            return zd.UNDECIDED
 
     def value_at(self, expr: sp.Expr, point: dict[sp.Symbol, sp.Expr]) -> PointValue:
         """The value of ``expr`` at an exact point, rigorously.
 
         ``point`` gives every state (and ranged parameter; missing ones take
-        their nominal value). The result's ``zero`` is True only when the value
-        is exactly zero (decided exactly, not by rounding).
+        their nominal value). The decision is zero only when the value is exactly
+        zero (decided exactly, not by rounding), or zero unconfirmed when it lies
+        within 2^-1024 of zero without a symbolic proof (listed in ``uncertain``).
         """
         full = dict(self.plant.param_nominal)
         full.update(point)
         exact = expr.xreplace({s: v for s, v in full.items()})
         if exact.is_Rational or exact.is_Integer:
-            return PointValue(to_arb(exact), exact == 0)
+            return PointValue(to_arb(exact), zd.exactly(exact == 0))
         if exact.free_symbols:
             raise UnsupportedExpression(f"value needs {sorted(map(str, exact.free_symbols))}")
         if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
-            return PointValue(arb("nan"), None)
+            return PointValue(arb("nan"), zd.UNDEFINED)
         for prec in (128, 1024):
             try:
                 b = Program([exact], []).run([], prec=prec)[0]
             except UnsupportedExpression:
                 break
             if not b.is_finite():
-                return PointValue(b, None)
-            if not b.contains(0):
-                return PointValue(b, False)
+                return PointValue(b, zd.UNDEFINED)
+            if zd.of_ball(b).proven_nonzero:
+                return PointValue(b, zd.proven_nonzero("ball"))
         # every ball contains 0: decide exactly on the constant
         if not _has_functions(exact):
             c = sp.nsimplify(exact) if exact.has(sp.Float) else sp.cancel(exact)
-            return PointValue(to_arb(0) if c == 0 else _safe_ball(c), c == 0)
+            return PointValue(to_arb(0) if c == 0 else _safe_ball(c), zd.exactly(c == 0))
         is_zero = bounded_equals_zero(exact)
         if is_zero is None:  # within 2^-1024 of zero, not proven symbolically: taken as zero, reported
             self.uncertain.append(exact)
-            return PointValue(_safe_ball(exact), True)
-        return PointValue(_safe_ball(exact), bool(is_zero))
+            return PointValue(_safe_ball(exact), zd.unconfirmed_zero())
+        return PointValue(_safe_ball(exact), zd.exactly(bool(is_zero), "equals"))
 
 
 class _PolynomialTowers:
@@ -423,7 +418,7 @@ class _PolynomialTowers:
 
 def screen_then_confirm(
     expr: sp.Expr, symbols: Sequence[sp.Symbol], samples: Sequence[dict[sp.Symbol, Fraction]]
-) -> ZeroTest:
+) -> ZeroDecision:
     """The two-stage zero test on given sample points (see the module docstring)."""
     try:
         prog = Program([expr], symbols)
@@ -433,8 +428,8 @@ def screen_then_confirm(
         for point in samples:
             for prec in (128, 512):
                 b = prog.run([rational_ball(point[s], prec) for s in symbols], prec=prec)[0]
-                if b.is_finite() and not b.contains(0):
-                    return ZeroTest(False, True, "screened")
+                if zd.of_ball(b).proven_nonzero:
+                    return zd.proven_nonzero("screened")
                 if b.is_finite() and b.rad() < 2.0 ** (-prec // 2):
                     break  # a tight ball around zero: more digits will not help
     return confirm_zero(expr)
@@ -463,7 +458,7 @@ def has_symbolic_denominator(e: sp.Expr) -> bool:
     return any(p.exp.is_negative and p.base.free_symbols for p in e.atoms(sp.Pow))
 
 
-def confirm_zero(expr: sp.Expr) -> ZeroTest:
+def confirm_zero(expr: sp.Expr) -> ZeroDecision:
     """Symbolic confirmation, bounded: exact for rational expressions, budgeted otherwise.
 
     Without a symbolic denominator, multiplying out decides polynomials at once
@@ -472,20 +467,20 @@ def confirm_zero(expr: sp.Expr) -> ZeroTest:
     """
     if not has_symbolic_denominator(expr):
         if sp.expand(expr) == 0:
-            return ZeroTest(True, True, "expand")
+            return zd.proven_zero("expand")
         if not _has_functions(expr):
-            return ZeroTest(False, True, "expand")
+            return zd.proven_nonzero("expand")
     if not _has_functions(expr):
         if sp.cancel(sp.together(expr)) == 0:
-            return ZeroTest(True, True, "cancel")
-        return ZeroTest(False, True, "cancel")
+            return zd.proven_zero("cancel")
+        return zd.proven_nonzero("cancel")
     if sp.count_ops(expr) <= SIMPLIFY_OPS_LIMIT:
         e = sp.expand(sp.together(expr))
         if e == 0:
-            return ZeroTest(True, True, "cancel")
+            return zd.proven_zero("cancel")
         if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
-            return ZeroTest(True, True, "simplify")
-    return ZeroTest(True, False, "unconfirmed")
+            return zd.proven_zero("simplify")
+    return zd.unconfirmed_zero("unconfirmed")
 
 
 def random_samples(

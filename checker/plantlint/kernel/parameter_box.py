@@ -28,6 +28,7 @@ import flint
 import sympy as sp
 from flint import arb
 
+from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_sign
@@ -324,7 +325,7 @@ def independent_sets(params: ParameterBox, holders: Holders, columns: list[sp.Ma
         out: list[tuple[int, ...]] = []
         for chosen in itertools.combinations(range(len(pool)), n):
             det = ball_det([[nominal[k][i] for k in chosen] for i in range(n)])
-            if det.is_finite() and not det.contains(0):
+            if zd.of_ball(det).proven_nonzero:
                 out.append(chosen)
                 if len(out) == most:
                     break

@@ -28,6 +28,7 @@ from typing import Any, Sequence
 import flint
 from flint import arb, fmpq
 
+from plantlint.kernel import decision as zd
 from plantlint.kernel.dag import Graph, Instruction, Program
 
 
@@ -89,11 +90,9 @@ class ArbField:
             raise Undefined("atan2")
         return arb.atan2(y, x)
 
-    def is_zero(self, a: arb) -> bool | None:
-        """True: exactly zero (a zero-radius ball at 0); False: certainly non-zero; None: unknown."""
-        if a.is_exact() and a == 0:
-            return True
-        return False if (a.is_finite() and not a.contains(0)) else None
+    def is_zero(self, a: arb) -> zd.ZeroDecision:
+        """Zero: a zero-radius ball at 0; non-zero: a finite ball without 0; else undecided."""
+        return zd.of_ball(a)
 
 
 class QField:
@@ -156,8 +155,8 @@ class QField:
             raise Undefined("atan2")
         raise Inexact("atan2")
 
-    def is_zero(self, a: fmpq) -> bool:
-        return a == 0
+    def is_zero(self, a: fmpq) -> zd.ZeroDecision:
+        return zd.exactly(a == 0)
 
 
 def _isqrt_exact(n: int) -> int | None:

@@ -537,7 +537,7 @@ def _check_affine(scope: _Scope, rates: dict[str, sp.Expr], rate_stmts: dict[str
                     continue
                 if samples is None:
                     samples = random_samples(symbols, {}, seed=len(states) * 7919 + len(inputs))
-                if not screen_then_confirm(second, symbols, samples).zero:
+                if not screen_then_confirm(second, symbols, samples).taken_zero:
                     bad.append(str(ui) if ui == uj else f"{ui}*{uj}")
         if bad:
             affine = False

@@ -42,7 +42,8 @@ from flint import arb
 
 from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
-from plantlint.core.findings import Finding, Severity
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
@@ -471,10 +472,9 @@ def analyse_distributions(kernel: Kernel) -> DistributionStructure:
         if not first.certain:
             message += " (some other remainders were taken as zero without symbolic proof)"
         findings.append(
-            Finding(
-                rule="not-involutive",
-                severity=Severity.ERROR,
-                message=message,
+            finding(
+                "not-involutive",
+                message,
                 anchor="plant",
                 hint="no output of relative degree n exists; consider input-output linearization "
                 "with a chosen output instead",
@@ -746,10 +746,9 @@ def _point_findings(
                 "of the distribution)"
             )
         out.append(
-            Finding(
-                rule="not-controllable",
-                severity=Severity.ERROR,
-                message=message,
+            finding(
+                "not-controllable",
+                message,
                 point=name,
                 anchor=f"point {name}",
                 hint="the input cannot steer these directions to first order by state feedback "
@@ -763,10 +762,9 @@ def _point_findings(
             for k in low
         ]
         out.append(
-            Finding(
-                rule="distribution-rank-drop",
-                severity=Severity.ERROR,
-                message=f"{'; '.join(parts)}: {name} is a singular point of the distribution, which "
+            finding(
+                "distribution-rank-drop",
+                f"{'; '.join(parts)}: {name} is a singular point of the distribution, which "
                 "must have constant rank near the point (it may well be involutive)",
                 point=name,
                 anchor=f"point {name}",

@@ -29,7 +29,8 @@ from plantlint.analysis.parametric import (
     ParametricPoint, box_controllability, box_point, box_zero_dynamics, claim_failure, clock,
 )
 from plantlint.analysis.stages import STAGES
-from plantlint.core.findings import Finding, Severity
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.lie import Kernel
 from plantlint.language.model import ClaimDecl, Model
@@ -291,16 +292,16 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
         elif claim.kind == "regular" and claim.point is None and a.envelope is not None and a.envelope.regular is False:
             failures = [f for f in _regular_claim(a, claim) if f[0] is None]  # the envelope alone refutes it
         else:
-            pending.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` not decided",
+            pending.append(finding("expectation-failed", f"`{text}` not decided",
                                    point=claim.point, anchor=claim.anchor, undecided=True,
                                    hint=f"needs the stage '{claim_stage(claim)}' to complete"))
             continue
         for point, message in failures:
             if isinstance(message, Undecided):
-                out.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` not decided: {message}",
+                out.append(finding("expectation-failed", f"`{text}` not decided: {message}",
                                    point=point, anchor=claim.anchor, undecided=True))
             else:
-                out.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` does not hold: {message}",
+                out.append(finding("expectation-failed", f"`{text}` does not hold: {message}",
                                    point=point, anchor=claim.anchor))
     return out, pending
 

@@ -15,7 +15,8 @@ from typing import Sequence
 import sympy as sp
 
 from plantlint.kernel.balls import UnsupportedExpression
-from plantlint.core.findings import Finding, Severity
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding
 from plantlint.kernel.exact import ZeroDecider, gauss_jordan, number_decider
 from plantlint.kernel.lie import Kernel
 from plantlint.language.printer import show_number
@@ -64,8 +65,8 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
     anchor = f"point {name}"
     findings: list[Finding] = []
 
-    def report(rule: str, severity: Severity, message: str, hint: str | None = None) -> None:
-        findings.append(Finding(rule, severity, message, point=name, anchor=anchor, hint=hint))
+    def report(rule: str, message: str, hint: str | None = None) -> None:
+        findings.append(finding(rule, message, point=name, anchor=anchor, hint=hint))
 
     values: dict[sp.Symbol, sp.Expr] = {s: given[s] for s in (*plant.states, *plant.inputs) if s in given}
     missing = [s for s in plant.states if s not in given]
@@ -83,7 +84,6 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
     if undefined:
         report(
             "point-not-equilibrium",
-            Severity.ERROR,
             f"at point {name} the rate(s) of {_names(undefined)} are undefined "
             "(division by zero or a function outside its domain)",
         )
@@ -131,7 +131,6 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
         order = [u for u in plant.inputs if u in undetermined]
         report(
             "point-incomplete",
-            Severity.ERROR,
             f"at point {name} the equilibrium equations do not determine the input(s) {_names(order)}; "
             "give their values in the point",
         )
@@ -157,9 +156,8 @@ def _check_residual(
     if bad:
         shown = ", ".join(f"d{s}/dt = {show_number(r, mark_inexact=True)}" for s, r in bad)
         findings.append(
-            Finding(
+            finding(
                 "point-not-equilibrium",
-                Severity.ERROR,
                 f"point {name} is not an equilibrium: {shown}",
                 point=name,
                 anchor=f"point {name}",
@@ -194,9 +192,8 @@ def _no_solution(
         parts.append("the rates of " + _names([plant.states[i] for i in group]) + " cannot vanish together")
     missing = [plant.inputs[j] for j in unknown]
     findings.append(
-        Finding(
+        finding(
             "point-incomplete",
-            Severity.ERROR,
             f"no value of the input(s) {_names(missing)} makes point {name} an equilibrium: " + "; ".join(parts),
             point=name,
             anchor=f"point {name}",
@@ -226,9 +223,8 @@ def _envelope_findings(
             continue
         kind = "state" if sym in plant.states else ("input needed" if sym in solved else "input")
         out.append(
-            Finding(
+            finding(
                 "point-outside-envelope",
-                Severity.WARNING,
                 f"at point {name} the {kind} {sym} = {show_number(value, mark_inexact=True)} lies outside its range "
                 f"{show_number(lo, mark_inexact=True)} .. {show_number(hi, mark_inexact=True)}",
                 point=name,
@@ -314,8 +310,8 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     }
     if miss is not None and values is not None and tolerance > 0 and miss.relative <= tolerance:
         where = f" ({source})" if source else ""
-        note = Finding(
-            "point-refined", Severity.NOTE,
+        note = finding(
+            "point-refined",
             f"point {name} is an equilibrium within its tolerance {tolerance:g}{where}: its rates are "
             f"{_ratio(miss.relative)} of the size of their terms; the analysis runs at the "
             f"{'exact' if exact else 'refined'} equilibrium {moved}" + (f", {solved}" if solved and moved else solved),
@@ -338,9 +334,9 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
         message += "; no equilibrium was found near it by changing the values written"
     elif late:
         message += f"; the equilibrium near it was not worked out within {REFINE_SECONDS:g} s"
-    finding = Finding("point-not-equilibrium", Severity.ERROR, message, point=name, anchor=f"point {name}",
-                      hint=hint)
-    return replace(eq, findings=(*others, finding), refinement={**refinement, "refined": False})
+    missed = finding("point-not-equilibrium", message, point=name, anchor=f"point {name}",
+                     hint=hint)
+    return replace(eq, findings=(*others, missed), refinement={**refinement, "refined": False})
 
 
 #: Wall-clock bound of the search for the equilibrium near a point that misses one.

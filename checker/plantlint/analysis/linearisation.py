@@ -39,7 +39,8 @@ from flint import acb, acb_mat, acb_poly, arb, arb_mat, fmpq, fmpq_mat, fmpq_pol
 
 from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues
-from plantlint.core.findings import Finding, Severity
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel import decision as zd
 from plantlint.kernel.exact import gauss_jordan
@@ -667,8 +668,8 @@ def _same_multiset(a: list[complex], b: list[complex], tol: float) -> bool:
 def _inconsistency(name: str, check: CrossCheck) -> tuple[Finding, ...]:
     if check.status != "disagrees":
         return ()
-    return (Finding(
-        "internal-inconsistency", Severity.ERROR,
+    return (finding(
+        "internal-inconsistency",
         f"internal inconsistency at point {name}: the linearisation and the zero dynamics, computed "
         f"independently, disagree ({check.detail})",
         point=name, anchor=f"point {name}",

@@ -39,7 +39,8 @@ import sympy as sp
 from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
 from plantlint.core.deadline import TimeUp, expired, within
-from plantlint.core.findings import Finding, Severity
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding
 from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.kernel.exact import laplace_det, number_decider, rank as exact_rank
@@ -508,19 +509,19 @@ def _controllability(params: ParameterBox, values: dict[sp.Symbol, sp.Expr] | No
 
 
 # -- findings --------------------------------------------------------------------------------------------
-def _finding(out: ParametricPoint, rule: str, severity: Severity, message: str, hint: str | None = None) -> None:
-    out.findings.append(Finding(rule, severity, message, point=out.point, anchor=f"point {out.point}", hint=hint))
+def _finding(out: ParametricPoint, rule: str, message: str, hint: str | None = None) -> None:
+    out.findings.append(finding(rule, message, point=out.point, anchor=f"point {out.point}", hint=hint))
 
 
 def _not_covered(out: ParametricPoint, params: ParameterBox, what: str, v: BoxVerdict) -> None:
     if v.outcome == "nominal_only":
-        _finding(out, "analysis-budget", Severity.WARNING,
+        _finding(out, "analysis-budget",
                  f"at point {out.point} {what} was checked at the nominal parameter values "
                  f"({show_values(params.named(params.nominal))}) only, not over the parameter box: "
                  + v.detail.split(": ", 1)[-1],
                  hint="the claims that rest on it are not decided over the box")
     elif v.outcome == "undecided":
-        _finding(out, "analysis-budget", Severity.WARNING,
+        _finding(out, "analysis-budget",
                  f"at point {out.point} {what} over the parameter box is not decided: {v.detail}",
                  hint="raise the envelope budget, or narrow the parameter ranges")
 
@@ -530,7 +531,7 @@ def _report_equilibrium(out: ParametricPoint, params: ParameterBox, name: str) -
     if v is None:
         return
     if v.outcome == "violated":
-        _finding(out, "point-not-equilibrium", Severity.ERROR,
+        _finding(out, "point-not-equilibrium",
                  f"point {name} is an equilibrium at the nominal parameter values but not over the whole "
                  f"parameter box: {v.detail}",
                  hint="write the point's states (or leave its inputs out) in terms of the parameters, "
@@ -545,7 +546,7 @@ def _report_decoupling(out: ParametricPoint, params: ParameterBox, name: str) ->
         return
     if v.outcome == "violated":
         rule = "decoupling-singular" if params.kernel.plant.p > 1 else "relative-degree-ill-defined"
-        _finding(out, rule, Severity.ERROR,
+        _finding(out, rule,
                  f"at point {name} the relative degree is well defined at the nominal parameter values but not "
                  f"over the whole parameter box: {v.detail}",
                  hint="narrow the parameter range, or move the point off the singular set")
@@ -553,7 +554,7 @@ def _report_decoupling(out: ParametricPoint, params: ParameterBox, name: str) ->
         _not_covered(out, params, "the decoupling matrix", v)  # else the equilibrium finding says why
     lost = [o for o, r in out.rows.items() if r.outcome == "violated" and r is not v]
     if lost:
-        _finding(out, "relative-degree-ill-defined", Severity.ERROR,
+        _finding(out, "relative-degree-ill-defined",
                  f"at point {name} the relative degree of {', '.join(lost)} is defined at the nominal parameter "
                  "values but not over the whole parameter box: " + "; ".join(out.rows[o].detail for o in lost),
                  hint="narrow the parameter range, or move the point off the singular set")
@@ -567,7 +568,7 @@ def _report_zero_dynamics(out: ParametricPoint, params: ParameterBox, name: str)
         if v.witness_verdict == "undefined":
             return  # the equilibrium or decoupling finding says why
         rule = "zero-dynamics-unstable" if v.witness_verdict == "non_minimum_phase" else "zero-dynamics-critical"
-        _finding(out, rule, Severity.ERROR if rule == "zero-dynamics-unstable" else Severity.WARNING,
+        _finding(out, rule,
                  f"the zero dynamics at point {name} are stable at the nominal parameter values but not over the "
                  f"whole parameter box: {v.detail}",
                  hint="narrow the parameter range to the minimum-phase side, or design for the non-minimum-phase case")
@@ -581,7 +582,7 @@ def _report_controllability(out: ParametricPoint, params: ParameterBox, name: st
     if v is None or v.outcome == "proven" or out.equilibrium is None or out.equilibrium.outcome != "proven":
         return
     if v.outcome == "violated":
-        _finding(out, "not-controllable", Severity.NOTE,
+        _finding(out, "not-controllable",
                  f"at point {name} the controllability rank is full at the nominal parameter values but not over "
                  f"the whole parameter box: {v.detail}")
     else:

@@ -25,7 +25,8 @@ from typing import Any, Sequence
 import sympy as sp
 
 from plantlint.kernel.balls import UnsupportedExpression
-from plantlint.core.findings import Finding, Severity
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
 from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.kernel import decision as zd, exact
@@ -126,16 +127,16 @@ def analyse_structure(kernel: Kernel) -> Structure:
         out = _output_structure(kernel, i)
         outputs.append(out)
         if out.relative_degree is None:
-            findings.append(Finding(
-                "relative-degree-undefined", Severity.ERROR,
+            findings.append(finding(
+                "relative-degree-undefined",
                 f"output {name} never sees the inputs: L_g L_f^k {name} vanishes identically "
                 f"for k = 0..{plant.n - 1}, so it has no relative degree",
                 anchor=f"output {name}",
                 hint="check the output equation and the input columns of the rates",
             ))
         if out.unconfirmed:
-            findings.append(Finding(
-                "analysis-budget", Severity.WARNING,
+            findings.append(finding(
+                "analysis-budget",
                 f"relative degree of {name} assumes {', '.join(out.unconfirmed)} vanish identically; "
                 "the numeric screening says so but symbolic confirmation was out of budget",
                 anchor=f"output {name}",
@@ -147,8 +148,8 @@ def analyse_structure(kernel: Kernel) -> Structure:
     rank, certain = _generic_rank(kernel, A)
     zero_cols = tuple(j for j in range(plant.m) if all(kernel.is_zero(A[i, j]).taken_zero for i in range(plant.p)))
     if rank < plant.p:
-        findings.append(Finding(
-            "decoupling-singular", Severity.ERROR,
+        findings.append(finding(
+            "decoupling-singular",
             f"the decoupling matrix is singular everywhere: rank {rank} for {plant.p} outputs"
             + (f" ({plant.p} outputs but only {plant.m} input{'s' if plant.m != 1 else ''})" if plant.p > plant.m else "")
             + ("" if certain else " (rank decided numerically; the vanishing minors were not confirmed symbolically)"),
@@ -314,8 +315,8 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
         all_defined = False
         undefined = any(not s.taken_zero for s in states)
         shown = "; ".join(f"{lie_name(kernel, j, i, r - 1)} = {compact(e)}" for j, e in enumerate(out.row))
-        findings.append(Finding(
-            "relative-degree-ill-defined", Severity.ERROR,
+        findings.append(finding(
+            "relative-degree-ill-defined",
             f"relative degree of {out.name} is not defined at point {name}: "
             + ("the model is undefined there: " if undefined else "")
             + f"{shown} {'is' if len(out.row) == 1 else 'are all'} zero there "
@@ -333,15 +334,15 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
             zero_cols = tuple(
                 j for j in range(plant.m) if all(kernel.constant_is_zero(A0[i, j]).taken_zero for i in range(A0.rows))
             )
-            findings.append(Finding(
-                "decoupling-singular", Severity.ERROR,
+            findings.append(finding(
+                "decoupling-singular",
                 f"the decoupling matrix is singular at point {name}: rank {rank} for {plant.p} outputs",
                 point=name, anchor=f"point {name}",
                 hint=_extension_hint(structure.input_names, zero_cols),
             ))
         else:
-            findings.append(Finding(
-                "analysis-budget", Severity.WARNING,
+            findings.append(finding(
+                "analysis-budget",
                 f"the rank of the decoupling matrix at point {name} is at least {rank} of {plant.p}, "
                 "but some entries could not be decided exactly (undefined or beyond the evaluator)",
                 point=name, anchor=f"point {name}",
@@ -424,8 +425,8 @@ def certify_envelope(
     plant = kernel.plant
     missing = [str(s) for s in plant.states if s not in plant.state_box]
     if missing:
-        return Envelope(None, None, None, (Finding(
-            "envelope-unproven", Severity.WARNING,
+        return Envelope(None, None, None, (finding(
+            "envelope-unproven",
             f"the operating envelope is not a box: state{'s' if len(missing) > 1 else ''} "
             f"{', '.join(missing)} {'have' if len(missing) > 1 else 'has'} no range, so regularity "
             "over the envelope cannot be certified",
@@ -443,8 +444,8 @@ def certify_envelope(
         if verdict.regular is False:
             assert verdict.witness is not None
             model_witness = model_witness or verdict.witness
-            findings.append(Finding(
-                "singular-model", Severity.ERROR,
+            findings.append(finding(
+                "singular-model",
                 f"the {what} in {anchor} {_violation(kind)} inside the envelope, "
                 f"e.g. at {show_point(verdict.witness)}",
                 anchor=anchor, hint="narrow the state ranges or reformulate the model",
@@ -460,8 +461,8 @@ def certify_envelope(
     verdict = _certify_by_factors(kernel, exprs, box, clock)
     if verdict.regular is False:
         assert verdict.witness is not None
-        findings.append(Finding(
-            "envelope-singular", Severity.ERROR,
+        findings.append(finding(
+            "envelope-singular",
             f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
             f"at {show_point(verdict.witness)}"
             + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)"),
@@ -472,16 +473,16 @@ def certify_envelope(
         shown = "; ".join(
             ", ".join(f"{k} in [{show_number(lo)}, {show_number(hi)}]" for k, (lo, hi) in b.items()) for b in verdict.undecided[:2]
         )
-        findings.append(Finding(
-            "envelope-unproven", Severity.WARNING,
+        findings.append(finding(
+            "envelope-unproven",
             f"regularity over the envelope is unproven: {verdict.undecided_count} box"
             f"{'es' if verdict.undecided_count != 1 else ''} undecided for {certified} after "
             f"{clock.boxes} boxes and {clock.seconds:.2f} s, e.g. {shown}",
             anchor="envelope", hint="raise the budget, or narrow the envelope near those boxes",
         ))
     if undecided_model:
-        findings.append(Finding(
-            "envelope-unproven", Severity.WARNING,
+        findings.append(finding(
+            "envelope-unproven",
             "the model could not be proven defined on the whole envelope: " + "; ".join(undecided_model[:3]),
             anchor="envelope", hint="raise the budget, or narrow the envelope",
         ))

@@ -23,7 +23,8 @@ import sympy as sp
 from flint import acb, fmpq, fmpq_mat, fmpz_poly
 
 from plantlint.kernel.exact import number_decider, rank as exact_rank
-from plantlint.core.findings import Finding, Severity
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding
 from plantlint.kernel.lie import Kernel
 
 VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
@@ -389,8 +390,8 @@ def _verdict(
     findings: list[Finding] = []
     if unstable:
         verdict = "non_minimum_phase"
-        findings.append(Finding(
-            "zero-dynamics-unstable", Severity.ERROR,
+        findings.append(finding(
+            "zero-dynamics-unstable",
             f"the zero dynamics at point {name} are unstable (non-minimum phase): "
             f"eigenvalue(s) with positive real part {show_eigenvalues(unstable)}",
             point=name, anchor=anchor,
@@ -401,8 +402,8 @@ def _verdict(
         how = "exactly on the imaginary axis" if exact else (
             f"within {tolerance:.3g} of the imaginary axis" if tolerance is not None else "not separated from the imaginary axis")
         shown = show_eigenvalues(on_axis + undecided)
-        findings.append(Finding(
-            "zero-dynamics-critical", Severity.WARNING,
+        findings.append(finding(
+            "zero-dynamics-critical",
             f"linearisation cannot decide the stability of the zero dynamics at point {name}: "
             f"eigenvalue(s) {shown} lie {how}",
             point=name, anchor=anchor,

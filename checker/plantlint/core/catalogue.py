@@ -16,7 +16,7 @@ from functools import cache
 from pathlib import Path
 from typing import Any
 
-from plantlint.core.findings import Severity
+from plantlint.core.findings import Finding, Severity, Span
 from plantlint.core.resources import data_path
 
 if sys.version_info >= (3, 11):
@@ -193,3 +193,16 @@ def _load(folder: Path) -> Catalogue:
 def load_catalogue(folder: Path | None = None) -> Catalogue:
     """The catalogue shipped with plantlint (cached), or one read from ``folder``."""
     return _load(folder if folder is not None else data_path("rules"))
+
+
+def finding(rule: str, message: str, span: Span | None = None, *, point: str | None = None,
+            hint: str | None = None, anchor: str = "", undecided: bool = False) -> Finding:
+    """A finding of catalogue rule ``rule``, at the severity ``rules/*.toml`` gives it.
+
+    Every emission site uses this (a static test forbids ``Finding(`` below ``run/``
+    with a severity): how serious a rule is comes from the catalogue, and a configured
+    override is applied later by the policy (``run/policy.py``). An id the catalogue
+    does not know raises ``UnknownRuleError``: a packaging bug, never a user error.
+    """
+    return Finding(rule, load_catalogue().get(rule).severity, message, span, point=point, hint=hint,
+                   anchor=anchor, undecided=undecided)

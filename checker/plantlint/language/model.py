@@ -15,7 +15,8 @@ from typing import Mapping
 
 import sympy as sp
 
-from plantlint.core.findings import Finding, Severity, Span, Waiver
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding, Span, Waiver
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
 from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Claim, Expression, Parsed, Statement, near_miss, symbol
@@ -142,8 +143,8 @@ class _Scope:
     spans: dict[str, Span] = field(default_factory=dict)  # anchor -> span
 
     def add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None,
-            severity: Severity = Severity.ERROR, point: str | None = None) -> None:
-        self.findings.append(Finding(rule, severity, message, span, point=point, hint=hint, anchor=anchor))
+            point: str | None = None) -> None:
+        self.findings.append(finding(rule, message, span, point=point, hint=hint, anchor=anchor))
 
     def owns(self, st: Statement) -> bool:
         """Is ``st`` the declaration its name resolves to (not a duplicate)?"""
@@ -772,7 +773,7 @@ def _unused(scope: _Scope) -> None:
             message = f"{what} '{name}' is never used"
             if st.kind == "input":
                 message = f"input '{name}' does not enter any rate: it cannot act on the plant"
-            scope.add("unused-name", message, st.name_span, f"{st.kind} {name} unused", severity=Severity.WARNING)
+            scope.add("unused-name", message, st.name_span, f"{st.kind} {name} unused")
 
 
 def _less(a: sp.Expr, b: sp.Expr) -> bool:

@@ -20,7 +20,8 @@ import sympy as sp
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
-from plantlint.core.findings import Finding, Severity, Span
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding, Span
 from plantlint.core.limits import (MAX_BYTES, MAX_DEPTH, MAX_EXPONENT, MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10,
                                    MAX_NAME, MAX_POWER_BITS, MAX_STATEMENTS, MAX_TOKENS)
 from plantlint.core.resources import data_path
@@ -133,7 +134,7 @@ def symbol(name: str) -> sp.Symbol:
 
 
 def _syntax(message: str, span: Span | None, hint: str | None = None, anchor: str = "") -> Finding:
-    return Finding("syntax", Severity.ERROR, message, span, hint=hint, anchor=anchor or message)
+    return finding("syntax", message, span, hint=hint, anchor=anchor or message)
 
 
 # -- decoding and pre-checks ------------------------------------------------------
@@ -613,8 +614,8 @@ class _ExpressionBuilder:
         entry = FUNCTIONS.get(fname)
         if entry is None:
             close = near_miss(fname, FUNCTIONS)
-            raise ParseProblem(Finding(
-                "unknown-name", Severity.ERROR, f"unknown function '{fname}'", _span(fname_tok),
+            raise ParseProblem(finding(
+                "unknown-name", f"unknown function '{fname}'", _span(fname_tok),
                 hint=f"did you mean `{close}`?" if close else "functions: " + ", ".join(sorted(FUNCTIONS)),
                 anchor=f"function {fname}"))
         arity, fn = entry

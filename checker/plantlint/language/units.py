@@ -38,7 +38,8 @@ from fractions import Fraction
 from functools import lru_cache
 from typing import TYPE_CHECKING, Any, Union
 
-from plantlint.core.findings import Finding, Severity, Span
+from plantlint.core.catalogue import finding
+from plantlint.core.findings import Finding, Span
 from plantlint.core.limits import (MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10, MAX_UNIT_DEPTH, MAX_UNIT_EXPONENT,
                                    MAX_UNIT_NAME, MAX_UNIT_TEXT)
 
@@ -584,7 +585,7 @@ class _Checker:
 
     # findings ------------------------------------------------------------------------
     def _add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None) -> None:
-        self.findings.append(Finding(rule, Severity.ERROR, message, span, hint=hint, anchor=f"units: {anchor}"))
+        self.findings.append(finding(rule, message, span, hint=hint, anchor=f"units: {anchor}"))
 
     def _mismatch(self, what: str, name: str | None, got: Unit, want: Unit, span: Span, anchor: str,
                   hint: str | None = None) -> None:

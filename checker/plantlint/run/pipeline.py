@@ -13,6 +13,7 @@ import re
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
+from plantlint.core.catalogue import finding
 from plantlint.core.findings import (
     FileReport,
     Finding,
@@ -156,7 +157,7 @@ def _claims_before_analysis(model: Any) -> list[Finding]:
     """Every claim, not decided yet (what a stop before the first stage leaves)."""
     from plantlint.analysis.engine import claim_stage, claim_text
 
-    return [Finding("expectation-failed", Severity.ERROR, f"`{claim_text(c)}` not decided", point=c.point,
+    return [finding("expectation-failed", f"`{claim_text(c)}` not decided", point=c.point,
                     anchor=c.anchor, undecided=True, hint=f"needs the stage '{claim_stage(c)}' to complete")
             for c in model.claims]
 
@@ -227,7 +228,7 @@ def claims_in_text(data: bytes) -> list[Finding]:
         anchor = f"expect {kind}" + (f"({output})" if output else "") + (f" at {point}" if point else "")
         text = f"expect {kind}" + (f"({output}) = {value}" if output else "") + (f" at {point}" if point else "")
         start = len(raw) - len(raw.lstrip()) + 1
-        out.append(Finding("expectation-failed", Severity.ERROR, f"`{text}` not decided",
+        out.append(finding("expectation-failed", f"`{text}` not decided",
                            Span(number, start, number, len(raw.split("#")[0].rstrip()) + 1), point=point,
                            anchor=anchor, undecided=True))
     return out
@@ -257,12 +258,12 @@ def stopped(snapshot: RawResult | None, kind: str, stages: list[str], all_stages
     stop = Stop(kind, running, tuple(done), what)
     todo = [s for s in all_stages if s not in done]
     line = header[0]
-    finding = Finding("analysis-incomplete", Severity.ERROR,
-                      f"could not be checked: the analysis {what}; completed: {', '.join(done) or 'none'}; "
-                      f"not completed: {', '.join(todo) or 'none'}",
-                      Span(line, 1, line, 6), anchor=STOP_ANCHOR, hint=_STOP_HINTS[kind], undecided=True)
+    incomplete = finding("analysis-incomplete",
+                         f"could not be checked: the analysis {what}; completed: {', '.join(done) or 'none'}; "
+                         f"not completed: {', '.join(todo) or 'none'}",
+                         Span(line, 1, line, 6), anchor=STOP_ANCHOR, hint=_STOP_HINTS[kind], undecided=True)
     from dataclasses import replace
 
     claims = [replace(p, message=f"{p.message}: the analysis {what}", hint=None) for p in base.pending]
-    return RawResult(plant=base.plant, findings=[*base.findings, *claims, finding], waivers=list(base.waivers),
+    return RawResult(plant=base.plant, findings=[*base.findings, *claims, incomplete], waivers=list(base.waivers),
                      analysis=base.analysis, stages=done, stop=stop, explain=base.explain)

@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import replace
 from typing import Callable, Iterable, Mapping
 
+from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Severity, Waiver
 
 
@@ -49,8 +50,8 @@ def unused_waivers(findings: Iterable[Finding], waivers: Iterable[Waiver], judge
         if not judged(w.rule) or any(matching_waiver(f, [w]) is not None for f in findings):
             continue
         where = f" at point {w.point}" if w.point else ""
-        out.append(Finding(
-            "unused-waiver", Severity.WARNING,
+        out.append(finding(
+            "unused-waiver",
             f"the waiver of '{w.rule}'{where} silences nothing: the rule does not fire "
             + (f"at point {w.point}" if w.point else "in this model"),
             w.span, point=w.point, anchor=f"waiver {w.rule}" + (f" at {w.point}" if w.point else ""),

@@ -35,6 +35,7 @@ from typing import Any, Callable
 
 from plantlint import __version__
 from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
+from plantlint.core.catalogue import finding
 from plantlint.core.findings import FileReport, Finding, Severity, Span
 from plantlint.core.limits import MAX_BYTES  # one definition of the input limits; no sympy
 from plantlint.analysis.stages import STAGES  # light: the stage names only
@@ -539,8 +540,8 @@ def read_source(target: Target) -> Source:
             data = b"" if size > MAX_BYTES else fh.read(MAX_BYTES + 1)
         if size > MAX_BYTES or len(data) > MAX_BYTES:
             shown = f"{size / 1e6:.1f} MB" if size > MAX_BYTES else f"over {MAX_BYTES // 1024} KiB"
-            return Source(target.display, None, Finding(
-                "syntax", Severity.ERROR,
+            return Source(target.display, None, finding(
+                "syntax",
                 f"file is {shown}; plant models are limited to {MAX_BYTES // 1024} KiB",
                 Span(1, 1, 1, 2), anchor="file too large"))
         return Source(target.display, data)

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import json
 import os
-import pty
 import shutil
 import subprocess
 import sys
@@ -19,7 +18,7 @@ from pathlib import Path
 
 import pytest
 
-from support import Run
+from conftest import Run, run_on_terminal
 
 FIXTURES = Path(__file__).parent / "fixtures" / "rules"
 
@@ -277,25 +276,10 @@ def test_progress_goes_to_a_terminal_only(workspace: Path, reference: Run) -> No
     """With stderr on a pseudo-terminal the progress bar is drawn there (more than three
     models to analyse); stdout (a pipe) still carries exactly the report."""
     paths = ["models/a_unstable.plant", "models/b_critical.plant", "models/c_clean.plant", "models/e_unused.plant"]
-    leader, follower = pty.openpty()
-    try:
-        proc = subprocess.Popen([sys.executable, "-m", "plantlint", "check", "--format", "json", "--jobs", "2",
-                                 "--no-cache", *paths], cwd=workspace, stdout=subprocess.PIPE, stderr=follower,
-                                env={**_env(), "TERM": "xterm", "COLUMNS": "100"})
-        os.close(follower)
-        drawn = bytearray()
-        while True:
-            try:
-                chunk = os.read(leader, 4096)
-            except OSError:  # the terminal closed with the process
-                break
-            if not chunk:
-                break
-            drawn += chunk
-        stdout, _ = proc.communicate(timeout=300)
-    finally:
-        os.close(leader)
-    assert proc.returncode == 1
+    code, drawn, stdout = run_on_terminal(
+        [sys.executable, "-m", "plantlint", "check", "--format", "json", "--jobs", "2", "--no-cache", *paths],
+        workspace, {**_env(), "TERM": "xterm", "COLUMNS": "100"}, stream="stderr")
+    assert code == 1
     expected = [f for f in json.loads(reference.stdout)["files"] if f["path"] in paths]
     assert json.loads(stdout)["files"] == expected
     assert b"analysing models" in drawn and b"Traceback" not in drawn

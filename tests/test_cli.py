@@ -13,7 +13,6 @@ from __future__ import annotations
 import importlib.util
 import json
 import os
-import pty
 import re
 import shutil
 import subprocess
@@ -24,7 +23,7 @@ from pathlib import Path
 
 import pytest
 
-from support import Run
+from conftest import Run, run_on_terminal
 
 from plantlint import __version__
 from plantlint.core.catalogue import load_catalogue
@@ -313,27 +312,11 @@ def test_text_to_a_pipe_has_no_colour_unless_asked(tmp_path: Path, cli: CLI) -> 
 
 def _on_terminal(cwd: Path, args: list[str], extra_env: dict[str, str]) -> tuple[int, str]:
     """Run plantlint with stdout on a pseudo-terminal; what the terminal received."""
-    leader, follower = pty.openpty()
     env = {k: v for k, v in os.environ.items() if k not in ("NO_COLOR", "FORCE_COLOR")}
     env.update({"TERM": "xterm-256color", "COLUMNS": "100", **extra_env})
-    try:
-        proc = subprocess.Popen([sys.executable, "-m", "plantlint", *args], cwd=cwd, stdout=follower,
-                                stderr=subprocess.PIPE, env=env)
-        os.close(follower)
-        seen = bytearray()
-        while True:
-            try:
-                chunk = os.read(leader, 4096)
-            except OSError:
-                break
-            if not chunk:
-                break
-            seen += chunk
-        _, err = proc.communicate(timeout=300)
-    finally:
-        os.close(leader)
+    code, seen, err = run_on_terminal([sys.executable, "-m", "plantlint", *args], cwd, env)
     assert b"Traceback" not in err
-    return proc.returncode, seen.decode("utf-8", errors="replace")
+    return code, seen.decode("utf-8", errors="replace")
 
 
 def test_colour_on_a_terminal_and_no_color(tmp_path: Path, cache: Path) -> None:

@@ -22,6 +22,7 @@ from plantlint.analysis.distributions import (
 )
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant
+from conftest import linear_plant
 
 x1, x2, x3, x4 = sp.symbols("x1 x2 x3 x4")
 u, v = sp.symbols("u v")
@@ -56,15 +57,6 @@ def analyse(plant: Plant, point: dict[sp.Symbol, sp.Expr], name: str = "p"):
     kernel = Kernel(plant)
     structure = analyse_distributions(kernel)
     return structure, distributions_at(kernel, structure, name, point)
-
-
-def linear_plant(A: np.ndarray, B: np.ndarray) -> Plant:
-    n, m = B.shape
-    xs = list(sp.symbols(f"x1:{n + 1}"))
-    us = list(sp.symbols(f"u1:{m + 1}"))
-    f = [sum((int(A[i, j]) * xs[j] for j in range(n)), sp.Integer(0)) for i in range(n)]
-    g = [[int(B[i, j]) for i in range(n)] for j in range(m)]
-    return Plant.from_matrices("linear", xs, us, f, g, [xs[0]])
 
 
 def kalman(A: np.ndarray, B: np.ndarray, k: int) -> np.ndarray:

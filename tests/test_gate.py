@@ -29,7 +29,7 @@ from typing import Any
 import numpy as np
 import pytest
 
-from support import Run, git, git_env
+from conftest import Run, git, git_env
 
 from plantlint.report.formats.base import change_text
 from plantlint.run.gate import structure_changes

@@ -31,36 +31,19 @@ from plantlint.core.settings import AnalysisSettings
 from plantlint.report.explain import explain_data, render_text
 from plantlint.report.formats.json_report import report_schema
 from plantlint.run.pipeline import read_model
+from conftest import assert_same_set, linear_plant, rosenbrock_zeros
 
 FIXTURES = Path(__file__).parent / "fixtures" / "models"
 REPO = Path(__file__).parent.parent
 
 
 # -- helpers -------------------------------------------------------------------------------
-def linear_plant(A: np.ndarray, B: np.ndarray, C: np.ndarray, scale: sp.Expr = sp.Integer(1)) -> Plant:
-    n, m = B.shape
-    xs = sp.symbols(f"x1:{n + 1}")
-    us = sp.symbols(f"u1:{m + 1}")
-    f = [sum((scale * int(A[i, k]) * xs[k] for k in range(n)), sp.Integer(0)) for i in range(n)]
-    cols = [[int(B[i, j]) for i in range(n)] for j in range(m)]
-    h = [sum((int(C[i, k]) * xs[k] for k in range(n)), sp.Integer(0)) for i in range(C.shape[0])]
-    return Plant.from_matrices("linear", list(xs), list(us), f, cols, h)
-
 
 def linearise_origin(P: Plant) -> Linearisation:
     kernel = Kernel(P)
     eq = solve_point(P, "origin", {s: sp.Integer(0) for s in (*P.states, *P.inputs)}, kernel)
     assert eq.equilibrium
     return linearise_at(kernel, eq, None)
-
-
-def assert_same_set(ours: list[complex], ref: list[complex], tol: float = 1e-6) -> None:
-    assert len(ours) == len(ref), (ours, ref)
-    rest = list(ref)
-    for z in ours:
-        k = min(range(len(rest)), key=lambda q: abs(rest[q] - z))
-        assert abs(rest[k] - z) <= tol * (1 + abs(z)), (ours, ref)
-        rest.pop(k)
 
 
 def kalman(A: np.ndarray, B: np.ndarray) -> np.ndarray:
@@ -156,10 +139,7 @@ def test_square_mimo_zeros_against_rosenbrock_pencil() -> None:
     while checked < 20:
         n = int(rng.integers(3, 6))
         A, B, C = random_system(rng, n, 2, 2, deficient=False)
-        M = np.block([[A, B], [-C, np.zeros((2, 2))]]).astype(float)
-        N = scipy.linalg.block_diag(np.eye(n), np.zeros((2, 2)))
-        w = scipy.linalg.eig(M, N, right=False)
-        finite = [z for z in w if np.isfinite(z) and abs(z) < 1e6]
+        finite = rosenbrock_zeros(A, B, C)
         lin = linearise_origin(linear_plant(A, B, C))
         if lin.zeros is None:  # pencil singular for every s: scipy's eigenvalues are then arbitrary
             assert "vanishes for every s" in lin.zeros_note

@@ -18,7 +18,7 @@ import numpy as np
 import pytest
 from scipy import signal
 
-from support import Run, git, git_env
+from conftest import Run, git, git_env
 
 # rd: y = x1 with a chain of 2 (base) or 3 (changed) integrators -> relative degree 2 -> 3
 RD_BASE = """# Invented chain for the markdown tests.

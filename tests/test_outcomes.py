@@ -28,7 +28,7 @@ from plantlint.report.formats import get_formatter
 from plantlint.report.formats.json_report import report_schema
 from plantlint.run.config import Config, ConfigError, from_table
 from plantlint.run.runner import Target, check_targets
-from support import Run
+from conftest import Run
 
 SARIF_SCHEMA = Path(__file__).parent / "standards" / "sarif-schema-2.1.0.json"  # OASIS SARIF 2.1.0
 

@@ -17,7 +17,7 @@ from pathlib import Path
 
 import pytest
 
-from support import git, git_env
+from conftest import git, git_env
 
 PROJECT = Path(__file__).resolve().parent.parent
 FIXTURES = PROJECT / "tests" / "fixtures" / "rules"

@@ -21,7 +21,7 @@ import pytest
 from plantlint.core.findings import FileReport, Finding, Report, Severity, Span
 from plantlint.report.formats.json_report import build_report, read_report
 from plantlint.run.shard import SLACK, ShardError, assign, merge_reports, parse_shard
-from support import Run, git, git_env
+from conftest import Run, git, git_env
 
 REPO_ROOT = Path(__file__).resolve().parent.parent
 EXAMPLE = REPO_ROOT / "example_repo"

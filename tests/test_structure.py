@@ -23,6 +23,7 @@ from plantlint.analysis.structure import (
     structure_at_point,
     structure_json,
 )
+from conftest import linear_plant
 
 I = sp.Integer
 R = sp.Rational
@@ -31,16 +32,6 @@ x1, x2, x3, x4, u, u1, u2 = sp.symbols("x1 x2 x3 x4 u u1 u2")
 
 def rules(findings) -> list[str]:
     return sorted(f.rule for f in findings)
-
-
-def linear_plant(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> Plant:
-    n, m = B.shape
-    xs = sp.symbols(f"z1:{n + 1}")
-    us = sp.symbols(f"v1:{m + 1}")
-    f = [sum(int(A[i, k]) * xs[k] for k in range(n)) for i in range(n)]
-    g = [[I(int(B[i, j])) for i in range(n)] for j in range(m)]
-    h = [sum(int(C[r, k]) * xs[k] for k in range(n)) for r in range(C.shape[0])]
-    return Plant.from_matrices("linear", list(xs), list(us), f, g, h)
 
 
 def pole_excess(num: np.ndarray, den: np.ndarray) -> int | None:

@@ -16,21 +16,13 @@ from plantlint.analysis.normal_form import normal_form_at
 from plantlint.analysis.serialise import normal_form_json
 from plantlint.kernel.plant import Plant
 from plantlint.analysis.zero_dynamics import zero_dynamics_at, zero_dynamics_json
+from conftest import assert_same_set, linear_plant, rosenbrock_zeros
 
 x1, x2, x3 = sp.symbols("x1 x2 x3")
 u = sp.Symbol("u")
 
 
 # -- linear plants ------------------------------------------------------------------
-def linear_plant(A: np.ndarray, B: np.ndarray, C: np.ndarray, scale: sp.Expr = sp.Integer(1)) -> Plant:
-    n, m = B.shape
-    xs = sp.symbols(f"z1:{n + 1}")
-    us = sp.symbols(f"v1:{m + 1}")
-    f = [sum(scale * int(A[i, k]) * xs[k] for k in range(n)) for i in range(n)]
-    cols = [[int(B[i, j]) for i in range(n)] for j in range(m)]
-    h = [sum(int(C[i, k]) * xs[k] for k in range(n)) for i in range(C.shape[0])]
-    return Plant.from_matrices("linear", list(xs), list(us), f, cols, h)
-
 
 def markov_degrees(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> list[int] | None:
     """r_i from the Markov parameters C_i A^(k-1) B (exact integers)."""
@@ -55,15 +47,6 @@ def decoupling(A: np.ndarray, B: np.ndarray, C: np.ndarray, r: list[int]) -> np.
 
 def at_origin(P: Plant) -> dict[sp.Symbol, sp.Expr]:
     return {s: sp.Integer(0) for s in P.states}
-
-
-def assert_same_set(ours: list[complex], ref: list[complex], tol: float = 1e-6) -> None:
-    assert len(ours) == len(ref), (ours, ref)
-    rest = list(ref)
-    for z in ours:
-        k = min(range(len(rest)), key=lambda q: abs(rest[q] - z))
-        assert abs(rest[k] - z) <= tol * (1 + abs(z)), (ours, ref)
-        rest.pop(k)
 
 
 @pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
@@ -107,10 +90,7 @@ def test_square_mimo_zeros_equal_rosenbrock_pencil() -> None:
             continue
         P = linear_plant(A, B, C)
         zd = zero_dynamics_at(Kernel(P), r, at_origin(P), "origin")
-        M = np.block([[A, B], [-C, np.zeros((2, 2))]]).astype(float)
-        N = scipy.linalg.block_diag(np.eye(n), np.zeros((2, 2)))
-        w = scipy.linalg.eig(M, N, right=False)
-        finite = [complex(v) for v in w if np.isfinite(v) and abs(v) < 1e6]
+        finite = rosenbrock_zeros(A, B, C)
         assert zd.dimension == n - sum(r) and zd.consistent
         assert_same_set(list(zd.eigenvalues), finite, tol=1e-6)
         checked += 1

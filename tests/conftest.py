@@ -1,0 +1,130 @@
+"""Helpers shared by the tests: where things are, process results, a sealed git environment,
+a pseudo-terminal reader and the linear plant builder used by the outside-reference tests.
+
+Test modules import them with ``from conftest import ...`` (pytest puts this folder on the
+path); fixtures that several modules use are defined here too.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import pty
+import subprocess
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import sympy as sp
+
+REPO = Path(__file__).resolve().parent.parent
+FIXTURES = REPO / "tests" / "fixtures"
+STANDARDS = REPO / "tests" / "standards"
+
+
+@dataclass
+class Run:
+    """What a command did: exit code and its two streams."""
+
+    code: int
+    stdout: str
+    stderr: str
+
+    def json(self) -> dict[str, Any]:
+        data: dict[str, Any] = json.loads(self.stdout)
+        return data
+
+
+def git_env(home: Path, ceiling: Path | None = None, **extra: str) -> dict[str, str]:
+    """An environment that keeps git away from the user's own configuration."""
+    cfg = home / "gitconfig"
+    if not cfg.exists():
+        cfg.write_text("", encoding="utf-8")
+    env = dict(os.environ)
+    env.update({
+        "GIT_CONFIG_GLOBAL": str(cfg), "GIT_CONFIG_NOSYSTEM": "1",
+        "GIT_AUTHOR_NAME": "Test Author", "GIT_AUTHOR_EMAIL": "author@example.invalid",
+        "GIT_COMMITTER_NAME": "Test Author", "GIT_COMMITTER_EMAIL": "author@example.invalid",
+        "GIT_CEILING_DIRECTORIES": str(ceiling if ceiling is not None else home.parent), "NO_COLOR": "1",
+    })
+    env.update(extra)
+    return env
+
+
+def git(repo: Path, env: dict[str, str], *args: str) -> str:
+    out = subprocess.run(["git", *args], cwd=repo, env=env, capture_output=True, text=True, timeout=300)
+    assert out.returncode == 0, out.stderr
+    return out.stdout
+
+
+def run_on_terminal(argv: Sequence[str], cwd: Path, env: dict[str, str], *,
+                    stream: str = "stdout") -> tuple[int, bytes, bytes]:
+    """Run ``argv`` with ``stream`` ("stdout" or "stderr") on a pseudo-terminal.
+
+    Returns the exit code, what the terminal received and what the other stream (a pipe)
+    carried.
+    """
+    leader, follower = pty.openpty()
+    other = subprocess.PIPE
+    try:
+        proc = subprocess.Popen(list(argv), cwd=cwd, env=env,
+                                stdout=follower if stream == "stdout" else other,
+                                stderr=follower if stream == "stderr" else other)
+        os.close(follower)
+        seen = bytearray()
+        while True:
+            try:
+                chunk = os.read(leader, 4096)
+            except OSError:  # the terminal closed with the process
+                break
+            if not chunk:
+                break
+            seen += chunk
+        out, err = proc.communicate(timeout=300)
+    finally:
+        os.close(leader)
+    piped = err if stream == "stdout" else out
+    return proc.returncode, bytes(seen), piped or b""
+
+
+def linear_plant(A: np.ndarray, B: np.ndarray, C: np.ndarray | None = None, *, scale: sp.Expr = sp.Integer(1),
+                 states: str = "x", inputs: str = "u"):  # -> plantlint.kernel.plant.Plant
+    """dx/dt = scale*A x + B u, y = C x (y = x1 when C is None), with integer entries,
+    states ``x1..xn`` and inputs ``u1..um`` (prefixes adjustable): the linear plants the
+    tests hold against scipy.signal and numpy."""
+    from plantlint.kernel.plant import Plant
+
+    n, m = B.shape
+    xs = list(sp.symbols(f"{states}1:{n + 1}"))
+    us = list(sp.symbols(f"{inputs}1:{m + 1}"))
+    f = [sum((scale * int(A[i, k]) * xs[k] for k in range(n)), sp.Integer(0)) for i in range(n)]
+    g = [[int(B[i, j]) for i in range(n)] for j in range(m)]
+    if C is None:
+        h = [xs[0]]
+    else:
+        h = [sum((int(C[r, k]) * xs[k] for k in range(n)), sp.Integer(0)) for r in range(C.shape[0])]
+    return Plant.from_matrices("linear", xs, us, f, g, h)
+
+
+def assert_same_set(ours: Sequence[complex], ref: Sequence[complex], tol: float = 1e-6) -> None:
+    """Two multisets of complex numbers agree, each pair within ``tol`` relative."""
+    assert len(ours) == len(ref), (ours, ref)
+    rest = list(ref)
+    for z in ours:
+        k = min(range(len(rest)), key=lambda q: abs(rest[q] - z))
+        assert abs(rest[k] - z) <= tol * (1 + abs(z)), (ours, ref)
+        rest.pop(k)
+
+
+def rosenbrock_zeros(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> list[complex]:
+    """Reference invariant zeros of a square (A, B, C): the finite generalised eigenvalues of
+    the pencil [[A, B], [-C, 0]] - s diag(I, 0), by scipy.linalg.eig."""
+    import scipy.linalg
+
+    n, m = B.shape
+    M = np.block([[A, B], [-C, np.zeros((C.shape[0], m))]]).astype(float)
+    N = scipy.linalg.block_diag(np.eye(n), np.zeros((C.shape[0], m)))
+    w = scipy.linalg.eig(M, N, right=False)
+    return [complex(v) for v in w if np.isfinite(v) and abs(v) < 1e6]

@@ -216,12 +216,6 @@ class Kernel:
                 self._ad[key] = self.bracket(self.f, self.ad(j, k - 1))
         return self._ad[key]
 
-    @property
-    def polynomial_ring(self) -> bool:
-        """True when f, g and h are polynomials with rational coefficients, so the towers are
-        computed in a sparse polynomial ring instead of by tree differentiation."""
-        return self._polynomial() is not None
-
     def _polynomial(self) -> "_PolynomialTowers | None":
         """Exact sparse-polynomial arithmetic when f, g and h are polynomials with
         rational coefficients: the towers then cost a fraction of tree-based
@@ -360,11 +354,11 @@ class Kernel:
         if not _has_functions(exact):
             c = sp.nsimplify(exact) if exact.has(sp.Float) else sp.cancel(exact)
             return PointValue(to_arb(0) if c == 0 else _safe_ball(c), zd.exactly(c == 0))
-        is_zero = bounded_equals_zero(exact)
-        if is_zero is None:  # within 2^-1024 of zero, not proven symbolically: taken as zero, reported
+        decision = bounded_equals_zero(exact)
+        if not decision.certain:  # within 2^-1024 of zero, not proven symbolically: taken as zero, reported
             self.uncertain.append(exact)
             return PointValue(_safe_ball(exact), zd.unconfirmed_zero())
-        return PointValue(_safe_ball(exact), zd.exactly(bool(is_zero), "equals"))
+        return PointValue(_safe_ball(exact), decision)
 
 
 class _PolynomialTowers:
@@ -447,17 +441,19 @@ EQUALS_OPS_LIMIT = 400
 EQUALS_SECONDS = 2.0
 
 
-def bounded_equals_zero(exact: sp.Expr) -> bool | None:
-    """``exact.equals(0)`` within a size and a time bound; None when undecided."""
+def bounded_equals_zero(exact: sp.Expr) -> ZeroDecision:
+    """``exact.equals(0)`` within a size and a time bound (undecided beyond them, or
+    when sympy cannot tell)."""
     if sp.count_ops(exact) > EQUALS_OPS_LIMIT:
-        return None
+        return zd.UNDECIDED
     try:
         with within(EQUALS_SECONDS) as step:
-            return exact.equals(0)
+            answer = exact.equals(0)
     except TimeUp as exc:
         if not expired(exc, step):
             raise
-        return None
+        return zd.UNDECIDED
+    return zd.UNDECIDED if answer is None else zd.exactly(bool(answer), "equals")
 
 
 def has_symbolic_denominator(e: sp.Expr) -> bool:

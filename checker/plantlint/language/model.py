@@ -800,7 +800,7 @@ def _compare(d: sp.Expr) -> int:
         pass
     from plantlint.kernel.lie import bounded_equals_zero
 
-    return 0 if bounded_equals_zero(d) else (1 if d.is_positive else -1)
+    return 0 if bounded_equals_zero(d).proven_zero else (1 if d.is_positive else -1)
 
 
 def _show(e: sp.Expr) -> str:

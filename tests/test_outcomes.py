@@ -353,7 +353,7 @@ def test_workers_end_when_the_parent_is_killed(lift: Path) -> None:
 GUARDED = """
 import os, sys
 from plantlint.run import runner
-runner._guard_worker(os.getppid(), float(sys.argv[1]))
+runner.guard_worker(os.getppid(), float(sys.argv[1]))
 if sys.argv[2] == "python":
     while True:
         pass

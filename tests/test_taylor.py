@@ -17,7 +17,7 @@ import pytest
 import sympy as sp
 from flint import arb
 
-from plantlint.kernel.balls import _ball_unary
+from plantlint.kernel.balls import unary
 from plantlint.kernel.dag import Graph, UnsupportedNode
 from plantlint.kernel.structural import StructuralPlant
 from plantlint.kernel.taylor import ArbField, Inexact, QField, Towers
@@ -202,7 +202,7 @@ def test_tight_enclosures_on_wide_intervals(name: str, fn: object) -> None:
     if name == "tan":
         intervals = [(-1.0, -0.5), (-1.2, 1.3), (2.0, 4.0)]
     for lo, hi in intervals:
-        enclosure = _ball_unary(name, arb(lo).union(arb(hi)))
+        enclosure = unary(name, arb(lo).union(arb(hi)))
         samples = [fn(lo + (hi - lo) * t / 400) for t in range(401)]  # type: ignore[operator]
         shift = {"cos": 0.0, "sin": math.pi / 2}.get(name)
         if shift is not None:  # the true extrema inside (k pi for cos, pi/2 + k pi for sin)
@@ -210,11 +210,11 @@ def test_tight_enclosures_on_wide_intervals(name: str, fn: object) -> None:
         low, high = float(enclosure.lower().mid()), float(enclosure.upper().mid())
         assert low <= min(samples) + 1e-12 and high >= max(samples) - 1e-12
         assert low >= min(samples) - 1e-6 and high <= max(samples) + 1e-6
-    cos = _ball_unary("cos", arb(-1).union(arb(-0.5)))
+    cos = unary("cos", arb(-1).union(arb(-0.5)))
     assert not cos.contains(0)
     assert float(cos.lower().mid()) == pytest.approx(math.cos(1), abs=1e-8)
     assert float(cos.upper().mid()) == pytest.approx(math.cos(0.5), abs=1e-8)
-    assert not _ball_unary("tan", arb(1).union(arb(2))).is_finite()  # a pole inside: no enclosure
+    assert not unary("tan", arb(1).union(arb(2))).is_finite()  # a pole inside: no enclosure
 
 
 def _chain_text(n: int) -> str:

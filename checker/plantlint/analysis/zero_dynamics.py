@@ -26,6 +26,7 @@ from plantlint.kernel.exact import number_decider, rank as exact_rank
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.lie import Kernel
+from plantlint.language.printer import show_number
 
 VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
 #: Relative tolerance (times the Frobenius norm of Df*(x0)) for "on the imaginary axis"
@@ -421,20 +422,18 @@ def show_eigenvalues(values: Sequence[complex]) -> str:
     while pending:
         z = pending.pop(0)
         if z.imag == 0:
-            parts.append(_num(z.real))
+            parts.append(show_number(z.real))
             continue
         partner = next((w for w in pending if abs(w - z.conjugate()) <= 1e-12 * (1 + abs(z))), None)
         if partner is not None:
             pending.remove(partner)
-            re = "" if z.real == 0 else _num(z.real) + " "
-            parts.append(f"{re}\u00b1 {_num(abs(z.imag))}i" if re else f"\u00b1{_num(abs(z.imag))}i")
+            re = "" if z.real == 0 else show_number(z.real) + " "
+            parts.append(f"{re}\u00b1 {show_number(abs(z.imag))}i" if re else f"\u00b1{show_number(abs(z.imag))}i")
         else:
-            parts.append(f"{_num(z.real)}{'+' if z.imag > 0 else '-'}{_num(abs(z.imag))}i")
+            parts.append(f"{show_number(z.real)}{'+' if z.imag > 0 else '-'}{show_number(abs(z.imag))}i")
     return ", ".join(parts)
 
 
-def _num(x: float) -> str:
-    return format(x, ".6g")
 
 
 def zero_dynamics_json(zd: ZeroDynamics) -> dict[str, object]:

@@ -99,7 +99,8 @@ def tight_tan(x: arb) -> arb:
     return _nan()
 
 
-def _ball_unary(name: str, x: arb) -> arb:
+def unary(name: str, x: arb) -> arb:
+    """The enclosure of the named elementary function over the ball ``x`` (tight on wide balls)."""
     if x.is_finite() and x.rad() > WIDE_RADIUS:
         if name in ("sin", "cos"):
             return tight_periodic(name, x)
@@ -230,7 +231,7 @@ def _step(name: str, args: tuple[int, ...], data: object) -> Step:
             y, x = regs[args[0]], regs[args[1]]
             return arb.atan2(y, x) if not (y.contains(0) and x.contains(0)) else _nan()
         return atan2
-    return lambda regs, values: _ball_unary(name, regs[args[0]])
+    return lambda regs, values: unary(name, regs[args[0]])
 
 
 class Program:

@@ -216,6 +216,12 @@ class Kernel:
                 self._ad[key] = self.bracket(self.f, self.ad(j, k - 1))
         return self._ad[key]
 
+    @property
+    def polynomial_ring(self) -> bool:
+        """True when f, g and h are polynomials with rational coefficients, so the towers are
+        computed in a sparse polynomial ring instead of by tree differentiation."""
+        return self._polynomial() is not None
+
     def _polynomial(self) -> "_PolynomialTowers | None":
         """Exact sparse-polynomial arithmetic when f, g and h are polynomials with
         rational coefficients: the towers then cost a fraction of tree-based

@@ -290,7 +290,7 @@ def ignore_marker(folder: Path) -> Path:
 
 # -- workers ---------------------------------------------------------------------
 
-def _guard_worker(parent: int, budget: float) -> None:
+def guard_worker(parent: int, budget: float) -> None:
     """A worker's own limits, so that it never outlives the run even if the parent
     dies without cleaning up (SIGKILL, a crash):
 
@@ -353,7 +353,7 @@ def _worker(conn: Connection, data: bytes, settings: AnalysisSettings, parent: i
             explain: bool = False) -> None:
     """Child process: analyse one model, send a snapshot per stage, then the raw result.
     It receives the model's bytes and the analysis settings, nothing else of the run."""
-    _guard_worker(parent, budget)
+    guard_worker(parent, budget)
     from plantlint.run.pipeline import analyse_bytes
 
     try:

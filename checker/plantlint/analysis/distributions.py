@@ -40,6 +40,7 @@ import numpy as np
 import sympy as sp
 from flint import arb
 
+from plantlint.core import anchors
 from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
 from plantlint.core.catalogue import finding
@@ -475,7 +476,7 @@ def analyse_distributions(kernel: Kernel) -> DistributionStructure:
             finding(
                 "not-involutive",
                 message,
-                anchor="plant",
+                anchor=anchors.PLANT,
                 hint="no output of relative degree n exists; consider input-output linearization "
                 "with a chosen output instead",
             )
@@ -750,7 +751,7 @@ def _point_findings(
                 "not-controllable",
                 message,
                 point=name,
-                anchor=f"point {name}",
+                anchor=anchors.point(name),
                 hint="the input cannot steer these directions to first order by state feedback "
                 "through the drift brackets",
             )
@@ -767,7 +768,7 @@ def _point_findings(
                 f"{'; '.join(parts)}: {name} is a singular point of the distribution, which "
                 "must have constant rank near the point (it may well be involutive)",
                 point=name,
-                anchor=f"point {name}",
+                anchor=anchors.point(name),
                 hint="an input field that vanishes at the point makes the rank drop there; choose "
                 "another operating point or another input",
             )

@@ -15,6 +15,7 @@ from typing import Sequence
 import sympy as sp
 
 from plantlint.kernel.balls import UnsupportedExpression
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.exact import ZeroDecider, gauss_jordan, number_decider
@@ -62,7 +63,7 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
     kernel = kernel or Kernel(plant)
     given = {s: as_expr(v) for s, v in given.items()}
     decide = number_decider(kernel)
-    anchor = f"point {name}"
+    anchor = anchors.point(name)
     findings: list[Finding] = []
 
     def report(rule: str, message: str, hint: str | None = None) -> None:
@@ -160,7 +161,7 @@ def _check_residual(
                 "point-not-equilibrium",
                 f"point {name} is not an equilibrium: {shown}",
                 point=name,
-                anchor=f"point {name}",
+                anchor=anchors.point(name),
             )
         )
     return Equilibrium(name, not bad, "not_equilibrium" if bad else "equilibrium", values,
@@ -196,7 +197,7 @@ def _no_solution(
             "point-incomplete",
             f"no value of the input(s) {_names(missing)} makes point {name} an equilibrium: " + "; ".join(parts),
             point=name,
-            anchor=f"point {name}",
+            anchor=anchors.point(name),
         )
     )
     return Equilibrium(name, False, "no_solution", values, undetermined_inputs=tuple(missing), findings=tuple(findings))
@@ -228,7 +229,7 @@ def _envelope_findings(
                 f"at point {name} the {kind} {sym} = {show_number(value, mark_inexact=True)} lies outside its range "
                 f"{show_number(lo, mark_inexact=True)} .. {show_number(hi, mark_inexact=True)}",
                 point=name,
-                anchor=f"point {name}",
+                anchor=anchors.point(name),
             )
         )
     return out
@@ -315,7 +316,7 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
             f"point {name} is an equilibrium within its tolerance {tolerance:g}{where}: its rates are "
             f"{_ratio(miss.relative)} of the size of their terms; the analysis runs at the "
             f"{'exact' if exact else 'refined'} equilibrium {moved}" + (f", {solved}" if solved and moved else solved),
-            point=name, anchor=f"point {name}",
+            point=name, anchor=anchors.point(name),
             hint=f"write {moved.split(' (written')[0]} to make the point exact" if moved else None,
         )
         return Equilibrium(name, True, "refined", values, tuple(unknown), (), eq.residual, (*others, note),
@@ -334,7 +335,7 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
         message += "; no equilibrium was found near it by changing the values written"
     elif late:
         message += f"; the equilibrium near it was not worked out within {REFINE_SECONDS:g} s"
-    missed = finding("point-not-equilibrium", message, point=name, anchor=f"point {name}",
+    missed = finding("point-not-equilibrium", message, point=name, anchor=anchors.point(name),
                      hint=hint)
     return replace(eq, findings=(*others, missed), refinement={**refinement, "refined": False})
 

@@ -39,6 +39,7 @@ from flint import acb, acb_mat, acb_poly, arb, arb_mat, fmpq, fmpq_mat, fmpq_pol
 
 from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
@@ -672,7 +673,7 @@ def _inconsistency(name: str, check: CrossCheck) -> tuple[Finding, ...]:
         "internal-inconsistency",
         f"internal inconsistency at point {name}: the linearisation and the zero dynamics, computed "
         f"independently, disagree ({check.detail})",
-        point=name, anchor=f"point {name}",
+        point=name, anchor=anchors.point(name),
         hint="a defect of plantlint, not of the model: please report it with the model file; "
              "neither result can be trusted at this point",
     ),)

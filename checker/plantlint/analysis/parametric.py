@@ -38,6 +38,7 @@ import sympy as sp
 
 from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
+from plantlint.core import anchors
 from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
@@ -510,7 +511,7 @@ def _controllability(params: ParameterBox, values: dict[sp.Symbol, sp.Expr] | No
 
 # -- findings --------------------------------------------------------------------------------------------
 def _finding(out: ParametricPoint, rule: str, message: str, hint: str | None = None) -> None:
-    out.findings.append(finding(rule, message, point=out.point, anchor=f"point {out.point}", hint=hint))
+    out.findings.append(finding(rule, message, point=out.point, anchor=anchors.point(out.point), hint=hint))
 
 
 def _not_covered(out: ParametricPoint, params: ParameterBox, what: str, v: BoxVerdict) -> None:

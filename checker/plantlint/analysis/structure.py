@@ -25,6 +25,7 @@ from typing import Any, Sequence
 import sympy as sp
 
 from plantlint.kernel.balls import UnsupportedExpression
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
@@ -131,7 +132,7 @@ def analyse_structure(kernel: Kernel) -> Structure:
                 "relative-degree-undefined",
                 f"output {name} never sees the inputs: L_g L_f^k {name} vanishes identically "
                 f"for k = 0..{plant.n - 1}, so it has no relative degree",
-                anchor=f"output {name}",
+                anchor=anchors.output(name),
                 hint="check the output equation and the input columns of the rates",
             ))
         if out.unconfirmed:
@@ -139,7 +140,7 @@ def analyse_structure(kernel: Kernel) -> Structure:
                 "analysis-budget",
                 f"relative degree of {name} assumes {', '.join(out.unconfirmed)} vanish identically; "
                 "the numeric screening says so but symbolic confirmation was out of budget",
-                anchor=f"output {name}",
+                anchor=anchors.output(name),
             ))
     names = tuple(str(u) for u in plant.inputs)
     if any(o.relative_degree is None for o in outputs) or plant.m == 0:
@@ -153,7 +154,7 @@ def analyse_structure(kernel: Kernel) -> Structure:
             f"the decoupling matrix is singular everywhere: rank {rank} for {plant.p} outputs"
             + (f" ({plant.p} outputs but only {plant.m} input{'s' if plant.m != 1 else ''})" if plant.p > plant.m else "")
             + ("" if certain else " (rank decided numerically; the vanishing minors were not confirmed symbolically)"),
-            anchor="plant",
+            anchor=anchors.PLANT,
             hint=_extension_hint(names, zero_cols),
         ))
     return Structure(tuple(outputs), A, rank, certain, zero_cols, tuple(findings), names)
@@ -321,7 +322,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
             + ("the model is undefined there: " if undefined else "")
             + f"{shown} {'is' if len(out.row) == 1 else 'are all'} zero there "
             f"(generic relative degree {r})",
-            point=name, anchor=f"point {name}",
+            point=name, anchor=anchors.point(name),
             hint="move the operating point off the singular set, or choose another output",
         ))
     if not defined_rows:
@@ -337,7 +338,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
             findings.append(finding(
                 "decoupling-singular",
                 f"the decoupling matrix is singular at point {name}: rank {rank} for {plant.p} outputs",
-                point=name, anchor=f"point {name}",
+                point=name, anchor=anchors.point(name),
                 hint=_extension_hint(structure.input_names, zero_cols),
             ))
         else:
@@ -345,7 +346,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
                 "analysis-budget",
                 f"the rank of the decoupling matrix at point {name} is at least {rank} of {plant.p}, "
                 "but some entries could not be decided exactly (undefined or beyond the evaluator)",
-                point=name, anchor=f"point {name}",
+                point=name, anchor=anchors.point(name),
             ))
     return PointStructure(name, degrees, all_defined and full_rank and certain, rank, certain, tuple(findings))
 
@@ -430,7 +431,7 @@ def certify_envelope(
             f"the operating envelope is not a box: state{'s' if len(missing) > 1 else ''} "
             f"{', '.join(missing)} {'have' if len(missing) > 1 else 'has'} no range, so regularity "
             "over the envelope cannot be certified",
-            anchor="envelope", hint="declare `in LO .. HI` for every state",
+            anchor=anchors.ENVELOPE, hint="declare `in LO .. HI` for every state",
         ),))
     if plant.p == 0:
         return Envelope(None, None, None, ())
@@ -466,7 +467,7 @@ def certify_envelope(
             f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
             f"at {show_point(verdict.witness)}"
             + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)"),
-            anchor="envelope", hint="narrow the envelope, move it off the singular set, or choose other outputs",
+            anchor=anchors.ENVELOPE, hint="narrow the envelope, move it off the singular set, or choose other outputs",
         ))
         return Envelope(False, None, verdict.witness, tuple(findings), clock.boxes, clock.seconds, certified)
     if verdict.regular is None:
@@ -478,13 +479,13 @@ def certify_envelope(
             f"regularity over the envelope is unproven: {verdict.undecided_count} box"
             f"{'es' if verdict.undecided_count != 1 else ''} undecided for {certified} after "
             f"{clock.boxes} boxes and {clock.seconds:.2f} s, e.g. {shown}",
-            anchor="envelope", hint="raise the budget, or narrow the envelope near those boxes",
+            anchor=anchors.ENVELOPE, hint="raise the budget, or narrow the envelope near those boxes",
         ))
     if undecided_model:
         findings.append(finding(
             "envelope-unproven",
             "the model could not be proven defined on the whole envelope: " + "; ".join(undecided_model[:3]),
-            anchor="envelope", hint="raise the budget, or narrow the envelope",
+            anchor=anchors.ENVELOPE, hint="raise the budget, or narrow the envelope",
         ))
     regular = verdict.regular if not undecided_model else None
     margin = verdict.margin if regular else None
@@ -555,8 +556,8 @@ def _model_checks(kernel: Kernel, box: dict[sp.Symbol, Any], clock: _Clock) -> l
     symbols = set(kernel.free_symbols())
     places: list[tuple[str, sp.Expr]] = []
     for i, s in enumerate(plant.states):
-        places += [(f"rate {s}", plant.f[i])] + [(f"rate {s}", col[i]) for col in plant.g]
-    places += [(f"output {name}", h) for name, h in zip(plant.outputs, plant.h)]
+        places += [(anchors.rate(s), plant.f[i])] + [(anchors.rate(s), col[i]) for col in plant.g]
+    places += [(anchors.output(name), h) for name, h in zip(plant.outputs, plant.h)]
     verdicts: dict[tuple[str, sp.Expr], EnvelopeVerdict] = {}
     out: list[tuple[str, DomainCondition, EnvelopeVerdict]] = []
     seen: set[tuple[str, str, sp.Expr]] = set()

@@ -23,6 +23,7 @@ import sympy as sp
 from flint import acb, fmpq, fmpq_mat, fmpz_poly
 
 from plantlint.kernel.exact import number_decider, rank as exact_rank
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.lie import Kernel
@@ -383,7 +384,7 @@ def _verdict(
     consistent: bool,
     polynomial: str | None,
 ) -> ZeroDynamics:
-    anchor = f"point {name}"
+    anchor = anchors.point(name)
     values = tuple(z for z, _ in eigs)
     unstable = [z for z, s in eigs if s == 1]
     on_axis = [z for z, s in eigs if s == 0]

@@ -15,6 +15,7 @@ from typing import Mapping
 
 import sympy as sp
 
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span, Waiver
 from plantlint.kernel.lie import random_samples, screen_then_confirm
@@ -65,8 +66,7 @@ class ClaimDecl:
 
     @property
     def anchor(self) -> str:
-        text = f"expect {self.kind}" + (f"({self.output})" if self.output else "")
-        return text + (f" at {self.point}" if self.point else "")
+        return anchors.claim(self.kind, self.output, self.point)
 
 
 @dataclass(frozen=True)
@@ -172,7 +172,7 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
     by_kind: dict[str, list[Statement]] = {}
     for st in body:
         by_kind.setdefault(st.kind, []).append(st)
-    scope.spans["plant"] = header.name_span or header.span  # the first anchor
+    scope.spans[anchors.PLANT] = header.name_span or header.span  # the first anchor
 
     for st in body:
         if st.kind in QUANTITY_KINDS and st.name:
@@ -251,7 +251,7 @@ def _constants_and_parameters(scope: _Scope, body: list[Statement]) -> list[str]
         elif value is not None:
             scope.constants[symbol(q.name)] = value
         scope.quantities[q.name] = q
-        scope.spans[f"{st.kind} {q.name}"] = q.name_span
+        scope.spans[anchors.declaration(st.kind, q.name)] = q.name_span
     return ranged
 
 
@@ -260,7 +260,7 @@ def _states_and_inputs(scope: _Scope, body: list[Statement]) -> None:
         if st.kind in ("state", "input") and scope.owns(st):
             name = st.name or ""
             scope.quantities[name] = Quantity(name, st.kind, st.span, st.name_span or st.span, st.unit, st.doc)
-            scope.spans[f"{st.kind} {name}"] = st.name_span or st.span
+            scope.spans[anchors.declaration(st.kind, name)] = st.name_span or st.span
 
 
 def _ranges(scope: _Scope, body: list[Statement], ranged: list[str]) -> list[str]:
@@ -290,11 +290,11 @@ def _range_bounds(scope: _Scope, st: Statement, q: Quantity) -> tuple[sp.Expr, s
         return None
     if not _less(lo, hi):
         scope.add("bad-range", f"range of '{q.name}' is empty: {_show(lo)} .. {_show(hi)} needs LO < HI",
-                  st.range_span, f"range {q.name}")
+                  st.range_span, anchors.about("range", q.name))
         return None
     if q.kind == "param" and q.value is not None and not (_less_eq(lo, q.value) and _less_eq(q.value, hi)):
         scope.add("bad-range", f"nominal value {_show(q.value)} of '{q.name}' lies outside its range {_show(lo)} .. {_show(hi)}",
-                  st.range_span, f"nominal {q.name}")
+                  st.range_span, anchors.about("nominal", q.name))
     return lo, hi
 
 
@@ -309,9 +309,9 @@ def _envelope_span(scope: _Scope, state_stmts: list[Statement]) -> None:
     declared = [st for st in state_stmts if scope.owns(st)]
     unranged = [st for st in declared if st.range_span is None]
     if unranged:
-        scope.spans["envelope"] = unranged[0].name_span or unranged[0].span
+        scope.spans[anchors.ENVELOPE] = unranged[0].name_span or unranged[0].span
     elif declared and declared[0].range_span is not None:
-        scope.spans["envelope"] = declared[0].range_span
+        scope.spans[anchors.ENVELOPE] = declared[0].range_span
 
 
 def _definitions(scope: _Scope, lets: list[Statement], dynamic: set[str]) -> None:
@@ -320,10 +320,10 @@ def _definitions(scope: _Scope, lets: list[Statement], dynamic: set[str]) -> Non
         if not scope.owns(st) or st.expr is None:
             continue
         name = st.name or ""
-        value = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"let {st.name}")
+        value = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=anchors.let(st.name))
         scope.lets[symbol(name)] = value
         scope.quantities[name] = Quantity(name, "let", st.span, st.name_span or st.span, value=value)
-        scope.spans[f"let {st.name}"] = st.name_span or st.span
+        scope.spans[anchors.let(st.name)] = st.name_span or st.span
 
 
 def _rates(scope: _Scope, by_kind: dict[str, list[Statement]], dynamic: set[str]
@@ -340,15 +340,15 @@ def _rates(scope: _Scope, by_kind: dict[str, list[Statement]], dynamic: set[str]
         elif name in rate_stmts:
             first = rate_stmts[name].span.line
             scope.add("duplicate-name", f"second rate for state '{name}' (the first is on line {first})",
-                      st.name_span, f"rate {name} twice")
+                      st.name_span, anchors.rate(name, "twice"))
         else:
             rate_stmts[name] = st
-            rates[name] = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"rate {name}")
-            scope.spans[f"rate {name}"] = st.expr.span if st.expr else st.span
+            rates[name] = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=anchors.rate(name))
+            scope.spans[anchors.rate(name)] = st.expr.span if st.expr else st.span
     for st in by_kind.get("state", []):
         name = st.name or ""
         if scope.owns(st) and name not in rate_stmts:
-            scope.add("missing-rate", f"state '{name}' has no rate", st.name_span, f"state {name}",
+            scope.add("missing-rate", f"state '{name}' has no rate", st.name_span, anchors.declaration("state", name),
                       hint=f"add `rate {name} = ...`")
     return rates, rate_stmts
 
@@ -358,9 +358,9 @@ def _orphan_rate(scope: _Scope, st: Statement, target: Statement | None, dynamic
     name = st.name or ""
     what = f"the {target.kind} '{name}'" if target is not None else f"'{name}', which is not declared"
     close = _did_you_mean(scope, name, ("state",)) if target is None else None
-    scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, f"rate {name}",
+    scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, anchors.rate(name),
               hint=close or f"declare `state {name}` or remove this rate")
-    _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"rate {name}")
+    _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=anchors.rate(name))
 
 
 def _outputs(scope: _Scope, stmts: list[Statement], dynamic: set[str], inputs: tuple[str, ...]
@@ -374,14 +374,14 @@ def _outputs(scope: _Scope, stmts: list[Statement], dynamic: set[str], inputs: t
         name = st.name or ""
         if not scope.owns(st) or st.expr is None:
             continue
-        value = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=f"output {name}")
-        scope.spans[f"output {name}"] = st.expr.span
+        value = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=anchors.output(name))
+        scope.spans[anchors.output(name)] = st.expr.span
         used_inputs = sorted(str(s) for s in value.free_symbols & input_syms)
         if used_inputs:
             ref = next((r for r in st.expr.names if r.name in used_inputs), None)
             scope.add("output-uses-input",
                       f"output '{name}' depends on input {', '.join(repr(u) for u in used_inputs)}; outputs must be y = h(x)",
-                      ref.span if ref else st.expr.span, f"output {name}",
+                      ref.span if ref else st.expr.span, anchors.output(name),
                       hint="feedthrough gives relative degree 0, which the analyses do not cover")
             value = value.xreplace({s: sp.Integer(0) for s in input_syms})
         output_exprs[name] = value
@@ -396,7 +396,7 @@ def _declare(scope: _Scope, st: Statement) -> None:
     first = scope.declared.get(name)
     if first is not None:
         scope.add("duplicate-name", f"'{name}' is already declared as a {first.kind} on line {first.span.line}",
-                  st.name_span, f"{st.kind} {name} twice")
+                  st.name_span, anchors.declaration(st.kind, name, "twice"))
         return
     scope.declared[name] = st
 
@@ -419,13 +419,13 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
     for ref in expr.names:
         target = scope.declared.get(ref.name)
         if target is None:
-            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in {st.kind} {st.name}",
+            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, anchors.about("name", ref.name, "in", st.kind, st.name),
                       hint=_did_you_mean(scope, ref.name, ("const", "param")))
             ok = False
         elif target.kind not in ("const", "param") or target.span.line > st.span.line or target is st:
             why = "is declared later" if target.kind in ("const", "param") else f"is a {target.kind}"
             scope.add("unknown-name", f"'{ref.name}' {why}; a {st.kind} value may use only earlier constants and parameters",
-                      ref.span, f"name {ref.name} in {st.kind} {st.name}")
+                      ref.span, anchors.about("name", ref.name, "in", st.kind, st.name))
             ok = False
     if not ok:
         return None
@@ -435,7 +435,7 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
         value = value.xreplace(_nominals(scope))
     if value.free_symbols or value.has(sp.zoo, sp.nan, sp.oo):
         scope.add("bad-range" if value.free_symbols else "singular-model", f"value of '{st.name}' is not a finite number",
-                  expr.span, f"{st.kind} {st.name} value")
+                  expr.span, anchors.declaration(st.kind, st.name, "value"))
         return None
     return value
 
@@ -455,16 +455,16 @@ def _range_value(scope: _Scope, st: Statement, expr: Expression) -> sp.Expr | No
     for ref in expr.names:
         target = scope.declared.get(ref.name)
         if target is None:
-            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, f"name {ref.name} in range {st.name}",
+            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, anchors.about("name", ref.name, "in", "range", st.name),
                       hint=_did_you_mean(scope, ref.name, ("const", "param")))
             return None
         if target.kind not in ("const", "param"):
             scope.add("bad-range", f"range of '{st.name}' uses the {target.kind} '{ref.name}'; ranges must be constant",
-                      ref.span, f"range {st.name} not constant")
+                      ref.span, anchors.about("range", st.name, "not", "constant"))
             return None
     value = expr.value.xreplace(scope.constants).xreplace(_nominals(scope))
     if value.free_symbols or not value.is_finite:
-        scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, f"range {st.name} bound")
+        scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, anchors.about("range", st.name, "bound"))
         return None
     return value
 
@@ -488,7 +488,7 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
             message = f"'{ref.name}' is an {target.kind}" if target.kind[0] in "aeiou" else f"'{ref.name}' is a {target.kind}"
             message += " and cannot be used here"
             hint = "outputs are named by expect/waive, not used in expressions" if target.kind == "output" else None
-        scope.add("unknown-name", message, ref.span, f"name {ref.name} in {where}", hint=hint)
+        scope.add("unknown-name", message, ref.span, anchors.about("name", ref.name, "in", where), hint=hint)
     value = expr.value.xreplace(scope.lets).xreplace(scope.constants)
     known = {symbol(a) for a in allowed}
     stray = value.free_symbols - known
@@ -496,7 +496,7 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
         # already reported as unknown names; the model will not be analysed
         return value.xreplace({s: sp.Integer(1) for s in stray})
     if value.has(sp.zoo, sp.nan):
-        scope.add("singular-model", f"{where} divides by zero for every state", expr.span, f"{where} division by zero")
+        scope.add("singular-model", f"{where} divides by zero for every state", expr.span, anchors.about(where, "division", "by", "zero"))
         value = value.xreplace({sp.zoo: sp.Integer(0), sp.nan: sp.Integer(0)})
     return value
 
@@ -512,7 +512,7 @@ def _check_smooth(scope: _Scope, statements: list[Statement]) -> bool:
                 if call.function in NON_SMOOTH_FUNCTIONS and st.kind in ("let", "rate", "output"):
                     smooth = False
                     scope.add("non-smooth", f"{call.function}() is not smooth; Lie derivatives and brackets need smooth vector fields",
-                              call.span, f"{st.kind} {st.name} {call.function}",
+                              call.span, anchors.declaration(st.kind, st.name, call.function),
                               hint="replace it by a smooth approximation (e.g. tanh for sign) or model the switching separately")
     return smooth
 
@@ -545,7 +545,7 @@ def _check_affine(scope: _Scope, rates: dict[str, sp.Expr], rate_stmts: dict[str
             st = rate_stmts[name]
             scope.add("not-input-affine",
                       f"rate of '{name}' is not affine in the inputs (nonlinear in {', '.join(bad)})",
-                      st.expr.span if st.expr else st.span, f"rate {name}",
+                      st.expr.span if st.expr else st.span, anchors.rate(name),
                       hint="the analyses need dx/dt = f(x) + g(x) u; add an integrator (dynamic extension) or a new input")
     return affine
 
@@ -558,7 +558,7 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...]) -> l
         name = st.name or ""
         if name in seen:
             scope.add("duplicate-name", f"point '{name}' is already declared on line {seen[name].span.line}",
-                      st.name_span, f"point {name} twice")
+                      st.name_span, anchors.point(name, "twice"))
             continue
         seen[name] = st
         values, value_spans, given = _point_assignments(scope, st)
@@ -566,9 +566,9 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...]) -> l
         missing = [s for s in states if s not in given]
         if missing:
             scope.add("point-incomplete", f"point '{name}' does not give state{'s' if len(missing) > 1 else ''} "
-                      + ", ".join(repr(m) for m in missing), st.name_span, f"point {name}", point=name,
+                      + ", ".join(repr(m) for m in missing), st.name_span, anchors.point(name), point=name,
                       hint="every state must be given; inputs may be left out to be solved for")
-        scope.spans[f"point {name}"] = st.name_span or st.span
+        scope.spans[anchors.point(name)] = st.name_span or st.span
         points.append(OperatingPoint(name, st.span, st.name_span or st.span, MappingProxyType(values),
                                      MappingProxyType(value_spans), _parametric_values(scope, st, values)))
     return points
@@ -586,12 +586,12 @@ def _point_assignments(scope: _Scope, st: Statement) -> tuple[dict[str, sp.Expr]
         if kind is None or kind.kind not in ("state", "input"):
             what = f"a {kind.kind}" if kind is not None else "not declared"
             scope.add("unknown-name", f"point '{name}' sets '{target.name}', which is {what}; points set states and inputs",
-                      target.span, f"point {name} sets {target.name}", point=name,
+                      target.span, anchors.point(name, "sets", target.name), point=name,
                       hint=_did_you_mean(scope, target.name, ("state", "input")))
             continue
         if target.name in values:
             scope.add("duplicate-name", f"point '{name}' sets '{target.name}' twice", target.span,
-                      f"point {name} sets {target.name} twice", point=name)
+                      anchors.point(name, "sets", target.name, "twice"), point=name)
             continue
         given.add(target.name)
         value = _point_value(scope, name, target.name, expr)
@@ -627,7 +627,7 @@ def _with_tolerances(scope: _Scope, points: list[OperatingPoint], stmts: list[St
                                       and _compare(1 - value) > 0):
             scope.add("bad-range", f"tolerance of point '{p.name}' is {_show(value)}; it must be a number with "
                       "0 <= T < 1 (a residual relative to the size of the rates' terms)", expr.span,
-                      f"point {p.name} tolerance", point=p.name)
+                      anchors.point(p.name, "tolerance"), point=p.name)
             value = None
         out.append(replace(p, tolerance=value, tolerance_span=expr.span) if value is not None else p)
     return out
@@ -651,14 +651,14 @@ def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp
         else:
             what = f"the {decl.kind} '{ref.name}'" if decl is not None else f"unknown name '{ref.name}'"
         scope.add("unknown-name", f"point '{point}' value uses {what}; point values must be constant",
-                  ref.span, f"point {point} value {target}", point=point,
+                  ref.span, anchors.point(point, "value", target), point=point,
                   hint=(_did_you_mean(scope, ref.name, ("const", "param", "let")) if decl is None else None)
                   or "a point value may use numbers, constants, parameters and definitions built from them")
         return None
     value = expr.value.xreplace(scope.lets).xreplace(scope.constants).xreplace(_nominals(scope))
     if value.has(sp.zoo, sp.nan) or value.free_symbols:
         scope.add("singular-model", f"point '{point}' value of '{target}' is not a finite number", expr.span,
-                  f"point {point} value {target}", point=point)
+                  anchors.point(point, "value", target), point=point)
         return None
     return value
 
@@ -681,18 +681,18 @@ def _claim(scope: _Scope, st: Statement, outputs: list[str], point_names: set[st
     assert claim is not None
     if claim.kind not in CLAIMS:
         close = near_miss(claim.kind, CLAIMS)
-        scope.add("unknown-reference", f"unknown claim '{claim.kind}'", claim.span, f"claim {claim.kind}",
+        scope.add("unknown-reference", f"unknown claim '{claim.kind}'", claim.span, anchors.about("claim", claim.kind),
                   hint=f"did you mean `{close}`?" if close else "claims: " + ", ".join(CLAIMS))
         return None
     if (claim.output is not None) != (claim.kind == "relative_degree"):
         form = "relative_degree(OUTPUT) = N" if claim.kind == "relative_degree" else claim.kind
-        scope.add("syntax", f"write this claim as `expect {form}`", claim.span, f"claim form {claim.kind}")
+        scope.add("syntax", f"write this claim as `expect {form}`", claim.span, anchors.about("claim", "form", claim.kind))
         return None
     ok, value = _claimed_degree(scope, claim, outputs) if claim.output is not None else (True, None)
     at = st.at_point
     if at is not None and at.name not in point_names:
         scope.add("unknown-reference", f"expect names point '{at.name}', which is not declared", at.span,
-                  f"expect point {at.name}", hint=_suggest(at.name, point_names) or _choices("points", point_names))
+                  anchors.claim_reference("point", at.name), hint=_suggest(at.name, point_names) or _choices("points", point_names))
         ok = False
     if not ok:
         return None
@@ -706,14 +706,14 @@ def _claimed_degree(scope: _Scope, claim: Claim, outputs: list[str]) -> tuple[bo
     ok = True
     if claim.output.name not in outputs:
         scope.add("unknown-reference", f"expect names '{claim.output.name}', which is not an output",
-                  claim.output.span, f"expect output {claim.output.name}",
+                  claim.output.span, anchors.claim_reference("output", claim.output.name),
                   hint=_suggest(claim.output.name, outputs) or (("outputs: " + ", ".join(outputs)) if outputs
                                                                 else "the model declares no output"))
         ok = False
     v = claim.value.value if claim.value else None
     if v is None or not (v.is_Integer and v > 0):
         scope.add("syntax", "a relative degree is a whole number >= 1", claim.value.span if claim.value else claim.span,
-                  f"claim value {claim.output.name}")
+                  anchors.about("claim", "value", claim.output.name))
         return False, None
     return ok, int(v)
 
@@ -730,17 +730,17 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
         assert rule is not None
         at = st.at_point
         if rule.name not in catalogue:
-            scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, f"waive {rule.name}",
+            scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, anchors.waive_reference(rule.name),
                       hint=_suggest(rule.name, catalogue.ids()) or "`plantlint rules` lists the rule ids")
         elif not catalogue.get(rule.name).waivable:
             scope.add("waiver-refused", f"findings of '{rule.name}' cannot be waived: they mean the file was not "
-                      "read as a model, so nothing about it was checked", rule.span, f"waive {rule.name}",
+                      "read as a model, so nothing about it was checked", rule.span, anchors.waive_reference(rule.name),
                       hint="remove this waiver and fix what the rule reports")
         elif at is not None and at.name not in point_names:
             scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,
-                      f"waive point {at.name}", hint=_suggest(at.name, point_names) or _choices("points", point_names))
+                      anchors.about("waive", "point", at.name), hint=_suggest(at.name, point_names) or _choices("points", point_names))
         elif not (st.doc or "").strip():
-            scope.add("syntax", "a waiver needs a reason", st.span, f"waive {rule.name} reason")
+            scope.add("syntax", "a waiver needs a reason", st.span, anchors.about("waive", rule.name, "reason"))
         else:
             waivers.append(Waiver(rule.name, at.name if at else None, (st.doc or "").strip(), st.span))
     return waivers
@@ -773,7 +773,7 @@ def _unused(scope: _Scope) -> None:
             message = f"{what} '{name}' is never used"
             if st.kind == "input":
                 message = f"input '{name}' does not enter any rate: it cannot act on the plant"
-            scope.add("unused-name", message, st.name_span, f"{st.kind} {name} unused")
+            scope.add("unused-name", message, st.name_span, anchors.declaration(st.kind, name, "unused"))
 
 
 def _less(a: sp.Expr, b: sp.Expr) -> bool:

@@ -20,6 +20,7 @@ import sympy as sp
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
 from plantlint.core.limits import (MAX_BYTES, MAX_DEPTH, MAX_EXPONENT, MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10,
@@ -145,7 +146,7 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
         return None, _syntax(
             f"file is {len(data) / 1e6:.1f} MB; plant models are limited to {MAX_BYTES // 1024} KiB",
             Span(1, 1, 1, 2),
-            anchor="file too large",
+            anchor=anchors.problem("file too large"),
         )
     try:
         text = data.decode("utf-8")
@@ -155,7 +156,7 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
         return None, _syntax(
             f"file is not valid UTF-8 (byte 0x{data[exc.start]:02x} at offset {exc.start})",
             Span.point(line, col),
-            anchor="invalid utf-8",
+            anchor=anchors.problem("invalid utf-8"),
         )
     if text.startswith("\ufeff"):
         text = text[1:]
@@ -163,7 +164,7 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
     if nul >= 0:
         line = text.count("\n", 0, nul) + 1
         col = nul - (text.rfind("\n", 0, nul) + 1) + 1
-        return None, _syntax("file contains a NUL byte; is it a binary file?", Span.point(line, col), anchor="nul byte")
+        return None, _syntax("file contains a NUL byte; is it a binary file?", Span.point(line, col), anchor=anchors.problem("nul byte"))
     return text, None
 
 
@@ -182,7 +183,7 @@ def _size_problem(text: str) -> Finding | None:
             line = text.count("\n", 0, start) + 1
             col = start - (text.rfind("\n", 0, start) + 1) + 1
             return _syntax(f"more than {MAX_TOKENS} tokens; plant models are limited to {MAX_TOKENS}",
-                           Span.point(line, col), anchor="too many tokens")
+                           Span.point(line, col), anchor=anchors.problem("too many tokens"))
     return None
 
 
@@ -207,7 +208,7 @@ def _nesting_problem(text: str) -> Finding | None:
         if ch in "+-":
             signs += 1
             if signs > MAX_DEPTH:
-                return _syntax(f"more than {MAX_DEPTH} signs in a row", Span.point(line, col), anchor="nesting")
+                return _syntax(f"more than {MAX_DEPTH} signs in a row", Span.point(line, col), anchor=anchors.problem("nesting"))
         elif not ch.isspace():
             signs = 0
         if ch == "#":
@@ -220,7 +221,7 @@ def _nesting_problem(text: str) -> Finding | None:
                 return _syntax(
                     f"parentheses nested more than {MAX_DEPTH} deep",
                     Span.point(line, col),
-                    anchor="nesting",
+                    anchor=anchors.problem("nesting"),
                 )
         elif ch == ")":
             depth = max(depth - 1, 0)
@@ -242,14 +243,14 @@ def parse_text(text: str) -> Parsed:
         out.findings.append(_explain_error(exc, text))
         return out
     except RecursionError:
-        out.findings.append(_syntax("expression too deeply nested", Span(1, 1, 1, 2), anchor="nesting"))
+        out.findings.append(_syntax("expression too deeply nested", Span(1, 1, 1, 2), anchor=anchors.problem("nesting")))
         return out
     if len(tree.children) > MAX_STATEMENTS:
         out.findings.append(
             _syntax(
                 f"{len(tree.children)} statements; plant models are limited to {MAX_STATEMENTS}",
                 _span(tree.children[MAX_STATEMENTS]),
-                anchor="too many statements",
+                anchor=anchors.problem("too many statements"),
             )
         )
         return out
@@ -260,7 +261,7 @@ def parse_text(text: str) -> Parsed:
         except ParseProblem as problem_:
             out.findings.append(problem_.finding)
         except RecursionError:
-            out.findings.append(_syntax("expression too deeply nested", _span(node), anchor="nesting"))
+            out.findings.append(_syntax("expression too deeply nested", _span(node), anchor=anchors.problem("nesting")))
     return out
 
 
@@ -294,11 +295,11 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
     if isinstance(exc, UnexpectedCharacters):
         ch = text[exc.pos_in_stream] if 0 <= exc.pos_in_stream < len(text) else ""
         if ch == '"':
-            return _syntax("unterminated text: a closing '\"' is missing on this line", Span.point(line, column), anchor="unterminated string")
+            return _syntax("unterminated text: a closing '\"' is missing on this line", Span.point(line, column), anchor=anchors.problem("unterminated string"))
         if ch == "[":
-            return _syntax("unterminated unit: a closing ']' is missing on this line", Span.point(line, column), anchor="unterminated unit")
+            return _syntax("unterminated unit: a closing ']' is missing on this line", Span.point(line, column), anchor=anchors.problem("unterminated unit"))
         shown = repr(ch) if ch.isprintable() else f"U+{ord(ch):04X}" if ch else "end of file"
-        return _syntax(f"unexpected character {shown}", Span.point(line, column), anchor=f"unexpected character {shown}")
+        return _syntax(f"unexpected character {shown}", Span.point(line, column), anchor=anchors.problem(f"unexpected character {shown}"))
     if isinstance(exc, (UnexpectedEOF, UnexpectedToken)):
         tok = getattr(exc, "token", None)
         consumed = _consumed_backwards(exc)
@@ -308,14 +309,14 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
             after = f" after '{_short(str(last))}'" if last is not None else ""
             return _syntax(f"file ends in the middle of a statement{after}", where,
                            hint="expected " + _expected(_accepted_after(text, last, exc.expected)),
-                           anchor="unexpected end")
+                           anchor=anchors.problem("unexpected end"))
         broken = _incomplete_before_keyword(tok, consumed, text)
         if broken is not None:
             keyword, last = broken
             message = f"incomplete statement: it stops after '{_short(str(last))}'"
             return _syntax(message + f" (the next line starts a new `{keyword}` statement)", _after(last),
                            hint="expected " + _expected(_accepted_after(text, last, exc.expected)),
-                           anchor=f"incomplete statement before {keyword}")
+                           anchor=anchors.problem(f"incomplete statement before {keyword}"))
         span = _span(tok)
         value = str(tok)
         expected_keywords = [k for k in STATEMENT_KEYWORDS if k.upper() in exc.expected]
@@ -324,15 +325,15 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
             message = f"unknown statement '{_short(value)}'; a statement starts with a keyword"
             close = near_miss(value, STATEMENT_KEYWORDS)
             hint = f"did you mean `{close}`?" if close else "keywords: " + ", ".join(STATEMENT_KEYWORDS)
-            return _syntax(message, span, hint=hint, anchor=f"unknown statement {value}")
+            return _syntax(message, span, hint=hint, anchor=anchors.problem(f"unknown statement {value}"))
         if tok.type == "NAME" and value in RESERVED:
             message = f"'{value}' is reserved and cannot be used here"
         elif value in KEYWORDS:
             message = f"unexpected keyword '{value}' (the previous statement is incomplete)"
         else:
             message = f"unexpected '{_short(value)}'"
-        return _syntax(message, span, hint="expected " + _expected(exc.expected), anchor=message)
-    return _syntax("cannot read this statement", Span.point(line, column), anchor="syntax")
+        return _syntax(message, span, hint="expected " + _expected(exc.expected), anchor=anchors.problem(message))
+    return _syntax("cannot read this statement", Span.point(line, column), anchor=anchors.problem("syntax"))
 
 
 def _short(text: str, limit: int = 40) -> str:
@@ -524,9 +525,9 @@ class _Builder:
         name = str(tok)
         span = _span(tok)
         if len(name) > MAX_NAME:
-            raise ParseProblem(_syntax(f"name of {len(name)} characters; names are limited to {MAX_NAME}", span, anchor="long name"))
+            raise ParseProblem(_syntax(f"name of {len(name)} characters; names are limited to {MAX_NAME}", span, anchor=anchors.problem("long name")))
         if name in RESERVED:
-            raise ParseProblem(_syntax(f"'{name}' is reserved and cannot name a quantity", span, anchor=f"reserved {name}"))
+            raise ParseProblem(_syntax(f"'{name}' is reserved and cannot name a quantity", span, anchor=anchors.problem(f"reserved {name}")))
         return name, span
 
     def _range(self, rng: Tree | None) -> tuple[Expression | None, Expression | None, Span | None]:
@@ -599,7 +600,7 @@ class _ExpressionBuilder:
         name = str(tok)
         if len(name) > MAX_NAME:
             raise ParseProblem(_syntax(f"name of {len(name)} characters; names are limited to {MAX_NAME}",
-                                       _span(tok), anchor="long name"))
+                                       _span(tok), anchor=anchors.problem("long name")))
         if name == "pi":
             return sp.pi
         self.names.append(NameRef(name, _span(tok)))
@@ -617,7 +618,7 @@ class _ExpressionBuilder:
             raise ParseProblem(finding(
                 "unknown-name", f"unknown function '{fname}'", _span(fname_tok),
                 hint=f"did you mean `{close}`?" if close else "functions: " + ", ".join(sorted(FUNCTIONS)),
-                anchor=f"function {fname}"))
+                anchor=anchors.problem(f"function {fname}")))
         arity, fn = entry
         if len(args) != arity:
             raise ParseProblem(_syntax(f"{fname} takes {arity} argument{'s' if arity > 1 else ''}, got {len(args)}", span))
@@ -709,7 +710,7 @@ def _number(tok: Token) -> sp.Rational:
     exp10 = int(exponent) if exponent else 0
     digits = mantissa.replace(".", "")
     if abs(exp10) > MAX_LITERAL_EXP10 or len(digits) > MAX_LITERAL_DIGITS:
-        raise ParseProblem(_syntax(f"number {text[:20]}{'...' if len(text) > 20 else ''} is out of range", _span(tok), anchor="number range"))
+        raise ParseProblem(_syntax(f"number {text[:20]}{'...' if len(text) > 20 else ''} is out of range", _span(tok), anchor=anchors.problem("number range")))
     value = Fraction(mantissa) * (Fraction(10) ** exp10)
     return sp.Rational(value.numerator, value.denominator)
 
@@ -720,11 +721,11 @@ def _power(base: sp.Expr, exponent: sp.Expr, span: Span) -> sp.Expr:
             big = max(abs(int(exponent.p)), abs(int(exponent.q)))
             if big > MAX_EXPONENT:
                 raise ParseProblem(_syntax(f"exponent {_short(str(exponent))} is beyond the supported range "
-                                           f"(|p|, |q| <= {MAX_EXPONENT})", span, anchor="exponent range"))
+                                           f"(|p|, |q| <= {MAX_EXPONENT})", span, anchor=anchors.problem("exponent range")))
         if base.is_Number and base.is_Rational:
             bits = max(abs(int(base.p)), abs(int(base.q)), 1).bit_length()
             if bits * abs(int(exponent.p)) > MAX_POWER_BITS:
-                raise ParseProblem(_syntax("this power of a number is too large to compute exactly", span, anchor="power size"))
+                raise ParseProblem(_syntax("this power of a number is too large to compute exactly", span, anchor=anchors.problem("power size")))
     return base ** exponent
 
 

@@ -38,6 +38,7 @@ from fractions import Fraction
 from functools import lru_cache
 from typing import TYPE_CHECKING, Any, Union
 
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
 from plantlint.core.limits import (MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10, MAX_UNIT_DEPTH, MAX_UNIT_EXPONENT,
@@ -476,7 +477,7 @@ class _Checker:
         rated: set[str] = set()
         for st in statements:
             if st.kind == "let" and first.get(st.name or "") is st:
-                self.env[st.name or ""] = self.evaluate(st.expr, f"let {st.name}") if st.expr is not None else None
+                self.env[st.name or ""] = self.evaluate(st.expr, anchors.let(st.name)) if st.expr is not None else None
             elif st.kind == "rate" and st.name and st.expr is not None and self.kind.get(st.name) == "state":
                 if st.name not in rated:
                     rated.add(st.name)
@@ -521,16 +522,16 @@ class _Checker:
         return replace(value, text=st.unit)
 
     def _value(self, st: "Statement", unit: Unit | None) -> None:
-        value = self.evaluate(st.expr, f"{st.kind} {st.name}", unit)
+        value = self.evaluate(st.expr, anchors.declaration(st.kind, st.name), unit)
         if unit is not None and isinstance(value, Unit) and not value.agrees(unit):
             self._mismatch(f"the value of '{st.name}'", st.name, value, unit, st.expr.span if st.expr else st.span,
                            f"value of {st.kind} {st.name}")
 
     def _output(self, st: "Statement", unit: Unit | None) -> None:
-        value = self.evaluate(st.expr, f"output {st.name}", unit)
+        value = self.evaluate(st.expr, anchors.output(st.name), unit)
         if unit is not None and isinstance(value, Unit) and not value.agrees(unit):
             self._mismatch(f"the expression of output '{st.name}'", st.name, value, unit, st.expr.span if st.expr else st.span,
-                           f"output {st.name}")
+                           anchors.output(st.name))
 
     def _range(self, st: "Statement", unit: Unit | None) -> None:
         for which, bound in (("lower", st.low), ("upper", st.high)):
@@ -546,7 +547,7 @@ class _Checker:
         name = st.name or ""
         state = self.env.get(name)
         expected = state / SECOND if isinstance(state, Unit) and not self.nondimensional else None
-        value = self.evaluate(st.expr, f"rate {name}", expected)
+        value = self.evaluate(st.expr, anchors.rate(name), expected)
         if not isinstance(value, Unit) or not isinstance(state, Unit) or self.nondimensional:
             return
         try:
@@ -558,7 +559,7 @@ class _Checker:
             self._add(RULE_MISMATCH,
                       f"rate of '{name}' is in {value.show()}; '{name}' is in {state.show()}, so its rate must be "
                       f"in {expected.base_text()} (its unit per unit of time)",
-                      st.expr.span, f"rate {name}",
+                      st.expr.span, anchors.rate(name),
                       "check each term against the state's unit divided by time")
             return
         self.rate_times.append((name, st.expr.span, value, state, 1.0 / per.factor))
@@ -585,7 +586,7 @@ class _Checker:
 
     # findings ------------------------------------------------------------------------
     def _add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None) -> None:
-        self.findings.append(finding(rule, message, span, hint=hint, anchor=f"units: {anchor}"))
+        self.findings.append(finding(rule, message, span, hint=hint, anchor=anchors.units(anchor)))
 
     def _mismatch(self, what: str, name: str | None, got: Unit, want: Unit, span: Span, anchor: str,
                   hint: str | None = None) -> None:

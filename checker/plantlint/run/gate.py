@@ -24,6 +24,7 @@ from typing import Any
 
 from plantlint import __version__
 from plantlint.analysis.serialise import structural_facts
+from plantlint.core import anchors
 from plantlint.core.findings import FileReport, Finding, Report, Severity
 from plantlint.run.config import Config
 from plantlint.run.pipeline import RawResult, finish
@@ -225,7 +226,7 @@ def waiver_changes(before: list[Any], after: list[Any]) -> list[dict[str, Any]]:
     """Waivers added, removed or given another reason: ``what`` is 'waiver RULE [at POINT]',
     ``before``/``after`` the reasons (None where there was no such waiver)."""
     def keyed(waivers: list[Any]) -> dict[str, str]:
-        return {f"waiver {w.rule}" + (f" at {w.point}" if w.point else ""): w.reason for w in waivers}
+        return {anchors.waiver(w.rule, w.point): w.reason for w in waivers}
 
     old, new = keyed(before), keyed(after)
     return [{"what": k, "before": old.get(k), "after": new.get(k)}

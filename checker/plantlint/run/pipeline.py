@@ -13,6 +13,7 @@ import re
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import (
     FileReport,
@@ -169,12 +170,12 @@ def locate(f: Finding, spans: Any) -> Finding:
     from dataclasses import replace
 
     span = spans.get(f.anchor)
-    if span is None and f.anchor == "envelope":
-        span = next((s for a, s in spans.items() if a.startswith("expect regular") and " at " not in a), None)
+    if span is None and f.anchor == anchors.ENVELOPE:
+        span = next((s for a, s in spans.items() if anchors.is_envelope_claim(a)), None)
     if span is None and f.point is not None:
-        span = spans.get(f"point {f.point}")
+        span = spans.get(anchors.point(f.point))
     if span is None:
-        span = spans.get("plant")
+        span = spans.get(anchors.PLANT)
     return replace(f, span=span)
 
 
@@ -202,7 +203,7 @@ def finish(path: str, raw: RawResult, source: str | None, config: Config, defaul
 
 
 #: Anchor of the finding that says a model could not be checked (the runner's own stops).
-STOP_ANCHOR = "analysis budget"
+STOP_ANCHOR = anchors.STOP
 
 _STOP_HINTS = {
     "time": "raise the budget (--timeout, `timeout` in the configuration, or the longer CI budget: "
@@ -225,7 +226,7 @@ def claims_in_text(data: bytes) -> list[Finding]:
         if m is None:
             continue
         kind, output, value, point = m.groups()
-        anchor = f"expect {kind}" + (f"({output})" if output else "") + (f" at {point}" if point else "")
+        anchor = anchors.claim(kind, output, point)
         text = f"expect {kind}" + (f"({output}) = {value}" if output else "") + (f" at {point}" if point else "")
         start = len(raw) - len(raw.lstrip()) + 1
         out.append(finding("expectation-failed", f"`{text}` not decided",

@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import replace
 from typing import Callable, Iterable, Mapping
 
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Severity, Waiver
 
@@ -54,7 +55,7 @@ def unused_waivers(findings: Iterable[Finding], waivers: Iterable[Waiver], judge
             "unused-waiver",
             f"the waiver of '{w.rule}'{where} silences nothing: the rule does not fire "
             + (f"at point {w.point}" if w.point else "in this model"),
-            w.span, point=w.point, anchor=f"waiver {w.rule}" + (f" at {w.point}" if w.point else ""),
+            w.span, point=w.point, anchor=anchors.waiver(w.rule, w.point),
             hint="remove the waiver, or correct its rule id or point"))
     return out
 

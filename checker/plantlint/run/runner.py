@@ -35,6 +35,7 @@ from typing import Any, Callable
 
 from plantlint import __version__
 from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import FileReport, Finding, Severity, Span
 from plantlint.core.limits import MAX_BYTES  # one definition of the input limits; no sympy
@@ -543,7 +544,7 @@ def read_source(target: Target) -> Source:
             return Source(target.display, None, finding(
                 "syntax",
                 f"file is {shown}; plant models are limited to {MAX_BYTES // 1024} KiB",
-                Span(1, 1, 1, 2), anchor="file too large"))
+                Span(1, 1, 1, 2), anchor=anchors.problem("file too large")))
         return Source(target.display, data)
     except OSError as exc:
         raise UsageError(f"{target.display}: cannot read: {exc.strerror or exc}; nothing was checked") from None

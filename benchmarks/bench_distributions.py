@@ -26,7 +26,8 @@ import time
 import sympy as sp
 from sympy.core.cache import clear_cache
 
-from plantlint.analysis.distributions import analyse_distributions, distributions_at, distributions_json
+from plantlint.analysis.distributions import analyse_distributions, distributions_at
+from plantlint.analysis.serialise import distributions_json
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant
 

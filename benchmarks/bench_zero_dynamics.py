@@ -16,7 +16,8 @@ from plantlint.analysis.equilibria import solve_point
 from plantlint.kernel.lie import Kernel
 from plantlint.analysis.normal_form import normal_form_at
 from plantlint.kernel.plant import Plant
-from plantlint.analysis.zero_dynamics import zero_dynamics_at, zero_dynamics_json
+from plantlint.analysis.serialise import zero_dynamics_json
+from plantlint.analysis.zero_dynamics import zero_dynamics_at
 
 
 def two_carts() -> Plant:

@@ -18,8 +18,8 @@ import sympy as sp
 from plantlint.analysis.distributions import (
     analyse_distributions,
     distributions_at,
-    distributions_json,
 )
+from plantlint.analysis.serialise import distributions_json
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant
 from conftest import linear_plant

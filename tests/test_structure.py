@@ -18,11 +18,9 @@ from plantlint.kernel.plant import Plant
 from plantlint.analysis.structure import (
     analyse_structure,
     certify_envelope,
-    envelope_json,
-    point_json,
     structure_at_point,
-    structure_json,
 )
+from plantlint.analysis.serialise import envelope_json, point_json, structure_json
 from conftest import linear_plant
 
 I = sp.Integer

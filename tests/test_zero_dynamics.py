@@ -15,7 +15,8 @@ from plantlint.kernel.lie import Kernel
 from plantlint.analysis.normal_form import normal_form_at
 from plantlint.analysis.serialise import normal_form_json
 from plantlint.kernel.plant import Plant
-from plantlint.analysis.zero_dynamics import zero_dynamics_at, zero_dynamics_json
+from plantlint.analysis.serialise import zero_dynamics_json
+from plantlint.analysis.zero_dynamics import zero_dynamics_at
 from conftest import assert_same_set, linear_plant, rosenbrock_zeros
 
 x1, x2, x3 = sp.symbols("x1 x2 x3")

@@ -824,20 +824,3 @@ def _direction_text(v: Sequence[sp.Expr], states: Sequence[sp.Symbol]) -> str:
         else:
             parts.append(text)
     return " ".join(parts)
-
-
-# -- report ---------------------------------------------------------------------------------
-def distributions_json(pd: PointDistributions) -> dict[str, object]:
-    """The per-point summary used in the JSON report."""
-    out: dict[str, object] = {
-        "controllability_rank": pd.controllability_rank,
-        "involutive": pd.involutive,
-        "constant_rank": pd.constant_rank,
-        "rank_drops": [distribution_name(pd.m, k) for k in pd.singular_orders if k <= len(pd.ranks) - 2],
-        "state_linearizable": pd.state_linearizable,
-    }
-    if not pd.involutive:
-        out["involutivity_witness"] = pd.witness
-    if pd.output_searched:
-        out["linearizing_output"] = None if pd.linearizing_output is None else str(pd.linearizing_output)
-    return out

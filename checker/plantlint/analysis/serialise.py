@@ -27,21 +27,66 @@ if TYPE_CHECKING:
 
     import sympy as sp
 
+    from plantlint.analysis.distributions import PointDistributions
     from plantlint.analysis.engine import Analysis, PointAnalysis
     from plantlint.analysis.equilibria import Equilibrium
     from plantlint.analysis.linearisation import Linearisation, ModeGroup
     from plantlint.analysis.normal_form import NormalForm
     from plantlint.analysis.parametric import BoxVerdict, ParametricPoint
+    from plantlint.analysis.structure import Envelope, PointStructure, Structure
+    from plantlint.analysis.zero_dynamics import ZeroDynamics
 
 
 # -- the analysis object of the reports --------------------------------------------
 
+def structure_json(structure: Structure) -> dict[str, Any]:
+    """The plant's generic relative degrees."""
+    return {"relative_degree": dict(structure.relative_degree)}
+
+
+def point_json(ps: PointStructure) -> dict[str, Any]:
+    """The structure at one point: relative degrees, well defined, decoupling rank."""
+    return {
+        "relative_degree": dict(ps.relative_degree),
+        "well_defined": ps.well_defined,
+        "decoupling_rank": ps.decoupling_rank,
+    }
+
+
+def envelope_json(env: Envelope) -> dict[str, Any]:
+    """The envelope verdict: regular (or not, or None), margin, witness."""
+    return {"regular": env.regular, "margin": env.margin, "witness": env.witness}
+
+
+def zero_dynamics_json(zd: ZeroDynamics) -> dict[str, object]:
+    """The zero dynamics at one point: dimension, eigenvalues (sorted), verdict."""
+    return {
+        "dimension": zd.dimension,
+        "eigenvalues": [[z.real, z.imag] for z in sorted(zd.eigenvalues, key=lambda z: (z.real, z.imag))],
+        "verdict": zd.verdict,
+    }
+
+
+def distributions_json(pd: PointDistributions) -> dict[str, object]:
+    """The per-point distribution summary of the JSON report."""
+    from plantlint.analysis.distributions import distribution_name
+
+    out: dict[str, object] = {
+        "controllability_rank": pd.controllability_rank,
+        "involutive": pd.involutive,
+        "constant_rank": pd.constant_rank,
+        "rank_drops": [distribution_name(pd.m, k) for k in pd.singular_orders if k <= len(pd.ranks) - 2],
+        "state_linearizable": pd.state_linearizable,
+    }
+    if not pd.involutive:
+        out["involutivity_witness"] = pd.witness
+    if pd.output_searched:
+        out["linearizing_output"] = None if pd.linearizing_output is None else str(pd.linearizing_output)
+    return out
+
+
 def analysis_json(a: Analysis) -> dict[str, Any]:
     """The ``analysis`` object of the JSON report (docs/report-format.md)."""
-    from plantlint.analysis.distributions import distributions_json
-    from plantlint.analysis.structure import envelope_json, point_json
-    from plantlint.analysis.zero_dynamics import zero_dynamics_json
-
     m = a.model
     points: dict[str, Any] = {}
     for pa in a.points:

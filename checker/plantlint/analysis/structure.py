@@ -598,25 +598,7 @@ def _regularity_expressions(kernel: Kernel, structure: Structure) -> tuple[list[
     return [e for e in minors if e != 0] or [sp.Integer(0)], f"every {p} x {p} minor of the decoupling matrix"
 
 
-# -- JSON ---------------------------------------------------------------------------------------
-def structure_json(structure: Structure) -> dict[str, Any]:
-    return {"relative_degree": dict(structure.relative_degree)}
-
-
-def point_json(ps: PointStructure) -> dict[str, Any]:
-    return {
-        "relative_degree": dict(ps.relative_degree),
-        "well_defined": ps.well_defined,
-        "decoupling_rank": ps.decoupling_rank,
-    }
-
-
-def envelope_json(env: Envelope) -> dict[str, Any]:
-    return {"regular": env.regular, "margin": env.margin, "witness": env.witness}
-
-
 __all__ = [
     "Envelope", "OutputStructure", "PointStructure", "Structure", "analyse_structure",
-    "certify_envelope", "domain_conditions", "envelope_json", 
-    "point_json", "structure_at_point", "structure_json",
+    "certify_envelope", "domain_conditions", "structure_at_point",
 ]

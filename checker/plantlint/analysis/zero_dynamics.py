@@ -436,16 +436,6 @@ def show_eigenvalues(values: Sequence[complex]) -> str:
 
 
 
-
-def zero_dynamics_json(zd: ZeroDynamics) -> dict[str, object]:
-    """The analysis record for one point."""
-    return {
-        "dimension": zd.dimension,
-        "eigenvalues": [[z.real, z.imag] for z in sorted(zd.eigenvalues, key=lambda z: (z.real, z.imag))],
-        "verdict": zd.verdict,
-    }
-
-
 def approximate_eigenvalues(
     kernel: Kernel, degrees: Sequence[int], point: dict[sp.Symbol, sp.Expr], digits: int = 30
 ) -> tuple[complex, ...] | None:

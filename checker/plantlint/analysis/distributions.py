@@ -47,7 +47,9 @@ from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
+from plantlint.kernel import exact
 from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
+from plantlint.language.printer import show_point
 from plantlint.analysis.linearizing_output import OutputSearch
 
 
@@ -148,15 +150,11 @@ def involutivity_reason(pd: PointDistributions, name: str) -> str:
     text = f"{d} is not involutive near '{name}': the bracket {failure.pair} leaves it"
     if pd.bracket_inside_at_point is False:
         return text + f" at '{name}' itself"
-    where = show_witness(pd.witness) if pd.witness else None
+    where = show_point(pd.witness) if pd.witness else None
     text += f" at points arbitrarily close to '{name}'" + (f", e.g. at {where}" if where else "")
     if pd.bracket_inside_at_point:
         text += f" (at '{name}' itself it lies in {d}, but involutivity is a property of a neighbourhood)"
     return text
-
-
-def show_witness(values: dict[str, float]) -> str:
-    return ", ".join(f"{k} = {v:.6g}" for k, v in values.items())
 
 
 def rank_drop_reason(pd: PointDistributions, name: str) -> str:
@@ -176,7 +174,18 @@ def distribution_name(m: int, k: int) -> str:
 # -- elimination with rigorous pivots -------------------------------------------------
 class _PointEchelon:
     """Column echelon form of exact numbers (a point), one column at a time;
-    each pivot is proved non-zero by ``decide`` (exact / rigorous ball tests)."""
+    each pivot is proved non-zero by ``decide`` (exact / rigorous ball tests).
+
+    Not built on :func:`plantlint.kernel.exact.gauss_jordan`, on purpose: the question
+    here is incremental (is *this* new vector independent of the ones kept so far?), asked
+    in the order of the spanners, and the answer picks the basis of every D_k and the
+    Kalman rank. ``gauss_jordan`` reduces a whole matrix at once, so answering per vector
+    with it would redo the elimination for each one (quadratic in the number of vectors,
+    each step on exact, possibly transcendental numbers), and its pivot is the entry of
+    largest magnitude (a 30-digit evaluation of every candidate), where this one takes the
+    smallest expression that is proven non-zero (fewer and cheaper decisions). Both take
+    an entry not proven non-zero as zero, so the ranks agree.
+    """
 
     def __init__(self, decide: Callable[[sp.Expr], ZeroDecision]):
         self.decide = decide
@@ -546,14 +555,75 @@ def distributions_at(
 ) -> PointDistributions:
     """Exact ranks at the point, singular orders, the verdict and (one input) an output."""
     n, m = structure.n, structure.m
-    undefined: list[str] = []
+    decide = _PointDecider(kernel)
+    ranks, basis, kalman = _ranks_at(kernel, structure, values, decide)
+    singular = tuple(k for k in range(min(len(structure.ranks), len(ranks))) if ranks[k] < structure.ranks[k])
+    control_rank = ranks[-1] if len(ranks) == n else 0
+    if len(ranks) < n and kalman is not None:
+        control_rank, basis = _kalman_rank(kalman, n, decide)
+    notes: list[str] = list(structure.uncertain)
+    vectors = _missing_vectors(kernel, basis, notes) if control_rank < n else []
+    missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
+    if decide.undefined:
+        notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds")
+    for k in singular:
+        notes.append(
+            f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it: "
+            f"{name} is a singular point of the distribution"
+        )
+    # `involutive` keeps its meaning (brackets stay in the distributions near the point; a
+    # one-dimensional distribution always is); a rank drop is the constant-rank condition
+    linearizable = control_rank == n and not singular and structure.involutive
+    inside_at_point, witness = _witness_near(kernel, structure, name, values, notes)
+    findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
+    searched = m == 1 and linearizable and structure.outputs is not None
+    output = _linearizing_output(structure, values, notes) if searched else None
+    return PointDistributions(
+        point=name,
+        ranks=tuple(ranks),
+        generic_ranks=structure.ranks,
+        singular_orders=singular,
+        controllability_rank=control_rank,
+        missing_directions=missing,
+        missing_vectors=tuple(tuple(v) for v in vectors),
+        involutive=structure.involutive,
+        state_linearizable=linearizable,
+        failure=structure.failure,
+        output_searched=searched,
+        linearizing_output=output,
+        notes=tuple(notes),
+        findings=tuple(findings),
+        constant_rank=not [k for k in singular if k <= n - 2],
+        bracket_inside_at_point=inside_at_point,
+        witness=witness,
+        m=m,
+    )
 
-    def decide(e: sp.Expr) -> ZeroDecision:
-        d = kernel.value_at(e, {}).decision
+
+class _PointDecider:
+    """Zero decisions of exact numbers at the point (the kernel's), remembering the
+    entries that are undefined there (then the ranks are lower bounds)."""
+
+    def __init__(self, kernel: Kernel):
+        self.kernel = kernel
+        self.undefined: list[str] = []
+
+    def __call__(self, e: sp.Expr) -> ZeroDecision:
+        d = self.kernel.value_at(e, {}).decision
         if d.outcome is zd.Outcome.UNDEFINED:
-            undefined.append(str(e))
+            self.undefined.append(str(e))
         return d
 
+
+def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.Symbol, sp.Expr],
+              decide: _PointDecider) -> tuple[list[int], list[list[sp.Expr]], list[list[sp.Expr]] | None]:
+    """The rank of each D_k at the point (k = 0 .. n-1), a basis of the last one, and the
+    Kalman columns when they are needed.
+
+    When the generic analysis stopped early (``structure.ranks`` shorter than n) and the
+    point is an equilibrium of the drift, the ranks stop there and the Kalman columns give
+    the controllability rank (:func:`_kalman_rank`)."""
+    n, m = structure.n, structure.m
     echelon = _PointEchelon(decide)
     ranks: list[int] = []
     basis: list[list[sp.Expr]] = []
@@ -574,84 +644,66 @@ def distributions_at(
             if len(basis) < n and echelon.add(row):
                 basis.append(row)
         ranks.append(len(basis))
-    ranks = ranks or [0] * n
-    singular = tuple(k for k in range(min(known, len(ranks))) if ranks[k] < structure.ranks[k])
-    control_rank = ranks[-1] if len(ranks) == n else 0
-    if len(ranks) < n and kalman is not None:
-        # at an equilibrium of the drift, ad_f^k g(x0) = (-A)^k g(x0): the rank of
-        # G_(n-1) there is the rank of the Kalman matrix of the linearisation
-        echelon = _PointEchelon(decide)
-        basis = []
-        for column in kalman:
-            if len(basis) < n and echelon.add(column):
-                basis.append(column)
-        control_rank = len(basis)
-    notes: list[str] = list(structure.uncertain)
-    vectors: list[list[sp.Expr]] = []
-    if control_rank < n:  # the missing directions only name what is wrong in a message: bounded
-        try:
-            with within(MESSAGE_SECONDS) as step:
-                vectors = _orthogonal_complement(kernel, basis)
-        except TimeUp as exc:
-            if not expired(exc, step):
-                raise
-            notes.append(f"the missing directions were not worked out: it took longer than {MESSAGE_SECONDS:g} s "
-                         "(they only name the problem; the rank does not depend on them)")
-    missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
-    if undefined:
-        notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds")
-    for k in singular:
-        notes.append(
-            f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it: "
-            f"{name} is a singular point of the distribution"
-        )
-    singular_low = [k for k in singular if k <= n - 2]
-    # `involutive` keeps its meaning (brackets stay in the distributions near the point; a
-    # one-dimensional distribution always is); a rank drop is the constant-rank condition
-    involutive = structure.involutive
-    linearizable = control_rank == n and not singular and structure.involutive
-    inside_at_point: bool | None = None
-    witness: dict[str, float] | None = None
-    if structure.failure is not None and structure.failure.bracket:
-        try:  # the witness only illustrates the verdict (made generically): bounded, dropped with a note
-            with within(MESSAGE_SECONDS) as step:
-                inside_at_point, witness = _involutivity_witness(kernel, structure.failure, values)
-        except TimeUp as exc:
-            if not expired(exc, step):
-                raise
-            notes.append(f"no point near {name} where the bracket leaves the distribution was worked out "
-                         f"within {MESSAGE_SECONDS:g} s")
-    findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
+    return ranks or [0] * n, basis, kalman
 
-    searched = m == 1 and linearizable and structure.outputs is not None
-    output: sp.Expr | None = None
-    if searched and structure.outputs is not None:
-        output = structure.outputs.first_at(values)
-        if output is None:
-            notes.append(
-                "an output of relative degree n exists near the point (state-linearization theorem) "
-                "but was not found in closed form among the simple candidates tried"
-            )
-    return PointDistributions(
-        point=name,
-        ranks=tuple(ranks),
-        generic_ranks=structure.ranks,
-        singular_orders=singular,
-        controllability_rank=control_rank,
-        missing_directions=missing,
-        missing_vectors=tuple(tuple(v) for v in vectors),
-        involutive=involutive,
-        state_linearizable=linearizable,
-        failure=structure.failure,
-        output_searched=searched,
-        linearizing_output=output,
-        notes=tuple(notes),
-        findings=tuple(findings),
-        constant_rank=not singular_low,
-        bracket_inside_at_point=inside_at_point,
-        witness=witness,
-        m=m,
-    )
+
+def _kalman_rank(kalman: list[list[sp.Expr]], n: int, decide: Callable[[sp.Expr], ZeroDecision]
+                 ) -> tuple[int, list[list[sp.Expr]]]:
+    """At an equilibrium of the drift, ad_f^k g(x0) = (-A)^k g(x0): the rank of G_(n-1)
+    there is the rank of the Kalman matrix of the linearisation (and a basis of it)."""
+    echelon = _PointEchelon(decide)
+    basis: list[list[sp.Expr]] = []
+    for column in kalman:
+        if len(basis) < n and echelon.add(column):
+            basis.append(column)
+    return len(basis), basis
+
+
+def _missing_vectors(kernel: Kernel, basis: list[list[sp.Expr]], notes: list[str]) -> list[list[sp.Expr]]:
+    """The directions the controllability distribution misses: they only name what is
+    wrong in a message, so they are bounded in time (a note when cut short)."""
+    try:
+        with within(MESSAGE_SECONDS) as step:
+            return _orthogonal_complement(kernel, basis)
+    except TimeUp as exc:
+        if not expired(exc, step):
+            raise
+        notes.append(f"the missing directions were not worked out: it took longer than {MESSAGE_SECONDS:g} s "
+                     "(they only name the problem; the rank does not depend on them)")
+        return []
+
+
+def _witness_near(kernel: Kernel, structure: DistributionStructure, name: str, values: dict[sp.Symbol, sp.Expr],
+                  notes: list[str]) -> tuple[bool | None, dict[str, float] | None]:
+    """When not involutive: whether the failing bracket lies in D_k at the point, and a
+    nearby point where it leaves. Only illustrates the verdict (made generically):
+    bounded, dropped with a note."""
+    if structure.failure is None or not structure.failure.bracket:
+        return None, None
+    try:
+        with within(MESSAGE_SECONDS) as step:
+            return _involutivity_witness(kernel, structure.failure, values)
+    except TimeUp as exc:
+        if not expired(exc, step):
+            raise
+        notes.append(f"no point near {name} where the bracket leaves the distribution was worked out "
+                     f"within {MESSAGE_SECONDS:g} s")
+        return None, None
+
+
+def _linearizing_output(structure: DistributionStructure, values: dict[sp.Symbol, sp.Expr],
+                        notes: list[str]) -> sp.Expr | None:
+    """(One input, state linearizable at the point) an output of relative degree n, or
+    None with a note when none of the simple candidates is one."""
+    if structure.outputs is None:
+        return None
+    output = structure.outputs.first_at(values)
+    if output is None:
+        notes.append(
+            "an output of relative degree n exists near the point (state-linearization theorem) "
+            "but was not found in closed form among the simple candidates tried"
+        )
+    return output
 
 
 #: Steps tried for a witness, as fractions of each state's range (1 where it has none).
@@ -777,17 +829,22 @@ def _point_findings(
 
 
 def _orthogonal_complement(kernel: Kernel, basis_rows: list[list[sp.Expr]]) -> list[list[sp.Expr]]:
-    """A basis of the orthogonal complement of the span of exact vectors
-    (pivots decided rigorously at the point)."""
+    """A basis of the orthogonal complement of the span of exact vectors: the null space
+    of the rows, read off their reduced form (:func:`plantlint.kernel.exact.gauss_jordan`,
+    pivots decided rigorously at the point); one vector per free column."""
     n = kernel.plant.n
     if not basis_rows:
         return [[sp.Integer(int(i == j)) for j in range(n)] for i in range(n)]
-
-    def is_zero(e: sp.Expr) -> bool:
-        return not kernel.value_at(e, {}).decision.proven_nonzero
-
-    null = sp.Matrix(basis_rows).nullspace(simplify=False, iszerofunc=is_zero)
-    return [_scaled(list(v)) for v in null]
+    reduced, pivots, _ = exact.gauss_jordan([list(r) for r in basis_rows], n,
+                                            lambda e: kernel.value_at(e, {}).decision)
+    out = []
+    for free in (j for j in range(n) if j not in pivots):
+        v = [sp.Integer(0)] * n
+        v[free] = sp.Integer(1)
+        for row, col in enumerate(pivots):
+            v[col] = -reduced[row][free]
+        out.append(_scaled(v))
+    return out
 
 
 def _scaled(v: list[sp.Expr]) -> list[sp.Expr]:

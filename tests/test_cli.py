@@ -23,13 +23,13 @@ from pathlib import Path
 
 import pytest
 
-from conftest import Run, run_on_terminal
+from conftest import REPO, Run, run_on_terminal
 
 from plantlint import __version__
 from plantlint.core.catalogue import load_catalogue
 from plantlint.cli import main
 
-PROJECT = Path(__file__).resolve().parent.parent
+PROJECT = REPO
 FIXTURES = PROJECT / "tests" / "fixtures" / "rules"
 UNSTABLE = FIXTURES / "zero-dynamics-unstable.plant"  # one error
 CRITICAL = FIXTURES / "zero-dynamics-critical.plant"  # one warning

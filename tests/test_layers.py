@@ -11,8 +11,9 @@ import ast
 from pathlib import Path
 
 import pytest
+from conftest import REPO
 
-PACKAGE = Path(__file__).resolve().parents[1] / "checker" / "plantlint"
+PACKAGE = REPO / "checker" / "plantlint"
 LAYERS = ("core", "kernel", "language", "analysis", "report", "run", "cli")
 
 

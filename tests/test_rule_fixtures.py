@@ -25,8 +25,9 @@ import pytest
 from plantlint.core.catalogue import load_catalogue
 from plantlint.run.config import Config
 from plantlint.run.runner import Target, check_targets
+from conftest import FIXTURES as FIXTURE_ROOT
 
-FIXTURES = Path(__file__).parent / "fixtures" / "rules"
+FIXTURES = FIXTURE_ROOT / "rules"
 MARK = re.compile(r"#=(?:L(\d+))?\s+(.*)$")
 
 
@@ -92,7 +93,7 @@ def test_clean_counterpart_is_clean_of_its_rule(path: Path) -> None:
 #: Rules no honest fixture can trigger, with why, and the test that covers them instead.
 EXEMPT: dict[str, str] = {
     "internal-inconsistency": "fires only when two independent computations in the checker disagree, which a "
-                              "correct checker never lets a model cause; tests/test_linearisation.py triggers it by "
+                              "correct checker never lets a model cause; tests/analysis/test_linearisation.py triggers it by "
                               "replacing one computation (monkeypatch)",
 }
 

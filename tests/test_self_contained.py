@@ -10,8 +10,8 @@ from __future__ import annotations
 import json
 import re
 from pathlib import Path
+from conftest import REPO
 
-REPO = Path(__file__).resolve().parent.parent
 SARIF_SCHEMA = REPO / "tests" / "standards" / "sarif-schema-2.1.0.json"
 DOCS = [REPO / "README.md", REPO / "DEVELOPERS.md", *sorted((REPO / "docs").glob("*.md"))]
 LINK = re.compile(r"\]\(([^)#\s]+)")
@@ -28,7 +28,7 @@ def test_published_sarif_schema_is_kept_in_the_repository() -> None:
 
 def test_no_test_reads_outside_the_repository() -> None:
     outside = re.compile(r"\b(?:REPO|REPO_ROOT|ROOT)\.parent\b|\.parent\.parent\.parent|\.\./shared")
-    for path in sorted((REPO / "tests").glob("*.py")):
+    for path in sorted((REPO / "tests").rglob("*.py")):
         if path.name == Path(__file__).name:
             continue
         assert not outside.search(path.read_text(encoding="utf-8")), f"{path.name} reads outside the repository"

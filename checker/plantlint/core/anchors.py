@@ -6,7 +6,7 @@ rest"``). The model records the span of each declared thing under its anchor
 (``Model.spans``); :func:`plantlint.run.pipeline.locate` gives a finding without a span
 the span its anchor names. The fingerprint (``Finding.fingerprint``: the ``--since``
 gate, SARIF ``partialFingerprints``) hashes the anchor, so these texts must never
-change: ``tests/test_anchors.py`` pins them.
+change: ``tests/core/test_anchors.py`` pins them.
 """
 
 from __future__ import annotations

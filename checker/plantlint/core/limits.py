@@ -4,7 +4,7 @@ A file beyond one of these is refused with a ``syntax`` (or ``unit-unknown``) fi
 offending place before it can cost time or memory; real models are far below all of them.
 This module imports nothing, so the runner (which refuses an oversized file before reading
 it whole) and the language layer share one value without the runner loading sympy.
-docs/language.md lists them; tests/test_messages.py holds that table to these values.
+docs/language.md lists them; tests/language/test_messages.py holds that table to these values.
 """
 
 #: Bytes of a model file (1 MiB).

@@ -130,7 +130,7 @@ def read_report(data: Any) -> Report:
     """The :class:`Report` a JSON report was written from (``plantlint merge``).
 
     ``build_report(read_report(build_report(r)))`` equals ``build_report(r)``
-    (tests/test_shard.py holds it), so a key added to the report needs its reader here.
+    (tests/run/test_shard.py holds it), so a key added to the report needs its reader here.
     Source text is not in the report; the caller may attach it.
     """
     if not isinstance(data, dict) or data.get("format") != REPORT_FORMAT:

@@ -5,15 +5,15 @@ analysis, the model and the runner); the demo models are invented."""
 
 from __future__ import annotations
 
-from pathlib import Path
 
 import pytest
 
 from plantlint.core import anchors
 from plantlint.core.findings import Finding, Severity
 from plantlint.run.pipeline import analyse_bytes, claims_in_text, locate
+from conftest import REPO
 
-MODELS = Path(__file__).resolve().parent.parent / "example_repo" / "models"
+MODELS = REPO / "example_repo" / "models"
 
 
 def test_constructors_write_the_documented_texts() -> None:

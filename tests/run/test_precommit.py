@@ -17,9 +17,9 @@ from pathlib import Path
 
 import pytest
 
-from conftest import git, git_env
+from conftest import REPO, git, git_env
 
-PROJECT = Path(__file__).resolve().parent.parent
+PROJECT = REPO
 FIXTURES = PROJECT / "tests" / "fixtures" / "rules"
 PRE_COMMIT = shutil.which("pre-commit")
 

@@ -11,8 +11,9 @@ from pathlib import Path
 
 from plantlint.cli import explain_file
 from plantlint.report.explain import compact_many
+from conftest import FIXTURES
 
-SAMPLE = Path(__file__).parent / "fixtures" / "models" / "contract_sample.plant"
+SAMPLE = FIXTURES / "models" / "contract_sample.plant"
 
 
 def _explain(fmt: str, point: str | None = None) -> str:

@@ -15,8 +15,9 @@ import sympy as sp
 
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
+from conftest import FIXTURES
 
-MODELS = Path(__file__).parent / "fixtures" / "models"
+MODELS = FIXTURES / "models"
 TANK = (MODELS / "quadruple_tank.plant").read_text(encoding="utf-8")
 
 

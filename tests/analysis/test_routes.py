@@ -20,8 +20,9 @@ import pytest
 import plantlint.kernel.lie as lie
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
+from conftest import REPO
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = REPO
 #: Benchmark models whose symbolic route takes longer than a unit test should.
 HEAVY = {"spring_chain_5", "spring_bank_12_6", "spring_bank_10_5", "quadrotor", "pendulum_bank_10",
          "spring_chain_4", "pendulum_bank_8", "spring_bank_8_4"}

@@ -20,8 +20,8 @@ import pytest
 
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
+from conftest import REPO
 
-REPO = Path(__file__).resolve().parent.parent
 CHECKER = REPO / "checker"
 
 

@@ -14,7 +14,6 @@ from __future__ import annotations
 import io
 import json
 import random
-from pathlib import Path
 from typing import Any
 
 import jsonschema
@@ -30,8 +29,8 @@ from plantlint.report.formats.json_report import report_schema
 from plantlint.run.pipeline import RawResult, finish
 from plantlint.run.runner import analyse_all
 from plantlint.language.syntax import parser
+from conftest import REPO
 
-REPO = Path(__file__).resolve().parent.parent
 SARIF_SCHEMA = REPO / "tests" / "standards" / "sarif-schema-2.1.0.json"  # OASIS SARIF 2.1.0
 SEEDS = sorted((REPO / "tests" / "fixtures" / "rules").glob("*.plant")) + sorted(
     (REPO / "example_repo").rglob("*.plant"))

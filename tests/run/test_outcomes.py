@@ -28,9 +28,9 @@ from plantlint.report.formats import get_formatter
 from plantlint.report.formats.json_report import report_schema
 from plantlint.run.config import Config, ConfigError, from_table
 from plantlint.run.runner import Target, check_targets
-from conftest import Run
+from conftest import Run, STANDARDS
 
-SARIF_SCHEMA = Path(__file__).parent / "standards" / "sarif-schema-2.1.0.json"  # OASIS SARIF 2.1.0
+SARIF_SCHEMA = STANDARDS / "sarif-schema-2.1.0.json"  # OASIS SARIF 2.1.0
 
 # Invented: a mass on a spring lifted by a force; y'' = F - p, relative degree 2 = n.
 LIFT = """plant lift "invented: a mass on a spring lifted by a force"

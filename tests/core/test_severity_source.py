@@ -16,9 +16,10 @@ from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes, stopped
 from plantlint.run.policy import unused_waivers
 from plantlint.run.runner import Target, check_targets
+from conftest import FIXTURES as FIXTURE_ROOT, REPO
 
-PACKAGE = Path(__file__).resolve().parent.parent / "checker" / "plantlint"
-FIXTURES = Path(__file__).parent / "fixtures" / "rules"
+PACKAGE = REPO / "checker" / "plantlint"
+FIXTURES = FIXTURE_ROOT / "rules"
 #: the layers that hold records and presentation may build a Finding with its severity
 #: (the record itself; a report read back from JSON); every other layer emits
 GRADING_LAYERS = ("core", "report")

@@ -18,9 +18,9 @@ from pathlib import Path
 
 import pytest
 
-from conftest import Run, run_on_terminal
+from conftest import FIXTURES as FIXTURE_ROOT, Run, run_on_terminal
 
-FIXTURES = Path(__file__).parent / "fixtures" / "rules"
+FIXTURES = FIXTURE_ROOT / "rules"
 
 # Copied fixtures (invented plants), two of them one folder down so that discovery
 # order is exercised too.

@@ -21,9 +21,9 @@ import pytest
 from plantlint.core.findings import FileReport, Finding, Report, Severity, Span
 from plantlint.report.formats.json_report import build_report, read_report
 from plantlint.run.shard import SLACK, ShardError, assign, merge_reports, parse_shard
-from conftest import Run, git, git_env
+from conftest import REPO, Run, git, git_env
 
-REPO_ROOT = Path(__file__).resolve().parent.parent
+REPO_ROOT = REPO
 EXAMPLE = REPO_ROOT / "example_repo"
 
 

@@ -10,7 +10,6 @@ from __future__ import annotations
 import io
 import json
 from dataclasses import replace
-from pathlib import Path
 from typing import Any
 
 import jsonschema
@@ -23,8 +22,9 @@ from plantlint.report.formats.base import change_text
 from plantlint.report.formats.json_report import build_report, report_schema
 from plantlint.report.formats.sarif import artifact_location, build_sarif
 from plantlint.report.formats.text import excerpt
+from conftest import REPO
 
-REPO_ROOT = Path(__file__).resolve().parent.parent
+REPO_ROOT = REPO
 SARIF_SCHEMA = REPO_ROOT / "tests" / "standards" / "sarif-schema-2.1.0.json"  # OASIS SARIF 2.1.0
 
 # Invented demo model; the tab on line 3 and the two-line rate exercise column handling.

@@ -21,7 +21,6 @@ from plantlint.core.findings import Finding
 from plantlint.run.pipeline import RawResult, analyse_bytes
 from plantlint.core.limits import MAX_BYTES
 
-REPO = Path(__file__).resolve().parent.parent
 
 # A tiny valid model (invented numbers) with two findings whose positions matter:
 # an unused parameter (line 3) and a violated expectation (line 9).

@@ -9,7 +9,6 @@ recomputed here with plain sympy (Matrix.jacobian, diff, Matrix.rank).
 from __future__ import annotations
 
 import re
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -22,7 +21,7 @@ from plantlint.analysis.distributions import (
 from plantlint.analysis.serialise import distributions_json
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant
-from conftest import linear_plant
+from conftest import REPO, linear_plant
 
 x1, x2, x3, x4 = sp.symbols("x1 x2 x3 x4")
 u, v = sp.symbols("u v")
@@ -402,7 +401,7 @@ def test_ranged_parameter_stays_symbolic() -> None:
 
 def test_module_never_evaluates_text_or_simplifies() -> None:
     """House rule: no eval/exec/sympify/parse_expr/simplify in the analysis."""
-    source = (Path(__file__).resolve().parents[1] / "checker" / "plantlint" / "analysis" / "distributions.py").read_text()
+    source = (REPO / "checker" / "plantlint" / "analysis" / "distributions.py").read_text()
     for banned in ("eval(", "exec(", "sympify(", "parse_expr(", "simplify("):
         assert not re.search(r"(?<![A-Za-z_])" + re.escape(banned), source), banned
 

@@ -12,6 +12,7 @@ import pytest
 from plantlint.core import limits
 from plantlint.language.syntax import parse_text, parser
 from plantlint.run.pipeline import read_model
+from conftest import REPO
 
 GOOD = """plant lag "first-order lag (invented)"
 param k = 2 in 1 .. 3
@@ -93,7 +94,7 @@ def test_no_internal_parser_names_reach_users(half: int) -> None:
 
 
 def test_documented_limits_are_the_codes_limits() -> None:
-    doc = (Path(__file__).resolve().parent.parent / "docs" / "language.md").read_text(encoding="utf-8")
+    doc = (REPO / "docs" / "language.md").read_text(encoding="utf-8")
     table = doc.split("## Limits for hostile input", 1)[1]
     rows = {line.split("|")[1].strip(): line.split("|", 2)[2] for line in table.splitlines() if line.startswith("| ")}
 

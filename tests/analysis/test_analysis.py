@@ -4,15 +4,15 @@ from __future__ import annotations
 
 import json
 import math
-from pathlib import Path
 
 import numpy as np
 import sympy as sp
 
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
+from conftest import FIXTURES
 
-MODELS = Path(__file__).parent / "fixtures" / "models"
+MODELS = FIXTURES / "models"
 
 
 def _analyse(name: str) -> tuple[dict, list]:

@@ -20,8 +20,9 @@ import pytest
 from plantlint.language import units
 from plantlint.language.units import UnitTextError, parse_unit_text, unit_of
 from plantlint.run.pipeline import read_model
+from conftest import REPO
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = REPO
 EXAMPLE_MODELS = ROOT / "example_repo" / "models"
 
 

@@ -9,7 +9,6 @@ from __future__ import annotations
 import json
 import math
 import re
-from pathlib import Path
 
 import jsonschema
 import numpy as np
@@ -31,10 +30,9 @@ from plantlint.core.settings import AnalysisSettings
 from plantlint.report.explain import explain_data, render_text
 from plantlint.report.formats.json_report import report_schema
 from plantlint.run.pipeline import read_model
-from conftest import assert_same_set, linear_plant, rosenbrock_zeros
+from conftest import FIXTURES as FIXTURE_ROOT, REPO, assert_same_set, linear_plant, rosenbrock_zeros
 
-FIXTURES = Path(__file__).parent / "fixtures" / "models"
-REPO = Path(__file__).parent.parent
+FIXTURES = FIXTURE_ROOT / "models"
 
 
 # -- helpers -------------------------------------------------------------------------------

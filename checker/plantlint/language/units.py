@@ -756,7 +756,7 @@ class _Checker:
                 self._plain_argument(fname, arg, u, where)
             return _Num(None) if all(isinstance(u, _Num) for u in values) else ONE
         if fname == "atan2":
-            self._agree([(a, u, False) for a, u in args], where, f"argument of atan2")
+            self._agree([(a, u, False) for a, u in args], where, "argument of atan2")
             return _Num(None) if all(isinstance(u, _Num) for u in values) else ONE
         if fname == "sqrt" and len(values) == 1:
             u = values[0]

@@ -128,3 +128,29 @@ def rosenbrock_zeros(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> list[comple
     N = scipy.linalg.block_diag(np.eye(n), np.zeros((C.shape[0], m)))
     w = scipy.linalg.eig(M, N, right=False)
     return [complex(v) for v in w if np.isfinite(v) and abs(v) < 1e6]
+
+
+def kalman(A: np.ndarray, B: np.ndarray, k: int | None = None) -> np.ndarray:
+    """Reference Kalman matrix [B, AB, ..., A^k B] (k = n - 1 when not given), with numpy."""
+    blocks = [B]
+    for _ in range(A.shape[0] - 1 if k is None else k):
+        blocks.append(A @ blocks[-1])
+    return np.hstack(blocks)
+
+
+def markov_degrees(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> list[int] | None:
+    """Reference relative degrees r_i of a linear plant from its Markov parameters
+    C_i A^(k-1) B (exact integers): the first k with a non-zero row."""
+    n = A.shape[0]
+    Ao, Bo = A.astype(object), B.astype(object)
+    out = []
+    for row in C.astype(object):
+        power = np.eye(n, dtype=int).astype(object)
+        for k in range(1, n + 1):
+            if any(row @ power @ Bo):
+                out.append(k)
+                break
+            power = power @ Ao
+        else:
+            return None
+    return out

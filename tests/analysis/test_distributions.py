@@ -21,7 +21,7 @@ from plantlint.analysis.distributions import (
 from plantlint.analysis.serialise import distributions_json
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant
-from conftest import REPO, linear_plant
+from conftest import REPO, kalman, linear_plant
 
 x1, x2, x3, x4 = sp.symbols("x1 x2 x3 x4")
 u, v = sp.symbols("u v")
@@ -56,13 +56,6 @@ def analyse(plant: Plant, point: dict[sp.Symbol, sp.Expr], name: str = "p"):
     kernel = Kernel(plant)
     structure = analyse_distributions(kernel)
     return structure, distributions_at(kernel, structure, name, point)
-
-
-def kalman(A: np.ndarray, B: np.ndarray, k: int) -> np.ndarray:
-    blocks = [B]
-    for _ in range(k):
-        blocks.append(A @ blocks[-1])
-    return np.hstack(blocks)
 
 
 def unimodular(rng: np.random.Generator, n: int) -> np.ndarray:

@@ -30,7 +30,7 @@ from plantlint.core.settings import AnalysisSettings
 from plantlint.report.explain import explain_data, render_text
 from plantlint.report.formats.json_report import report_schema
 from plantlint.run.pipeline import read_model
-from conftest import FIXTURES as FIXTURE_ROOT, REPO, assert_same_set, linear_plant, rosenbrock_zeros
+from conftest import FIXTURES as FIXTURE_ROOT, REPO, assert_same_set, kalman, linear_plant, rosenbrock_zeros
 
 FIXTURES = FIXTURE_ROOT / "models"
 
@@ -42,11 +42,6 @@ def linearise_origin(P: Plant) -> Linearisation:
     eq = solve_point(P, "origin", {s: sp.Integer(0) for s in (*P.states, *P.inputs)}, kernel)
     assert eq.equilibrium
     return linearise_at(kernel, eq, None)
-
-
-def kalman(A: np.ndarray, B: np.ndarray) -> np.ndarray:
-    n = A.shape[0]
-    return np.hstack([np.linalg.matrix_power(A, k) @ B for k in range(n)])
 
 
 def vector(text: str, n: int) -> np.ndarray:

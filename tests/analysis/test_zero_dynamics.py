@@ -17,29 +17,13 @@ from plantlint.analysis.serialise import normal_form_json
 from plantlint.kernel.plant import Plant
 from plantlint.analysis.serialise import zero_dynamics_json
 from plantlint.analysis.zero_dynamics import zero_dynamics_at
-from conftest import assert_same_set, linear_plant, rosenbrock_zeros
+from conftest import assert_same_set, linear_plant, markov_degrees, rosenbrock_zeros
 
 x1, x2, x3 = sp.symbols("x1 x2 x3")
 u = sp.Symbol("u")
 
 
 # -- linear plants ------------------------------------------------------------------
-
-def markov_degrees(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> list[int] | None:
-    """r_i from the Markov parameters C_i A^(k-1) B (exact integers)."""
-    n = A.shape[0]
-    Ao, Bo = A.astype(object), B.astype(object)
-    out = []
-    for row in C.astype(object):
-        power = np.eye(n, dtype=int).astype(object)
-        for k in range(1, n + 1):
-            if any(row @ power @ Bo):
-                out.append(k)
-                break
-            power = power @ Ao
-        else:
-            return None
-    return out
 
 
 def decoupling(A: np.ndarray, B: np.ndarray, C: np.ndarray, r: list[int]) -> np.ndarray:

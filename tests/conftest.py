@@ -18,6 +18,12 @@ from typing import Any
 
 import numpy as np
 import sympy as sp
+from hypothesis import settings
+
+# Property tests draw their examples from a fixed seed, so a run in CI is repeatable
+# (common practice for hypothesis in CI); the examples are still many and varied.
+settings.register_profile("repeatable", derandomize=True, deadline=None)
+settings.load_profile("repeatable")
 
 REPO = Path(__file__).resolve().parent.parent
 FIXTURES = REPO / "tests" / "fixtures"

@@ -48,6 +48,7 @@ from plantlint.core.findings import Finding
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel import exact
+from plantlint.kernel.exact import ball_rank
 from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
 from plantlint.language.printer import show_point
 from plantlint.analysis.linearizing_output import OutputSearch
@@ -344,26 +345,14 @@ BALL_PREC = 128
 
 
 def _ball_det_nonzero(M: list[list[arb]]) -> bool:
-    """Is the determinant of a square ball matrix certainly non-zero? Gaussian
-    elimination choosing, in each column, a pivot that certainly is not zero;
-    without one the answer is "not proven" (False)."""
+    """Is the determinant of a square ball matrix certainly non-zero? Full proven rank
+    of the ball elimination (kernel/exact.py) at the stage's precision."""
     import flint
 
     old = flint.ctx.prec
     flint.ctx.prec = BALL_PREC
     try:
-        A = [list(row) for row in M]
-        k = len(A)
-        for c in range(k):
-            candidates = [r for r in range(c, k) if zd.of_ball(A[r][c]).proven_nonzero]
-            if not candidates:
-                return False
-            p = max(candidates, key=lambda r: abs(float(A[r][c].mid())))
-            A[c], A[p] = A[p], A[c]
-            for r in range(c + 1, k):  # every row: a ball near 0 may still be non-zero
-                factor = A[r][c] / A[c][c]
-                A[r] = [a - factor * b for a, b in zip(A[r], A[c])]
-        return True
+        return ball_rank(M)[0] == len(M)
     finally:
         flint.ctx.prec = old
 

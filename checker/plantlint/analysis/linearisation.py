@@ -43,8 +43,7 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
-from plantlint.kernel import decision as zd
-from plantlint.kernel.exact import gauss_jordan
+from plantlint.kernel.exact import ball_elimination
 from plantlint.kernel.lie import Kernel
 from plantlint.language.printer import show_number
 
@@ -499,9 +498,7 @@ def _ball_subspace(rows: list[list[arb]], A: list[list[arb]], left: bool
     zero), a basis of its null space (floats, for display) and the eigenvalues of A
     restricted to that subspace (``left``: the null vectors are left vectors w, w A = M w)."""
     n = len(rows[0])
-    work, pivots, certain = gauss_jordan(
-        rows, n, decide=lambda e: zd.ZERO if e.is_zero() else (zd.UNDECIDED if e.contains(0) else zd.NONZERO),
-        size=lambda e: float(e.abs_lower()), zero=arb(0), one=arb(1))
+    work, pivots, certain = ball_elimination(rows)
     top = len(pivots)
     free = [c for c in range(n) if c not in pivots]
     vectors = []

@@ -164,7 +164,9 @@ def int_power(x: arb, e: int) -> arb:
     if e == 0:
         return arb(1)
     if e < 0:
-        return arb(1) / int_power(x, -e)  # nan when the ball contains 0
+        if x.contains(0):
+            return arb("nan")  # a pole inside: no finite enclosure
+        return int_power(arb(1) / x, -e)  # invert first: 1/x of a ball off zero is finite
     if e == 1 or not x.is_finite():
         return x if e == 1 else arb("nan")
     if x.rad() == 0:

@@ -16,6 +16,7 @@ from typing import Any
 import sympy as sp
 from flint import arb
 
+from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.plant import as_expr
 
@@ -138,3 +139,42 @@ def laplace_det(M: sp.Matrix) -> sp.Expr:
         return total
 
     return minor(0, tuple(range(M.cols)))
+
+
+def ball_elimination(rows: Sequence[Sequence[arb]]) -> tuple[list[list[arb]], list[int], bool]:
+    """:func:`gauss_jordan` over rigorous balls: a pivot is a ball that excludes zero, the
+    largest lower bound first. The pivots found are proven; the rank is a lower bound,
+    certain when every entry skipped was exactly zero."""
+    return gauss_jordan([list(r) for r in rows], len(rows[0]) if rows else 0, decide=zd.of_ball,
+                        size=lambda e: float(e.abs_lower()), zero=arb(0), one=arb(1))
+
+
+def ball_rank(rows: Sequence[Sequence[arb]]) -> tuple[int, bool]:
+    """Rank of a ball matrix: a proven lower bound, and whether it is certain."""
+    if not rows or not rows[0]:
+        return 0, True
+    _, pivots, certain = ball_elimination(rows)
+    return len(pivots), certain
+
+
+def sign(value: sp.Expr) -> int:
+    """The exact sign of a constant: rigorous balls first, then a bounded exact test.
+
+    Returns -1, 0 or 1; 0 only for a value proven zero. A value the balls cannot separate
+    from zero and the exact test cannot settle is given sympy's own sign assumption
+    (``is_positive``), as a last resort."""
+    from plantlint.kernel.balls import UnsupportedExpression, to_arb
+
+    if value.is_Rational:
+        return int(bool(value > 0)) - int(bool(value < 0))
+    try:
+        b = to_arb(value)
+        if b > 0:
+            return 1
+        if b < 0:
+            return -1
+    except UnsupportedExpression:
+        pass
+    from plantlint.kernel.lie import bounded_equals_zero
+
+    return 0 if bounded_equals_zero(value).proven_zero else (1 if value.is_positive else -1)

@@ -785,22 +785,10 @@ def _less_eq(a: sp.Expr, b: sp.Expr) -> bool:
 
 
 def _compare(d: sp.Expr) -> int:
-    """Exact sign of a constant (rigorous balls, exact where they cannot decide)."""
-    from plantlint.kernel.balls import UnsupportedExpression, to_arb
+    """Exact sign of a constant (the kernel's one sign function)."""
+    from plantlint.kernel.exact import sign
 
-    if d.is_Rational:
-        return int(bool(d > 0)) - int(bool(d < 0))
-    try:
-        b = to_arb(d)
-        if b > 0:
-            return 1
-        if b < 0:
-            return -1
-    except UnsupportedExpression:
-        pass
-    from plantlint.kernel.lie import bounded_equals_zero
-
-    return 0 if bounded_equals_zero(d).proven_zero else (1 if d.is_positive else -1)
+    return sign(d)
 
 
 def _show(e: sp.Expr) -> str:

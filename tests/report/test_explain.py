@@ -10,7 +10,7 @@ import sys
 from pathlib import Path
 
 from plantlint.cli import explain_file
-from plantlint.report.explain import compact_many
+from plantlint.report.explain import name_subexpressions
 from conftest import FIXTURES
 
 SAMPLE = FIXTURES / "models" / "contract_sample.plant"
@@ -102,10 +102,10 @@ def test_common_subexpressions_are_named_only_when_shorter() -> None:
     import sympy as sp
 
     x, y = sp.symbols("x y")
-    defs, shown = compact_many([x + 1, y])
+    defs, shown = name_subexpressions([x + 1, y])
     assert defs == [] and shown == ["1 + x", "y"]
     big = sp.sin(x * y + sp.cos(x)) ** 2 * sp.exp(x - y**2) / (3 + sp.tanh(x * y))
-    defs, shown = compact_many([big / (1 + big), big * x, big + y])
+    defs, shown = name_subexpressions([big / (1 + big), big * x, big + y])
     assert defs and any(name in s for name, _ in defs for s in shown)
     assert sum(map(len, shown)) < 3 * len(str(big))
 

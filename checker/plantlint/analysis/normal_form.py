@@ -187,7 +187,7 @@ def _symbolic_zero_dynamics(
     out = [f"{name} = {show_expr(phi)}" for phi, name in zip(eta, names) if not phi.is_Symbol]
     for phi, name in zip(eta, names):
         rate = kernel.lie(phi, tuple(closed))
-        rate = _compact(plant.nominal(rate).xreplace(solution))
+        rate = _cancel_with_trig_identity(plant.nominal(rate).xreplace(solution))
         if sp.count_ops(rate) > MAX_RESULT_OPS:
             return None, "zero dynamics too large to write out"
         out.append(f"{name}' = {show_expr(rate, limit=400)}")
@@ -222,7 +222,7 @@ def _solve_through(
         if set(sol) != set(unknowns) or any(v.has(*unknowns) for v in sol.values()):
             continue
         if all(decide(sol[s].xreplace(at_eta) - point[s]).taken_zero for s in unknowns):
-            return {s: _compact(v) for s, v in sol.items()}
+            return {s: _cancel_with_trig_identity(v) for s, v in sol.items()}
     return None
 
 
@@ -239,7 +239,7 @@ def _ustar(kernel: Kernel, degrees: Sequence[int]) -> list[sp.Expr] | None:
     return [-(A[1, 1] * b[0] - A[0, 1] * b[1]) / det, -(A[0, 0] * b[1] - A[1, 0] * b[0]) / det]
 
 
-def _compact(expr: sp.Expr) -> sp.Expr:
+def _cancel_with_trig_identity(expr: sp.Expr) -> sp.Expr:
     """Cancel small expressions, with sin and cos as generators tied by cos^2 = 1 - sin^2
     (an exact rewrite, not a heuristic simplification); large ones stay as they are."""
     if sp.count_ops(expr) > MAX_RESULT_OPS:

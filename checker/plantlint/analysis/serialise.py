@@ -274,7 +274,7 @@ def envelope_witness(data: dict[str, Any] | None) -> dict[str, float]:
 LONG = 60
 
 
-def compact_many(exprs: list[sp.Expr]) -> tuple[list[tuple[str, str]], list[str]]:
+def name_subexpressions(exprs: list[sp.Expr]) -> tuple[list[tuple[str, str]], list[str]]:
     """Name the common sub-expressions of ``exprs`` when that makes them shorter."""
     import sympy as sp
 
@@ -348,7 +348,7 @@ def _derivation(a: Analysis) -> dict[str, Any]:
     A = st.decoupling
     matrix = list(A) if A is not None else []
     b = [k.lf(i, o.relative_degree) for i, o in enumerate(st.outputs) if o.relative_degree is not None]
-    defs, shown = compact_many(entries + matrix + b)
+    defs, shown = name_subexpressions(entries + matrix + b)
     for row, text in zip(table, shown):
         row["expr"] = text
     A_text = shown[len(entries): len(entries) + len(matrix)]
@@ -477,6 +477,6 @@ def show_repeated(values: tuple[complex, ...]) -> str:
     return show_eigenvalues([z for z, _ in distinct]) if all(c == 1 for _, c in distinct) else ", ".join(shown)
 
 
-__all__ = ["analysis_json", "compact_many", "envelope_witness", "equilibrium_json", "explain_json",
+__all__ = ["analysis_json", "name_subexpressions", "envelope_witness", "equilibrium_json", "explain_json",
            "linearisation_json", "normal_form_json", "parametric_json", "show_repeated", "structural_facts",
            "verdict_json"]

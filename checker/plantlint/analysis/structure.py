@@ -35,7 +35,7 @@ from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.lie import Kernel, matrix_at
 
 #: Expressions up to this size are factored for messages; larger ones are cut.
-FACTOR_OPS_LIMIT = 40
+READABLE_FACTOR_OPS = 40
 MESSAGE_CHARS = 120
 #: Generic rank confirmation tests at most this many minors symbolically.
 MAX_MINORS_CONFIRMED = 60
@@ -106,10 +106,10 @@ def lie_name(kernel: Kernel, j: int | None, i: int, k: int) -> str:
     return f"{g}{f} {plant.outputs[i]}"
 
 
-def compact(expr: sp.Expr) -> str:
+def readable(expr: sp.Expr) -> str:
     """A readable form of an expression for messages: factored when small, cut when large."""
     text = show_expr(expr, limit=10**6)
-    if sp.count_ops(expr) <= FACTOR_OPS_LIMIT:
+    if sp.count_ops(expr) <= READABLE_FACTOR_OPS:
         try:
             factored = show_expr(sp.factor(sp.cancel(expr)), limit=10**6)
         except (sp.PolynomialError, TypeError, ValueError):
@@ -315,7 +315,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
         degrees[out.name] = None
         all_defined = False
         undefined = any(not s.taken_zero for s in states)
-        shown = "; ".join(f"{lie_name(kernel, j, i, r - 1)} = {compact(e)}" for j, e in enumerate(out.row))
+        shown = "; ".join(f"{lie_name(kernel, j, i, r - 1)} = {readable(e)}" for j, e in enumerate(out.row))
         findings.append(finding(
             "relative-degree-ill-defined",
             f"relative degree of {out.name} is not defined at point {name}: "
@@ -379,22 +379,22 @@ def domain_conditions(expr: sp.Expr, symbols: set[sp.Symbol]) -> list[DomainCond
                 continue
             if e.is_Rational and not e.is_Integer:
                 what = "square-root argument" if e.q == 2 else "fractional-power base"
-                out.append(("positive", base, f"{what} {compact(base)}"))
+                out.append(("positive", base, f"{what} {readable(base)}"))
             elif e.is_negative:
-                out.append(("nonzero", base, f"denominator {compact(base)}"))
+                out.append(("nonzero", base, f"denominator {readable(base)}"))
             elif not e.is_Rational:
-                out.append(("positive", base, f"power base {compact(base)}"))
+                out.append(("positive", base, f"power base {readable(base)}"))
         elif isinstance(node, sp.log):
-            out.append(("positive", node.args[0], f"log argument {compact(node.args[0])}"))
+            out.append(("positive", node.args[0], f"log argument {readable(node.args[0])}"))
         elif isinstance(node, (sp.asin, sp.acos)):
             a = node.args[0]
-            out.append(("positive", 1 - a, f"{type(node).__name__} argument {compact(a)} (1 or above)"))
-            out.append(("positive", 1 + a, f"{type(node).__name__} argument {compact(a)} (-1 or below)"))
+            out.append(("positive", 1 - a, f"{type(node).__name__} argument {readable(a)} (1 or above)"))
+            out.append(("positive", 1 + a, f"{type(node).__name__} argument {readable(a)} (-1 or below)"))
         elif isinstance(node, sp.tan):
-            out.append(("nonzero", sp.cos(node.args[0]), f"tan argument {compact(node.args[0])} (at a pole)"))
+            out.append(("nonzero", sp.cos(node.args[0]), f"tan argument {readable(node.args[0])} (at a pole)"))
         elif isinstance(node, sp.atan2):
             y, x = node.args
-            out.append(("nonzero", x**2 + y**2, f"atan2 arguments {compact(y)}, {compact(x)} (both zero)"))
+            out.append(("nonzero", x**2 + y**2, f"atan2 arguments {readable(y)}, {readable(x)} (both zero)"))
     return out
 
 
@@ -584,7 +584,7 @@ def _regularity_expressions(kernel: Kernel, structure: Structure) -> tuple[list[
     """What must stay away from zero: det A (square), the row (one output), the p x p minors (wide)."""
     A = structure.decoupling
     assert A is not None
-    A = A.applyfunc(kernel.compact)
+    A = A.applyfunc(kernel.cancelled)
     p, m = A.rows, A.cols
     if p == 1:
         r = structure.outputs[0].relative_degree or 1
@@ -593,8 +593,8 @@ def _regularity_expressions(kernel: Kernel, structure: Structure) -> tuple[list[
             return [entries[0][1]], entries[0][0]
         return [e for _, e in entries], "every entry of the row " + ", ".join(n for n, _ in entries)
     if p == m:
-        return [kernel.compact(exact.laplace_det(A))], "det A (the decoupling matrix)"
-    minors = [kernel.compact(exact.laplace_det(A.extract(list(range(p)), list(c)))) for c in combinations(range(m), p)]
+        return [kernel.cancelled(exact.laplace_det(A))], "det A (the decoupling matrix)"
+    minors = [kernel.cancelled(exact.laplace_det(A.extract(list(range(p)), list(c)))) for c in combinations(range(m), p)]
     return [e for e in minors if e != 0] or [sp.Integer(0)], f"every {p} x {p} minor of the decoupling matrix"
 
 

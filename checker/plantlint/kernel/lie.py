@@ -40,9 +40,9 @@ Vector = tuple[sp.Expr, ...]
 #: Expressions larger than this (in operations) are not simplified symbolically.
 SIMPLIFY_OPS_LIMIT = 250
 #: Expressions larger than this are not factored for envelope proofs.
-FACTOR_OPS_LIMIT = 4000
+FACTOR_LIST_OPS_LIMIT = 4000
 #: Expressions larger than this are not brought over a common denominator.
-COMPACT_OPS_LIMIT = 600
+CANCEL_OPS_LIMIT = 600
 #: Number of random points used to screen an expression.
 SCREEN_POINTS = 6
 
@@ -81,7 +81,7 @@ class Kernel:
         self._ad: dict[tuple[int, int], Vector] = {}
         self._zero: dict[sp.Expr, ZeroDecision] = {}
         self._jacobians: dict[Vector, sp.Matrix] = {}
-        self._compact: dict[sp.Expr, sp.Expr] = {}
+        self._cancelled: dict[sp.Expr, sp.Expr] = {}
         self._poly: "_PolynomialTowers | None | bool" = False
         self.seed = seed if seed is not None else _seed_for(plant)
         self._samples: list[dict[sp.Symbol, Fraction]] | None = None
@@ -230,36 +230,36 @@ class Kernel:
             self._poly = _PolynomialTowers.build(self)
         return self._poly  # type: ignore[return-value]
 
-    def compact(self, expr: sp.Expr) -> sp.Expr:
+    def cancelled(self, expr: sp.Expr) -> sp.Expr:
         """``expr`` over a common denominator with common factors cancelled, when
         that is cheap (small input) and pays (smaller output); else unchanged.
 
         Interval enclosures suffer from every repeated occurrence of a variable,
-        so certification works on the compact form.
+        so certification works on the cancelled form.
         """
         if expr.is_Atom:
             return expr
         if expr.is_Mul and len(expr.args) > 2 and _has_functions(expr):
             # a product (a chain's layered decoupling term) stays a product: compacting
             # factor by factor never multiplies the factors out
-            return sp.Mul(*(self.compact(a) for a in expr.args))
-        if sp.count_ops(expr) > COMPACT_OPS_LIMIT:
+            return sp.Mul(*(self.cancelled(a) for a in expr.args))
+        if sp.count_ops(expr) > CANCEL_OPS_LIMIT:
             return expr
-        cached = self._compact.get(expr)
+        cached = self._cancelled.get(expr)
         if cached is None:
             try:
                 candidate = sp.cancel(sp.together(expr))
             except (sp.PolynomialError, ValueError, TypeError):
                 candidate = expr
             cached = candidate if sp.count_ops(candidate) < sp.count_ops(expr) else expr
-            self._compact[expr] = cached
+            self._cancelled[expr] = cached
         return cached
 
     def factors(self, expr: sp.Expr) -> list[tuple[sp.Expr, int]]:
         """[(constant, 1), (factor, multiplicity), ...] of a moderate polynomial,
         or [] when it does not factor, has a symbolic denominator or is too large."""
         if (expr.is_Atom or _has_functions(expr) or has_symbolic_denominator(expr)
-                or sp.count_ops(expr) > FACTOR_OPS_LIMIT):
+                or sp.count_ops(expr) > FACTOR_LIST_OPS_LIMIT):
             return []
         try:
             constant, pairs = sp.factor_list(expr)

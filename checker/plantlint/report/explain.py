@@ -20,11 +20,11 @@ import json
 from typing import Any, TextIO
 
 from plantlint.analysis.engine import Analysis
-from plantlint.analysis.serialise import compact_many, explain_json, show_repeated
+from plantlint.analysis.serialise import name_subexpressions, explain_json, show_repeated
 from plantlint.core.findings import Finding, Stop
 from plantlint.language.printer import show_number, show_point
 
-__all__ = ["compact_many", "explain_data", "explain_view", "render_blocked", "render_json", "render_text",
+__all__ = ["name_subexpressions", "explain_data", "explain_view", "render_blocked", "render_json", "render_text",
            "show_repeated"]
 
 

@@ -115,7 +115,7 @@ def envelope_slice(model: Any, kernel: Kernel, structure: Structure, axes: Seque
         raise PlotError("the decoupling matrix is not defined (an output has no relative degree)")
     names = [str(s) for s in plant.states]
     ranged = [str(s) for s in plant.states if s in plant.state_box]
-    A = structure.decoupling.applyfunc(kernel.compact)
+    A = structure.decoupling.applyfunc(kernel.cancelled)
     depends = {str(s) for s in A.free_symbols}
     if axes:
         for a in axes:

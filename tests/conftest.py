@@ -160,3 +160,23 @@ def markov_degrees(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> list[int] | N
         else:
             return None
     return out
+
+
+# Linear two-state plant used by the version-control tests: z' = a*z + x, x' = u, y = x.
+# With y held at zero the internal state obeys z' = a*z, so the zero dynamics are stable
+# for a < 0, unstable for a > 0 and critical for a = 0 (invented demo numbers).
+CONVEYOR_TAIL = """# Tail of a conveyor, demo numbers (invented).
+plant {name}
+state z in -1 .. 1
+state x in -1 .. 1
+input u
+rate z = {rate_z}
+rate x = u
+output y = x
+point rest: z = 0, x = 0
+{extra}"""
+
+
+def conveyor_tail(name: str, rate_z: str, extra: str = "") -> str:
+    """The conveyor-tail model text with its name, its rate of z and extra lines."""
+    return CONVEYOR_TAIL.format(name=name, rate_z=rate_z, extra=extra)

@@ -18,7 +18,7 @@ import numpy as np
 import pytest
 from scipy import signal
 
-from conftest import Run, git, git_env
+from conftest import Run, conveyor_tail, git, git_env
 
 # rd: y = x1 with a chain of 2 (base) or 3 (changed) integrators -> relative degree 2 -> 3
 RD_BASE = """# Invented chain for the markdown tests.
@@ -47,26 +47,16 @@ output y = th
 ENV_CHANGED = ENV_BASE.replace("2*u", "sin(th)*u")
 
 # mp: z' = a z + x, x' = u, y = x; zero dynamics z' = a z: a = -1 minimum phase, a = 1 not
-MP = """# Invented conveyor tail for the markdown tests.
-plant tail
-state z in -1 .. 1
-state x in -1 .. 1
-input u
-rate z = {rate}
-rate x = u
-output y = x
-point rest: z = 0, x = 0
-{extra}"""
-MP_BASE = MP.format(rate="-z + x", extra="")
-MP_CHANGED = MP.format(rate="z + x", extra="")
+MP_BASE = conveyor_tail("tail", "-z + x", extra="")
+MP_CHANGED = conveyor_tail("tail", "z + x", extra="")
 # waiver: critical zero dynamics (a = 0), waived only in the changed version
-WAIVE_BASE = MP.format(rate="x", extra="").replace("plant tail", "plant drift")
-WAIVE_CHANGED = MP.format(rate="x", extra='waive zero-dynamics-critical at rest "held by the <b>buffer</b> | see ticket `42`"\n'
+WAIVE_BASE = conveyor_tail("tail", "x", extra="").replace("plant tail", "plant drift")
+WAIVE_CHANGED = conveyor_tail("tail", "x", extra='waive zero-dynamics-critical at rest "held by the <b>buffer</b> | see ticket `42`"\n'
                           ).replace("plant tail", "plant drift")
 # fixed: unstable -> stable
-FIX_BASE = MP.format(rate="z + x", extra="").replace("plant tail", "plant fixme")
-FIX_CHANGED = MP.format(rate="-z + x", extra="").replace("plant tail", "plant fixme")
-STEADY = MP.format(rate="-z + x", extra="").replace("plant tail", "plant steady")
+FIX_BASE = conveyor_tail("tail", "z + x", extra="").replace("plant tail", "plant fixme")
+FIX_CHANGED = conveyor_tail("tail", "-z + x", extra="").replace("plant tail", "plant fixme")
+STEADY = conveyor_tail("tail", "-z + x", extra="").replace("plant tail", "plant steady")
 
 
 def _tf_excess(A: np.ndarray, B: np.ndarray, C: np.ndarray) -> int:

@@ -29,30 +29,16 @@ from typing import Any
 import numpy as np
 import pytest
 
-from conftest import Run, git, git_env
+from conftest import Run, conveyor_tail, git, git_env
 
 from plantlint.report.formats.base import change_text
 from plantlint.run.gate import structure_changes
 
-# Linear two-state plant: z' = a*z + x, x' = u, y = x. With y held at zero the
-# internal state obeys z' = a*z, so the zero dynamics are stable for a < 0,
-# unstable for a > 0 and critical for a = 0.
-TAIL = """# Tail of a conveyor, demo numbers (invented).
-plant {name}
-state z in -1 .. 1
-state x in -1 .. 1
-input u
-rate z = {rate_z}
-rate x = u
-output y = x
-point rest: z = 0, x = 0
-{extra}"""
-
+# the conveyor tail (conftest): stable, unstable and critical zero dynamics by the rate of z
 STABLE, UNSTABLE, CRITICAL = "-z + x", "z + x", "x"
 
 
-def model(name: str, rate_z: str, extra: str = "") -> str:
-    return TAIL.format(name=name, rate_z=rate_z, extra=extra)
+model = conveyor_tail
 
 
 WAIVE_CRITICAL = 'waive zero-dynamics-critical at rest "settled by the downstream buffer (invented)"\n'

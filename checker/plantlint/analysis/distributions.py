@@ -16,8 +16,10 @@ Why the analysis is split in two:
 Generic ranks and span membership use bordered minors of the original
 entries (no elimination swell): with a basis B and rows I whose minor is proved
 non-zero, a column lies in span B exactly when every det M[I + i, B + c]
-vanishes identically. Balls at the kernel's samples prove "non-zero"; zeros
-are proved by multiplying out or by Kernel.is_zero. At a point, exact numbers
+vanishes identically. A minor whose pattern of non-zero entries has no perfect
+matching is zero by structure; balls at the kernel's samples prove "non-zero";
+other zeros are proved by multiplying out or by Kernel.is_zero. A D_k spanned by
+fields that live in as many coordinates as its rank is involutive by structure. At a point, exact numbers
 are eliminated with pivots decided by Kernel.value_at.
 
 Findings: the generic ``not-involutive`` (anchor "plant") sits in
@@ -235,6 +237,7 @@ class _BorderedMinors:
         self._sample: dict[sp.Symbol, Fraction] | None = None
         self._floats: list[list[float]] = []
         self._ball_cache: dict[int, tuple[Vector, list[arb] | None]] = {}
+        self._supports: dict[int, tuple[Vector, frozenset[int]]] = {}
         samples = kernel.samples()
         if samples:
             self._sample = samples[0]
@@ -299,6 +302,13 @@ class _BorderedMinors:
             self._ball_cache[key] = (column, value)
         return self._ball_cache[key][1]
 
+    def _support(self, column: Vector) -> frozenset[int]:
+        """Rows where the column is not a literal 0 (cached per column)."""
+        key = id(column)
+        if key not in self._supports:
+            self._supports[key] = (column, frozenset(i for i, e in enumerate(column) if e != 0))
+        return self._supports[key][1]
+
     def _nonzero_at_sample(self, rows: tuple[int, ...], basis: list[Vector]) -> bool:
         """True when the minor is *proven* non-zero by its value at the sample point
         (ball Gaussian elimination): then no symbolic determinant is needed."""
@@ -312,6 +322,9 @@ class _BorderedMinors:
         basis = self.columns[:upto] + [column]
         for i in self._row_order(column, upto):
             rows = tuple(sorted(self.rows[:upto] + [i]))
+            if not _structurally_nonsingular(rows, [self._support(c) for c in basis]):
+                yield i, zd.proven_zero("structural")
+                continue
             if self._nonzero_at_sample(rows, basis):
                 yield i, zd.proven_nonzero("ball")
                 continue
@@ -342,6 +355,35 @@ class _BorderedMinors:
 
 
 BALL_PREC = 128
+
+
+def _structurally_nonsingular(rows: Sequence[int], columns: Sequence[frozenset[int]]) -> bool:
+    """Can det M[rows, columns] be non-zero at all, judged from its literal zeros only?
+    (``columns`` are given by their supports: the rows where an entry is not a literal 0.)
+
+    A structural zero, not a numeric guess: by the Leibniz formula the determinant is a
+    sum over bijections rows -> columns of products of entries, so when the bipartite
+    graph of the entries that are not a literal 0 has no perfect matching, every term
+    contains a literal 0 and the determinant is identically zero, with no symbolic work
+    (Frobenius-Koenig theorem; a zero row or a zero bracket is the simplest case). When
+    a matching exists nothing is concluded: the symbolic / ball tests decide as before.
+    """
+    size = len(rows)
+    if len(columns) != size:
+        return True
+    adjacent = [[c for c in range(size) if r in columns[c]] for r in rows]
+    owner: list[int] = [-1] * size  # column -> matched row position
+
+    def augment(r: int, seen: list[bool]) -> bool:
+        for c in adjacent[r]:
+            if not seen[c]:
+                seen[c] = True
+                if owner[c] < 0 or augment(owner[c], seen):
+                    owner[c] = r
+                    return True
+        return False
+
+    return all(augment(r, [False] * size) for r in range(size))
 
 
 def _ball_det_nonzero(M: list[list[arb]]) -> bool:
@@ -512,6 +554,17 @@ class _Involutivity:
     def check(self, k: int, fields: Sequence[SpanningField], basis: tuple[int, ...]) -> BracketFailure | None:
         n = self.kernel.plant.n
         rank = len(basis)
+        if rank < n and len(frozenset().union(*(self.echelon._support(fields[i].vector) for i in basis))) == rank:
+            # Structural proof, no bracket built: the basis fields are supported in a set S
+            # of |S| = rank coordinates and have rank |S| generically, so D_k is the coordinate
+            # distribution span{d/dx_i : i in S} (near generic points). A bracket
+            # [a, b] = Db a - Da b has row i = sum_j (d b_i/dx_j) a_j - (d a_i/dx_j) b_j,
+            # a literal 0 unless i lies in supp(a) or supp(b), so it is supported in S and
+            # lies in D_k: the distribution is involutive (a coordinate distribution is).
+            for a_pos in range(rank):
+                for b_pos in range(a_pos + 1, rank):
+                    self.member_from.setdefault((basis[a_pos], basis[b_pos]), k)
+            return None
         for a_pos in range(rank):
             for b_pos in range(a_pos + 1, rank):
                 pair = (basis[a_pos], basis[b_pos])

@@ -180,3 +180,23 @@ point rest: z = 0, x = 0
 def conveyor_tail(name: str, rate_z: str, extra: str = "") -> str:
     """The conveyor-tail model text with its name, its rate of z and extra lines."""
     return CONVEYOR_TAIL.format(name=name, rate_z=rate_z, extra=extra)
+
+
+def integer_system(rng: np.random.Generator, n: int, m: int, p: int,
+                   deficient: bool = False) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """A random integer (A, B, C): entries of A in -3..3, of B and C in -2..2. When
+    ``deficient``, with a block the input cannot reach and a block the output cannot see,
+    hidden by an integer change of coordinates."""
+    A = rng.integers(-3, 4, (n, n))
+    B = rng.integers(-2, 3, (n, m))
+    C = rng.integers(-2, 3, (p, n))
+    if deficient:
+        k = int(rng.integers(1, n))
+        A[k:, :k] = 0  # x[k:] evolve on their own ...
+        B[k:, :] = 0  # ... and no input reaches them
+        if rng.random() < 0.5:
+            C[:, :k] = 0  # x[:k] is A-invariant (A[k:, :k] = 0): unseen by the outputs
+        T = np.eye(n, dtype=int) + np.tril(rng.integers(-1, 2, (n, n)), -1)  # unimodular
+        Ti = np.rint(np.linalg.inv(T)).astype(int)
+        A, B, C = T @ A @ Ti, T @ B, C @ Ti
+    return A, B, C

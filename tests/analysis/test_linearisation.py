@@ -30,7 +30,7 @@ from plantlint.core.settings import AnalysisSettings
 from plantlint.report.explain import explain_data, render_text
 from plantlint.report.formats.json_report import report_schema
 from plantlint.run.pipeline import read_model
-from conftest import FIXTURES as FIXTURE_ROOT, REPO, assert_same_set, kalman, linear_plant, rosenbrock_zeros
+from conftest import FIXTURES as FIXTURE_ROOT, REPO, assert_same_set, integer_system, kalman, linear_plant, rosenbrock_zeros
 
 FIXTURES = FIXTURE_ROOT / "models"
 
@@ -52,24 +52,6 @@ def vector(text: str, n: int) -> np.ndarray:
     return v
 
 
-def random_system(rng: np.random.Generator, n: int, m: int, p: int, deficient: bool) -> tuple[np.ndarray, ...]:
-    """Integer (A, B, C); when ``deficient``, with a block the input cannot reach and a
-    block the output cannot see, hidden by an integer change of coordinates."""
-    A = rng.integers(-3, 4, (n, n))
-    B = rng.integers(-2, 3, (n, m))
-    C = rng.integers(-2, 3, (p, n))
-    if deficient:
-        k = int(rng.integers(1, n))
-        A[k:, :k] = 0  # x[k:] evolve on their own ...
-        B[k:, :] = 0  # ... and no input reaches them
-        if rng.random() < 0.5:
-            C[:, :k] = 0  # x[:k] is A-invariant (A[k:, :k] = 0): unseen by the outputs
-        T = np.eye(n, dtype=int) + np.tril(rng.integers(-1, 2, (n, n)), -1)  # unimodular
-        Ti = np.rint(np.linalg.inv(T)).astype(int)
-        A, B, C = T @ A @ Ti, T @ B, C @ Ti
-    return A, B, C
-
-
 # -- random linear plants against numpy / scipy ---------------------------------------------
 @pytest.mark.parametrize("deficient", [False, True])
 def test_poles_and_ranks_against_numpy(deficient: bool) -> None:
@@ -78,7 +60,7 @@ def test_poles_and_ranks_against_numpy(deficient: bool) -> None:
     rng = np.random.default_rng(7 if deficient else 11)
     for _ in range(12):
         n, m, p = int(rng.integers(2, 6)), int(rng.integers(1, 3)), int(rng.integers(1, 3))
-        A, B, C = random_system(rng, n, m, p, deficient)
+        A, B, C = integer_system(rng, n, m, p, deficient)
         lin = linearise_origin(linear_plant(A, B, C))
         assert lin.exact and lin.status == "computed"
         assert_same_set(list(lin.poles), list(np.linalg.eigvals(A.astype(float))), tol=1e-5)
@@ -111,7 +93,7 @@ def test_siso_zeros_against_scipy_ss2zpk() -> None:
     checked = 0
     while checked < 25:
         n = int(rng.integers(2, 6))
-        A, B, C = random_system(rng, n, 1, 1, deficient=False)
+        A, B, C = integer_system(rng, n, 1, 1, deficient=False)
         Af, Bf, Cf = A.astype(float), B.astype(float), C.astype(float)
         if np.linalg.matrix_rank(kalman(Af, Bf)) < n or np.linalg.matrix_rank(kalman(Af.T, Cf.T)) < n:
             continue
@@ -131,7 +113,7 @@ def test_square_mimo_zeros_against_rosenbrock_pencil() -> None:
     checked = 0
     while checked < 20:
         n = int(rng.integers(3, 6))
-        A, B, C = random_system(rng, n, 2, 2, deficient=False)
+        A, B, C = integer_system(rng, n, 2, 2, deficient=False)
         finite = rosenbrock_zeros(A, B, C)
         lin = linearise_origin(linear_plant(A, B, C))
         if lin.zeros is None:  # pencil singular for every s: scipy's eigenvalues are then arbitrary
@@ -149,7 +131,7 @@ def test_irrational_entries_take_the_numeric_route() -> None:
     checked = 0
     while checked < 6:
         n = int(rng.integers(2, 5))
-        A, B, C = random_system(rng, n, 1, 1, deficient=checked % 2 == 1)
+        A, B, C = integer_system(rng, n, 1, 1, deficient=checked % 2 == 1)
         lin = linearise_origin(linear_plant(A, B, C, scale=sp.sqrt(2)))
         As, Bf, Cf = math.sqrt(2) * A.astype(float), B.astype(float), C.astype(float)
         assert not lin.exact

@@ -17,7 +17,7 @@ from plantlint.analysis.serialise import normal_form_json
 from plantlint.kernel.plant import Plant
 from plantlint.analysis.serialise import zero_dynamics_json
 from plantlint.analysis.zero_dynamics import zero_dynamics_at
-from conftest import assert_same_set, linear_plant, markov_degrees, rosenbrock_zeros
+from conftest import assert_same_set, integer_system, linear_plant, markov_degrees, rosenbrock_zeros
 
 x1, x2, x3 = sp.symbols("x1 x2 x3")
 u = sp.Symbol("u")
@@ -41,9 +41,7 @@ def test_siso_zeros_equal_scipy_transmission_zeros() -> None:
     checked = 0
     while checked < 30:
         n = int(rng.integers(3, 6))
-        A = rng.integers(-3, 4, (n, n))
-        B = rng.integers(-2, 3, (n, 1))
-        C = rng.integers(-2, 3, (1, n))
+        A, B, C = integer_system(rng, n, 1, 1)
         r = markov_degrees(A, B, C)
         if r is None or r[0] >= n:
             continue
@@ -67,9 +65,7 @@ def test_square_mimo_zeros_equal_rosenbrock_pencil() -> None:
     checked = 0
     while checked < 20:
         n = int(rng.integers(3, 6))
-        A = rng.integers(-3, 4, (n, n))
-        B = rng.integers(-2, 3, (n, 2))
-        C = rng.integers(-2, 3, (2, n))
+        A, B, C = integer_system(rng, n, 2, 2)
         r = markov_degrees(A, B, C)
         if r is None or sum(r) >= n or abs(np.linalg.det(decoupling(A, B, C, r))) < 0.5:
             continue
@@ -87,9 +83,7 @@ def test_irrational_data_take_the_numeric_route() -> None:
     rng = np.random.default_rng(5)
     done = 0
     while done < 5:
-        A = rng.integers(-3, 4, (4, 4))
-        B = rng.integers(-2, 3, (4, 1))
-        C = rng.integers(-2, 3, (1, 4))
+        A, B, C = integer_system(rng, 4, 1, 1)
         r = markov_degrees(A, B, C)
         if r is None or r[0] >= 4:
             continue

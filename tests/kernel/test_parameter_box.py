@@ -11,7 +11,7 @@ import sympy as sp
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.parameter_box import NotCovered, ParameterBox, clock, zero_polynomial
 from plantlint.kernel.plant import Plant
-from conftest import markov_degrees
+from conftest import integer_system, markov_degrees
 
 g = sp.Symbol("g", real=True)
 x = sp.Symbol("x", real=True)
@@ -43,9 +43,7 @@ def test_zero_polynomial_equals_scipy_transmission_zeros() -> None:
     checked = 0
     while checked < 20:
         n = int(rng.integers(2, 6))
-        A = rng.integers(-3, 4, (n, n))
-        B = rng.integers(-2, 3, (n, 1))
-        C = rng.integers(-2, 3, (1, n))
+        A, B, C = integer_system(rng, n, 1, 1)
         degrees = markov_degrees(A, B, C)
         if degrees is None:
             continue

@@ -18,6 +18,7 @@ import sympy as sp
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span, Waiver
+from plantlint.kernel.exact import sign
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
 from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Claim, Expression, Parsed, Statement, near_miss, symbol
@@ -623,8 +624,8 @@ def _with_tolerances(scope: _Scope, points: list[OperatingPoint], stmts: list[St
             out.append(p)
             continue
         value = _point_value(scope, p.name, "tolerance", expr)
-        if value is not None and not (value.is_number and value.is_finite and _compare(value) >= 0
-                                      and _compare(1 - value) > 0):
+        if value is not None and not (value.is_number and value.is_finite and sign(value) >= 0
+                                      and sign(1 - value) > 0):
             scope.add("bad-range", f"tolerance of point '{p.name}' is {_show(value)}; it must be a number with "
                       "0 <= T < 1 (a residual relative to the size of the rates' terms)", expr.span,
                       anchors.point(p.name, "tolerance"), point=p.name)
@@ -777,18 +778,11 @@ def _unused(scope: _Scope) -> None:
 
 
 def _less(a: sp.Expr, b: sp.Expr) -> bool:
-    return _compare(b - a) > 0
+    return sign(b - a) > 0
 
 
 def _less_eq(a: sp.Expr, b: sp.Expr) -> bool:
-    return _compare(b - a) >= 0
-
-
-def _compare(d: sp.Expr) -> int:
-    """Exact sign of a constant (the kernel's one sign function)."""
-    from plantlint.kernel.exact import sign
-
-    return sign(d)
+    return sign(b - a) >= 0
 
 
 def _show(e: sp.Expr) -> str:

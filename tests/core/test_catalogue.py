@@ -41,6 +41,7 @@ EXPECTED: dict[str, list[tuple[str, str]]] = {
         ("missing-rate", "error"),
         ("orphan-rate", "error"),
         ("unused-name", "warning"),
+        ("duplicate-claim", "error"),
         ("non-smooth", "error"),
         ("not-input-affine", "error"),
         ("output-uses-input", "error"),
@@ -77,7 +78,7 @@ def catalogue() -> Catalogue:
 
 def test_exactly_the_required_rules_in_family_order(catalogue: Catalogue) -> None:
     assert list(catalogue.ids()) == ALL_IDS
-    assert len(ALL_IDS) == 34
+    assert len(ALL_IDS) == 35
     for family, entries in EXPECTED.items():
         for rule_id, severity in entries:
             rule = catalogue.get(rule_id)

@@ -172,11 +172,12 @@ def test_input_limits_are_defined_once_in_a_light_module() -> None:
 
 
 def test_expression_mentions_and_problems_come_last_first() -> None:
-    """The builder's documented order (language/syntax.py, _ExpressionBuilder): of two
-    problems in one expression the last is reported, and names and calls are listed
-    last mention first. Invented models."""
-    (f,) = parse_text("plant p\nstate x\nrate x = foo(x) + bar(x)\n").findings
-    assert f.message == "unknown function 'bar'" and f.span.column == 19
+    """The builder's documented order (language/syntax.py, _ExpressionBuilder): every
+    unknown function of an expression is named, in source order; names and calls are
+    listed last mention first. Invented models."""
+    found = parse_text("plant p\nstate x\nrate x = foo(x) + bar(x) + sin(baz(x))\n").findings
+    assert [(f.message, f.span.column) for f in found] == [
+        ("unknown function 'foo'", 10), ("unknown function 'bar'", 19), ("unknown function 'baz'", 32)]
     expr = parse_text("plant p\nstate x\nrate x = a*b + sin(cos(c))\n").statements[-1].expr
     assert expr is not None
     assert [n.name for n in expr.names] == ["c", "b", "a"]

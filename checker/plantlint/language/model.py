@@ -669,12 +669,31 @@ def _claims(scope: _Scope, stmts: list[Statement], outputs: list[str],
     """The `expect` lines that name a known claim, output and point."""
     point_names = {p.name for p in points}
     claims: list[ClaimDecl] = []
+    first: dict[str, ClaimDecl] = {}
     for st in stmts:
         decl = _claim(scope, st, outputs, point_names)
-        if decl is not None:
-            claims.append(decl)
-            scope.spans[decl.anchor] = st.span
+        if decl is None:
+            continue
+        earlier = first.get(decl.anchor)
+        if earlier is not None:
+            _repeated_claim(scope, decl, earlier)
+            continue
+        first[decl.anchor] = decl
+        claims.append(decl)
+        scope.spans[decl.anchor] = st.span
     return claims
+
+
+def _repeated_claim(scope: _Scope, decl: ClaimDecl, earlier: ClaimDecl) -> None:
+    """A second `expect` about the same thing: reported, and only the first is checked."""
+    line = earlier.span.line
+    if decl.value != earlier.value:
+        message = (f"this claim contradicts line {line}, which expects relative degree {earlier.value}, "
+                   f"not {decl.value}; only line {line} is checked")
+    else:
+        message = f"this claim repeats line {line}; it is checked once, there"
+    scope.add("duplicate-claim", message, decl.span, anchors.about(decl.anchor, "again", "line", decl.span.line),
+              hint="keep one `expect` line per claim, so that an edit cannot update one copy and miss the other")
 
 
 def _claim(scope: _Scope, st: Statement, outputs: list[str], point_names: set[str]) -> ClaimDecl | None:

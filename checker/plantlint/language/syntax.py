@@ -58,11 +58,12 @@ RESERVED = KEYWORDS | frozenset(FUNCTIONS) | {"pi"}
 
 
 class ParseProblem(Exception):
-    """A problem that stops parsing; carries the finding to report."""
+    """A problem that stops reading a statement; carries the findings to report (one, or
+    several of one kind found in the same expression, such as two unknown functions)."""
 
-    def __init__(self, finding: Finding):
+    def __init__(self, finding: Finding, *more: Finding):
         super().__init__(finding.message)
-        self.finding = finding
+        self.findings = (finding, *more)
 
 
 @dataclass(frozen=True)
@@ -259,7 +260,7 @@ def parse_text(text: str) -> Parsed:
         try:
             out.statements.append(builder.statement(node))
         except ParseProblem as problem_:
-            out.findings.append(problem_.finding)
+            out.findings.extend(problem_.findings)
         except RecursionError:
             out.findings.append(_syntax("expression too deeply nested", _span(node), anchor=anchors.problem("nesting")))
     return out
@@ -553,16 +554,16 @@ class _ExpressionBuilder:
     are limited to MAX_DEPTH on the text, before parsing).
 
     Nodes are visited after their operands, which come off a stack: the last operand
-    first. That order is part of the behaviour. Of two problems in one expression
-    (``foo(x) + bar(x)``) the last is reported, and ``names`` and ``calls`` list the last
-    mention first, which decides the mention a model finding points at (the first
+    first. That order is part of the behaviour. Unknown functions are collected (every
+    one is named, in source order); of two other problems in one expression the last is
+    reported, and ``names`` and ``calls`` list the last mention first, which decides the mention a model finding points at (the first
     offending name in ``names``).
 
     lark's ``Transformer_NonRecursive`` was tried in its place: no recursion either, the
     same spans (node spans through ``v_args(meta=True)``) and the same time within the
     noise of measurement (the largest benchmark models, a 9,000-term sum), but it visits
     left to right. The lists can be put back in this order afterwards; which of two
-    problems is reported cannot, and every problem would come wrapped in a
+    other problems is reported cannot, and every problem would come wrapped in a
     ``VisitError``. So the walk stays here, small and explicit.
     """
 
@@ -570,10 +571,14 @@ class _ExpressionBuilder:
         self.names: list[NameRef] = []
         self.calls: list[CallRef] = []
         self.values: dict[int, _Value] = {}  # by id(): tokens compare equal by their text
+        self.unknown: list[Finding] = []  # unknown functions: every one is reported, in order
 
     def build(self, root: Tree | Token) -> Expression:
         for node in _operands_first(root):
             self.values[id(node)] = self._token(node) if isinstance(node, Token) else self._node(node)
+        if self.unknown:
+            first, *rest = sorted(self.unknown, key=lambda f: (f.span.line, f.span.column) if f.span else (0, 0))
+            raise ParseProblem(first, *rest)
         return Expression(_done(self.values[id(root)]), _span(root), tuple(self.names), tuple(self.calls), root)
 
     def _token(self, tok: Token) -> sp.Expr:
@@ -614,11 +619,14 @@ class _ExpressionBuilder:
         self.calls.append(CallRef(fname, span))
         entry = FUNCTIONS.get(fname)
         if entry is None:
+            # recorded, and the walk goes on (with a stand-in value) so that every unknown
+            # function of the expression is named, not only one
             close = near_miss(fname, FUNCTIONS)
-            raise ParseProblem(finding(
+            self.unknown.append(finding(
                 "unknown-name", f"unknown function '{fname}'", _span(fname_tok),
                 hint=f"did you mean `{close}`?" if close else "functions: " + ", ".join(sorted(FUNCTIONS)),
                 anchor=anchors.problem(f"function {fname}")))
+            return sp.Integer(0)
         arity, fn = entry
         if len(args) != arity:
             raise ParseProblem(_syntax(f"{fname} takes {arity} argument{'s' if arity > 1 else ''}, got {len(args)}", span))

@@ -238,6 +238,47 @@ def test_internal_error_is_not_decided_not_a_pass(tmp_path: Path) -> None:
     assert claim["message"].startswith("`expect regular` not decided: the analysis stopped by an internal error")
 
 
+def _unproven_zero_model() -> str:
+    """Invented: the input enters the first rate through sin(2 x2) - 2 sin(x2) cos(x2), a
+    zero written so that the symbolic proof exceeds its size bound (a 64-term factor over
+    a symbolic denominator)."""
+    factor = " + ".join(f"{i + j + 1}*x1^{i}*x2^{j}" for i in range(8) for j in range(8))
+    return f"""plant unproven "invented: an input term that is zero by the double-angle identity"
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u in -1 .. 1
+rate x1 = x2 + u*(sin(2*x2) - 2*sin(x2)*cos(x2))*({factor})/(2 + x2^2)
+rate x2 = -x1 + u
+output y = x1
+point rest: x1 = 0, x2 = 0
+expect relative_degree(y) = 2
+expect regular
+"""
+
+
+def test_a_claim_resting_on_an_unproven_zero_is_not_decided(tmp_path: Path) -> None:
+    """The relative degree 2 holds only if L_g y is identically zero; every numeric test
+    says so, the symbolic proof does not finish within its bound: the claims that hold on
+    it are not decided, and the run fails."""
+    # the zero is real (double-angle identity, Abramowitz & Stegun 4.3.24, from memory),
+    # checked here by sympy's trigonometric expansion, a route plantlint does not take
+    x2 = sp.Symbol("x2", real=True)
+    assert sp.expand_trig(sp.sin(2 * x2) - 2 * sp.sin(x2) * sp.cos(x2)) == 0
+    (tmp_path / "unproven.plant").write_text(_unproven_zero_model(), encoding="utf-8")
+    run = cli(tmp_path, "check", "--no-cache", "--format", "json", "unproven.plant")
+    assert run.code == 1 and "Traceback" not in run.stderr
+    (file,) = run.json()["files"]
+    assert file["outcome"] == "not-decided" and file["stop"] is None
+    assert file["analysis"]["unconfirmed_zero_tests"] == 1
+    budget = [f for f in file["findings"] if f["rule"] == "analysis-budget"]
+    assert len(budget) == 1 and "L_g y vanishes identically" in budget[0]["message"]
+    claims = {f["message"].split("`")[1]: f for f in file["findings"] if f["rule"] == "expectation-failed"}
+    assert set(claims) == {"expect relative_degree(y) = 2", "expect regular"}
+    for claim in claims.values():
+        assert claim["decided"] is False
+        assert "holds only if an expression that is zero at every sampled point is zero identically" in claim["message"]
+
+
 # -- 4: display-only steps are bounded; the reproducer fails both claims -------------------
 
 def test_slow_normal_form_reproducer_fails_both_claims(tmp_path: Path) -> None:

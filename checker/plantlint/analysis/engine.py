@@ -296,6 +296,8 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
                                    point=claim.point, anchor=claim.anchor, undecided=True,
                                    hint=f"needs the stage '{claim_stage(claim)}' to complete"))
             continue
+        if not failures and a.kernel.uncertain:
+            failures = [(claim.point, _unproven_zeros(a))]
         for point, message in failures:
             if isinstance(message, Undecided):
                 out.append(finding("expectation-failed", f"`{text}` not decided: {message}",
@@ -304,6 +306,17 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
                 out.append(finding("expectation-failed", f"`{text}` does not hold: {message}",
                                    point=point, anchor=claim.anchor))
     return out, pending
+
+
+def _unproven_zeros(a: Analysis) -> Undecided:
+    """Why a claim that holds on the computed structure is still not decided: the
+    structure rests on expressions taken as zero without proof (every numeric test says
+    zero, the symbolic proof did not finish within its bound)."""
+    k = len(a.kernel.uncertain)
+    which = "an expression that is" if k == 1 else f"{k} expressions that are"
+    return Undecided(f"it holds only if {which} zero at every sampled point {'is' if k == 1 else 'are'} zero "
+                     "identically, and the symbolic proof did not finish within its bound (see the "
+                     "analysis-budget finding)")
 
 
 def claim_text(c: ClaimDecl) -> str:

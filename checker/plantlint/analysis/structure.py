@@ -138,8 +138,10 @@ def analyse_structure(kernel: Kernel) -> Structure:
         if out.unconfirmed:
             findings.append(finding(
                 "analysis-budget",
-                f"relative degree of {name} assumes {', '.join(out.unconfirmed)} vanish identically; "
-                "the numeric screening says so but symbolic confirmation was out of budget",
+                f"the relative degree of {name} assumes that {', '.join(out.unconfirmed)} "
+                f"{'vanish' if len(out.unconfirmed) > 1 else 'vanishes'} identically: it is zero at every "
+                "sampled point, but the symbolic proof did not finish within its bound; claims that rest on "
+                "it are not decided",
                 anchor=anchors.output(name),
             ))
     names = tuple(str(u) for u in plant.inputs)

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import io
 import json
+import subprocess
+import sys
 from dataclasses import replace
 from typing import Any
 
@@ -201,6 +203,26 @@ def test_json_schema_rejects_what_it_should(report_validator: Any) -> None:
         data = json.loads(json.dumps(good))
         breaks(data)
         assert not report_validator.is_valid(data)
+
+
+def test_parameter_box_records_follow_their_schema(report_validator: Any) -> None:
+    """A model with ranged parameters (the quadruple-tank fixture) reports each point's
+    verdicts over the parameter box; the schema describes them and rejects a record with
+    an unknown outcome or a missing verdict."""
+    path = REPO / "tests" / "fixtures" / "models" / "quadruple_tank.plant"
+    run = subprocess.run([sys.executable, "-m", "plantlint", "check", "--no-cache", "--format", "json", str(path)],
+                         capture_output=True, text=True, cwd=path.parent)
+    data = json.loads(run.stdout)
+    report_validator.validate(data)
+    boxes = [p["parameter_box"] for p in data["files"][0]["analysis"]["points"].values() if "parameter_box" in p]
+    assert boxes and all(b["zero_dynamics"]["outcome"] in ("proven", "violated", "undecided", "nominal_only")
+                         for b in boxes)
+    for breaks in (lambda b: b["zero_dynamics"].update(outcome="probably"), lambda b: b.pop("decoupling"),
+                   lambda b: b.update(extra=1)):
+        broken = json.loads(json.dumps(data))
+        point = next(p for p in broken["files"][0]["analysis"]["points"].values() if "parameter_box" in p)
+        breaks(point["parameter_box"])
+        assert not report_validator.is_valid(broken)
 
 
 def test_json_analysis_values_become_plain_data() -> None:

@@ -123,6 +123,9 @@ def build_parser() -> argparse.ArgumentParser:
                       "(default: plantlint-plots)")
     plot.add_argument("--format", choices=("png", "svg"), default="png")
     plot.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
+    plot.add_argument("--timeout", type=float, metavar="SECONDS",
+                      help="time budget per model, as for check (default: by profile, 20 s interactive, 120 s CI); "
+                      "a model that runs out of it is not drawn")
 
     rules = sub.add_parser("rules", help="list the rule catalogue, or show one rule",
                            description="The rule catalogue: ids, default severities and rationale.")
@@ -479,6 +482,7 @@ def _plot(args: argparse.Namespace) -> int:
         print(f"plantlint: {INSTALL_HINT}", file=sys.stderr)
         return EXIT_USAGE
     from plantlint.core.catalogue import load_catalogue
+    from plantlint.core.deadline import TimeUp, expired, within
     from plantlint.report.plots import plot_model
     from plantlint.run.config import ConfigError, load_config
     from plantlint.run.runner import UsageError, discover, read_source
@@ -492,6 +496,10 @@ def _plot(args: argparse.Namespace) -> int:
         targets = discover(args.paths, config.root, config.include, config.exclude)
     except (ConfigError, UsageError) as exc:
         return _fail(str(exc))
+    if args.timeout is not None and (not math.isfinite(args.timeout) or args.timeout <= 0):
+        return _fail("--timeout must be a positive, finite number of seconds")
+    seconds, why = (args.timeout, f"{args.timeout:g} s per model, set explicitly") if args.timeout is not None \
+        else config.budget()
     out = Path(args.out)
     status = EXIT_OK
     written: set[str] = set()
@@ -503,8 +511,16 @@ def _plot(args: argparse.Namespace) -> int:
             status = EXIT_FINDINGS
             continue
         try:
-            outcome = plot_model(source.data, args.format, states=states, point=args.point, param=args.param,
-                                 envelope_seconds=config.envelope_seconds, envelope_boxes=config.envelope_boxes)
+            with within(seconds) as step:
+                outcome = plot_model(source.data, args.format, states=states, point=args.point, param=args.param,
+                                     envelope_seconds=config.envelope_seconds, envelope_boxes=config.envelope_boxes)
+        except TimeUp as exc:
+            if not expired(exc, step):
+                raise
+            print(f"{target.display}: cannot plot: stopped at the budget of {why}; nothing drawn for this model",
+                  file=sys.stderr)
+            status = EXIT_FINDINGS
+            continue
         except (Exception, RecursionError) as exc:  # a hostile model must not end in a traceback
             print(f"{target.display}: cannot plot: internal error ({type(exc).__name__}); "
                   "`plantlint check` reports what it can", file=sys.stderr)

@@ -172,6 +172,32 @@ def test_cli_writes_png_and_svg(tmp_path: Path, capsys: pytest.CaptureFixture[st
     assert model.read_bytes() == before
 
 
+@needs_matplotlib
+def test_plot_keeps_to_the_budget_per_model(tmp_path: Path, capsys: pytest.CaptureFixture[str],
+                                            monkeypatch: pytest.MonkeyPatch) -> None:
+    """A model whose drawing does not end (a stand-in endless step) is stopped at the
+    per-model budget: said on stderr, nothing drawn, exit 1; the next model is drawn."""
+    import plantlint.report.plots as plots
+
+    slow, quick = tmp_path / "slow.plant", tmp_path / "hinge.plant"
+    slow.write_text(HINGE.replace("plant hinge", "plant slow"), encoding="utf-8")
+    quick.write_text(HINGE, encoding="utf-8")
+    real = plots.plot_model
+
+    def endless_for_slow(data: bytes, *args: object, **kwargs: object) -> object:
+        while b"plant slow" in data:  # stands in for a runaway symbolic step
+            pass
+        return real(data, *args, **kwargs)
+
+    monkeypatch.setattr(plots, "plot_model", endless_for_slow)
+    code = main(["plot", str(quick), str(slow), "--timeout", "4", "--out", str(tmp_path / "pics")])
+    err = capsys.readouterr().err
+    assert code == 1
+    assert "slow.plant: cannot plot: stopped at the budget of 4 s per model, set explicitly" in err
+    assert sorted(p.name for p in (tmp_path / "pics").iterdir()) == ["hinge-envelope.png"]
+    assert main(["plot", str(quick), "--timeout", "-1"]) == 2
+
+
 BLOCKER = """
 import sys
 class _NoMatplotlib:

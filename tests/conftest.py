@@ -65,6 +65,30 @@ def git(repo: Path, env: dict[str, str], *args: str) -> str:
     return out.stdout
 
 
+def base_and_change(home: Path, base: dict[str, str], changed: dict[str, str],
+                    moves: Sequence[tuple[str, str]] = ()) -> tuple[Path, dict[str, str]]:
+    """A git repository under ``home`` whose ``plants/`` folder holds ``base`` (committed
+    and tagged ``base``), then a second commit that writes ``changed`` and makes ``moves``
+    (``git mv`` pairs, paths inside ``plants/``). Returns the repository and its git
+    environment."""
+    repo = home / "repo"
+    (repo / "plants").mkdir(parents=True)
+    env = git_env(home)
+    git(repo, env, "init", "-q", "-b", "main")
+    for name, text in base.items():
+        (repo / "plants" / name).write_text(text, encoding="utf-8")
+    git(repo, env, "add", "plants")
+    git(repo, env, "commit", "-q", "-m", "base models")
+    git(repo, env, "tag", "base")
+    for name, text in changed.items():
+        (repo / "plants" / name).write_text(text, encoding="utf-8")
+    for old, new in moves:
+        git(repo, env, "mv", f"plants/{old}", f"plants/{new}")
+    git(repo, env, "add", "plants")
+    git(repo, env, "commit", "-q", "-m", "edit models")
+    return repo, env
+
+
 def run_on_terminal(argv: Sequence[str], cwd: Path, env: dict[str, str], *,
                     stream: str = "stdout") -> tuple[int, bytes, bytes]:
     """Run ``argv`` with ``stream`` ("stdout" or "stderr") on a pseudo-terminal.

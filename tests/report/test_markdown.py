@@ -18,7 +18,7 @@ import numpy as np
 import pytest
 from scipy import signal
 
-from conftest import Run, conveyor_tail, git, git_env
+from conftest import Run, base_and_change, conveyor_tail
 
 # rd: y = x1 with a chain of 2 (base) or 3 (changed) integrators -> relative degree 2 -> 3
 RD_BASE = """# Invented chain for the markdown tests.
@@ -94,22 +94,11 @@ def _plantlint(cwd: Path, env: dict[str, str], *args: str) -> Run:
 @pytest.fixture(scope="module")
 def repo(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, dict[str, str], Path]:
     home = tmp_path_factory.mktemp("markdown")
-    repo = home / "repo"
-    (repo / "plants").mkdir(parents=True)
-    env = git_env(home)
-    git(repo, env, "init", "-q", "-b", "main")
     base = {"rd.plant": RD_BASE, "env.plant": ENV_BASE, "mp.plant": MP_BASE, "waiver.plant": WAIVE_BASE,
             "fixme.plant": FIX_BASE, "steady.plant": STEADY}
     changed = {"rd.plant": RD_CHANGED, "env.plant": ENV_CHANGED, "mp.plant": MP_CHANGED,
                "waiver.plant": WAIVE_CHANGED, "fixme.plant": FIX_CHANGED}
-    for name, text in base.items():
-        (repo / "plants" / name).write_text(text, encoding="utf-8")
-    git(repo, env, "add", "plants")
-    git(repo, env, "commit", "-q", "-m", "base")
-    git(repo, env, "tag", "base")
-    for name, text in changed.items():
-        (repo / "plants" / name).write_text(text, encoding="utf-8")
-    git(repo, env, "commit", "-q", "-am", "edits")
+    repo, env = base_and_change(home, base, changed)
     return repo, env, home / "cache"
 
 

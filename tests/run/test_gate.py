@@ -29,7 +29,7 @@ from typing import Any
 import numpy as np
 import pytest
 
-from conftest import Run, conveyor_tail, git, git_env
+from conftest import Run, base_and_change, conveyor_tail, git, git_env
 
 from plantlint.report.formats.base import change_text
 from plantlint.run.gate import structure_changes
@@ -86,20 +86,7 @@ class Scenario:
 @pytest.fixture(scope="module")
 def scenario(tmp_path_factory: pytest.TempPathFactory) -> Scenario:
     home = tmp_path_factory.mktemp("gate")
-    repo = home / "repo"
-    (repo / "plants").mkdir(parents=True)
-    env = git_env(home)
-    git(repo, env, "init", "-q", "-b", "main")
-    for name, text in BASE.items():
-        (repo / "plants" / name).write_text(text, encoding="utf-8")
-    git(repo, env, "add", "plants")
-    git(repo, env, "commit", "-q", "-m", "base models")
-    git(repo, env, "tag", "base")
-    for name, text in CHANGED.items():
-        (repo / "plants" / name).write_text(text, encoding="utf-8")
-    git(repo, env, "mv", "plants/hopper.plant", "plants/renamed.plant")
-    git(repo, env, "add", "plants")
-    git(repo, env, "commit", "-q", "-m", "edit models")
+    repo, env = base_and_change(home, BASE, CHANGED, moves=[("hopper.plant", "renamed.plant")])
     before = git(repo, env, "status", "--porcelain", "--ignored")
     run = plantlint(repo, env, "check", "--since", "base", "--format", "json", "--cache-dir", str(home / "cache"),
                     "plants")

@@ -308,3 +308,25 @@ def test_workers_get_the_analysis_settings_and_the_cache_key_follows_them() -> N
             for change in ({}, {"envelope_seconds": 4.0}, {"envelope_boxes": 7}, {"point_tolerance": 1e-6})}
     assert len(keys) == 4
     assert Config().analysis_key() == "env=5.0/20000 tol=0.0"  # the key text of earlier versions: old entries stay valid
+
+
+def test_the_cache_key_follows_the_installed_code() -> None:
+    """An edited module, grammar or rule file (an upgrade, or a developer's source tree
+    under the same version number) never reuses results of the code before it."""
+    from plantlint.core.resources import data_path
+    from plantlint.run import runner
+
+    model = b"plant p\nstate x in -1 .. 1\ninput u\nrate x = -x + u\noutput y = x\n"
+    runner.code_fingerprint.cache_clear()
+    before = runner.Cache(None, "s").key(model)
+    assert runner.Cache(None, "s").key(model) == before  # stable while nothing changes
+    for changed in (data_path("rules") / "model.toml", Path(runner.__file__)):
+        st = changed.stat()
+        try:
+            os.utime(changed, ns=(st.st_atime_ns, st.st_mtime_ns + 1_000_000_000))
+            runner.code_fingerprint.cache_clear()
+            assert runner.Cache(None, "s").key(model) != before, changed.name
+        finally:
+            os.utime(changed, ns=(st.st_atime_ns, st.st_mtime_ns))
+            runner.code_fingerprint.cache_clear()
+    assert runner.Cache(None, "s").key(model) == before

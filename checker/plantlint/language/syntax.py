@@ -320,6 +320,9 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
                            anchor=anchors.problem(f"incomplete statement before {keyword}"))
         span = _span(tok)
         value = str(tok)
+        misordered = _misordered_range_and_unit(tok, consumed)
+        if misordered is not None:
+            return _syntax(misordered, span, anchor=anchors.problem("range and unit order"))
         expected_keywords = [k for k in STATEMENT_KEYWORDS if k.upper() in exc.expected]
         if tok.type in ("NAME", "RULE_ID") and value not in RESERVED and expected_keywords \
                 and (_starts_line(tok, text) or not _expects_operand(exc.expected)):
@@ -394,6 +397,26 @@ def _incomplete_before_keyword(tok: Token, consumed: list[Token], text: str) -> 
             return (value, before) if before is not None else None
         if keyword_typed:
             return None  # reached the start of the statement the parser was reading
+    return None
+
+
+#: Where the unit goes, by statement (docs/language.md): a parameter's value and range come
+#: before its unit; a state's or input's unit comes before its range.
+_UNIT_ORDER = {
+    "param": "the range of a parameter comes before its unit: `param NAME = VALUE in LO .. HI [UNIT]`",
+    "state": "the unit of a state comes before its range: `state NAME [UNIT] in LO .. HI`",
+    "input": "the unit of an input comes before its range: `input NAME [UNIT] in LO .. HI`",
+}
+
+
+def _misordered_range_and_unit(tok: Token, consumed: list[Token]) -> str | None:
+    """The message for a range and a unit written in the other order (``param k = 80 [N/m]
+    in 60 .. 100``, ``state x in 0 .. 1 [m]``), or None."""
+    keyword = next((str(t) for t in consumed if t.type == str(t).upper() and str(t) in STATEMENT_KEYWORDS), None)
+    if keyword == "param" and tok.type == "IN" and consumed and consumed[0].type == "UNIT":
+        return _UNIT_ORDER["param"]
+    if keyword in ("state", "input") and tok.type == "UNIT" and any(t.type == "DOTDOT" for t in consumed):
+        return _UNIT_ORDER[keyword]
     return None
 
 

@@ -29,6 +29,7 @@ import traceback
 import re
 from dataclasses import dataclass, field
 from fnmatch import fnmatch
+from functools import lru_cache
 from multiprocessing.connection import Connection, wait
 from pathlib import Path
 from typing import Any, Callable
@@ -38,6 +39,7 @@ from plantlint.language.units import UNITS_VERSION  # light: pint is imported on
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import FileReport, Finding, Severity, Span
+from plantlint.core.resources import data_path
 from plantlint.core.limits import MAX_BYTES  # one definition of the input limits; no sympy
 from plantlint.analysis.stages import STAGES  # light: the stage names only
 from plantlint.core.settings import AnalysisSettings
@@ -244,7 +246,8 @@ class Cache:
 
     def key(self, data: bytes) -> str:
         h = hashlib.sha256()
-        h.update(f"plantlint {__version__} cache {CACHE_FORMAT} units {UNITS_VERSION} {self.settings}\0".encode())
+        h.update(f"plantlint {__version__} cache {CACHE_FORMAT} units {UNITS_VERSION} code {code_fingerprint()} "
+                 f"{self.settings}\0".encode())
         h.update(data)
         return h.hexdigest()
 
@@ -278,6 +281,24 @@ class Cache:
             os.replace(tmp, target)
         except OSError:
             pass  # a read-only tree just runs uncached
+
+
+@lru_cache(maxsize=1)
+def code_fingerprint() -> str:
+    """The installed code and data as they are now (name, size and modification time of
+    every module, the grammar and the rule files): an upgrade or an edited source tree
+    never reuses results of other code, even under the same version number."""
+    package = Path(__file__).resolve().parents[1]
+    files = [*package.rglob("*.py"), *package.rglob("*.json"), *(data_path("grammar").glob("*.lark")),
+             *(data_path("rules").glob("*.toml"))]
+    h = hashlib.sha256()
+    for f in sorted(files):
+        try:
+            st = f.stat()
+        except OSError:
+            continue
+        h.update(f"{f.name} {st.st_size} {st.st_mtime_ns}\0".encode())
+    return h.hexdigest()[:16]
 
 
 PROJECT_FOLDER = ".plantlint"  # everything plantlint writes lives under this one folder

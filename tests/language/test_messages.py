@@ -182,3 +182,15 @@ def test_expression_mentions_and_problems_come_last_first() -> None:
     assert expr is not None
     assert [n.name for n in expr.names] == ["c", "b", "a"]
     assert [c.function for c in expr.calls] == ["cos", "sin"]
+
+
+@pytest.mark.parametrize("line, column, message", [
+    ("param k = 80 [N*m/rad] in 60 .. 100", 24,
+     "the range of a parameter comes before its unit: `param NAME = VALUE in LO .. HI [UNIT]`"),
+    ("state z in 0 .. 1 [m]", 19, "the unit of a state comes before its range: `state NAME [UNIT] in LO .. HI`"),
+    ("input w in -1 .. 1 [N]", 20, "the unit of an input comes before its range: `input NAME [UNIT] in LO .. HI`"),
+])
+def test_range_and_unit_in_the_wrong_order_say_the_right_order(line: str, column: int, message: str) -> None:
+    """The order is the language reference's (docs/language.md, statements table)."""
+    (f,) = parse_text(f"plant p\n{line}\nstate x in -1 .. 1\ninput u\nrate x = u\n").findings
+    assert (f.rule, f.message, f.span.line, f.span.column) == ("syntax", message, 2, column)

@@ -517,3 +517,17 @@ def test_waiver_changes_under_since_are_worded_as_waivers() -> None:
     report.files[0].structure_changes = [{"what": "waiver unused-name", "before": None, "after": "spare"}]
     assert 'models/demo.plant: note: changed since main: waiver added: unused-name: "spare"' in \
         _render("lines", report).splitlines()
+
+
+def test_formats_are_loaded_when_asked_for() -> None:
+    """JSON, SARIF and the one-line format never load the terminal library (rich); the
+    text format does. A fresh interpreter, so that nothing else has imported it."""
+    code = ("import io, sys\n"
+            "from plantlint.core.findings import Report\n"
+            "from plantlint.report.formats import get_formatter\n"
+            "for name in sys.argv[1:]:\n"
+            "    get_formatter(name).render(Report([], '0'), io.StringIO(), color=False)\n"
+            "print('rich' in sys.modules)\n")
+    for names, loaded in ((["json", "sarif", "lines"], "False"), (["text"], "True")):
+        out = subprocess.run([sys.executable, "-c", code, *names], capture_output=True, text=True, check=True)
+        assert out.stdout.strip() == loaded, names

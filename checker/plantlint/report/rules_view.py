@@ -12,12 +12,7 @@ from rich.text import Text
 
 from plantlint.core.catalogue import Catalogue, Rule
 from plantlint.core.findings import Severity
-
-SEVERITY_STYLE: dict[Severity, str] = {
-    Severity.ERROR: "bold red",
-    Severity.WARNING: "bold yellow",
-    Severity.NOTE: "bold cyan",
-}
+from plantlint.report.look import PAGE_SECTIONS, SEVERITY_STYLE
 
 
 def render_rules(catalogue: Catalogue, rule_id: str | None, console: Console) -> None:
@@ -48,8 +43,6 @@ def _rules_table(catalogue: Catalogue) -> Table:
 
 
 #: Section headings of one rule's page, in the order they are shown.
-PAGE_SECTIONS: tuple[str, ...] = ("What it protects", "When it fires", "A model that fails it",
-                                  "A model that passes it", "Sources")
 
 
 def _rule_page(rule: Rule) -> Group:

@@ -1,18 +1,45 @@
-"""Output formats, picked by name (``--format``) from one registry."""
+"""Output formats, picked by name (``--format``) from one registry.
+
+A format's module is imported when the format is first asked for, so a run that writes
+JSON or SARIF never loads the terminal library."""
 
 from __future__ import annotations
 
-from plantlint.report.formats.base import Formatter
-from plantlint.report.formats.lines import LinesFormatter
-from plantlint.report.formats.markdown import MarkdownFormatter
-from plantlint.report.formats.json_report import JsonFormatter
-from plantlint.report.formats.sarif import SarifFormatter
-from plantlint.report.formats.text import TextFormatter
+import importlib
+from collections.abc import Iterator, Mapping
 
-FORMATS: dict[str, Formatter] = {
-    formatter.name: formatter
-    for formatter in (TextFormatter(), LinesFormatter(), JsonFormatter(), SarifFormatter(), MarkdownFormatter())
+from plantlint.report.formats.base import Formatter
+
+#: name -> (module, class), in the order of ``--format``'s choices
+_WHERE: dict[str, tuple[str, str]] = {
+    "text": ("plantlint.report.formats.text", "TextFormatter"),
+    "lines": ("plantlint.report.formats.lines", "LinesFormatter"),
+    "json": ("plantlint.report.formats.json_report", "JsonFormatter"),
+    "sarif": ("plantlint.report.formats.sarif", "SarifFormatter"),
+    "markdown": ("plantlint.report.formats.markdown", "MarkdownFormatter"),
 }
+
+
+class _Formats(Mapping[str, Formatter]):
+    """The registry: one formatter per name, made on first use."""
+
+    def __init__(self) -> None:
+        self._made: dict[str, Formatter] = {}
+
+    def __getitem__(self, name: str) -> Formatter:
+        if name not in self._made:
+            module, cls = _WHERE[name]
+            self._made[name] = getattr(importlib.import_module(module), cls)()
+        return self._made[name]
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(_WHERE)
+
+    def __len__(self) -> int:
+        return len(_WHERE)
+
+
+FORMATS: Mapping[str, Formatter] = _Formats()
 
 
 def get_formatter(name: str) -> Formatter:

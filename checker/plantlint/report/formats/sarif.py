@@ -13,7 +13,7 @@ from typing import Any, Iterable, TextIO
 from urllib.parse import quote
 
 from plantlint.core.catalogue import Catalogue, Rule, load_catalogue
-from plantlint.report.rules_view import PAGE_SECTIONS
+from plantlint.report.look import PAGE_SECTIONS
 from plantlint.core.findings import Adjustment, Finding, Report, Span
 from plantlint.report.formats.base import baseline_of, findings_in_order
 

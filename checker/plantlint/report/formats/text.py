@@ -18,7 +18,7 @@ from rich.cells import cell_len
 from rich.console import Console
 from rich.text import Text
 
-from plantlint.report.rules_view import SEVERITY_STYLE
+from plantlint.report.look import SEVERITY_STYLE
 from plantlint.core.findings import FileReport, Finding, Report, Span
 from plantlint.report.formats.base import (
     adjustment_text,

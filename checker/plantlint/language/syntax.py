@@ -9,13 +9,17 @@ into a ``syntax`` finding before it can cost time or memory.
 
 from __future__ import annotations
 
+import hashlib
+import io
 import re
 from dataclasses import dataclass, field
 from fractions import Fraction
 from difflib import get_close_matches
 from functools import lru_cache
+from pathlib import Path
 from typing import Callable, Iterator, Sequence, TypeVar, Union
 
+import lark
 import sympy as sp
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
@@ -124,10 +128,44 @@ class Parsed:
     findings: list[Finding] = field(default_factory=list)
 
 
+#: The LALR tables of grammar/plant.lark, saved by tools/make_parser_tables.py (lark's own
+#: ``Lark.save``) next to this module: loading them takes a few milliseconds where building
+#: them takes about 70. They belong to the package like its code and are read only when
+#: their header names this lark version and this grammar; otherwise the tables are built.
+TABLES = Path(__file__).with_name("plant.lalr")
+
+
+def build_parser(grammar: str) -> Lark:
+    """The parser, built from the grammar's text."""
+    return Lark(grammar, parser="lalr", lexer="contextual", propagate_positions=True, maybe_placeholders=True)
+
+
+def tables_header(grammar: str) -> bytes:
+    """The first line of the saved tables: what they were built from."""
+    digest = hashlib.sha256(grammar.encode("utf-8")).hexdigest()
+    return f"plantlint LALR tables; lark {lark.__version__}; grammar sha256 {digest}\n".encode("ascii")
+
+
+def saved_parser(grammar: str, path: Path = TABLES) -> Lark | None:
+    """The parser from the saved tables, or None when they are missing or were made from
+    another grammar or lark version."""
+    header = tables_header(grammar)
+    try:
+        data = path.read_bytes()
+    except OSError:
+        return None
+    if not data.startswith(header):
+        return None
+    try:
+        return Lark.load(io.BytesIO(data[len(header):]))
+    except Exception:  # noqa: BLE001 - unreadable tables are rebuilt, never trusted
+        return None
+
+
 @lru_cache(maxsize=1)
 def parser() -> Lark:
     grammar = (data_path("grammar") / "plant.lark").read_text(encoding="utf-8")
-    return Lark(grammar, parser="lalr", lexer="contextual", propagate_positions=True, maybe_placeholders=True)
+    return saved_parser(grammar) or build_parser(grammar)
 
 
 def symbol(name: str) -> sp.Symbol:

@@ -1,4 +1,4 @@
-"""The shipped unit table (plantlint/language/unit_table.py, written by
+"""The shipped unit table (plantlint/language/unit_table.json, written by
 tools/make_unit_table.py): the names a model commonly declares, read without pint.
 
 The outside reference for every entry is pint itself (its default registry, reached
@@ -21,12 +21,14 @@ import pytest
 
 from plantlint.language import units
 from plantlint.language.syntax import parse_text
-from plantlint.language.unit_table import UNITS
 from plantlint.language.units import UnitTextError, parse_unit_text, unit_names
 from plantlint.run.pipeline import read_model
 from conftest import FIXTURES, REPO
 
 TOOL = REPO / "tools" / "make_unit_table.py"
+TABLE = REPO / "checker" / "plantlint" / "language" / "unit_table.json"
+UNITS = {name: (factor, tuple((d, e) for d, e in dims)) for name, (factor, dims, _) in
+         json.loads(TABLE.read_text(encoding="utf-8"))["units"].items()}
 
 
 def _tool():
@@ -77,6 +79,7 @@ def test_prefixed_entries_have_the_si_prefix_factors(unit: str) -> None:
 def test_the_kilogram_is_the_prefixed_gram() -> None:
     # SI Brochure 9th ed. section 3: prefixes for the unit of mass attach to the gram
     assert UNITS["kg"] == (1.0, (("[mass]", 1),))
+    assert all(isinstance(factor, float) for factor, _ in UNITS.values())
     assert math.isclose(UNITS["mg"][0], 1e-6, rel_tol=1e-12)
 
 
@@ -90,7 +93,7 @@ def test_a_prefixed_symbol_pint_reads_otherwise_is_left_to_pint() -> None:
 # -- (b) the table is reproducible ----------------------------------------------------------------
 
 def test_the_generator_gives_the_shipped_table() -> None:
-    shipped = (REPO / "checker" / "plantlint" / "language" / "unit_table.py").read_text(encoding="utf-8")
+    shipped = TABLE.read_text(encoding="utf-8")
     assert _tool().render() == shipped, "run: python tools/make_unit_table.py"
 
 

@@ -306,7 +306,7 @@ print(json.dumps({"parent": parent, "worker": "pint" in sys.modules, "code": cod
 """
 
 
-# no units; units all in the shipped table (unit_table.py); one name only pint knows (a plural)
+# no units; units all in the shipped table (unit_table.json); one name only pint knows (a plural)
 @pytest.mark.parametrize(("variant", "loaded"), [("none", False), ("tabled", False), ("untabled", True)])
 def test_pint_is_imported_only_when_units_are_declared(tmp_path: Path, variant: str, loaded: bool) -> None:
     text = {"none": re.sub(r"\[[^\]]*\]", "", PENDULUM), "tabled": PENDULUM,

@@ -18,6 +18,7 @@ import shutil
 import subprocess
 import sys
 import sysconfig
+import zipfile
 from collections.abc import Callable
 from pathlib import Path
 
@@ -453,6 +454,8 @@ def test_wheel_installs_and_finds_its_grammar_and_rules(tmp_path: Path) -> None:
                             "-q", "-w", str(dist), str(PROJECT)], capture_output=True, text=True, timeout=300)
     assert built.returncode == 0, built.stdout + built.stderr
     (wheel,) = dist.glob("plantlint-*.whl")
+    with zipfile.ZipFile(wheel) as built_wheel:  # the unit table ships (units are read without pint)
+        assert "plantlint/language/unit_table.json" in built_wheel.namelist()
     venv = tmp_path / "venv"
     subprocess.run([sys.executable, "-m", "venv", str(venv)], check=True, timeout=300)  # ensurepip: offline
     python = venv / "bin" / "python"

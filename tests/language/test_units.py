@@ -290,7 +290,7 @@ def test_example_repository_units() -> None:
     assert found == [("rinse_tanks.plant", "unit-mismatch", 22, 18)]
 
 
-# -- pint stays out of unit-free runs ---------------------------------------------------------
+# -- pint stays out of runs without units or with tabled units --------------------------------
 
 LAZY_SCRIPT = """
 import json, sys
@@ -306,9 +306,11 @@ print(json.dumps({"parent": parent, "worker": "pint" in sys.modules, "code": cod
 """
 
 
-@pytest.mark.parametrize(("units_declared", "loaded"), [(False, False), (True, True)])
-def test_pint_is_imported_only_when_units_are_declared(tmp_path: Path, units_declared: bool, loaded: bool) -> None:
-    text = PENDULUM if units_declared else re.sub(r"\[[^\]]*\]", "", PENDULUM)
+# no units; units all in the shipped table (unit_table.json); one name only pint knows (a plural)
+@pytest.mark.parametrize(("variant", "loaded"), [("none", False), ("tabled", False), ("untabled", True)])
+def test_pint_is_imported_only_when_units_are_declared(tmp_path: Path, variant: str, loaded: bool) -> None:
+    text = {"none": re.sub(r"\[[^\]]*\]", "", PENDULUM), "tabled": PENDULUM,
+            "untabled": PENDULUM.replace("output tip [m]", "output tip [meters]")}[variant]
     model = tmp_path / "pendulum.plant"
     model.write_text(text, encoding="utf-8")
     out = subprocess.run([sys.executable, "-c", LAZY_SCRIPT, str(model), str(tmp_path / "report.json")],

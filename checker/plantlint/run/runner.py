@@ -423,8 +423,8 @@ def analyse_all(
     parser()  # build the LALR tables once, not in every worker
     from plantlint.language import units
 
-    if any(units.declares_units(d) for d in datas):
-        units.preload()  # pint's registry once (~0.5 s), not in every worker
+    if any(units.needs_pint(d) for d in datas):
+        units.preload()  # pint's registry once (~0.7 s), not in every worker: only for unit names not in the table
 
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)

@@ -93,8 +93,12 @@ def test_a_prefixed_symbol_pint_reads_otherwise_is_left_to_pint() -> None:
 # -- (b) the table is reproducible ----------------------------------------------------------------
 
 def test_the_generator_gives_the_shipped_table() -> None:
-    shipped = TABLE.read_text(encoding="utf-8")
-    assert _tool().render() == shipped, "run: python tools/make_unit_table.py"
+    """The same names and meanings (the pint release it was made with may differ from the
+    installed one: the test above holds every entry against the installed pint)."""
+    shipped = json.loads(TABLE.read_text(encoding="utf-8"))
+    made = json.loads(_tool().render())
+    shipped.pop("pint_version"), made.pop("pint_version")
+    assert made == shipped, "run: python tools/make_unit_table.py"
 
 
 def _declared_names(path: Path) -> set[str]:

@@ -194,13 +194,12 @@ class ForwardProgram:
         value = self._values[r]
         width = len(self._deps[r])
         spreads = [self._spread(r, a) for a in args]
-        vals: list[arb] = []  # the value registers, shared with the value rules
 
         if op == "var":
             one = (arb(1),)
             return lambda regs, balls: (balls[data], one)
-        if not args:  # const, pi: no derivatives
-            return lambda regs, balls: (value(vals, balls), ())
+        if not args:  # const, pi: read no register, have no derivatives
+            return lambda regs, balls: (value([], balls), ())
         if op == "add":
             def add(regs: list[Dual], balls: Sequence[arb]) -> Dual:
                 v0, d0 = regs[args[0]]

@@ -434,3 +434,20 @@ def test_envelope_proof_forms_no_symbolic_derivative(monkeypatch) -> None:
     grids = np.meshgrid(*[np.linspace(float(box[v][0]), float(box[v][1]), 9) for v in syms])
     values = sp.lambdify(syms, det, "numpy")(*grids)
     assert 0 < env.margin <= float(np.min(np.abs(values)))
+
+
+def test_domain_conditions_render_their_description_only_when_shown(monkeypatch) -> None:
+    """The readable (factored) form of a condition is built when a message shows it, not before."""
+    import plantlint.analysis.structure as structure
+
+    shown: list[sp.Expr] = []
+    real = structure.readable
+    monkeypatch.setattr(structure, "readable", lambda e: shown.append(e) or real(e))
+    conds = structure.domain_conditions(1 / (x1**2 - 1) + sp.sqrt(x2 + 2) + sp.log(x1 + 3), {x1, x2})
+    assert {(kind, e) for kind, e, _ in conds} == {("nonzero", x1**2 - 1), ("positive", x2 + 2), ("positive", x1 + 3)}
+    assert shown == []
+    words = {str(what) for _, _, what in conds}
+    assert len(shown) == 3
+    assert words == {"denominator " + real(x1**2 - 1), "square-root argument " + real(x2 + 2),
+                     "log argument " + real(x1 + 3)}
+    assert "denominator -1 + x1^2" in words

@@ -381,3 +381,73 @@ def test_pairing_matrix_is_anti_triangular_with_nonzero_anti_diagonal() -> None:
         D = np.array([[float(e) for e in d.xreplace(point)] for d in dl])
         assert np.linalg.matrix_rank(D) == r
     assert len(degrees) >= 15 and len(set(degrees)) >= 2
+
+
+def _kernel_of(path) -> Kernel:
+    from plantlint.run.pipeline import read_model
+
+    model, _ = read_model(path.read_bytes())
+    return Kernel(model.plant())
+
+
+def test_pendulum_chain_of_8_with_a_product_of_cosines_stays_proven_with_a_tight_margin() -> None:
+    """The 8-pendulum chain (benchmarks/generate.py) has the decoupling term
+    c * prod_i cos(q_i - q_i+1). On the envelope |q_i - q_i+1| <= 1 < pi/2, so every
+    factor is at least cos(1) (math.cos), reached at a corner: the true minimum of
+    |term| is c * cos(1)^7. The certified margin is a lower bound of it and, with the
+    period-aware cosine enclosures, within 1e-6 of it."""
+    from conftest import REPO
+    import math
+
+    k = _kernel_of(REPO / "benchmarks" / "results" / "models" / "pendulum_chain_8.plant")
+    s = analyse_structure(k)
+    (term,) = list(s.decoupling)
+    c, parts = term.as_coeff_mul()
+    assert len(parts) == 7 and all(isinstance(p, sp.cos) for p in parts)
+    env = certify_envelope(k, s)
+    assert env.regular is True and not env.findings
+    true_min = float(c) * math.cos(1) ** 7
+    assert true_min * (1 - 1e-6) <= env.margin <= true_min * (1 + 1e-12)
+
+
+def test_envelope_proof_forms_no_symbolic_derivative(monkeypatch) -> None:
+    """The centred form's gradients come from interval forward mode on the
+    expression graph, not from sympy.diff: the palletizer arm (two-link arm, whose
+    determinant proof uses the centred form) is certified with Expr.diff disabled,
+    and the margin is a lower bound of min |det A| sampled with numpy on a grid."""
+    from conftest import REPO
+    from sympy.core.expr import Expr
+
+    k = _kernel_of(REPO / "example_repo" / "models" / "handling" / "palletizer_arm.plant")
+    s = analyse_structure(k)
+
+    def refuse(self, *args, **kwargs):
+        raise AssertionError("sympy differentiation inside the envelope proof")
+
+    monkeypatch.setattr(Expr, "diff", refuse)
+    env = certify_envelope(k, s)
+    monkeypatch.undo()
+    assert env.regular is True and env.boxes_examined > 1
+    det = sp.Matrix(s.decoupling).det()
+    syms = sorted(det.free_symbols, key=str)
+    box = {**k.plant.state_box, **k.plant.param_box}
+    grids = np.meshgrid(*[np.linspace(float(box[v][0]), float(box[v][1]), 9) for v in syms])
+    values = sp.lambdify(syms, det, "numpy")(*grids)
+    assert 0 < env.margin <= float(np.min(np.abs(values)))
+
+
+def test_domain_conditions_render_their_description_only_when_shown(monkeypatch) -> None:
+    """The readable (factored) form of a condition is built when a message shows it, not before."""
+    import plantlint.analysis.structure as structure
+
+    shown: list[sp.Expr] = []
+    real = structure.readable
+    monkeypatch.setattr(structure, "readable", lambda e: shown.append(e) or real(e))
+    conds = structure.domain_conditions(1 / (x1**2 - 1) + sp.sqrt(x2 + 2) + sp.log(x1 + 3), {x1, x2})
+    assert {(kind, e) for kind, e, _ in conds} == {("nonzero", x1**2 - 1), ("positive", x2 + 2), ("positive", x1 + 3)}
+    assert shown == []
+    words = {str(what) for _, _, what in conds}
+    assert len(shown) == 3
+    assert words == {"denominator " + real(x1**2 - 1), "square-root argument " + real(x2 + 2),
+                     "log argument " + real(x1 + 3)}
+    assert "denominator -1 + x1^2" in words

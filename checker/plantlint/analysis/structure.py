@@ -364,7 +364,20 @@ def _point_state(kernel: Kernel, e: sp.Expr, point: dict[sp.Symbol, sp.Expr]) ->
 
 
 # -- over the envelope ----------------------------------------------------------------------
-DomainCondition = tuple[str, sp.Expr, str]  # (kind: nonzero | positive, expr, what)
+@dataclass(frozen=True)
+class Described:
+    """What a domain condition is about, in words: ``template`` with the readable
+    form of ``parts`` (``{}`` each). Rendered only when a message shows it (str()),
+    so a condition that is proven never pays for sympy's factoring."""
+
+    template: str
+    parts: tuple[sp.Expr, ...]
+
+    def __str__(self) -> str:
+        return self.template.format(*(readable(p) for p in self.parts))
+
+
+DomainCondition = tuple[str, sp.Expr, Described]  # (kind: nonzero | positive, expr, what)
 
 
 def domain_conditions(expr: sp.Expr, symbols: set[sp.Symbol]) -> list[DomainCondition]:
@@ -381,22 +394,22 @@ def domain_conditions(expr: sp.Expr, symbols: set[sp.Symbol]) -> list[DomainCond
                 continue
             if e.is_Rational and not e.is_Integer:
                 what = "square-root argument" if e.q == 2 else "fractional-power base"
-                out.append(("positive", base, f"{what} {readable(base)}"))
+                out.append(("positive", base, Described(what + " {}", (base,))))
             elif e.is_negative:
-                out.append(("nonzero", base, f"denominator {readable(base)}"))
+                out.append(("nonzero", base, Described("denominator {}", (base,))))
             elif not e.is_Rational:
-                out.append(("positive", base, f"power base {readable(base)}"))
+                out.append(("positive", base, Described("power base {}", (base,))))
         elif isinstance(node, sp.log):
-            out.append(("positive", node.args[0], f"log argument {readable(node.args[0])}"))
+            out.append(("positive", node.args[0], Described("log argument {}", (node.args[0],))))
         elif isinstance(node, (sp.asin, sp.acos)):
             a = node.args[0]
-            out.append(("positive", 1 - a, f"{type(node).__name__} argument {readable(a)} (1 or above)"))
-            out.append(("positive", 1 + a, f"{type(node).__name__} argument {readable(a)} (-1 or below)"))
+            out.append(("positive", 1 - a, Described(f"{type(node).__name__} argument {{}} (1 or above)", (a,))))
+            out.append(("positive", 1 + a, Described(f"{type(node).__name__} argument {{}} (-1 or below)", (a,))))
         elif isinstance(node, sp.tan):
-            out.append(("nonzero", sp.cos(node.args[0]), f"tan argument {readable(node.args[0])} (at a pole)"))
+            out.append(("nonzero", sp.cos(node.args[0]), Described("tan argument {} (at a pole)", (node.args[0],))))
         elif isinstance(node, sp.atan2):
             y, x = node.args
-            out.append(("nonzero", x**2 + y**2, f"atan2 arguments {readable(y)}, {readable(x)} (both zero)"))
+            out.append(("nonzero", x**2 + y**2, Described("atan2 arguments {}, {} (both zero)", (y, x))))
     return out
 
 

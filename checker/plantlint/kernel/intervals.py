@@ -15,8 +15,10 @@ on a box of states and ranged parameters?". Ball arithmetic answers it soundly:
 * when the budget (boxes, seconds) runs out, the open boxes are reported as
   undecided, never rounded to a verdict.
 
-Enclosures use :class:`plantlint.kernel.balls.Program`, whose integer powers are tight
-over wide balls (the lower end of an even power is exactly 0).
+Enclosures and gradient enclosures come from one straight-line program run in
+interval forward mode (:mod:`plantlint.kernel.forward`), whose integer powers and
+elementary functions are tight over wide balls (the lower end of an even power is
+exactly 0; sin and cos are period-aware); no symbolic derivative is formed.
 """
 
 from __future__ import annotations
@@ -32,7 +34,8 @@ import sympy as sp
 from flint import arb
 
 from plantlint.kernel import decision as zd
-from plantlint.kernel.balls import Program, UnsupportedExpression, to_arb
+from plantlint.kernel.balls import UnsupportedExpression, to_arb
+from plantlint.kernel.forward import ForwardProgram
 
 Interval = tuple[float, float]
 FloatBox = tuple[Interval, ...]
@@ -75,13 +78,6 @@ class EnvelopeVerdict:
     undecided_count: int = 0
     witness_exact: bool = False  # the expression is exactly zero at the witness (else: bracketed)
     seconds: float = 0.0
-
-
-class BoxProgram(Program):
-    """A :class:`Program` run at the box precision by default."""
-
-    def run(self, values: Sequence[arb], prec: int = BOX_PREC) -> list[arb]:
-        return super().run(values, prec)
 
 
 # -- boxes ----------------------------------------------------------------------------
@@ -147,46 +143,44 @@ def _corners(box: FloatBox) -> list[tuple[float, ...]]:
 
 # -- evaluation over boxes and at points -----------------------------------------------
 class _Evaluator:
-    """Enclosures of a list of expressions over boxes, and balls at points."""
+    """Enclosures of a list of expressions over boxes, and balls at points.
+
+    One straight-line program (:class:`plantlint.kernel.forward.ForwardProgram`)
+    serves all three: values at a point, the natural enclosure over a box, and,
+    for the centred form, the natural enclosure together with the gradient
+    enclosure (interval forward mode: no symbolic derivative is formed).
+    """
 
     def __init__(self, exprs: Sequence[sp.Expr], symbols: Sequence[sp.Symbol]):
         self.exprs = list(exprs)
         self.symbols = tuple(symbols)
-        self.program = BoxProgram(self.exprs, self.symbols)
-        self._gradient: BoxProgram | None = None
+        self.program = ForwardProgram(self.exprs, self.symbols)
 
-    def gradient(self) -> BoxProgram:
-        if self._gradient is None:
-            self._gradient = BoxProgram(
-                [sp.diff(e, s) for e in self.exprs for s in self.symbols], self.symbols
-            )
-        return self._gradient
+    def natural(self, box: FloatBox) -> list[arb]:
+        return self.program.values(_cover(box), BOX_PREC)
 
     def enclose(self, box: FloatBox, centred: bool) -> list[arb]:
         cover = _cover(box)
-        natural = self.program.run(cover)
         if not centred or not self.symbols:
-            return natural
+            return self.program.values(cover, BOX_PREC)
         c = _centre(box)
-        at_c = self.program.run([arb(v) for v in c])
-        grad = self.gradient().run(cover)
-        d = len(self.symbols)
+        at_c = self.program.values([arb(v) for v in c], BOX_PREC)
+        duals = self.program.with_gradients(cover, BOX_PREC)
         old = flint.ctx.prec
         flint.ctx.prec = BOX_PREC
         try:
             offsets = [x - arb(v) for x, v in zip(cover, c)]
             out = []
-            for i, nat in enumerate(natural):
-                mv = at_c[i]
-                for k in range(d):
-                    mv = mv + grad[i * d + k] * offsets[k]
+            for (nat, grad), mv in zip(duals, at_c):
+                for g, off in zip(grad, offsets):
+                    mv = mv + g * off
                 out.append(_tighter(nat, mv))
             return out
         finally:
             flint.ctx.prec = old
 
     def at(self, point: Sequence[float]) -> list[arb]:
-        return self.program.run([arb(v) for v in point], prec=POINT_PREC)
+        return self.program.values([arb(v) for v in point], POINT_PREC)
 
     def exactly_zero(self, point: Sequence[float | sp.Rational], indices: Sequence[int]) -> bool:
         """Exact symbolic check at a rational point (floats are exact dyadic rationals)."""
@@ -418,7 +412,7 @@ def _bracket_zero(ev: _Evaluator, positive: tuple[float, ...], negative: tuple[f
         else:
             b = m
     hull = tuple((min(x, y), max(x, y)) for x, y in zip(a, b))
-    enclosure = ev.program.run(_cover(hull))[0]
+    enclosure = ev.natural(hull)[0]
     if not enclosure.is_finite():
         return None
     return tuple(x + (y - x) / 2 for x, y in zip(a, b))

@@ -11,7 +11,7 @@ from pathlib import Path
 
 from plantlint.cli import explain_file
 from plantlint.report.explain import name_subexpressions
-from conftest import FIXTURES
+from conftest import FIXTURES, REPO
 
 SAMPLE = FIXTURES / "models" / "contract_sample.plant"
 
@@ -148,3 +148,25 @@ def test_explain_runs_under_the_budget_and_says_it_was_cut_short(tmp_path: Path)
     assert report["stop"]["kind"] == "time" and report["completed"] == ["structure"]
     assert report["relative_degree"] == {"y": 2} and report["points"] == []
     assert "analysis-incomplete" in [f["rule"] for f in report["findings"]]
+
+
+def test_a_derivation_too_long_to_write_out_is_left_out_with_a_note(tmp_path: Path, monkeypatch) -> None:
+    """The symbolic Lie derivatives are display only: when they do not finish within their
+    bound, explain shows the relative degree and every later section, with a note. A bound
+    of a millisecond stands in for a chain whose tower is too long to print."""
+    import plantlint.analysis.serialise as serialise
+
+    monkeypatch.setattr(serialise, "DERIVATION_SECONDS", 0.001)
+    model = REPO / "benchmarks" / "results" / "models" / "pendulum_chain_4.plant"
+    out = io.StringIO()
+    assert explain_file(model, None, "json", out, color=False) == 0
+    data = json.loads(out.getvalue())
+    assert data["lie_derivatives"] == [] and data["derivation_note"].startswith(
+        "the Lie derivatives are not written out: their symbolic forms did not finish within 0.001 s")
+    # the structure itself is the analysis': relative degree 2n = 8 (input at the base, tip
+    # angle measured: two integrations per link; common practice for chains, from memory)
+    assert data["relative_degree"] == {"tip": 8}
+    assert data["completed"][-1] == "claims"
+    # long spans are written as by hand
+    assert data["distributions"]["spans"][7] == "D_7 = span{g, ad_f g, ..., ad_f^7 g}"
+    assert data["distributions"]["spans"][2] == "D_2 = span{g, ad_f g, ad_f^2 g}"

@@ -111,7 +111,12 @@ class DistributionStructure:
         return distribution_name(self.m, k)
 
     def spanners(self, k: int) -> str:
-        labels = [_labels(self.m, j, order) for order in range(k + 1) for j in range(self.m)]
+        """``D_k = span{g, ad_f g, ...}``; past the third order the middle is elided
+        (``span{g, ad_f g, ..., ad_f^15 g}``), as one writes it by hand."""
+        orders = list(range(k + 1))
+        shown = orders if k <= 3 else [0, 1, None, k]
+        labels = ["..." if order is None else _labels(self.m, j, order)
+                  for order in shown for j in (range(self.m) if order is not None else [0])]
         return f"{self.name(k)} = span{{{', '.join(labels)}}}"
 
 

@@ -121,6 +121,8 @@ def _render_relative_degree(console: Any, d: dict[str, Any]) -> None:
     from rich.table import Table
 
     _section(console, "Relative degree")
+    if d.get("derivation_note"):
+        console.print(f"  {d['derivation_note']}")
     if d["subexpressions"]:
         console.print("  where " + "; ".join(f"{s['name']} = {s['expr']}" for s in d["subexpressions"]))
     table = Table(box=None, padding=(0, 2), show_edge=False)
@@ -130,7 +132,8 @@ def _render_relative_degree(console: Any, d: dict[str, Any]) -> None:
     table.add_column("value")
     for row in d["lie_derivatives"]:
         table.add_row(row["output"], str(row["k"]), row["name"], row["expr"])
-    console.print(table)
+    if d["lie_derivatives"]:
+        console.print(table)
     for out, r in d["relative_degree"].items():
         console.print(f"  {out}: relative degree {r if r is not None else 'undefined (no input reaches it)'}")
     if d["decoupling_matrix"] is not None:

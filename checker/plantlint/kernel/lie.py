@@ -81,6 +81,10 @@ class Kernel:
         self._ad: dict[tuple[int, int], Vector] = {}
         self._zero: dict[sp.Expr, ZeroDecision] = {}
         self._jacobians: dict[Vector, sp.Matrix] = {}
+        #: d e / d x memoised by (e, x): entries of Jacobians formed one at a time, only where a
+        #: bracket needs them; shared with a feedback-shifted kernel of the same plant
+        self._derivatives: dict[tuple[sp.Expr, sp.Symbol], sp.Expr] = {}
+        self._free: dict[sp.Expr, frozenset[sp.Symbol]] = {}
         self._cancelled: dict[sp.Expr, sp.Expr] = {}
         self._poly: "_PolynomialTowers | None | bool" = False
         self.seed = seed if seed is not None else _seed_for(plant)
@@ -157,24 +161,49 @@ class Kernel:
         if J is None:
             # a derivative along a state the entry does not contain is 0 without asking sympy
             # (most entries of a large plant's Jacobian: the dependency graph is sparse)
-            J = sp.Matrix([[sp.diff(Fi, xj) if xj in free else sp.Integer(0) for xj in self.x]
-                           for Fi, free in ((Fi, Fi.free_symbols) for Fi in field)])
+            J = sp.Matrix([[self.partial(Fi, xj) for xj in self.x] for Fi in field])
             self._jacobians[field] = J
         return J
 
+    def partial(self, e: sp.Expr, x: sp.Symbol) -> sp.Expr:
+        """d e / d x (sympy's ``diff``), memoised; 0 without asking sympy when e lacks x."""
+        free = self._free.get(e)
+        if free is None:
+            free = self._free[e] = frozenset(e.free_symbols)
+        if x not in free:
+            return sp.Integer(0)
+        key = (e, x)
+        d = self._derivatives.get(key)
+        if d is None:
+            d = self._derivatives[key] = sp.diff(e, x)
+        return d
+
+    def share_derivatives(self, other: "Kernel") -> None:
+        """Use ``other``'s memo of derivatives (a kernel of the same states, e.g. the
+        feedback-shifted drift: its input fields and their brackets are the same)."""
+        if other.x == self.x:
+            self._derivatives = other._derivatives
+            self._free = other._free
+
     def bracket(self, X: Vector, Y: Vector) -> Vector:
-        """[X, Y] = DY X - DX Y."""
-        DY = self.jacobian(Y)
-        DX = self.jacobian(X)
+        """[X, Y] = DY X - DX Y.
+
+        Only the Jacobian entries the sum uses are formed (DY[i, k] where X[k] is not a
+        literal 0, DX[i, k] where Y[k] is not), each once per kernel: the terms and their
+        order are those of the full product."""
         n = len(self.x)
         out = []
         for i in range(n):
             term = sp.Integer(0)
             for k in range(n):
-                if X[k] != 0 and DY[i, k] != 0:
-                    term += DY[i, k] * X[k]
-                if Y[k] != 0 and DX[i, k] != 0:
-                    term -= DX[i, k] * Y[k]
+                if X[k] != 0:
+                    d = self.partial(Y[i], self.x[k])
+                    if d != 0:
+                        term += d * X[k]
+                if Y[k] != 0:
+                    d = self.partial(X[i], self.x[k])
+                    if d != 0:
+                        term -= d * Y[k]
             out.append(term)
         return tuple(out)
 

@@ -29,6 +29,7 @@ from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
+from plantlint.kernel.laurent import identically_zero
 from plantlint.kernel.plant import Plant
 
 if TYPE_CHECKING:
@@ -502,6 +503,11 @@ def confirm_zero(expr: sp.Expr) -> ZeroDecision:
     (and proves many trigonometric zeros); bringing a large polynomial over a
     common denominator first would cost far more.
     """
+    quick = identically_zero(expr)
+    if quick is not None and (quick or not _has_functions(expr)):
+        # the same answer as expand / cancel below (kernel/laurent.py), by flint's arithmetic
+        how = "cancel" if has_symbolic_denominator(expr) else "expand"
+        return zd.proven_zero(how) if quick else zd.proven_nonzero(how)
     if not has_symbolic_denominator(expr):
         if sp.expand(expr) == 0:
             return zd.proven_zero("expand")

@@ -115,3 +115,33 @@ def test_bracket_of_lazy_entries_is_the_matrix_formula() -> None:
                                    kernel.bracket(Z, kernel.bracket(X, Y)))]
     assert all(sp.simplify(e) == 0 for e in jacobi)
     assert kernel.jacobian(X) == sp.Matrix(X).jacobian(states)
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_ring_brackets_are_expanded_tree_brackets(seed: int) -> None:
+    """ad_f^k g and brackets formed in the ring (Kernel.expanded_ad / expanded_bracket) are,
+    entry by entry, sympy.expand of the brackets by tree differentiation (reference: sympy's
+    diff and expand, the route the distributions took before)."""
+    rng = random.Random(300 + seed)
+    states = [x, y, t]
+    u = sp.Symbol("u")
+    atoms = [x, y, m, sp.sin(t), sp.cos(t), sp.cos(x - y), sp.tan(t)]
+
+    def entry() -> sp.Expr:
+        return _random_expr(rng, atoms, 2) if rng.random() < 0.8 else sp.Integer(0)
+
+    f = [y, entry(), entry()]
+    g = [sp.Integer(0), entry(), sp.Integer(1)]
+    kernel = Kernel(Plant.from_matrices("p", states, [u], f, [g], [x]))
+    assert kernel.field_ring() is not None
+    for k in range(3):
+        assert kernel.expanded_ad(0, k) == tuple(sp.expand(e) for e in kernel.ad(0, k))
+    X, Y = kernel.expanded_ad(0, 0), kernel.expanded_ad(0, 1)
+    assert kernel.expanded_bracket(X, Y) == tuple(sp.expand(e) for e in kernel.bracket(X, Y))
+
+
+def test_ring_declines_what_it_cannot_read() -> None:
+    u = sp.Symbol("u")
+    for f1 in (1 / (x + 1), sp.exp(x), sp.sqrt(x), sp.Float(0.5) * x, sp.atan(x)):
+        kernel = Kernel(Plant.from_matrices("p", [x, y], [u], [y, f1], [[sp.Integer(0), sp.Integer(1)]], [x]))
+        assert kernel.field_ring() is None and kernel.expanded_ad(0, 1) is None

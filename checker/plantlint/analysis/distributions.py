@@ -457,7 +457,17 @@ def _size(e: sp.Expr, cap: int = 400) -> int:
 
 def _block(kernel: Kernel, m: int, k: int) -> list[SpanningField]:
     """The spanners ad_f^k g_j of order k (memoised in the kernel)."""
-    return [SpanningField(_labels(m, j, k), j, k, tuple(_normal(e) for e in kernel.ad(j, k))) for j in range(m)]
+    return [SpanningField(_labels(m, j, k), j, k, _expanded(kernel.expanded_ad(j, k))
+                          or tuple(_normal(e) for e in kernel.ad(j, k))) for j in range(m)]
+
+
+def _expanded(vector: Vector | None) -> Vector | None:
+    """A field formed in the kernel's ring (every entry multiplied out, as _normal does with
+    the tree-differentiated one), or None when it was not formed there or is so large
+    that _normal would have left the tree-differentiated entry as it was."""
+    if vector is None or any(_size(e, NORMAL_SIZE) >= NORMAL_SIZE for e in vector):
+        return None
+    return vector
 
 
 def _labels(m: int, j: int, k: int) -> str:
@@ -584,8 +594,12 @@ class _Involutivity:
                 if rank == n:
                     self.member_from[pair] = k
                     continue
-                bracket = self.kernel.bracket(fields[pair[0]].vector, fields[pair[1]].vector)
-                inside, certain = self.echelon.member(tuple(_normal(e) for e in bracket), rank)
+                X, Y = fields[pair[0]].vector, fields[pair[1]].vector
+                expanded = _expanded(self.kernel.expanded_bracket(X, Y))
+                if expanded is None:
+                    bracket = self.kernel.bracket(X, Y)
+                    expanded = tuple(_normal(e) for e in bracket)
+                inside, certain = self.echelon.member(expanded, rank)
                 if inside:
                     self.member_from[pair] = k
                     if not certain:
@@ -594,6 +608,8 @@ class _Involutivity:
                             f"{distribution_name(self.m, k)} without symbolic proof"
                         )
                     continue
+                # the tree-differentiated bracket, as before, for the witness near a point
+                bracket = self.kernel.bracket(X, Y)
                 return BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain, bracket,
                                       tuple(fields[i].vector for i in basis))
         return None

@@ -19,6 +19,8 @@ expressions, with flint's arithmetic instead of sympy's tree rewriting.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+
 import sympy as sp
 from flint import fmpq, fmpq_mpoly_ctx
 
@@ -185,6 +187,8 @@ class _Reader:
                 return out, tuple(k * x for x in den)
             inverse = _inverse_atom(e.base)
             if inverse is not None:
+                if inverse not in self.atoms:
+                    raise _Outside("atom")
                 return self.generator(self.atoms[inverse], -k)
             num, den = self.read(e.base)
             terms = list(num.terms())  # type: ignore[attr-defined]
@@ -200,3 +204,133 @@ class _Reader:
     def _check(p: object) -> None:
         if len(p) > MAX_TERMS:  # type: ignore[arg-type]
             raise _Outside("too many terms")
+
+
+#: Bound on the atoms of a plant's fields read by :class:`FieldRing`.
+MAX_ATOMS = 64
+
+Laurent = tuple[object, tuple[int, ...]]  # (numerator fmpq_mpoly, exponents of the monomial denominator)
+
+
+def _plain_atom(a: sp.Expr) -> bool:
+    """An atom whose powers ``expand`` leaves alone: a symbol, or a function application
+    (not exp, whose powers combine) that ``expand`` returns unchanged."""
+    return a.is_Symbol or (isinstance(a, sp.Function) and not isinstance(a, sp.exp) and a.is_commutative
+                           and sp.expand(a) == a)
+
+
+class FieldRing:
+    """Vector fields of one plant read as Laurent polynomials in its states, parameters and
+    function atoms (sin(x), cos(x - y), tan(theta), ...), closed under d/dx: brackets are
+    formed by formal differentiation in flint's ring (the chain rule through each atom's
+    own sympy derivative) and rebuilt as sums of monomials, i.e. as ``sympy.expand`` of the
+    bracket tree differentiation gives (tests/kernel/test_laurent.py)."""
+
+    def __init__(self, states: Sequence[sp.Symbol], atoms: dict[sp.Expr, int]):
+        self.n = len(atoms)
+        self.ctx = fmpq_mpoly_ctx.get(("a", self.n))
+        self.atoms = atoms
+        self.order = list(atoms)
+        self.reader = _Reader(self.ctx, atoms)
+        self.zero_exp = (0,) * self.n
+        self.states = [atoms[x] for x in states]
+        #: for state k: [(atom index, d atom / d x_k as a Laurent polynomial)]
+        self.chain: list[list[tuple[int, Laurent]]] = []
+        for x in states:
+            links: list[tuple[int, Laurent]] = []
+            for a, i in atoms.items():
+                if a == x:
+                    links.append((i, (self.ctx.constant(1), self.zero_exp)))  # type: ignore[attr-defined]
+                elif not a.is_Symbol and x in a.free_symbols:
+                    links.append((i, self.reader.read(sp.diff(a, x))))
+            self.chain.append(links)
+
+    @classmethod
+    def build(cls, states: Sequence[sp.Symbol], exprs: Sequence[sp.Expr]) -> "FieldRing | None":
+        atoms: dict[sp.Expr, int] = {x: i for i, x in enumerate(states)}
+        try:
+            seen: set[sp.Expr] = set()
+            for e in exprs:
+                _collect(e, atoms, seen)
+            done: set[sp.Expr] = set()
+            while True:  # close the atoms under d/dx_k
+                todo = [a for a in atoms if a not in done and not a.is_Symbol]
+                if not todo:
+                    break
+                for a in todo:
+                    done.add(a)
+                    for x in states:
+                        if x in a.free_symbols:
+                            _collect(sp.diff(a, x), atoms, seen)
+                if len(atoms) > MAX_ATOMS:
+                    return None
+            if not all(_plain_atom(a) for a in atoms):
+                return None
+            return cls(states, atoms)
+        except (_Outside, RecursionError):
+            return None
+
+    def read(self, e: sp.Expr) -> Laurent | None:
+        try:
+            return self.reader.read(e)
+        except (_Outside, RecursionError):
+            return None
+
+    def _shift(self, p: Laurent, den: tuple[int, ...]) -> object:
+        if p[1] == den:
+            return p[0]
+        return p[0] * self.reader.monomial(tuple(a - b for a, b in zip(den, p[1])))  # type: ignore[operator]
+
+    def add(self, p: Laurent, q: Laurent, sign: int = 1) -> Laurent:
+        den = tuple(map(max, p[1], q[1]))
+        num = self._shift(p, den) + sign * self._shift(q, den)  # type: ignore[operator]
+        _Reader._check(num)
+        return num, den
+
+    def mul(self, p: Laurent, q: Laurent) -> Laurent:
+        num = p[0] * q[0]  # type: ignore[operator]
+        _Reader._check(num)
+        return num, tuple(a + b for a, b in zip(p[1], q[1]))
+
+    def _by_atom(self, p: Laurent, i: int) -> Laurent | None:
+        """d p / d (atom i), or None when p does not contain it."""
+        num, den = p
+        d = den[i]
+        if d == 0:
+            if num.degrees()[i] == 0:  # type: ignore[attr-defined]
+                return None
+            return num.derivative(i), den  # type: ignore[attr-defined]
+        # N / (D a^d): d/da = (N' a - d N) / (D a^(d+1))
+        out = num.derivative(i) * self.reader.generator(i)[0] - d * num  # type: ignore[attr-defined,operator]
+        return out, tuple(e + 1 if j == i else e for j, e in enumerate(den))
+
+    def partial(self, p: Laurent, k: int) -> Laurent:
+        """d p / d x_k (state k), by the chain rule through the atoms."""
+        total: Laurent = (self.ctx.constant(0), self.zero_exp)  # type: ignore[attr-defined]
+        for i, link in self.chain[k]:
+            part = self._by_atom(p, i)
+            if part is not None:
+                total = self.add(total, self.mul(part, link))
+        return total
+
+    def bracket(self, X: Sequence[Laurent], Y: Sequence[Laurent]) -> list[Laurent]:
+        """[X, Y] = DY X - DX Y."""
+        out = []
+        for i in range(len(self.states)):
+            total: Laurent = (self.ctx.constant(0), self.zero_exp)  # type: ignore[attr-defined]
+            for k in range(len(self.states)):
+                if not X[k][0].is_zero():  # type: ignore[attr-defined]
+                    total = self.add(total, self.mul(self.partial(Y[i], k), X[k]))
+                if not Y[k][0].is_zero():  # type: ignore[attr-defined]
+                    total = self.add(total, self.mul(self.partial(X[i], k), Y[k]), -1)
+            out.append(total)
+        return out
+
+    def expr(self, p: Laurent) -> sp.Expr:
+        """The sum of monomials, as sympy builds it (the form ``expand`` returns)."""
+        num, den = p
+        terms = []
+        for exps, coeff in num.terms():  # type: ignore[attr-defined]
+            factors = [self.order[i] ** (k - d) for i, (k, d) in enumerate(zip(exps, den)) if k != d]
+            terms.append(sp.Mul(sp.Rational(int(coeff.p), int(coeff.q)), *factors))
+        return sp.Add(*terms)

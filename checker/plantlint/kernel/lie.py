@@ -29,7 +29,7 @@ from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
-from plantlint.kernel.laurent import identically_zero
+from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
 
 if TYPE_CHECKING:
@@ -88,6 +88,9 @@ class Kernel:
         self._free: dict[sp.Expr, frozenset[sp.Symbol]] = {}
         self._cancelled: dict[sp.Expr, sp.Expr] = {}
         self._poly: "_PolynomialTowers | None | bool" = False
+        self._ring: "FieldRing | None | bool" = False
+        self._expanded_ad: dict[tuple[int, int], tuple[object, ...]] = {}
+        self._expanded_ad_exprs: dict[tuple[int, int], Vector] = {}
         self.seed = seed if seed is not None else _seed_for(plant)
         self._samples: list[dict[sp.Symbol, Fraction]] | None = None
         self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
@@ -207,6 +210,54 @@ class Kernel:
                         term -= d * Y[k]
             out.append(term)
         return tuple(out)
+
+    # -- brackets in the ring of Laurent polynomials (kernel/laurent.py) -----
+    def field_ring(self) -> "FieldRing | None":
+        """f and g read as Laurent polynomials in states, parameters and function atoms
+        closed under d/dx; None when they are not (a float, sqrt, exp, 1/(x + 1), ...)."""
+        if self._ring is False:
+            exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0]
+            self._ring = FieldRing.build(self.x, exprs)
+        return self._ring  # type: ignore[return-value]
+
+    def expanded_bracket(self, X: Vector, Y: Vector) -> Vector | None:
+        """``expand`` of every entry of [X, Y] (sums of monomials), formed in the ring; None
+        when X or Y is not read there."""
+        ring = self.field_ring()
+        if ring is None:
+            return None
+        LX, LY = [ring.read(e) for e in X], [ring.read(e) for e in Y]
+        if any(e is None for e in LX) or any(e is None for e in LY):
+            return None
+        return tuple(ring.expr(e) for e in ring.bracket(LX, LY))  # type: ignore[arg-type]
+
+    def expanded_ad(self, j: int, k: int) -> Vector | None:
+        """``expand`` of every entry of ad_f^k g_j, formed in the ring (memoised); None when
+        f and g are not read there."""
+        ring = self.field_ring()
+        if ring is None:
+            return None
+        key = (j, k)
+        if key not in self._expanded_ad:
+            if k == 0:
+                value = tuple(ring.read(e) for e in self.g[j])
+                if any(e is None for e in value):
+                    self._ring = None  # a field outside the ring: no expanded brackets at all
+                    return None
+            else:
+                below = self._laurent_ad(j, k - 1)
+                if below is None:
+                    return None
+                F = tuple(ring.read(e) for e in self.f)
+                value = tuple(ring.bracket(F, below))  # type: ignore[arg-type]
+            self._expanded_ad[key] = value  # type: ignore[assignment]
+            self._expanded_ad_exprs[key] = tuple(ring.expr(e) for e in value)
+        return self._expanded_ad_exprs[key]
+
+    def _laurent_ad(self, j: int, k: int) -> tuple[object, ...] | None:
+        if self.expanded_ad(j, k) is None:
+            return None
+        return self._expanded_ad[(j, k)]
 
     # -- memoised towers -----------------------------------------------------
     def lf(self, i: int, k: int) -> sp.Expr:

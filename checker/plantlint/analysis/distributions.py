@@ -409,18 +409,15 @@ def _decide_generic(kernel: Kernel, e: sp.Expr) -> ZeroDecision:
         return zd.proven_zero("structural")
     if _screened_nonzero(kernel, e):
         return zd.proven_nonzero("screened")
-    if not has_symbolic_denominator(e) and _expands_to_zero(e):
-        return zd.proven_zero("expand")
-    return kernel.is_zero(e)
-
-
-def _expands_to_zero(e: sp.Expr) -> bool:
-    """``sp.expand(e) == 0``, multiplied out by flint where kernel/laurent.py reads ``e``
-    (a polynomial in its atoms: the same answer, far faster)."""
+    # multiplied out in flint's ring (kernel/laurent.py): a zero there is a proof, and a
+    # Laurent polynomial in symbols is decided either way (what expand, or the kernel's
+    # screen and cancel, would conclude, without screening twice)
     quick = identically_zero(e)
     if quick is not None:
-        return quick
-    return sp.expand(e) == 0
+        return zd.proven_zero("expand") if quick else zd.proven_nonzero("expand")
+    if not has_symbolic_denominator(e) and sp.expand(e) == 0:
+        return zd.proven_zero("expand")
+    return kernel.is_zero(e)
 
 
 def _screened_nonzero(kernel: Kernel, e: sp.Expr) -> bool:

@@ -51,6 +51,7 @@ from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel import exact
 from plantlint.kernel.exact import ball_rank
+from plantlint.kernel.laurent import expanded, identically_zero
 from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
 from plantlint.language.printer import show_point
 from plantlint.analysis.linearizing_output import OutputSearch
@@ -413,6 +414,12 @@ def _decide_generic(kernel: Kernel, e: sp.Expr) -> ZeroDecision:
         return zd.proven_zero("structural")
     if _screened_nonzero(kernel, e):
         return zd.proven_nonzero("screened")
+    # multiplied out in flint's ring (kernel/laurent.py): a zero there is a proof, and a
+    # Laurent polynomial in symbols is decided either way (what expand, or the kernel's
+    # screen and cancel, would conclude, without screening twice)
+    quick = identically_zero(e)
+    if quick is not None:
+        return zd.proven_zero("expand") if quick else zd.proven_nonzero("expand")
     if not has_symbolic_denominator(e) and sp.expand(e) == 0:
         return zd.proven_zero("expand")
     return kernel.is_zero(e)
@@ -437,7 +444,8 @@ def _normal(e: sp.Expr) -> sp.Expr:
     test: the kernel still decides every remainder."""
     if e.is_number or e.is_Symbol or _size(e, NORMAL_SIZE) >= NORMAL_SIZE:
         return e  # expanding a large entry costs more than the zero test it might save
-    return sp.expand(e)
+    quick = expanded(e)
+    return quick if quick is not None else sp.expand(e)
 
 
 def _size(e: sp.Expr, cap: int = 400) -> int:
@@ -451,7 +459,17 @@ def _size(e: sp.Expr, cap: int = 400) -> int:
 
 def _block(kernel: Kernel, m: int, k: int) -> list[SpanningField]:
     """The spanners ad_f^k g_j of order k (memoised in the kernel)."""
-    return [SpanningField(_labels(m, j, k), j, k, tuple(_normal(e) for e in kernel.ad(j, k))) for j in range(m)]
+    return [SpanningField(_labels(m, j, k), j, k, _expanded(kernel.expanded_ad(j, k))
+                          or tuple(_normal(e) for e in kernel.ad(j, k))) for j in range(m)]
+
+
+def _expanded(vector: Vector | None) -> Vector | None:
+    """A field formed in the kernel's ring (every entry multiplied out, as _normal does with
+    the tree-differentiated one), or None when it was not formed there or is so large
+    that _normal would have left the tree-differentiated entry as it was."""
+    if vector is None or any(_size(e, NORMAL_SIZE) >= NORMAL_SIZE for e in vector):
+        return None
+    return vector
 
 
 def _labels(m: int, j: int, k: int) -> str:
@@ -578,8 +596,12 @@ class _Involutivity:
                 if rank == n:
                     self.member_from[pair] = k
                     continue
-                bracket = self.kernel.bracket(fields[pair[0]].vector, fields[pair[1]].vector)
-                inside, certain = self.echelon.member(tuple(_normal(e) for e in bracket), rank)
+                X, Y = fields[pair[0]].vector, fields[pair[1]].vector
+                expanded = _expanded(self.kernel.expanded_bracket(X, Y))
+                if expanded is None:
+                    bracket = self.kernel.bracket(X, Y)
+                    expanded = tuple(_normal(e) for e in bracket)
+                inside, certain = self.echelon.member(expanded, rank)
                 if inside:
                     self.member_from[pair] = k
                     if not certain:
@@ -588,6 +610,8 @@ class _Involutivity:
                             f"{distribution_name(self.m, k)} without symbolic proof"
                         )
                     continue
+                # the tree-differentiated bracket, as before, for the witness near a point
+                bracket = self.kernel.bracket(X, Y)
                 return BracketFailure(k, fields[pair[0]].label, fields[pair[1]].label, certain, bracket,
                                       tuple(fields[i].vector for i in basis))
         return None

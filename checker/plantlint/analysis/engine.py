@@ -249,6 +249,7 @@ def _feedback_shifted(kernel: Kernel, structure: DistributionStructure, eq: Equi
         plant.f[i] + sum((plant.g[j][i] * u0[j] for j in range(plant.m)), sp.Integer(0)) for i in range(plant.n)
     )
     shifted = Kernel(replace(plant, f=shifted_f), seed=kernel.seed)
+    shifted.share_derivatives(kernel)  # the input fields, and brackets among them, are the same
     # generic ranks of the shifted drift too, so that "rank drops at the point"
     # compares like with like (only the conditions as a whole are feedback invariant)
     memo[key] = (shifted, analyse_distributions(shifted))

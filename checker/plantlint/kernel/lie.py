@@ -29,6 +29,7 @@ from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
+from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
 
 if TYPE_CHECKING:
@@ -81,8 +82,15 @@ class Kernel:
         self._ad: dict[tuple[int, int], Vector] = {}
         self._zero: dict[sp.Expr, ZeroDecision] = {}
         self._jacobians: dict[Vector, sp.Matrix] = {}
+        #: d e / d x memoised by (e, x): entries of Jacobians formed one at a time, only where a
+        #: bracket needs them; shared with a feedback-shifted kernel of the same plant
+        self._derivatives: dict[tuple[sp.Expr, sp.Symbol], sp.Expr] = {}
+        self._free: dict[sp.Expr, frozenset[sp.Symbol]] = {}
         self._cancelled: dict[sp.Expr, sp.Expr] = {}
         self._poly: "_PolynomialTowers | None | bool" = False
+        self._ring: "FieldRing | None | bool" = False
+        self._expanded_ad: dict[tuple[int, int], tuple[object, ...]] = {}
+        self._expanded_ad_exprs: dict[tuple[int, int], Vector] = {}
         self.seed = seed if seed is not None else _seed_for(plant)
         self._samples: list[dict[sp.Symbol, Fraction]] | None = None
         self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
@@ -157,26 +165,99 @@ class Kernel:
         if J is None:
             # a derivative along a state the entry does not contain is 0 without asking sympy
             # (most entries of a large plant's Jacobian: the dependency graph is sparse)
-            J = sp.Matrix([[sp.diff(Fi, xj) if xj in free else sp.Integer(0) for xj in self.x]
-                           for Fi, free in ((Fi, Fi.free_symbols) for Fi in field)])
+            J = sp.Matrix([[self.partial(Fi, xj) for xj in self.x] for Fi in field])
             self._jacobians[field] = J
         return J
 
+    def partial(self, e: sp.Expr, x: sp.Symbol) -> sp.Expr:
+        """d e / d x (sympy's ``diff``), memoised; 0 without asking sympy when e lacks x."""
+        free = self._free.get(e)
+        if free is None:
+            free = self._free[e] = frozenset(e.free_symbols)
+        if x not in free:
+            return sp.Integer(0)
+        key = (e, x)
+        d = self._derivatives.get(key)
+        if d is None:
+            d = self._derivatives[key] = sp.diff(e, x)
+        return d
+
+    def share_derivatives(self, other: "Kernel") -> None:
+        """Use ``other``'s memo of derivatives (a kernel of the same states, e.g. the
+        feedback-shifted drift: its input fields and their brackets are the same)."""
+        if other.x == self.x:
+            self._derivatives = other._derivatives
+            self._free = other._free
+
     def bracket(self, X: Vector, Y: Vector) -> Vector:
-        """[X, Y] = DY X - DX Y."""
-        DY = self.jacobian(Y)
-        DX = self.jacobian(X)
+        """[X, Y] = DY X - DX Y.
+
+        Only the Jacobian entries the sum uses are formed (DY[i, k] where X[k] is not a
+        literal 0, DX[i, k] where Y[k] is not), each once per kernel: the terms and their
+        order are those of the full product."""
         n = len(self.x)
         out = []
         for i in range(n):
             term = sp.Integer(0)
             for k in range(n):
-                if X[k] != 0 and DY[i, k] != 0:
-                    term += DY[i, k] * X[k]
-                if Y[k] != 0 and DX[i, k] != 0:
-                    term -= DX[i, k] * Y[k]
+                if X[k] != 0:
+                    d = self.partial(Y[i], self.x[k])
+                    if d != 0:
+                        term += d * X[k]
+                if Y[k] != 0:
+                    d = self.partial(X[i], self.x[k])
+                    if d != 0:
+                        term -= d * Y[k]
             out.append(term)
         return tuple(out)
+
+    # -- brackets in the ring of Laurent polynomials (kernel/laurent.py) -----
+    def field_ring(self) -> "FieldRing | None":
+        """f and g read as Laurent polynomials in states, parameters and function atoms
+        closed under d/dx; None when they are not (a float, sqrt, exp, 1/(x + 1), ...)."""
+        if self._ring is False:
+            exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0]
+            self._ring = FieldRing.build(self.x, exprs)
+        return self._ring  # type: ignore[return-value]
+
+    def expanded_bracket(self, X: Vector, Y: Vector) -> Vector | None:
+        """``expand`` of every entry of [X, Y] (sums of monomials), formed in the ring; None
+        when X or Y is not read there."""
+        ring = self.field_ring()
+        if ring is None:
+            return None
+        LX, LY = [ring.read(e) for e in X], [ring.read(e) for e in Y]
+        if any(e is None for e in LX) or any(e is None for e in LY):
+            return None
+        return tuple(ring.expr(e) for e in ring.bracket(LX, LY))  # type: ignore[arg-type]
+
+    def expanded_ad(self, j: int, k: int) -> Vector | None:
+        """``expand`` of every entry of ad_f^k g_j, formed in the ring (memoised); None when
+        f and g are not read there."""
+        ring = self.field_ring()
+        if ring is None:
+            return None
+        key = (j, k)
+        if key not in self._expanded_ad:
+            if k == 0:
+                value = tuple(ring.read(e) for e in self.g[j])
+                if any(e is None for e in value):
+                    self._ring = None  # a field outside the ring: no expanded brackets at all
+                    return None
+            else:
+                below = self._laurent_ad(j, k - 1)
+                if below is None:
+                    return None
+                F = tuple(ring.read(e) for e in self.f)
+                value = tuple(ring.bracket(F, below))  # type: ignore[arg-type]
+            self._expanded_ad[key] = value  # type: ignore[assignment]
+            self._expanded_ad_exprs[key] = tuple(ring.expr(e) for e in value)
+        return self._expanded_ad_exprs[key]
+
+    def _laurent_ad(self, j: int, k: int) -> tuple[object, ...] | None:
+        if self.expanded_ad(j, k) is None:
+            return None
+        return self._expanded_ad[(j, k)]
 
     # -- memoised towers -----------------------------------------------------
     def lf(self, i: int, k: int) -> sp.Expr:
@@ -473,6 +554,11 @@ def confirm_zero(expr: sp.Expr) -> ZeroDecision:
     (and proves many trigonometric zeros); bringing a large polynomial over a
     common denominator first would cost far more.
     """
+    quick = identically_zero(expr)
+    if quick is not None and (quick or not _has_functions(expr)):
+        # the same answer as expand / cancel below (kernel/laurent.py), by flint's arithmetic
+        how = "cancel" if has_symbolic_denominator(expr) else "expand"
+        return zd.proven_zero(how) if quick else zd.proven_nonzero(how)
     if not has_symbolic_denominator(expr):
         if sp.expand(expr) == 0:
             return zd.proven_zero("expand")

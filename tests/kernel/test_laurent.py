@@ -1,0 +1,147 @@
+"""kernel/laurent.py (zero tests and expansion in flint's polynomial ring) and the kernel's
+lazily formed Jacobian entries, held against sympy done the ordinary way and published identities."""
+
+from __future__ import annotations
+
+import random
+
+import pytest
+import sympy as sp
+
+from plantlint.kernel.laurent import expanded, identically_zero
+from plantlint.kernel.lie import Kernel, confirm_zero
+from plantlint.kernel.plant import Plant
+
+a, b, c, d, x, y, m, t = sp.symbols("a b c d x y m t", real=True)
+
+
+def _random_expr(rng: random.Random, atoms: list[sp.Expr], depth: int) -> sp.Expr:
+    """A seeded random unexpanded expression: sums, products, small integer powers and
+    monomial denominators of the atoms (the shape of bracket fields and minors)."""
+    if depth == 0 or rng.random() < 0.2:
+        if rng.random() < 0.3:
+            return sp.Rational(rng.randint(-5, 5), rng.randint(1, 4))
+        atom = rng.choice(atoms)
+        return atom ** rng.choice([1, 1, 2, -1]) if not atom.is_Number else atom
+    kind = rng.choice(["add", "mul", "pow"])
+    if kind == "pow":
+        return _random_expr(rng, atoms, depth - 1) ** rng.randint(2, 3)
+    parts = [_random_expr(rng, atoms, depth - 1) for _ in range(rng.randint(2, 3))]
+    return sp.Add(*parts) if kind == "add" else sp.Mul(*parts)
+
+
+@pytest.mark.parametrize("seed", range(12))
+def test_expanded_is_sympy_expand(seed: int) -> None:
+    """The rebuilt sum of monomials is structurally the expression sympy.expand returns
+    (reference: sympy's expand, the canonical form _normal used before)."""
+    rng = random.Random(seed)
+    atoms = [x, y, m, sp.sin(t), sp.cos(t), sp.cos(x - y), sp.tan(t)]
+    for _ in range(8):
+        e = _random_expr(rng, atoms, 4)
+        quick = expanded(e)
+        if e.is_Number or e.is_Symbol or quick is None:
+            continue
+        assert quick == sp.expand(e), e
+
+
+@pytest.mark.parametrize("seed", range(12))
+def test_zero_tests_agree_with_cancel(seed: int) -> None:
+    """identically_zero on differences of equal and unequal rational expressions agrees with
+    sympy's cancel(together(.)) (reference: sympy's rational-function normal form); an
+    expression and its expansion differ by an identically zero expression."""
+    rng = random.Random(100 + seed)
+    atoms = [x, y, m]
+    for _ in range(6):
+        e = _random_expr(rng, atoms, 4)
+        same = e - sp.expand(e)
+        if same != 0:  # sympy may cancel it already
+            assert identically_zero(same) is True
+        other = e - _random_expr(rng, atoms, 3)
+        answer = identically_zero(other)
+        assert answer is not None  # a Laurent polynomial in symbols: always decided
+        assert answer == (sp.cancel(sp.together(other)) == 0), other
+
+
+def test_published_identities() -> None:
+    # Brahmagupta-Fibonacci two-square identity (any algebra text, e.g. Hardy & Wright,
+    # An Introduction to the Theory of Numbers, sec. 20.1; from memory)
+    two = (a**2 + b**2) * (c**2 + d**2) - (a * c - b * d) ** 2 - (a * d + b * c) ** 2
+    assert identically_zero(two) is True
+    # Euler's four-square identity (Hardy & Wright sec. 20.5; from memory)
+    p = sp.symbols("p1:5")
+    q = sp.symbols("q1:5")
+    z = [p[0]*q[0] - p[1]*q[1] - p[2]*q[2] - p[3]*q[3], p[0]*q[1] + p[1]*q[0] + p[2]*q[3] - p[3]*q[2],
+         p[0]*q[2] - p[1]*q[3] + p[2]*q[0] + p[3]*q[1], p[0]*q[3] + p[1]*q[2] - p[2]*q[1] + p[3]*q[0]]
+    four = sum(v**2 for v in p) * sum(v**2 for v in q) - sum(v**2 for v in z)
+    assert identically_zero(four) is True
+    assert identically_zero(four + 1) is False
+    # the same with the atoms sin(t), cos(t) and a monomial denominator: still a ring identity
+    s, co = sp.sin(t), sp.cos(t)
+    assert identically_zero(((s**2 + m**2) * (co**2 + x**2) - (s*co - m*x)**2 - (s*x + m*co)**2) / m) is True
+
+
+def test_only_proofs() -> None:
+    """Zero is claimed only by ring identities, non-zero only for Laurent polynomials in symbols."""
+    assert identically_zero(sp.sin(t) ** 2 + sp.cos(t) ** 2 - 1) is None  # true, but not a ring identity
+    assert identically_zero(sp.sin(t) * x) is None  # not claimed non-zero through atoms
+    assert identically_zero(x / (x + 1) + 1 / (x + 1) - 1) is None  # the inverse of a sum is an atom
+    assert identically_zero((x + y) ** 2 - x**2) is False
+    assert identically_zero(x / m - x * m / m**2) is True
+    assert identically_zero(sp.Float(0.5) * x * y - x) is None  # floats are not read
+    assert expanded(sp.exp(x) * (x + 1)) is None  # exp powers combine: left to sympy
+    assert expanded(sp.sqrt(x) * (x + 1)) is None
+    assert expanded((x + 1) / (x + 2)) is None
+    # confirm_zero keeps its answers: cancel decides the rational case, trigsimp the small trig one
+    assert confirm_zero(x / (x + 1) + 1 / (x + 1) - 1).proven_zero
+    assert confirm_zero(sp.sin(t) ** 2 + sp.cos(t) ** 2 - 1).proven_zero
+    assert confirm_zero(x / m - y / m).proven_nonzero
+
+
+def test_bracket_of_lazy_entries_is_the_matrix_formula() -> None:
+    """Kernel.bracket (Jacobian entries formed one at a time) equals DY X - DX Y with sympy's
+    Matrix.jacobian (reference: sympy done the plain way), and brackets satisfy the Jacobi
+    identity [X,[Y,Z]] + [Y,[Z,X]] + [Z,[X,Y]] = 0 (any differential-geometry text, e.g.
+    Isidori, Nonlinear Control Systems, 3rd ed., sec. 1.2; from memory)."""
+    states = [x, y, t]
+    u = sp.Symbol("u")
+    X = (y * sp.sin(t), sp.Integer(0), x**2 / m)
+    Y = (sp.Integer(1), sp.cos(t) * x, sp.Integer(0))
+    Z = (t * y, x, sp.tan(t))
+    kernel = Kernel(Plant.from_matrices("p", states, [u], list(X), [list(Y)], [x]))
+    for P, Q in ((X, Y), (Y, Z), (Z, X)):
+        reference = sp.Matrix(Q).jacobian(states) * sp.Matrix(P) - sp.Matrix(P).jacobian(states) * sp.Matrix(Q)
+        assert all(sp.expand(e - r) == 0 for e, r in zip(kernel.bracket(P, Q), reference))
+    jacobi = [sum(v) for v in zip(kernel.bracket(X, kernel.bracket(Y, Z)), kernel.bracket(Y, kernel.bracket(Z, X)),
+                                   kernel.bracket(Z, kernel.bracket(X, Y)))]
+    assert all(sp.simplify(e) == 0 for e in jacobi)
+    assert kernel.jacobian(X) == sp.Matrix(X).jacobian(states)
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_ring_brackets_are_expanded_tree_brackets(seed: int) -> None:
+    """ad_f^k g and brackets formed in the ring (Kernel.expanded_ad / expanded_bracket) are,
+    entry by entry, sympy.expand of the brackets by tree differentiation (reference: sympy's
+    diff and expand, the route the distributions took before)."""
+    rng = random.Random(300 + seed)
+    states = [x, y, t]
+    u = sp.Symbol("u")
+    atoms = [x, y, m, sp.sin(t), sp.cos(t), sp.cos(x - y), sp.tan(t)]
+
+    def entry() -> sp.Expr:
+        return _random_expr(rng, atoms, 2) if rng.random() < 0.8 else sp.Integer(0)
+
+    f = [y, entry(), entry()]
+    g = [sp.Integer(0), entry(), sp.Integer(1)]
+    kernel = Kernel(Plant.from_matrices("p", states, [u], f, [g], [x]))
+    assert kernel.field_ring() is not None
+    for k in range(3):
+        assert kernel.expanded_ad(0, k) == tuple(sp.expand(e) for e in kernel.ad(0, k))
+    X, Y = kernel.expanded_ad(0, 0), kernel.expanded_ad(0, 1)
+    assert kernel.expanded_bracket(X, Y) == tuple(sp.expand(e) for e in kernel.bracket(X, Y))
+
+
+def test_ring_declines_what_it_cannot_read() -> None:
+    u = sp.Symbol("u")
+    for f1 in (1 / (x + 1), sp.exp(x), sp.sqrt(x), sp.Float(0.5) * x, sp.atan(x)):
+        kernel = Kernel(Plant.from_matrices("p", [x, y], [u], [y, f1], [[sp.Integer(0), sp.Integer(1)]], [x]))
+        assert kernel.field_ring() is None and kernel.expanded_ad(0, 1) is None

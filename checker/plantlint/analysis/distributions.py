@@ -38,7 +38,6 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from math import gcd, lcm
 
-import numpy as np
 import sympy as sp
 from flint import arb
 
@@ -262,6 +261,8 @@ class _BorderedMinors:
 
     def _row_order(self, column: Vector, upto: int) -> list[int]:
         """Rows outside I, largest floating-point Schur residual first."""
+        import numpy as np  # here: a check that never orders rows does not load numpy
+
         values = np.array(self._numeric(column))
         rows = self.rows[:upto]
         residual = values

@@ -27,6 +27,9 @@ from fractions import Fraction
 import flint
 import sympy as sp
 from flint import arb
+from sympy.polys.domains import QQ
+from sympy.polys.fields import field as sp_field
+from sympy.polys.polyutils import _sort_gens
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import Program, UnsupportedExpression
@@ -79,18 +82,33 @@ class ParameterBox:
         self.nominal = dict(plant.param_nominal)
         self.clock = timer
         self._signs: dict[sp.Expr, sp.Expr | None] = {}
+        self._tidied: dict[sp.Expr, sp.Expr] = {}  # tidy is pure for one box (signs are memoised too)
 
     def tidy(self, e: sp.Expr) -> sp.Expr:
         """Absolute values resolved by certified signs, then a common denominator when
         the expression is a rational function of p (with numeric radicals)."""
-        e = self.resolve_signs(factor_radicands(as_expr(e)))
-        if e.is_Number or sp.count_ops(e) > TIDY_OPS or has_symbolic_functions(e):
+        e = as_expr(e)
+        if e.is_Number:
             return e
-        try:
-            out = sp.cancel(sp.together(e))
-        except (sp.PolynomialError, ValueError, TypeError):
+        done = self._tidied.get(e)
+        if done is None:
+            done = self._tidied[e] = self._tidy(e)
+        return done
+
+    def _tidy(self, e: sp.Expr) -> sp.Expr:
+        e = self.resolve_signs(factor_radicands(e))
+        if e.is_Number:
             return e
-        return out if sp.count_ops(out) <= sp.count_ops(e) + 20 else e
+        ops = sp.count_ops(e)
+        if ops > TIDY_OPS or has_symbolic_functions(e):
+            return e
+        out = cancel_rational(e)
+        if out is None:
+            try:
+                out = sp.cancel(sp.together(e))
+            except (sp.PolynomialError, ValueError, TypeError):
+                return e
+        return out if sp.count_ops(out) <= ops + 20 else e
 
     def resolve_signs(self, e: sp.Expr) -> sp.Expr:
         """|a| -> a or -a where the sign of a is certified on the box (sqrt of a square
@@ -165,6 +183,62 @@ def factor_radicands(e: sp.Expr) -> sp.Expr:
             if base != node.base:
                 swap[node] = sp.Pow(base, node.exp)
     return e.xreplace(swap) if swap else e
+
+
+def cancel_rational(e: sp.Expr) -> sp.Expr | None:
+    """``sp.cancel(sp.together(e))``, computed in the field QQ(p) of rational functions,
+    when e is built from symbols and rational numbers by +, * and integer powers; None
+    otherwise (or when a denominator vanishes identically).
+
+    The result is the same expression: sympy's cancel ends in ``P/Q`` with (P, Q) the
+    coprime pair from ``PolyElement.cancel`` over ZZ or QQ (integer coefficients,
+    contents coprime, positive leading coefficient of Q in lex order of the sorted
+    generators), which depends only on the rational function, not on how it is written;
+    generators that cancel out do not change the lex leading term. The field arithmetic
+    avoids ``together``'s and ``cancel``'s expression rewriting (gcd_terms, factor_terms).
+    """
+    if not e.free_symbols:
+        return None
+    gens = tuple(_sort_gens(list(e.free_symbols)))
+    K = sp_field(gens, QQ)[0]
+    by_symbol = dict(zip(gens, K.gens))
+    memo: dict[sp.Expr, object] = {}
+
+    def build(node: sp.Expr):
+        done = memo.get(node)
+        if done is not None:
+            return done
+        if node.is_Symbol:
+            out = by_symbol[node]
+        elif node.is_Rational:
+            out = K(QQ(int(node.p), int(node.q)))
+        elif node.is_Add:
+            out = build(node.args[0])
+            for a in node.args[1:]:
+                out = out + build(a)
+        elif node.is_Mul:
+            out = build(node.args[0])
+            for a in node.args[1:]:
+                out = out * build(a)
+        elif node.is_Pow and node.exp.is_Integer:
+            out = build(node.base) ** int(node.exp)
+        else:
+            raise _NotRational
+        memo[node] = out
+        return out
+
+    try:
+        f = build(e)
+    except (_NotRational, ZeroDivisionError):
+        return None
+    P, Q = f.numer.cancel(f.denom)
+    if not Q:
+        return None
+    return P.as_expr() / Q.as_expr()
+
+
+class _NotRational(Exception):
+    pass
 
 
 def has_symbolic_functions(e: sp.Expr) -> bool:

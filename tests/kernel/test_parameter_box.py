@@ -9,7 +9,7 @@ import scipy.signal
 import sympy as sp
 
 from plantlint.kernel.lie import Kernel
-from plantlint.kernel.parameter_box import NotCovered, ParameterBox, cancel_rational, clock, zero_polynomial
+from plantlint.kernel.parameter_box import NotCovered, ParameterBox, clock, zero_polynomial
 from plantlint.kernel.plant import Plant
 from conftest import integer_system, markov_degrees
 
@@ -59,45 +59,3 @@ def test_zero_polynomial_equals_scipy_transmission_zeros() -> None:
             assert min(abs(zeros - z)) < 1e-6 * (1 + abs(z))
         checked += 1
 
-
-def _random_rational(rng: "random.Random", symbols: list[sp.Symbol], depth: int) -> sp.Expr:
-    if depth == 0 or rng.random() < 0.25:
-        return rng.choice(symbols) if rng.random() < 0.5 else sp.Rational(rng.randint(-9, 9), rng.randint(1, 7))
-    a, b = _random_rational(rng, symbols, depth - 1), _random_rational(rng, symbols, depth - 1)
-    op = rng.randrange(5)
-    return [a + b, a - b, a * b, a / b, a ** rng.choice([2, 3, -1, -2])][op]
-
-
-def test_cancel_in_the_field_is_sympys_cancel_of_together() -> None:
-    # reference: sympy's expression route, sp.cancel(sp.together(e)) (gcd_terms, factor_terms,
-    # then the polynomial cancel); the field route must give the same expression, not only
-    # an equal rational function (srepr compared), including the sign convention with
-    # several generators and generators that cancel out
-    import random
-
-    rng = random.Random(20261202)
-    symbols = [sp.Symbol("gam1", real=True), sp.Symbol("gam2", real=True), sp.Symbol("k", positive=True),
-               sp.Symbol("a")]
-    compared = 0
-    for _ in range(400):
-        e = _random_rational(rng, symbols, rng.randint(2, 6))
-        if e.is_Number or e.has(sp.zoo, sp.nan):
-            continue
-        ours = cancel_rational(e)
-        assert ours is not None, e
-        assert sp.srepr(ours) == sp.srepr(sp.cancel(sp.together(e))), e
-        compared += 1
-    assert compared > 250
-    # the palletizer's inverse mass-matrix entry at a point (demo model)
-    m = sp.Symbol("m_p", real=True)
-    R = sp.Rational
-    entry = -(R(77, 100) * m + R(91, 50)) / ((R(49, 100) * m + R(49, 50)) * (R(169, 100) * m + R(257, 25))
-                                             - (R(77, 100) * m + R(91, 50)) ** 2)
-    assert cancel_rational(entry) == (-550 * m - 1300) / (168 * m**2 + 2779 * m + 4830)
-
-
-def test_cancel_in_the_field_declines_what_is_not_rational() -> None:
-    m = sp.Symbol("m_p", real=True)
-    for e in (sp.sqrt(3) * m / (m + 1), sp.sin(m) / m, sp.Float(0.5) * m / (m + 1), sp.sqrt(m) + 1,
-              sp.Integer(1) / (m * (m + 1) - m**2 - m)):
-        assert cancel_rational(e) is None, e

@@ -27,9 +27,6 @@ from fractions import Fraction
 import flint
 import sympy as sp
 from flint import arb
-from sympy.polys.domains import QQ
-from sympy.polys.fields import field as sp_field
-from sympy.polys.polyutils import _sort_gens
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import Program, UnsupportedExpression
@@ -37,6 +34,7 @@ from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_sign
 from plantlint.kernel.lie import Kernel, random_samples
 from plantlint.kernel.plant import as_expr
+from plantlint.kernel.rational import cancel_rational
 
 #: Expressions larger than this (operations) are not brought over a common denominator.
 TIDY_OPS = 1500
@@ -183,62 +181,6 @@ def factor_radicands(e: sp.Expr) -> sp.Expr:
             if base != node.base:
                 swap[node] = sp.Pow(base, node.exp)
     return e.xreplace(swap) if swap else e
-
-
-def cancel_rational(e: sp.Expr) -> sp.Expr | None:
-    """``sp.cancel(sp.together(e))``, computed in the field QQ(p) of rational functions,
-    when e is built from symbols and rational numbers by +, * and integer powers; None
-    otherwise (or when a denominator vanishes identically).
-
-    The result is the same expression: sympy's cancel ends in ``P/Q`` with (P, Q) the
-    coprime pair from ``PolyElement.cancel`` over ZZ or QQ (integer coefficients,
-    contents coprime, positive leading coefficient of Q in lex order of the sorted
-    generators), which depends only on the rational function, not on how it is written;
-    generators that cancel out do not change the lex leading term. The field arithmetic
-    avoids ``together``'s and ``cancel``'s expression rewriting (gcd_terms, factor_terms).
-    """
-    if not e.free_symbols:
-        return None
-    gens = tuple(_sort_gens(list(e.free_symbols)))
-    K = sp_field(gens, QQ)[0]
-    by_symbol = dict(zip(gens, K.gens))
-    memo: dict[sp.Expr, object] = {}
-
-    def build(node: sp.Expr):
-        done = memo.get(node)
-        if done is not None:
-            return done
-        if node.is_Symbol:
-            out = by_symbol[node]
-        elif node.is_Rational:
-            out = K(QQ(int(node.p), int(node.q)))
-        elif node.is_Add:
-            out = build(node.args[0])
-            for a in node.args[1:]:
-                out = out + build(a)
-        elif node.is_Mul:
-            out = build(node.args[0])
-            for a in node.args[1:]:
-                out = out * build(a)
-        elif node.is_Pow and node.exp.is_Integer:
-            out = build(node.base) ** int(node.exp)
-        else:
-            raise _NotRational
-        memo[node] = out
-        return out
-
-    try:
-        f = build(e)
-    except (_NotRational, ZeroDivisionError):
-        return None
-    P, Q = f.numer.cancel(f.denom)
-    if not Q:
-        return None
-    return P.as_expr() / Q.as_expr()
-
-
-class _NotRational(Exception):
-    pass
 
 
 def has_symbolic_functions(e: sp.Expr) -> bool:

@@ -81,3 +81,32 @@ def test_non_zero_constants_are_never_taken_for_zero() -> None:
         assert not vanishes_identically(c)
     assert not vanishes_identically(sp.sin(1) ** 2 + sp.cos(1) ** 2 - 1)
     assert not vanishes_identically(sp.Symbol("x") - sp.Symbol("x") + sp.Symbol("y"))
+
+
+def test_rational_value_is_sympys_substitution() -> None:
+    # reference: sympy's xreplace and its automatic evaluation of the substituted tree
+    from plantlint.kernel.rational import rational_value
+
+    rng = random.Random(7)
+    symbols = [sp.Symbol("gam1", real=True), sp.Symbol("gam2", real=True), sp.Symbol("k", positive=True)]
+    compared = declined = 0
+    for _ in range(400):
+        e = _random_rational(rng, symbols, rng.randint(2, 6))
+        if e.has(sp.zoo, sp.nan):
+            continue
+        values = {s: sp.Rational(rng.randint(-6, 6), rng.randint(1, 4)) for s in symbols}
+        reference = e.xreplace(values)
+        ours = rational_value(e, values)
+        if ours is None:  # only where sympy meets a division by zero on the way
+            assert not reference.is_Rational or any(
+                (node.is_Pow and node.exp.is_negative and node.base.xreplace(values) == 0)
+                for node in sp.preorder_traversal(e)), e
+            declined += 1
+            continue
+        assert reference.is_Rational and ours == reference, e
+        compared += 1
+    assert compared > 300 and declined > 0
+    g = symbols[0]
+    assert rational_value(sp.sqrt(2) * g, {g: sp.Integer(1)}) is None
+    assert rational_value(g + symbols[1], {g: sp.Integer(1)}) is None  # a symbol without a value
+    assert rational_value(g / 2, {g: sp.Float(0.5)}) is None

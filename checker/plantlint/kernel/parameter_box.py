@@ -34,7 +34,7 @@ from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_sign
 from plantlint.kernel.lie import Kernel, random_samples
 from plantlint.kernel.plant import as_expr
-from plantlint.kernel.rational import cancel_rational
+from plantlint.kernel.rational import cancel_rational, rational_value
 
 #: Expressions larger than this (operations) are not brought over a common denominator.
 TIDY_OPS = 1500
@@ -142,7 +142,9 @@ class ParameterBox:
 
     def ball(self, e: sp.Expr, values: dict[sp.Symbol, sp.Expr], prec: int = 128) -> arb:
         """A rigorous ball for e at exact parameter values."""
-        exact = e.xreplace(values)
+        exact = rational_value(e, values)  # the same number, without sympy building it
+        if exact is None:
+            exact = e.xreplace(values)
         if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
             return arb("nan")
         try:

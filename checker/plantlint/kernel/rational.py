@@ -13,6 +13,7 @@ from __future__ import annotations
 from typing import Any
 
 import sympy as sp
+from flint import fmpq
 from sympy.polys.domains import QQ
 from sympy.polys.fields import field as sp_field
 from sympy.polys.polyutils import _sort_gens
@@ -106,4 +107,45 @@ def vanishes_identically(c: sp.Expr) -> bool:
     return f is not None and not f.numer
 
 
-__all__ = ["cancel_rational", "vanishes_identically"]
+def rational_value(e: sp.Expr, values: dict[sp.Symbol, sp.Expr]) -> sp.Rational | None:
+    """``e.xreplace(values)`` when e is built from symbols and rational numbers by +, *
+    and integer powers and every symbol has a rational value: the tree evaluated node
+    by node in exact rationals (python-flint fmpq), which is what sympy's automatic
+    evaluation of the substituted tree computes, without building it. None otherwise,
+    and when a node divides by zero (sympy's zoo rules then decide)."""
+    memo: dict[sp.Expr, fmpq] = {}
+
+    def value(node: sp.Expr) -> fmpq:
+        done = memo.get(node)
+        if done is not None:
+            return done
+        if node.is_Rational:
+            out = fmpq(int(node.p), int(node.q))
+        elif node.is_Symbol:
+            v = values.get(node)
+            if v is None or not getattr(v, "is_Rational", False):
+                raise _NotRational
+            out = fmpq(int(v.p), int(v.q))
+        elif node.is_Add:
+            out = fmpq(0)
+            for a in node.args:
+                out += value(a)
+        elif node.is_Mul:
+            out = fmpq(1)
+            for a in node.args:
+                out *= value(a)
+        elif node.is_Pow and node.exp.is_Integer:
+            out = value(node.base) ** int(node.exp)
+        else:
+            raise _NotRational
+        memo[node] = out
+        return out
+
+    try:
+        q = value(e)
+    except (_NotRational, ZeroDivisionError):
+        return None
+    return sp.Rational(int(q.p), int(q.q))
+
+
+__all__ = ["cancel_rational", "rational_value", "vanishes_identically"]

@@ -15,7 +15,7 @@ from typing import Any
 import sympy as sp
 from flint import fmpq
 from sympy.polys.domains import QQ
-from sympy.polys.fields import field as sp_field
+from sympy.polys.rings import ring as sp_ring
 from sympy.polys.polyutils import _sort_gens
 
 
@@ -23,42 +23,69 @@ class _NotRational(Exception):
     pass
 
 
-def _in_field(e: sp.Expr) -> Any | None:
-    """e as an element of QQ(gens) (gens: its symbols, sorted as sympy's polys sort
-    generators), or None when e is not built from symbols and rational numbers by +, *
-    and integer powers, or a denominator vanishes identically."""
-    gens = tuple(_sort_gens(list(e.free_symbols)))
-    K = sp_field(gens, QQ)[0]
-    by_symbol = dict(zip(gens, K.gens))
-    memo: dict[sp.Expr, Any] = {}
+#: Fractions are reduced (a gcd) on the way only when a numerator or denominator grows
+#: beyond this total degree; the final reduction makes the result the same either way.
+REDUCE_DEGREE = 12
 
-    def build(node: sp.Expr) -> Any:
+
+def _in_field(e: sp.Expr) -> tuple[Any, Any] | None:
+    """e as a fraction (numerator, denominator) of polynomials over QQ in its symbols
+    (sorted as sympy's polys sort generators), not necessarily reduced; None when e is
+    not built from symbols and rational numbers by +, * and integer powers, or a
+    denominator vanishes identically."""
+    gens = tuple(_sort_gens(list(e.free_symbols)))
+    R = sp_ring(gens, QQ)[0]
+    one = R.one
+    by_symbol = {s: (g, one) for s, g in zip(gens, R.gens)}
+    memo: dict[sp.Expr, tuple[Any, Any]] = {}
+
+    def reduced(n: Any, d: Any) -> tuple[Any, Any]:
+        if _degree(n) > REDUCE_DEGREE or _degree(d) > REDUCE_DEGREE:
+            return n.cancel(d)
+        return n, d
+
+    def build(node: sp.Expr) -> tuple[Any, Any]:
         done = memo.get(node)
         if done is not None:
             return done
         if node.is_Symbol:
             out = by_symbol[node]
         elif node.is_Rational:
-            out = K(QQ(int(node.p), int(node.q)))
+            out = (R(QQ(int(node.p), int(node.q))), one)
         elif node.is_Add:
-            out = build(node.args[0])
+            n, d = build(node.args[0])
             for a in node.args[1:]:
-                out = out + build(a)
+                an, ad = build(a)
+                n, d = (n + an, d) if ad == d else (n * ad + an * d, d * ad)
+            out = reduced(n, d)
         elif node.is_Mul:
-            out = build(node.args[0])
+            n, d = build(node.args[0])
             for a in node.args[1:]:
-                out = out * build(a)
+                an, ad = build(a)
+                n, d = n * an, d * ad
+            out = reduced(n, d)
         elif node.is_Pow and node.exp.is_Integer:
-            out = build(node.base) ** int(node.exp)
+            n, d = build(node.base)
+            k = int(node.exp)
+            if k < 0:
+                if not n:
+                    raise ZeroDivisionError
+                n, d, k = d, n, -k
+            out = (n**k, d**k)
         else:
             raise _NotRational
         memo[node] = out
         return out
 
     try:
-        return build(e)
+        n, d = build(e)
     except (_NotRational, ZeroDivisionError):
         return None
+    return (n, d) if d else None
+
+
+def _degree(p: Any) -> int:
+    return max((sum(m) for m in p.itermonoms()), default=0)
 
 
 def cancel_rational(e: sp.Expr) -> sp.Expr | None:
@@ -76,9 +103,7 @@ def cancel_rational(e: sp.Expr) -> sp.Expr | None:
     f = _in_field(e)
     if f is None:
         return None
-    P, Q = f.numer.cancel(f.denom)
-    if not Q:
-        return None
+    P, Q = f[0].cancel(f[1])
     return P.as_expr() / Q.as_expr()
 
 
@@ -104,7 +129,7 @@ def vanishes_identically(c: sp.Expr) -> bool:
     if not unknowns:
         return False
     f = _in_field(e)
-    return f is not None and not f.numer
+    return f is not None and not f[0]
 
 
 def rational_value(e: sp.Expr, values: dict[sp.Symbol, sp.Expr]) -> sp.Rational | None:

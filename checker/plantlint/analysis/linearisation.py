@@ -158,9 +158,11 @@ def _rational_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequ
     plant = kernel.plant
     if not all(u.is_Rational for u in u0):
         return None
-    towers = kernel.towers()
     vector = kernel.point_vector(point)
-    if towers is None or vector is None:
+    if vector is None:
+        return None
+    towers = kernel.towers()
+    if towers is None:
         return None
     n, m = plant.n, plant.m
     try:

@@ -422,3 +422,65 @@ def test_check_json_carries_the_linearisation_and_validates() -> None:
     assert lin["A"][1][4] == -9.81 and lin["D"] == [[0.0, 0.0], [0.0, 0.0]]
     assert lin["cross_check"]["status"] == "agrees"
 
+
+
+# -- A, B, C at rational points by dual numbers ------------------------------------------------
+def _symbolic_matrices(kernel: Kernel, point: dict, u0: list) -> tuple[sp.Matrix, sp.Matrix, sp.Matrix]:
+    """The reference: sympy's own differentiation (sp.Matrix.jacobian, not the kernel's
+    memoised one), then the point substituted."""
+    P = kernel.plant
+    x = sp.Matrix(P.states)
+    A = sp.Matrix(P.f).jacobian(x) + sum((sp.Matrix(P.g[j]).jacobian(x) * u0[j] for j in range(P.m)),
+                                         sp.zeros(P.n, P.n))
+    B = sp.Matrix(P.n, P.m, lambda i, j: P.g[j][i])
+    C = sp.Matrix(P.h).jacobian(x)
+    return tuple(M.xreplace(point).applyfunc(sp.nsimplify) for M in (A, B, C))  # type: ignore[return-value]
+
+
+def test_dual_numbers_give_the_jacobians_at_rational_points() -> None:
+    from plantlint.analysis.linearisation import _rational_matrices
+
+    model, _ = read_model(b"""
+plant mixed "rational point through transcendental functions (invented)"
+param k = 0.5
+state p
+state v
+state h
+input F
+rate p = v*cos(p) + sqrt(h)*v
+rate v = -sin(p) - k*v^3/(1 + h) + exp(p)*F - 0.5
+rate h = 0.25 - k*sqrt(h) + atan(p)*v + log(1 + p)*F
+output y = p + tanh(v)*h
+point rest: p = 0, v = 0, h = 0.25
+point pushed: p = 0, v = 1/3, h = 1/4
+""")
+    assert model is not None
+    P = model.plant()
+    kernel = Kernel(P)
+    checked = 0
+    for op in model.points:
+        eq = solve_point(P, op.name, {model.symbol(k): v for k, v in op.values.items()}, kernel)
+        if not eq.equilibrium:
+            continue
+        point = dict(P.param_nominal)
+        point.update({s: v for s, v in eq.values.items() if s in P.states})
+        u0 = [eq.values.get(u, sp.Integer(0)) for u in P.inputs]
+        assert u0 == [sp.Rational(1, 2)]  # solved: the input's own column enters A
+        ours = _rational_matrices(kernel, point, u0)
+        assert ours is not None
+        for M, R in zip(ours, _symbolic_matrices(kernel, point, u0)):
+            assert M.shape == R.shape and all(a.is_Rational and a == b for a, b in zip(M, R))
+        checked += 1
+    assert checked >= 1
+    # not rational (sin(1/3)), not smooth (sqrt at 0) or an irrational point: None, sympy decides
+    th, w = sp.symbols("th w", real=True)
+    u = sp.Symbol("u", real=True)
+    P2 = Plant.from_matrices("arm", [th, w], [u], [w, -sp.sin(th) + sp.sqrt(w)], [[0, 1]], [th])
+    k2 = Kernel(P2)
+    assert _rational_matrices(k2, {th: sp.Rational(1, 3), w: sp.Rational(1, 4)}, [sp.Integer(0)]) is None
+    assert _rational_matrices(k2, {th: sp.Integer(0), w: sp.Integer(0)}, [sp.Integer(0)]) is None
+    assert _rational_matrices(k2, {th: sp.pi, w: sp.Integer(1)}, [sp.Integer(0)]) is None
+    A, B, C = _rational_matrices(k2, {th: sp.Integer(0), w: sp.Integer(1)}, [sp.Integer(2)])
+    # by hand: d/dth (-sin th) = -cos 0 = -1, d/dw sqrt(w) = 1/(2 sqrt 1) = 1/2
+    assert A == sp.Matrix([[0, 1], [-1, sp.Rational(1, 2)]]) and B == sp.Matrix([[0], [1]])
+    assert C == sp.Matrix([[1, 0]])

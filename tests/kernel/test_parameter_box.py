@@ -58,3 +58,4 @@ def test_zero_polynomial_equals_scipy_transmission_zeros() -> None:
         for z in ours:
             assert min(abs(zeros - z)) < 1e-6 * (1 + abs(z))
         checked += 1
+

@@ -45,6 +45,7 @@ from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import ball_elimination
 from plantlint.kernel.lie import Kernel
+from plantlint.kernel.taylor import QField
 from plantlint.language.printer import show_number
 
 #: Working precision (decimal digits) for the roots of a ball polynomial with multiple roots.
@@ -118,13 +119,17 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
     def at(e: sp.Expr) -> sp.Expr:
         return _tidy(e.xreplace(point)) if e != 0 else sp.Integer(0)
 
-    A = kernel.jacobian(plant.f).applyfunc(at)
-    for j in range(plant.m):
-        if u0[j] != 0:
-            A = A + kernel.jacobian(plant.g[j]).applyfunc(at) * u0[j]
-    A = A.applyfunc(_tidy)
-    B = sp.Matrix(plant.n, plant.m, lambda i, j: at(plant.g[j][i]))
-    C = kernel.jacobian(plant.h).applyfunc(at) if plant.p else sp.zeros(0, plant.n)
+    rational = _rational_matrices(kernel, point, u0)
+    if rational is not None:
+        A, B, C = rational
+    else:
+        A = kernel.jacobian(plant.f).applyfunc(at)
+        for j in range(plant.m):
+            if u0[j] != 0:
+                A = A + kernel.jacobian(plant.g[j]).applyfunc(at) * u0[j]
+        A = A.applyfunc(_tidy)
+        B = sp.Matrix(plant.n, plant.m, lambda i, j: at(plant.g[j][i]))
+        C = kernel.jacobian(plant.h).applyfunc(at) if plant.p else sp.zeros(0, plant.n)
     rows = [tuple(r) for r in A.tolist()]
     b_rows = [tuple(r) for r in B.tolist()]
     c_rows = [tuple(r) for r in C.tolist()]
@@ -140,6 +145,42 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
     check = cross_check(lin, zero_dynamics)
     findings = _inconsistency(name, check)
     return _with(lin, cross_check=check, findings=findings)
+
+
+def _rational_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequence[sp.Expr]
+                       ) -> tuple[sp.Matrix, sp.Matrix, sp.Matrix] | None:
+    """A, B, C at a rational point by dual numbers (one direction per state) through the
+    kernel's straight-line program of f, g, h, in exact fmpq arithmetic: the same rational
+    numbers as the symbolic Jacobians at the point, without forming them. None when a
+    value is not rational, a function is met where it is not smooth, or the program
+    cannot hold the plant: the symbolic route then decides (and shows what is not
+    rational)."""
+    plant = kernel.plant
+    if not all(u.is_Rational for u in u0):
+        return None
+    vector = kernel.point_vector(point)
+    if vector is None:
+        return None
+    towers = kernel.towers()
+    if towers is None:
+        return None
+    n, m = plant.n, plant.m
+    try:
+        values, gradients = towers.first_order(vector, QField())
+        value = [_rational(v) for v in values]
+        grad = [[_rational(d) for d in g] for g in gradients]
+    except (ArithmeticError, TypeError):  # Inexact, Undefined, a division by zero
+        return None
+    A = sp.Matrix(n, n, lambda i, a: grad[i][a] + sum((u0[j] * grad[n + j * n + i][a] for j in range(m)
+                                                        if u0[j] != 0), sp.Integer(0)))
+    B = sp.Matrix(n, m, lambda i, j: value[n + j * n + i])
+    C = sp.Matrix(plant.p, n, lambda i, a: grad[n + m * n + i][a]) if plant.p else sp.zeros(0, n)
+    return A, B, C
+
+
+def _rational(v: object) -> sp.Rational:
+    q = fmpq(v)  # type: ignore[arg-type]  # fmpq or int; anything else is not exact
+    return sp.Rational(int(q.p), int(q.q))
 
 
 def _with(lin: Linearisation, **changes: object) -> Linearisation:

@@ -31,6 +31,7 @@ from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
+from plantlint.kernel.rational import vanishes_identically
 
 if TYPE_CHECKING:
     from plantlint.kernel.structural import StructuralPlant
@@ -428,6 +429,7 @@ class Kernel:
             raise UnsupportedExpression(f"value needs {sorted(map(str, exact.free_symbols))}")
         if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
             return PointValue(arb("nan"), zd.UNDEFINED)
+        finite = False
         for prec in (128, 1024):
             try:
                 b = Program([exact], []).run([], prec=prec)[0]
@@ -435,12 +437,16 @@ class Kernel:
                 break
             if not b.is_finite():
                 return PointValue(b, zd.UNDEFINED)
+            finite = True
             if zd.of_ball(b).proven_nonzero:
                 return PointValue(b, zd.proven_nonzero("ball"))
         # every ball contains 0: decide exactly on the constant
         if not _has_functions(exact):
             c = sp.nsimplify(exact) if exact.has(sp.Float) else sp.cancel(exact)
             return PointValue(to_arb(0) if c == 0 else _safe_ball(c), zd.exactly(c == 0))
+        if finite and sp.count_ops(exact) <= EQUALS_OPS_LIMIT and vanishes_identically(exact):
+            # zero as a rational function of its transcendental parts (defined: its ball is finite)
+            return PointValue(_safe_ball(exact), zd.exactly(True, "cancel"))
         decision = bounded_equals_zero(exact)
         if not decision.certain:  # within 2^-1024 of zero, not proven symbolically: taken as zero, reported
             self.uncertain.append(exact)

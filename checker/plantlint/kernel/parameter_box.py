@@ -34,6 +34,7 @@ from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_sign
 from plantlint.kernel.lie import Kernel, random_samples
 from plantlint.kernel.plant import as_expr
+from plantlint.kernel.rational import cancel_rational, rational_value
 
 #: Expressions larger than this (operations) are not brought over a common denominator.
 TIDY_OPS = 1500
@@ -79,18 +80,33 @@ class ParameterBox:
         self.nominal = dict(plant.param_nominal)
         self.clock = timer
         self._signs: dict[sp.Expr, sp.Expr | None] = {}
+        self._tidied: dict[sp.Expr, sp.Expr] = {}  # tidy is pure for one box (signs are memoised too)
 
     def tidy(self, e: sp.Expr) -> sp.Expr:
         """Absolute values resolved by certified signs, then a common denominator when
         the expression is a rational function of p (with numeric radicals)."""
-        e = self.resolve_signs(factor_radicands(as_expr(e)))
-        if e.is_Number or sp.count_ops(e) > TIDY_OPS or has_symbolic_functions(e):
+        e = as_expr(e)
+        if e.is_Number:
             return e
-        try:
-            out = sp.cancel(sp.together(e))
-        except (sp.PolynomialError, ValueError, TypeError):
+        done = self._tidied.get(e)
+        if done is None:
+            done = self._tidied[e] = self._tidy(e)
+        return done
+
+    def _tidy(self, e: sp.Expr) -> sp.Expr:
+        e = self.resolve_signs(factor_radicands(e))
+        if e.is_Number:
             return e
-        return out if sp.count_ops(out) <= sp.count_ops(e) + 20 else e
+        ops = sp.count_ops(e)
+        if ops > TIDY_OPS or has_symbolic_functions(e):
+            return e
+        out = cancel_rational(e)
+        if out is None:
+            try:
+                out = sp.cancel(sp.together(e))
+            except (sp.PolynomialError, ValueError, TypeError):
+                return e
+        return out if sp.count_ops(out) <= ops + 20 else e
 
     def resolve_signs(self, e: sp.Expr) -> sp.Expr:
         """|a| -> a or -a where the sign of a is certified on the box (sqrt of a square
@@ -126,7 +142,9 @@ class ParameterBox:
 
     def ball(self, e: sp.Expr, values: dict[sp.Symbol, sp.Expr], prec: int = 128) -> arb:
         """A rigorous ball for e at exact parameter values."""
-        exact = e.xreplace(values)
+        exact = rational_value(e, values)  # the same number, without sympy building it
+        if exact is None:
+            exact = e.xreplace(values)
         if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
             return arb("nan")
         try:

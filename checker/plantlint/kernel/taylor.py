@@ -663,6 +663,14 @@ class Towers:
         return ([s[i][0] for i in range(n)], [[s[n + j * n + i][0] for i in range(n)] for j in range(m)],
                 [s[n + m * n + i][0] for i in range(self.p)])
 
+    def first_order(self, point: Sequence[Any], field: Any) -> tuple[list[Any], list[tuple[Any, ...]]]:
+        """The value and the gradient (along the states) of every program output at
+        ``point``: f_i, then g_j columns, then h_i, in :meth:`_out` order (dual numbers,
+        one direction per state). Df(x0), Dg_j(x0), Dh(x0) without symbolic Jacobians."""
+        unit = [[1 if a == b else 0 for b in range(self.n)] for a in range(self.n)]
+        s = self.flow(point, 0, field, unit)
+        return [_head(out[0]) for out in s], [_tangent(out[0], self.n, field) for out in s]
+
     def lie_values(self, point: Sequence[Any], order: int, field: Any) -> list[list[Any]]:
         """[i][k] = L_f^k h_i(x0) for k <= order."""
         s = self.flow(point, order, field)

@@ -1,0 +1,176 @@
+"""Rational functions with rational coefficients, in the field QQ(p) instead of as
+expression trees.
+
+``cancel_rational(e)`` is ``sp.cancel(sp.together(e))`` computed by field arithmetic
+(no gcd_terms / factor_terms rewriting of expressions), with the same resulting
+expression. ``vanishes_identically(c)`` proves an exact constant zero when it is zero
+as a rational function of its transcendental parts (exp(-160/7), sqrt(2), pi taken as
+independent unknowns); it never proves a non-zero.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import sympy as sp
+from flint import fmpq
+from sympy.polys.domains import QQ
+from sympy.polys.rings import ring as sp_ring
+from sympy.polys.polyutils import _sort_gens
+
+
+class _NotRational(Exception):
+    pass
+
+
+#: Fractions are reduced (a gcd) on the way only when a numerator or denominator grows
+#: beyond this total degree; the final reduction makes the result the same either way.
+REDUCE_DEGREE = 12
+
+
+def _in_field(e: sp.Expr) -> tuple[Any, Any] | None:
+    """e as a fraction (numerator, denominator) of polynomials over QQ in its symbols
+    (sorted as sympy's polys sort generators), not necessarily reduced; None when e is
+    not built from symbols and rational numbers by +, * and integer powers, or a
+    denominator vanishes identically."""
+    gens = tuple(_sort_gens(list(e.free_symbols)))
+    R = sp_ring(gens, QQ)[0]
+    one = R.one
+    by_symbol = {s: (g, one) for s, g in zip(gens, R.gens)}
+    memo: dict[sp.Expr, tuple[Any, Any]] = {}
+
+    def reduced(n: Any, d: Any) -> tuple[Any, Any]:
+        if _degree(n) > REDUCE_DEGREE or _degree(d) > REDUCE_DEGREE:
+            return n.cancel(d)
+        return n, d
+
+    def build(node: sp.Expr) -> tuple[Any, Any]:
+        done = memo.get(node)
+        if done is not None:
+            return done
+        if node.is_Symbol:
+            out = by_symbol[node]
+        elif node.is_Rational:
+            out = (R(QQ(int(node.p), int(node.q))), one)
+        elif node.is_Add:
+            n, d = build(node.args[0])
+            for a in node.args[1:]:
+                an, ad = build(a)
+                n, d = (n + an, d) if ad == d else (n * ad + an * d, d * ad)
+            out = reduced(n, d)
+        elif node.is_Mul:
+            n, d = build(node.args[0])
+            for a in node.args[1:]:
+                an, ad = build(a)
+                n, d = n * an, d * ad
+            out = reduced(n, d)
+        elif node.is_Pow and node.exp.is_Integer:
+            n, d = build(node.base)
+            k = int(node.exp)
+            if k < 0:
+                if not n:
+                    raise ZeroDivisionError
+                n, d, k = d, n, -k
+            out = (n**k, d**k)
+        else:
+            raise _NotRational
+        memo[node] = out
+        return out
+
+    try:
+        n, d = build(e)
+    except (_NotRational, ZeroDivisionError):
+        return None
+    return (n, d) if d else None
+
+
+def _degree(p: Any) -> int:
+    return max((sum(m) for m in p.itermonoms()), default=0)
+
+
+def cancel_rational(e: sp.Expr) -> sp.Expr | None:
+    """``sp.cancel(sp.together(e))`` for a rational function e of its symbols with
+    rational coefficients; None otherwise (the caller takes sympy's route).
+
+    The result is the same expression: sympy's cancel ends in ``P/Q`` with (P, Q) the
+    coprime pair from ``PolyElement.cancel`` over ZZ or QQ (integer coefficients,
+    contents coprime, positive leading coefficient of Q in lex order of the sorted
+    generators), which depends only on the rational function, not on how it is written;
+    generators that cancel out do not change the lex leading term.
+    """
+    if not e.free_symbols:
+        return None
+    f = _in_field(e)
+    if f is None:
+        return None
+    P, Q = f[0].cancel(f[1])
+    return P.as_expr() / Q.as_expr()
+
+
+def vanishes_identically(c: sp.Expr) -> bool:
+    """True when the constant c is zero as a rational function of its non-rational
+    parts (each distinct function value, radical or named constant replaced by an
+    unknown). Then c = 0 wherever it is defined; False proves nothing."""
+    unknowns: dict[sp.Expr, sp.Symbol] = {}
+
+    def generalise(node: sp.Expr) -> sp.Expr:
+        if node.is_Rational:
+            return node
+        if node.is_Add or node.is_Mul or (node.is_Pow and node.exp.is_Integer):
+            return node.func(*[generalise(a) for a in node.args])
+        s = unknowns.get(node)
+        if s is None:
+            s = unknowns[node] = sp.Dummy(f"t{len(unknowns)}")
+        return s
+
+    if c.free_symbols:
+        return False
+    e = generalise(c)
+    if not unknowns:
+        return False
+    f = _in_field(e)
+    return f is not None and not f[0]
+
+
+def rational_value(e: sp.Expr, values: dict[sp.Symbol, sp.Expr]) -> sp.Rational | None:
+    """``e.xreplace(values)`` when e is built from symbols and rational numbers by +, *
+    and integer powers and every symbol has a rational value: the tree evaluated node
+    by node in exact rationals (python-flint fmpq), which is what sympy's automatic
+    evaluation of the substituted tree computes, without building it. None otherwise,
+    and when a node divides by zero (sympy's zoo rules then decide)."""
+    memo: dict[sp.Expr, fmpq] = {}
+
+    def value(node: sp.Expr) -> fmpq:
+        done = memo.get(node)
+        if done is not None:
+            return done
+        if node.is_Rational:
+            out = fmpq(int(node.p), int(node.q))
+        elif node.is_Symbol:
+            v = values.get(node)
+            if v is None or not getattr(v, "is_Rational", False):
+                raise _NotRational
+            out = fmpq(int(v.p), int(v.q))
+        elif node.is_Add:
+            out = fmpq(0)
+            for a in node.args:
+                out += value(a)
+        elif node.is_Mul:
+            out = fmpq(1)
+            for a in node.args:
+                out *= value(a)
+        elif node.is_Pow and node.exp.is_Integer:
+            out = value(node.base) ** int(node.exp)
+        else:
+            raise _NotRational
+        memo[node] = out
+        return out
+
+    try:
+        q = value(e)
+    except (_NotRational, ZeroDivisionError):
+        return None
+    return sp.Rational(int(q.p), int(q.q))
+
+
+__all__ = ["cancel_rational", "rational_value", "vanishes_identically"]

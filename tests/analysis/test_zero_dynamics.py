@@ -309,3 +309,47 @@ def test_mimo_nonlinear_numeric_route_against_sympy_closed_loop() -> None:
     ref = np.linalg.eigvals(N.T @ J @ N)
     assert not zd.exact and zd.consistent and zd.verdict == "minimum_phase"
     assert_same_set(list(zd.eigenvalues), [complex(v) for v in ref], tol=1e-9)
+
+
+def test_the_failed_claim_says_how_close_to_the_axis_the_numeric_route_saw_the_eigenvalues() -> None:
+    """Invented: a link on a stiff joint, motor angle measured (relative degree 2); at a
+    hanging point with sin(1/2) in it the zero dynamics x'' = -(mgl cos q + k) x / I are
+    undamped (eigenvalues on the imaginary axis, textbook mass-spring, from memory) but the
+    numbers are not rational, so the numeric route decides within a stated tolerance; the
+    claim's message and the finding's use the same words."""
+    from plantlint.analysis.engine import check_claims, run_analysis
+    from plantlint.language.model import build_model
+    from plantlint.language.syntax import parse_text
+
+    text = """plant joint
+const mgl = 49/10
+const I = 1/2
+const J = 1/20
+const k = 80
+state q1 in -3/2 .. 3/2
+state w1 in -5 .. 5
+state q2 in -3/2 .. 3/2
+state w2 in -5 .. 5
+input tau
+rate q1 = w1
+rate w1 = (-mgl*sin(q1) - k*(q1 - q2))/I
+rate q2 = w2
+rate w2 = (tau - k*(q2 - q1))/J
+output motor = q2
+point held: q1 = 1/2, w1 = 0, q2 = 1/2 + mgl*sin(1/2)/k, w2 = 0
+expect minimum_phase at held
+"""
+    model, findings = build_model(parse_text(text), "joint.plant")
+    assert model is not None and not findings
+    analysis = run_analysis(model)
+    (zd_finding,) = [f for f in analysis.findings if f.rule == "zero-dynamics-critical"]
+    (claim,) = check_claims(analysis)
+    zd = analysis.points[0].zero_dynamics
+    assert zd is not None and zd.verdict == "critical"
+    # reference: the eigenvalues are +-i sqrt((mgl cos(1/2) + k)/I) (math, not plantlint)
+    import math
+    expected = math.sqrt((4.9 * math.cos(0.5) + 80) / 0.5)
+    assert all(abs(abs(z.imag) - expected) < 1e-6 and abs(z.real) < 1e-6 for z in zd.eigenvalues)
+    how = "exactly on the imaginary axis" if zd.exact else f"within {zd.tolerance:.3g} of the imaginary axis"
+    assert how in zd_finding.message
+    assert ("on the imaginary axis" if zd.exact else how) in claim.message

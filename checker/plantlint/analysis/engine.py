@@ -398,8 +398,10 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
             out.append((pa.name, f"at point '{pa.name}' the zero dynamics are unstable: eigenvalues "
                                  f"{show_eigenvalues(zd.eigenvalues)}"))
         elif zd.verdict == "critical":
-            out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues on the "
-                                 f"imaginary axis ({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
+            where = ("on the imaginary axis" if zd.exact or zd.tolerance is None
+                     else f"within {zd.tolerance:.3g} of the imaginary axis")
+            out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues {where} "
+                                 f"({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
                                  "asymptotic stability"))
         elif zd.verdict == "minimum_phase":
             out.extend(_box_failure(pa, "zero_dynamics"))

@@ -31,7 +31,7 @@ from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
-from plantlint.kernel.rational import vanishes_identically
+from plantlint.kernel.rational import cancel_rational, vanishes_identically
 
 if TYPE_CHECKING:
     from plantlint.kernel.structural import StructuralPlant
@@ -330,7 +330,11 @@ class Kernel:
         cached = self._cancelled.get(expr)
         if cached is None:
             try:
-                candidate = sp.cancel(sp.together(expr))
+                # a rational function is cancelled in QQ(x) directly: the same expression
+                # as sympy's route (kernel/rational.py), without its expression rewriting
+                candidate = cancel_rational(expr)
+                if candidate is None:
+                    candidate = sp.cancel(sp.together(expr))
             except (sp.PolynomialError, ValueError, TypeError):
                 candidate = expr
             cached = candidate if sp.count_ops(candidate) < sp.count_ops(expr) else expr

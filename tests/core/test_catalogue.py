@@ -31,6 +31,7 @@ from plantlint.core.findings import Severity
 from plantlint.core.resources import data_path
 from plantlint.report.rules_view import render_rules
 from plantlint.language.syntax import parse_text, symbol
+from conftest import REPO
 
 # The ids and default severities the foundation issue requires, family by family.
 EXPECTED: dict[str, list[tuple[str, str]]] = {
@@ -380,3 +381,13 @@ def test_involutivity_examples_by_brackets(catalogue: Catalogue) -> None:
         grid = np.linspace(-1, 1, 9)
         fn = sp.lambdify(states, ctrl, "numpy")
         assert all(abs(fn(a, b, c)) > 0 for a in grid for b in grid for c in grid)
+
+
+def test_the_readme_rule_table_is_the_catalogue(catalogue: Catalogue) -> None:
+    """README's table of rules lists every rule, in catalogue order, with its family,
+    default severity and title."""
+    import re
+
+    readme = (REPO / "README.md").read_text(encoding="utf-8")
+    rows = re.findall(r"^\| `([a-z-]+)` \| ([\w-]+) \| (\w+) \| (.+?) \|$", readme, re.M)
+    assert rows == [(r.id, r.family, r.severity.value, r.title) for r in catalogue]

@@ -43,6 +43,23 @@ class Run:
         return data
 
 
+#: A script run as ``python -c PINT_PROBE MODEL REPORT``: checks MODEL through the CLI
+#: (JSON to REPORT), then analyses it as a worker does, and prints whether pint was
+#: imported by then in each, and the CLI's exit code (JSON).
+PINT_PROBE = """
+import json, sys
+from pathlib import Path
+from plantlint.cli import main
+from plantlint.run.config import Config
+from plantlint.run.pipeline import analyse_bytes
+path = Path(sys.argv[1])
+code = main(["check", "--no-cache", "--jobs", "1", "--format", "json", "--output", sys.argv[2], str(path)])
+parent = "pint" in sys.modules
+raw = analyse_bytes(path.read_bytes(), Config(root=path.parent))  # what a worker runs
+print(json.dumps({"parent": parent, "worker": "pint" in sys.modules, "code": code}))
+"""
+
+
 def git_env(home: Path, ceiling: Path | None = None, **extra: str) -> dict[str, str]:
     """An environment that keeps git away from the user's own configuration."""
     cfg = home / "gitconfig"

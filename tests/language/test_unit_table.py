@@ -24,7 +24,7 @@ from plantlint.language import units
 from plantlint.language.syntax import parse_text
 from plantlint.language.units import UnitTextError, parse_unit_text, unit_names
 from plantlint.run.pipeline import read_model
-from conftest import FIXTURES, REPO
+from conftest import FIXTURES, PINT_PROBE, REPO
 
 TOOL = REPO / "tools" / "make_unit_table.py"
 TABLE = REPO / "checker" / "plantlint" / "language" / "unit_table.json"
@@ -149,19 +149,6 @@ def test_the_units_of_the_shipped_models_are_tabled() -> None:
 
 # -- (c) a model in tabled units is checked without pint --------------------------------------------
 
-NO_PINT_SCRIPT = """
-import json, sys
-from pathlib import Path
-from plantlint.cli import main
-from plantlint.run.config import Config
-from plantlint.run.pipeline import analyse_bytes
-path = Path(sys.argv[1])
-code = main(["check", "--no-cache", "--jobs", "1", "--format", "json", "--output", sys.argv[2], str(path)])
-parent = "pint" in sys.modules
-raw = analyse_bytes(path.read_bytes(), Config(root=path.parent))  # what a worker runs
-print(json.dumps({"parent": parent, "worker": "pint" in sys.modules, "code": code}))
-"""
-
 
 def test_check_of_a_model_in_tabled_units_does_not_import_pint(tmp_path: Path) -> None:
     # the demo repository's rinse tanks (per minute, litres, mol/L) carry one unit slip that
@@ -169,7 +156,7 @@ def test_check_of_a_model_in_tabled_units_does_not_import_pint(tmp_path: Path) -
     model = REPO / "example_repo" / "models" / "process" / "rinse_tanks.plant"
     assert not units.needs_pint(model.read_bytes())
     report = tmp_path / "report.json"
-    out = subprocess.run([sys.executable, "-c", NO_PINT_SCRIPT, str(model), str(report)],
+    out = subprocess.run([sys.executable, "-c", PINT_PROBE, str(model), str(report)],
                          cwd=tmp_path, capture_output=True, text=True, timeout=300)
     assert out.returncode == 0, out.stderr
     result = json.loads(out.stdout.strip().splitlines()[-1])

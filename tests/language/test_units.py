@@ -20,7 +20,7 @@ import pytest
 from plantlint.language import units
 from plantlint.language.units import UnitTextError, parse_unit_text, unit_of
 from plantlint.run.pipeline import read_model
-from conftest import REPO
+from conftest import PINT_PROBE, REPO
 
 ROOT = REPO
 EXAMPLE_MODELS = ROOT / "example_repo" / "models"
@@ -292,19 +292,6 @@ def test_example_repository_units() -> None:
 
 # -- pint stays out of runs without units or with tabled units --------------------------------
 
-LAZY_SCRIPT = """
-import json, sys
-from pathlib import Path
-from plantlint.cli import main
-from plantlint.run.config import Config
-from plantlint.run.pipeline import analyse_bytes
-path = Path(sys.argv[1])
-code = main(["check", "--no-cache", "--jobs", "1", "--format", "json", "--output", sys.argv[2], str(path)])
-parent = "pint" in sys.modules
-raw = analyse_bytes(path.read_bytes(), Config(root=path.parent))  # what a worker runs
-print(json.dumps({"parent": parent, "worker": "pint" in sys.modules, "code": code}))
-"""
-
 
 # no units; units all in the shipped table (unit_table.json); one name only pint knows (a plural)
 @pytest.mark.parametrize(("variant", "loaded"), [("none", False), ("tabled", False), ("untabled", True)])
@@ -313,7 +300,7 @@ def test_pint_is_imported_only_when_units_are_declared(tmp_path: Path, variant: 
             "untabled": PENDULUM.replace("output tip [m]", "output tip [meters]")}[variant]
     model = tmp_path / "pendulum.plant"
     model.write_text(text, encoding="utf-8")
-    out = subprocess.run([sys.executable, "-c", LAZY_SCRIPT, str(model), str(tmp_path / "report.json")],
+    out = subprocess.run([sys.executable, "-c", PINT_PROBE, str(model), str(tmp_path / "report.json")],
                          cwd=tmp_path, capture_output=True, text=True, timeout=300)
     assert out.returncode == 0, out.stderr
     result = json.loads(out.stdout.strip().splitlines()[-1])

@@ -14,7 +14,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 import math
 from fractions import Fraction
-from typing import Callable
+from typing import Any, Callable
 
 import flint
 import sympy as sp
@@ -195,6 +195,25 @@ Step = Callable[[list[arb], Sequence[arb]], arb]
 
 
 
+def fold(name: str, args: Sequence[int]) -> Step:
+    """The step that adds (``"add"``) or multiplies (``"mul"``) the registers ``args`` in
+    order (one definition for every straight-line program of balls)."""
+    if name == "add":
+        def add(regs: list[arb], values: Sequence[arb]) -> arb:
+            acc = regs[args[0]]
+            for a in args[1:]:
+                acc = acc + regs[a]
+            return acc
+        return add
+
+    def mul(regs: list[arb], values: Sequence[arb]) -> arb:
+        acc = regs[args[0]]
+        for a in args[1:]:
+            acc = acc * regs[a]
+        return acc
+    return mul
+
+
 def _step(name: str, args: tuple[int, ...], data: object) -> Step:
     """One compiled instruction as a closure (faster than dispatching on names per run)."""
     if name == "sym":
@@ -206,20 +225,8 @@ def _step(name: str, args: tuple[int, ...], data: object) -> Step:
         return lambda regs, values: arb.pi()
     if name == "e":
         return lambda regs, values: arb(1).exp()
-    if name == "add":
-        def add(regs: list[arb], values: Sequence[arb]) -> arb:
-            acc = regs[args[0]]
-            for a in args[1:]:
-                acc = acc + regs[a]
-            return acc
-        return add
-    if name == "mul":
-        def mul(regs: list[arb], values: Sequence[arb]) -> arb:
-            acc = regs[args[0]]
-            for a in args[1:]:
-                acc = acc * regs[a]
-            return acc
-        return mul
+    if name in ("add", "mul"):
+        return fold(name, args)
     if name == "pow":
         exponent = sp.Rational(data)  # type: ignore[arg-type]
         return lambda regs, values: rational_power(regs[args[0]], exponent)
@@ -295,16 +302,24 @@ class Program:
         steps = self._steps
         if steps is None:
             steps = self._steps = [_step(name, args, data) for name, args, data in self._code]
-        old = flint.ctx.prec
-        flint.ctx.prec = prec
-        try:
-            regs: list[arb] = []
-            append = regs.append
-            for step in steps:
-                append(step(regs, values))
-            return [regs[o] for o in self.outputs]
-        finally:
-            flint.ctx.prec = old
+        regs = run_steps(steps, values, prec)
+        return [regs[o] for o in self.outputs]
+
+
+def run_steps(steps: Sequence[Callable[[list[Any], Sequence[arb]], Any]], values: Sequence[arb],
+              prec: int) -> list[Any]:
+    """Every register of a straight-line program (a list of steps, each reading the
+    registers before it and the input balls), run at ``prec`` bits."""
+    old = flint.ctx.prec
+    flint.ctx.prec = prec
+    try:
+        regs: list[Any] = []
+        append = regs.append
+        for step in steps:
+            append(step(regs, values))
+        return regs
+    finally:
+        flint.ctx.prec = old
 
 
 def ball(lo: sp.Expr | float | int, hi: sp.Expr | float | int | None = None, prec: int = 128) -> arb:

@@ -28,10 +28,9 @@ from __future__ import annotations
 
 from typing import Any, Callable, Sequence
 
-import flint
 from flint import arb
 
-from plantlint.kernel.balls import UnsupportedExpression, int_power, unary
+from plantlint.kernel.balls import UnsupportedExpression, fold, int_power, run_steps, unary
 from plantlint.kernel.dag import Program, UnsupportedNode, graph_of
 
 #: A value with its sparse gradient: (ball, derivatives in the order of the register's variables).
@@ -71,20 +70,8 @@ def _value_step(op: str, args: tuple[int, ...], data: Any) -> Callable[[list[arb
         return lambda regs, values: arb(p) / q if q != 1 else arb(p)
     if op == "pi":
         return lambda regs, values: arb.pi()
-    if op == "add":
-        def add(regs: list[arb], values: Sequence[arb]) -> arb:
-            acc = regs[args[0]]
-            for a in args[1:]:
-                acc = acc + regs[a]
-            return acc
-        return add
-    if op == "mul":
-        def mul(regs: list[arb], values: Sequence[arb]) -> arb:
-            acc = regs[args[0]]
-            for a in args[1:]:
-                acc = acc * regs[a]
-            return acc
-        return mul
+    if op in ("add", "mul"):
+        return fold(op, args)
     (a0,) = args[:1]
     if op == "inv":
         return lambda regs, values: _inv(regs[a0])
@@ -173,16 +160,8 @@ class ForwardProgram:
 
     # -- value mode ------------------------------------------------------------------------
     def values(self, balls: Sequence[arb], prec: int) -> list[arb]:
-        old = flint.ctx.prec
-        flint.ctx.prec = prec
-        try:
-            regs: list[arb] = []
-            append = regs.append
-            for step in self._values:
-                append(step(regs, balls))
-            return [regs[o] for o in self.program.outputs]
-        finally:
-            flint.ctx.prec = old
+        regs = run_steps(self._values, balls, prec)
+        return [regs[o] for o in self.program.outputs]
 
     # -- forward mode ----------------------------------------------------------------------
     def _spread(self, r: int, a: int) -> tuple[int, ...]:
@@ -284,24 +263,16 @@ class ForwardProgram:
 
     def with_gradients(self, balls: Sequence[arb], prec: int) -> list[tuple[arb, list[arb]]]:
         """(enclosure, gradient enclosure) of every output over the balls ``balls``."""
-        old = flint.ctx.prec
-        flint.ctx.prec = prec
-        try:
-            regs: list[Dual] = []
-            append = regs.append
-            for step in self._duals:
-                append(step(regs, balls))
-            d = len(self.symbols)
-            out = []
-            for o in self.program.outputs:
-                v, grad = regs[o]
-                dense = [arb(0)] * d
-                for k, g in zip(self._deps[o], grad):
-                    dense[k] = g
-                out.append((v, dense))
-            return out
-        finally:
-            flint.ctx.prec = old
+        regs: list[Dual] = run_steps(self._duals, balls, prec)
+        d = len(self.symbols)
+        out = []
+        for o in self.program.outputs:
+            v, grad = regs[o]
+            dense = [arb(0)] * d
+            for k, g in zip(self._deps[o], grad):
+                dense[k] = g
+            out.append((v, dense))
+        return out
 
 
 def _apply_one(op: str, data: Any, a: arb) -> arb:

@@ -8,7 +8,7 @@ import random
 import mpmath
 import sympy as sp
 
-from plantlint.kernel.rational import cancel_rational, vanishes_identically
+from plantlint.kernel.rational import cancel_rational, cancel_together, vanishes_identically
 
 
 def _random_rational(rng: random.Random, symbols: list[sp.Symbol], depth: int) -> sp.Expr:
@@ -110,3 +110,11 @@ def test_rational_value_is_sympys_substitution() -> None:
     assert rational_value(sp.sqrt(2) * g, {g: sp.Integer(1)}) is None
     assert rational_value(g + symbols[1], {g: sp.Integer(1)}) is None  # a symbol without a value
     assert rational_value(g / 2, {g: sp.Float(0.5)}) is None
+
+
+def test_cancel_together_is_sympys_cancel_of_together_on_either_route() -> None:
+    # reference: sympy's cancel(together(e)), to the expression (srepr), for a rational
+    # function (field route) and for one with a function in it (sympy's route)
+    x, y = sp.symbols("x y", real=True)
+    for e in ((x**2 - y**2) / (x - y) + 1 / (x + 1), (sp.sin(x)**2 - 1) / (sp.sin(x) - 1) + y / x):
+        assert sp.srepr(cancel_together(e)) == sp.srepr(sp.cancel(sp.together(e)))

@@ -20,6 +20,7 @@ from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.exact import ZeroDecider, number_decider, rank as exact_rank
 from plantlint.language.printer import show_expr
 from plantlint.kernel.lie import Kernel
+from plantlint.kernel.rational import cancel_together
 
 #: Larger systems are not handed to sympy's solver (it has no time limit).
 MAX_SOLVE_UNKNOWNS = 4
@@ -244,7 +245,7 @@ def _cancel_with_trig_identity(expr: sp.Expr) -> sp.Expr:
     (an exact rewrite, not a heuristic simplification); large ones stay as they are."""
     if sp.count_ops(expr) > MAX_RESULT_OPS:
         return expr
-    out = sp.cancel(sp.together(expr))
+    out = cancel_together(expr)
     angles = {c.args[0] for c in out.atoms(sp.cos)} & {s.args[0] for s in out.atoms(sp.sin)}
     if angles:
         out = sp.cancel(out.subs({sp.cos(a) ** 2: 1 - sp.sin(a) ** 2 for a in angles}))

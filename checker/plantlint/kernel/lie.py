@@ -31,7 +31,7 @@ from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
-from plantlint.kernel.rational import cancel_rational, vanishes_identically
+from plantlint.kernel.rational import cancel_together, vanishes_identically
 
 if TYPE_CHECKING:
     from plantlint.kernel.structural import StructuralPlant
@@ -330,11 +330,7 @@ class Kernel:
         cached = self._cancelled.get(expr)
         if cached is None:
             try:
-                # a rational function is cancelled in QQ(x) directly: the same expression
-                # as sympy's route (kernel/rational.py), without its expression rewriting
-                candidate = cancel_rational(expr)
-                if candidate is None:
-                    candidate = sp.cancel(sp.together(expr))
+                candidate = cancel_together(expr)
             except (sp.PolynomialError, ValueError, TypeError):
                 candidate = expr
             cached = candidate if sp.count_ops(candidate) < sp.count_ops(expr) else expr
@@ -575,7 +571,7 @@ def confirm_zero(expr: sp.Expr) -> ZeroDecision:
         if not _has_functions(expr):
             return zd.proven_nonzero("expand")
     if not _has_functions(expr):
-        if sp.cancel(sp.together(expr)) == 0:
+        if cancel_together(expr) == 0:
             return zd.proven_zero("cancel")
         return zd.proven_nonzero("cancel")
     if sp.count_ops(expr) <= SIMPLIFY_OPS_LIMIT:

@@ -34,7 +34,7 @@ from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_sign
 from plantlint.kernel.lie import Kernel, random_samples
 from plantlint.kernel.plant import as_expr
-from plantlint.kernel.rational import cancel_rational, rational_value
+from plantlint.kernel.rational import cancel_together, rational_value
 
 #: Expressions larger than this (operations) are not brought over a common denominator.
 TIDY_OPS = 1500
@@ -100,12 +100,10 @@ class ParameterBox:
         ops = sp.count_ops(e)
         if ops > TIDY_OPS or has_symbolic_functions(e):
             return e
-        out = cancel_rational(e)
-        if out is None:
-            try:
-                out = sp.cancel(sp.together(e))
-            except (sp.PolynomialError, ValueError, TypeError):
-                return e
+        try:
+            out = cancel_together(e)
+        except (sp.PolynomialError, ValueError, TypeError):
+            return e
         return out if sp.count_ops(out) <= ops + 20 else e
 
     def resolve_signs(self, e: sp.Expr) -> sp.Expr:
@@ -281,7 +279,7 @@ def boundary_factor(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, s
     if sp.count_ops(e) > BOUNDARY_OPS or has_symbolic_functions(e):
         return None
     try:
-        num, den = sp.cancel(sp.together(e)).as_numer_denom()
+        num, den = cancel_together(e).as_numer_denom()
         factors = sp.factor_list(num)[1] + sp.factor_list(den)[1]
     except (sp.PolynomialError, ValueError, TypeError):
         return None

@@ -107,6 +107,14 @@ def cancel_rational(e: sp.Expr) -> sp.Expr | None:
     return P.as_expr() / Q.as_expr()
 
 
+def cancel_together(e: sp.Expr) -> sp.Expr:
+    """``sp.cancel(sp.together(e))``: by field arithmetic where e is a rational function
+    (:func:`cancel_rational`, the same expression), by sympy otherwise (whose errors,
+    such as ``PolynomialError``, reach the caller as before)."""
+    out = cancel_rational(e)
+    return out if out is not None else sp.cancel(sp.together(e))
+
+
 def vanishes_identically(c: sp.Expr) -> bool:
     """True when the constant c is zero as a rational function of its non-rational
     parts (each distinct function value, radical or named constant replaced by an
@@ -173,4 +181,4 @@ def rational_value(e: sp.Expr, values: dict[sp.Symbol, sp.Expr]) -> sp.Rational 
     return sp.Rational(int(q.p), int(q.q))
 
 
-__all__ = ["cancel_rational", "rational_value", "vanishes_identically"]
+__all__ = ["cancel_rational", "cancel_together", "rational_value", "vanishes_identically"]

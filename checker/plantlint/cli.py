@@ -240,10 +240,7 @@ def _check(args: argparse.Namespace) -> int:
                            skip_source="--skip on the command line")
         if args.fail_on:
             changes["fail_on"] = Severity.parse(args.fail_on)
-        if args.timeout is not None:
-            if not math.isfinite(args.timeout) or args.timeout <= 0:
-                raise ConfigError("--timeout must be a positive, finite number of seconds")
-            changes["timeout"] = args.timeout
+        changes.update(_timeout_change(args.timeout))
         if args.profile is not None:
             changes["profile"] = args.profile
         if args.jobs is not None:
@@ -475,12 +472,25 @@ def _merge(args: argparse.Namespace) -> int:
     return _emit(report, args.format, args.output, args.color)
 
 
+def _timeout_change(timeout: float | None) -> dict[str, float]:
+    """The configuration change that ``--timeout`` asks for (none when not given)."""
+    from plantlint.run.config import ConfigError
+
+    if timeout is None:
+        return {}
+    if not math.isfinite(timeout) or timeout <= 0:
+        raise ConfigError("--timeout must be a positive, finite number of seconds")
+    return {"timeout": timeout}
+
+
 def _plot(args: argparse.Namespace) -> int:
     from plantlint.report.plots import INSTALL_HINT, matplotlib_missing
 
     if matplotlib_missing():
         print(f"plantlint: {INSTALL_HINT}", file=sys.stderr)
         return EXIT_USAGE
+    from dataclasses import replace
+
     from plantlint.core.catalogue import load_catalogue
     from plantlint.core.deadline import TimeUp, expired, within
     from plantlint.report.plots import plot_model
@@ -493,13 +503,11 @@ def _plot(args: argparse.Namespace) -> int:
     try:
         config = load_config(_config_start(args.paths), Path(args.config) if args.config else None,
                              frozenset(load_catalogue().ids()))
+        config = replace(config, **_timeout_change(args.timeout))
         targets = discover(args.paths, config.root, config.include, config.exclude)
     except (ConfigError, UsageError) as exc:
         return _fail(str(exc))
-    if args.timeout is not None and (not math.isfinite(args.timeout) or args.timeout <= 0):
-        return _fail("--timeout must be a positive, finite number of seconds")
-    seconds, why = (args.timeout, f"{args.timeout:g} s per model, set explicitly") if args.timeout is not None \
-        else config.budget()
+    seconds, why = config.budget()
     out = Path(args.out)
     status = EXIT_OK
     written: set[str] = set()

@@ -45,7 +45,7 @@ from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import ball_elimination
 from plantlint.kernel.lie import Kernel
-from plantlint.kernel.taylor import QField
+from plantlint.kernel.rational import sympy_rational
 from plantlint.language.printer import show_number
 
 #: Working precision (decimal digits) for the roots of a ball polynomial with multiple roots.
@@ -149,38 +149,22 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
 
 def _rational_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequence[sp.Expr]
                        ) -> tuple[sp.Matrix, sp.Matrix, sp.Matrix] | None:
-    """A, B, C at a rational point by dual numbers (one direction per state) through the
-    kernel's straight-line program of f, g, h, in exact fmpq arithmetic: the same rational
-    numbers as the symbolic Jacobians at the point, without forming them. None when a
-    value is not rational, a function is met where it is not smooth, or the program
-    cannot hold the plant: the symbolic route then decides (and shows what is not
-    rational)."""
+    """A, B, C at a rational point from the kernel's exact first-order values
+    (:meth:`Kernel.first_order_at`); None when they are not rational there: the symbolic
+    route then decides (and shows what is not rational)."""
     plant = kernel.plant
     if not all(u.is_Rational for u in u0):
         return None
-    vector = kernel.point_vector(point)
-    if vector is None:
+    first = kernel.first_order_at(point)
+    if first is None:
         return None
-    towers = kernel.towers()
-    if towers is None:
-        return None
+    value, grad = first
     n, m = plant.n, plant.m
-    try:
-        values, gradients = towers.first_order(vector, QField())
-        value = [_rational(v) for v in values]
-        grad = [[_rational(d) for d in g] for g in gradients]
-    except (ArithmeticError, TypeError):  # Inexact, Undefined, a division by zero
-        return None
     A = sp.Matrix(n, n, lambda i, a: grad[i][a] + sum((u0[j] * grad[n + j * n + i][a] for j in range(m)
                                                         if u0[j] != 0), sp.Integer(0)))
     B = sp.Matrix(n, m, lambda i, j: value[n + j * n + i])
     C = sp.Matrix(plant.p, n, lambda i, a: grad[n + m * n + i][a]) if plant.p else sp.zeros(0, n)
     return A, B, C
-
-
-def _rational(v: object) -> sp.Rational:
-    q = fmpq(v)  # type: ignore[arg-type]  # fmpq or int; anything else is not exact
-    return sp.Rational(int(q.p), int(q.q))
 
 
 def _with(lin: Linearisation, **changes: object) -> Linearisation:
@@ -397,7 +381,7 @@ def _roots(poly: fmpq_poly) -> tuple[complex, ...]:
 
 def _poly_text(poly: fmpq_poly) -> str:
     s = sp.Symbol("s")
-    coeffs = [sp.Rational(int(c.p), int(c.q)) for c in reversed(poly.coeffs())]
+    coeffs = [sympy_rational(c) for c in reversed(poly.coeffs())]
     return str(sp.Poly(coeffs, s).as_expr()).replace("**", "^") if coeffs else "0"
 
 

@@ -27,6 +27,7 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.lie import Kernel
+from plantlint.kernel.rational import sympy_rational
 from plantlint.language.printer import show_number
 
 VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
@@ -130,27 +131,25 @@ def _taylor_point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Sy
     except (Inexact, Undefined, ZeroDivisionError):
         return None
 
-    def q(v: object) -> sp.Rational:
-        return sp.Rational(int(v.p), int(v.q))  # type: ignore[attr-defined]
-
-    A0 = sp.Matrix([[q(decoupling[j][i][degrees[i] - 1][0]) for j in range(m)] for i in range(p)])
-    dA = [sp.Matrix([[q(decoupling[j][i][degrees[i] - 1][1][k]) for j in range(m)] for i in range(p)])
+    A0 = sp.Matrix([[sympy_rational(decoupling[j][i][degrees[i] - 1][0]) for j in range(m)] for i in range(p)])
+    dA = [sp.Matrix([[sympy_rational(decoupling[j][i][degrees[i] - 1][1][k]) for j in range(m)] for i in range(p)])
           for k in range(n)]
-    at = {s: v for s, v in point.items()}
-    Df0 = kernel.jacobian(plant.f).xreplace(at)
-    DG0 = [kernel.jacobian(plant.g[j]).xreplace(at) for j in range(m)]
-    if not all(e.is_Rational for M in (Df0, *DG0) for e in M):
+    first = kernel.first_order_at(point)  # Df(x0), Dg_j(x0) by dual numbers, exactly
+    if first is None:
         return None
+    grad = first[1]
+    Df0 = sp.Matrix(grad[:n])
+    DG0 = [sp.Matrix(grad[n + j * n: n + (j + 1) * n]) for j in range(m)]
     return _PointData(
-        f0=sp.Matrix([q(v) for v in f0]),
-        G0=sp.Matrix([[q(G0[j][i]) for j in range(m)] for i in range(n)]),
+        f0=sp.Matrix([sympy_rational(v) for v in f0]),
+        G0=sp.Matrix([[sympy_rational(G0[j][i]) for j in range(m)] for i in range(n)]),
         Df0=Df0,
         DG0=DG0,
         A0=A0,
-        b0=sp.Matrix([q(values[i][degrees[i]]) for i in range(p)]),
+        b0=sp.Matrix([sympy_rational(values[i][degrees[i]]) for i in range(p)]),
         dA=dA,
-        db=[sp.Matrix([q(grads[i][degrees[i]][k]) for i in range(p)]) for k in range(n)],
-        dXi=sp.Matrix([[q(v) for v in grads[i][k]] for i in range(p) for k in range(degrees[i])]),
+        db=[sp.Matrix([sympy_rational(grads[i][degrees[i]][k]) for i in range(p)]) for k in range(n)],
+        dXi=sp.Matrix([[sympy_rational(v) for v in grads[i][k]] for i in range(p) for k in range(degrees[i])]),
     )
 
 
@@ -302,7 +301,7 @@ def _complex(c: acb, sign: int | None) -> complex:
 
 def _poly_text(poly: flint.fmpq_poly) -> str:
     s = sp.Symbol("s")
-    return str(sp.Poly([sp.Rational(int(c.p), int(c.q)) for c in reversed(poly.coeffs())], s).as_expr())
+    return str(sp.Poly([sympy_rational(c) for c in reversed(poly.coeffs())], s).as_expr())
 
 
 # -- numeric route --------------------------------------------------------------------

@@ -24,6 +24,8 @@ from collections.abc import Sequence
 import sympy as sp
 from flint import fmpq, fmpq_mpoly_ctx
 
+from plantlint.kernel.rational import sympy_rational
+
 #: Bound on the terms of an intermediate numerator (beyond it: not decided here).
 MAX_TERMS = 200_000
 #: Bound on an integer exponent read by multiplying out.
@@ -86,7 +88,7 @@ def expanded(expr: sp.Expr) -> sp.Expr | None:
     terms = []
     for exps, coeff in numerator.terms():  # type: ignore[attr-defined]
         factors = [order[i] ** (k - d) for i, (k, d) in enumerate(zip(exps, den)) if k != d]
-        terms.append(sp.Mul(sp.Rational(int(coeff.p), int(coeff.q)), *factors))
+        terms.append(sp.Mul(sympy_rational(coeff), *factors))
     return sp.Add(*terms)
 
 
@@ -332,5 +334,5 @@ class FieldRing:
         terms = []
         for exps, coeff in num.terms():  # type: ignore[attr-defined]
             factors = [self.order[i] ** (k - d) for i, (k, d) in enumerate(zip(exps, den)) if k != d]
-            terms.append(sp.Mul(sp.Rational(int(coeff.p), int(coeff.q)), *factors))
+            terms.append(sp.Mul(sympy_rational(coeff), *factors))
         return sp.Add(*terms)

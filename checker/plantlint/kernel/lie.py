@@ -31,7 +31,7 @@ from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
-from plantlint.kernel.rational import cancel_together, vanishes_identically
+from plantlint.kernel.rational import cancel_together, sympy_rational, vanishes_identically
 
 if TYPE_CHECKING:
     from plantlint.kernel.structural import StructuralPlant
@@ -88,6 +88,7 @@ class Kernel:
         self._derivatives: dict[tuple[sp.Expr, sp.Symbol], sp.Expr] = {}
         self._free: dict[sp.Expr, frozenset[sp.Symbol]] = {}
         self._cancelled: dict[sp.Expr, sp.Expr] = {}
+        self._first_order: dict[tuple[Fraction, ...], "tuple[list[sp.Rational], list[list[sp.Rational]]] | None"] = {}
         self._poly: "_PolynomialTowers | None | bool" = False
         self._ring: "FieldRing | None | bool" = False
         self._expanded_ad: dict[tuple[int, int], tuple[object, ...]] = {}
@@ -119,6 +120,32 @@ class Kernel:
             except UnsupportedNode:
                 self._towers = None
         return self._towers  # type: ignore[return-value]
+
+    def first_order_at(self, point: dict[sp.Symbol, object]
+                       ) -> tuple[list[sp.Rational], list[list[sp.Rational]]] | None:
+        """The values and the state gradients of f_i, the g_j columns and h_i (in that
+        order) at an exact rational point, as sympy Rationals: dual numbers through the
+        straight-line program in exact fmpq (the numbers of the symbolic Jacobians at the
+        point, without forming them); memoised per point. None when a value on the way is
+        not rational, a function is met where it is not smooth, or the program cannot hold
+        the plant."""
+        from plantlint.kernel.taylor import QField
+
+        vector = self.point_vector(point)
+        if vector is None:
+            return None
+        key = tuple(vector)
+        if key not in self._first_order:
+            towers = self.towers()
+            out = None
+            if towers is not None:
+                try:
+                    values, gradients = towers.first_order(vector, QField())
+                    out = ([sympy_rational(v) for v in values], [[sympy_rational(d) for d in g] for g in gradients])
+                except (ArithmeticError, TypeError):  # not rational, undefined, a division by zero
+                    out = None
+            self._first_order[key] = out
+        return self._first_order[key]
 
     def point_vector(self, point: dict[sp.Symbol, object]) -> list[Fraction] | None:
         """States then ranged parameters of an exact rational point (missing parameters

@@ -107,6 +107,12 @@ def cancel_rational(e: sp.Expr) -> sp.Expr | None:
     return P.as_expr() / Q.as_expr()
 
 
+def sympy_rational(q: Any) -> sp.Rational:
+    """A flint ``fmpq`` (or ``fmpz``/int, through ``fmpq``) as a sympy Rational."""
+    q = fmpq(q)
+    return sp.Rational(int(q.p), int(q.q))
+
+
 def cancel_together(e: sp.Expr) -> sp.Expr:
     """``sp.cancel(sp.together(e))``: by field arithmetic where e is a rational function
     (:func:`cancel_rational`, the same expression), by sympy otherwise (whose errors,
@@ -178,7 +184,7 @@ def rational_value(e: sp.Expr, values: dict[sp.Symbol, sp.Expr]) -> sp.Rational 
         q = value(e)
     except (_NotRational, ZeroDivisionError):
         return None
-    return sp.Rational(int(q.p), int(q.q))
+    return sympy_rational(q)
 
 
-__all__ = ["cancel_rational", "cancel_together", "rational_value", "vanishes_identically"]
+__all__ = ["cancel_rational", "cancel_together", "rational_value", "sympy_rational", "vanishes_identically"]

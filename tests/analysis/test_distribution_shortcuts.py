@@ -7,6 +7,9 @@
   ranks recomputed with plain sympy (Matrix.jacobian, Matrix.rank); that a distribution
   spanned by coordinate fields is involutive is the Frobenius theorem's trivial case
   (Isidori, Nonlinear Control Systems, 3rd ed., sec. 1.4, from memory).
+* The small float solve that orders the rows of bordered minors is compared with
+  ``numpy.linalg.solve`` (and, on singular systems, checked to satisfy the equations it
+  can).
 """
 
 from __future__ import annotations
@@ -16,7 +19,7 @@ import sympy as sp
 from scipy.sparse import csr_matrix
 from scipy.sparse.csgraph import maximum_bipartite_matching
 
-from plantlint.analysis.distributions import _structurally_nonsingular, analyse_distributions, distributions_at
+from plantlint.analysis.distributions import _float_solve, _structurally_nonsingular, analyse_distributions, distributions_at
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.plant import Plant
 
@@ -70,3 +73,18 @@ def test_coordinate_distribution_shortcut_matches_plain_sympy_brackets():
     assert at.ranks[0] == sp.Matrix.hstack(G1, G2).subs(origin).rank() == 2
     assert at.controllability_rank == sp.Matrix.hstack(G1, G2, *ads).subs(origin).rank() == 4
     assert at.state_linearizable
+
+
+def test_row_ordering_solve_agrees_with_numpy():
+    rng = np.random.default_rng(7)
+    for _ in range(200):
+        k = int(rng.integers(1, 9))
+        M = rng.normal(size=(k, k)) * rng.choice([1e-3, 1.0, 1e3], size=(k, 1))
+        b = rng.normal(size=k)
+        ours = np.array(_float_solve(M.tolist(), b.tolist()))
+        theirs = np.linalg.solve(M, b)
+        assert np.allclose(ours, theirs, rtol=1e-7, atol=1e-9 * np.abs(theirs).max())
+    # singular: a zero column leaves its unknown at 0 and the rest still solves the system
+    M = [[1.0, 0.0, 2.0], [3.0, 0.0, 1.0], [0.0, 0.0, 0.0]]
+    x = _float_solve(M, [5.0, 5.0, 0.0])
+    assert x[1] == 0.0 and np.allclose(np.array(M) @ np.array(x), [5.0, 5.0, 0.0])

@@ -36,7 +36,7 @@ from __future__ import annotations
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
-from math import gcd, lcm
+from math import gcd, isfinite, lcm
 
 import sympy as sp
 from flint import arb
@@ -260,18 +260,19 @@ class _BorderedMinors:
         return [float(b.mid()) if b.is_finite() else 0.0 for b in balls]
 
     def _row_order(self, column: Vector, upto: int) -> list[int]:
-        """Rows outside I, largest floating-point Schur residual first."""
-        import numpy as np  # here: a check that never orders rows does not load numpy
-
-        values = np.array(self._numeric(column))
+        """Rows outside I, largest floating-point Schur residual first: the column less
+        its combination of the basis that matches it on the rows I (a heuristic only;
+        every decision is a proof on the exact minors)."""
+        values = self._numeric(column)
         rows = self.rows[:upto]
         residual = values
         if rows:
-            basis = np.array(self._floats[:upto]).T  # n x upto
-            coefficients = np.linalg.lstsq(basis[rows, :], values[rows], rcond=None)[0]
-            residual = values - basis @ coefficients
+            basis = self._floats[:upto]  # upto columns of n floats
+            square = [[basis[j][i] for j in range(len(rows))] for i in rows]
+            coefficients = _float_solve(square, [values[i] for i in rows])
+            residual = [values[i] - sum(c * basis[j][i] for j, c in enumerate(coefficients)) for i in range(self.n)]
         free = [i for i in range(self.n) if i not in rows]
-        return sorted(free, key=lambda i: -abs(float(residual[i])))
+        return sorted(free, key=lambda i: -abs(residual[i]))
 
     def _det(self, rows: tuple[int, ...], columns: list[Vector], key_columns: int) -> sp.Expr:
         """Laplace expansion along the last column, memoised over the basis prefix."""
@@ -391,6 +392,34 @@ def _structurally_nonsingular(rows: Sequence[int], columns: Sequence[frozenset[i
         return False
 
     return all(augment(r, [False] * size) for r in range(size))
+
+
+def _float_solve(M: list[list[float]], b: list[float]) -> list[float]:
+    """x with M x = b for a small square M (Gaussian elimination with partial pivoting);
+    an unknown whose pivot vanishes in floating point is set to 0. Used only to order
+    rows, so rounding can change an order, never a result."""
+    k = len(b)
+    A = [list(row) + [rhs] for row, rhs in zip(M, b)]
+    pivots: list[int | None] = []
+    r = 0
+    for c in range(k):
+        best = max(range(r, k), key=lambda i: abs(A[i][c]), default=None)
+        if best is None or not isfinite(A[best][c]) or A[best][c] == 0.0:
+            pivots.append(None)
+            continue
+        A[r], A[best] = A[best], A[r]
+        for i in range(r + 1, k):
+            factor = A[i][c] / A[r][c]
+            if factor:
+                A[i] = [a - factor * p for a, p in zip(A[i], A[r])]
+        pivots.append(r)
+        r += 1
+    x = [0.0] * k
+    for c in reversed(range(k)):
+        row = pivots[c]
+        if row is not None:
+            x[c] = (A[row][k] - sum(A[row][j] * x[j] for j in range(c + 1, k))) / A[row][c]
+    return x
 
 
 def _ball_det_nonzero(M: list[list[arb]]) -> bool:

@@ -423,7 +423,12 @@ def analyse_all(
     ``explain``, each result also carries the derivation that explain shows)."""
     if not datas:
         return []
-    import plantlint.analysis.engine  # noqa: F401  (imported before forking: workers start warm)
+    # imported before forking, so that workers start warm: the engine and what it loads on first use
+    import plantlint.analysis.engine  # noqa: F401
+    import plantlint.analysis.refine  # noqa: F401
+    import plantlint.analysis.serialise  # noqa: F401
+    import plantlint.kernel.structural  # noqa: F401
+    import plantlint.kernel.taylor  # noqa: F401
     from plantlint.run.pipeline import read_model
 
     # Read one small model before forking: the parser tables, the unit table and what sympy

@@ -81,11 +81,12 @@ class Analysis:
 
 
 def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
-                 stage: Stage | None = None) -> Analysis:
+                 stage: Stage | None = None, write_out: bool = True) -> Analysis:
     """All stages for one model whose model-family checks passed.
 
     ``stage(name, analysis)`` is called as each stage completes (the runner sends a
-    snapshot then, so that a stop keeps the completed work)."""
+    snapshot then, so that a stop keeps the completed work). ``write_out`` also solves
+    for the zero dynamics symbolically, for display (``explain``); no verdict uses it."""
     plant = model.plant()
     assert plant is not None, "analysis needs an input-affine model"
     kernel = Kernel(plant)
@@ -129,7 +130,7 @@ def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
         if pa.zero_dynamics.verdict == "not_applicable" and sum(ints) == plant.n:
             pa.normal_form = _full_normal_form(kernel, ints)
         elif pa.zero_dynamics.verdict != "undefined" and sum(ints) < plant.n:
-            pa.normal_form = normal_form_at(kernel, ints, pa.equilibrium.values)
+            pa.normal_form = normal_form_at(kernel, ints, pa.equilibrium.values, write_out)
     result.done("zero dynamics", stage)
 
     for pa in result.points:  # A, B, C at each equilibrium, cross-checked with the zero dynamics

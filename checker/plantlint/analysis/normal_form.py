@@ -30,6 +30,8 @@ MAX_RESULT_OPS = 100
 #: Wall-clock bound of writing the zero dynamics out (display only: the verdict comes from
 #: zero_dynamics.py); beyond it the step is dropped with a note.
 DISPLAY_SECONDS = 1.0
+#: The note of a normal form whose zero dynamics were not written out (``check``).
+WRITTEN_BY_EXPLAIN = "the zero dynamics are written out by `plantlint explain` (display only)"
 
 
 @dataclass(frozen=True)
@@ -56,8 +58,11 @@ def xi_name(expr: sp.Expr, output: str, k: int) -> str:
     return output if k == 0 else (f"L_f {output}" if k == 1 else f"L_f^{k} {output}")
 
 
-def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Symbol, sp.Expr]) -> NormalForm:
-    """Normal-form coordinates at ``eq_values`` for the given relative degrees."""
+def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Symbol, sp.Expr],
+                   write_out: bool = True) -> NormalForm:
+    """Normal-form coordinates at ``eq_values`` for the given relative degrees; with
+    ``write_out``, the zero dynamics solved and written out symbolically as well
+    (display only, for ``explain``: no verdict depends on it)."""
     plant = kernel.plant
     n = plant.n
     point = dict(plant.param_nominal)
@@ -86,7 +91,9 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
         input_free = input_free and rank == before
     eta = tuple(chosen)
     dynamics, note = None, ""
-    if rank == n:
+    if rank == n and not write_out:
+        note = WRITTEN_BY_EXPLAIN
+    elif rank == n:
         try:
             with within(DISPLAY_SECONDS) as step:
                 dynamics, note = _symbolic_zero_dynamics(kernel, degrees, xi, eta, point, decide)

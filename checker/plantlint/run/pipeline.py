@@ -141,7 +141,7 @@ def analyse_bytes(data: bytes, settings: AnalysisSettings | Config = AnalysisSet
             findings=[locate(f, model.spans) for f in [*findings, *analysis.findings, *decided]],
             pending=[locate(f, model.spans) for f in pending], explain=derivation(analysis)))
 
-    analysis = run_analysis(model, settings, stage)
+    analysis = run_analysis(model, settings, stage, write_out=explain)  # the symbolic zero dynamics: explain only
     result.analysis = analysis_json(analysis)
     result.explain = derivation(analysis)
     result.stages = list(analysis.completed)

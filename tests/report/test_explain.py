@@ -36,6 +36,10 @@ def test_json_report_of_the_contract_sample() -> None:
     # (any mechanics text; g = 9.81, L = 2.2 from the file).
     omega = math.sqrt(9.81 / 2.2)
     assert f"±{omega:.6g}i" in zd["eigenvalues"]
+    # ... whose characteristic polynomial is s^2 + g/L, g/L = 9.81/2.2 = 981/220, written with ^ as
+    # the linearisation's is
+    assert zd["characteristic_polynomial"] == "s^2 + 981/220"
+    assert "^" in rest["linearisation"]["characteristic_polynomial"]
     waived = [f for f in data["findings"] if f["waived"]]
     assert [f["rule"] for f in waived] == ["zero-dynamics-critical"]
 

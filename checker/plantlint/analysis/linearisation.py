@@ -45,7 +45,7 @@ from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import ball_elimination
 from plantlint.kernel.lie import Kernel
-from plantlint.kernel.rational import sympy_rational
+from plantlint.kernel.rational import polynomial_text
 from plantlint.language.printer import show_number
 
 #: Working precision (decimal digits) for the roots of a ball polynomial with multiple roots.
@@ -209,10 +209,10 @@ def _exact(name: str, A_: sp.Matrix, B_: sp.Matrix, C_: sp.Matrix, states: Seque
         else:
             monic = det / det.coeffs()[-1]
             zeros = _roots(monic)
-            zpoly = _poly_text(monic)
+            zpoly = polynomial_text(monic)
     elif p != m:
         note = f"not square ({p} output(s), {m} input(s)): transmission zeros are computed for square plants"
-    return Linearisation(name, "computed", exact=True, poles=_roots(chi), characteristic_polynomial=_poly_text(chi),
+    return Linearisation(name, "computed", exact=True, poles=_roots(chi), characteristic_polynomial=polynomial_text(chi),
                          controllability_rank=ctrl_rank, uncontrollable=uncontrollable, observability_rank=obs_rank,
                          unobservable=unobservable, zeros=zeros, zero_polynomial=zpoly, zeros_note=note)
 
@@ -325,7 +325,7 @@ def _unobservable(A: fmpq_mat, O: fmpq_mat, states: Sequence[sp.Symbol]) -> tupl
 def _group(q: fmpz_poly, mult: int, vectors: list[list[fmpq]], states: Sequence[sp.Symbol]) -> ModeGroup:
     factor = fmpq_poly(q) ** mult
     factor = factor / factor.coeffs()[-1]  # monic: the modes read off directly
-    return ModeGroup(_roots(factor), _poly_text(factor), tuple(_combination(v, states) for v in vectors))
+    return ModeGroup(_roots(factor), polynomial_text(factor), tuple(_combination(v, states) for v in vectors))
 
 
 def _power_poly(q: fmpz_poly, mult: int, A: fmpq_mat) -> fmpq_mat:
@@ -377,12 +377,6 @@ def _roots(poly: fmpq_poly) -> tuple[complex, ...]:
     finally:
         flint.ctx.prec = old
     return tuple(sorted(out, key=lambda z: (z.real, z.imag)))
-
-
-def _poly_text(poly: fmpq_poly) -> str:
-    s = sp.Symbol("s")
-    coeffs = [sympy_rational(c) for c in reversed(poly.coeffs())]
-    return str(sp.Poly(coeffs, s).as_expr()).replace("**", "^") if coeffs else "0"
 
 
 def _combination(v: Sequence[fmpq], states: Sequence[sp.Symbol]) -> str:

@@ -27,7 +27,7 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.lie import Kernel
-from plantlint.kernel.rational import sympy_rational
+from plantlint.kernel.rational import polynomial_text, sympy_rational
 from plantlint.language.printer import show_number
 
 VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
@@ -245,7 +245,7 @@ def _exact_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics:
     eigs = [(z, sign) for z, sign, mult in roots for _ in range(mult)]
     eigs.sort(key=lambda e: (e[0].real, e[0].imag))
     return _verdict(name, d, eigs, exact=all(s is not None for _, s, _ in roots), tolerance=None,
-                    consistent=consistent, polynomial=_poly_text(poly))
+                    consistent=consistent, polynomial=polynomial_text(poly))
 
 
 def _classify_roots(P: fmpz_poly) -> list[tuple[complex, int | None, int]]:
@@ -297,11 +297,6 @@ def _signs(balls: list[tuple[acb, int]], omegas: list[object]) -> list[int | Non
 def _complex(c: acb, sign: int | None) -> complex:
     re = 0.0 if sign == 0 else float(c.real.mid())
     return complex(re, float(c.imag.mid()))
-
-
-def _poly_text(poly: flint.fmpq_poly) -> str:
-    s = sp.Symbol("s")
-    return str(sp.Poly([sympy_rational(c) for c in reversed(poly.coeffs())], s).as_expr())
 
 
 # -- numeric route --------------------------------------------------------------------

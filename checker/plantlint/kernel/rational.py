@@ -113,6 +113,15 @@ def sympy_rational(q: Any) -> sp.Rational:
     return sp.Rational(int(q.p), int(q.q))
 
 
+def polynomial_text(poly: Any, variable: str = "s") -> str:
+    """A flint ``fmpq_poly`` written as sympy writes it, powers with ``^``
+    (``s^2 + 3*s/4 - 1``); the zero polynomial is ``0``."""
+    coeffs = [sympy_rational(c) for c in reversed(poly.coeffs())]
+    if not coeffs:
+        return "0"
+    return str(sp.Poly(coeffs, sp.Symbol(variable)).as_expr()).replace("**", "^")
+
+
 def cancel_together(e: sp.Expr) -> sp.Expr:
     """``sp.cancel(sp.together(e))``: by field arithmetic where e is a rational function
     (:func:`cancel_rational`, the same expression), by sympy otherwise (whose errors,

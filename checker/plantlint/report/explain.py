@@ -220,7 +220,7 @@ def _render_zero_dynamics(console: Any, zd: dict[str, Any]) -> None:
     if zd["eigenvalues"]:
         text += f"; eigenvalues {zd['eigenvalues']}"
     if zd["characteristic_polynomial"]:
-        text += f"; p(s) = {zd['characteristic_polynomial'].replace('**', '^')}"
+        text += f"; p(s) = {zd['characteristic_polynomial']}"
     console.print(text + (" (exact)" if zd["exact"] and zd["dimension"] else ""))
     if zd["reason"]:
         console.print(f"    ({zd['reason']})")

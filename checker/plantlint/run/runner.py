@@ -18,6 +18,7 @@ are kept in input order.
 from __future__ import annotations
 
 import hashlib
+import importlib
 import json
 import multiprocessing
 import os
@@ -405,6 +406,10 @@ def _context() -> Any:
     return multiprocessing.get_context("spawn")
 
 
+#: Modules every analysis needs, imported before forking.
+_PRELOAD = ("plantlint.analysis.engine", "plantlint.analysis.refine", "plantlint.analysis.serialise",
+            "plantlint.kernel.structural", "plantlint.kernel.taylor")
+
 #: A small model read before forking (invented; it exercises sums, products, quotients,
 #: powers, functions and units).
 _WARM_UP = (b"plant warm\nconst k = 2 [1/s]\nconst L = 1 [m]\nconst v = 1 [m/s]\nstate x [m] in -1 .. 1\n"
@@ -424,11 +429,8 @@ def analyse_all(
     if not datas:
         return []
     # imported before forking, so that workers start warm: the engine and what it loads on first use
-    import plantlint.analysis.engine  # noqa: F401
-    import plantlint.analysis.refine  # noqa: F401
-    import plantlint.analysis.serialise  # noqa: F401
-    import plantlint.kernel.structural  # noqa: F401
-    import plantlint.kernel.taylor  # noqa: F401
+    for module in _PRELOAD:
+        importlib.import_module(module)
     from plantlint.run.pipeline import read_model
 
     # Read one small model before forking: the parser tables, the unit table and what sympy

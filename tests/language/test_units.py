@@ -348,3 +348,12 @@ def test_extreme_unit_scales_do_not_crash() -> None:
             "let c = a*a*a\nlet d = b*b*b\nrate x = x/c + x*d + x/(c*d)\n")
     for rule, *_ in unit_findings(text):
         assert rule == "unit-mismatch"
+
+
+def test_scale_of_a_squared_time_is_not_shown_as_another_time_unit() -> None:
+    # (m^3/s^2)/mm^2 = 1e6 m/s^2 (SI Brochure, 9th ed., table 7: milli = 1e-3). It is
+    # also m/ms^2, but nobody wrote a millisecond: the message shows the factor instead.
+    scaled = unit_of("m^3/s^2") / unit_of("mm^2")
+    assert math.isclose(scaled.factor, 1e6) and scaled.base_text() == "1e+06 m/s^2"
+    # a rate per minute is still shown per minute (1 K/min = 1/60 K/s)
+    assert (unit_of("K") / unit_of("min")).base_text() == "K/min"

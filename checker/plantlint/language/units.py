@@ -102,12 +102,14 @@ class Unit:
 
     def base_text(self) -> str:
         """In SI base units, with the scale in front when it is not 1: ``kg*m/s^2``,
-        ``0.001 m^3``; a scale that is a unit of time to the time exponent is shown as
-        that unit (``K/min``, not ``0.0166667 K/s``)."""
+        ``0.001 m^3``; a rate whose scale is another unit of time is shown per that unit
+        (``K/min``, not ``0.0166667 K/s``). Only for time to the power +-1: a scale of 1e6
+        on m/s^2 came from elsewhere (mm in a denominator, say), and ``m/ms^2`` would
+        name a millisecond nobody wrote."""
         time = dict(self.dims).get(TIME)
         symbols = dict(BASE_SYMBOLS)
         factor = self.factor
-        if time and not self.same_scale(ONE):
+        if time in (1, -1) and not self.same_scale(ONE):
             for symbol, seconds in (("min", 60.0), ("h", 3600.0), ("d", 86400.0), ("ms", 1e-3)):
                 if math.isclose(factor, seconds ** float(time), rel_tol=1e-9):
                     symbols[TIME], factor = symbol, 1.0

@@ -23,6 +23,7 @@ def test_constructors_write_the_documented_texts() -> None:
     assert anchors.output("y") == "output y"
     assert anchors.rate("v") == "rate v"
     assert anchors.let("e") == "let e"
+    assert anchors.range_of("x") == "range x" and anchors.range_of("x", "bound") == "range x bound"
     assert anchors.declaration("param", "k", "unused") == "param k unused"
     assert anchors.claim("relative_degree", "y", "rest") == "expect relative_degree(y) at rest"
     assert anchors.claim("regular") == "expect regular"

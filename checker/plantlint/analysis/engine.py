@@ -95,7 +95,8 @@ def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
     result.findings.extend(structure.findings)
     result.done("structure", stage)
 
-    result.envelope = certify_envelope(kernel, structure, settings.envelope_seconds, settings.envelope_boxes)
+    result.envelope = certify_envelope(kernel, structure, settings.envelope_seconds, settings.envelope_boxes,
+                                       model.spans)
     result.findings.extend(result.envelope.findings)
     result.done("envelope", stage)
 

@@ -20,14 +20,14 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass
 from itertools import combinations
-from typing import Any, Sequence
+from typing import Any, Mapping, Sequence
 
 import sympy as sp
 
 from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
-from plantlint.core.findings import Finding
+from plantlint.core.findings import Finding, Span
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
 from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.kernel import decision as zd, exact
@@ -430,13 +430,17 @@ class _Clock:
 
 
 def certify_envelope(
-    kernel: Kernel, structure: Structure, budget_seconds: float = 5.0, max_boxes: int = 20000
+    kernel: Kernel, structure: Structure, budget_seconds: float = 5.0, max_boxes: int = 20000,
+    spans: Mapping[str, Span] | None = None,
 ) -> Envelope:
     """Is the (vector) relative degree well defined on the whole operating envelope?
 
     The model must be proven defined on the box first (a singular model makes
     the plant irregular, and its poles would only exhaust the budget of the
     decoupling proof). Undecided boxes give ``regular=None``, never a guess.
+    With the model's ``spans``, a singular envelope is shown at the range of the first
+    state (or ranged parameter) that the vanishing factor depends on: the range to
+    narrow, rather than the first range of the model.
     """
     plant = kernel.plant
     missing = [str(s) for s in plant.states if s not in plant.state_box]
@@ -474,7 +478,7 @@ def certify_envelope(
         centre = {str(s): float((lo + hi) / 2) for s, (lo, hi) in box.items()}
         return Envelope(False, None, centre, tuple(findings), clock.boxes, clock.seconds, "generic structure")
     exprs, certified = _regularity_expressions(kernel, structure)
-    verdict = _certify_by_factors(kernel, exprs, box, clock)
+    verdict, culprit = _certify_by_factors(kernel, exprs, box, clock)
     if verdict.regular is False:
         assert verdict.witness is not None
         findings.append(finding(
@@ -482,6 +486,7 @@ def certify_envelope(
             f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
             f"at {show_point(verdict.witness)}"
             + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)"),
+            _range_to_narrow(culprit, box, spans),
             anchor=anchors.ENVELOPE, hint="narrow the envelope, move it off the singular set, or choose other outputs",
         ))
         return Envelope(False, None, verdict.witness, tuple(findings), clock.boxes, clock.seconds, certified)
@@ -508,15 +513,16 @@ def certify_envelope(
 
 
 def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbol, Any],
-                        clock: _Clock) -> EnvelopeVerdict:
+                        clock: _Clock) -> tuple[EnvelopeVerdict, list[sp.Expr]]:
     """A single expression that factors is non-zero exactly when every factor is;
     each factor usually involves few variables and has far less dependency, so it
-    is certified on its own (the margin is the product of the factors' margins)."""
+    is certified on its own (the margin is the product of the factors' margins).
+    Also returns what a witness of singularity makes vanish: the factor, else ``exprs``."""
     factors = kernel.factors(exprs[0]) if len(exprs) == 1 else []
     if len(factors) < 2 and len(exprs) == 1:
         factors = product_factors(exprs[0])
     if len(factors) < 2:
-        return clock.spent(certify_nonzero(exprs, box, clock.budget()))
+        return clock.spent(certify_nonzero(exprs, box, clock.budget())), exprs
     (constant, _), parts = factors[0], factors[1:]
     margin: float | None = abs(float(constant))
     undecided: list[EnvelopeVerdict] = []
@@ -525,7 +531,7 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
         verdict = clock.spent(certify_nonzero([part], box, clock.budget()))
         boxes += verdict.boxes_examined
         if verdict.regular is False:
-            return verdict
+            return verdict, [part]
         if verdict.regular is None:
             undecided.append(verdict)
         elif verdict.margin is not None and margin is not None and multiplicity > 0:
@@ -535,8 +541,21 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
     if undecided:
         first = undecided[0]
         return EnvelopeVerdict(None, None, None, first.undecided, boxes,
-                               sum(v.undecided_count for v in undecided))
-    return EnvelopeVerdict(True, margin, None, [], boxes)
+                               sum(v.undecided_count for v in undecided)), exprs
+    return EnvelopeVerdict(True, margin, None, [], boxes), exprs
+
+
+def _range_to_narrow(culprit: list[sp.Expr], box: dict[sp.Symbol, Any],
+                     spans: Mapping[str, Span] | None) -> Span | None:
+    """The span of the range of the first quantity of the box (states, then ranged
+    parameters, in declaration order) that ``culprit`` depends on; None without spans."""
+    if spans is None:
+        return None
+    used = set().union(*(e.free_symbols for e in culprit)) if culprit else set()
+    for s in box:
+        if s in used and anchors.range_of(str(s)) in spans:
+            return spans[anchors.range_of(str(s))]
+    return None
 
 
 def product_factors(expr: sp.Expr) -> list[tuple[sp.Expr, int]]:

@@ -50,6 +50,11 @@ def rate(state: str | None, *detail: object) -> str:
     return declaration("rate", state, *detail)
 
 
+def range_of(name: str | None, *detail: object) -> str:
+    """The range (``in LO .. HI``) of a state, input or parameter: ``"range NAME"``."""
+    return about("range", name, *detail)
+
+
 def let(name: str | None, *detail: object) -> str:
     """A definition: ``"let NAME"``."""
     return declaration("let", name, *detail)

@@ -275,6 +275,8 @@ def _ranges(scope: _Scope, body: list[Statement], ranged: list[str]) -> list[str
         bounds = _range_bounds(scope, st, q)
         if bounds is not None:
             scope.quantities[q.name] = replace(q, low=bounds[0], high=bounds[1])
+            if st.range_span is not None:
+                scope.spans[anchors.range_of(q.name)] = st.range_span
     for name, q in scope.quantities.items():
         if q.kind == "param" and q.low is None and q.value is not None:
             scope.constants[symbol(name)] = q.value
@@ -291,7 +293,7 @@ def _range_bounds(scope: _Scope, st: Statement, q: Quantity) -> tuple[sp.Expr, s
         return None
     if not _less(lo, hi):
         scope.add("bad-range", f"range of '{q.name}' is empty: {_show(lo)} .. {_show(hi)} needs LO < HI",
-                  st.range_span, anchors.about("range", q.name))
+                  st.range_span, anchors.range_of(q.name))
         return None
     if q.kind == "param" and q.value is not None and not (_less_eq(lo, q.value) and _less_eq(q.value, hi)):
         scope.add("bad-range", f"nominal value {_show(q.value)} of '{q.name}' lies outside its range {_show(lo)} .. {_show(hi)}",
@@ -461,11 +463,11 @@ def _range_value(scope: _Scope, st: Statement, expr: Expression) -> sp.Expr | No
             return None
         if target.kind not in ("const", "param"):
             scope.add("bad-range", f"range of '{st.name}' uses the {target.kind} '{ref.name}'; ranges must be constant",
-                      ref.span, anchors.about("range", st.name, "not", "constant"))
+                      ref.span, anchors.range_of(st.name, "not", "constant"))
             return None
     value = expr.value.xreplace(scope.constants).xreplace(_nominals(scope))
     if value.free_symbols or not value.is_finite:
-        scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, anchors.about("range", st.name, "bound"))
+        scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, anchors.range_of(st.name, "bound"))
         return None
     return value
 

@@ -167,6 +167,7 @@ def test_not_decided_alone_is_its_own_outcome_in_every_format(lift: Path, monkey
     assert "checked 1 file: 0 errors, 0 warnings, 0 notes, 0 waived, 3 not decided" in text
     assert ("NOT DECIDED: 1 model could not be checked (1 cut short; budget 2 s per model, set explicitly), "
             "2 claims not decided") in text
+    assert text.count("1 model could not be checked (1 cut short") == 1  # said once, by the verdict
     assert "PASSED" not in text
     lines = _render(report, "lines").splitlines()
     assert lines[0] == ("lift.plant:1:1: error: could not be checked: the analysis stopped at its 2 s budget in stage "

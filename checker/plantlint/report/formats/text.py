@@ -249,9 +249,7 @@ class TextFormatter:
                 ),
                 soft_wrap=True,
             )
-        undecided = undecided_phrase(report)
-        if undecided:
-            console.print(Text(f"not decided: {undecided}", style="bold yellow"), soft_wrap=True)
+        # what was not decided is said once, by the closing verdict
         relaxed = relaxation_text(report)
         if relaxed:
             console.print(Text(relaxed, style="magenta"), soft_wrap=True)

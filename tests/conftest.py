@@ -46,6 +46,26 @@ class Run:
 #: A script run as ``python -c PINT_PROBE MODEL REPORT``: checks MODEL through the CLI
 #: (JSON to REPORT), then analyses it as a worker does, and prints whether pint was
 #: imported by then in each, and the CLI's exit code (JSON).
+# Magnetic levitation with the coil current as a state (demo numbers, invented):
+# x' = v, v' = g - k i^2 / (m x^2), i' = (-R i + u) / L.
+MAGLEV = b"""plant maglev
+const grav = 9.81
+param k = 0.0001
+param m = 0.05
+param R = 2
+param L = 0.1
+state x in 0.005 .. 0.02
+state v in -1 .. 1
+state i in 0.1 .. 2
+input u in -20 .. 20
+rate x = v
+rate v = grav - k*i^2/(m*x^2)
+rate i = (-R*i + u)/L
+output y = x
+point hover: x = 0.01, v = 0, i = 0.7004
+"""
+
+
 PINT_PROBE = """
 import json, sys
 from pathlib import Path

@@ -12,6 +12,7 @@ import pytest
 
 from plantlint.run.config import Config, ConfigError, load_config
 from plantlint.run.pipeline import analyse_bytes, read_model
+from conftest import MAGLEV
 
 # One tank of a quadruple-tank rig (demo numbers, invented): the level at the
 # operating point is written from the flow through a `let`, as engineers do.
@@ -65,24 +66,6 @@ def test_missing_state_is_reported_once() -> None:
     assert rules(text) == ["point-incomplete"]
 
 
-# Magnetic levitation with the coil current as a state (demo numbers, invented):
-# x' = v, v' = g - k i^2 / (m x^2), i' = (-R i + u) / L.
-MAGLEV = b"""plant maglev
-const grav = 9.81
-param k = 0.0001
-param m = 0.05
-param R = 2
-param L = 0.1
-state x in 0.005 .. 0.02
-state v in -1 .. 1
-state i in 0.1 .. 2
-input u in -20 .. 20
-rate x = v
-rate v = grav - k*i^2/(m*x^2)
-rate i = (-R*i + u)/L
-output y = x
-point hover: x = 0.01, v = 0, i = 0.7004
-"""
 # The force balance m g = k i^2 / x^2 gives i = x sqrt(m g / k) (the magnetic suspension
 # of Khalil, Nonlinear Systems 3rd ed., Exercise 1.18, from memory), here by math.sqrt:
 I_EXACT = 0.01 * math.sqrt(0.05 * 9.81 / 0.0001)

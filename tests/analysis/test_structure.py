@@ -21,7 +21,8 @@ from plantlint.analysis.structure import (
     structure_at_point,
 )
 from plantlint.analysis.serialise import envelope_json, point_json, structure_json
-from conftest import linear_plant
+from plantlint.run.pipeline import analyse_bytes
+from conftest import MAGLEV, linear_plant
 
 I = sp.Integer
 R = sp.Rational
@@ -453,39 +454,21 @@ def test_domain_conditions_render_their_description_only_when_shown(monkeypatch)
     assert "denominator -1 + x1^2" in words
 
 
-MAGLEV = """plant maglev
-const g = 9.81
-param m = 0.05
-param L0 = 0.02
-param R = 4
-param k = 0.00002
-state z in 0.004 .. 0.03
-state v in -1 .. 1
-state i in -3 .. 3
-input V in 0 .. 24
-rate z = v
-rate v = g - k*i^2/(m*z^2)
-rate i = (V - R*i)/L0
-output gap = z
-"""
-
 
 def test_singular_envelope_is_shown_at_the_range_to_narrow() -> None:
-    # Magnetic levitation with a voltage input (invented numbers). Independent reference,
-    # plain sympy: L_g L_f^2 z = d/dx(L_f^2 z) . g, with L_f^2 z = g - k i^2/(m z^2) and
-    # g = (0, 0, 1/L0): -2 k i/(m L0 z^2), which vanishes exactly where i = 0. That the
-    # range of i (line 9) is the one to narrow, not the first range (z, line 7), is the
-    # point of the check.
-    z, v, i = sp.symbols("z v i")
-    k, m, L0 = sp.Rational(2, 100000), sp.Rational(5, 100), sp.Rational(2, 100)
-    lf2 = 9.81 - k * i**2 / (m * z**2)
-    assert sp.simplify(sp.diff(lf2, i) / L0 - (-2 * k * i / (m * L0 * z**2))) == 0
-    from plantlint.run.pipeline import analyse_bytes
-
-    raw = analyse_bytes(MAGLEV.encode())
+    # The magnetic levitation model of conftest with the coil current allowed through zero.
+    # Independent reference, plain sympy: L_g L_f^2 x = d/di(L_f^2 x) * (1/L), with
+    # L_f^2 x = grav - k i^2/(m x^2): -2 k i/(m L x^2), which vanishes exactly where i = 0.
+    # That the range of i (line 9) is the one to narrow, not the first range (x, line 7),
+    # is the point of the check.
+    x, i = sp.symbols("x i")
+    k, m, L = sp.Rational(1, 10000), sp.Rational(5, 100), sp.Rational(1, 10)
+    lf2 = sp.Rational(981, 100) - k * i**2 / (m * x**2)
+    assert sp.simplify(sp.diff(lf2, i) / L - (-2 * k * i / (m * L * x**2))) == 0
+    through_zero = MAGLEV.replace(b"state i in 0.1 .. 2", b"state i in -2 .. 2")
+    raw = analyse_bytes(through_zero)
     (singular,) = [f for f in raw.findings if f.rule == "envelope-singular"]
     assert "i = 0" in singular.message and singular.anchor == "envelope"
     assert singular.span is not None and (singular.span.line, singular.span.column) == (9, 9)
-    # with i kept away from zero the envelope is regular
-    raw = analyse_bytes(MAGLEV.replace("state i in -3 .. 3", "state i in 0.1 .. 3").encode())
-    assert "envelope-singular" not in [f.rule for f in raw.findings]
+    # as written (i in 0.1 .. 2) the envelope is regular
+    assert "envelope-singular" not in [f.rule for f in analyse_bytes(MAGLEV).findings]

@@ -397,11 +397,23 @@ def suite(quick: bool = False) -> list[ModelSpec]:
 #: Sizes of the scaling families (issue: growth fitted from n = 2 to 20).
 CHAIN_SIZES = (2, 3, 4, 5, 6, 8, 10, 12, 14, 16, 18, 20)
 DENSE_SIZES = (2, 4, 6, 8, 10, 12, 14, 16)
+#: Beyond them, only to tell polynomial from exponential growth (twice the largest size):
+#: the fitted exponents stay on the sizes above.
+EXTENDED_CHAIN_SIZES = (30, 40)
+EXTENDED_DENSE_SIZES = (24, 32)
+
+
+def extended_names() -> frozenset[str]:
+    """Names of the models of the extended sizes."""
+    return frozenset([pendulum_chain(n).name for n in EXTENDED_CHAIN_SIZES]
+                     + [dense_chain(n).name for n in EXTENDED_DENSE_SIZES])
 
 
 def scaling_suite() -> list[ModelSpec]:
-    """The pendulum chain up to n = 20 (40 states) and the dense chain up to 16 states."""
-    return [pendulum_chain(n) for n in CHAIN_SIZES if n > 3] + [dense_chain(n) for n in DENSE_SIZES]
+    """The pendulum chain up to n = 20 (40 states) and the dense chain up to 16 states, then
+    the extended sizes (80 and 32 states)."""
+    return ([pendulum_chain(n) for n in CHAIN_SIZES if n > 3] + [dense_chain(n) for n in DENSE_SIZES]
+            + [pendulum_chain(n) for n in EXTENDED_CHAIN_SIZES] + [dense_chain(n) for n in EXTENDED_DENSE_SIZES])
 
 
 def write_suite(folder: Path, quick: bool = False, specs: list[ModelSpec] | None = None

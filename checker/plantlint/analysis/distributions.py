@@ -147,6 +147,9 @@ class PointDistributions:
     bracket_inside_at_point: bool | None = None
     witness: dict[str, float] | None = None
     m: int = 1  # inputs (names D_k for one, G_k for several)
+    #: some fields are undefined at the point (a derivative does not exist there): the ranks
+    #: are lower bounds, so no rank deficit is reported and no verdict is drawn from them
+    undefined: bool = False
 
 
 def involutivity_reason(pd: PointDistributions, name: str) -> str:
@@ -663,10 +666,12 @@ def distributions_at(
     if len(ranks) < n and kalman is not None:
         control_rank, basis = _kalman_rank(kalman, n, decide)
     notes: list[str] = list(structure.uncertain)
-    vectors = _missing_vectors(kernel, basis, notes) if control_rank < n else []
+    undefined = bool(decide.undefined)
+    vectors = _missing_vectors(kernel, basis, notes) if control_rank < n and not undefined else []
     missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
-    if decide.undefined:
-        notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds")
+    if undefined:
+        notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds, "
+                     "so no rank deficit is reported")
     for k in singular:
         notes.append(
             f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it: "
@@ -674,9 +679,9 @@ def distributions_at(
         )
     # `involutive` keeps its meaning (brackets stay in the distributions near the point; a
     # one-dimensional distribution always is); a rank drop is the constant-rank condition
-    linearizable = control_rank == n and not singular and structure.involutive
+    linearizable = control_rank == n and not singular and structure.involutive and not undefined
     inside_at_point, witness = _witness_near(kernel, structure, name, values, notes)
-    findings = _point_findings(structure, name, ranks, control_rank, singular, missing)
+    findings = [] if undefined else _point_findings(structure, name, ranks, control_rank, singular, missing)
     searched = m == 1 and linearizable and structure.outputs is not None
     output = _linearizing_output(structure, values, notes) if searched else None
     return PointDistributions(
@@ -698,6 +703,7 @@ def distributions_at(
         bracket_inside_at_point=inside_at_point,
         witness=witness,
         m=m,
+        undefined=undefined,
     )
 
 

@@ -429,6 +429,9 @@ def _state_linearizable_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | Non
         pd = pa.distributions
         if pd is None:
             out.append((pa.name, f"point '{pa.name}' is incomplete"))
+        elif pd.undefined:
+            out.append((pa.name, Undecided(f"at point '{pa.name}' some fields of the distributions are undefined "
+                                           "(a derivative does not exist there), so their ranks are only lower bounds")))
         elif not pd.state_linearizable:
             why = []
             n = len(pd.ranks)

@@ -18,7 +18,7 @@ from plantlint.kernel.balls import UnsupportedExpression
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
-from plantlint.kernel.exact import ZeroDecider, gauss_jordan, number_decider
+from plantlint.kernel.exact import ZeroDecider, gauss_jordan, number_decider, has_undefined
 from plantlint.kernel.lie import Kernel
 from plantlint.language.printer import show_number
 from plantlint.kernel.plant import Plant, as_expr
@@ -81,7 +81,7 @@ def solve_point(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], kernel
     subs.update({s: values[s] for s in plant.states})
     f0 = [_at(e, subs) for e in plant.f]
     G0 = [[_at(plant.g[j][i], subs) for j in range(plant.m)] for i in range(plant.n)]
-    undefined = [plant.states[i] for i in range(plant.n) if _undefined([f0[i], *G0[i]])]
+    undefined = [plant.states[i] for i in range(plant.n) if has_undefined([f0[i], *G0[i]])]
     if undefined:
         report(
             "point-not-equilibrium",
@@ -251,10 +251,6 @@ def _certainly_negative(value: sp.Expr, decide: ZeroDecider) -> bool:
 
 def _at(expr: sp.Expr, subs: dict[sp.Symbol, sp.Expr]) -> sp.Expr:
     return expr.xreplace(subs) if expr != 0 else expr
-
-
-def _undefined(values: Sequence[sp.Expr]) -> bool:
-    return any(v.has(sp.zoo, sp.nan, sp.oo, -sp.oo) for v in values)
 
 
 def _names(symbols: Sequence[sp.Symbol]) -> str:

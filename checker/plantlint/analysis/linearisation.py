@@ -43,7 +43,7 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
-from plantlint.kernel.exact import ball_elimination
+from plantlint.kernel.exact import ball_elimination, has_undefined
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.rational import polynomial_text
 from plantlint.language.printer import show_number
@@ -134,7 +134,7 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
     b_rows = [tuple(r) for r in B.tolist()]
     c_rows = [tuple(r) for r in C.tolist()]
     entries = [e for M in (A, B, C) for e in M]
-    if any(e.has(sp.zoo, sp.nan, sp.oo, -sp.oo) for e in entries):
+    if has_undefined(entries):
         return Linearisation(name, "undefined", reason="a derivative of the rates or outputs is undefined at the point",
                              A=tuple(rows), B=tuple(b_rows), C=tuple(c_rows))
     if all(e.is_Rational for e in entries):

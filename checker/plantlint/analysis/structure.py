@@ -316,13 +316,14 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
             continue
         degrees[out.name] = None
         all_defined = False
-        undefined = any(not s.taken_zero for s in states)
+        undefined = [not s.taken_zero for s in states]
+        state = "undefined" if all(undefined) else ("zero or undefined" if any(undefined) else "zero")
         shown = "; ".join(f"{lie_name(kernel, j, i, r - 1)} = {readable(e)}" for j, e in enumerate(out.row))
         findings.append(finding(
             "relative-degree-ill-defined",
             f"relative degree of {out.name} is not defined at point {name}: "
-            + ("the model is undefined there: " if undefined else "")
-            + f"{shown} {'is' if len(out.row) == 1 else 'are all'} zero there "
+            + ("the model is undefined there: " if any(undefined) else "")
+            + f"{shown} {'is' if len(out.row) == 1 else 'are all'} {state} there "
             f"(generic relative degree {r})",
             point=name, anchor=anchors.point(name),
             hint="move the operating point off the singular set, or choose another output",

@@ -22,7 +22,7 @@ import mpmath
 import sympy as sp
 from flint import acb, fmpq, fmpq_mat, fmpz_poly
 
-from plantlint.kernel.exact import number_decider, rank as exact_rank
+from plantlint.kernel.exact import number_decider, rank as exact_rank, has_undefined
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
@@ -68,9 +68,12 @@ class _PointData:
     db: list[sp.Matrix]
     dXi: sp.Matrix  # r x n
 
-    def rational(self) -> bool:
+    def entries(self) -> list[sp.Expr]:
         mats = [self.f0, self.G0, self.Df0, self.A0, self.b0, self.dXi, *self.DG0, *self.dA, *self.db]
-        return all(e.is_Rational for m in mats for e in m)
+        return [e for m in mats for e in m]
+
+    def rational(self) -> bool:
+        return all(e.is_Rational for e in self.entries())
 
 
 def zero_dynamics_at(
@@ -91,6 +94,9 @@ def zero_dynamics_at(
     if missing:
         return ZeroDynamics(name, n - r, "undefined", reason="point lacks " + ", ".join(map(str, missing)))
     data = _point_data(kernel, degrees, point)
+    if has_undefined(data.entries()):
+        return ZeroDynamics(name, n - r, "undefined",
+                            reason="a derivative of the rates or outputs is undefined at the point")
     decide = number_decider(kernel)
     if _singular(data.A0, decide):
         return ZeroDynamics(name, n - r, "undefined", reason="decoupling matrix is singular at the point")

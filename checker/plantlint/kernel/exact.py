@@ -34,6 +34,12 @@ def number_decider(kernel: "object") -> ZeroDecider:
     return decide
 
 
+def has_undefined(values: Any) -> bool:
+    """True when a value at a point is infinite or undefined (``zoo``, ``oo``, ``nan``): a
+    rate, or a derivative, that does not exist there (d sqrt(w)/dw at w = 0)."""
+    return any(as_expr(v).has(sp.zoo, sp.nan, sp.oo, -sp.oo) for v in values)
+
+
 def magnitude(value: sp.Expr) -> float:
     """A float size for pivot choice only (never for a zero decision)."""
     if value.is_Rational:

@@ -60,6 +60,19 @@ CASES: dict[str, tuple[Callable[[], bytes], str | None, int | None]] = {
     "many_signs": (lambda: _wrap("-" * 100_000 + "x + u"), "syntax", 4),
     "long_sum": (lambda: _wrap(" + ".join(["x"] * 50_000) + " + u"), "syntax", 4),
     "only_comments": (lambda: b"# nothing but a comment\n", "syntax", 1),
+    # powers of numbers that become too large only once names are replaced by their values
+    # (sympy would compute them exactly and never finish)
+    "tower_through_a_constant": (lambda: b"plant p\nconst k = 300\nstate x in -1 .. 1\ninput u in -1 .. 1\n"
+                                         b"rate x = -x + 2^2^k*u\noutput y = x\n", "syntax", 5),
+    "tower_in_a_parameter": (lambda: b"plant p\nconst k = 400\nparam c = 3^(2^k)\nstate x in -1 .. 1\n"
+                                     b"input u in -1 .. 1\nrate x = -c*x + u\noutput y = x\n", "syntax", 3),
+    "tower_in_a_range": (lambda: b"plant p\nconst k = 300\nstate x in -1 .. 2^2^k\ninput u in -1 .. 1\n"
+                                 b"rate x = -x + u\noutput y = x\n", "syntax", 3),
+    "tower_in_a_point": (lambda: b"plant p\nparam a = 12 in 6 .. 48\nparam b = 24\nstate x in -1 .. 1\n"
+                                 b"input u in -1 .. 1\nrate x = -x + u\noutput y = x\n"
+                                 b"point rest: x = 48^2^(a*b)\n", "syntax", 8),
+    "tower_below_limit": (lambda: b"plant p\nconst k = 10\nstate x in -1 .. 1\ninput u in -1 .. 1\n"
+                                  b"rate x = -x + u/2^2^k\noutput y = x\n", None, None),
     "signs_below_limit": (lambda: _wrap("-" * 150 + "x + u"), None, None),
     "moderate_sum": (lambda: _wrap(" + ".join(f"{i}*x" for i in range(1, 300)) + " + u"), None, None),
 }
@@ -108,6 +121,8 @@ def test_messages_say_what_is_wrong() -> None:
         "nul_byte": "NUL", "invalid_utf8": "UTF-8", "long_name": "name", "unterminated_string": "closing",
         "empty_file": "empty", "huge_literal": "out of range", "tower_of_powers": "exponent",
         "many_signs": "signs", "long_sum": "tokens", "many_statements": "tokens",
+        "tower_through_a_constant": "too large", "tower_in_a_parameter": "too large",
+        "tower_in_a_range": "too large", "tower_in_a_point": "too large",
     }
     for name, word in words.items():
         raw = analyse_bytes(CASES[name][0](), Config())

@@ -18,6 +18,7 @@ import sympy as sp
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span, Waiver
+from plantlint.core.limits import MAX_POWER_BITS
 from plantlint.kernel.exact import sign
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
@@ -165,6 +166,17 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
     smoothness, input-affinity, points, claims and waivers, unused names.
     """
     scope = _Scope(findings=list(parsed.findings))
+    try:
+        return _build(scope, parsed, path)
+    except _PowerTooLarge as too_large:
+        scope.findings.append(finding(
+            "syntax", "this power of a number is too large to compute exactly (once the names in it are "
+            "replaced by their values)", too_large.span, anchor=anchors.problem("power size"),
+            hint=f"a power of numbers is limited to {MAX_POWER_BITS:,} bits; check the exponent"))
+        return None, scope.findings
+
+
+def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]:
     header = _header(scope, parsed)
     if header is None:
         return None, scope.findings
@@ -432,10 +444,10 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
             ok = False
     if not ok:
         return None
-    value = expr.value.xreplace(scope.constants)
+    value = _substituted(expr.value, expr.span, scope.constants)
     if value.free_symbols:
         # an earlier ranged parameter: use its nominal value
-        value = value.xreplace(_nominals(scope))
+        value = _substituted(value, expr.span, _nominals(scope))
     if value.free_symbols or value.has(sp.zoo, sp.nan, sp.oo):
         scope.add("bad-range" if value.free_symbols else "singular-model", f"value of '{st.name}' is not a finite number",
                   expr.span, anchors.declaration(st.kind, st.name, "value"))
@@ -443,11 +455,49 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
     return value
 
 
+class _PowerTooLarge(Exception):
+    """A power of numbers that only becomes one once names are replaced by their values,
+    too large to compute exactly (``48^2^(R*v)`` with R = 12, v = 24): sympy would try, and
+    never finish."""
+
+    def __init__(self, span: Span | None):
+        super().__init__("power too large")
+        self.span = span
+
+
+def _substituted(value: sp.Expr, span: Span | None, *mappings: Mapping[sp.Symbol, sp.Expr]) -> sp.Expr:
+    """``value.xreplace(m1).xreplace(m2)...``, refusing first (:class:`_PowerTooLarge`) any
+    power whose base and exponent become exact numbers with more than MAX_POWER_BITS bits
+    of result, the limit the parser applies to powers written in numbers."""
+    for mapping in mappings:
+        if mapping and _huge_power(value, mapping):
+            raise _PowerTooLarge(span)
+        value = value.xreplace(mapping)
+    return value
+
+
+def _huge_power(expr: sp.Expr, mapping: Mapping[sp.Symbol, sp.Expr]) -> bool:
+    keys = set(mapping)
+    for node in sp.postorder_traversal(expr):  # inner powers first: an outer one is sized only once they pass
+        if not node.is_Pow:
+            continue
+        base, exponent = node.args
+        names = base.free_symbols | exponent.free_symbols
+        if not names or not names <= keys:
+            continue
+        b, e = base.xreplace(mapping), exponent.xreplace(mapping)
+        if b.is_Rational and e.is_Rational and b != 0:
+            bits = max(abs(int(b.p)), abs(int(b.q)), 1).bit_length()
+            if bits > 1 and bits * abs(int(e.p)) > MAX_POWER_BITS * int(e.q):
+                return True
+    return False
+
+
 def _nominals(scope: _Scope) -> dict[sp.Symbol, sp.Expr]:
     out = {}
     for name, st in scope.declared.items():
         if st.kind == "param" and st.expr is not None:
-            v = st.expr.value.xreplace(scope.constants)
+            v = _substituted(st.expr.value, st.expr.span, scope.constants)
             if not v.free_symbols:
                 out[symbol(name)] = v
     return out
@@ -465,7 +515,7 @@ def _range_value(scope: _Scope, st: Statement, expr: Expression) -> sp.Expr | No
             scope.add("bad-range", f"range of '{st.name}' uses the {target.kind} '{ref.name}'; ranges must be constant",
                       ref.span, anchors.range_of(st.name, "not", "constant"))
             return None
-    value = expr.value.xreplace(scope.constants).xreplace(_nominals(scope))
+    value = _substituted(expr.value, expr.span, scope.constants, _nominals(scope))
     if value.free_symbols or not value.is_finite:
         scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, anchors.range_of(st.name, "bound"))
         return None
@@ -492,7 +542,7 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
             message += " and cannot be used here"
             hint = "outputs are named by expect/waive, not used in expressions" if target.kind == "output" else None
         scope.add("unknown-name", message, ref.span, anchors.about("name", ref.name, "in", where), hint=hint)
-    value = expr.value.xreplace(scope.lets).xreplace(scope.constants)
+    value = _substituted(expr.value, expr.span, scope.lets, scope.constants)
     known = {symbol(a) for a in allowed}
     stray = value.free_symbols - known
     if stray:
@@ -610,7 +660,7 @@ def _parametric_values(scope: _Scope, st: Statement, values: dict[str, sp.Expr])
     out: dict[str, sp.Expr] = {}
     for target, expr in st.assignments:
         if target.name in values:
-            kept = expr.value.xreplace(scope.lets).xreplace(scope.constants)
+            kept = _substituted(expr.value, expr.span, scope.lets, scope.constants)
             if kept.free_symbols and not kept.has(sp.zoo, sp.nan):
                 out[target.name] = kept
     return MappingProxyType(out)
@@ -658,7 +708,7 @@ def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp
                   hint=(_did_you_mean(scope, ref.name, ("const", "param", "let")) if decl is None else None)
                   or "a point value may use numbers, constants, parameters and definitions built from them")
         return None
-    value = expr.value.xreplace(scope.lets).xreplace(scope.constants).xreplace(_nominals(scope))
+    value = _substituted(expr.value, expr.span, scope.lets, scope.constants, _nominals(scope))
     if value.has(sp.zoo, sp.nan) or value.free_symbols:
         scope.add("singular-model", f"point '{point}' value of '{target}' is not a finite number", expr.span,
                   anchors.point(point, "value", target), point=point)

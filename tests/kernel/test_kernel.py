@@ -102,3 +102,26 @@ def test_zero_decisions_share_one_type() -> None:
     # the exact rank reads the same type: rank 1 as sympy's Matrix.rank finds it
     rows = [[sp.sin(sp.Rational(1, 3)), sp.Integer(1)], [2 * sp.sin(sp.Rational(1, 3)), sp.Integer(2)]]
     assert rank(rows, number_decider(kernel)) == (sp.Matrix(rows).rank(), True) == (1, True)
+
+
+def test_the_simplification_that_confirms_a_zero_is_bounded(monkeypatch) -> None:
+    """sympy's trigsimp has no limit of its own (on huge rational coefficients it can
+    factor for minutes): past SIMPLIFY_SECONDS the zero stays unconfirmed, never a hang
+    and never a proof. A trigsimp that never returns stands in for the slow one."""
+    import time
+
+    from plantlint.kernel import lie
+    from plantlint.kernel.decision import Outcome
+
+    def endless(e: object) -> object:  # "never" returns: 3 s here, so that a regression fails, not hangs
+        start = time.monotonic()
+        while time.monotonic() - start < 3.0:
+            time.sleep(0.01)
+        return e
+
+    monkeypatch.setattr(lie, "SIMPLIFY_SECONDS", 0.2)
+    monkeypatch.setattr(lie.sp, "trigsimp", endless)
+    x = sp.Symbol("x")
+    # zero by sin^2 + cos^2 = 1, which neither expand nor cancel sees
+    decision = lie.confirm_zero(sp.sin(x) ** 2 + sp.cos(x) ** 2 - 1)
+    assert decision.outcome is Outcome.ZERO_UNCONFIRMED

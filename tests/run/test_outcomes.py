@@ -283,6 +283,26 @@ def test_a_claim_resting_on_an_unproven_zero_is_not_decided(tmp_path: Path) -> N
         assert "holds only if an expression that is zero at every sampled point is zero identically" in claim["message"]
 
 
+def test_a_failure_found_on_an_unproven_zero_is_not_decided_either() -> None:
+    """The same unproven zero: a claim that fails on the structure built on it (relative
+    degree 1 expected, 2 found only if L_g y is zero) is not a defect found, and an output
+    that the inputs seem never to reach through it is not reported as a fact."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = _unproven_zero_model().replace("expect relative_degree(y) = 2", "expect relative_degree(y) = 1")
+    raw = analyse_bytes(text.encode())
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed" and "relative_degree" in f.message]
+    assert claim.undecided
+    assert claim.message.startswith("`expect relative_degree(y) = 1` not decided: the relative degree of 'y' is 2, "
+                                    "if an expression that is zero at every sampled point is zero identically")
+    # the input reaches x2 only through the unproven zero, and y = x1 sees x2 one step later
+    unreached = (text.replace("rate x1 = x2 + u*", "rate x1 = x2\nlet z = ")
+                 .replace("rate x2 = -x1 + u", "rate x2 = -x1 + u*z"))
+    raw = analyse_bytes(unreached.encode())
+    (undefined,) = [f for f in raw.findings if f.rule == "relative-degree-undefined"]
+    assert undefined.undecided and "could not be proven zero identically" in undefined.message
+
+
 # -- 4: display-only steps are bounded; the reproducer fails both claims -------------------
 
 def test_slow_normal_form_reproducer_fails_both_claims(tmp_path: Path) -> None:

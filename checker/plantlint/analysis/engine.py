@@ -301,6 +301,9 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
             continue
         if not failures and a.kernel.uncertain:
             failures = [(claim.point, _unproven_zeros(a))]
+        elif a.kernel.uncertain:  # a failure found on that structure is not proven either
+            failures = [(point, message if isinstance(message, Undecided) else _resting(message, a))
+                        for point, message in failures]
         for point, message in failures:
             if isinstance(message, Undecided):
                 out.append(finding("expectation-failed", f"`{text}` not decided: {message}",
@@ -319,6 +322,15 @@ def _unproven_zeros(a: Analysis) -> Undecided:
     which = "an expression that is" if k == 1 else f"{k} expressions that are"
     return Undecided(f"it holds only if {which} zero at every sampled point {'is' if k == 1 else 'are'} zero "
                      "identically, and the symbolic proof did not finish within its bound (see the "
+                     "analysis-budget finding)")
+
+
+def _resting(message: str, a: Analysis) -> Undecided:
+    """A claim's failure found on a structure that rests on unproven zeros: not decided."""
+    k = len(a.kernel.uncertain)
+    which = "an expression that is" if k == 1 else f"{k} expressions that are"
+    return Undecided(f"{message}, if {which} zero at every sampled point {'is' if k == 1 else 'are'} zero "
+                     "identically (the symbolic proof did not finish within its bound; see the "
                      "analysis-budget finding)")
 
 

@@ -127,7 +127,17 @@ def analyse_structure(kernel: Kernel) -> Structure:
     for i, name in enumerate(plant.outputs):
         out = _output_structure(kernel, i)
         outputs.append(out)
-        if out.relative_degree is None:
+        if out.relative_degree is None and out.unconfirmed:
+            findings.append(finding(
+                "relative-degree-undefined",
+                f"output {name} seems never to see the inputs: L_g L_f^k {name} is zero at every "
+                f"sampled point for k = 0..{plant.n - 1}, but {', '.join(out.unconfirmed)} could not be proven "
+                "zero identically",
+                anchor=anchors.output(name), undecided=True,
+                hint="check the output equation and the input columns of the rates; a longer budget may "
+                     "settle it",
+            ))
+        elif out.relative_degree is None:
             findings.append(finding(
                 "relative-degree-undefined",
                 f"output {name} never sees the inputs: L_g L_f^k {name} vanishes identically "

@@ -31,7 +31,7 @@ from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
 from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
-from plantlint.kernel.rational import cancel_together, sympy_rational, vanishes_identically
+from plantlint.kernel.rational import cancel_together, rational_zero, sympy_rational, vanishes_identically
 
 if TYPE_CHECKING:
     from plantlint.kernel.structural import StructuralPlant
@@ -559,6 +559,10 @@ def screen_then_confirm(
 #: time has no limit of its own: a disguised trigonometric identity can take minutes).
 EQUALS_OPS_LIMIT = 400
 EQUALS_SECONDS = 2.0
+#: Wall-clock bound of the simplification that confirms a zero with functions in it
+#: (trigsimp on huge rational coefficients can factor for minutes): beyond it the zero
+#: stays unconfirmed, and whatever rests on it is not decided.
+SIMPLIFY_SECONDS = 3.0
 
 
 def bounded_equals_zero(exact: sp.Expr) -> ZeroDecision:
@@ -598,15 +602,21 @@ def confirm_zero(expr: sp.Expr) -> ZeroDecision:
         if not _has_functions(expr):
             return zd.proven_nonzero("expand")
     if not _has_functions(expr):
-        if cancel_together(expr) == 0:
-            return zd.proven_zero("cancel")
-        return zd.proven_nonzero("cancel")
+        zero = rational_zero(expr)  # flint's arithmetic in QQ(x); sympy's cancel when it cannot say
+        if zero is None:
+            zero = cancel_together(expr) == 0
+        return zd.proven_zero("cancel") if zero else zd.proven_nonzero("cancel")
     if sp.count_ops(expr) <= SIMPLIFY_OPS_LIMIT:
-        e = sp.expand(sp.together(expr))
-        if e == 0:
-            return zd.proven_zero("cancel")
-        if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
-            return zd.proven_zero("simplify")
+        try:
+            with within(SIMPLIFY_SECONDS) as step:
+                e = sp.expand(sp.together(expr))
+                if e == 0:
+                    return zd.proven_zero("cancel")
+                if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
+                    return zd.proven_zero("simplify")
+        except TimeUp as exc:  # sympy's simplification has no limit of its own
+            if not expired(exc, step):
+                raise
     return zd.unconfirmed_zero("unconfirmed")
 
 

@@ -13,7 +13,7 @@ from __future__ import annotations
 from typing import Any
 
 import sympy as sp
-from flint import fmpq
+from flint import fmpq, fmpq_mpoly_ctx
 from sympy.polys.domains import QQ
 from sympy.polys.rings import ring as sp_ring
 from sympy.polys.polyutils import _sort_gens
@@ -28,21 +28,62 @@ class _NotRational(Exception):
 REDUCE_DEGREE = 12
 
 
-def _in_field(e: sp.Expr) -> tuple[Any, Any] | None:
-    """e as a fraction (numerator, denominator) of polynomials over QQ in its symbols
-    (sorted as sympy's polys sort generators), not necessarily reduced; None when e is
-    not built from symbols and rational numbers by +, * and integer powers, or a
-    denominator vanishes identically."""
-    gens = tuple(_sort_gens(list(e.free_symbols)))
-    R = sp_ring(gens, QQ)[0]
-    one = R.one
-    by_symbol = {s: (g, one) for s, g in zip(gens, R.gens)}
-    memo: dict[sp.Expr, tuple[Any, Any]] = {}
+class _SympyField:
+    """QQ(p) in sympy's sparse polynomials: the pair sympy's own cancel reduces, so that
+    :func:`cancel_rational` ends in the very expression sympy writes."""
 
-    def reduced(n: Any, d: Any) -> tuple[Any, Any]:
+    def __init__(self, symbols: set[sp.Symbol]):
+        gens = tuple(_sort_gens(list(symbols)))
+        self.ring = sp_ring(gens, QQ)[0]
+        self.one = self.ring.one
+        self.gens = dict(zip(gens, self.ring.gens))
+
+    def const(self, p: int, q: int) -> Any:
+        return self.ring(QQ(p, q))
+
+    def reduced(self, n: Any, d: Any) -> tuple[Any, Any]:
         if _degree(n) > REDUCE_DEGREE or _degree(d) > REDUCE_DEGREE:
             return n.cancel(d)
         return n, d
+
+
+class _FlintField:
+    """QQ(p) in python-flint's ``fmpq_mpoly``: for zero tests, where only whether the
+    numerator vanishes matters (its gcds are far faster than sympy's heuristic ones)."""
+
+    def __init__(self, symbols: set[sp.Symbol]):
+        order = sorted(symbols, key=str)
+        ctx = fmpq_mpoly_ctx.get(("x", len(order)))
+        self.ctx = ctx
+        self.one = ctx.constant(1)
+        self.gens = dict(zip(order, ctx.gens()))
+
+    def const(self, p: int, q: int) -> Any:
+        return self.ctx.constant(fmpq(p, q))
+
+    def reduced(self, n: Any, d: Any) -> tuple[Any, Any]:
+        if len(n) > MAX_TERMS or len(d) > MAX_TERMS:
+            raise _NotRational  # too large to decide here
+        if n.total_degree() > REDUCE_DEGREE or d.total_degree() > REDUCE_DEGREE:
+            g = n.gcd(d)
+            if not g.is_constant():
+                return n / g, d / g
+        return n, d
+
+
+#: Bound on the terms of a numerator or denominator in a flint zero test.
+MAX_TERMS = 200_000
+
+
+def _in_field(e: sp.Expr, field: type = _SympyField) -> tuple[Any, Any] | None:
+    """e as a fraction (numerator, denominator) of polynomials over QQ in its symbols, not
+    necessarily reduced, in the ring of ``field`` (sympy's, generators sorted as sympy's
+    polys sort them, or flint's); None when e is not built from symbols and rational
+    numbers by +, * and integer powers, or a denominator vanishes identically."""
+    F = field(e.free_symbols)
+    one = F.one
+    by_symbol = {s: (g, one) for s, g in F.gens.items()}
+    memo: dict[sp.Expr, tuple[Any, Any]] = {}
 
     def build(node: sp.Expr) -> tuple[Any, Any]:
         done = memo.get(node)
@@ -51,19 +92,19 @@ def _in_field(e: sp.Expr) -> tuple[Any, Any] | None:
         if node.is_Symbol:
             out = by_symbol[node]
         elif node.is_Rational:
-            out = (R(QQ(int(node.p), int(node.q))), one)
+            out = (F.const(int(node.p), int(node.q)), one)
         elif node.is_Add:
             n, d = build(node.args[0])
             for a in node.args[1:]:
                 an, ad = build(a)
                 n, d = (n + an, d) if ad == d else (n * ad + an * d, d * ad)
-            out = reduced(n, d)
+            out = F.reduced(n, d)
         elif node.is_Mul:
             n, d = build(node.args[0])
             for a in node.args[1:]:
                 an, ad = build(a)
                 n, d = n * an, d * ad
-            out = reduced(n, d)
+            out = F.reduced(n, d)
         elif node.is_Pow and node.exp.is_Integer:
             n, d = build(node.base)
             k = int(node.exp)
@@ -82,6 +123,17 @@ def _in_field(e: sp.Expr) -> tuple[Any, Any] | None:
     except (_NotRational, ZeroDivisionError):
         return None
     return (n, d) if d else None
+
+
+def rational_zero(e: sp.Expr) -> bool | None:
+    """True / False: e, a rational function of its symbols with rational coefficients,
+    is / is not identically zero (proved: its numerator over a non-zero denominator is
+    or is not the zero polynomial, by flint's exact arithmetic). None: e is not such a
+    function, has no symbols, a denominator vanishes identically, or it is too large."""
+    if not e.free_symbols:
+        return None
+    f = _in_field(e, _FlintField)
+    return None if f is None else not f[0]
 
 
 def _degree(p: Any) -> int:
@@ -151,7 +203,7 @@ def vanishes_identically(c: sp.Expr) -> bool:
     e = generalise(c)
     if not unknowns:
         return False
-    f = _in_field(e)
+    f = _in_field(e, _FlintField)
     return f is not None and not f[0]
 
 
@@ -196,4 +248,5 @@ def rational_value(e: sp.Expr, values: dict[sp.Symbol, sp.Expr]) -> sp.Rational 
     return sympy_rational(q)
 
 
-__all__ = ["cancel_rational", "cancel_together", "rational_value", "sympy_rational", "vanishes_identically"]
+__all__ = ["cancel_rational", "cancel_together", "rational_value", "rational_zero", "sympy_rational",
+           "vanishes_identically"]

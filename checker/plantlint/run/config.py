@@ -162,8 +162,30 @@ def load_config(start: Path | None = None, explicit: Path | None = None, known_r
     return from_table(table, path, known_rules)
 
 
+def _swallowed(table: Mapping[str, Any], where: str) -> None:
+    """A top-level setting written below a [table] header is, in TOML, a key of that table
+    (a common slip at the end of a file): say so, rather than that the table is malformed."""
+    tables = ("skip", "only", "severity", "undecided")
+    scalars = _KEYS - set(tables)
+    found: list[tuple[str, str]] = []
+    for name in tables:
+        value = table.get(name)
+        if not isinstance(value, dict):
+            continue
+        found += [(key, f"[{name}]") for key in value if key in scalars]
+        if name == "severity":
+            found += [(key, f"[severity.{rule}]") for rule, entry in value.items() if isinstance(entry, dict)
+                      for key in entry if key in scalars]
+    if found:
+        key, header = found[0]
+        raise ConfigError(f"{where}: '{key}' is written inside the table {header}: in TOML every key after a "
+                          f"[table] header belongs to that table; move top-level settings such as '{key}' above "
+                          "the first [table] line")
+
+
 def from_table(table: Mapping[str, Any], path: Path, known_rules: frozenset[str] = frozenset()) -> Config:
     where = shown_path(path)
+    _swallowed(table, where)
     unknown = sorted(set(table) - _KEYS)
     if unknown:
         raise ConfigError(f"{where}: unknown setting {', '.join(repr(k) for k in unknown)} "

@@ -194,3 +194,27 @@ def test_range_and_unit_in_the_wrong_order_say_the_right_order(line: str, column
     """The order is the language reference's (docs/language.md, statements table)."""
     (f,) = parse_text(f"plant p\n{line}\nstate x in -1 .. 1\ninput u\nrate x = u\n").findings
     assert (f.rule, f.message, f.span.line, f.span.column) == ("syntax", message, 2, column)
+
+
+def test_numbers_too_long_to_write_out_are_shortened_inside_expressions() -> None:
+    # A singular denominator with a literal 1e-300 used to be printed with its 301 digits.
+    # Reference: Python's decimal module and fractions (exactness of the decimal shown).
+    from decimal import Decimal
+    from fractions import Fraction
+
+    import sympy as sp
+
+    from plantlint.language.printer import show_expr
+
+    w = sp.Symbol("w1")
+    assert show_expr(w - sp.Rational(1, 10**300)) == "-1e-300 + w1"  # exact: 1e-300 is that number
+    assert Fraction(Decimal("1e-300")) == Fraction(1, 10**300)
+    shown = show_expr(w * sp.Integer(3) ** 200 + 1)  # not a short decimal: rounded, marked ~
+    assert shown == "1 + ~2.65614e+95*w1"
+    assert abs(Fraction(Decimal("2.65614e+95")) / Fraction(3**200) - 1) < Fraction(1, 10**5)
+    assert show_expr(sp.Rational(2, 7) * w + 60000000000) == "60000000000 + 2*w1/7"  # short: exact as before
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = GOOD.replace("rate z = e + (u + 1)*sin(z + 1)", "rate z = e + u/(z - 1e-300)")
+    (singular,) = [f for f in analyse_bytes(text.encode()).findings if f.rule == "singular-model"]
+    assert "1e-300" in singular.message and "000000000000000" not in singular.message

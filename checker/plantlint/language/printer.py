@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+from decimal import Context, Decimal
+from fractions import Fraction
+
 import sympy as sp
 from sympy.printing.str import StrPrinter
 
@@ -15,6 +18,14 @@ class _PlantPrinter(StrPrinter):
 
     def _print_Abs(self, expr: sp.Abs) -> str:
         return f"abs({self._print(expr.args[0])})"
+
+    def _print_Rational(self, expr: sp.Rational) -> str:
+        text = super()._print_Rational(expr)
+        return text if len(text) <= LONG_NUMBER else _short_number(expr)
+
+    def _print_Integer(self, expr: sp.Integer) -> str:
+        text = super()._print_Integer(expr)
+        return text if len(text) <= LONG_NUMBER else _short_number(expr)
 
 
 _PRINTER = _PlantPrinter({"order": "none"})
@@ -63,6 +74,15 @@ def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = Fa
 
 #: Exact numbers longer than this many characters are shown rounded, with their length.
 LONG_NUMBER = 24
+
+
+def _short_number(value: sp.Rational) -> str:
+    """A number too long to write out, inside an expression: ``1e-300`` when that decimal is
+    the exact value (a .plant literal means exactly that), else ``~3.5e-96``, rounded."""
+    p, q = int(value.p), int(value.q)
+    rounded = Context(prec=6).divide(Decimal(p), Decimal(q)).normalize()
+    text = format(rounded, "g").replace("E", "e")
+    return text if Fraction(rounded) == Fraction(p, q) else "~" + text
 
 
 def _long(value: sp.Rational) -> str:

@@ -92,3 +92,79 @@ def test_rank_drop_is_the_constant_rank_condition_not_involutivity() -> None:
     assert "involutivity_witness" not in point  # only written when not involutive
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert "constant-rank condition fails" in claim.message and "not involutive" not in claim.message
+
+
+# -- brackets at a point from Taylor mode -------------------------------------------------
+
+def _plain_brackets(f: sp.Matrix, g: sp.Matrix, x: list[sp.Symbol], order: int) -> list[sp.Matrix]:
+    """ad_f^k g = [f, ad_f^(k-1) g] = D(ad) f - Df ad, by sympy's jacobian (a route of its own)."""
+    out = [g]
+    for _ in range(order):
+        ad = out[-1]
+        out.append(sp.simplify(ad.jacobian(x) * f - f.jacobian(x) * ad))
+    return out
+
+
+def test_brackets_at_a_point_from_taylor_mode_match_plain_sympy() -> None:
+    from plantlint.analysis.distributions import _taylor_brackets
+    from plantlint.kernel.lie import Kernel
+    from plantlint.kernel.plant import Plant
+
+    x1, x2, x3, u = sp.symbols("x1 x2 x3 u")
+    x = [x1, x2, x3]
+    # invented plants: polynomial, rational and trigonometric drift (sin(0) = 0 keeps the
+    # point's values rational, so the exact field is used)
+    drifts = [
+        [x2 + x1 * x3, -x1 + x3**2, x1 * x2 - x3],
+        [x2 / (1 + x1**2), sp.sin(x3) - x2, x1 * x3 + 2 * x2],
+        [sp.sin(x2) * x3 + x1, x3 - x1**3, -x2 * sp.cos(x1)],
+    ]
+    point = {x1: sp.Rational(1, 2), x2: sp.Integer(0), x3: sp.Integer(0)}
+    compared = 0
+    for f in drifts:
+        g = [1 + x2**2, x1, sp.Integer(1)]
+        plant = Plant.from_matrices("p", x, [u], f, [g], [x1])
+        kernel = Kernel(plant)
+        ours = _taylor_brackets(kernel, point, 2)
+        if ours is None:  # a value on the way is not rational (sin(1/2)): not this route
+            assert any(e.has(sp.sin, sp.cos) for e in f)
+            continue
+        theirs = _plain_brackets(sp.Matrix(f), sp.Matrix(g), x, 2)
+        for k in range(3):
+            assert ours[0][k] == list(theirs[k].xreplace(point)), (f, k)
+        compared += 1
+    assert compared >= 2
+
+
+def test_ranks_at_a_point_are_the_same_by_taylor_mode_and_by_symbolic_brackets(monkeypatch) -> None:
+    from plantlint.analysis import distributions
+
+    from conftest import FIXTURES
+
+    # the one model of the suite where the generic analysis stops before order n - 1 and a
+    # point needs the higher brackets
+    text = (FIXTURES / "rules" / "decoupling-singular.plant").read_bytes()
+    taylor = analyse_bytes(text, Config())
+    monkeypatch.setattr(distributions, "_taylor_brackets", lambda *a, **k: None)
+    symbolic = analyse_bytes(text, Config())
+    assert taylor.analysis["points"]["rest"] == symbolic.analysis["points"]["rest"]
+    assert [f.message for f in taylor.findings] == [f.message for f in symbolic.findings]
+
+
+def test_no_distributions_where_the_rates_are_undefined() -> None:
+    text = b"""plant pole
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u in -1 .. 1
+rate x1 = x2/x1
+rate x2 = u
+output y = x1
+point origin: x1 = 0, x2 = 0
+expect state_linearizable at origin
+"""
+    raw = analyse_bytes(text, Config())
+    origin = raw.analysis["points"]["origin"]
+    assert origin["equilibrium"] is False
+    assert origin.get("controllability_rank") is None
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert "at point 'origin' the rates are undefined" in claim.message

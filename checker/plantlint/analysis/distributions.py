@@ -52,6 +52,7 @@ from plantlint.kernel import exact
 from plantlint.kernel.exact import ball_rank
 from plantlint.kernel.laurent import expanded, identically_zero
 from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
+from plantlint.kernel.rational import sympy_rational
 from plantlint.language.printer import show_point
 from plantlint.analysis.linearizing_output import OutputSearch
 
@@ -736,22 +737,50 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
     basis: list[list[sp.Expr]] = []
     known = len(structure.ranks)
     kalman = _kalman_columns(kernel, values, decide) if known < n else None
+    taylor: list[list[list[sp.Expr]]] | None = None
     for k in range(n if m else 0):
         if k >= known and kalman is not None:
             break
         if len(basis) == n:
             ranks.append(n)
             continue
-        # the generic analysis may have stopped early; a rank drop at this point
-        # can still need the higher brackets, which the kernel then builds
-        block = [f for f in structure.fields if f.order == k] or _block(kernel, m, k)
-        rows = matrix_at(kernel, [f.vector for f in block], values)
-        for index in range(len(block)):
-            row = list(rows.row(index))
+        block = [f for f in structure.fields if f.order == k]
+        if block:
+            rows = [list(r) for r in matrix_at(kernel, [f.vector for f in block], values).tolist()]
+        else:
+            # the generic analysis stopped early; a rank drop at this point can still need
+            # the higher brackets: their values at a rational point come from Taylor mode,
+            # else the kernel builds them symbolically
+            if taylor is None:
+                taylor = _taylor_brackets(kernel, values, n - 1) or []
+            rows = [taylor[j][k] for j in range(m)] if taylor else [
+                list(r) for r in matrix_at(kernel, [f.vector for f in _block(kernel, m, k)], values).tolist()]
+        for row in rows:
             if len(basis) < n and echelon.add(row):
                 basis.append(row)
         ranks.append(len(basis))
     return ranks or [0] * n, basis, kalman
+
+
+def _taylor_brackets(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], order: int
+                     ) -> list[list[list[sp.Expr]]] | None:
+    """[j][k] = ad_f^k g_j(x0), k <= order, exactly, from the Taylor-mode flow
+    (``Towers.brackets``, w(t) = M(t)^-1 g(x(t))): the numbers the symbolic brackets take
+    at the point, without forming them. None when the point, or a value on the way, is not
+    rational, a value is undefined there, or the plant is outside the straight-line programs."""
+    from plantlint.kernel.taylor import Inexact, QField, Undefined
+
+    if kernel.route != "numeric":
+        return None
+    towers = kernel.towers()
+    vector = kernel.point_vector(values)
+    if towers is None or vector is None:
+        return None
+    try:
+        columns = towers.brackets(vector, order, QField())
+    except (Inexact, Undefined, ZeroDivisionError):
+        return None
+    return [[[sympy_rational(v) for v in column] for column in by_order] for by_order in columns]
 
 
 def _kalman_rank(kalman: list[list[sp.Expr]], n: int, decide: Callable[[sp.Expr], ZeroDecision]

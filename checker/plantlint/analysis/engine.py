@@ -154,6 +154,8 @@ def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
         for pa in result.points:
             if not all(s in pa.equilibrium.values for s in plant.states):
                 continue
+            if pa.equilibrium.status == "undefined":  # the rates do not exist there: no fields either
+                continue
             if by_outputs is not None and pa.structure is not None and pa.structure.well_defined:
                 pa.distributions = _linearizable_at(pa.name, by_outputs, structure, a_output=kernel.h)
                 continue
@@ -439,7 +441,10 @@ def _state_linearizable_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | Non
         return out
     for pa in points:
         pd = pa.distributions
-        if pd is None:
+        if pd is None and pa.equilibrium.status == "undefined":
+            out.append((pa.name, f"at point '{pa.name}' the rates are undefined (division by zero or a "
+                                 "function outside its domain)"))
+        elif pd is None:
             out.append((pa.name, f"point '{pa.name}' is incomplete"))
         elif pd.undefined:
             out.append((pa.name, Undecided(f"at point '{pa.name}' some fields of the distributions are undefined "

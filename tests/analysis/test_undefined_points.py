@@ -53,3 +53,42 @@ def test_an_entry_that_is_infinite_at_the_point_is_called_undefined_not_zero() -
     raw = analyse_bytes(text.encode())
     (ill,) = [f for f in raw.findings if f.rule == "relative-degree-ill-defined"]
     assert "1/(2*sqrt(w)) is undefined there" in ill.message and "is zero there" not in ill.message
+
+
+def test_values_beyond_double_precision_are_reported_not_crashed_on() -> None:
+    """The demo boost converter with a battery of 1e300 V (a mutation that crashed the
+    linearisation with OverflowError): its poles and zeros, decided exactly, exceed the
+    largest double (IEEE 754: sys.float_info.max, about 1.8e308). The linearisation says
+    so; the zero dynamics keep their exact verdict and show the eigenvalue as beyond
+    that range; the JSON report stays strict JSON and valid under its schema."""
+    import io
+    import json
+    import sys
+
+    import jsonschema
+
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.core.findings import Report
+    from plantlint.report.formats import get_formatter
+    from plantlint.report.formats.json_report import report_schema
+    from plantlint.run.config import Config
+    from plantlint.run.pipeline import finish
+    from conftest import REPO
+
+    assert sys.float_info.max < 1.8e308
+    path = REPO / "example_repo" / "models" / "power" / "dc_bus_boost.plant"
+    text = path.read_text(encoding="utf-8").replace("param v_in   = 24 ", "param v_in   = 1e300 ")
+    assert "1e300" in text
+    raw = analyse_bytes(text.encode())
+    assert raw.stop is None
+    for point in ("rated", "reduced"):
+        lin = raw.analysis["points"][point]["linearisation"]
+        assert lin["status"] == "undefined" and "beyond the range of double-precision" in lin["reason"]
+    unstable = [f for f in raw.findings if f.rule == "zero-dynamics-unstable"]
+    assert unstable and all("positive real part > 1.8e308" in f.message for f in unstable)
+    config = Config()
+    defaults = {r.id: r.severity for r in load_catalogue()}
+    report = Report(files=[finish("boost.plant", raw, text, config, defaults)], tool_version="test")
+    out = io.StringIO()
+    get_formatter("json").render(report, out, color=False)
+    jsonschema.validate(json.loads(out.getvalue()), report_schema())

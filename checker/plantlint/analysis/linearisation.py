@@ -137,10 +137,15 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
     if has_undefined(entries):
         return Linearisation(name, "undefined", reason="a derivative of the rates or outputs is undefined at the point",
                              A=tuple(rows), B=tuple(b_rows), C=tuple(c_rows))
-    if all(e.is_Rational for e in entries):
-        lin = _exact(name, A, B, C, plant.states)
-    else:
-        lin = _numeric(name, A, B, C, plant.states)
+    try:
+        if all(e.is_Rational for e in entries):
+            lin = _exact(name, A, B, C, plant.states)
+        else:
+            lin = _numeric(name, A, B, C, plant.states)
+    except OverflowError:  # decided exactly, but not writable as a double (a parameter of 1e300, say)
+        return Linearisation(name, "undefined", reason="a pole or zero of the linearisation is beyond the range "
+                             "of double-precision numbers (about 1.8e308), so it cannot be reported",
+                             A=tuple(rows), B=tuple(b_rows), C=tuple(c_rows))
     lin = _with(lin, A=tuple(rows), B=tuple(b_rows), C=tuple(c_rows))
     check = cross_check(lin, zero_dynamics)
     findings = _inconsistency(name, check)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from decimal import Context, Decimal
 from fractions import Fraction
 
@@ -53,6 +54,8 @@ def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = Fa
     rational too long to write out) is prefixed with ``~``, so a reader can tell a
     rounded residual from an exact one.
     """
+    if isinstance(value, float) and not math.isfinite(value):
+        return "undefined" if math.isnan(value) else ("> 1.8e308" if value > 0 else "< -1.8e308")
     if isinstance(value, sp.Basic):
         if value.is_Integer and len(str(value)) > LONG_NUMBER:
             return _long(value)

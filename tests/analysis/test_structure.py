@@ -472,3 +472,27 @@ def test_singular_envelope_is_shown_at_the_range_to_narrow() -> None:
     assert singular.span is not None and (singular.span.line, singular.span.column) == (9, 9)
     # as written (i in 0.1 .. 2) the envelope is regular
     assert "envelope-singular" not in [f.rule for f in analyse_bytes(MAGLEV).findings]
+
+
+def test_generic_rank_by_balls_is_the_exact_rank(monkeypatch: pytest.MonkeyPatch) -> None:
+    # The ball screen may only shortcut a full rank that exact arithmetic would find too.
+    # Reference: sympy's own Matrix.rank of the matrix at the same sample point.
+    from plantlint.analysis import structure
+
+    x1, x2, x3 = sp.symbols("x1 x2 x3")
+    u1, u2 = sp.symbols("u1 u2")
+    cases = [
+        sp.Matrix([[1 + x1**2, x2], [x3, sp.sin(x1) + 2]]),           # full
+        sp.Matrix([[x1, x2], [2 * x1, 2 * x2]]),                       # rank 1
+        sp.Matrix([[sp.Rational(981, 100) ** x1, 1], [0, x2 - 3]]),    # full, a radical at samples
+    ]
+    for A in cases:
+        plant = Plant.from_matrices("p", [x1, x2, x3], [u1, u2], [x2, x3, -x1], [[1, 0, 0], [0, 1, 0]], [x1, x2])
+        kernel = Kernel(plant)
+        fast = structure._generic_rank(kernel, A)
+        with monkeypatch.context() as m:
+            m.setattr(structure, "_ball_rank_at", lambda *a: 0)
+            slow = structure._generic_rank(kernel, A)
+        sample = kernel.samples()[0]
+        reference = A.xreplace({s: sp.Rational(v.numerator, v.denominator) for s, v in sample.items()}).rank()
+        assert fast == slow and fast[0] == reference, (A, fast, slow, reference)

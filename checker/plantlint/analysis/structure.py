@@ -24,7 +24,7 @@ from typing import Any, Mapping, Sequence
 
 import sympy as sp
 
-from plantlint.kernel.balls import UnsupportedExpression
+from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
@@ -271,6 +271,10 @@ def _generic_rank(kernel: Kernel, A: sp.Matrix) -> tuple[int, bool]:
     best = 0
     decide = exact.number_decider(kernel)
     for sample in kernel.samples():
+        # balls first: a full rank they prove is the rank (exact arithmetic with radicals
+        # such as (981/100)^(37/64) can take sympy seconds)
+        if _ball_rank_at(kernel, A, sample) == full:
+            return full, True
         point = {s: sp.Rational(v.numerator, v.denominator) for s, v in sample.items()}
         rank, _ = exact.rank(matrix_at(kernel, A.tolist(), point).tolist(), decide)
         best = max(best, rank)
@@ -289,6 +293,22 @@ def _generic_rank(kernel: Kernel, A: sp.Matrix) -> tuple[int, bool]:
                 return k, True  # cannot happen after screening, but a proof beats a guess
             certain = certain and test.certain
     return best, certain
+
+
+def _ball_rank_at(kernel: Kernel, A: sp.Matrix, sample: Mapping[sp.Symbol, Any]) -> int:
+    """A proven lower bound of the rank of A at a sample point, by ball arithmetic; 0 when
+    an entry is beyond the evaluator."""
+    symbols = kernel.free_symbols()
+    try:
+        balls = Program([e for row in A.tolist() for e in row], symbols).run(
+            [rational_ball(sample[s], BALL_RANK_PREC) for s in symbols], BALL_RANK_PREC)
+    except UnsupportedExpression:
+        return 0
+    return exact.ball_rank([balls[i * A.cols:(i + 1) * A.cols] for i in range(A.rows)])[0]
+
+
+#: Precision (bits) of the ball screen of the generic rank.
+BALL_RANK_PREC = 128
 
 
 def _extension_hint(inputs: Sequence[str], zero_cols: Sequence[int]) -> str:

@@ -496,3 +496,17 @@ def test_generic_rank_by_balls_is_the_exact_rank(monkeypatch: pytest.MonkeyPatch
         sample = kernel.samples()[0]
         reference = A.xreplace({s: sp.Rational(v.numerator, v.denominator) for s, v in sample.items()}).rank()
         assert fast == slow and fast[0] == reference, (A, fast, slow, reference)
+
+
+def test_messages_do_not_factor_polynomials_of_huge_degree() -> None:
+    # sympy's factor reads exp(-8000/T) as (exp(1/T))^(-8000) (its own generator choice,
+    # seen with sp.factor's gens), a degree-8000 polynomial factored in C code that no time
+    # bound interrupts (a mutated reactor model spent its whole budget there). Such an
+    # expression is shown as it is; small ones are still factored.
+    from plantlint.analysis.structure import _small_degrees, readable
+
+    T, x = sp.symbols("T_r x")
+    big = -2 + 3000000000 * sp.exp(-8000 / T)
+    assert not _small_degrees(big) and readable(big) == "-2 + 3000000000*exp(-8000/T_r)"
+    small = x**2 - 1
+    assert _small_degrees(small) and readable(small) == "(x - 1)*(x + 1)"

@@ -24,6 +24,7 @@ from typing import Any, Mapping, Sequence
 
 import sympy as sp
 
+from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
@@ -36,6 +37,8 @@ from plantlint.kernel.lie import Kernel, matrix_at
 
 #: Expressions up to this size are factored for messages; larger ones are cut.
 READABLE_FACTOR_OPS = 40
+#: ... within this many seconds (display only), else shown as they are.
+READABLE_SECONDS = 1.0
 MESSAGE_CHARS = 120
 #: Generic rank confirmation tests at most this many minors symbolically.
 MAX_MINORS_CONFIRMED = 60
@@ -109,13 +112,30 @@ def lie_name(kernel: Kernel, j: int | None, i: int, k: int) -> str:
 def readable(expr: sp.Expr) -> str:
     """A readable form of an expression for messages: factored when small, cut when large."""
     text = show_expr(expr, limit=10**6)
-    if sp.count_ops(expr) <= READABLE_FACTOR_OPS:
+    if sp.count_ops(expr) <= READABLE_FACTOR_OPS and _small_degrees(expr):
         try:
-            factored = show_expr(sp.factor(sp.cancel(expr)), limit=10**6)
+            with within(READABLE_SECONDS) as step:  # display only: sympy's factor has no limit of its own
+                factored = show_expr(sp.factor(sp.cancel(expr)), limit=10**6)
+        except TimeUp as exc:
+            if not expired(exc, step):
+                raise
+            factored = text
         except (sp.PolynomialError, TypeError, ValueError):
             factored = text
         text = min(text, factored, key=len)
     return text if len(text) <= MESSAGE_CHARS else text[: MESSAGE_CHARS - 3] + "..."
+
+
+def _small_degrees(expr: sp.Expr) -> bool:
+    """Whether factoring stays small: sympy's factor reads exp(-8000/T) as a power of
+    exp(1/T), a polynomial of degree 8000, and factors it in C code that no time bound
+    can interrupt. Exponents and exp coefficients up to 64 are fine."""
+    for node in sp.preorder_traversal(expr):
+        if isinstance(node, sp.exp) or (node.is_Pow and node.exp.is_Rational):
+            c = node.args[0].as_coeff_Mul()[0] if isinstance(node, sp.exp) else node.exp
+            if c.is_Rational and max(abs(int(c.p)), int(c.q)) > 64:
+                return False
+    return True
 
 
 # -- generic structure --------------------------------------------------------------------

@@ -736,8 +736,13 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
     ranks: list[int] = []
     basis: list[list[sp.Expr]] = []
     known = len(structure.ranks)
+    # the brackets' values at a rational point come from Taylor mode (exact, no symbolic
+    # field evaluated); where a derivative does not exist there, no field does either
+    taylor = _taylor_brackets(kernel, values, n - 1) if m else None
+    if taylor == "undefined":
+        decide.undefined.append("the brackets at the point (a derivative of the rates does not exist there)")
+        return [0] * n, [], None
     kalman = _kalman_columns(kernel, values, decide) if known < n else None
-    taylor: list[list[list[sp.Expr]]] | None = None
     for k in range(n if m else 0):
         if k >= known and kalman is not None:
             break
@@ -745,16 +750,14 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
             ranks.append(n)
             continue
         block = [f for f in structure.fields if f.order == k]
-        if block:
+        if taylor:
+            # ad_f^k g_j for every input: fields the generic analysis left out are dependent
+            # identically, so at the point too, and the echelon skips them
+            rows = [taylor[j][k] for j in range(m)]
+        elif block:
             rows = [list(r) for r in matrix_at(kernel, [f.vector for f in block], values).tolist()]
-        else:
-            # the generic analysis stopped early; a rank drop at this point can still need
-            # the higher brackets: their values at a rational point come from Taylor mode,
-            # else the kernel builds them symbolically
-            if taylor is None:
-                taylor = _taylor_brackets(kernel, values, n - 1) or []
-            rows = [taylor[j][k] for j in range(m)] if taylor else [
-                list(r) for r in matrix_at(kernel, [f.vector for f in _block(kernel, m, k)], values).tolist()]
+        else:  # the generic analysis stopped early: the kernel builds the higher brackets
+            rows = [list(r) for r in matrix_at(kernel, [f.vector for f in _block(kernel, m, k)], values).tolist()]
         for row in rows:
             if len(basis) < n and echelon.add(row):
                 basis.append(row)
@@ -763,11 +766,12 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
 
 
 def _taylor_brackets(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], order: int
-                     ) -> list[list[list[sp.Expr]]] | None:
+                     ) -> list[list[list[sp.Expr]]] | str | None:
     """[j][k] = ad_f^k g_j(x0), k <= order, exactly, from the Taylor-mode flow
     (``Towers.brackets``, w(t) = M(t)^-1 g(x(t))): the numbers the symbolic brackets take
-    at the point, without forming them. None when the point, or a value on the way, is not
-    rational, a value is undefined there, or the plant is outside the straight-line programs."""
+    at the point, without forming them. ``"undefined"`` when a value on the way is
+    undefined there (a derivative of sqrt at 0); None when the point, or a value on the
+    way, is not rational, or the plant is outside the straight-line programs."""
     from plantlint.kernel.taylor import Inexact, QField, Undefined
 
     if kernel.route != "numeric":
@@ -778,7 +782,9 @@ def _taylor_brackets(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], order: in
         return None
     try:
         columns = towers.brackets(vector, order, QField())
-    except (Inexact, Undefined, ZeroDivisionError):
+    except (Undefined, ZeroDivisionError):
+        return "undefined"
+    except Inexact:
         return None
     return [[[sympy_rational(v) for v in column] for column in by_order] for by_order in columns]
 

@@ -774,12 +774,10 @@ def _taylor_brackets(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], order: in
     way, is not rational, or the plant is outside the straight-line programs."""
     from plantlint.kernel.taylor import Inexact, QField, Undefined
 
-    if kernel.route != "numeric":
+    at = kernel.towers_at(values)
+    if at is None:
         return None
-    towers = kernel.towers()
-    vector = kernel.point_vector(values)
-    if towers is None or vector is None:
-        return None
+    towers, vector = at
     try:
         columns = towers.brackets(vector, order, QField())
     except (Undefined, ZeroDivisionError):

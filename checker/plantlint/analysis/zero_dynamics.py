@@ -120,12 +120,10 @@ def _taylor_point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Sy
     the numeric route is switched off: the symbolic route then computes them."""
     from plantlint.kernel.taylor import Inexact, QField, Undefined
 
-    if kernel.route != "numeric":
+    at = kernel.towers_at(point)
+    if at is None:
         return None
-    towers = kernel.towers()
-    vector = kernel.point_vector(point)
-    if towers is None or vector is None:
-        return None
+    towers, vector = at
     plant = kernel.plant
     n, m, p = plant.n, plant.m, plant.p
     top = max(degrees)

@@ -147,6 +147,17 @@ class Kernel:
             self._first_order[key] = out
         return self._first_order[key]
 
+    def towers_at(self, point: dict[sp.Symbol, object]) -> "tuple[Towers, list[Fraction]] | None":
+        """The Taylor-mode towers and the point as their input vector, when the numeric route
+        is on, the plant compiles and the point is rational; None otherwise."""
+        if self.route != "numeric":
+            return None
+        towers = self.towers()
+        vector = self.point_vector(point)
+        if towers is None or vector is None:
+            return None
+        return towers, vector
+
     def point_vector(self, point: dict[sp.Symbol, object]) -> list[Fraction] | None:
         """States then ranged parameters of an exact rational point (missing parameters
         at their nominal values); None when a value is not rational."""

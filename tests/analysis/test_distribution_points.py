@@ -168,3 +168,23 @@ expect state_linearizable at origin
     assert origin.get("controllability_rank") is None
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert "at point 'origin' the rates are undefined" in claim.message
+
+
+def test_ranks_proven_by_balls_are_the_exact_ranks(monkeypatch) -> None:
+    """At a rational point where the brackets are not rational (the quadruple tank's
+    square roots), balls give proven lower bounds of the ranks; equal to the generic ranks
+    (an upper bound at any point: a rank can only drop at a point), they are the ranks.
+    Held against the exact route: the same point analysis with the shortcut switched off."""
+    from plantlint.analysis import distributions
+    from conftest import FIXTURES
+
+    text = (FIXTURES / "models" / "quadruple_tank.plant").read_bytes()
+    seen: list[object] = []
+    real = distributions._ball_ranks
+    monkeypatch.setattr(distributions, "_ball_ranks", lambda *a: seen.append(real(*a)) or seen[-1])
+    fast = analyse_bytes(text, Config())
+    assert seen and seen[-1] == [2, 4, 4, 4]  # the shortcut was taken
+    monkeypatch.setattr(distributions, "_ball_ranks", lambda *a: None)
+    exact = analyse_bytes(text, Config())
+    assert fast.analysis["points"] == exact.analysis["points"]
+    assert [f.message for f in fast.findings] == [f.message for f in exact.findings]

@@ -742,6 +742,14 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
     if taylor == "undefined":
         decide.undefined.append("the brackets at the point (a derivative of the rates does not exist there)")
         return [0] * n, [], None
+    if taylor is None and m and known and structure.ranks[-1] == n:
+        # not rational at the point (sin(1/4)): balls prove lower bounds of the ranks, and a
+        # point's rank never exceeds the generic one (n from where the generic analysis
+        # reached it), so bounds equal to the generic ranks are the ranks (and the span is
+        # full: no basis is needed for missing directions)
+        generic = list(structure.ranks) + [n] * (n - known)
+        if _ball_ranks(kernel, values, n, m) == generic:
+            return generic, [], None
     kalman = _kalman_columns(kernel, values, decide) if known < n else None
     for k in range(n if m else 0):
         if k >= known and kalman is not None:
@@ -785,6 +793,27 @@ def _taylor_brackets(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], order: in
     except Inexact:
         return None
     return [[[sympy_rational(v) for v in column] for column in by_order] for by_order in columns]
+
+
+def _ball_ranks(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], n: int, m: int) -> list[int] | None:
+    """Proven lower bounds of the ranks of D_0 .. D_(n-1) at a rational point, from
+    Taylor-mode brackets in ball arithmetic; None when they cannot be formed there."""
+    from plantlint.kernel.taylor import ArbField, Undefined
+
+    at = kernel.towers_at(values)
+    if at is None:
+        return None
+    towers, vector = at
+    try:
+        columns = towers.brackets(vector, n - 1, ArbField(BALL_PREC))
+    except (Undefined, ZeroDivisionError):
+        return None
+    rows: list[list[arb]] = []
+    bounds = []
+    for k in range(n):
+        rows += [list(columns[j][k]) for j in range(m)]
+        bounds.append(ball_rank(rows)[0])
+    return bounds
 
 
 def _kalman_rank(kalman: list[list[sp.Expr]], n: int, decide: Callable[[sp.Expr], ZeroDecision]

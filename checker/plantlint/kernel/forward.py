@@ -26,7 +26,7 @@ Balls are rounded outward by arb, so every enclosure is rigorous at any precisio
 
 from __future__ import annotations
 
-from typing import Any, Callable, Sequence
+from typing import Any, Callable, Iterable, Sequence
 
 from flint import arb
 
@@ -204,15 +204,9 @@ class ForwardProgram:
                 suffix = [arb(1)] * n  # suffix[i] = product of vs[i+1:]
                 for i in range(n - 2, -1, -1):
                     suffix[i] = suffix[i + 1] * vs[i + 1]
-                acc = [arb(0)] * width
-                for i, (a, spread) in enumerate(zip(args, spreads)):
-                    da = regs[a][1]
-                    if not da:
-                        continue
-                    cof = suffix[i] if i == 0 else prefix[i - 1] * suffix[i]
-                    for p, d in zip(spread, da):
-                        acc[p] = acc[p] + cof * d
-                return prefix[-1], tuple(acc)
+                return prefix[-1], _chain(width, (
+                    (suffix[i] if i == 0 else prefix[i - 1] * suffix[i], spread, regs[a][1])
+                    for i, (a, spread) in enumerate(zip(args, spreads)) if regs[a][1]))
             return mul
         if op == "powx":
             (sa, sx), (b_, x_) = spreads, args
@@ -220,14 +214,9 @@ class ForwardProgram:
             def powx(regs: list[Dual], balls: Sequence[arb]) -> Dual:
                 (vb, db), (vx, dx) = regs[b_], regs[x_]
                 out = _powx(vb, vx)
-                acc = [arb(0)] * width
                 cb = out * vx / vb if vb > 0 else _nan()
                 cx = out * vb.log() if vb > 0 else _nan()
-                for p, d in zip(sa, db):
-                    acc[p] = acc[p] + cb * d
-                for p, d in zip(sx, dx):
-                    acc[p] = acc[p] + cx * d
-                return out, tuple(acc)
+                return out, _chain(width, ((cb, sa, db), (cx, sx, dx)))
             return powx
         if op == "atan2":
             (sy, sx), (y_, x_) = spreads, args
@@ -241,12 +230,7 @@ class ForwardProgram:
                 else:
                     r2 = int_power(vx, 2) + int_power(vy, 2)
                     cy, cx = vx / r2, -vy / r2
-                acc = [arb(0)] * width
-                for p, d in zip(sy, dy):
-                    acc[p] = acc[p] + cy * d
-                for p, d in zip(sx, dx):
-                    acc[p] = acc[p] + cx * d
-                return out, tuple(acc)
+                return out, _chain(width, ((cy, sy, dy), (cx, sx, dx)))
             return atan2
         (a0,) = args
         (spread,) = spreads
@@ -254,11 +238,7 @@ class ForwardProgram:
         def unary_step(regs: list[Dual], balls: Sequence[arb]) -> Dual:
             va, da = regs[a0]
             out = _apply_one(op, data, va)
-            c = _derivative(op, data, va, out)
-            acc = [arb(0)] * width
-            for p, d in zip(spread, da):
-                acc[p] = c * d
-            return out, tuple(acc)
+            return out, _chain(width, ((_derivative(op, data, va, out), spread, da),))
         return unary_step
 
     def with_gradients(self, balls: Sequence[arb], prec: int) -> list[tuple[arb, list[arb]]]:
@@ -273,6 +253,17 @@ class ForwardProgram:
                 dense[k] = g
             out.append((v, dense))
         return out
+
+
+def _chain(width: int, parts: Iterable[tuple[arb, tuple[int, ...], Sequence[arb]]]) -> tuple[arb, ...]:
+    """A register's derivatives by the chain rule: the sum over its arguments of the partial
+    derivative times the argument's derivatives, each moved to this register's layout by
+    its spread."""
+    acc = [arb(0)] * width
+    for c, spread, derivatives in parts:
+        for p, d in zip(spread, derivatives):
+            acc[p] = acc[p] + c * d
+    return tuple(acc)
 
 
 def _apply_one(op: str, data: Any, a: arb) -> arb:

@@ -43,7 +43,7 @@ from flint import arb
 
 from plantlint.core import anchors
 from plantlint.core.deadline import TimeUp, expired, within
-from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
+from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel import decision as zd
@@ -307,8 +307,7 @@ class _BorderedMinors:
             if self._sample is not None:
                 symbols = self.kernel.free_symbols()
                 try:
-                    value = Program(list(column), symbols).run(
-                        [rational_ball(self._sample[s], BALL_PREC) for s in symbols], BALL_PREC)
+                    value = Program(list(column), symbols).at(self._sample, BALL_PREC)
                 except UnsupportedExpression:
                     value = None
             self._ball_cache[key] = (column, value)
@@ -757,15 +756,14 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
         if len(basis) == n:
             ranks.append(n)
             continue
-        block = [f for f in structure.fields if f.order == k]
         if taylor:
             # ad_f^k g_j for every input: fields the generic analysis left out are dependent
             # identically, so at the point too, and the echelon skips them
             rows = [taylor[j][k] for j in range(m)]
-        elif block:
+        else:  # the generic fields of order k; past where the generic analysis stopped,
+            # the kernel builds the higher brackets
+            block = [f for f in structure.fields if f.order == k] or _block(kernel, m, k)
             rows = [list(r) for r in matrix_at(kernel, [f.vector for f in block], values).tolist()]
-        else:  # the generic analysis stopped early: the kernel builds the higher brackets
-            rows = [list(r) for r in matrix_at(kernel, [f.vector for f in _block(kernel, m, k)], values).tolist()]
         for row in rows:
             if len(basis) < n and echelon.add(row):
                 basis.append(row)

@@ -320,20 +320,20 @@ def _unproven_zeros(a: Analysis) -> Undecided:
     """Why a claim that holds on the computed structure is still not decided: the
     structure rests on expressions taken as zero without proof (every numeric test says
     zero, the symbolic proof did not finish within its bound)."""
-    k = len(a.kernel.uncertain)
-    which = "an expression that is" if k == 1 else f"{k} expressions that are"
-    return Undecided(f"it holds only if {which} zero at every sampled point {'is' if k == 1 else 'are'} zero "
-                     "identically, and the symbolic proof did not finish within its bound (see the "
-                     "analysis-budget finding)")
+    return Undecided(f"it holds only if {_taken_as_zero(a)}, and the symbolic proof did not finish within its "
+                     "bound (see the analysis-budget finding)")
 
 
 def _resting(message: str, a: Analysis) -> Undecided:
     """A claim's failure found on a structure that rests on unproven zeros: not decided."""
+    return Undecided(f"{message}, if {_taken_as_zero(a)} (the symbolic proof did not finish within its bound; "
+                     "see the analysis-budget finding)")
+
+
+def _taken_as_zero(a: Analysis) -> str:
     k = len(a.kernel.uncertain)
     which = "an expression that is" if k == 1 else f"{k} expressions that are"
-    return Undecided(f"{message}, if {which} zero at every sampled point {'is' if k == 1 else 'are'} zero "
-                     "identically (the symbolic proof did not finish within its bound; see the "
-                     "analysis-budget finding)")
+    return f"{which} zero at every sampled point {'is' if k == 1 else 'are'} zero identically"
 
 
 def claim_text(c: ClaimDecl) -> str:

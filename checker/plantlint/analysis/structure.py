@@ -25,7 +25,7 @@ from typing import Any, Mapping, Sequence
 import sympy as sp
 
 from plantlint.core.deadline import TimeUp, expired, within
-from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball
+from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
@@ -244,12 +244,11 @@ def numeric_output_structure(kernel: Kernel, i: int) -> OutputStructure | None:
 def _proven_by_taylor(kernel: Kernel, towers: Any, i: int, k: int, row: tuple[sp.Expr, ...]) -> bool:
     from flint import arb
 
-    from plantlint.kernel.balls import Program as BallProgram, rational_ball
     from plantlint.kernel.taylor import ArbField, Undefined
 
     symbols = kernel.free_symbols()
     try:
-        layered = BallProgram(list(row), symbols)
+        layered = Program(list(row), symbols)
     except UnsupportedExpression:
         return False
     for sample in kernel.samples()[:TAYLOR_SAMPLES]:
@@ -259,7 +258,7 @@ def _proven_by_taylor(kernel: Kernel, towers: Any, i: int, k: int, row: tuple[sp
                 values = towers.lglf(point, k, ArbField(prec))[i][k]
             except (Undefined, ZeroDivisionError):
                 break
-            check = layered.run([rational_ball(v, prec) for v in point], prec=prec)
+            check = layered.at(sample, prec)
             if not all(isinstance(v, arb) and v.is_finite() for v in values):
                 continue
             if any(c.is_finite() and not c.overlaps(v) for c, v in zip(check, values)):
@@ -320,8 +319,7 @@ def _ball_rank_at(kernel: Kernel, A: sp.Matrix, sample: Mapping[sp.Symbol, Any])
     an entry is beyond the evaluator."""
     symbols = kernel.free_symbols()
     try:
-        balls = Program([e for row in A.tolist() for e in row], symbols).run(
-            [rational_ball(sample[s], BALL_RANK_PREC) for s in symbols], BALL_RANK_PREC)
+        balls = Program([e for row in A.tolist() for e in row], symbols).at(sample, BALL_RANK_PREC)
     except UnsupportedExpression:
         return 0
     return exact.ball_rank([balls[i * A.cols:(i + 1) * A.cols] for i in range(A.rows)])[0]

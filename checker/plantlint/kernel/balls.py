@@ -11,7 +11,7 @@ sub-expressions, then run many times; nothing is ever turned into Python code.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 import math
 from fractions import Fraction
 from typing import Any, Callable
@@ -304,6 +304,11 @@ class Program:
             steps = self._steps = [_step(name, args, data) for name, args, data in self._code]
         regs = run_steps(steps, values, prec)
         return [regs[o] for o in self.outputs]
+
+    def at(self, point: Mapping[sp.Symbol, Fraction], prec: int = 128) -> list[arb]:
+        """Every output at an exact rational point (a value per symbol), as balls of
+        ``prec`` bits around it."""
+        return self.run([rational_ball(point[s], prec) for s in self.symbols], prec)
 
 
 def run_steps(steps: Sequence[Callable[[list[Any], Sequence[arb]], Any]], values: Sequence[arb],

@@ -28,7 +28,7 @@ from flint import arb
 from plantlint.core.deadline import TimeUp, expired, within
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
-from plantlint.kernel.balls import Program, UnsupportedExpression, rational_ball, to_arb
+from plantlint.kernel.balls import Program, UnsupportedExpression, to_arb
 from plantlint.kernel.laurent import FieldRing, identically_zero
 from plantlint.kernel.plant import Plant
 from plantlint.kernel.rational import cancel_together, rational_zero, sympy_rational, vanishes_identically
@@ -558,7 +558,7 @@ def screen_then_confirm(
     if prog is not None:
         for point in samples:
             for prec in (128, 512):
-                b = prog.run([rational_ball(point[s], prec) for s in symbols], prec=prec)[0]
+                b = prog.at(point, prec)[0]
                 if zd.of_ball(b).proven_nonzero:
                     return zd.proven_nonzero("screened")
                 if b.is_finite() and b.rad() < 2.0 ** (-prec // 2):
@@ -653,7 +653,7 @@ def random_samples(
             # keep the denominator small and the value off trivial points
             point[s] = value.limit_denominator(4093) + Fraction(1, 7919)
         if guard is not None:
-            vals = guard.run([rational_ball(point[s], 128) for s in symbols])
+            vals = guard.at(point)
             if not all(v.is_finite() for v in vals):
                 continue
         out.append(point)

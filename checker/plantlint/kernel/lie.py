@@ -131,32 +131,29 @@ class Kernel:
         the plant."""
         from plantlint.kernel.taylor import QField
 
-        vector = self.point_vector(point)
-        if vector is None:
+        compiled = self._compiled_at(point)
+        if compiled is None:
             return None
+        towers, vector = compiled
         key = tuple(vector)
         if key not in self._first_order:
-            towers = self.towers()
-            out = None
-            if towers is not None:
-                try:
-                    values, gradients = towers.first_order(vector, QField())
-                    out = ([sympy_rational(v) for v in values], [[sympy_rational(d) for d in g] for g in gradients])
-                except (ArithmeticError, TypeError):  # not rational, undefined, a division by zero
-                    out = None
+            try:
+                values, gradients = towers.first_order(vector, QField())
+                out = ([sympy_rational(v) for v in values], [[sympy_rational(d) for d in g] for g in gradients])
+            except (ArithmeticError, TypeError):  # not rational, undefined, a division by zero
+                out = None
             self._first_order[key] = out
         return self._first_order[key]
 
     def towers_at(self, point: dict[sp.Symbol, object]) -> "tuple[Towers, list[Fraction]] | None":
         """The Taylor-mode towers and the point as their input vector, when the numeric route
         is on, the plant compiles and the point is rational; None otherwise."""
-        if self.route != "numeric":
-            return None
-        towers = self.towers()
-        vector = self.point_vector(point)
-        if towers is None or vector is None:
-            return None
-        return towers, vector
+        return self._compiled_at(point) if self.route == "numeric" else None
+
+    def _compiled_at(self, point: dict[sp.Symbol, object]) -> "tuple[Towers, list[Fraction]] | None":
+        vector = self.point_vector(point)  # first: it is cheap, compiling the towers is not
+        towers = self.towers() if vector is not None else None
+        return (towers, vector) if towers is not None and vector is not None else None
 
     def point_vector(self, point: dict[sp.Symbol, object]) -> list[Fraction] | None:
         """States then ranged parameters of an exact rational point (missing parameters

@@ -492,7 +492,7 @@ def _plot(args: argparse.Namespace) -> int:
     from dataclasses import replace
 
     from plantlint.core.catalogue import load_catalogue
-    from plantlint.core.deadline import TimeUp, expired, within
+    from plantlint.core.deadline import LATE, bounded
     from plantlint.report.plots import plot_model
     from plantlint.run.config import ConfigError, load_config
     from plantlint.run.runner import UsageError, discover, read_source
@@ -519,19 +519,17 @@ def _plot(args: argparse.Namespace) -> int:
             status = EXIT_FINDINGS
             continue
         try:
-            with within(seconds) as step:
-                outcome = plot_model(source.data, args.format, states=states, point=args.point, param=args.param,
-                                     envelope_seconds=config.envelope_seconds, envelope_boxes=config.envelope_boxes)
-        except TimeUp as exc:
-            if not expired(exc, step):
-                raise
-            print(f"{target.display}: cannot plot: stopped at the budget of {why}; nothing drawn for this model",
-                  file=sys.stderr)
-            status = EXIT_FINDINGS
-            continue
+            outcome = bounded(seconds, lambda: plot_model(
+                source.data, args.format, states=states, point=args.point, param=args.param,
+                envelope_seconds=config.envelope_seconds, envelope_boxes=config.envelope_boxes))
         except (Exception, RecursionError) as exc:  # a hostile model must not end in a traceback
             print(f"{target.display}: cannot plot: internal error ({type(exc).__name__}); "
                   "`plantlint check` reports what it can", file=sys.stderr)
+            status = EXIT_FINDINGS
+            continue
+        if outcome is LATE:
+            print(f"{target.display}: cannot plot: stopped at the budget of {why}; nothing drawn for this model",
+                  file=sys.stderr)
             status = EXIT_FINDINGS
             continue
         if outcome.error:

@@ -9,7 +9,7 @@ import time
 import pytest
 import sympy as sp
 
-from plantlint.core.deadline import TimeUp, expired, within
+from plantlint.core.deadline import LATE, TimeUp, bounded, expired, within
 
 
 def test_a_bound_stops_a_runaway_step_and_restores_the_timer() -> None:
@@ -30,6 +30,20 @@ def test_a_bound_stops_a_runaway_step_and_restores_the_timer() -> None:
             while True:
                 pass
     assert expired(outer.value, out)
+
+
+def test_bounded_returns_late_on_its_own_time_and_lets_an_outer_bound_unwind() -> None:
+    def forever() -> int:
+        while True:
+            pass
+
+    assert bounded(5.0, lambda: 7) == 7
+    assert bounded(0.2, forever) is LATE
+    with pytest.raises(TimeUp) as outer:
+        with within(0.3) as out:
+            bounded(5.0, forever)  # the outer step's time runs out first: not this step's LATE
+    assert expired(outer.value, out)
+    assert signal.getitimer(signal.ITIMER_REAL)[0] == 0
 
 
 def test_equality_to_zero_of_a_huge_constant_is_bounded() -> None:

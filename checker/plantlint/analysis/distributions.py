@@ -42,7 +42,7 @@ import sympy as sp
 from flint import arb
 
 from plantlint.core import anchors
-from plantlint.core.deadline import TimeUp, expired, within
+from plantlint.core.deadline import LATE, bounded
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
@@ -829,15 +829,12 @@ def _kalman_rank(kalman: list[list[sp.Expr]], n: int, decide: Callable[[sp.Expr]
 def _missing_vectors(kernel: Kernel, basis: list[list[sp.Expr]], notes: list[str]) -> list[list[sp.Expr]]:
     """The directions the controllability distribution misses: they only name what is
     wrong in a message, so they are bounded in time (a note when cut short)."""
-    try:
-        with within(MESSAGE_SECONDS) as step:
-            return _orthogonal_complement(kernel, basis)
-    except TimeUp as exc:
-        if not expired(exc, step):
-            raise
+    vectors = bounded(MESSAGE_SECONDS, lambda: _orthogonal_complement(kernel, basis))
+    if vectors is LATE:
         notes.append(f"the missing directions were not worked out: it took longer than {MESSAGE_SECONDS:g} s "
                      "(they only name the problem; the rank does not depend on them)")
         return []
+    return vectors
 
 
 def _witness_near(kernel: Kernel, structure: DistributionStructure, name: str, values: dict[sp.Symbol, sp.Expr],
@@ -847,15 +844,13 @@ def _witness_near(kernel: Kernel, structure: DistributionStructure, name: str, v
     bounded, dropped with a note."""
     if structure.failure is None or not structure.failure.bracket:
         return None, None
-    try:
-        with within(MESSAGE_SECONDS) as step:
-            return _involutivity_witness(kernel, structure.failure, values)
-    except TimeUp as exc:
-        if not expired(exc, step):
-            raise
+    failure = structure.failure
+    witness = bounded(MESSAGE_SECONDS, lambda: _involutivity_witness(kernel, failure, values))
+    if witness is LATE:
         notes.append(f"no point near {name} where the bracket leaves the distribution was worked out "
                      f"within {MESSAGE_SECONDS:g} s")
         return None, None
+    return witness
 
 
 def _linearizing_output(structure: DistributionStructure, values: dict[sp.Symbol, sp.Expr],

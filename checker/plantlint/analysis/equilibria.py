@@ -265,7 +265,7 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     from dataclasses import replace
 
     from plantlint.analysis.refine import near_miss
-    from plantlint.core.deadline import TimeUp, expired, within
+    from plantlint.core.deadline import LATE, bounded
 
     missed = [f for f in eq.findings if f.rule in ("point-not-equilibrium", "point-incomplete")]
     if eq.equilibrium or not missed:
@@ -274,15 +274,11 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     written = {s: v for s, v in given.items() if s in plant.states or s in plant.inputs}
     unknown = [u for u in plant.inputs if u not in given]
     late = False
-    try:
-        with within(REFINE_SECONDS) as step:
-            miss = near_miss(plant, written, unknown)
+    try:  # bounded: without it the point stays not an equilibrium
+        found = bounded(REFINE_SECONDS, lambda: near_miss(plant, written, unknown))
+        miss, late = (None, True) if found is LATE else (found, False)
     except (ArithmeticError, ValueError, TypeError):  # a refinement is advice: the finding stands without it
         miss = None
-    except TimeUp as exc:  # bounded: without it the point stays not an equilibrium
-        if not expired(exc, step):
-            raise
-        miss, late = None, True
     values: dict[sp.Symbol, sp.Expr] | None = None
     exact = False
     if miss is not None and miss.candidates:

@@ -16,7 +16,7 @@ from typing import Iterator, Sequence
 
 import sympy as sp
 
-from plantlint.core.deadline import TimeUp, expired, within
+from plantlint.core.deadline import LATE, bounded
 from plantlint.kernel.exact import ZeroDecider, number_decider, rank as exact_rank
 from plantlint.language.printer import show_expr
 from plantlint.kernel.lie import Kernel
@@ -94,14 +94,10 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     if rank == n and not write_out:
         note = WRITTEN_BY_EXPLAIN
     elif rank == n:
-        try:
-            with within(DISPLAY_SECONDS) as step:
-                dynamics, note = _symbolic_zero_dynamics(kernel, degrees, xi, eta, point, decide)
-        except TimeUp as exc:
-            if not expired(exc, step):
-                raise
-            dynamics, note = None, (f"the zero dynamics were not written out: solving for them took longer than "
-                                    f"{DISPLAY_SECONDS:g} s (display only; the verdict does not depend on it)")
+        solved = bounded(DISPLAY_SECONDS, lambda: _symbolic_zero_dynamics(kernel, degrees, xi, eta, point, decide))
+        dynamics, note = solved if solved is not LATE else (
+            None, f"the zero dynamics were not written out: solving for them took longer than "
+                  f"{DISPLAY_SECONDS:g} s (display only; the verdict does not depend on it)")
     return NormalForm(
         tuple(names), tuple(map(show_expr, eta)), rank, rank == n, input_free, dynamics, note
     )

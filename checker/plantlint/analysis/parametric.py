@@ -39,7 +39,7 @@ import sympy as sp
 from plantlint.analysis.equilibria import Equilibrium
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
 from plantlint.core import anchors
-from plantlint.core.deadline import TimeUp, expired, within
+from plantlint.core.deadline import LATE, bounded
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel import decision as zd
@@ -235,13 +235,9 @@ def _bounded(params: ParameterBox, compute: Callable[[], BoxVerdict]) -> BoxVerd
     anything that stops it leaves the property undecided or checked at nominal values only."""
     seconds = max(params.clock.deadline - time.perf_counter(), 0.0) + SYMBOLIC_SLACK
     try:
-        with within(seconds) as step:
-            return compute()
-    except TimeUp as exc:
-        if not expired(exc, step):
-            raise
-        return BoxVerdict("undecided", "the check over the parameter box ran out of its time budget "
-                          "(envelope-seconds)")
+        verdict = bounded(seconds, compute)
+        return verdict if verdict is not LATE else BoxVerdict(
+            "undecided", "the check over the parameter box ran out of its time budget (envelope-seconds)")
     except NotCovered as why:
         return _nominal(str(why))
     except UnsupportedExpression as why:

@@ -339,15 +339,11 @@ DERIVATION_SECONDS = 3.0
 def _derivation(a: Analysis) -> dict[str, Any]:
     """The Lie-derivative table (with names), the decoupling matrix A and b = L_f^r h;
     within :data:`DERIVATION_SECONDS`, else the relative degrees and the rank with a note."""
-    from plantlint.core.deadline import TimeUp, expired, within
+    from plantlint.core.deadline import LATE, bounded
 
-    step = None
-    try:
-        with within(DERIVATION_SECONDS) as step:
-            return _symbolic_derivation(a)
-    except TimeUp as exc:
-        if not expired(exc, step):
-            raise
+    derivation = bounded(DERIVATION_SECONDS, lambda: _symbolic_derivation(a))
+    if derivation is not LATE:
+        return derivation
     st = a.structure
     return {
         "subexpressions": [], "lie_derivatives": [], "relative_degree": dict(st.relative_degree),

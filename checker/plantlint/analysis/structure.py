@@ -24,7 +24,7 @@ from typing import Any, Mapping, Sequence
 
 import sympy as sp
 
-from plantlint.core.deadline import TimeUp, expired, within
+from plantlint.core.deadline import bounded
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
@@ -113,13 +113,9 @@ def readable(expr: sp.Expr) -> str:
     """A readable form of an expression for messages: factored when small, cut when large."""
     text = show_expr(expr, limit=10**6)
     if sp.count_ops(expr) <= READABLE_FACTOR_OPS and _small_degrees(expr):
-        try:
-            with within(READABLE_SECONDS) as step:  # display only: sympy's factor has no limit of its own
-                factored = show_expr(sp.factor(sp.cancel(expr)), limit=10**6)
-        except TimeUp as exc:
-            if not expired(exc, step):
-                raise
-            factored = text
+        try:  # display only: sympy's factor has no limit of its own
+            shown = bounded(READABLE_SECONDS, lambda: show_expr(sp.factor(sp.cancel(expr)), limit=10**6))
+            factored = shown if isinstance(shown, str) else text
         except (sp.PolynomialError, TypeError, ValueError):
             factored = text
         text = min(text, factored, key=len)

@@ -1,4 +1,5 @@
-"""Small wall-clock bounds for single steps of an analysis (``within(seconds)``).
+"""Small wall-clock bounds for single steps of an analysis (``bounded(seconds, step)``,
+built on ``within(seconds)``).
 
 Used for steps that only make display text (the symbolic zero dynamics, a direction
 named in a message) and for symbolic confirmations whose fallback is already
@@ -19,7 +20,9 @@ import signal
 import threading
 import time
 from contextlib import contextmanager
-from typing import Any, Iterator
+from typing import Any, Callable, Iterator, TypeVar
+
+T = TypeVar("T")
 
 
 class TimeUp(BaseException):
@@ -85,3 +88,25 @@ def within(seconds: float) -> Iterator[object]:
 def expired(exc: TimeUp, token: object) -> bool:
     """Is ``exc`` this step's own time running out (not an outer step's)?"""
     return exc.token is token
+
+
+class _Late:
+    """What :func:`bounded` returns when the step's own time ran out."""
+
+    def __repr__(self) -> str:
+        return "LATE"
+
+
+LATE = _Late()
+
+
+def bounded(seconds: float, step: Callable[[], T]) -> T | _Late:
+    """``step()`` with at most ``seconds`` of wall-clock time, else :data:`LATE` (an outer
+    bound running out still unwinds through it)."""
+    try:
+        with within(seconds) as token:
+            return step()
+    except TimeUp as exc:
+        if not expired(exc, token):
+            raise
+        return LATE

@@ -25,7 +25,7 @@ from typing import TYPE_CHECKING, Sequence
 import sympy as sp
 from flint import arb
 
-from plantlint.core.deadline import TimeUp, expired, within
+from plantlint.core.deadline import LATE, bounded
 from plantlint.kernel import decision as zd
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.balls import Program, UnsupportedExpression, to_arb
@@ -578,14 +578,8 @@ def bounded_equals_zero(exact: sp.Expr) -> ZeroDecision:
     when sympy cannot tell)."""
     if sp.count_ops(exact) > EQUALS_OPS_LIMIT:
         return zd.UNDECIDED
-    try:
-        with within(EQUALS_SECONDS) as step:
-            answer = exact.equals(0)
-    except TimeUp as exc:
-        if not expired(exc, step):
-            raise
-        return zd.UNDECIDED
-    return zd.UNDECIDED if answer is None else zd.exactly(bool(answer), "equals")
+    answer = bounded(EQUALS_SECONDS, lambda: exact.equals(0))
+    return zd.UNDECIDED if answer is None or answer is LATE else zd.exactly(bool(answer), "equals")
 
 
 def has_symbolic_denominator(e: sp.Expr) -> bool:
@@ -615,16 +609,17 @@ def confirm_zero(expr: sp.Expr) -> ZeroDecision:
             zero = cancel_together(expr) == 0
         return zd.proven_zero("cancel") if zero else zd.proven_nonzero("cancel")
     if sp.count_ops(expr) <= SIMPLIFY_OPS_LIMIT:
-        try:
-            with within(SIMPLIFY_SECONDS) as step:
-                e = sp.expand(sp.together(expr))
-                if e == 0:
-                    return zd.proven_zero("cancel")
-                if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
-                    return zd.proven_zero("simplify")
-        except TimeUp as exc:  # sympy's simplification has no limit of its own
-            if not expired(exc, step):
-                raise
+        def simplified() -> ZeroDecision | None:
+            e = sp.expand(sp.together(expr))
+            if e == 0:
+                return zd.proven_zero("cancel")
+            if sp.trigsimp(e) == 0 or sp.simplify(e) == 0:
+                return zd.proven_zero("simplify")
+            return None
+
+        decision = bounded(SIMPLIFY_SECONDS, simplified)  # sympy's simplification has no limit of its own
+        if isinstance(decision, ZeroDecision):
+            return decision
     return zd.unconfirmed_zero("unconfirmed")
 
 

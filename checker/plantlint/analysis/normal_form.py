@@ -79,15 +79,15 @@ def normal_form_at(kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Sy
     for phi in _candidates(kernel, prefer_input_free=True):
         if rank == n:
             break
-        rank = _try_add(kernel, phi, rows, rank, point, decide, chosen)
+        rank = _try_add(kernel, phi, rows, rank, decide, chosen)
     input_free = True
     for phi in _candidates(kernel, prefer_input_free=False):
         if rank == n:
             break
-        if phi in chosen:
+        if phi.phi in chosen:
             continue
         before = rank
-        rank = _try_add(kernel, phi, rows, rank, point, decide, chosen)
+        rank = _try_add(kernel, phi, rows, rank, decide, chosen)
         input_free = input_free and rank == before
     eta = tuple(chosen)
     dynamics, note = None, ""
@@ -107,38 +107,58 @@ def _gradient_at(kernel: Kernel, expr: sp.Expr, point: dict[sp.Symbol, sp.Expr])
     return [d.xreplace(point) for d in kernel.gradient(expr)]
 
 
-def _input_free(kernel: Kernel, phi: sp.Expr) -> bool:
-    return all(kernel.is_zero(kernel.lie(phi, g)).taken_zero for g in kernel.g)
+@dataclass(frozen=True)
+class _Candidate:
+    """An internal coordinate x_a or x_a +- x_b: its expression and its (constant) weights."""
+
+    phi: sp.Expr
+    weights: tuple[tuple[int, int], ...]  # (state index, +1 or -1)
+
+    def gradient(self, n: int) -> list[sp.Expr]:
+        row: list[sp.Expr] = [sp.Integer(0)] * n
+        for a, w in self.weights:
+            row[a] = sp.Integer(w)
+        return row
+
+    def along(self, field: Sequence[sp.Expr]) -> sp.Expr:
+        """L_X phi = sum of w_a X_a: the derivative of a linear coordinate needs no differentiation."""
+        total = sp.Integer(0)
+        for a, w in self.weights:
+            total += field[a] if w == 1 else -field[a]
+        return total
 
 
-def _candidates(kernel: Kernel, prefer_input_free: bool) -> Iterator[sp.Expr]:
+def _input_free(kernel: Kernel, phi: _Candidate) -> bool:
+    return all(kernel.is_zero(phi.along(g)).taken_zero for g in kernel.g)
+
+
+def _candidates(kernel: Kernel, prefer_input_free: bool) -> Iterator[_Candidate]:
     """States, then sums and differences of two states (lazily)."""
     states = kernel.plant.states
-    simple: list[sp.Expr] = list(states)
-    for phi in simple:
+    for a, s in enumerate(states):
+        phi = _Candidate(s, ((a, 1),))
         if not prefer_input_free or _input_free(kernel, phi):
             yield phi
-    for a, b in combinations(states, 2):
-        for phi in (a + b, a - b):
+    for (a, sa), (b, sb) in combinations(enumerate(states), 2):
+        for phi in (_Candidate(sa + sb, ((a, 1), (b, 1))), _Candidate(sa - sb, ((a, 1), (b, -1)))):
             if not prefer_input_free or _input_free(kernel, phi):
                 yield phi
 
 
 def _try_add(
     kernel: Kernel,
-    phi: sp.Expr,
+    phi: _Candidate,
     rows: list[list[sp.Expr]],
     rank: int,
-    point: dict[sp.Symbol, sp.Expr],
     decide: ZeroDecider,
     chosen: list[sp.Expr],
 ) -> int:
-    """Keep ``phi`` when its differential raises the exact rank at the point."""
-    row = _gradient_at(kernel, phi, point)
+    """Keep ``phi`` when its differential (constant) raises the exact rank at the point."""
+    row = phi.gradient(kernel.plant.n)
     new_rank = exact_rank([*rows, row], decide)[0]
     if new_rank > rank:
         rows.append(row)
-        chosen.append(phi)
+        chosen.append(phi.phi)
     return new_rank if new_rank > rank else rank
 
 

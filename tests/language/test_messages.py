@@ -218,3 +218,20 @@ def test_numbers_too_long_to_write_out_are_shortened_inside_expressions() -> Non
     text = GOOD.replace("rate z = e + (u + 1)*sin(z + 1)", "rate z = e + u/(z - 1e-300)")
     (singular,) = [f for f in analyse_bytes(text.encode()).findings if f.rule == "singular-model"]
     assert "1e-300" in singular.message and "000000000000000" not in singular.message
+
+
+@pytest.mark.parametrize("rate, affine", [
+    ("x*u + u", True),                 # affine by its form (no derivative built)
+    ("(u + x)^2 - u^2 - x^2", True),   # degree 2 by its form, affine once differentiated
+    ("u^2 - x", False),
+    ("x/(1 + u)", False),
+    ("sin(u)", False),
+])
+def test_input_affinity_by_form_and_by_second_derivative(rate: str, affine: bool) -> None:
+    """A rate is affine in u when d2F/du2 vanishes identically (the definition of
+    dx/dt = f(x) + g(x) u, common practice). The form-based bound may only skip the
+    derivative when it proves affinity; a rate of degree 2 by its form that cancels
+    must still pass."""
+    text = f"plant p\nstate x in -1 .. 1\ninput u in -1 .. 1\nrate x = {rate}\noutput y = x\n"
+    rules = [f.rule for f in findings(text)]
+    assert ("not-input-affine" not in rules) == affine, rules

@@ -90,8 +90,7 @@ class OutputSearch:
                 floats = [float(b.mid()) for b in balls]
                 exact = {s: sp.Rational(sample[s].numerator, sample[s].denominator) for s in symbols}
                 points.append((exact, [floats[i * n : (i + 1) * n] for i in range(len(fields))]))
-        for phi in _candidates(self.kernel.plant.states):
-            gradient = self.kernel.gradient(phi)
+        for phi, gradient in _candidates(self.kernel.plant.states):
             if all(_annihilates(gradient, exact, columns) for exact, columns in points):
                 yield phi
 
@@ -106,15 +105,23 @@ def _annihilates(gradient: Vector, point: dict[sp.Symbol, sp.Expr], columns: lis
     return True
 
 
-def _candidates(states: Sequence[sp.Symbol]) -> Iterator[sp.Expr]:
-    """States, then x_a +- c x_b and c x_a +- x_b (c = 1, 2, 3), then squares and products."""
+def _candidates(states: Sequence[sp.Symbol]) -> Iterator[tuple[sp.Expr, tuple[sp.Expr, ...]]]:
+    """States, then x_a +- c x_b and c x_a +- x_b (c = 1, 2, 3), then squares and products,
+    each with its gradient (written down: these candidates need no differentiation)."""
     n = len(states)
-    yield from states
+    zero = sp.Integer(0)
+
+    def gradient(entries: dict[int, sp.Expr]) -> tuple[sp.Expr, ...]:
+        return tuple(entries.get(i, zero) for i in range(n))
+
+    for a, s in enumerate(states):
+        yield s, gradient({a: sp.Integer(1)})
     weights = [(1, s * c) for c in (1, 2, 3) for s in (1, -1)] + [(c, s) for c in (2, 3) for s in (1, -1)]
     for a in range(n):
         for b in range(a + 1, n):
             for ca, cb in weights:
-                yield ca * states[a] + cb * states[b]
+                yield ca * states[a] + cb * states[b], gradient({a: sp.Integer(ca), b: sp.Integer(cb)})
     for a in range(n):
         for b in range(a, n):
-            yield states[a] * states[b]
+            both = {a: 2 * states[a]} if a == b else {a: states[b], b: states[a]}
+            yield states[a] * states[b], gradient(both)

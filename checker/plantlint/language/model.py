@@ -582,6 +582,8 @@ def _check_affine(scope: _Scope, rates: dict[str, sp.Expr], rate_stmts: dict[str
     for name, F in rates.items():
         if not (F.free_symbols & set(us)):
             continue
+        if _input_degree(F, frozenset(us)) <= 1:
+            continue  # affine by its form: no second derivative to build
         bad: list[str] = []
         for i, ui in enumerate(us):
             dFi = sp.diff(F, ui)
@@ -601,6 +603,25 @@ def _check_affine(scope: _Scope, rates: dict[str, sp.Expr], rate_stmts: dict[str
                       st.expr.span if st.expr else st.span, anchors.rate(name),
                       hint="the analyses need dx/dt = f(x) + g(x) u; add an integrator (dynamic extension) or a new input")
     return affine
+
+
+def _input_degree(e: sp.Expr, inputs: frozenset[sp.Symbol]) -> float:
+    """An upper bound of the total degree of ``e`` in the inputs, read off its form: an
+    input counts 1, a sum the largest of its terms, a product the sum of its factors, a
+    power to a whole exponent k >= 0 k times its base; anything else that contains an
+    input (a quotient by one, a function of one) is unbounded (inf). A bound <= 1
+    proves the expression affine in the inputs."""
+    if e in inputs:
+        return 1
+    if e.is_Atom:
+        return 0
+    if e.is_Add:
+        return max(_input_degree(a, inputs) for a in e.args)
+    if e.is_Mul:
+        return sum(_input_degree(a, inputs) for a in e.args)
+    if e.is_Pow and e.exp.is_Integer and e.exp >= 0:
+        return int(e.exp) * _input_degree(e.base, inputs)
+    return float("inf") if e.free_symbols & inputs else 0
 
 
 def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...]) -> list[OperatingPoint]:

@@ -531,3 +531,18 @@ def test_formats_are_loaded_when_asked_for() -> None:
     for names, loaded in ((["json", "sarif", "lines"], "False"), (["text"], "True")):
         out = subprocess.run([sys.executable, "-c", code, *names], capture_output=True, text=True, check=True)
         assert out.stdout.strip() == loaded, names
+
+
+def test_text_wrapping_keeps_assignments_whole_and_loses_no_word() -> None:
+    """Messages wrap at spaces, never inside ``name = value`` (common practice for
+    readable terminal output); wrapping neither drops nor adds a word, held against
+    Python's own ``str.split``."""
+    from plantlint.report.formats.text import _wrap_lines
+
+    message = ("the relative degree is not well defined on the whole envelope: L_g L_f ram vanishes at "
+               "th = 0, w = 0 (exactly)")
+    for width in range(20, 100):
+        lines = _wrap_lines(message, width)
+        assert all(len(line) <= width for line in lines), width
+        assert " ".join(lines).split() == message.split(), width
+        assert not any(line.endswith(("th", "=")) or line.startswith("=") for line in lines), (width, lines)

@@ -132,9 +132,21 @@ def _cut(pieces: list[str], first: int, start: int) -> tuple[str, int]:
 def _indented(console: Console, text: Text) -> None:
     """Print ``text`` wrapped to the console width, every line indented (no
     trailing padding, so plain output stays clean)."""
-    for line in text.wrap(console, max(console.width - INDENT, 20)):
-        line.rstrip()
-        console.print(Text(" " * INDENT) + line, soft_wrap=True)
+    _indented_by(console, INDENT, text, margin=0)
+
+
+#: Stands for the spaces around "=" while a message is wrapped: "th = 0" stays on one line.
+_GLUE = "\u00a0"
+
+
+def _wrap_lines(text: str, width: int) -> list[str]:
+    """``text`` cut into lines of at most ``width`` characters at spaces, never inside an
+    assignment ``name = value`` (a witness point reads badly as "th" / "= 0")."""
+    import textwrap
+
+    glued = text.replace(" = ", f"{_GLUE}={_GLUE}")
+    lines = textwrap.wrap(glued, width, break_on_hyphens=False) or [""]
+    return [line.replace(_GLUE, " ") for line in lines]
 
 
 def _counts_phrase(counts: dict[str, int]) -> str:
@@ -260,10 +272,10 @@ class TextFormatter:
         console.print(verdict(report), soft_wrap=True)
 
 
-def _indented_by(console: Console, indent: int, text: Text) -> None:
-    for line in text.wrap(console, max(console.width - indent - 2, 20)):
-        line.rstrip()
-        console.print(Text(" " * indent) + line, soft_wrap=True)
+def _indented_by(console: Console, indent: int, text: Text, margin: int = 2) -> None:
+    """``text`` (one style) wrapped by :func:`_wrap_lines`, every line indented."""
+    for line in _wrap_lines(text.plain, max(console.width - indent - margin, 20)):
+        console.print(Text(" " * indent) + Text(line, style=text.style), soft_wrap=True)
 
 
 def verdict(report: Report) -> Text:

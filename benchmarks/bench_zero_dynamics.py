@@ -42,7 +42,7 @@ def tilted_point(plant: Plant) -> dict[sp.Symbol, sp.Expr]:
     """A rest point with the pendulum held at 1/5 rad by the spring force (exact)."""
     p1, v1, p2, v2, th, w = plant.states
     th0 = sp.Rational(1, 5)
-    g, L, k = sp.Rational(981, 100), sp.Rational(3, 2), sp.Integer(4)
+    g, k = sp.Rational(981, 100), sp.Integer(4)
     delta = 2 * g * sp.tan(th0) / (k * (2 + sp.sin(th0) ** 2 / 4))
     return {p1: delta, v1: 0, p2: 0, v2: 0, th: th0, w: 0}
 

@@ -147,17 +147,52 @@ def _stages(report: dict[str, Any]) -> list[str]:
     return ["all"]
 
 
-def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, repeat: int = 3) -> Row:
+NAIVE_FILE = RESULTS / "naive.json"
+
+
+def naive_only(suite: list[tuple[ModelSpec, Path]], cap: float) -> None:
+    """Only the naive analysis, one model after another, each capped at ``cap`` seconds.
+
+    Written to ``results/naive.json`` after every model (a long run stopped part-way keeps
+    what it measured). ``--naive-from`` makes a later full run take these figures instead of
+    measuring the naive way again at a lower cap."""
+    done: dict[str, Any] = json.loads(NAIVE_FILE.read_text(encoding="utf-8")) if NAIVE_FILE.exists() else {}
+    for spec, _ in suite:
+        nv = measure([sys.executable, str(HERE / "naive.py"), spec.name], cap)
+        done[spec.name] = {"seconds": round(cap if nv.capped else nv.seconds, 3), "capped": nv.capped, "cap": cap,
+                           "peak_mb": round(nv.peak_mb, 1), "exit_code": nv.exit_code,
+                           "stdout": nv.stdout.strip().splitlines()[-1] if nv.stdout.strip() else "",
+                           "date": time.strftime("%Y-%m-%d")}
+        NAIVE_FILE.write_text(json.dumps(done, indent=2) + "\n", encoding="utf-8")
+        print(spec.name, done[spec.name]["seconds"], "capped" if nv.capped else "", flush=True)
+
+
+def _naive(spec: ModelSpec, cap: float, recorded: dict[str, Any] | None) -> Measured:
+    """The naive run of ``spec``: from ``recorded`` (a ``--naive-only`` file) when it has the
+    model at a cap at least ``cap``, measured now otherwise."""
+    entry = (recorded or {}).get(spec.name)
+    if entry and entry["cap"] >= cap:
+        return Measured(entry["seconds"], entry["peak_mb"], None if entry["capped"] else entry["exit_code"],
+                        entry["stdout"], "")
+    run = measure([sys.executable, str(HERE / "naive.py"), spec.name], cap)
+    if run.capped:
+        run.seconds = cap
+    return run
+
+
+def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, repeat: int = 3,
+                recorded: dict[str, Any] | None = None) -> Row:
     """plantlint and (for generated models) the naive analysis on one model.
 
     plantlint (``--jobs 1``) is timed alone, ``repeat`` times, and the run of median wall
     time is kept: a single cold run of about a second varies by a few tenths on a shared
-    machine. The naive analysis runs once, after it, also alone."""
+    machine. The naive analysis runs once, after it, also alone (or comes from ``recorded``,
+    see :func:`naive_only`)."""
     command = plantlint_command() + ["check", "--no-cache", "--jobs", "1", "--timeout", f"{timeout:g}",
                                      "--format", "json", str(path)]
     runs = sorted((measure(command, timeout + 60) for _ in range(max(repeat, 1))), key=lambda m: m.seconds)
     pl = runs[len(runs) // 2]
-    nv = measure([sys.executable, str(HERE / "naive.py"), spec.name], cap) if spec else None
+    nv = _naive(spec, cap, recorded) if spec else None
     try:
         report = json.loads(pl.stdout)
     except ValueError:
@@ -169,7 +204,7 @@ def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, 
     agrees = None
     capped = False
     if nv is not None:
-        naive_s, naive_mb, capped = (cap if nv.capped else nv.seconds), nv.peak_mb, nv.capped
+        naive_s, naive_mb, capped = nv.seconds, nv.peak_mb, nv.capped
         ratio = naive_s / pl.seconds
         if not nv.capped and nv.exit_code == 0 and analysis.get("relative_degree") is not None:
             naive = json.loads(nv.stdout.strip().splitlines()[-1])
@@ -394,7 +429,10 @@ def markdown(rows: list[Row], fits: dict[str, Any], goals: dict[str, Any], meta:
     lines = [
         "# Benchmark results", "",
         f"Run {meta['date']} on {meta['machine']} (Python {meta['python']}), plantlint {meta['version']}, "
-        f"`{meta['command']}`; naive cap {meta['cap']:g} s, plantlint budget {meta['timeout']:g} s.", "",
+        f"`{meta['command']}`; naive cap {meta['cap']:g} s, plantlint budget {meta['timeout']:g} s."
+        + (" Naive figures of the generated models from `results/naive.json` (measured alone, "
+           + "; ".join(f"{date} at a cap of {cap:g} s" for date, cap in meta["naive_from"]) + ")."
+           if meta.get("naive_from") else ""), "",
         "| model | n | m | p | plantlint s | analysis s | peak MB | naive s | ratio | stages | findings |",
         "|---|---:|---:|---:|---:|---:|---:|---:|---:|---|---|",
     ]
@@ -541,6 +579,12 @@ def main() -> None:
                     help="only the scaling families (pendulum chain to n = 20, dense chain to 16 states), "
                          "the 2-state spring chain, the quadrotor and example_repo")
     ap.add_argument("--repeat", type=int, default=3, help="runs of plantlint per model; the median is kept")
+    ap.add_argument("--naive-only", action="store_true",
+                    help="measure only the naive analysis of the generated models (with --cap) into "
+                         "results/naive.json")
+    ap.add_argument("--naive-from", action="store_true",
+                    help="take the naive figures from results/naive.json where it holds the model at a "
+                         "cap at least --cap")
     ap.add_argument("--report-only", action="store_true",
                     help="recompute fits, targets and the table from results/results.json (no measuring)")
     args = ap.parse_args()
@@ -559,11 +603,15 @@ def main() -> None:
         suite = write_suite(models, specs=chosen)
     else:
         suite = write_suite(models, args.quick)
+    if args.naive_only:
+        naive_only(sorted(suite, key=lambda sp: len(sp[0].resolved()[0])), args.cap)  # smallest first
+        return
+    recorded = json.loads(NAIVE_FILE.read_text(encoding="utf-8")) if args.naive_from and NAIVE_FILE.exists() else None
     # one unmeasured run writes the bytecode cache of every module a check imports
     measure([*plantlint_command(), "check", "--no-cache", str(suite[0][1])], cap=args.timeout)
     rows: list[Row] = []
     for spec, path in suite:
-        rows.append(bench_model(path, spec, args.cap, args.timeout, args.repeat))
+        rows.append(bench_model(path, spec, args.cap, args.timeout, args.repeat, recorded))
         print(json.dumps(asdict(rows[-1])), flush=True)
     for path in sorted((REPO / "example_repo").rglob("*.plant")):
         rows.append(bench_model(path, None, args.cap, args.timeout, args.repeat))
@@ -579,7 +627,8 @@ def main() -> None:
             "command": "python benchmarks/run.py" + (" --quick" if args.quick else "")
             + (" --scaling" if args.scaling else "") + (f" --cap {args.cap:g}" if args.cap != 120 else "")
             + (f" --timeout {args.timeout:g}" if args.timeout != 120 else "")
-            + (f" --repeat {args.repeat}" if args.repeat != 3 else ""),
+            + (f" --repeat {args.repeat}" if args.repeat != 3 else "") + (" --naive-from" if recorded else ""),
+            "naive_from": (sorted({(e["date"], e["cap"]) for e in recorded.values()}) if recorded else None),
             "cap": args.cap, "timeout": args.timeout, "repeat": args.repeat, "bytecode": "cached (one unmeasured run first)",
             "imports": check_import_profile(models / "spring_chain_1.plant")}
     data = {"meta": meta, "rows": [asdict(r) for r in rows], "growth": fits, "targets": goals}

@@ -510,3 +510,41 @@ def test_messages_do_not_factor_polynomials_of_huge_degree() -> None:
     assert not _small_degrees(big) and readable(big) == "-2 + 3000000000*exp(-8000/T_r)"
     small = x**3 - 3 * x**2 + 3 * x - 1  # the binomial expansion of (x - 1)^3
     assert _small_degrees(small) and readable(small) == "(-1 + x)^3"
+
+
+BALL_BEAM = b"""plant ball_beam "ball and beam (invented numbers)"
+const g = 9.81
+param B = 0.7
+state r in -0.4 .. 0.4
+state vr in -1 .. 1
+state th in -0.3 .. 0.3
+state w in -1 .. 1
+input a in -5 .. 5
+rate r = vr
+rate vr = B*(r*w^2 - g*sin(th))
+rate th = w
+rate w = a
+output pos = r
+"""
+
+
+def test_ball_and_beam_singular_envelope_names_the_vanishing_factor() -> None:
+    """Ball and beam with the beam's angular acceleration as input (Hauser, Sastry &
+    Kokotovic, IEEE TAC 37(3), 1992, from memory): y = r has L_g L_f^2 h = 2 B r w, zero on
+    r = 0 and on w = 0, so the relative degree is not well defined at any rest point. The
+    term is recomputed here with sympy's diff (Lie derivatives written out by hand)."""
+    r, vr, th_, w_ = sp.symbols("r vr th w")
+    B, g = sp.Rational(7, 10), sp.Rational(981, 100)
+    f = [vr, B * (r * w_**2 - g * sp.sin(th_)), w_, 0]
+    x = [r, vr, th_, w_]
+
+    def lie(e: sp.Expr, field: list) -> sp.Expr:
+        return sum((sp.diff(e, xi) * fi for xi, fi in zip(x, field)), sp.Integer(0))
+
+    term = sp.factor(lie(lie(lie(r, f), f), [0, 0, 0, 1]))
+    assert term == sp.Rational(7, 5) * r * w_
+    (singular,) = [f for f in analyse_bytes(BALL_BEAM).findings if f.rule == "envelope-singular"]
+    assert "L_g L_f^2 pos vanishes at" in singular.message
+    factor = singular.message.split("its factor ")[1].split(" is zero there")[0]
+    assert sp.Symbol(factor) in (r, w_)  # a factor of the term, as sympy factors it
+    assert singular.span is not None and singular.span.line == 4 + (factor == "w") * 3  # its range

@@ -530,7 +530,8 @@ def certify_envelope(
             "envelope-singular",
             f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
             f"at {show_point(verdict.witness)}"
-            + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)"),
+            + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)")
+            + _factor_phrase(culprit, exprs),
             _range_to_narrow(culprit, box, spans),
             anchor=anchors.ENVELOPE, hint="narrow the envelope, move it off the singular set, or choose other outputs",
         ))
@@ -588,6 +589,19 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
         return EnvelopeVerdict(None, None, None, first.undecided, boxes,
                                sum(v.undecided_count for v in undecided)), exprs
     return EnvelopeVerdict(True, margin, None, [], boxes), exprs
+
+
+#: A vanishing factor is named in the message when it is at most this long.
+FACTOR_TEXT = 40
+
+
+def _factor_phrase(culprit: list[sp.Expr], exprs: list[sp.Expr]) -> str:
+    """": its factor F is zero there" when the witness was found on one factor of the
+    term (what to keep away from zero); "" when the whole term vanished or F is long."""
+    if len(culprit) != 1 or culprit == exprs or sp.count_ops(culprit[0]) > FACTOR_TEXT // 2:
+        return ""
+    text = show_expr(culprit[0], limit=10 * FACTOR_TEXT)
+    return f": its factor {text} is zero there" if len(text) <= FACTOR_TEXT else ""
 
 
 def _range_to_narrow(culprit: list[sp.Expr], box: dict[sp.Symbol, Any],

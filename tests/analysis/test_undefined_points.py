@@ -92,3 +92,33 @@ def test_values_beyond_double_precision_are_reported_not_crashed_on() -> None:
     out = io.StringIO()
     get_formatter("json").render(report, out, color=False)
     jsonschema.validate(json.loads(out.getvalue()), report_schema())
+
+
+CREEP = b"""plant creep "a point value within 2^-1024 of a range end (mutant reproducer)"
+param k0 = 3.0e9
+param E_R = 8000
+state c in 0.02 .. 1.0
+state T in 300 .. 380
+input Tj in 280 .. 390
+rate c = 1 - c - k0*exp(-E_R/T)*c
+rate T = Tj - T
+output y = T
+point run: T = 335, c = 1/(1 + k0*exp(-E_R/1e-300))
+expect relative_degree(y) = 1
+"""
+
+
+def test_a_value_too_close_to_zero_to_decide_is_named_not_crashed_on() -> None:
+    """c = 1/(1 + 3e9 exp(-8e303)) differs from the range end 1 by about 3e9 exp(-8e303):
+    no ball of practical precision separates it from 1, and sympy's ``equals`` overflows
+    mpmath on it ("too many digits in integer"; the crash a random mutant found). The
+    check must complete, name the value it took as zero in an analysis-budget finding,
+    and leave the claims that rest on it not decided, with a pointer that exists."""
+    gap = 1 - 1 / (1 + sp.Integer(3 * 10**9) * sp.exp(-sp.Integer(8000) / sp.Rational(1, 10**300)))
+    assert gap != 0  # sympy keeps the constant exact: it is not zero, only tiny
+    raw = analyse_bytes(CREEP)
+    assert raw.stop is None
+    (budget,) = [f for f in raw.findings if f.rule == "analysis-budget"]
+    assert "taken as zero without proof" in budget.message and "exp(" in budget.message
+    claims = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert claims and all(f.undecided and "see the analysis-budget finding" in f.message for f in claims)

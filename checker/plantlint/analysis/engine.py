@@ -29,12 +29,13 @@ from plantlint.analysis.parametric import (
     ParametricPoint, box_controllability, box_point, box_zero_dynamics, claim_failure, clock,
 )
 from plantlint.analysis.stages import STAGES
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.lie import Kernel
 from plantlint.language.model import ClaimDecl, Model
-from plantlint.language.printer import show_point
+from plantlint.language.printer import show_expr, show_point
 from plantlint.analysis.normal_form import NormalForm, normal_form_at, xi_name
 from plantlint.analysis.structure import (
     Envelope,
@@ -167,9 +168,28 @@ def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
         result.distributions = by_outputs if by_outputs is not None else brackets()
     result.done("distributions", stage)
 
+    result.findings.extend(_unconfirmed_values(kernel))
     result.findings.extend(check_claims(result))
     result.done("claims", stage)
     return result
+
+
+def _unconfirmed_values(kernel: Kernel) -> list[Finding]:
+    """Constants (values at points) taken as zero without proof: every ball up to 1024 bits
+    contains 0 and sympy's bounded ``equals`` gave no answer. No stage reports them on its
+    own, and the claims they touch are not decided, so they are named here."""
+    values = [e for e in kernel.uncertain if not e.free_symbols]
+    if not values:
+        return []
+    k = len(values)
+    return [finding(
+        "analysis-budget",
+        f"{'a value' if k == 1 else f'{k} values'} at the operating points {'was' if k == 1 else 'were'} taken as "
+        f"zero without proof: {show_expr(values[0], limit=100)}{' (and others)' if k > 1 else ''} lies within "
+        "2^-1024 of zero, but the symbolic test did not decide it within its bound; claims that rest on it are "
+        "not decided",
+        anchor=anchors.PLANT, hint="write the point's values as exact numbers, or check the constants in them",
+    )]
 
 
 def _full_normal_form(kernel: Kernel, degrees: list[int]) -> NormalForm:
@@ -321,19 +341,32 @@ def _unproven_zeros(a: Analysis) -> Undecided:
     structure rests on expressions taken as zero without proof (every numeric test says
     zero, the symbolic proof did not finish within its bound)."""
     return Undecided(f"it holds only if {_taken_as_zero(a)}, and the symbolic proof did not finish within its "
-                     "bound (see the analysis-budget finding)")
+                     f"bound{_see_budget(a, ' (', ')')}")
 
 
 def _resting(message: str, a: Analysis) -> Undecided:
     """A claim's failure found on a structure that rests on unproven zeros: not decided."""
-    return Undecided(f"{message}, if {_taken_as_zero(a)} (the symbolic proof did not finish within its bound; "
-                     "see the analysis-budget finding)")
+    return Undecided(f"{message}, if {_taken_as_zero(a)} (the symbolic proof did not finish within its bound"
+                     f"{_see_budget(a, '; ', '')})")
+
+
+def _see_budget(a: Analysis, before: str, after: str) -> str:
+    """A pointer to the analysis-budget finding that names the unproven zeros, when there is one."""
+    return f"{before}see the analysis-budget finding{after}" if any(
+        f.rule == "analysis-budget" for f in a.findings) else ""
 
 
 def _taken_as_zero(a: Analysis) -> str:
-    k = len(a.kernel.uncertain)
-    which = "an expression that is" if k == 1 else f"{k} expressions that are"
-    return f"{which} zero at every sampled point {'is' if k == 1 else 'are'} zero identically"
+    functions = sum(1 for e in a.kernel.uncertain if e.free_symbols)
+    values = len(a.kernel.uncertain) - functions
+    parts = []
+    if functions:
+        which = "an expression that is" if functions == 1 else f"{functions} expressions that are"
+        parts.append(f"{which} zero at every sampled point {'is' if functions == 1 else 'are'} zero identically")
+    if values:
+        which = "a value at a point that lies" if values == 1 else f"{values} values at points that lie"
+        parts.append(f"{which} within 2^-1024 of zero {'is' if values == 1 else 'are'} exactly zero")
+    return " and ".join(parts)
 
 
 def claim_text(c: ClaimDecl) -> str:

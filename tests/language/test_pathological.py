@@ -176,3 +176,33 @@ def test_command_line_on_every_case(tmp_path: Path) -> None:
         if line is not None:
             assert first["line"] == line, (name, first)
     assert by_name["crlf"]["findings"] == by_name["lf"]["findings"]
+
+
+ZERO_MASS = """plant cart "a mass of zero (mutant reproducer)"
+const mass = {mass}
+state p in -1 .. 1
+state v in -1 .. 1
+input F in -1 .. 1
+let spare = 1/(mass - {mass})
+rate p = v
+rate v = F/mass
+output y = p
+point rest: p = 0, v = 0
+expect relative_degree(y) = 2
+"""
+
+
+def test_a_rate_that_divides_by_zero_everywhere_stops_the_analysis() -> None:
+    """With mass = 0 the rate F/mass is defined nowhere: the file states no plant, so it
+    is reported at the rate (with what to check) and nothing is analysed; analysing the
+    model left after striking the division out would report on another plant (and, on a
+    12-state quadrotor, ran past its budget). A definition that divides by zero but that
+    no rate uses is reported and does not stop the analysis."""
+    raw = analyse_bytes(ZERO_MASS.format(mass=0).encode())
+    singular = [f for f in raw.findings if f.rule == "singular-model"]
+    assert [f.span.line for f in singular] == [6, 8]  # the unused definition and the rate
+    assert all(f.hint and "check their values" in f.hint for f in singular)
+    assert raw.analysis is None and "expectation-failed" not in [f.rule for f in raw.findings]
+    fine = analyse_bytes(ZERO_MASS.format(mass=2).encode())
+    assert [f.span.line for f in fine.findings if f.rule == "singular-model"] == [6]
+    assert fine.analysis is not None and fine.analysis["relative_degree"] == {"y": 2}

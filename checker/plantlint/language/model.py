@@ -91,6 +91,9 @@ class Model:
     ranged_params: tuple[str, ...] = ()
     input_affine: bool = True
     smooth: bool = True
+    #: False when a rate or an output divides by zero for every state: the file states no
+    #: plant at all, so nothing is analysed (any result would be of another model)
+    defined: bool = True
 
     def symbol(self, name: str) -> sp.Symbol:
         return symbol(name)
@@ -143,6 +146,7 @@ class _Scope:
     lets: dict[sp.Symbol, sp.Expr] = field(default_factory=dict)
     quantities: dict[str, Quantity] = field(default_factory=dict)
     spans: dict[str, Span] = field(default_factory=dict)  # anchor -> span
+    divides_by_zero: list[str] = field(default_factory=list)  # anchors of expressions that divide by 0
 
     def add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None,
             point: str | None = None) -> None:
@@ -226,6 +230,8 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
         ranged_params=tuple(ranged),
         input_affine=input_affine,
         smooth=smooth,
+        defined=not any(w in scope.divides_by_zero for w in [*(anchors.rate(s) for s in rates),
+                                                              *(anchors.output(o) for o in outputs)]),
     )
     return model, scope.findings
 
@@ -549,7 +555,10 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
         # already reported as unknown names; the model will not be analysed
         return value.xreplace({s: sp.Integer(1) for s in stray})
     if value.has(sp.zoo, sp.nan):
-        scope.add("singular-model", f"{where} divides by zero for every state", expr.span, anchors.about(where, "division", "by", "zero"))
+        scope.add("singular-model", f"{where} divides by zero for every state", expr.span,
+                  anchors.about(where, "division", "by", "zero"),
+                  hint="a denominator is zero once the constants and parameters are put in: check their values")
+        scope.divides_by_zero.append(where)
         value = value.xreplace({sp.zoo: sp.Integer(0), sp.nan: sp.Integer(0)})
     return value
 

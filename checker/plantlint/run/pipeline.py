@@ -115,7 +115,7 @@ def analyse_bytes(data: bytes, settings: AnalysisSettings | Config = AnalysisSet
         return result
     result.plant = model.name
     result.waivers = list(model.waivers)
-    if any(f.rule in BLOCKING for f in findings):
+    if any(f.rule in BLOCKING for f in findings) or not model.defined:
         result.findings = [locate(f, model.spans) for f in result.findings]
         return result
     from plantlint.analysis.engine import Analysis, claims_so_far, run_analysis

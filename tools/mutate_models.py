@@ -129,6 +129,9 @@ def main() -> int:
             print(f"INTERNAL ERROR  {f['path']}: {stop.get('detail')}")
         elif stop:
             print(f"stopped ({stop.get('kind')}, stage {stop.get('stage')})  {f['path']}")
+        elif f["outcome"] == "not-decided":  # why, in one line: worth a look like a budget stop
+            why = next((g["message"] for g in f["findings"] if not g.get("decided", True)), "")
+            print(f"not decided  {f['path']}: {why[:200]}")
         for finding in f["findings"]:
             if SUSPICIOUS.search(finding["message"]):
                 bad += 1

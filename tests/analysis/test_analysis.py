@@ -116,3 +116,16 @@ def test_output_claims_on_a_plant_without_outputs_say_why() -> None:
     raw = analyse_bytes(text, Config())
     failed = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert len(failed) == 2 and all("declares no output" in f.message for f in failed)
+
+
+def test_regular_claim_without_a_box_says_the_envelope_is_not_one() -> None:
+    """A state without a range leaves no box to certify on: the claim is not decided, and
+    it must say why (no budget was involved), pointing at the envelope-unproven finding."""
+    text = (b"plant b\nstate x in -1 .. 1\nstate v\ninput u in -1 .. 1\nrate x = v\nrate v = -x + u\n"
+            b"output y = x\nexpect regular\n")
+    raw = analyse_bytes(text, Config())
+    (unproven,) = [f for f in raw.findings if f.rule == "envelope-unproven"]
+    assert "state v has no range" in unproven.message
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert claim.undecided and "not a box: state v has no range" in claim.message
+    assert "budget" not in claim.message

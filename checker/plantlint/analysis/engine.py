@@ -404,7 +404,10 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
     out: list[tuple[str | None, str]] = []
     if c.point is None:
         env = a.envelope
-        if env is None or env.regular is None:
+        if env is not None and env.regular is None and env.undecidable:
+            out.append((None, Undecided(f"regularity over the envelope cannot be certified: {env.undecidable} "
+                                        "(see the envelope-unproven finding)")))
+        elif env is None or env.regular is None:
             out.append((None, Undecided("regularity over the envelope could not be proven within its budget "
                                         "(see the envelope-unproven finding)")))
         elif env.regular is False:

@@ -98,6 +98,8 @@ class Envelope:
     boxes_examined: int = 0
     seconds: float = 0.0
     certified: str = ""  # what was certified, in words
+    #: why regularity could not be decided when no budget was involved (no box to certify on)
+    undecidable: str = ""
 
 
 # -- naming and message helpers ------------------------------------------------------------
@@ -490,13 +492,12 @@ def certify_envelope(
     plant = kernel.plant
     missing = [str(s) for s in plant.states if s not in plant.state_box]
     if missing:
+        why = (f"the operating envelope is not a box: state{'s' if len(missing) > 1 else ''} "
+               f"{', '.join(missing)} {'have' if len(missing) > 1 else 'has'} no range")
         return Envelope(None, None, None, (finding(
-            "envelope-unproven",
-            f"the operating envelope is not a box: state{'s' if len(missing) > 1 else ''} "
-            f"{', '.join(missing)} {'have' if len(missing) > 1 else 'has'} no range, so regularity "
-            "over the envelope cannot be certified",
+            "envelope-unproven", f"{why}, so regularity over the envelope cannot be certified",
             anchor=anchors.ENVELOPE, hint="declare `in LO .. HI` for every state",
-        ),))
+        ),), undecidable=why)
     if plant.p == 0:
         return Envelope(None, None, None, ())
     box = {**plant.state_box, **plant.param_box}

@@ -9,6 +9,7 @@ parser's (``plantlint.language.syntax``), common practice for tools that read un
 from __future__ import annotations
 
 import json
+import math
 import subprocess
 import sys
 from pathlib import Path
@@ -206,3 +207,48 @@ def test_a_rate_that_divides_by_zero_everywhere_stops_the_analysis() -> None:
     fine = analyse_bytes(ZERO_MASS.format(mass=2).encode())
     assert [f.span.line for f in fine.findings if f.rule == "singular-model"] == [6]
     assert fine.analysis is not None and fine.analysis["relative_degree"] == {"y": 2}
+
+
+@pytest.mark.parametrize("term, python", [
+    ("acos(c)", lambda c: math.acos(c)),
+    ("asin(c/10)", lambda c: math.asin(c / 10)),
+    ("sqrt(c)", lambda c: math.sqrt(c)),
+    ("log(c)", lambda c: math.log(c)),
+    ("c^(1/3)", lambda c: _real_or_raise(c ** (1 / 3))),
+    ("acos(c/4)", lambda c: math.acos(c / 4)),
+    ("log(-c)", lambda c: math.log(-c)),
+])
+def test_constants_outside_a_functions_domain_are_reported_where_written(term: str, python) -> None:  # type: ignore[no-untyped-def]
+    """With c = -2 (and c/10 = -0.2 inside asin's domain), a term is defined exactly when
+    Python's own math library can evaluate it (a ValueError, or a complex result of **,
+    means it is not a real number: the reference). An undefined term in a definition is
+    reported once, at the definition; the rate that uses it is then defined for no state
+    and the analysis does not run."""
+    text = (f"plant p\nconst c = -2\nstate x in -1 .. 1\ninput u in -1 .. 1\nlet k = {term}\n"
+            "rate x = -k*x + u\noutput y = x\nexpect relative_degree(y) = 1\n")
+    try:
+        python(-2)
+        defined = True
+    except ValueError:
+        defined = False
+    raw = analyse_bytes(text.encode())
+    singular = [f for f in raw.findings if f.rule == "singular-model"]
+    if defined:
+        assert not singular and raw.analysis is not None
+    else:
+        assert [f.span.line for f in singular] == [5] and "is not a real number" in singular[0].message
+        assert raw.analysis is None
+
+
+def _real_or_raise(value: complex | float) -> float:
+    if isinstance(value, complex):
+        raise ValueError("not real")
+    return value
+
+
+def test_point_values_and_range_bounds_outside_the_reals_are_named() -> None:
+    text = (b"plant p\nconst c = -2\nstate x in -1 .. 1\ninput u in -1 .. 1\nrate x = -x + u\noutput y = x\n"
+            b"point a: x = acos(c)/10\nparam k = 1 in sqrt(c) .. 2\n")
+    found = {(f.rule, f.span.line): f.message for f in analyse_bytes(text).findings}
+    assert "not a real number (acos(-2))" in found[("singular-model", 7)]
+    assert "range bound of 'k' is not a real number" in found[("bad-range", 8)]

@@ -146,7 +146,7 @@ class _Scope:
     lets: dict[sp.Symbol, sp.Expr] = field(default_factory=dict)
     quantities: dict[str, Quantity] = field(default_factory=dict)
     spans: dict[str, Span] = field(default_factory=dict)  # anchor -> span
-    divides_by_zero: list[str] = field(default_factory=list)  # anchors of expressions that divide by 0
+    undefined: list[str] = field(default_factory=list)  # anchors of expressions defined for no state
 
     def add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None,
             point: str | None = None) -> None:
@@ -230,7 +230,7 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
         ranged_params=tuple(ranged),
         input_affine=input_affine,
         smooth=smooth,
-        defined=not any(w in scope.divides_by_zero for w in [*(anchors.rate(s) for s in rates),
+        defined=not any(w in scope.undefined for w in [*(anchors.rate(s) for s in rates),
                                                               *(anchors.output(o) for o in outputs)]),
     )
     return model, scope.findings
@@ -458,6 +458,10 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
         scope.add("bad-range" if value.free_symbols else "singular-model", f"value of '{st.name}' is not a finite number",
                   expr.span, anchors.declaration(st.kind, st.name, "value"))
         return None
+    if (complex_part := _not_real(value)) is not None:
+        scope.add("singular-model", f"value of '{st.name}' is not a real number ({_show(complex_part)})",
+                  expr.span, anchors.declaration(st.kind, st.name, "value"), hint=_DOMAIN_HINT)
+        return None
     return value
 
 
@@ -525,6 +529,10 @@ def _range_value(scope: _Scope, st: Statement, expr: Expression) -> sp.Expr | No
     if value.free_symbols or not value.is_finite:
         scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, anchors.range_of(st.name, "bound"))
         return None
+    if (complex_part := _not_real(value)) is not None:
+        scope.add("bad-range", f"range bound of '{st.name}' is not a real number ({_show(complex_part)})", expr.span,
+                  anchors.range_of(st.name, "bound"), hint=_DOMAIN_HINT)
+        return None
     return value
 
 
@@ -554,13 +562,41 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
     if stray:
         # already reported as unknown names; the model will not be analysed
         return value.xreplace({s: sp.Integer(1) for s in stray})
+    # a definition defined for no state makes everything that uses it so: reported once, where
+    # it is written, and marked everywhere (the analysis needs every rate and output defined)
+    inherited = any(anchors.let(ref.name) in scope.undefined for ref in expr.names)
     if value.has(sp.zoo, sp.nan):
         scope.add("singular-model", f"{where} divides by zero for every state", expr.span,
                   anchors.about(where, "division", "by", "zero"),
                   hint="a denominator is zero once the constants and parameters are put in: check their values")
-        scope.divides_by_zero.append(where)
+        scope.undefined.append(where)
         value = value.xreplace({sp.zoo: sp.Integer(0), sp.nan: sp.Integer(0)})
+    elif (complex_part := _not_real(value)) is not None and not inherited:
+        scope.add("singular-model", f"{where} is undefined for every state: {_show(complex_part)} is not a real number",
+                  expr.span, anchors.about(where, "not", "real"),
+                  hint=_DOMAIN_HINT)
+        scope.undefined.append(where)
+    if inherited:
+        scope.undefined.append(where)
     return value
+
+
+#: What to check when a constant expression leaves the real numbers.
+_DOMAIN_HINT = ("a function's argument is outside its domain once the constants and parameters are put in "
+                "(asin and acos need -1 .. 1, sqrt, log and fractional powers a positive number): check their values")
+
+
+def _not_real(e: sp.Expr) -> sp.Expr | None:
+    """A constant part of ``e`` that is not a real number, or None: the innermost function
+    value or power that leaves the reals (acos(7), (-8)^(1/3); sums and products of reals
+    are real, so only they are asked), or the largest constant part that holds I (log(-2),
+    which sympy writes log(2) + I*pi)."""
+    if e.has(sp.I):  # sympy wrote it out already (sqrt(-2) = sqrt(2)*I): the constant part that holds I
+        return next(n for n in sp.preorder_traversal(e) if not n.free_symbols and n.has(sp.I))
+    for node in sp.postorder_traversal(e):
+        if (node.is_Function or node.is_Pow) and not node.free_symbols and node.is_extended_real is False:
+            return node
+    return None
 
 
 def _check_smooth(scope: _Scope, statements: list[Statement]) -> bool:
@@ -742,6 +778,10 @@ def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp
     if value.has(sp.zoo, sp.nan) or value.free_symbols:
         scope.add("singular-model", f"point '{point}' value of '{target}' is not a finite number", expr.span,
                   anchors.point(point, "value", target), point=point)
+        return None
+    if (complex_part := _not_real(value)) is not None:
+        scope.add("singular-model", f"point '{point}' value of '{target}' is not a real number ({_show(complex_part)})",
+                  expr.span, anchors.point(point, "value", target), point=point, hint=_DOMAIN_HINT)
         return None
     return value
 

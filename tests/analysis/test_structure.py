@@ -548,3 +548,36 @@ def test_ball_and_beam_singular_envelope_names_the_vanishing_factor() -> None:
     factor = singular.message.split("its factor ")[1].split(" is zero there")[0]
     assert sp.Symbol(factor) in (r, w_)  # a factor of the term, as sympy factors it
     assert singular.span is not None and singular.span.line == 4 + (factor == "w") * 3  # its range
+
+
+ARM_TIP = b"""plant arm_tip "planar arm, tip position (invented numbers)"
+param l1 = 0.5
+param l2 = 0.4
+state q1 in -1 .. 1
+state q2 in -2 .. 2
+state w1 in -2 .. 2
+state w2 in -2 .. 2
+input a1 in -10 .. 10
+input a2 in -10 .. 10
+rate q1 = w1
+rate q2 = w2
+rate w1 = a1
+rate w2 = a2
+output px = l1*cos(q1) + l2*cos(q1 + q2)
+output py = l1*sin(q1) + l2*sin(q1 + q2)
+"""
+
+
+def test_arm_singularity_points_at_the_elbow_range() -> None:
+    """The tip Jacobian of a planar two-link arm has det J = l1 l2 sin q2 (Spong, Hutchinson
+    & Vidyasagar, Robot Modeling and Control, the planar elbow manipulator; from memory):
+    singular with the arm stretched, q2 = 0, whatever q1. With joint accelerations as inputs
+    the decoupling matrix is J, so envelope-singular must point at the range of q2, though
+    the determinant as formed still names q1 (sympy's trigsimp shows d det / d q1 = 0)."""
+    q1, q2 = sp.symbols("q1 q2")
+    l1, l2 = sp.Rational(1, 2), sp.Rational(2, 5)
+    J = sp.Matrix([l1 * sp.cos(q1) + l2 * sp.cos(q1 + q2), l1 * sp.sin(q1) + l2 * sp.sin(q1 + q2)]).jacobian([q1, q2])
+    assert sp.trigsimp(J.det()) == l1 * l2 * sp.sin(q2)
+    (singular,) = [f for f in analyse_bytes(ARM_TIP).findings if f.rule == "envelope-singular"]
+    assert "q2 = 0" in singular.message
+    assert singular.span is not None and singular.span.line == 5  # state q2, not q1 on line 4

@@ -533,7 +533,7 @@ def certify_envelope(
             f"at {show_point(verdict.witness)}"
             + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)")
             + _factor_phrase(culprit, exprs),
-            _range_to_narrow(culprit, box, spans),
+            _range_to_narrow(kernel, culprit, box, spans),
             anchor=anchors.ENVELOPE, hint="narrow the envelope, move it off the singular set, or choose other outputs",
         ))
         return Envelope(False, None, verdict.witness, tuple(findings), clock.boxes, clock.seconds, certified)
@@ -605,17 +605,38 @@ def _factor_phrase(culprit: list[sp.Expr], exprs: list[sp.Expr]) -> str:
     return f": its factor {text} is zero there" if len(text) <= FACTOR_TEXT else ""
 
 
-def _range_to_narrow(culprit: list[sp.Expr], box: dict[sp.Symbol, Any],
+def _range_to_narrow(kernel: Kernel, culprit: list[sp.Expr], box: dict[sp.Symbol, Any],
                      spans: Mapping[str, Span] | None) -> Span | None:
     """The span of the range of the first quantity of the box (states, then ranged
-    parameters, in declaration order) that ``culprit`` depends on; None without spans."""
+    parameters, in declaration order) that ``culprit`` depends on; None without spans.
+
+    A quantity the expression names but does not depend on (q1 in l1 l2 (sin(q1 + q2)
+    cos q1 - cos(q1 + q2) sin q1) = l1 l2 sin q2, a trigonometric identity) is passed
+    over when its partial derivative is exactly 0 in balls at the kernel's samples. That
+    only chooses where the finding points, never a verdict; with no other candidate the
+    first named quantity is kept."""
     if spans is None:
         return None
     used = set().union(*(e.free_symbols for e in culprit)) if culprit else set()
-    for s in box:
-        if s in used and anchors.range_of(str(s)) in spans:
+    named = [s for s in box if s in used and anchors.range_of(str(s)) in spans]
+    for s in named:
+        if len(named) == 1 or not _flat_along(kernel, culprit, s):
             return spans[anchors.range_of(str(s))]
-    return None
+    return spans[anchors.range_of(str(named[0]))] if named else None
+
+
+def _flat_along(kernel: Kernel, exprs: list[sp.Expr], s: sp.Symbol) -> bool:
+    """Is every d e / d s exactly zero (balls of radius 0 around 0) at the first samples?"""
+    symbols = kernel.free_symbols()
+    try:
+        program = Program([sp.diff(e, s) for e in exprs], symbols)
+        for sample in kernel.samples()[:3]:
+            if not all(b.is_exact() and b == 0 or b.rad() < 2.0 ** -100 and abs(b.mid()) < 2.0 ** -100
+                       for b in program.at(sample, 256)):
+                return False
+    except (UnsupportedExpression, ArithmeticError, ValueError, TypeError):
+        return False
+    return True
 
 
 def product_factors(expr: sp.Expr) -> list[tuple[sp.Expr, int]]:

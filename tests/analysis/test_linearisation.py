@@ -484,3 +484,26 @@ point pushed: p = 0, v = 1/3, h = 1/4
     # by hand: d/dth (-sin th) = -cos 0 = -1, d/dw sqrt(w) = 1/(2 sqrt 1) = 1/2
     assert A == sp.Matrix([[0, 1], [-1, sp.Rational(1, 2)]]) and B == sp.Matrix([[0], [1]])
     assert C == sp.Matrix([[1, 0]])
+
+
+def test_rational_a_keeps_exact_poles_when_c_is_irrational() -> None:
+    """A planar arm driven by joint accelerations is two double integrators: A is rational
+    (0s and 1s), and only C holds cos(1), sin(1). The poles are then exactly 0 (four times)
+    with det(sI - A) = s^4 (sympy's charpoly of the same A, built here), not tiny numbers
+    from a ball eigenvalue solver; numpy's eigvals of A agree to rounding."""
+    text = (b"plant arm\nparam l1 = 0.5\nparam l2 = 0.4\nstate q1 in -1 .. 1\nstate q2 in -2 .. 2\n"
+            b"state w1 in -2 .. 2\nstate w2 in -2 .. 2\ninput a1\ninput a2\nrate q1 = w1\nrate q2 = w2\n"
+            b"rate w1 = a1\nrate w2 = a2\noutput px = l1*cos(q1) + l2*cos(q1 + q2)\n"
+            b"output py = l1*sin(q1) + l2*sin(q1 + q2)\npoint bent: q1 = 0, q2 = 1, w1 = 0, w2 = 0\n")
+    model, _ = read_model(text)
+    plant = model.plant()
+    kernel = Kernel(plant)
+    eq = solve_point(plant, "bent", {s: v for s, v in zip(plant.states, [0, 1, 0, 0])}, kernel)
+    lin = linearise_at(kernel, eq, None)
+    assert not lin.exact  # C is irrational: the numeric route
+    A = sp.Matrix(lin.A)
+    s = sp.Symbol("s")
+    assert sp.Poly(A.charpoly(s).as_expr(), s) == sp.Poly(s**4, s)
+    assert lin.characteristic_polynomial == "s^4"
+    assert list(lin.poles) == [0j] * 4
+    assert np.allclose(np.linalg.eigvals(np.array(A.tolist(), dtype=float)), 0)

@@ -473,7 +473,14 @@ def _numeric(name: str, A: sp.Matrix, B: sp.Matrix, C: sp.Matrix, states: Sequen
         reason = (f"the {' and '.join(undecided)} rank{'s are' if len(undecided) > 1 else ' is'} a proven lower bound: "
                   f"the rest of the elimination vanishes to about {int(BALL_BITS[-1] * 0.30103)} digits but is not "
                   "proven zero")
+    chi = None
+    if all(e.is_Rational for e in A):
+        # A alone is rational (the irrational entries are in B or C): its poles are exact, so a
+        # double integrator reads 0 (4 times), not +-1e-51 from a ball eigenvalue solver
+        chi = _q(A).charpoly()
+        poles = list(_roots(chi))
     return Linearisation(name, "computed", reason=reason, exact=False,
+                         characteristic_polynomial=polynomial_text(chi) if chi is not None else None,
                          poles=tuple(sorted(poles, key=lambda z: (z.real, z.imag))),
                          controllability_rank=ctrl[0] if ctrl else None,
                          uncontrollable=_ball_groups(ctrl, states),

@@ -174,3 +174,13 @@ def test_a_derivation_too_long_to_write_out_is_left_out_with_a_note(tmp_path: Pa
     # long spans are written as by hand
     assert data["distributions"]["spans"][7] == "D_7 = span{g, ad_f g, ..., ad_f^7 g}"
     assert data["distributions"]["spans"][2] == "D_2 = span{g, ad_f g, ad_f^2 g}"
+
+
+def test_singular_envelope_line_reads_as_a_sentence() -> None:
+    """The lid press's crank term vanishes at the bottom dead centre (th = 0); explain says
+    what vanishes where in one sentence, and counts its boxes in good English."""
+    out = io.StringIO()
+    explain_file(REPO / "example_repo" / "models" / "forming" / "lid_press.plant", None, "text", out, color=False)
+    (line,) = [ln for ln in out.getvalue().splitlines() if ln.strip().startswith("singular")]
+    assert line.strip().startswith("singular: L_g L_f ram vanishes at th = 0")
+    assert "1 boxes" not in line

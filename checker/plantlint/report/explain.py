@@ -147,14 +147,15 @@ def _render_envelope(console: Any, env: dict[str, Any]) -> None:
     if env["box"]:
         console.print("  box " + ", ".join(f"{k} in [{lo}, {hi}]" for k, (lo, hi) in env["box"].items()))
     verdict = {True: "proven regular", False: "singular", None: "not proven"}[env.get("regular")]
-    what = f" ({env['certified']})" if env.get("certified") else ""
-    line = f"  {verdict}{what}"
+    what = env.get("certified") or ""
+    if env.get("witness"):  # "singular: det A (the decoupling matrix) vanishes at ..."
+        line = f"  {verdict}: {what + ' vanishes' if what else 'vanishes'} at {show_point(env['witness'])}"
+    else:
+        line = f"  {verdict}" + (f" ({what})" if what else "")
     if env.get("margin") is not None:
         line += f"; certified margin {env['margin']:.4g}"
-    if env.get("witness"):
-        line += "; vanishes at " + show_point(env["witness"])
     if env.get("boxes"):
-        line += f"  [{env['boxes']} boxes, {env['seconds']} s]"
+        line += f"  [{env['boxes']} box{'es' if env['boxes'] != 1 else ''}, {env['seconds']} s]"
     console.print(line)
 
 

@@ -546,3 +546,9 @@ def test_text_wrapping_keeps_assignments_whole_and_loses_no_word() -> None:
         assert all(len(line) <= width for line in lines), width
         assert " ".join(lines).split() == message.split(), width
         assert not any(line.endswith(("th", "=")) or line.startswith("=") for line in lines), (width, lines)
+
+    bracket = "the bracket [g1, ad_f g2] leaves it (basis {g1, ad_f g1, ad_f^2 g3}), and L_g L_f^2 y vanishes"
+    for width in range(20, 100):
+        lines = _wrap_lines(bracket, width)
+        assert " ".join(lines).split() == bracket.split(), width
+        assert not any(line.endswith(("ad_f", "ad_f^2", "L_g", "L_f^2")) for line in lines), (width, lines)

@@ -11,6 +11,7 @@ can never inject markup or terminal escape sequences.
 from __future__ import annotations
 
 import os
+import re
 from dataclasses import dataclass
 from typing import TextIO
 
@@ -139,12 +140,17 @@ def _indented(console: Console, text: Text) -> None:
 _GLUE = "\u00a0"
 
 
+#: A Lie derivative or bracket operator and its operand stay on one line ("ad_f g3", "L_g L_f^2 y").
+_OPERATOR = re.compile(r"\b(ad_f(?:\^\d+)?|L_g(?:\[\w+\])?|L_f(?:\^\d+)?) ")
+
+
 def _wrap_lines(text: str, width: int) -> list[str]:
     """``text`` cut into lines of at most ``width`` characters at spaces, never inside an
-    assignment ``name = value`` (a witness point reads badly as "th" / "= 0")."""
+    assignment ``name = value`` (a witness point reads badly as "th" / "= 0") nor between a
+    Lie operator and its operand ("ad_f" / "g3")."""
     import textwrap
 
-    glued = text.replace(" = ", f"{_GLUE}={_GLUE}")
+    glued = _OPERATOR.sub(lambda m: m.group(1) + _GLUE, text.replace(" = ", f"{_GLUE}={_GLUE}"))
     lines = textwrap.wrap(glued, width, break_on_hyphens=False) or [""]
     return [line.replace(_GLUE, " ") for line in lines]
 

@@ -142,6 +142,10 @@ def build_parser() -> argparse.ArgumentParser:
     explain.add_argument("--skip", metavar="IDS", help="comma-separated rule ids to leave out of the findings")
     explain.add_argument("--format", choices=("text", "json"), default="text")
     explain.add_argument("--color", choices=("auto", "always", "never"), default="auto")
+    explain.add_argument("--timeout", type=float, metavar="SECONDS",
+                         help="time budget of the model, as for check (default: by profile, 20 s interactive, "
+                         "120 s CI)")
+    explain.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
     return top
 
 
@@ -388,12 +392,14 @@ def _explain(args: argparse.Namespace) -> int:
     except ConfigError as exc:
         return _fail(str(exc))
     color = args.format == "text" and _use_color(args.color, sys.stdout)
-    return explain_file(path, args.point, args.format, sys.stdout, color, only=only, skip=skip, errors=sys.stderr)
+    return explain_file(path, args.point, args.format, sys.stdout, color, only=only, skip=skip, errors=sys.stderr,
+                        timeout=args.timeout, config_file=Path(args.config) if args.config else None)
 
 
 def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color: bool, *,
                  only: frozenset[str] | None = None, skip: frozenset[str] | None = None,
-                 errors: TextIO | None = None) -> int:
+                 errors: TextIO | None = None, timeout: float | None = None,
+                 config_file: Path | None = None) -> int:
     """Explain one model to ``stream`` through the pipeline of ``check``: a worker under the
     per-model budget, the policy with waivers and the selection (``only``/``skip`` replace
     the configuration's, as on ``check``); uncached, so explain writes nothing. Usage errors go to ``errors`` (standard
@@ -409,7 +415,8 @@ def explain_file(path: Path, point: str | None, fmt: str, stream: TextIO, color:
 
     errors = errors if errors is not None else sys.stderr
     try:
-        config = load_config(path.parent)
+        config = load_config(path.parent, config_file, frozenset(load_catalogue().ids()))
+        config = replace(config, **_timeout_change(timeout))
     except ConfigError as exc:
         print(f"plantlint: error: {exc}", file=errors)
         return EXIT_USAGE

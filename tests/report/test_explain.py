@@ -184,3 +184,22 @@ def test_singular_envelope_line_reads_as_a_sentence() -> None:
     (line,) = [ln for ln in out.getvalue().splitlines() if ln.strip().startswith("singular")]
     assert line.strip().startswith("singular: L_g L_f ram vanishes at th = 0")
     assert "1 boxes" not in line
+
+
+def test_explain_takes_the_budget_and_configuration_as_check_does(tmp_path: Path) -> None:
+    """--timeout and --config mean on explain what they mean on check: a 16-state chain
+    with a 0.2 s budget is cut short (exit 1, said); a budget that is not a positive number
+    and a configuration file that does not exist are usage errors (exit 2)."""
+    chain = REPO / "benchmarks" / "results" / "models" / "dense_chain_16.plant"
+    out, err = io.StringIO(), io.StringIO()
+    assert explain_file(chain, None, "text", out, color=False, errors=err, timeout=0.2) == 1
+    assert "0.2 s budget" in out.getvalue() and "cut short" in out.getvalue()
+    assert explain_file(SAMPLE, None, "text", io.StringIO(), color=False, errors=err, timeout=-1) == 2
+    assert "--timeout must be a positive" in err.getvalue()
+    config = tmp_path / "plantlint.toml"
+    config.write_text("timeout = 0.2\n", encoding="utf-8")
+    out = io.StringIO()
+    assert explain_file(chain, None, "text", out, color=False, errors=err, config_file=config) == 1
+    assert "0.2 s budget" in out.getvalue()
+    assert explain_file(SAMPLE, None, "text", io.StringIO(), color=False, errors=err,
+                        config_file=tmp_path / "missing.toml") == 2

@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import Callable
 
 import pytest
+import sympy as sp
 
 from plantlint.run.config import Config
 from plantlint.core.findings import Finding
@@ -252,3 +253,22 @@ def test_point_values_and_range_bounds_outside_the_reals_are_named() -> None:
     found = {(f.rule, f.span.line): f.message for f in analyse_bytes(text).findings}
     assert "not a real number (acos(-2))" in found[("singular-model", 7)]
     assert "range bound of 'k' is not a real number" in found[("bad-range", 8)]
+
+
+def test_shared_definitions_are_read_once_per_distinct_part() -> None:
+    """Definitions that use the previous one twice (a_k = a_(k-1)^2 + a_(k-1)) double as
+    trees at each level but stay one node per level as expressions (sympy shares them).
+    The model layer's own walks (input degree, non-real constants) visit distinct nodes,
+    so 60 levels are read in linear time; the degree bound is held against sympy's
+    ``Poly`` degree on a small case."""
+    from plantlint.language.model import _distinct_nodes, _input_degree, _not_real
+
+    x, u = sp.symbols("x u")
+    a = sp.sin(x) + 2 + u
+    for _ in range(60):
+        a = a * a + a
+    assert len(_distinct_nodes(a)) <= 3 * 60 + 10
+    assert _input_degree(a, frozenset({u})) == 2**60  # the bound multiplies, and it is exact here
+    assert _not_real(a) is None
+    small = (x + u) ** 2 * u + x
+    assert _input_degree(small, frozenset({u})) == sp.Poly(small.expand(), u).degree() == 3

@@ -586,15 +586,41 @@ _DOMAIN_HINT = ("a function's argument is outside its domain once the constants 
                 "(asin and acos need -1 .. 1, sqrt, log and fractional powers a positive number): check their values")
 
 
+def _distinct_nodes(e: sp.Basic) -> list[sp.Basic]:
+    """Every distinct sub-expression of ``e`` once, children before parents. Definitions that
+    use each other twice share sub-expressions, and a walk of the tree would take time
+    exponential in their nesting; this walk is linear in the distinct nodes (and iterative,
+    so a deep nesting cannot exhaust the stack)."""
+    seen: set[sp.Basic] = set()
+    order: list[sp.Basic] = []
+    stack: list[tuple[sp.Basic, bool]] = [(e, False)]
+    while stack:
+        node, expanded = stack.pop()
+        if expanded:
+            order.append(node)
+        elif node not in seen:
+            seen.add(node)
+            stack.append((node, True))
+            stack.extend((a, False) for a in node.args if a not in seen)
+    return order
+
+
 def _not_real(e: sp.Expr) -> sp.Expr | None:
-    """A constant part of ``e`` that is not a real number, or None: the innermost function
-    value or power that leaves the reals (acos(7), (-8)^(1/3); sums and products of reals
-    are real, so only they are asked), or the largest constant part that holds I (log(-2),
-    which sympy writes log(2) + I*pi)."""
-    if e.has(sp.I):  # sympy wrote it out already (sqrt(-2) = sqrt(2)*I): the constant part that holds I
-        return next(n for n in sp.preorder_traversal(e) if not n.free_symbols and n.has(sp.I))
-    for node in sp.postorder_traversal(e):
-        if (node.is_Function or node.is_Pow) and not node.free_symbols and node.is_extended_real is False:
+    """A constant part of ``e`` that is not a real number, or None: the largest constant
+    part that holds I (sympy writes log(-2) as log(2) + I*pi and sqrt(-2) as sqrt(2)*I), or
+    else the innermost function value or power that leaves the reals (acos(7), (-8)^(1/3);
+    sums and products of reals are real, so only they are asked)."""
+    order = _distinct_nodes(e)
+    constant: dict[sp.Basic, bool] = {}
+    holds_i: dict[sp.Basic, bool] = {}
+    for node in order:
+        constant[node] = not node.is_Symbol and all(constant[a] for a in node.args)
+        holds_i[node] = node is sp.I or any(holds_i[a] for a in node.args)
+    if holds_i[e]:
+        # parents come after their children in the order: the last such node is the largest
+        return next(n for n in reversed(order) if constant[n] and holds_i[n])
+    for node in order:
+        if (node.is_Function or node.is_Pow) and constant[node] and node.is_extended_real is False:
             return node
     return None
 
@@ -655,18 +681,23 @@ def _input_degree(e: sp.Expr, inputs: frozenset[sp.Symbol]) -> float:
     input counts 1, a sum the largest of its terms, a product the sum of its factors, a
     power to a whole exponent k >= 0 k times its base; anything else that contains an
     input (a quotient by one, a function of one) is unbounded (inf). A bound <= 1
-    proves the expression affine in the inputs."""
-    if e in inputs:
-        return 1
-    if e.is_Atom:
-        return 0
-    if e.is_Add:
-        return max(_input_degree(a, inputs) for a in e.args)
-    if e.is_Mul:
-        return sum(_input_degree(a, inputs) for a in e.args)
-    if e.is_Pow and e.exp.is_Integer and e.exp >= 0:
-        return int(e.exp) * _input_degree(e.base, inputs)
-    return float("inf") if e.free_symbols & inputs else 0
+    proves the expression affine in the inputs. Each distinct sub-expression is read once."""
+    degree: dict[sp.Basic, float] = {}
+    for node in _distinct_nodes(e):
+        if node in inputs:
+            d: float = 1
+        elif node.is_Atom:
+            d = 0
+        elif node.is_Add:
+            d = max(degree[a] for a in node.args)
+        elif node.is_Mul:
+            d = sum(degree[a] for a in node.args)
+        elif node.is_Pow and node.exp.is_Integer and node.exp >= 0:
+            d = int(node.exp) * degree[node.base]
+        else:
+            d = float("inf") if any(degree[a] for a in node.args) else 0
+        degree[node] = d
+    return degree[e]
 
 
 def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...]) -> list[OperatingPoint]:

@@ -927,20 +927,14 @@ def _kalman_columns(
     """[B, AB, ..., A^(n-1) B] at the point, or None when the point is not an
     equilibrium of the drift (then the identity with the brackets does not hold)."""
     plant = kernel.plant
-    n = plant.n
     first = kernel.first_order_at(values)  # exact numbers at a rational point, no symbolic Jacobian
-    if first is not None:
-        value, grad = first
-        f0: Sequence[sp.Expr] = value[:n]
-    else:
-        f0 = list(matrix_at(kernel, [plant.f], values))
+    f0 = first.f if first is not None else list(matrix_at(kernel, [plant.f], values))
     if any(decide(e).proven_nonzero for e in f0):
         return None
     if first is not None:
-        A = sp.Matrix(grad[:n])
-        columns = [value[n + j * n:n + (j + 1) * n] for j in range(plant.m)]
+        A, columns = sp.Matrix(first.Df), first.g
     else:
-        A = matrix_at(kernel, [list(kernel.jacobian(plant.f).row(i)) for i in range(n)], values)
+        A = matrix_at(kernel, [list(kernel.jacobian(plant.f).row(i)) for i in range(plant.n)], values)
         columns = [list(matrix_at(kernel, [g], values).row(0)) for g in plant.g]
     out: list[list[sp.Expr]] = []
     for _ in range(plant.n):

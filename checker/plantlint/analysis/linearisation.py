@@ -163,12 +163,11 @@ def _rational_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequ
     first = kernel.first_order_at(point)
     if first is None:
         return None
-    value, grad = first
     n, m = plant.n, plant.m
-    A = sp.Matrix(n, n, lambda i, a: grad[i][a] + sum((u0[j] * grad[n + j * n + i][a] for j in range(m)
-                                                        if u0[j] != 0), sp.Integer(0)))
-    B = sp.Matrix(n, m, lambda i, j: value[n + j * n + i])
-    C = sp.Matrix(plant.p, n, lambda i, a: grad[n + m * n + i][a]) if plant.p else sp.zeros(0, n)
+    A = sp.Matrix(n, n, lambda i, a: first.Df[i][a] + sum((u0[j] * first.Dg[j][i][a] for j in range(m)
+                                                            if u0[j] != 0), sp.Integer(0)))
+    B = sp.Matrix(n, m, lambda i, j: first.g[j][i])
+    C = sp.Matrix(first.Dh) if plant.p else sp.zeros(0, n)
     return A, B, C
 
 

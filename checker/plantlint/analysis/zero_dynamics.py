@@ -141,9 +141,8 @@ def _taylor_point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Sy
     first = kernel.first_order_at(point)  # Df(x0), Dg_j(x0) by dual numbers, exactly
     if first is None:
         return None
-    grad = first[1]
-    Df0 = sp.Matrix(grad[:n])
-    DG0 = [sp.Matrix(grad[n + j * n: n + (j + 1) * n]) for j in range(m)]
+    Df0 = sp.Matrix(first.Df)
+    DG0 = [sp.Matrix(d) for d in first.Dg]
     return _PointData(
         f0=sp.Matrix([sympy_rational(v) for v in f0]),
         G0=sp.Matrix([[sympy_rational(G0[j][i]) for j in range(m)] for i in range(n)]),

@@ -68,6 +68,26 @@ class PointValue:
 DEFAULT_ROUTE = "numeric"
 
 
+@dataclass(frozen=True)
+class FirstOrder:
+    """Values and state gradients at one point: f_i, the g_j columns, h_i; ``Df[i]`` is the
+    gradient of f_i, ``Dg[j][i]`` that of g_j's entry i, ``Dh[i]`` that of h_i."""
+
+    f: list[sp.Expr]
+    g: list[list[sp.Expr]]
+    h: list[sp.Expr]
+    Df: list[list[sp.Expr]]
+    Dg: list[list[list[sp.Expr]]]
+    Dh: list[list[sp.Expr]]
+
+    @classmethod
+    def of(cls, n: int, m: int, values: list[sp.Expr], gradients: list[list[sp.Expr]]) -> "FirstOrder":
+        """From the program's outputs in their order: f, then g_1 .. g_m, then h."""
+        cut = n + m * n
+        return cls(values[:n], [values[n + j * n:n + (j + 1) * n] for j in range(m)], values[cut:],
+                   gradients[:n], [gradients[n + j * n:n + (j + 1) * n] for j in range(m)], gradients[cut:])
+
+
 class Kernel:
     """Memoised differential-geometric quantities of one plant."""
 
@@ -121,14 +141,12 @@ class Kernel:
                 self._towers = None
         return self._towers  # type: ignore[return-value]
 
-    def first_order_at(self, point: dict[sp.Symbol, object]
-                       ) -> tuple[list[sp.Rational], list[list[sp.Rational]]] | None:
-        """The values and the state gradients of f_i, the g_j columns and h_i (in that
-        order) at an exact rational point, as sympy Rationals: dual numbers through the
-        straight-line program in exact fmpq (the numbers of the symbolic Jacobians at the
-        point, without forming them); memoised per point. None when a value on the way is
-        not rational, a function is met where it is not smooth, or the program cannot hold
-        the plant."""
+    def first_order_at(self, point: dict[sp.Symbol, object]) -> "FirstOrder | None":
+        """f, the g_j columns and h at an exact rational point and their state gradients, as
+        sympy Rationals: dual numbers through the straight-line program in exact fmpq (the
+        numbers of the symbolic Jacobians at the point, without forming them); memoised per
+        point. None when a value on the way is not rational, a function is met where it is
+        not smooth, or the program cannot hold the plant."""
         from plantlint.kernel.taylor import QField
 
         compiled = self._compiled_at(point)
@@ -139,7 +157,8 @@ class Kernel:
         if key not in self._first_order:
             try:
                 values, gradients = towers.first_order(vector, QField())
-                out = ([sympy_rational(v) for v in values], [[sympy_rational(d) for d in g] for g in gradients])
+                out = FirstOrder.of(self.plant.n, self.plant.m, [sympy_rational(v) for v in values],
+                                    [[sympy_rational(d) for d in g] for g in gradients])
             except (ArithmeticError, TypeError):  # not rational, undefined, a division by zero
                 out = None
             self._first_order[key] = out

@@ -153,13 +153,21 @@ def test_linear_family_zero_crossing_matches_scipy() -> None:
     # reference: the k where scipy's transmission zeros reach the imaginary axis
     k_cross = scipy.optimize.brentq(lambda k: max(_family_zeros(k).real), 0.3, 1.0, xtol=1e-13)
     assert abs(zd["crossing"]["k"] - k_cross) < 1e-8
-    assert zd["boundary"] == "2*k < 1"  # the Hurwitz determinant Delta_2 = 2k - 1
+    # the Hurwitz determinant Delta_2 = 2k - 1 (by hand from the numerator s^3 + 2 s^2 + k s + 1),
+    # written as the threshold on the one parameter; it agrees with scipy's crossing above
+    assert zd["boundary"] == "k < 0.5" and abs(k_cross - 0.5) < 1e-8
     kw = zd["witness"]["k"]
     assert kw < k_cross and max(_family_zeros(kw).real) > 0
     ours = sorted((complex(re, im) for re, im in zd["witness_eigenvalues"]), key=lambda z: (z.real, z.imag))
     ref = sorted(_family_zeros(kw), key=lambda z: (z.real, z.imag))
     assert np.allclose(ours, ref, atol=1e-7)
     assert "zero-dynamics-unstable" in _rules(findings)
+    # on the boundary itself the zeros sit on the imaginary axis (scipy): not minimum phase
+    # either, and the finding says so rather than implying k = 0.5 is fine
+    assert abs(max(_family_zeros(0.5).real)) < 1e-6
+    (found,) = [f for f in findings if f.rule == "zero-dynamics-unstable"]
+    assert "non-minimum phase wherever k < 0.5" in found.message
+    assert "not minimum phase on k = 0.5 either, where it is zero" in found.message
 
 
 @pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
@@ -253,6 +261,55 @@ def test_inputs_left_out_are_solved_per_parameter_value() -> None:
     assert box["solved_inputs"] == {"u": "a"}  # -a*1 + u = 0 by hand
     assert box["zero_dynamics"]["outcome"] == "proven"  # z' = -z, independent of a
     assert not [f for f in findings if f.severity.value == "error"]
+
+
+TWO_ROUTES = """
+# invented: the input enters x2 through (k - 2) and x4 directly; at k = 2 the first route closes
+plant two_routes
+param k = 2.5 in 1 .. 3
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+state x4 in -1 .. 1
+input u in -1 .. 1
+rate x1 = x2
+rate x2 = -x1 + (k - 2)*u + x3
+rate x3 = x4
+rate x4 = -2*x3 - x4 + x1 + u
+output y = x1
+point o: x1 = 0, x2 = 0, x3 = 0, x4 = 0
+expect minimum_phase
+"""
+
+
+def test_inputs_are_solved_from_equations_that_determine_them_over_the_whole_box() -> None:
+    """The x2 equation (k - 2) u = 0 does not determine u at k = 2, but the x4 equation u = 0
+    does, for every k: the origin is an equilibrium over the whole box (a false
+    point-not-equilibrium came from trying only the first equation)."""
+    analysis, findings = _check(TWO_ROUTES)
+    box = analysis["points"]["o"]["parameter_box"]
+    assert box["equilibrium"]["outcome"] == "proven" and box["solved_inputs"] == {"u": "0"}
+    assert not [f for f in findings if f.rule == "point-not-equilibrium"]
+    # reference, sympy done another way: the equilibrium equations at the origin, solved for u
+    # at the parameter value where the first route closes and at the nominal one
+    k, u = sp.symbols("k u")
+    for value in (2, sp.Rational(5, 2)):
+        rates = [sp.Integer(0), (k - 2) * u, sp.Integer(0), u]
+        assert sp.solve([r.subs(k, value) for r in rates], [u], dict=True) == [{u: 0}]
+    # the relative degree is lost at k = 2 (L_g L_f y = k - 2, by hand), which is what the
+    # minimum-phase claim fails on
+    failed = [f for f in findings if f.rule == "expectation-failed"]
+    assert len(failed) == 1 and "vanishes at k = 2" in failed[0].message
+
+
+def test_inputs_undetermined_where_every_equation_loses_them_is_a_violation() -> None:
+    """Only the x2 equation carries u: at k = 2 no equation determines it."""
+    text = TWO_ROUTES.replace("+ x1 + u", "+ x1").replace("expect minimum_phase", "")
+    analysis, findings = _check(text)
+    box = analysis["points"]["o"]["parameter_box"]
+    assert box["equilibrium"]["outcome"] == "violated" and box["equilibrium"]["witness"] == {"k": 2.0}
+    (found,) = [f for f in findings if f.rule == "point-not-equilibrium"]
+    assert "at k = 2 the equilibrium equations do not determine the input(s) u" in found.message
 
 
 CONTROL = """

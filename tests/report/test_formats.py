@@ -503,7 +503,11 @@ def test_every_format_lists_the_active_settings_with_reasons(make: Any, report_v
 def test_no_settings_means_no_settings_section() -> None:
     assert "settings that change" not in _render("text", _report())
     assert json.loads(_render("json", _report()))["adjustments"] == []
-    assert "invocations" not in json.loads(_render("sarif", _report()))["runs"][0]
+    # the invocation is there on every run (a consumer reads executionSuccessful), with no
+    # overrides and no notifications when nothing was changed and everything was decided
+    (invocation,) = json.loads(_render("sarif", _report()))["runs"][0]["invocations"]
+    assert set(invocation) == {"executionSuccessful", "properties"}
+    assert invocation["executionSuccessful"] is True
 
 
 def test_waiver_changes_under_since_are_worded_as_waivers() -> None:

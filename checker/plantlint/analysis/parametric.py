@@ -292,31 +292,50 @@ def _equilibrium(params: ParameterBox, eq: Equilibrium, written: dict[sp.Symbol,
     return BoxVerdict("proven", f"an equilibrium for every parameter value in the box ({how})"), values
 
 
+#: Choices of equations tried for the inputs at a point, each proven over the box or not.
+MAX_ROW_CHOICES = 8
+
+
 def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr], unknown: list[int],
                   values: dict[sp.Symbol, sp.Expr], name: str) -> tuple[list[int], BoxVerdict | None]:
-    """u_U(p) = -G_RU(p)^(-1) c_R(p) on rows R whose minor is non-zero at the nominal values."""
+    """u_U(p) = -G_RU(p)^(-1) c_R(p) on the first rows R whose minor is proven non-zero over the box."""
     plant = params.kernel.plant
     k = len(unknown)
     decide = number_decider(params.kernel)
-    chosen: list[int] | None = None
+    names = ", ".join(str(plant.inputs[j]) for j in unknown)
+    # Rows whose minor is non-zero at the nominal values, in order; the first whose minor is
+    # proven non-zero over the whole box serves. A minor that vanishes somewhere in the box
+    # proves nothing by itself: other rows may still determine the inputs there.
+    minors: list[tuple[list[int], sp.Matrix, sp.Expr]] = []
     for rows in itertools.islice(itertools.combinations(range(plant.n), k), 200):
         minor = sp.Matrix([[G0[i][j] for j in unknown] for i in rows])
-        if decide(laplace_det(minor).xreplace(params.nominal)).proven_nonzero:
-            chosen = list(rows)
+        det = laplace_det(minor)
+        if decide(det.xreplace(params.nominal)).proven_nonzero:
+            minors.append((list(rows), minor, det))
+    if not minors:
+        raise NotCovered("the inputs left out could not be solved as functions of the parameters")
+    chosen: list[int] | None = None
+    for rows, G, det in minors[:MAX_ROW_CHOICES]:
+        v = params.clock.spent(certify_nonzero(params.tidy(det), params.box, params.clock.budget()))
+        if v.regular:
+            chosen = rows
             break
     if chosen is None:
-        raise NotCovered("the inputs left out could not be solved as functions of the parameters")
-    G = sp.Matrix([[G0[i][j] for j in unknown] for i in chosen])
-    det = params.tidy(laplace_det(G))
-    v = params.clock.spent(certify_nonzero(det, params.box, params.clock.budget()))
-    names = ", ".join(str(plant.inputs[j]) for j in unknown)
-    if v.regular is False:
-        w = exact_point(params, v.witness or {})
-        return chosen, BoxVerdict("violated", f"at {show_values(params.named(w))} the equilibrium equations do not "
+        # no single choice of rows serves the whole box: the inputs are undetermined only
+        # where every k x k minor of the input columns vanishes at once
+        every = [params.tidy(laplace_det(sp.Matrix([[G0[i][j] for j in unknown] for i in rows])))
+                 for rows in itertools.islice(itertools.combinations(range(plant.n), k), 200)]
+        v = params.clock.spent(certify_nonzero([e for e in every if e != 0] or [sp.Integer(0)], params.box,
+                                               params.clock.budget()))
+        if v.regular is False:
+            w = exact_point(params, v.witness or {})
+            return [], BoxVerdict("violated", f"at {show_values(params.named(w))} the equilibrium equations do not "
                                   f"determine the input(s) {names}", params.named(w), "undetermined")
-    if v.regular is None:
-        return chosen, BoxVerdict("undecided", f"the input(s) {names} could not be shown to be determined over "
-                                  "the whole box within the budget")
+        why = ("no one choice of the equations determines them over the whole box" if v.regular
+               else "they could not be shown to be determined over the whole box within the budget")
+        return [], BoxVerdict("undecided", f"the input(s) {names} at the point are not solved as functions of the "
+                              f"parameters: {why}")
+    G = next(G for rows, G, _ in minors if rows == chosen)
     sol = G.LUsolve(sp.Matrix([-c[i] for i in chosen]))
     for a, j in enumerate(unknown):
         values[plant.inputs[j]] = params.tidy(sol[a])
@@ -447,23 +466,34 @@ def _zero_dynamics(params: ParameterBox, degrees: list[int], values: dict[sp.Sym
         # a negative Lienard-Chipart condition means a root in the open right half-plane:
         # a polynomial with every root in the closed left half-plane is a limit of Hurwitz
         # ones, so its coefficients and Hurwitz determinants are all >= 0
-        detail = (f"non-minimum phase wherever {boundary} ({failed.label} of the zero-dynamics polynomial "
-                  f"is negative exactly there); witness {at_witness}")
+        where, edge = boundary
+        # where the condition is zero the polynomial is not Hurwitz either (a root on the
+        # imaginary axis, or a pair s, -s): not minimum phase on the boundary itself
+        also = f", and not minimum phase on {edge} either, where it is zero" if edge else ""
+        detail = (f"non-minimum phase wherever {where} ({failed.label} of the zero-dynamics polynomial "
+                  f"is negative exactly there){also}; witness {at_witness}")
     else:
         detail = f"{what} at {at_witness}"
-    return BoxVerdict("violated", detail, params.named(w), zd.verdict, zd.eigenvalues, boundary, crosses)
+    return BoxVerdict("violated", detail, params.named(w), zd.verdict, zd.eigenvalues, boundary[0] if boundary else None, crosses)
 
 
-def _boundary(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, sp.Expr]) -> str | None:
-    """``gam1 + gam2 < 1``: where e < 0, when one factor decides its sign on the box."""
+def _boundary(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, sp.Expr]) -> tuple[str, str] | None:
+    """(``gam1 + gam2 < 1``, ``gam1 + gam2 = 1``): where e < 0 and where e = 0, when one factor
+    decides its sign on the box; the second is empty when e has a pole there instead."""
     found = boundary_factor(params, e, witness)
     if found is None:
         return None
-    f, op = found
-    const, rest = f.as_coeff_Add()
-    if const != 0 and rest != 0:
-        return f"{show_expr(rest, 80)} {op} {show_expr(-const, 40)}"
-    return f"{show_expr(f, 80)} {op} 0"
+    f, op, in_numerator = found
+    (symbol, *more) = sorted(f.free_symbols, key=str)
+    a = f.diff(symbol)
+    if not more and a.is_number and a != 0 and (f - a * symbol).is_number:
+        # one parameter, linear: the threshold itself (k > 3/2, not 2*k > 3)
+        lhs, rhs = show_expr(symbol, 40), show_expr(-(f - a * symbol) / a, 40)
+        op = op if a > 0 else (">" if op == "<" else "<")
+    else:
+        const, rest = f.as_coeff_Add()
+        lhs, rhs = (show_expr(rest, 80), show_expr(-const, 40)) if const != 0 and rest != 0 else (show_expr(f, 80), "0")
+    return f"{lhs} {op} {rhs}", (f"{lhs} = {rhs}" if in_numerator else "")
 
 
 # -- controllability --------------------------------------------------------------------------------

@@ -272,10 +272,11 @@ def ball_det(rows: list[list[arb]]) -> arb:
 
 
 def boundary_factor(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, sp.Expr]
-                    ) -> tuple[sp.Expr, str] | None:
-    """(f, "<") when e factors into one factor f whose sign is not constant on the box
-    (to an odd power) and factors of certified constant sign, so that e < 0 exactly
-    where f < 0 (or f > 0, as the witness says); f has a positive leading sign."""
+                    ) -> tuple[sp.Expr, str, bool] | None:
+    """(f, "<", numerator) when e factors into one factor f whose sign is not constant on
+    the box (to an odd power) and factors of certified constant sign, so that e < 0 exactly
+    where f < 0 (or f > 0, as the witness says); f has a positive leading sign. ``numerator``
+    says whether f divides e's numerator (e = 0 on f = 0) or its denominator (e has a pole there)."""
     if sp.count_ops(e) > BOUNDARY_OPS or has_symbolic_functions(e):
         return None
     try:
@@ -283,8 +284,9 @@ def boundary_factor(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, s
         factors = sp.factor_list(num)[1] + sp.factor_list(den)[1]
     except (sp.PolynomialError, ValueError, TypeError):
         return None
+    numerator_factors = len(sp.factor_list(num)[1])
     open_factors = []
-    for f, mult in factors:
+    for index, (f, mult) in enumerate(factors):
         if not f.free_symbols:
             continue
         fixed = False
@@ -292,17 +294,17 @@ def boundary_factor(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, s
             v = params.clock.spent(certify_sign(cand, params.box, True, params.clock.budget()))
             fixed = fixed or bool(v.regular)
         if not fixed:
-            open_factors.append((f, mult))
+            open_factors.append((f, mult, index < numerator_factors))
     if len(open_factors) != 1 or open_factors[0][1] % 2 == 0:
         return None
-    f = open_factors[0][0]
+    f, _, in_numerator = open_factors[0]
     b = params.ball(f, witness)
     if not b.is_finite() or b.contains(0):
         return None
     op = "<" if b < 0 else ">"
     if f.could_extract_minus_sign():
         f, op = -f, (">" if op == "<" else "<")
-    return f, op
+    return f, op, in_numerator
 
 
 def crossing(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, sp.Expr]) -> dict[str, float] | None:

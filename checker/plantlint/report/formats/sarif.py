@@ -185,23 +185,23 @@ def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str,
     run: dict[str, Any] = {"tool": {"driver": driver}, "results": results, "columnKind": "unicodeCodePoints"}
     overrides = rule_overrides(report.adjustments, index)
     notifications = not_decided_notifications(report, index)
-    if overrides or notifications or report.relaxation is not None:
-        # executionSuccessful: false when the analysis of some model did not complete
-        invocation: dict[str, Any] = {"executionSuccessful": not report.not_checked()}
-        if overrides:
-            invocation["ruleConfigurationOverrides"] = overrides
-        if notifications:
-            invocation["toolExecutionNotifications"] = notifications
-        counts = report.counts()
-        bag: dict[str, Any] = {"outcome": report.outcome(), "notDecided": counts["not_decided"],
-                               "notChecked": counts["not_checked"], "cutShort": counts["cut_short"]}
-        if report.budget:
-            bag["budget"] = report.budget
-        if report.relaxation is not None:
-            bag["undecided"] = {"fail": False, "reason": report.relaxation.reason,
-                                "source": report.relaxation.source}
-        invocation["properties"] = bag
-        run["invocations"] = [invocation]
+    # always present, so that a consumer can read invocations[0].executionSuccessful on every
+    # run: false when the analysis of some model did not complete
+    invocation: dict[str, Any] = {"executionSuccessful": not report.not_checked()}
+    if overrides:
+        invocation["ruleConfigurationOverrides"] = overrides
+    if notifications:
+        invocation["toolExecutionNotifications"] = notifications
+    counts = report.counts()
+    bag: dict[str, Any] = {"outcome": report.outcome(), "notDecided": counts["not_decided"],
+                           "notChecked": counts["not_checked"], "cutShort": counts["cut_short"]}
+    if report.budget:
+        bag["budget"] = report.budget
+    if report.relaxation is not None:
+        bag["undecided"] = {"fail": False, "reason": report.relaxation.reason,
+                            "source": report.relaxation.source}
+    invocation["properties"] = bag
+    run["invocations"] = [invocation]
     if report.since is not None:
         run["properties"] = {"since": report.since}
         changes = {f.path: [dict(c) for c in f.structure_changes] for f in report.files if f.structure_changes}

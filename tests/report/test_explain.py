@@ -102,6 +102,26 @@ def test_cli_explain_on_a_broken_model(tmp_path: Path) -> None:
     assert "unknown name 'y'" in run.stdout and "Traceback" not in run.stderr
 
 
+def test_explain_never_passes_escape_sequences_from_the_file(tmp_path: Path) -> None:
+    """The title, a waiver's reason and a broken model's message are file text: the terminal
+    gets them with control characters made visible, with colour or without."""
+    model = tmp_path / "esc.plant"
+    model.write_text('plant esc "title \x1b[31mRED \x1b]0;renamed\x07 end"\nstate x\ninput u\nrate x = -x + u\n'
+                     'output y = x\npoint rest: x = 0\nwaive zero-dynamics-critical "why \x1b[2J"\n', encoding="utf-8")
+    for color in (False, True):
+        out = io.StringIO()
+        explain_file(model, None, "text", out, color=color)
+        shown = out.getvalue()
+        assert "\x1b[31mRED" not in shown and "\x1b]0;" not in shown and "\x07" not in shown
+        assert "\x1b[2J" not in shown
+        assert "?[31mRED" in shown
+    broken = tmp_path / "broken.plant"
+    broken.write_text('plant b "\x1b[31m"\nstate x\nrate x = \x1b[2J\n', encoding="utf-8")
+    out = io.StringIO()
+    explain_file(broken, None, "text", out, color=False)
+    assert "\x1b" not in out.getvalue()
+
+
 def test_common_subexpressions_are_named_only_when_shorter() -> None:
     import sympy as sp
 

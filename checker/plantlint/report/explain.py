@@ -23,6 +23,7 @@ from plantlint.analysis.engine import Analysis
 from plantlint.analysis.serialise import name_subexpressions, explain_json, show_repeated
 from plantlint.core.findings import Finding, Stop
 from plantlint.language.printer import show_number, show_point
+from plantlint.report.formats.base import one_line
 
 __all__ = ["name_subexpressions", "explain_data", "explain_view", "render_blocked", "render_json", "render_text",
            "show_repeated"]
@@ -56,14 +57,29 @@ def render_blocked(path: str, findings: list[Finding], stream: TextIO, closing: 
     """No derivation to show: the findings, one line each, and ``closing`` (why)."""
     for f in findings:
         where = f"{f.span.line}:{f.span.column}: " if f.span else ""
-        print(f"{path}:{where}{f.severity.value}: {f.message} [{f.rule}]", file=stream)
-    print(closing, file=stream)
+        print(one_line(f"{path}:{where}{f.severity.value}: {f.message} [{f.rule}]"), file=stream)
+    print(one_line(closing), file=stream)
 
 
 # -- the text report, one function per section --------------------------------------
 
+def _printable(value: Any) -> Any:
+    """Every string of the derivation with control characters made visible: titles, waiver
+    reasons and messages quote the model file, which is untrusted and must not reach the
+    terminal as escape sequences (line breaks inside a string stay line breaks)."""
+    if isinstance(value, str):
+        return "\n".join(one_line(part) for part in value.split("\n"))
+    if isinstance(value, dict):
+        return {k: _printable(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_printable(v) for v in value]
+    return value
+
+
 def render_text(d: dict[str, Any], stream: TextIO, color: bool) -> None:
     from rich.console import Console
+
+    d = _printable(d)
 
     console = Console(file=stream, force_terminal=color, no_color=not color, highlight=False, markup=False,
                       width=None if color else 100, soft_wrap=not color)

@@ -94,6 +94,56 @@ def test_values_beyond_double_precision_are_reported_not_crashed_on() -> None:
     jsonschema.validate(json.loads(out.getvalue()), report_schema())
 
 
+HUGE = """plant huge "exact values beyond double range (mutant reproducers, invented)"
+param k = 1 in 0 .. 1e400
+state x in -1 .. 1
+state v in -1 .. 1
+input u in -1 .. 1
+rate x = v*1e400
+rate v = u*1e400 - k*x
+output y = x
+point rest: x = 0, v = 0
+point far: x = (1e300)^2/3, v = 0
+point tiny: x = 0, v = -1e-400
+"""
+
+
+def test_exact_values_beyond_double_range_are_written_as_decimals_never_as_inf_or_zero() -> None:
+    """1e600/3 is about 3.3e599 and -1e-400 is not zero (Python's decimal module, the
+    reference: exact decimal division at 17 digits); the messages and the JSON say those
+    numbers, where a float would read inf or -0 (IEEE 754 double range, sys.float_info)."""
+    import io
+    import json
+    import sys
+    from decimal import Context, Decimal
+
+    import jsonschema
+
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.core.findings import Report
+    from plantlint.report.formats import get_formatter
+    from plantlint.report.formats.json_report import report_schema
+    from plantlint.run.config import Config
+    from plantlint.run.pipeline import finish
+
+    assert sys.float_info.max < 1e309  # the double range ends below these values
+    third = format(Context(prec=17).divide(Decimal(10**600), Decimal(3)).normalize(), "g").replace("E", "e")
+    raw = analyse_bytes(HUGE.encode())
+    messages = " ".join(f.message for f in raw.findings)
+    assert "inf" not in messages and "~-0" not in messages
+    assert "x = ~3.33333e+599" in messages and "exact equilibrium with v = 0 (written -1e-400)" in messages
+    points = raw.analysis["points"]
+    assert points["far"]["values"]["x"] == third == "3.3333333333333333e+599"
+    lin = points["rest"]["linearisation"]
+    assert lin["A"][0][1] == "1e+400" and lin["B"][1][0] == "1e+400"
+    assert points["rest"]["parameter_box"]["box"]["k"] == [0.0, "1e+400"]
+    report = Report(files=[finish("huge.plant", raw, HUGE, Config(), {r.id: r.severity for r in load_catalogue()})],
+                    tool_version="test")
+    out = io.StringIO()
+    get_formatter("json").render(report, out, color=False)
+    jsonschema.validate(json.loads(out.getvalue()), report_schema())
+
+
 CREEP = b"""plant creep "a point value within 2^-1024 of a range end (mutant reproducer)"
 param k0 = 3.0e9
 param E_R = 8000
@@ -122,3 +172,50 @@ def test_a_value_too_close_to_zero_to_decide_is_named_not_crashed_on() -> None:
     assert "taken as zero without proof" in budget.message and "exp(" in budget.message
     claims = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert claims and all(f.undecided and "see the analysis-budget finding" in f.message for f in claims)
+
+
+# -- a model undefined all over its envelope --------------------------------------------------
+NOWHERE = """
+# invented: the input gain log(x - 5) has no real value while x stays in -1 .. 1
+plant nowhere
+state x in -1 .. 1
+state v in -1 .. 1
+input u in -1 .. 1
+rate x = v
+rate v = u*log(x - 5)
+output y = x
+point rest: x = 0, v = 0
+expect relative_degree(y) = 2
+"""
+
+
+def test_a_rate_undefined_all_over_the_envelope_stops_the_analysis_where_it_is_written() -> None:
+    """With no point of the envelope where the rates exist, every zero test would be vacuously
+    "zero at every sampled point": the analysis must not go on to call the output unreached,
+    the point incomplete, or a complex constant "within 2^-1024 of zero"."""
+    import math
+
+    # reference, Python's math library: log of x - 5 has no real value anywhere in -1 .. 1
+    for x in (-1.0, 0.0, 1.0):
+        try:
+            math.log(x - 5)
+        except ValueError:
+            continue
+        raise AssertionError("math.log accepted a negative argument")
+    raw = analyse_bytes(NOWHERE.encode())
+    assert raw.analysis is None
+    (only,) = raw.findings
+    assert only.rule == "singular-model" and only.message.startswith("rate v is undefined throughout the envelope")
+    assert (only.span.line, only.span.column) == (8, 10)
+    assert not [f for f in raw.findings if "sampled point" in f.message or "2^-1024" in f.message]
+
+
+def test_rates_defined_only_apart_are_reported_on_the_plant() -> None:
+    """sqrt(x - 1/2) needs x > 1/2, sqrt(-x) needs x < 0: each rate exists somewhere in the
+    envelope, never both together."""
+    text = NOWHERE.replace("rate x = v", "rate x = v + sqrt(x - 1/2)").replace("u*log(x - 5)", "u + sqrt(-x)")
+    raw = analyse_bytes(text.encode())
+    assert raw.analysis is None
+    (only,) = raw.findings
+    assert only.rule == "singular-model" and "never all defined at once" in only.message
+    assert only.span.line == 3  # the plant line

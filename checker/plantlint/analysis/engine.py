@@ -33,7 +33,8 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.core.settings import AnalysisSettings
-from plantlint.kernel.lie import Kernel
+from plantlint.kernel.balls import Program, UnsupportedExpression
+from plantlint.kernel.lie import SCREEN_POINTS, Kernel, random_samples
 from plantlint.language.model import ClaimDecl, Model
 from plantlint.language.printer import show_expr, show_point
 from plantlint.analysis.normal_form import NormalForm, normal_form_at, xi_name
@@ -81,16 +82,59 @@ class Analysis:
             stage(name, self)
 
 
+def nowhere_defined(kernel: Kernel) -> list[Finding]:
+    """``singular-model`` findings when no point drawn from the envelope has every rate and
+    output defined. The zero tests screen at such points; without one, "zero at every sampled
+    point" would hold of every expression vacuously, so there is nothing to analyse."""
+    if kernel.samples():
+        return []
+    plant = kernel.plant
+    symbols = kernel.free_symbols()
+    boxes = {**plant.state_box, **plant.param_box}
+    places = [(anchors.rate(s), f"rate {s}", [plant.f[i], *(col[i] for col in plant.g)])
+              for i, s in enumerate(plant.states)]
+    places += [(anchors.output(name), f"output {name}", [h]) for name, h in zip(plant.outputs, plant.h)]
+    drawn = 20 * SCREEN_POINTS
+    first = {str(k): float(v) for k, v in random_samples(symbols, boxes, kernel.seed, count=1)[0].items()} if symbols else {}
+    out = []
+    for anchor, label, exprs in places:
+        exprs = [e for e in exprs if e != 0]
+        try:
+            guard = Program(exprs, symbols) if exprs else None
+        except UnsupportedExpression:
+            continue
+        if guard is not None and not random_samples(symbols, boxes, kernel.seed, guard=guard):
+            out.append(finding(
+                "singular-model",
+                f"{label} is undefined throughout the envelope: at each of the {drawn} points drawn from the "
+                f"ranges (-2 .. 2 where none is given) it divides by zero or leaves a function's domain (the first: {show_point(first)}); "
+                "nothing can be analysed on it", anchor=anchor, hint=_ENVELOPE_DOMAIN_HINT))
+    if not out:
+        out.append(finding(
+            "singular-model",
+            f"the rates and outputs are never all defined at once at the {drawn} points drawn from the ranges "
+            f"(the first: {show_point(first)}): each is defined somewhere, but not together; nothing can be "
+            "analysed", anchor=anchors.PLANT, hint=_ENVELOPE_DOMAIN_HINT))
+    return out
+
+
+#: What to check when a rate is undefined all over the envelope.
+_ENVELOPE_DOMAIN_HINT = ("check the ranges against the functions' domains (asin and acos need -1 .. 1, sqrt, log "
+                         "and fractional powers a positive argument, a denominator must not vanish)")
+
+
 def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
-                 stage: Stage | None = None, write_out: bool = True) -> Analysis:
+                 stage: Stage | None = None, write_out: bool = True, kernel: Kernel | None = None) -> Analysis:
     """All stages for one model whose model-family checks passed.
 
     ``stage(name, analysis)`` is called as each stage completes (the runner sends a
     snapshot then, so that a stop keeps the completed work). ``write_out`` also solves
     for the zero dynamics symbolically, for display (``explain``); no verdict uses it."""
-    plant = model.plant()
-    assert plant is not None, "analysis needs an input-affine model"
-    kernel = Kernel(plant)
+    if kernel is None:
+        plant = model.plant()
+        assert plant is not None, "analysis needs an input-affine model"
+        kernel = Kernel(plant)
+    plant = kernel.plant
     structure = analyse_structure(kernel)
     result = Analysis(model, kernel, structure)
     result.findings.extend(structure.findings)

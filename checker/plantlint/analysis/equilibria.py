@@ -343,9 +343,12 @@ def _shown(value: sp.Expr, exact: bool) -> str:
 
 
 def _ratio(value: float) -> str:
-    """1.2e-4 rather than 0.00012; plain decimals from 0.01 up."""
-    if value == 0 or value >= 0.01:
-        return f"{value:.2g}"
+    """1.2e-4 rather than 0.00012; from 0.01 up a percentage (100%, not "1 of the size")."""
+    if value == 0:
+        return "0"
+    if value >= 0.01:
+        percent = value * 100
+        return f"{percent:.2g}%" if percent < 99.5 else f"{percent:.0f}%"
     mantissa, exponent = f"{value:.1e}".split("e")
     return f"{mantissa}e{int(exponent)}"
 

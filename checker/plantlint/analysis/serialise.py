@@ -18,6 +18,8 @@ analysis modules are imported only by the functions that build it.
 
 from __future__ import annotations
 
+import math
+from decimal import Context, Decimal
 from typing import TYPE_CHECKING, Any
 
 from plantlint.analysis.stages import STAGES
@@ -136,10 +138,10 @@ def analysis_json(a: Analysis) -> dict[str, Any]:
 
 def equilibrium_json(eq: Equilibrium) -> dict[str, object]:
     """The analysis record for one point (floats for display; exact values stay in Python)."""
-    out: dict[str, float] = {}
+    out: dict[str, float | str] = {}
     for sym, value in eq.values.items():
         try:
-            out[str(sym)] = float(value) if value.is_Rational else float(value.evalf(20))
+            out[str(sym)] = json_number(value)
         except (TypeError, ValueError):
             continue
     record: dict[str, object] = {"equilibrium": eq.equilibrium, "values": out}
@@ -165,10 +167,24 @@ def _pairs(values: Sequence[complex]) -> list[list[float]]:
     return [[z.real, z.imag] for z in values]
 
 
-def _floats(rows: Sequence[Sequence[sp.Expr]]) -> list[list[float]]:
+def _floats(rows: Sequence[Sequence[sp.Expr]]) -> list[list[float | str]]:
+    return [[json_number(e) for e in row] for row in rows]
+
+
+def json_number(e: "sp.Expr") -> float | str:
+    """An exact number for the JSON report: a float, or (beyond double range, where a float
+    would read inf or 0) the decimal text, as docs/report-format.md promises."""
     import sympy as sp
 
-    return [[float(e) if e.is_Rational else float(sp.N(e, 20)) for e in row] for row in rows]
+    from plantlint.language.printer import show_number
+
+    number = float(e) if e.is_Rational else float(sp.N(e, 20))
+    if math.isfinite(number) and (number != 0 or e == 0):
+        return number
+    if e.is_Rational:
+        quotient = Context(prec=17).divide(Decimal(int(e.p)), Decimal(int(e.q)))
+        return format(quotient.normalize(), "g").replace("E", "e")
+    return show_number(e, 17)
 
 
 def _groups_json(groups: Sequence[ModeGroup]) -> list[dict[str, object]]:
@@ -226,7 +242,7 @@ def parametric_json(pp: ParametricPoint) -> dict[str, Any]:
 
     solved = {str(s): show_expr(v, 200) for s, v in pp.values.items() if s in pp.solved}
     return {
-        "box": {k: [float(lo), float(hi)] for k, (lo, hi) in pp.box.items()},
+        "box": {k: [json_number(lo), json_number(hi)] for k, (lo, hi) in pp.box.items()},
         "solved_inputs": solved,
         "equilibrium": verdict_json(pp.equilibrium),
         "decoupling": verdict_json(pp.decoupling),

@@ -685,6 +685,7 @@ def _model_checks(kernel: Kernel, box: dict[sp.Symbol, Any], clock: _Clock) -> l
     for i, s in enumerate(plant.states):
         places += [(anchors.rate(s), plant.f[i])] + [(anchors.rate(s), col[i]) for col in plant.g]
     places += [(anchors.output(name), h) for name, h in zip(plant.outputs, plant.h)]
+    places += list(plant.hidden)  # undefined as written, though the exact value no longer shows it
     verdicts: dict[tuple[str, sp.Expr], EnvelopeVerdict] = {}
     out: list[tuple[str, DomainCondition, EnvelopeVerdict]] = []
     seen: set[tuple[str, str, sp.Expr]] = set()

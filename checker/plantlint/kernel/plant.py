@@ -28,6 +28,9 @@ class Plant:
     param_box: dict[sp.Symbol, tuple[sp.Expr, sp.Expr]] = field(default_factory=dict)
     state_box: dict[sp.Symbol, tuple[sp.Expr, sp.Expr]] = field(default_factory=dict)
     input_box: dict[sp.Symbol, tuple[sp.Expr, sp.Expr]] = field(default_factory=dict)
+    #: (rate or output anchor, part): singular parts as written that f, g and h no longer show
+    #: (x^(-1)*x is 1, exp(log(x)) is x); the domain checks take them as well
+    hidden: tuple[tuple[str, sp.Expr], ...] = ()
 
     @property
     def n(self) -> int:

@@ -94,6 +94,8 @@ class Model:
     #: False when a rate or an output divides by zero for every state: the file states no
     #: plant at all, so nothing is analysed (any result would be of another model)
     defined: bool = True
+    #: singular parts as written that the values no longer show, per rate and output anchor
+    hidden: Mapping[str, tuple[sp.Expr, ...]] = field(default_factory=lambda: MappingProxyType({}))
 
     def symbol(self, name: str) -> sp.Symbol:
         return symbol(name)
@@ -132,6 +134,9 @@ class Model:
             param_box=self.box(self.ranged_params),
             state_box=self.box(self.states),
             input_box=self.box(self.inputs),
+            hidden=tuple((anchor, part) for anchor in [*(anchors.rate(s) for s in self.states),
+                                                       *(anchors.output(o) for o in self.outputs)]
+                         for part in self.hidden.get(anchor, ()) if not part.free_symbols & set(us)),
         )
 
 
@@ -147,6 +152,9 @@ class _Scope:
     quantities: dict[str, Quantity] = field(default_factory=dict)
     spans: dict[str, Span] = field(default_factory=dict)  # anchor -> span
     undefined: list[str] = field(default_factory=list)  # anchors of expressions defined for no state
+    #: per rate, output or definition: its singular parts as written that its value no longer
+    #: shows, with those of the definitions it uses (see Expression.hidden)
+    hidden: dict[str, tuple[sp.Expr, ...]] = field(default_factory=dict)
 
     def add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None,
             point: str | None = None) -> None:
@@ -230,6 +238,7 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
         ranged_params=tuple(ranged),
         input_affine=input_affine,
         smooth=smooth,
+        hidden=MappingProxyType(scope.hidden),
         defined=not any(w in scope.undefined for w in [*(anchors.rate(s) for s in rates),
                                                               *(anchors.output(o) for o in outputs)]),
     )
@@ -557,6 +566,11 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
             hint = "outputs are named by expect/waive, not used in expressions" if target.kind == "output" else None
         scope.add("unknown-name", message, ref.span, anchors.about("name", ref.name, "in", where), hint=hint)
     value = _substituted(expr.value, expr.span, scope.lets, scope.constants)
+    hidden = [_substituted(p, expr.span, scope.lets, scope.constants) for p in expr.hidden]
+    for ref in expr.names:
+        hidden += scope.hidden.get(anchors.let(ref.name), ())
+    if hidden:
+        scope.hidden[where] = tuple(dict.fromkeys(hidden))
     known = {symbol(a) for a in allowed}
     stray = value.free_symbols - known
     if stray:
@@ -638,6 +652,14 @@ def _check_smooth(scope: _Scope, statements: list[Statement]) -> bool:
                     scope.add("non-smooth", f"{call.function}() is not smooth; Lie derivatives and brackets need smooth vector fields",
                               call.span, anchors.declaration(st.kind, st.name, call.function),
                               hint="replace it by a smooth approximation (e.g. tanh for sign) or model the switching separately")
+            for span, written, value in expr.kinks:
+                if st.kind in ("let", "rate", "output"):
+                    smooth = False
+                    scope.add("non-smooth", f"{_show(written)} is {_show(value)} for real values, which is not smooth; "
+                              "Lie derivatives and brackets need smooth vector fields", span,
+                              anchors.declaration(st.kind, st.name, f"kink {span.line}:{span.column}"),
+                              hint="sqrt(x^2) is abs(x): write the smooth expression the model means, or model "
+                                   "the switching separately")
     return smooth
 
 

@@ -67,12 +67,36 @@ def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = Fa
                 return dec
             if len(str(value)) <= 12:
                 return str(value)
+        if value.is_Rational and _beyond_double(value):
+            # 1e-400 and 1e600/3 are exact numbers: written in decimal, never as 0 or inf
+            p, q = int(value.p), int(value.q)
+            rounded = Context(prec=digits).divide(Decimal(p), Decimal(q))
+            text = format(rounded.normalize(), "g").replace("E", "e")
+            return ("~" if mark_inexact and Fraction(rounded) != Fraction(p, q) else "") + text
         try:
-            value = float(value.evalf(digits + 14)) if not value.is_Float else float(value)
+            ball = value.evalf(digits + 14) if not value.is_Float else value
+            number = float(ball)
         except (TypeError, ValueError):
             return show_expr(value)
-        return ("~" if mark_inexact else "") + f"{value:.{digits}g}"
+        if (not math.isfinite(number) or number == 0) and ball.is_Float and ball != 0:
+            return ("~" if mark_inexact else "") + _mpmath_text(ball, digits)
+        return ("~" if mark_inexact else "") + f"{number:.{digits}g}"
     return f"{value:.{digits}g}"
+
+
+def _beyond_double(value: sp.Rational) -> bool:
+    """Is a non-zero exact number too large or too small for a binary double?"""
+    if value == 0:
+        return False
+    magnitude = abs(int(value.p)).bit_length() - int(value.q).bit_length()
+    return magnitude > 1020 or magnitude < -1020
+
+
+def _mpmath_text(value: sp.Float, digits: int) -> str:
+    """A decimal beyond double range (exp(2000) is ~3.88118e+868), from the arbitrary-exponent float."""
+    import mpmath
+
+    return mpmath.nstr(value._to_mpmath(max(value._prec, 64)), digits)
 
 
 #: Exact numbers longer than this many characters are shown rounded, with their length.

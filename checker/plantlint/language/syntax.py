@@ -58,6 +58,10 @@ NON_SMOOTH_FUNCTIONS: dict[str, tuple[int, Callable[..., sp.Expr]]] = {
     "sat": (3, lambda x, lo, hi: sp.Min(sp.Max(x, lo), hi)),
 }
 FUNCTIONS = {**SMOOTH_FUNCTIONS, **NON_SMOOTH_FUNCTIONS}
+#: Functions undefined (or not smooth) somewhere on the reals, whose domain the analysis checks.
+_SINGULAR_FUNCTIONS = frozenset({"sqrt", "log", "asin", "acos", "tan", "atan2"})
+#: What a kink looks like in an exact value.
+_KINKED = (sp.Abs, sp.sign, sp.Min, sp.Max, sp.Heaviside, sp.Piecewise)
 RESERVED = KEYWORDS | frozenset(FUNCTIONS) | {"pi"}
 
 
@@ -92,6 +96,13 @@ class Expression:
     calls: tuple[CallRef, ...]
     #: the parse tree it was built from (read by the unit checker; not part of equality)
     tree: Tree | Token | None = field(default=None, compare=False, repr=False)
+    #: singular parts as written (x^(-1), log(x), asin(x), ...) that the exact value no longer
+    #: shows: ``x^(-1)*x`` is 1 and ``exp(log(x))`` is x, but as written they are undefined at
+    #: x = 0; the domain checks take these parts too
+    hidden: tuple[sp.Expr, ...] = ()
+    #: calls and powers whose exact value is not smooth although the function is: sqrt(x^2)
+    #: is abs(x) for real x (span, what was written, unevaluated; its value)
+    kinks: tuple[tuple[Span, sp.Expr, sp.Expr], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -633,6 +644,8 @@ class _ExpressionBuilder:
         self.calls: list[CallRef] = []
         self.values: dict[int, _Value] = {}  # by id(): tokens compare equal by their text
         self.unknown: list[Finding] = []  # unknown functions: every one is reported, in order
+        self.singular: list[sp.Expr] = []  # singular parts as built (see Expression.hidden)
+        self.kinks: list[tuple[Span, sp.Expr, sp.Expr]] = []
 
     def build(self, root: Tree | Token) -> Expression:
         for node in _operands_first(root):
@@ -640,7 +653,22 @@ class _ExpressionBuilder:
         if self.unknown:
             first, *rest = sorted(self.unknown, key=lambda f: (f.span.line, f.span.column) if f.span else (0, 0))
             raise ParseProblem(first, *rest)
-        return Expression(_done(self.values[id(root)]), _span(root), tuple(self.names), tuple(self.calls), root)
+        value = _done(self.values[id(root)])
+        hidden: tuple[sp.Expr, ...] = ()
+        if self.singular:
+            shown = set(sp.preorder_traversal(value))
+            hidden = tuple(p for p in dict.fromkeys(self.singular) if p not in shown)
+        return Expression(value, _span(root), tuple(self.names), tuple(self.calls), root, hidden, tuple(self.kinks))
+
+    def _singular(self, part: sp.Expr) -> None:
+        """Remember a part that is undefined somewhere as written (it may be simplified away)."""
+        if part.free_symbols:
+            self.singular.append(part)
+
+    def _smooth_or_kink(self, written: Callable[[], sp.Expr], args: list[sp.Expr], value: sp.Expr, span: Span) -> None:
+        """A smooth function whose exact value has a kink its arguments do not have."""
+        if value.has(*_KINKED) and not any(a.has(*_KINKED) for a in args):
+            self.kinks.append((span, written(), value))
 
     def _token(self, tok: Token) -> sp.Expr:
         if tok.type == "NUMBER":
@@ -691,7 +719,14 @@ class _ExpressionBuilder:
         arity, fn = entry
         if len(args) != arity:
             raise ParseProblem(_syntax(f"{fname} takes {arity} argument{'s' if arity > 1 else ''}, got {len(args)}", span))
-        return fn(*args)
+        value = fn(*args)
+        as_written = ((lambda: sp.Pow(args[0], sp.Rational(1, 2), evaluate=False)) if fname == "sqrt"
+                      else (lambda: getattr(sp, fname)(*args, evaluate=False)))
+        if fname in _SINGULAR_FUNCTIONS:
+            self._singular(as_written() if fname == "sqrt" else value)
+        if fname in SMOOTH_FUNCTIONS:
+            self._smooth_or_kink(as_written, args, value, span)
+        return value
 
     def _neg(self, node: Tree) -> sp.Expr:
         return -self._built(node.children[0])
@@ -719,6 +754,7 @@ class _ExpressionBuilder:
     def _div(self, node: Tree) -> _Factors:
         factors, b = self._collected(node, _Factors)
         factors.append(sp.Pow(b, -1))
+        self._singular(sp.Pow(b, -1, evaluate=False))
         return factors
 
     def _collected(self, node: Tree, chain: type[_Chain]) -> tuple[_Chain, sp.Expr]:
@@ -730,7 +766,12 @@ class _ExpressionBuilder:
 
     def _pow(self, node: Tree) -> sp.Expr:
         base, exponent = node.children
-        return _power(self._built(base), self._built(exponent), _span(node))
+        b, e = self._built(base), self._built(exponent)
+        value = _power(b, e, _span(node))
+        if e.is_Rational and (e.is_negative or not e.is_Integer):
+            self._singular(sp.Pow(b, e, evaluate=False))
+            self._smooth_or_kink(lambda: sp.Pow(b, e, evaluate=False), [b], value, _span(node))
+        return value
 
     _RULES: dict[str, Callable[["_ExpressionBuilder", Tree], _Value]] = {
         "number": _number_node, "name": _name, "call": _call, "neg": _neg, "pos": _pos,

@@ -118,7 +118,8 @@ def analyse_bytes(data: bytes, settings: AnalysisSettings | Config = AnalysisSet
     if any(f.rule in BLOCKING for f in findings) or not model.defined:
         result.findings = [locate(f, model.spans) for f in result.findings]
         return result
-    from plantlint.analysis.engine import Analysis, claims_so_far, run_analysis
+    from plantlint.analysis.engine import Analysis, claims_so_far, nowhere_defined, run_analysis
+    from plantlint.kernel.lie import Kernel
     from plantlint.analysis.serialise import analysis_json, explain_json
 
     memo: dict[str, Any] = {}  # the explain derivation, built once
@@ -141,7 +142,14 @@ def analyse_bytes(data: bytes, settings: AnalysisSettings | Config = AnalysisSet
             findings=[locate(f, model.spans) for f in [*findings, *analysis.findings, *decided]],
             pending=[locate(f, model.spans) for f in pending], explain=derivation(analysis)))
 
-    analysis = run_analysis(model, settings, stage, write_out=explain)  # the symbolic zero dynamics: explain only
+    plant = model.plant()
+    assert plant is not None, "analysis needs an input-affine model"
+    kernel = Kernel(plant)
+    undefined = nowhere_defined(kernel)
+    if undefined:  # like a rate that divides by zero for every state: nothing to analyse
+        result.findings = [locate(f, model.spans) for f in [*findings, *undefined]]
+        return result
+    analysis = run_analysis(model, settings, stage, write_out=explain, kernel=kernel)  # the symbolic zero dynamics: explain only
     result.analysis = analysis_json(analysis)
     result.explain = derivation(analysis)
     result.stages = list(analysis.completed)

@@ -1,0 +1,71 @@
+"""A model is checked as it is written, not as sympy's automatic simplification leaves it.
+
+For real x, sympy turns sqrt(x^2) into abs(x), x^(-1)*x into 1 and exp(log(x)) into x.
+As written, the first has a kink at x = 0 and the others are undefined there; a gate
+that passed them would pass a model its controller cannot rely on. Models are invented.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from plantlint.run.pipeline import analyse_bytes
+
+BASE = """
+plant written
+state x in -1 .. 1
+state v in -1 .. 1
+input u in -1 .. 1
+rate x = v
+rate v = u + {term}
+output y = x
+point rest: x = 0, v = 0
+expect relative_degree(y) = 2
+"""
+
+
+def _findings(term: str) -> list:
+    return analyse_bytes(BASE.format(term=term).encode()).findings
+
+
+def test_a_square_root_of_a_square_is_reported_as_the_kink_it_is() -> None:
+    # reference, numpy: sqrt(x^2) equals |x| at sample points, and its one-sided difference
+    # quotients at 0 are -1 and +1 (no derivative there)
+    xs = np.linspace(-1, 1, 9)
+    assert np.allclose(np.sqrt(xs**2), np.abs(xs))
+    h = 1e-6
+    assert math.isclose((math.sqrt(h**2) - 0) / h, 1.0) and math.isclose((math.sqrt(h**2) - 0) / -h, -1.0)
+    for term, written in (("sqrt(x^2)", "sqrt(x^2)"), ("(x^4)^(1/4)", "(x^4)^(1/4)")):
+        (kink,) = [f for f in _findings(term) if f.rule == "non-smooth"]
+        assert kink.message.startswith(f"{written} is abs(x) for real values, which is not smooth")
+        assert (kink.span.line, kink.span.column) == (7, 14)
+
+
+def test_a_division_or_a_log_simplified_away_is_still_checked_where_it_is_written() -> None:
+    # reference, Python's own arithmetic: 1/x and log(x) have no value at x = 0
+    for bad in (lambda: 1 / 0.0, lambda: math.log(0.0)):
+        try:
+            bad()
+        except (ZeroDivisionError, ValueError):
+            continue
+        raise AssertionError("expected no value at 0")
+    for term, what in (("x^(-1)*x", "the denominator x"), ("0*x/x", "the denominator x"),
+                       ("exp(log(x))", "the log argument x")):
+        found = [f for f in _findings(term) if f.rule == "singular-model"]
+        assert any(f.message.startswith(f"{what} in rate v") for f in found), (term, [f.message for f in found])
+        assert all(f.span.line == 7 for f in found)
+
+
+def test_a_singular_part_inside_a_definition_reaches_the_rates_that_use_it() -> None:
+    text = BASE.format(term="a").replace("rate x = v", "let a = x/x\nrate x = v")
+    found = [f for f in analyse_bytes(text.encode()).findings if f.rule == "singular-model"]
+    assert any(f.message.startswith("the denominator x in rate v") for f in found)
+
+
+def test_what_sympy_keeps_is_not_reported_twice_and_smooth_models_stay_clean() -> None:
+    found = [f for f in _findings("1/(x + 2) + sqrt(x^2 + 1)") if f.severity.value == "error"]
+    assert found == []
+    twice = [f for f in _findings("1/x") if f.rule == "singular-model"]
+    assert len(twice) == 1

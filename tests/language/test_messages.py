@@ -235,3 +235,40 @@ def test_input_affinity_by_form_and_by_second_derivative(rate: str, affine: bool
     text = f"plant p\nstate x in -1 .. 1\ninput u in -1 .. 1\nrate x = {rate}\noutput y = x\n"
     rules = [f.rule for f in findings(text)]
     assert ("not-input-affine" not in rules) == affine, rules
+
+
+def test_a_definition_that_uses_itself_says_so() -> None:
+    (f,) = [f for f in findings(GOOD.replace("let e = -k*z", "let e = -k*z + e")) if f.rule == "unknown-name"]
+    assert f.message == "'e' is used in its own definition; a definition cannot use itself"
+    assert (f.span.line, f.span.column) == (5, 16)
+
+
+def test_a_repeated_waiver_is_reported_where_it_is_repeated() -> None:
+    text = GOOD + 'waive unused-name "demo, again"\n'
+    (f,) = [f for f in findings(text) if f.rule == "unused-waiver"]
+    assert f.message == "the waiver of 'unused-name' repeats the one on line 10: it silences nothing that one does not"
+    assert f.span.line == 11
+    assert len(read_model(text.encode())[0].waivers) == 1
+
+
+def test_refusing_a_waiver_of_the_waiver_rules_gives_their_own_reason() -> None:
+    text = GOOD + 'waive unused-waiver "quiet"\nwaive syntax "quiet"\n'
+    refused = {f.message.split("'")[1]: f.message for f in findings(text) if f.rule == "waiver-refused"}
+    assert refused["unused-waiver"].endswith("cannot be waived: they judge the waivers themselves")
+    assert refused["syntax"].endswith("they mean the file was not read as a model, so nothing about it was checked")
+
+
+def test_an_empty_state_range_is_not_called_missing() -> None:
+    from plantlint.run.pipeline import analyse_bytes
+
+    raw = analyse_bytes(GOOD.replace("state z in -1 .. 1", "state z in 1 .. -1").encode())
+    (f,) = [f for f in raw.findings if f.rule == "envelope-unproven"]
+    assert "state z has an unusable range (see bad-range)" in f.message and "no range" not in f.message
+
+
+def test_atan2_arguments_are_plural() -> None:
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = "plant a\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput u in -1 .. 1\nrate x = v\nrate v = u + atan2(x, v)\noutput y = x\n"
+    (f,) = [f for f in analyse_bytes(text.encode()).findings if f.rule == "singular-model"]
+    assert f.message.startswith("the atan2 arguments x, v (both zero) in rate v vanish together inside the envelope")

@@ -492,8 +492,13 @@ def certify_envelope(
     plant = kernel.plant
     missing = [str(s) for s in plant.states if s not in plant.state_box]
     if missing:
+        refused = [m for m in missing if spans is not None and anchors.range_of(m, "refused") in spans]
+        lacking = [m for m in missing if m not in refused]
+        parts = ([f"{', '.join(lacking)} {'have' if len(lacking) > 1 else 'has'} no range"] if lacking else []) + (
+            [f"{', '.join(refused)} {'have' if len(refused) > 1 else 'has'} an unusable range (see bad-range)"]
+            if refused else [])
         why = (f"the operating envelope is not a box: state{'s' if len(missing) > 1 else ''} "
-               f"{', '.join(missing)} {'have' if len(missing) > 1 else 'has'} no range")
+               + "; ".join(parts))
         return Envelope(None, None, None, (finding(
             "envelope-unproven", f"{why}, so regularity over the envelope cannot be certified",
             anchor=anchors.ENVELOPE, hint="declare `in LO .. HI` for every state",
@@ -512,7 +517,8 @@ def certify_envelope(
             model_witness = model_witness or verdict.witness
             findings.append(finding(
                 "singular-model",
-                f"the {what} in {anchor} {_violation(kind)} inside the envelope, "
+                f"the {what} in {anchor} {_violation(kind, plural=str(what).startswith('atan2 arguments'))} "
+                "inside the envelope, "
                 f"e.g. at {show_point(verdict.witness)}",
                 anchor=anchor, hint="narrow the state ranges or reformulate the model",
             ))
@@ -673,7 +679,9 @@ def product_factors(expr: sp.Expr) -> list[tuple[sp.Expr, int]]:
     return [(constant, 1), *parts]
 
 
-def _violation(kind: str) -> str:
+def _violation(kind: str, plural: bool = False) -> str:
+    if plural:
+        return {"nonzero": "vanish together", "positive": "leave the open domain where the model is smooth"}[kind]
     return {"nonzero": "vanishes", "positive": "leaves the open domain where the model is smooth"}[kind]
 
 

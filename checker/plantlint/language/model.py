@@ -304,6 +304,8 @@ def _ranges(scope: _Scope, body: list[Statement], ranged: list[str]) -> list[str
             scope.quantities[q.name] = replace(q, low=bounds[0], high=bounds[1])
             if st.range_span is not None:
                 scope.spans[anchors.range_of(q.name)] = st.range_span
+        elif st.range_span is not None:  # written but refused (bad-range): later findings say so
+            scope.spans[anchors.range_of(q.name, "refused")] = st.range_span
     for name, q in scope.quantities.items():
         if q.kind == "param" and q.low is None and q.value is not None:
             scope.constants[symbol(name)] = q.value
@@ -557,6 +559,9 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
         if target is None:
             message = f"unknown name '{ref.name}'"
             hint = _did_you_mean(scope, ref.name, ("const", "param", "state", "input", "let"))
+        elif target.kind == "let" and where == anchors.let(ref.name):
+            message = f"'{ref.name}' is used in its own definition; a definition cannot use itself"
+            hint = "give the value it builds on a name of its own, defined before this line"
         elif target.kind == "let":
             message = f"'{ref.name}' is defined later (line {target.span.line}); define it before use"
             hint = None
@@ -920,6 +925,7 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
     catalogue = load_catalogue()
     point_names = {p.name for p in points}
     waivers: list[Waiver] = []
+    seen: dict[tuple[str, str | None], Span] = {}
     for st in stmts:
         rule = st.rule_id
         assert rule is not None
@@ -928,16 +934,24 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
             scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, anchors.waive_reference(rule.name),
                       hint=_suggest(rule.name, catalogue.ids()) or "`plantlint rules` lists the rule ids")
         elif not catalogue.get(rule.name).waivable:
-            scope.add("waiver-refused", f"findings of '{rule.name}' cannot be waived: they mean the file was not "
-                      "read as a model, so nothing about it was checked", rule.span, anchors.waive_reference(rule.name),
-                      hint="remove this waiver and fix what the rule reports")
+            why = ("they judge the waivers themselves" if rule.name in ("unused-waiver", "waiver-refused") else
+                   "they mean the file was not read as a model, so nothing about it was checked")
+            scope.add("waiver-refused", f"findings of '{rule.name}' cannot be waived: {why}", rule.span,
+                      anchors.waive_reference(rule.name), hint="remove this waiver and fix what the rule reports")
         elif at is not None and at.name not in point_names:
             scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,
                       anchors.about("waive", "point", at.name), hint=_suggest(at.name, point_names) or _choices("points", point_names))
         elif not (st.doc or "").strip():
             scope.add("syntax", "a waiver needs a reason", st.span, anchors.about("waive", rule.name, "reason"))
+        elif (first := seen.get((rule.name, at.name if at else None))) is not None:
+            where = f" at {at.name}" if at else ""
+            scope.add("unused-waiver", f"the waiver of '{rule.name}'{where} repeats the one on line {first.line}: it "
+                      "silences nothing that one does not", st.span,
+                      anchors.about("waive", rule.name, "again", "line", st.span.line),
+                      hint="keep one waiver per rule and point, with the reason that holds")
         else:
             waivers.append(Waiver(rule.name, at.name if at else None, (st.doc or "").strip(), st.span))
+            seen[(rule.name, at.name if at else None)] = st.span
     return waivers
 
 

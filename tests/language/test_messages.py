@@ -272,3 +272,11 @@ def test_atan2_arguments_are_plural() -> None:
     text = "plant a\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput u in -1 .. 1\nrate x = v\nrate v = u + atan2(x, v)\noutput y = x\n"
     (f,) = [f for f in analyse_bytes(text.encode()).findings if f.rule == "singular-model"]
     assert f.message.startswith("the atan2 arguments x, v (both zero) in rate v vanish together inside the envelope")
+
+
+def test_a_model_without_states_is_not_a_plant() -> None:
+    """An empty plant used to pass, and a stateless one gave "k = 0..-1" and "rank 0 < 0"."""
+    (f,) = [f for f in findings("plant empty\n") if f.severity.value == "error"]
+    assert f.rule == "syntax" and f.message == "the model declares no states: there is no dynamics to analyse"
+    stateless = findings("plant p\ninput u\noutput y = 1\nexpect relative_degree(y) = 1\n")
+    assert [f.rule for f in stateless if f.severity.value == "error"] == ["syntax"]

@@ -147,6 +147,21 @@ def test_crlf_and_bom_read_like_lf() -> None:
     assert crlf.analysis == lf.analysis
 
 
+def test_lone_carriage_returns_are_refused_where_the_first_one_is() -> None:
+    """SARIF 2.1.0 text regions count CR, LF and CRLF each as a line end (the OASIS
+    specification, from memory); a file with lone CRs would get lines and columns that
+    disagree with every viewer's."""
+    raw = analyse_bytes(VALID.replace("\n", "\r").encode(), Config())
+    (f,) = raw.findings
+    assert f.rule == "syntax" and f.message.startswith("a lone carriage return (CR) ends a line here")
+    first_line = VALID.split("\n")[0]
+    assert (f.span.line, f.span.column) == (1, len(first_line) + 1)
+    lines = VALID.split("\n")
+    stray_text = "\r\n".join(lines[:2]) + "\r\n" + lines[2] + "\r" + "\n".join(lines[3:])
+    stray = analyse_bytes(stray_text.encode(), Config())
+    assert [g.rule for g in stray.findings] == ["syntax"] and stray.findings[0].span.line == 3
+
+
 def test_command_line_on_every_case(tmp_path: Path) -> None:
     """One run over all the files: exit 0/1, no traceback, one report per file."""
     paths = []

@@ -207,6 +207,10 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
     ranged = _ranges(scope, body, ranged)
     states = _owned_names(scope, by_kind.get("state", []))
     inputs = _owned_names(scope, by_kind.get("input", []))
+    if not by_kind.get("state"):
+        scope.add("syntax", "the model declares no states: there is no dynamics to analyse",
+                  header.name_span or header.span, anchors.problem("no states"),
+                  hint="declare the plant's states (`state x in LO .. HI`) and their rates (`rate x = ...`)")
     _envelope_span(scope, by_kind.get("state", []))
     dynamic = set(states) | set(inputs) | set(ranged)
     _definitions(scope, by_kind.get("let", []), dynamic)

@@ -215,7 +215,20 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
         line = text.count("\n", 0, nul) + 1
         col = nul - (text.rfind("\n", 0, nul) + 1) + 1
         return None, _syntax("file contains a NUL byte; is it a binary file?", Span.point(line, col), anchor=anchors.problem("nul byte"))
+    lone = _LONE_CR.search(text)
+    if lone is not None:
+        # other tools (SARIF viewers, editors) count a lone CR as a line end and plantlint
+        # would not: the lines and columns of every finding would disagree with them
+        at = lone.start()
+        line = text.count("\n", 0, at) + 1
+        col = at - (text.rfind("\n", 0, at) + 1) + 1
+        return None, _syntax("a lone carriage return (CR) ends a line here; plantlint reads LF or CRLF line ends",
+                             Span.point(line, col), hint="save the file with LF (or CRLF) line ends",
+                             anchor=anchors.problem("lone carriage return"))
     return text, None
+
+
+_LONE_CR = re.compile(r"\r(?!\n)")
 
 
 _TOKEN = re.compile(r'#[^\n]*|"[^"\n]*"?|\[[^\[\]\n]*\]?|[A-Za-z0-9_.]+|\S')

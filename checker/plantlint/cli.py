@@ -75,7 +75,9 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: the configured root)")
     check.add_argument("--format", choices=("text", "lines", "json", "sarif", "markdown"), default="text",
                        help="report format (default: text; markdown: a summary for a merge-request comment)")
-    check.add_argument("--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    check.add_argument("--output", metavar="FILE", help="write the report to FILE instead of standard output "
+                       "(a json or sarif report to a file also lists the findings on standard output, one "
+                       "per line, for the CI log)")
     check.add_argument("--only", metavar="IDS", help="comma-separated rule ids to report (all others are dropped)")
     check.add_argument("--skip", metavar="IDS", help="comma-separated rule ids to drop")
     check.add_argument("--fail-on", choices=("error", "warning", "note"),

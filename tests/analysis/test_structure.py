@@ -581,3 +581,35 @@ def test_arm_singularity_points_at_the_elbow_range() -> None:
     (singular,) = [f for f in analyse_bytes(ARM_TIP).findings if f.rule == "envelope-singular"]
     assert "q2 = 0" in singular.message
     assert singular.span is not None and singular.span.line == 5  # state q2, not q1 on line 4
+
+
+UNICYCLE = """
+# invented: a kinematic cart with forward speed and turn rate, position outputs
+plant cart
+state px in -5 .. 5
+state py in -5 .. 5
+state th in -3 .. 3
+input v in -1 .. 1
+input w in -2 .. 2
+rate px = v*cos(th)
+rate py = v*sin(th)
+rate th = w
+output xo = px
+output yo = py
+expect regular
+"""
+
+
+def test_a_decoupling_matrix_singular_everywhere_is_not_described_as_one_singular_spot() -> None:
+    """The envelope claim on a plant whose decoupling matrix has generic rank 1 names the
+    rank, not "singular at px = 0, py = 0, th = 0" as if one point were the trouble."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    # reference, sympy done by hand: the decoupling matrix [[cos th, 0], [sin th, 0]]
+    # (the outputs' first derivatives, differentiated in v and w) has determinant 0
+    th = sp.Symbol("th")
+    assert sp.Matrix([[sp.cos(th), 0], [sp.sin(th), 0]]).det() == 0
+    raw = analyse_bytes(UNICYCLE.encode())
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert claim.message == ("`expect regular` does not hold: the decoupling matrix is singular everywhere (generic "
+                             "rank 1 for 2 outputs; see the decoupling-singular finding)")

@@ -454,6 +454,10 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
         elif env is None or env.regular is None:
             out.append((None, Undecided("regularity over the envelope could not be proven within its budget "
                                         "(see the envelope-unproven finding)")))
+        elif (env.regular is False and a.structure.rank_certain and a.structure.generic_rank is not None
+              and a.structure.generic_rank < a.kernel.plant.p):
+            out.append((None, f"the decoupling matrix is singular everywhere (generic rank {a.structure.generic_rank} for "
+                              f"{a.kernel.plant.p} outputs; see the decoupling-singular finding)"))
         elif env.regular is False:
             where = show_point(env.witness or {})
             out.append((None, "the relative degree is not well defined everywhere in the envelope"

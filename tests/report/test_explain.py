@@ -223,3 +223,30 @@ def test_explain_takes_the_budget_and_configuration_as_check_does(tmp_path: Path
     assert "0.2 s budget" in out.getvalue()
     assert explain_file(SAMPLE, None, "text", io.StringIO(), color=False, errors=err,
                         config_file=tmp_path / "missing.toml") == 2
+
+
+TRIG = """plant trig "an input gain that is zero by sin^2 + cos^2 = 1 (invented)"
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u in -1 .. 1
+rate x1 = x2 + u*(sin(x2)^2 + cos(x2)^2 - 1)
+rate x2 = -x1 + u
+output y = x1
+"""
+
+
+def test_an_entry_taken_as_zero_is_shown_as_zero_with_the_form_it_was_formed_in(tmp_path: Path) -> None:
+    import sympy as sp
+
+    # reference, sympy's own simplification: the input gain of x1 is zero identically
+    x2 = sp.Symbol("x2", real=True)
+    assert sp.simplify(sp.sin(x2) ** 2 + sp.cos(x2) ** 2 - 1) == 0
+    model = tmp_path / "trig.plant"
+    model.write_text(TRIG, encoding="utf-8")
+    out = io.StringIO()
+    explain_file(model, None, "json", out, color=False)
+    (row0,) = [r for r in json.loads(out.getvalue())["lie_derivatives"] if r["k"] == 0]
+    assert row0["zero"] == "proven" and row0["expr"] != "0"
+    out = io.StringIO()
+    explain_file(model, None, "text", out, color=False)
+    assert "L_g y             0  (identically; as formed: " in out.getvalue()

@@ -376,12 +376,18 @@ def _symbolic_derivation(a: Analysis) -> dict[str, Any]:
     k, st = a.kernel, a.structure
     plant = k.plant
     table = []
+    uncertain = set(k.uncertain)
     for i, out in enumerate(st.outputs):
         last = (out.relative_degree or plant.n) - 1
         for order in range(0, last + 1):
             for j in range(plant.m):
+                expr = k.lglf(j, i, order)
+                # below the relative degree the analysis took every entry as zero: say so where
+                # the symbolic form does not show it (sin(x)^2 + cos(x)^2 - 1)
+                below = out.relative_degree is None or order < out.relative_degree - 1
+                zero = None if not below or expr == 0 else ("unconfirmed" if expr in uncertain else "proven")
                 table.append({"output": out.name, "input": str(plant.inputs[j]), "k": order,
-                              "name": lie_name(k, j, i, order), "expr": k.lglf(j, i, order)})
+                              "name": lie_name(k, j, i, order), "expr": expr, "zero": zero})
     entries = [row["expr"] for row in table]
     A = st.decoupling
     matrix = list(A) if A is not None else []

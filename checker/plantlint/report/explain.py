@@ -147,7 +147,12 @@ def _render_relative_degree(console: Any, d: dict[str, Any]) -> None:
     table.add_column("Lie derivative")
     table.add_column("value")
     for row in d["lie_derivatives"]:
-        table.add_row(row["output"], str(row["k"]), row["name"], row["expr"])
+        value = row["expr"]
+        if row.get("zero") == "proven":
+            value = f"0  (identically; as formed: {value})"
+        elif row.get("zero") == "unconfirmed":
+            value = f"0 at every sampled point, not proven  (as formed: {value})"
+        table.add_row(row["output"], str(row["k"]), row["name"], value)
     if d["lie_derivatives"]:
         console.print(table)
     for out, r in d["relative_degree"].items():

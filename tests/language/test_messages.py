@@ -280,3 +280,20 @@ def test_a_model_without_states_is_not_a_plant() -> None:
     assert f.rule == "syntax" and f.message == "the model declares no states: there is no dynamics to analyse"
     stateless = findings("plant p\ninput u\noutput y = 1\nexpect relative_degree(y) = 1\n")
     assert [f.rule for f in stateless if f.severity.value == "error"] == ["syntax"]
+
+
+def test_a_function_of_a_number_outside_its_domain_is_named_where_it_is_written() -> None:
+    import math
+
+    # reference, Python's math library: none of these has a real value
+    for bad in (lambda: math.log(0), lambda: math.sqrt(-1), lambda: math.acos(2)):
+        try:
+            bad()
+        except ValueError:
+            continue
+        raise AssertionError("expected a domain error")
+    text = "plant p\nstate x in -1 .. 1\ninput u\nrate x = u + log(0) + sqrt(-1) + acos(2)\noutput y = x\n"
+    found = [(f.span.column, f.message) for f in findings(text) if f.rule == "singular-model"]
+    assert found == [(14, "log(0) in rate x has no real value, so rate x is undefined for every state"),
+                     (23, "sqrt(-1) in rate x has no real value, so rate x is undefined for every state"),
+                     (34, "acos(2) in rate x has no real value, so rate x is undefined for every state")]

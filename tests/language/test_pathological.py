@@ -53,6 +53,7 @@ CASES: dict[str, tuple[Callable[[], bytes], str | None, int | None]] = {
     "ten_megabytes": (lambda: b"plant p\n" + b"# padding padding\n" * (10 * 1024 * 1024 // 18), "syntax", 1),
     "nul_byte": (lambda: b"plant p\nstate x\x00 in -1 .. 1\n", "syntax", 2),
     "invalid_utf8": (lambda: b"plant p\nstate \xff\xfe x\n", "syntax", 2),
+    "utf16": (lambda: "plant p\nstate x\n".encode("utf-16"), "syntax", 1),
     "long_name": (lambda: ("plant p\nstate " + "a" * 100_000 + " in -1 .. 1\n").encode(), "syntax", 2),
     "unterminated_string": (lambda: b'plant p "a title\nstate x\n', "syntax", 1),
     "empty_file": (lambda: b"", "syntax", 1),
@@ -120,7 +121,7 @@ def test_messages_say_what_is_wrong() -> None:
     """Each hostile file names its problem (the words a user searches for)."""
     words = {
         "huge_exponent": "exponent", "nested_parentheses": "nested", "ten_megabytes": "MB",
-        "nul_byte": "NUL", "invalid_utf8": "UTF-8", "long_name": "name", "unterminated_string": "closing",
+        "nul_byte": "NUL", "invalid_utf8": "UTF-8", "utf16": "UTF-16", "long_name": "name", "unterminated_string": "closing",
         "empty_file": "empty", "huge_literal": "out of range", "tower_of_powers": "exponent",
         "many_signs": "signs", "long_sum": "tokens", "many_statements": "tokens",
         "tower_through_a_constant": "too large", "tower_in_a_parameter": "too large",

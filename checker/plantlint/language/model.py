@@ -588,7 +588,14 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
     # a definition defined for no state makes everything that uses it so: reported once, where
     # it is written, and marked everywhere (the analysis needs every rate and output defined)
     inherited = any(anchors.let(ref.name) in scope.undefined for ref in expr.names)
-    if value.has(sp.zoo, sp.nan):
+    if expr.undefined_calls and not inherited and (value.has(sp.zoo, sp.nan) or _not_real(value) is not None):
+        for span, call in sorted(expr.undefined_calls, key=lambda c: (c[0].line, c[0].column)):
+            scope.add("singular-model", f"{_show(call)} in {where} has no real value, so {where} is undefined for "
+                      "every state", span, anchors.about(where, "undefined", "call", span.line, span.column),
+                      hint=_DOMAIN_HINT)
+        scope.undefined.append(where)
+        value = value.xreplace({sp.zoo: sp.Integer(0), sp.nan: sp.Integer(0)})
+    elif value.has(sp.zoo, sp.nan):
         scope.add("singular-model", f"{where} divides by zero for every state", expr.span,
                   anchors.about(where, "division", "by", "zero"),
                   hint="a denominator is zero once the constants and parameters are put in: check their values")

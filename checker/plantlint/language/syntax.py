@@ -103,6 +103,9 @@ class Expression:
     #: calls and powers whose exact value is not smooth although the function is: sqrt(x^2)
     #: is abs(x) for real x (span, what was written, unevaluated; its value)
     kinks: tuple[tuple[Span, sp.Expr, sp.Expr], ...] = ()
+    #: calls of numbers outside the function's domain, as written: (span, log(0)) or
+    #: (span, sqrt(-1)); the model finding points at them rather than at the whole expression
+    undefined_calls: tuple[tuple[Span, sp.Expr], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -201,6 +204,10 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
     try:
         text = data.decode("utf-8")
     except UnicodeDecodeError as exc:
+        if data[:2] in (b"\xff\xfe", b"\xfe\xff"):
+            return None, _syntax("file is UTF-16 (it starts with a UTF-16 byte-order mark); plant models are UTF-8",
+                                 Span(1, 1, 1, 2), hint="save the file as UTF-8",
+                                 anchor=anchors.problem("utf-16"))
         line = data.count(b"\n", 0, exc.start) + 1
         col = exc.start - (data.rfind(b"\n", 0, exc.start) + 1) + 1
         return None, _syntax(
@@ -659,6 +666,7 @@ class _ExpressionBuilder:
         self.unknown: list[Finding] = []  # unknown functions: every one is reported, in order
         self.singular: list[sp.Expr] = []  # singular parts as built (see Expression.hidden)
         self.kinks: list[tuple[Span, sp.Expr, sp.Expr]] = []
+        self.undefined_calls: list[tuple[Span, sp.Expr]] = []
 
     def build(self, root: Tree | Token) -> Expression:
         for node in _operands_first(root):
@@ -671,7 +679,8 @@ class _ExpressionBuilder:
         if self.singular:
             shown = set(sp.preorder_traversal(value))
             hidden = tuple(p for p in dict.fromkeys(self.singular) if p not in shown)
-        return Expression(value, _span(root), tuple(self.names), tuple(self.calls), root, hidden, tuple(self.kinks))
+        return Expression(value, _span(root), tuple(self.names), tuple(self.calls), root, hidden, tuple(self.kinks),
+                          tuple(self.undefined_calls))
 
     def _singular(self, part: sp.Expr) -> None:
         """Remember a part that is undefined somewhere as written (it may be simplified away)."""
@@ -737,6 +746,8 @@ class _ExpressionBuilder:
                       else (lambda: getattr(sp, fname)(*args, evaluate=False)))
         if fname in _SINGULAR_FUNCTIONS:
             self._singular(as_written() if fname == "sqrt" else value)
+            if not value.free_symbols and (value.has(sp.zoo, sp.nan) or value.is_extended_real is False):
+                self.undefined_calls.append((span, as_written()))
         if fname in SMOOTH_FUNCTIONS:
             self._smooth_or_kink(as_written, args, value, span)
         return value

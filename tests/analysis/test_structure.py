@@ -613,3 +613,37 @@ def test_a_decoupling_matrix_singular_everywhere_is_not_described_as_one_singula
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert claim.message == ("`expect regular` does not hold: the decoupling matrix is singular everywhere (generic "
                              "rank 1 for 2 outputs; see the decoupling-singular finding)")
+
+
+ARM = """
+# invented: a two-link arm with its elbow range through the stretched-out pose q2 = 0
+plant arm
+const l1 = 0.5
+const l2 = 0.4
+state q1 in -1.5 .. 1.5
+state q2 in -0.2 .. 2.8
+state w1 in -3 .. 3
+state w2 in -3 .. 3
+input tau1
+input tau2
+rate q1 = w1
+rate q2 = w2
+rate w1 = tau1 - w1/10
+rate w2 = tau2 - w2/20
+output px = l1*cos(q1) + l2*cos(q1 + q2)
+output py = l1*sin(q1) + l2*sin(q1 + q2)
+"""
+
+
+def test_a_singular_set_through_a_simple_point_is_reported_at_that_point_exactly() -> None:
+    """The arm's decoupling determinant is l1 l2 sin(q2) (the Jacobian of the tip position,
+    a textbook result for two-link arms, from memory; sympy below): bisection alone stops
+    at q2 = -1.6e-38, the exact zero is q2 = 0."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    q1, q2 = sp.symbols("q1 q2")
+    l1, l2 = sp.Rational(1, 2), sp.Rational(2, 5)
+    tip = sp.Matrix([l1 * sp.cos(q1) + l2 * sp.cos(q1 + q2), l1 * sp.sin(q1) + l2 * sp.sin(q1 + q2)])
+    assert sp.simplify(tip.jacobian([q1, q2]).det() - l1 * l2 * sp.sin(q2)) == 0
+    (f,) = [f for f in analyse_bytes(ARM.encode()).findings if f.rule == "envelope-singular"]
+    assert "q2 = 0," in f.message and f.message.split(" vanishes at ")[1].split(")")[0].endswith("(exactly")

@@ -349,6 +349,12 @@ def certify_nonzero(
                 a, c = points[signs.index(1)], points[signs.index(-1)]
                 found = _bracket_zero(ev, a, c)
                 if found is not None:
+                    snapped = _simple_point(found)
+                    if snapped is not None and search.exact_checks < MAX_EXACT_CHECKS:
+                        # q2 = -1.6e-38 next to a zero that is exactly at q2 = 0: say the exact one
+                        search.exact_checks += 1
+                        if ev.exactly_zero(snapped, [0]):
+                            return "violated", (tuple(float(v) for v in snapped), True)
                     return "violated", (found, False)
         return "split", None
 
@@ -391,6 +397,20 @@ def certify_sign(
         return "split", None
 
     return search.run(decide)
+
+
+def _simple_point(point: Sequence[float]) -> list[sp.Rational] | None:
+    """The simple rationals (denominator up to 10^4) within 1e-9 (relative) of each
+    coordinate, or None when a coordinate has none."""
+    from fractions import Fraction
+
+    out = []
+    for x in point:
+        q = Fraction(x).limit_denominator(10**4)
+        if abs(float(q) - x) > 1e-9 * max(1.0, abs(x)):
+            return None
+        out.append(sp.Rational(q.numerator, q.denominator))
+    return out
 
 
 def _bracket_zero(ev: _Evaluator, positive: tuple[float, ...], negative: tuple[float, ...]) -> tuple[float, ...] | None:

@@ -219,3 +219,28 @@ def test_rates_defined_only_apart_are_reported_on_the_plant() -> None:
     (only,) = raw.findings
     assert only.rule == "singular-model" and "never all defined at once" in only.message
     assert only.span.line == 3  # the plant line
+
+
+def test_a_polynomial_of_huge_degree_is_not_multiplied_out() -> None:
+    """a_(i+1) = a_i^2 + a_i, twelve times: degree 2^11 in x + v. The relative degree is 2 = n,
+    so nothing needs the polynomial multiplied out; the analysis used to spend its whole
+    budget doing so (a mutant reproducer). sympy's Poly is the reference for the degree."""
+    from plantlint.kernel.lie import _degree_bound
+
+    x, v = sp.symbols("x v")
+    a = x + v
+    for _ in range(3):
+        a = a * a + a
+    assert _degree_bound(a) == sp.Poly(sp.expand(a), x, v).total_degree() == 8
+    assert _degree_bound(sp.sin(x) + x) == float("inf")
+    lets = "".join(f"let a{i} = a{i - 1}*a{i - 1} + a{i - 1}\n" for i in range(1, 12))
+    text = ("plant deep\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput u in -1 .. 1\nlet a0 = x + v\n" + lets
+            + "rate x = v\nrate v = u + a11\noutput y = x\npoint rest: x = 0, v = 0\nexpect relative_degree(y) = 2\n")
+    from plantlint.kernel.lie import Kernel
+    from plantlint.run.pipeline import read_model
+
+    model, _ = read_model(text.encode())
+    assert not Kernel(model.plant()).polynomial_ring  # the tree route: only what is asked for
+    raw = analyse_bytes(text.encode())
+    assert "claims" in raw.stages
+    assert not [f for f in raw.findings if f.rule == "expectation-failed"]

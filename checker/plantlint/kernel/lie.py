@@ -17,6 +17,7 @@ Zero testing follows the two-stage rule of the theory notes:
 from __future__ import annotations
 
 import hashlib
+import math
 import random
 from dataclasses import dataclass
 from fractions import Fraction
@@ -529,6 +530,11 @@ class _PolynomialTowers:
         symbols = list(kernel.free_symbols())
         if not symbols:
             return None
+        if any(_degree_bound(e) > POLYNOMIAL_DEGREE_LIMIT for e in (*kernel.f, *(e for col in kernel.g for e in col),
+                                                                    *kernel.h)):
+            # (a^2 + a)^2 + ... nested twelve times has degree 4096: multiplied out it has
+            # millions of terms; the tree route forms only what is asked for
+            return None
         R, *gens = ring(symbols, QQ)
         by_symbol = dict(zip(symbols, gens))
         try:
@@ -604,6 +610,38 @@ def bounded_equals_zero(exact: sp.Expr) -> ZeroDecision:
         # mpmath: no answer, so no claim rests on it
         return zd.UNDECIDED
     return zd.UNDECIDED if answer is None or answer is LATE else zd.exactly(bool(answer), "equals")
+
+
+#: Polynomials of higher total degree are not multiplied out into the sparse ring.
+POLYNOMIAL_DEGREE_LIMIT = 64
+
+
+def _degree_bound(e: sp.Expr) -> float:
+    """An upper bound of the total degree of a polynomial (inf for anything else), in one
+    pass over the distinct sub-expressions (shared ones are not walked twice)."""
+    memo: dict[sp.Basic, float] = {}
+    stack: list[tuple[sp.Basic, bool]] = [(e, False)]
+    while stack:
+        node, ready = stack.pop()
+        if node in memo:
+            continue
+        if not ready and node.args:
+            stack.append((node, True))
+            stack.extend((a, False) for a in node.args if a not in memo)
+            continue
+        if node.is_Symbol:
+            memo[node] = 1.0
+        elif node.is_Number:
+            memo[node] = 0.0
+        elif node.is_Add:
+            memo[node] = max(memo[a] for a in node.args)
+        elif node.is_Mul:
+            memo[node] = sum(memo[a] for a in node.args)
+        elif node.is_Pow and node.exp.is_Integer and node.exp >= 0:
+            memo[node] = memo[node.base] * int(node.exp)
+        else:
+            memo[node] = math.inf
+    return memo[e]
 
 
 def has_symbolic_denominator(e: sp.Expr) -> bool:

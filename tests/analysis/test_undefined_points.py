@@ -244,3 +244,22 @@ def test_a_polynomial_of_huge_degree_is_not_multiplied_out() -> None:
     raw = analyse_bytes(text.encode())
     assert "claims" in raw.stages
     assert not [f for f in raw.findings if f.rule == "expectation-failed"]
+
+
+def test_a_characteristic_polynomial_beyond_double_range_does_not_stop_the_analysis() -> None:
+    """The demo palletizer with a shoulder friction of 1e300 (a mutant that stopped the
+    linearisation with numpy's "Array must not contain infs or NaNs"): the pole search
+    falls back to the companion matrix in mpmath's exponent range. Reference for the
+    largest pole, by hand: about -b1 over the shoulder inertia, so of the order of -1e299."""
+    from conftest import REPO
+
+    path = REPO / "example_repo" / "models" / "handling" / "palletizer_arm.plant"
+    text = path.read_text(encoding="utf-8").replace("param b1  = 2.0 ", "param b1  = 1e300 ")
+    assert "1e300" in text
+    raw = analyse_bytes(text.encode())
+    assert raw.stop is None and "claims" in raw.stages
+    for point in raw.analysis["points"].values():
+        lin = point["linearisation"]
+        assert lin["status"] in ("computed", "undefined")
+        if lin["status"] == "computed":
+            assert min(re for re, _ in lin["poles"]) < -1e297

@@ -27,6 +27,8 @@ inconsistency of the checker.
 
 from __future__ import annotations
 
+import math
+
 from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from math import gcd, lcm
@@ -653,10 +655,25 @@ def _polyroots(coeffs: list[mpmath.mpf]) -> list[complex]:
     try:
         roots = mpmath.polyroots(list(reversed(coeffs)), maxsteps=400, extraprec=8 * DIGITS)
     except mpmath.libmp.NoConvergence:
-        import numpy as np
+        # the eigenvalues of the companion matrix, in mpmath's arbitrary exponent range
+        # (numpy's floats overflow on coefficients like 1e300^2: a mutant reproducer)
+        lead, *rest = list(reversed(coeffs))
+        n = len(rest)
+        companion = mpmath.matrix(n, n)
+        for i in range(1, n):
+            companion[i, i - 1] = 1
+        for i in range(n):
+            companion[i, n - 1] = -coeffs[i] / lead
+        roots = list(mpmath.eig(companion, left=False, right=False))
+    # complex() of a root beyond double range raises OverflowError: the caller reports it so
+    return [_clean(_finite_complex(z)) for z in (roots if isinstance(roots, list) else [roots])]
 
-        roots = list(np.roots([float(c) for c in reversed(coeffs)]))
-    return [_clean(complex(z)) for z in (roots if isinstance(roots, list) else [roots])]
+
+def _finite_complex(z: object) -> complex:
+    c = complex(z)  # type: ignore[arg-type]
+    if not (math.isfinite(c.real) and math.isfinite(c.imag)):
+        raise OverflowError("a root beyond double range")
+    return c
 
 
 # -- the cross-check --------------------------------------------------------------------------

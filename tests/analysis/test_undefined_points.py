@@ -263,3 +263,20 @@ def test_a_characteristic_polynomial_beyond_double_range_does_not_stop_the_analy
         assert lin["status"] in ("computed", "undefined")
         if lin["status"] == "computed":
             assert min(re for re, _ in lin["poles"]) < -1e297
+
+
+def test_display_values_of_large_constant_expressions_come_from_balls() -> None:
+    """A linearisation entry built from acos(7/10) and sqrt(3) (600 operations, from a mutant
+    whose analysis spent 16 s in sympy's evalf) is shown from a 128-bit ball; mpmath at 30
+    digits is the reference value."""
+    import mpmath
+
+    from plantlint.analysis.serialise import _display_float
+
+    a = sp.acos(sp.Rational(7, 10))
+    e = sp.sqrt(3) * (sp.Rational(42, 25) + 32 * a / 5) / (1 + a**2) - sp.Rational(1, 7)
+    with mpmath.workdps(30):
+        a_ref = mpmath.acos(mpmath.mpf(7) / 10)
+        ref = mpmath.sqrt(3) * (mpmath.mpf(42) / 25 + 32 * a_ref / 5) / (1 + a_ref**2) - mpmath.mpf(1) / 7
+    assert _display_float(e) == float(ref)
+    assert _display_float(sp.sin(sp.pi) + sp.cos(sp.pi / 2)) == 0.0  # an exact zero, quickly

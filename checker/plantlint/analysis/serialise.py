@@ -171,6 +171,27 @@ def _floats(rows: Sequence[Sequence[sp.Expr]]) -> list[list[float | str]]:
     return [[json_number(e) for e in row] for row in rows]
 
 
+def _display_float(e: "sp.Expr") -> float:
+    """A constant expression's value for display: the midpoint of a 128-bit ball (sympy's
+    evalf chases 20 digits of an exact zero for seconds; a mutant spent 16 s here)."""
+    import flint
+    import sympy as sp
+
+    from plantlint.kernel.balls import UnsupportedExpression, to_arb
+
+    old = flint.ctx.prec
+    flint.ctx.prec = 128
+    try:
+        ball = to_arb(e)
+        if ball.is_finite() and ball.rad() < abs(ball.mid()) * 2.0**-60 + 2.0**-100:
+            return float(ball.mid())
+    except (UnsupportedExpression, ArithmeticError, ValueError):
+        pass
+    finally:
+        flint.ctx.prec = old
+    return float(sp.N(e, 20))
+
+
 def json_number(e: "sp.Expr") -> float | str:
     """An exact number for the JSON report: a float, or (beyond double range, where a float
     would read inf or 0) the decimal text, as docs/report-format.md promises."""
@@ -178,7 +199,7 @@ def json_number(e: "sp.Expr") -> float | str:
 
     from plantlint.language.printer import show_number
 
-    number = float(e) if e.is_Rational else float(sp.N(e, 20))
+    number = float(e) if e.is_Rational else _display_float(e)
     if math.isfinite(number) and (number != 0 or e == 0):
         return number
     if e.is_Rational:

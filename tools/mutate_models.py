@@ -33,7 +33,7 @@ SOURCES = ("example_repo/models/**/*.plant", "tests/fixtures/models/*.plant")
 SMALL_BENCHMARKS = re.compile(r"_(1|2|3)\.plant$|hovercraft|quadrotor|arm_1")
 FUNCTIONS = ("sin", "cos", "tan", "exp", "log", "sqrt", "atan", "tanh", "abs", "asin", "acos", "sinh", "cosh")
 NUMBERS = ("0", "0.0", "-1", "1e-300", "1e300", "2", "1/3", "(0)", "1e-9", "-0.5")
-SUSPICIOUS = re.compile(r"\bzoo\b|\bnan\b|\boo\b|ComplexInfinity|Traceback")
+SUSPICIOUS = re.compile(r"\bzoo\b|\bnan\b|\boo\b|~?-?\binf\b|ComplexInfinity|Traceback", re.IGNORECASE)
 
 
 def sources() -> list[Path]:

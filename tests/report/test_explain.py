@@ -250,3 +250,15 @@ def test_an_entry_taken_as_zero_is_shown_as_zero_with_the_form_it_was_formed_in(
     out = io.StringIO()
     explain_file(model, None, "text", out, color=False)
     assert "L_g y             0  (identically; as formed: " in out.getvalue()
+
+
+def test_a_regular_envelope_without_a_margin_says_why(tmp_path: Path) -> None:
+    """L_g L_f y = (x + 2)/(1 + x^2) (by hand) is proven non-zero factor by factor; its
+    margin needs a bound of 1 + x^2 from above, which is not computed: say so, not nothing."""
+    model = tmp_path / "q.plant"
+    model.write_text("plant q\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput u in -1 .. 1\nrate x = v\n"
+                     "rate v = u*(x + 2)/(1 + x^2)\noutput y = x\n", encoding="utf-8")
+    out = io.StringIO()
+    explain_file(model, None, "text", out, color=False)
+    (line,) = [ln for ln in out.getvalue().splitlines() if "proven regular" in ln]
+    assert "no margin stated (a factor of the term is a denominator" in line

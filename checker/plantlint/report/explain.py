@@ -175,6 +175,8 @@ def _render_envelope(console: Any, env: dict[str, Any]) -> None:
         line = f"  {verdict}" + (f" ({what})" if what else "")
     if env.get("margin") is not None:
         line += f"; certified margin {env['margin']:.4g}"
+    elif env.get("regular"):
+        line += "; no margin stated (a factor of the term is a denominator, whose bound from below is not computed)"
     if env.get("boxes"):
         line += f"  [{env['boxes']} box{'es' if env['boxes'] != 1 else ''}, {env['seconds']} s]"
     console.print(line)

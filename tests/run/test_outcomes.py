@@ -10,7 +10,6 @@ forked workers inherit it (the models themselves are invented demo data).
 from __future__ import annotations
 
 import io
-import io
 import json
 import os
 import signal

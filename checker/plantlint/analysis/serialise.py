@@ -195,8 +195,6 @@ def _display_float(e: "sp.Expr") -> float:
 def json_number(e: "sp.Expr") -> float | str:
     """An exact number for the JSON report: a float, or (beyond double range, where a float
     would read inf or 0) the decimal text, as docs/report-format.md promises."""
-    import sympy as sp
-
     from plantlint.language.printer import show_number
 
     number = float(e) if e.is_Rational else _display_float(e)

@@ -69,3 +69,30 @@ def test_what_sympy_keeps_is_not_reported_twice_and_smooth_models_stay_clean() -
     assert found == []
     twice = [f for f in _findings("1/x") if f.rule == "singular-model"]
     assert len(twice) == 1
+
+
+TANKS = """
+# invented: two tanks in series; the flow between them needs h1 > h2, which the ranges allow to fail
+plant tanks
+const g = 9.81
+const a1 = 2e-4
+state h1 in 0.05 .. 0.6
+state h2 in 0.05 .. 0.6
+input q in 0 .. 1e-3
+let q12 = a1*sqrt(2*g*(h1 - h2))
+rate h1 = (q - q12)/0.05
+rate h2 = (q12 - 1.5e-4*sqrt(2*g*h2))/0.05
+output level = h2
+"""
+
+
+def test_a_root_sympy_rearranges_is_one_condition_not_two() -> None:
+    """sympy writes sqrt(2 g (h1 - h2)) as sqrt(2) sqrt(g (h1 - h2)): the part as written and the
+    part in the value differ by a positive constant and have the same zero set (h1 = h2, by
+    hand, inside the ranges), so each rate gets one finding."""
+    found = [f for f in analyse_bytes(TANKS.encode()).findings if f.rule == "singular-model"]
+    assert sorted(f.span.line for f in found) == [10, 11]
+    for f in found:
+        assert "square-root argument" in f.message
+        witness = dict(part.split(" = ") for part in f.message.split("e.g. at ")[1].split(", "))
+        assert witness["h1"] == witness["h2"]

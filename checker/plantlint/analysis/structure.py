@@ -700,10 +700,14 @@ def _model_checks(kernel: Kernel, box: dict[sp.Symbol, Any], clock: _Clock) -> l
     for anchor, expr in places:
         for cond in domain_conditions(expr, symbols):
             kind, e, _ = cond
-            if (anchor, kind, e) in seen:
+            # one condition per zero set: 981*(h1 - h2)/50 > 0 is h1 - h2 > 0 (a part kept as
+            # written and the same part as sympy rearranged it differ by a positive constant)
+            content, primitive = e.as_content_primitive()
+            shape = primitive if content.is_positive else e
+            if (anchor, kind, shape) in seen:
                 continue
-            seen.add((anchor, kind, e))
-            key = (kind, e)
+            seen.add((anchor, kind, shape))
+            key = (kind, shape)
             if key not in verdicts:
                 try:
                     if kind == "nonzero":

@@ -584,7 +584,7 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
         verdict = clock.spent(certify_nonzero([part], box, clock.budget()))
         boxes += verdict.boxes_examined
         if verdict.regular is False:
-            return verdict, [part]
+            return verdict, [part] + _also_zero(parts, part, verdict)
         if verdict.regular is None:
             undecided.append(verdict)
         elif verdict.margin is not None and margin is not None and multiplicity > 0:
@@ -602,13 +602,35 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
 FACTOR_TEXT = 40
 
 
+def _also_zero(parts: list[tuple[sp.Expr, int]], found: sp.Expr, verdict: EnvelopeVerdict) -> list[sp.Expr]:
+    """The other factors that are exactly zero at an exact witness too (r and thd both vanish
+    at r = thd = 0): display only, so that the finding does not name one of them alone."""
+    if not verdict.witness_exact or not verdict.witness:
+        return []
+    at = {sp.Symbol(k, real=True): sp.Rational(v) for k, v in verdict.witness.items()}
+    out = []
+    for part, multiplicity in parts:
+        if part != found and multiplicity > 0 and sp.count_ops(part) <= FACTOR_TEXT // 2:
+            try:
+                if part.xreplace(at) == 0:
+                    out.append(part)
+            except (ArithmeticError, ValueError, TypeError):
+                continue
+    return out
+
+
 def _factor_phrase(culprit: list[sp.Expr], exprs: list[sp.Expr]) -> str:
-    """": its factor F is zero there" when the witness was found on one factor of the
-    term (what to keep away from zero); "" when the whole term vanished or F is long."""
-    if len(culprit) != 1 or culprit == exprs or sp.count_ops(culprit[0]) > FACTOR_TEXT // 2:
+    """": its factor F is zero there" (or "its factors F and G are zero there") when the
+    witness was found on factors of the term (what to keep away from zero); "" when the
+    whole term vanished or a factor is long."""
+    if not culprit or culprit == exprs or any(sp.count_ops(c) > FACTOR_TEXT // 2 for c in culprit):
         return ""
-    text = show_expr(culprit[0], limit=10 * FACTOR_TEXT)
-    return f": its factor {text} is zero there" if len(text) <= FACTOR_TEXT else ""
+    texts = [show_expr(c, limit=10 * FACTOR_TEXT) for c in culprit]
+    if any(len(t) > FACTOR_TEXT for t in texts):
+        return ""
+    if len(texts) == 1:
+        return f": its factor {texts[0]} is zero there"
+    return f": its factors {', '.join(texts[:-1])} and {texts[-1]} are zero there"
 
 
 def _range_to_narrow(kernel: Kernel, culprit: list[sp.Expr], box: dict[sp.Symbol, Any],

@@ -353,3 +353,43 @@ expect minimum_phase at held
     how = "exactly on the imaginary axis" if zd.exact else f"within {zd.tolerance:.3g} of the imaginary axis"
     assert how in zd_finding.message
     assert ("on the imaginary axis" if zd.exact else how) in claim.message
+
+
+FLEX = """
+# invented: a flexible joint (link q1, motor q2), the motor angle measured, tilted link
+plant flex
+const Il = 0.03
+const Jm = 0.004
+const ks = 8
+const MgL = 0.8
+state q1 in -2 .. 2
+state w1 in -5 .. 5
+state q2 in -2 .. 2
+state w2 in -5 .. 5
+input u
+rate q1 = w1
+rate w1 = -(MgL*sin(q1) + ks*(q1 - q2))/Il
+rate q2 = w2
+rate w2 = (ks*(q1 - q2) - w2/100 + u)/Jm
+output motor = q2
+point tilt: q1 = pi/6, w1 = 0, q2 = pi/6 + MgL*sin(pi/6)/ks, w2 = 0
+expect minimum_phase at tilt
+"""
+
+
+def test_eigenvalues_only_near_the_axis_leave_the_claim_not_decided() -> None:
+    """With the motor angle held, the link obeys q1'' = -(MgL sin q1 + ks (q1 - q2))/Il, whose
+    linearisation has eigenvalues +-i sqrt((MgL cos q1 + ks)/Il) (by hand; numpy below). At an
+    irrational point the numeric route finds them within its tolerance of the axis, which
+    neither proves them on it nor off it: the claim is not decided, not failed."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    J = np.array([[0.0, 1.0], [-(0.8 * np.cos(np.pi / 6) + 8) / 0.03, 0.0]])
+    ref = sorted(np.linalg.eigvals(J), key=lambda z: z.imag)
+    raw = analyse_bytes(FLEX.encode())
+    zd = raw.analysis["points"]["tilt"]["zero_dynamics"]
+    assert zd["verdict"] == "critical"
+    ours = sorted((complex(re, im) for re, im in zd["eigenvalues"]), key=lambda z: z.imag)
+    assert np.allclose(ours, ref, atol=1e-9)
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert claim.undecided and "not proven to be on it or off it" in claim.message

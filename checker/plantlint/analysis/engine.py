@@ -497,12 +497,17 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
         elif zd.verdict == "non_minimum_phase":
             out.append((pa.name, f"at point '{pa.name}' the zero dynamics are unstable: eigenvalues "
                                  f"{show_eigenvalues(zd.eigenvalues)}"))
-        elif zd.verdict == "critical":
-            where = ("on the imaginary axis" if zd.exact or zd.tolerance is None
-                     else f"within {zd.tolerance:.3g} of the imaginary axis")
-            out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues {where} "
-                                 f"({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
+        elif zd.verdict == "critical" and (zd.exact or zd.tolerance is None):
+            out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues on the "
+                                 f"imaginary axis ({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
                                  "asymptotic stability"))
+        elif zd.verdict == "critical":
+            # within the numeric route's tolerance of the axis, not proven on it: the claim may
+            # hold (an eigenvalue at -1e-12 is stable) and is not shown to: not decided
+            out.append((pa.name, Undecided(
+                f"at point '{pa.name}' the linearised zero dynamics have eigenvalues within {zd.tolerance:.3g} of "
+                f"the imaginary axis ({show_eigenvalues(zd.eigenvalues)}), not proven to be on it or off it "
+                "(irrational values at the point: the eigenvalues are computed to 40 digits or more, not exactly)")))
         elif zd.verdict == "minimum_phase":
             out.extend(_box_failure(pa, "zero_dynamics"))
     if c.point is None and not any(p.equilibrium.equilibrium for p in points):

@@ -377,19 +377,29 @@ expect minimum_phase at tilt
 """
 
 
-def test_eigenvalues_only_near_the_axis_leave_the_claim_not_decided() -> None:
-    """With the motor angle held, the link obeys q1'' = -(MgL sin q1 + ks (q1 - q2))/Il, whose
-    linearisation has eigenvalues +-i sqrt((MgL cos q1 + ks)/Il) (by hand; numpy below). At an
-    irrational point the numeric route finds them within its tolerance of the axis, which
-    neither proves them on it nor off it: the claim is not decided, not failed."""
+def test_eigenvalues_near_the_axis_fail_the_claim_only_when_an_exact_coefficient_says_so() -> None:
+    """With the motor angle held, the link obeys q1'' = -(MgL sin q1 + ks (q1 - q2) + c q1')/Il,
+    whose linearisation has the characteristic polynomial s^2 + (c/Il) s + (MgL cos q1 + ks)/Il
+    (by hand; sympy and numpy below). At the irrational point q1 = pi/6 the numeric route
+    finds the eigenvalues within its tolerance of the axis. Without link damping (c = 0) the
+    s coefficient is exactly zero, so the polynomial is not Hurwitz (Stodola's necessary
+    condition) and the claim fails, decided. With c = 1e-12 the eigenvalues are stable but
+    within the tolerance: nothing proves either, and the claim is not decided."""
     from plantlint.run.pipeline import analyse_bytes
 
-    J = np.array([[0.0, 1.0], [-(0.8 * np.cos(np.pi / 6) + 8) / 0.03, 0.0]])
-    ref = sorted(np.linalg.eigvals(J), key=lambda z: z.imag)
+    s, c = sp.symbols("s c")
+    stiffness = (sp.Rational(4, 5) * sp.cos(sp.pi / 6) + 8) / sp.Rational(3, 100)
+    J = sp.Matrix([[0, 1], [-stiffness, -c / sp.Rational(3, 100)]])
+    assert J.charpoly(s).all_coeffs()[1].subs(c, 0) == 0
+    ref = sorted(np.linalg.eigvals(np.array(J.subs(c, 0).evalf(), dtype=float)), key=lambda z: z.imag)
     raw = analyse_bytes(FLEX.encode())
     zd = raw.analysis["points"]["tilt"]["zero_dynamics"]
     assert zd["verdict"] == "critical"
     ours = sorted((complex(re, im) for re, im in zd["eigenvalues"]), key=lambda z: z.imag)
     assert np.allclose(ours, ref, atol=1e-9)
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert not claim.undecided and "has no s term (its coefficient is exactly zero), so it is not Hurwitz" in claim.message
+    damped = FLEX.replace("rate w1 = -(MgL*sin(q1) + ks*(q1 - q2))/Il", "rate w1 = -(MgL*sin(q1) + ks*(q1 - q2) + 1e-12*w1)/Il")
+    assert damped != FLEX
+    (claim,) = [f for f in analyse_bytes(damped.encode()).findings if f.rule == "expectation-failed"]
     assert claim.undecided and "not proven to be on it or off it" in claim.message

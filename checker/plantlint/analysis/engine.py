@@ -501,6 +501,10 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
             out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues on the "
                                  f"imaginary axis ({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
                                  "asymptotic stability"))
+        elif zd.verdict == "critical" and zd.not_hurwitz:
+            out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues within "
+                                 f"{zd.tolerance:.3g} of the imaginary axis ({show_eigenvalues(zd.eigenvalues)}) and "
+                                 f"{zd.not_hurwitz}: linearisation cannot show asymptotic stability"))
         elif zd.verdict == "critical":
             # within the numeric route's tolerance of the axis, not proven on it: the claim may
             # hold (an eigenvalue at -1e-12 is stable) and is not shown to: not decided

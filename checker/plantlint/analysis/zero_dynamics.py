@@ -14,7 +14,7 @@ numbers go to mpmath at 40+ digits with a tolerance that is stated in the result
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Sequence
 
 import flint
@@ -22,6 +22,7 @@ import mpmath
 import sympy as sp
 from flint import acb, fmpq, fmpq_mat, fmpz_poly
 
+from plantlint.core.deadline import bounded
 from plantlint.kernel.exact import number_decider, rank as exact_rank, has_undefined
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
@@ -52,6 +53,9 @@ class ZeroDynamics:
     consistent: bool = True  # spec(J) = {0 x r} union spec(zero-dynamics matrix) held
     reason: str = ""
     findings: tuple[Finding, ...] = field(default_factory=tuple)
+    #: on the numeric route, when the eigenvalues are only near the axis: why the exact
+    #: characteristic polynomial cannot be Hurwitz (a coefficient that is exactly zero)
+    not_hurwitz: str | None = None
 
 
 @dataclass
@@ -315,9 +319,43 @@ def _numeric_route(
         with mpmath.workdps(digits):
             result = _numeric_once(name, n, r, data, digits)
         if result.consistent:
-            return result
+            break
     assert result is not None
+    if result.verdict == "critical" and n <= STODOLA_STATES:
+        why = bounded(STODOLA_SECONDS, lambda: _missing_coefficient(data, n, r, decide))
+        if isinstance(why, str):
+            findings = tuple(replace(f, message=f"{f.message}; {why}") if f.rule == "zero-dynamics-critical" else f
+                             for f in result.findings)
+            return replace(result, not_hurwitz=why, findings=findings)
     return result
+
+
+#: Bounds of the exact look at the characteristic polynomial when the numeric route leaves
+#: eigenvalues near the imaginary axis (sympy's charpoly of Df*(x0) with exact constants).
+STODOLA_STATES = 8
+STODOLA_SECONDS = 3.0
+
+
+def _missing_coefficient(data: _PointData, n: int, r: int, decide: "object") -> str | None:
+    """det(sI - Df*(x0)) = s^r p(s), p the zero dynamics' characteristic polynomial, from
+    the exact constants at the point. A Hurwitz polynomial has every coefficient non-zero
+    and of one sign (Stodola's necessary condition; any control text, e.g. Ogata, Modern
+    Control Engineering, Routh's criterion): a coefficient of p proven exactly zero proves
+    that the zero dynamics are not asymptotically stable in their linearisation."""
+    J, _, _ = _assemble(data, lambda M: sp.Matrix(M), lambda A: A.inv(), None)
+    s = sp.Symbol("s")
+    coeffs = [sp.expand(c) for c in J.charpoly(s).all_coeffs()]  # highest power first
+    lowest, p = coeffs[len(coeffs) - r:], coeffs[: len(coeffs) - r]
+    if not all(decide(c).proven_zero for c in lowest):  # type: ignore[operator]
+        return None  # s^r does not divide it exactly (as far as can be shown): say nothing
+    degree = len(p) - 1
+    for k, c in enumerate(p):
+        if k and decide(c).proven_zero:  # type: ignore[operator]
+            power = degree - k
+            term = "constant term" if power == 0 else ("s term" if power == 1 else f"s^{power} term")
+            return (f"the characteristic polynomial of the zero dynamics has no {term} (its coefficient is "
+                    "exactly zero), so it is not Hurwitz")
+    return None
 
 
 def _to_mp(M: sp.Matrix) -> mpmath.matrix:

@@ -651,3 +651,27 @@ def test_a_singular_set_through_a_simple_point_is_reported_at_that_point_exactly
     assert sp.simplify(tip.jacobian([q1, q2]).det() - l1 * l2 * sp.sin(q2)) == 0
     (f,) = [f for f in analyse_bytes(ARM.encode()).findings if f.rule == "envelope-singular"]
     assert "q2 = 0," in f.message and f.message.split(" vanishes at ")[1].split(")")[0].endswith("(exactly")
+
+
+def test_a_relative_degree_read_off_a_linearisation_is_explained() -> None:
+    """The ball and beam has relative degree 3 (L_g L_f^2 pos = 2 B r w, by hand above), which
+    vanishes at rest: the linearisation at a rest point has relative degree 4 (its first
+    non-zero Markov parameter C A^(k-1) B is at k = 4; numpy below). A claim of 4 fails and
+    says where the 4 comes from."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    B, g = 0.7, 9.81
+    A = np.array([[0, 1, 0, 0], [0, 0, -B * g, 0], [0, 0, 0, 1], [0, 0, 0, 0]], dtype=float)
+    b = np.array([0, 0, 0, 1.0])
+    c = np.array([1.0, 0, 0, 0])
+    markov = [c @ np.linalg.matrix_power(A, k - 1) @ b for k in range(1, 5)]
+    assert [k for k, m in enumerate(markov, start=1) if m != 0][0] == 4
+    text = BALL_BEAM.decode() + "point rest: r = 0.2, vr = 0, th = 0, w = 0, a = 0\n" + (
+        "expect relative_degree(pos) = 4\nexpect relative_degree(pos) = 4 at rest\n")
+    claims = sorted(f.message for f in analyse_bytes(text.encode()).findings if f.rule == "expectation-failed")
+    assert claims == [
+        "`expect relative_degree(pos) = 4 at rest` does not hold: at point 'rest' it is not well defined (generic "
+        "relative degree 3); its linearisation there has relative degree 4",
+        "`expect relative_degree(pos) = 4` does not hold: the relative degree of 'pos' is 3; 4 is the relative "
+        "degree of the linearisation at point 'rest', where the nonlinear relative degree is not defined",
+    ]

@@ -426,18 +426,43 @@ def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, 
     generic = a.structure.relative_degree.get(c.output or "")
     if c.point is None:
         if generic != c.value:
-            return [(None, f"the relative degree of '{c.output}' is {_degree(generic)}")]
+            # a value written from a linearisation at a point where the relative degree is
+            # not defined (the ball and beam): say where that number comes from
+            linear = [pa.name for pa in a.points if _linear_degree(a, pa, c.output) == c.value
+                      and (pa.structure is None or pa.structure.relative_degree.get(c.output or "") is None)]
+            origin = (f"; {c.value} is the relative degree of the linearisation at point '{linear[0]}', where the "
+                      "nonlinear relative degree is not defined" if linear else "")
+            return [(None, f"the relative degree of '{c.output}' is {_degree(generic)}{origin}")]
         return []
     out = []
     for pa in _points_for(a, c):
         at = pa.structure.relative_degree.get(c.output or "") if pa.structure else None
         if at != c.value:
-            why = f"it is {_degree(at)} there" if at is not None else (
-                f"it is not well defined there (generic relative degree {_degree(generic)})")
+            linear = _linear_degree(a, pa, c.output) if at is None else None
+            why = f"it is {_degree(at)}" if at is not None else (
+                f"it is not well defined (generic relative degree {_degree(generic)})"
+                + (f"; its linearisation there has relative degree {linear}" if linear is not None else ""))
             out.append((pa.name, f"at point '{pa.name}' {why}"))
         else:
             out.extend(_box_failure(pa, "rows", c.output))
     return out
+
+
+def _linear_degree(a: Analysis, pa: PointAnalysis, output: str | None) -> int | None:
+    """The relative degree of the exact linearisation at the point for one output: the first
+    k with C_i A^(k-1) B non-zero (the pole excess of its transfer functions); None when the
+    linearisation is not exact (rational) or the output never sees the inputs."""
+    lin = pa.linearisation
+    plant = a.kernel.plant
+    if lin is None or lin.status != "computed" or not lin.exact or output not in plant.outputs:
+        return None
+    A, B = sp.Matrix(lin.A), sp.Matrix(lin.B)
+    row = sp.Matrix([lin.C[plant.outputs.index(output)]])
+    for k in range(1, plant.n + 1):
+        if any(e != 0 for e in row * B):
+            return k
+        row = row * A
+    return None
 
 
 def _degree(r: int | None) -> str:

@@ -44,6 +44,7 @@ from plantlint.analysis.structure import (
     Structure,
     analyse_structure,
     certify_envelope,
+    rates_and_outputs,
     structure_at_point,
 )
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
@@ -91,13 +92,10 @@ def nowhere_defined(kernel: Kernel) -> list[Finding]:
     plant = kernel.plant
     symbols = kernel.free_symbols()
     boxes = {**plant.state_box, **plant.param_box}
-    places = [(anchors.rate(s), f"rate {s}", [plant.f[i], *(col[i] for col in plant.g)])
-              for i, s in enumerate(plant.states)]
-    places += [(anchors.output(name), f"output {name}", [h]) for name, h in zip(plant.outputs, plant.h)]
     drawn = 20 * SCREEN_POINTS
     first = {str(k): float(v) for k, v in random_samples(symbols, boxes, kernel.seed, count=1)[0].items()} if symbols else {}
     out = []
-    for anchor, label, exprs in places:
+    for anchor, label, exprs in rates_and_outputs(plant):
         exprs = [e for e in exprs if e != 0]
         try:
             guard = Program(exprs, symbols) if exprs else None

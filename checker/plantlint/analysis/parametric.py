@@ -306,26 +306,24 @@ def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr
     # Rows whose minor is non-zero at the nominal values, in order; the first whose minor is
     # proven non-zero over the whole box serves. A minor that vanishes somewhere in the box
     # proves nothing by itself: other rows may still determine the inputs there.
-    minors: list[tuple[list[int], sp.Matrix, sp.Expr]] = []
+    every: list[tuple[list[int], sp.Matrix, sp.Expr]] = []
     for rows in itertools.islice(itertools.combinations(range(plant.n), k), 200):
         minor = sp.Matrix([[G0[i][j] for j in unknown] for i in rows])
-        det = laplace_det(minor)
-        if decide(det.xreplace(params.nominal)).proven_nonzero:
-            minors.append((list(rows), minor, det))
+        every.append((list(rows), minor, laplace_det(minor)))
+    minors = [m for m in every if decide(m[2].xreplace(params.nominal)).proven_nonzero]
     if not minors:
         raise NotCovered("the inputs left out could not be solved as functions of the parameters")
-    chosen: list[int] | None = None
+    chosen: tuple[list[int], sp.Matrix] | None = None
     for rows, G, det in minors[:MAX_ROW_CHOICES]:
         v = params.clock.spent(certify_nonzero(params.tidy(det), params.box, params.clock.budget()))
         if v.regular:
-            chosen = rows
+            chosen = rows, G
             break
     if chosen is None:
         # no single choice of rows serves the whole box: the inputs are undetermined only
         # where every k x k minor of the input columns vanishes at once
-        every = [params.tidy(laplace_det(sp.Matrix([[G0[i][j] for j in unknown] for i in rows])))
-                 for rows in itertools.islice(itertools.combinations(range(plant.n), k), 200)]
-        v = params.clock.spent(certify_nonzero([e for e in every if e != 0] or [sp.Integer(0)], params.box,
+        dets = [params.tidy(det) for _, _, det in every]
+        v = params.clock.spent(certify_nonzero([e for e in dets if e != 0] or [sp.Integer(0)], params.box,
                                                params.clock.budget()))
         if v.regular is False:
             w = exact_point(params, v.witness or {})
@@ -335,11 +333,11 @@ def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr
                else "they could not be shown to be determined over the whole box within the budget")
         return [], BoxVerdict("undecided", f"the input(s) {names} at the point are not solved as functions of the "
                               f"parameters: {why}")
-    G = next(G for rows, G, _ in minors if rows == chosen)
-    sol = G.LUsolve(sp.Matrix([-c[i] for i in chosen]))
+    rows, G = chosen
+    sol = G.LUsolve(sp.Matrix([-c[i] for i in rows]))
     for a, j in enumerate(unknown):
         values[plant.inputs[j]] = params.tidy(sol[a])
-    return chosen, None
+    return rows, None
 
 
 def _nonzero_at(params: ParameterBox, e: sp.Expr) -> dict[sp.Symbol, sp.Expr] | None:

@@ -19,7 +19,6 @@ analysis modules are imported only by the functions that build it.
 from __future__ import annotations
 
 import math
-from decimal import Context, Decimal
 from typing import TYPE_CHECKING, Any
 
 from plantlint.analysis.stages import STAGES
@@ -174,36 +173,28 @@ def _floats(rows: Sequence[Sequence[sp.Expr]]) -> list[list[float | str]]:
 def _display_float(e: "sp.Expr") -> float:
     """A constant expression's value for display: the midpoint of a 128-bit ball (sympy's
     evalf chases 20 digits of an exact zero for seconds; a mutant spent 16 s here)."""
-    import flint
     import sympy as sp
 
-    from plantlint.kernel.balls import UnsupportedExpression, to_arb
+    from plantlint.kernel.balls import UnsupportedExpression, ball
 
-    old = flint.ctx.prec
-    flint.ctx.prec = 128
     try:
-        ball = to_arb(e)
-        if ball.is_finite() and ball.rad() < abs(ball.mid()) * 2.0**-60 + 2.0**-100:
-            return float(ball.mid())
+        b = ball(e, prec=128)
+        if b.is_finite() and b.rad() < abs(b.mid()) * 2.0**-60 + 2.0**-100:
+            return float(b.mid())
     except (UnsupportedExpression, ArithmeticError, ValueError):
         pass
-    finally:
-        flint.ctx.prec = old
     return float(sp.N(e, 20))
 
 
 def json_number(e: "sp.Expr") -> float | str:
     """An exact number for the JSON report: a float, or (beyond double range, where a float
     would read inf or 0) the decimal text, as docs/report-format.md promises."""
-    from plantlint.language.printer import show_number
+    from plantlint.language.printer import decimal_text, show_number
 
     number = float(e) if e.is_Rational else _display_float(e)
     if math.isfinite(number) and (number != 0 or e == 0):
         return number
-    if e.is_Rational:
-        quotient = Context(prec=17).divide(Decimal(int(e.p)), Decimal(int(e.q)))
-        return format(quotient.normalize(), "g").replace("E", "e")
-    return show_number(e, 17)
+    return decimal_text(e, 17)[0] if e.is_Rational else show_number(e, 17)
 
 
 def _groups_json(groups: Sequence[ModeGroup]) -> list[dict[str, object]]:

@@ -34,6 +34,7 @@ from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.kernel import decision as zd, exact
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.lie import Kernel, matrix_at
+from plantlint.kernel.plant import Plant
 
 #: Expressions up to this size are factored for messages; larger ones are cut.
 READABLE_FACTOR_OPS = 40
@@ -584,7 +585,7 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
         verdict = clock.spent(certify_nonzero([part], box, clock.budget()))
         boxes += verdict.boxes_examined
         if verdict.regular is False:
-            return verdict, [part] + _also_zero(parts, part, verdict)
+            return verdict, [part] + _also_zero(kernel, parts, part, verdict)
         if verdict.regular is None:
             undecided.append(verdict)
         elif verdict.margin is not None and margin is not None and multiplicity > 0:
@@ -602,12 +603,13 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
 FACTOR_TEXT = 40
 
 
-def _also_zero(parts: list[tuple[sp.Expr, int]], found: sp.Expr, verdict: EnvelopeVerdict) -> list[sp.Expr]:
+def _also_zero(kernel: Kernel, parts: list[tuple[sp.Expr, int]], found: sp.Expr,
+               verdict: EnvelopeVerdict) -> list[sp.Expr]:
     """The other factors that are exactly zero at an exact witness too (r and thd both vanish
     at r = thd = 0): display only, so that the finding does not name one of them alone."""
     if not verdict.witness_exact or not verdict.witness:
         return []
-    at = {sp.Symbol(k, real=True): sp.Rational(v) for k, v in verdict.witness.items()}
+    at = {s: sp.Rational(verdict.witness[str(s)]) for s in kernel.free_symbols() if str(s) in verdict.witness}
     out = []
     for part, multiplicity in parts:
         if part != found and multiplicity > 0 and sp.count_ops(part) <= FACTOR_TEXT // 2:
@@ -707,14 +709,20 @@ def _violation(kind: str, plural: bool = False) -> str:
     return {"nonzero": "vanishes", "positive": "leaves the open domain where the model is smooth"}[kind]
 
 
+def rates_and_outputs(plant: Plant) -> list[tuple[str, str, list[sp.Expr]]]:
+    """Each rate and each output once: its anchor, its name for a message (``rate v``) and its
+    expressions (f_i and the g_ij of the rate; h_i of the output)."""
+    out = [(anchors.rate(s), f"rate {s}", [plant.f[i], *(col[i] for col in plant.g)])
+           for i, s in enumerate(plant.states)]
+    out += [(anchors.output(name), f"output {name}", [h]) for name, h in zip(plant.outputs, plant.h)]
+    return out
+
+
 def _model_checks(kernel: Kernel, box: dict[sp.Symbol, Any], clock: _Clock) -> list[tuple[str, DomainCondition, EnvelopeVerdict]]:
     """Certify every domain condition of f, g and h once; report it per place it occurs."""
     plant = kernel.plant
     symbols = set(kernel.free_symbols())
-    places: list[tuple[str, sp.Expr]] = []
-    for i, s in enumerate(plant.states):
-        places += [(anchors.rate(s), plant.f[i])] + [(anchors.rate(s), col[i]) for col in plant.g]
-    places += [(anchors.output(name), h) for name, h in zip(plant.outputs, plant.h)]
+    places = [(anchor, e) for anchor, _, exprs in rates_and_outputs(plant) for e in exprs]
     places += list(plant.hidden)  # undefined as written, though the exact value no longer shows it
     verdicts: dict[tuple[str, sp.Expr], EnvelopeVerdict] = {}
     out: list[tuple[str, DomainCondition, EnvelopeVerdict]] = []

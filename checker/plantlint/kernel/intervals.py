@@ -190,15 +190,8 @@ class _Evaluator:
     def snapped_zero(self, box: FloatBox, indices: Sequence[int]) -> tuple[float, ...] | None:
         """Try the simple rational nearest the centre of a tiny box: singular sets
         often pass through points like (1/3, 0) that bisection never hits exactly."""
-        from fractions import Fraction
-
-        point = []
-        for lo, hi in box:
-            q = Fraction(lo + (hi - lo) / 2).limit_denominator(10**4)
-            if not lo <= q <= hi:
-                return None
-            point.append(sp.Rational(q.numerator, q.denominator))
-        if self.exactly_zero(point, indices):
+        point = _simple_point([lo + (hi - lo) / 2 for lo, hi in box], box)
+        if point is not None and self.exactly_zero(point, indices):
             return tuple(float(v) for v in point)
         return None
 
@@ -399,15 +392,16 @@ def certify_sign(
     return search.run(decide)
 
 
-def _simple_point(point: Sequence[float]) -> list[sp.Rational] | None:
-    """The simple rationals (denominator up to 10^4) within 1e-9 (relative) of each
-    coordinate, or None when a coordinate has none."""
+def _simple_point(point: Sequence[float], box: FloatBox | None = None) -> list[sp.Rational] | None:
+    """The simple rationals (denominator up to 10^4) nearest each coordinate: inside ``box``
+    when one is given, else within 1e-9 (relative); None when a coordinate has none."""
     from fractions import Fraction
 
     out = []
-    for x in point:
+    for i, x in enumerate(point):
         q = Fraction(x).limit_denominator(10**4)
-        if abs(float(q) - x) > 1e-9 * max(1.0, abs(x)):
+        near = box[i][0] <= q <= box[i][1] if box is not None else abs(float(q) - x) <= 1e-9 * max(1.0, abs(x))
+        if not near:
             return None
         out.append(sp.Rational(q.numerator, q.denominator))
     return out

@@ -281,10 +281,11 @@ def boundary_factor(params: ParameterBox, e: sp.Expr, witness: dict[sp.Symbol, s
         return None
     try:
         num, den = cancel_together(e).as_numer_denom()
-        factors = sp.factor_list(num)[1] + sp.factor_list(den)[1]
+        in_num = sp.factor_list(num)[1]
+        factors = in_num + sp.factor_list(den)[1]
     except (sp.PolynomialError, ValueError, TypeError):
         return None
-    numerator_factors = len(sp.factor_list(num)[1])
+    numerator_factors = len(in_num)
     open_factors = []
     for index, (f, mult) in enumerate(factors):
         if not f.free_symbols:

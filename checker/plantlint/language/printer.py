@@ -69,10 +69,8 @@ def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = Fa
                 return str(value)
         if value.is_Rational and _beyond_double(value):
             # 1e-400 and 1e600/3 are exact numbers: written in decimal, never as 0 or inf
-            p, q = int(value.p), int(value.q)
-            rounded = Context(prec=digits).divide(Decimal(p), Decimal(q))
-            text = format(rounded.normalize(), "g").replace("E", "e")
-            return ("~" if mark_inexact and Fraction(rounded) != Fraction(p, q) else "") + text
+            text, exact = decimal_text(value, digits)
+            return ("~" if mark_inexact and not exact else "") + text
         try:
             ball = value.evalf(digits + 14) if not value.is_Float else value
             number = float(ball)
@@ -103,13 +101,20 @@ def _mpmath_text(value: sp.Float, digits: int) -> str:
 LONG_NUMBER = 24
 
 
+def decimal_text(value: sp.Rational, digits: int) -> tuple[str, bool]:
+    """An exact rational rounded to ``digits`` significant digits in decimal (``1e-300``,
+    ``3.33333e+599``: Python's decimal has no exponent range to fall out of), and whether
+    that text is the exact value."""
+    p, q = int(value.p), int(value.q)
+    rounded = Context(prec=digits).divide(Decimal(p), Decimal(q)).normalize()
+    return format(rounded, "g").replace("E", "e"), Fraction(rounded) == Fraction(p, q)
+
+
 def _short_number(value: sp.Rational) -> str:
     """A number too long to write out, inside an expression: ``1e-300`` when that decimal is
     the exact value (a .plant literal means exactly that), else ``~3.5e-96``, rounded."""
-    p, q = int(value.p), int(value.q)
-    rounded = Context(prec=6).divide(Decimal(p), Decimal(q)).normalize()
-    text = format(rounded, "g").replace("E", "e")
-    return text if Fraction(rounded) == Fraction(p, q) else "~" + text
+    text, exact = decimal_text(value, 6)
+    return text if exact else "~" + text
 
 
 def _long(value: sp.Rational) -> str:

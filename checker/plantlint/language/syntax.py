@@ -219,20 +219,21 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
         text = text[1:]
     nul = text.find("\x00")
     if nul >= 0:
-        line = text.count("\n", 0, nul) + 1
-        col = nul - (text.rfind("\n", 0, nul) + 1) + 1
-        return None, _syntax("file contains a NUL byte; is it a binary file?", Span.point(line, col), anchor=anchors.problem("nul byte"))
+        return None, _syntax("file contains a NUL byte; is it a binary file?", _point_at(text, nul),
+                             anchor=anchors.problem("nul byte"))
     lone = _LONE_CR.search(text)
     if lone is not None:
         # other tools (SARIF viewers, editors) count a lone CR as a line end and plantlint
         # would not: the lines and columns of every finding would disagree with them
-        at = lone.start()
-        line = text.count("\n", 0, at) + 1
-        col = at - (text.rfind("\n", 0, at) + 1) + 1
         return None, _syntax("a lone carriage return (CR) ends a line here; plantlint reads LF or CRLF line ends",
-                             Span.point(line, col), hint="save the file with LF (or CRLF) line ends",
+                             _point_at(text, lone.start()), hint="save the file with LF (or CRLF) line ends",
                              anchor=anchors.problem("lone carriage return"))
     return text, None
+
+
+def _point_at(text: str, offset: int) -> Span:
+    """The line and column of a character offset (lines end at LF)."""
+    return Span.point(text.count("\n", 0, offset) + 1, offset - (text.rfind("\n", 0, offset) + 1) + 1)
 
 
 _LONE_CR = re.compile(r"\r(?!\n)")

@@ -43,9 +43,10 @@ class Run:
         return data
 
 
-#: A script run as ``python -c PINT_PROBE MODEL REPORT``: checks MODEL through the CLI
-#: (JSON to REPORT), then analyses it as a worker does, and prints whether pint was
-#: imported by then in each, and the CLI's exit code (JSON).
+#: A script run as ``python -c PINT_PROBE MODEL REPORT [MORE ...]``: checks MODEL (and MORE)
+#: through the CLI (JSON to REPORT), then analyses MODEL as a worker does, and prints whether
+#: pint was imported by then in each, and the CLI's exit code (JSON). The parent imports
+#: what workers share only for a run of several models.
 # Magnetic levitation with the coil current as a state (demo numbers, invented):
 # x' = v, v' = g - k i^2 / (m x^2), i' = (-R i + u) / L.
 MAGLEV = b"""plant maglev
@@ -73,7 +74,7 @@ from plantlint.cli import main
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
 path = Path(sys.argv[1])
-code = main(["check", "--no-cache", "--jobs", "1", "--format", "json", "--output", sys.argv[2], str(path)])
+code = main(["check", "--no-cache", "--jobs", "1", "--format", "json", "--output", sys.argv[2], str(path), *sys.argv[3:]])
 parent = "pint" in sys.modules
 raw = analyse_bytes(path.read_bytes(), Config(root=path.parent))  # what a worker runs
 print(json.dumps({"parent": parent, "worker": "pint" in sys.modules, "code": code}))

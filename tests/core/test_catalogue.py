@@ -30,7 +30,8 @@ from plantlint.core.catalogue import (
 from plantlint.core.findings import Severity
 from plantlint.core.resources import data_path
 from plantlint.report.rules_view import render_rules
-from plantlint.language.syntax import parse_text, symbol
+from plantlint.language.expressions import symbol
+from plantlint.language.syntax import parse_text
 from conftest import REPO
 
 # The ids and default severities the foundation issue requires, family by family.

@@ -300,7 +300,9 @@ def test_pint_is_imported_only_when_units_are_declared(tmp_path: Path, variant: 
             "untabled": PENDULUM.replace("output tip [m]", "output tip [meters]")}[variant]
     model = tmp_path / "pendulum.plant"
     model.write_text(text, encoding="utf-8")
-    out = subprocess.run([sys.executable, "-c", PINT_PROBE, str(model), str(tmp_path / "report.json")],
+    other = tmp_path / "pendulum_2.plant"  # two models: the parent imports what the workers share
+    other.write_text(text, encoding="utf-8")
+    out = subprocess.run([sys.executable, "-c", PINT_PROBE, str(model), str(tmp_path / "report.json"), str(other)],
                          cwd=tmp_path, capture_output=True, text=True, timeout=300)
     assert out.returncode == 0, out.stderr
     result = json.loads(out.stdout.strip().splitlines()[-1])

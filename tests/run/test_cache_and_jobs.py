@@ -141,6 +141,34 @@ def test_warm_run_is_identical_and_does_not_import_sympy(workspace: Path, refere
     assert warm.stdout == reference.stdout
 
 
+def _imported(stderr: str) -> set[str]:
+    """Top-level packages that ``python -X importtime`` reports (the worker processes
+    inherit the option, so their imports are listed too)."""
+    return {line.rsplit("|", 1)[1].strip().split(".")[0] for line in stderr.splitlines()
+            if line.startswith("import time:") and line.count("|") == 2}
+
+
+def test_a_file_that_does_not_parse_is_reported_without_sympy(tmp_path: Path) -> None:
+    """Nothing of it needs a symbolic step: a typo in a pre-commit run is answered without
+    sympy's import (about half a second). The same run on a model that parses does import
+    it, in its worker, which shows that the probe sees the workers' imports."""
+    bad = tmp_path / "typo.plant"
+    bad.write_text("plant typo\nstate x in -1 .. 1\ninput u\nrate x = x +* u\n")
+    good = tmp_path / "good.plant"
+    good.write_text("plant good\nstate x in -1 .. 1\ninput u\nrate x = -x + u\noutput y = x\n")
+    runs = {}
+    for model in (bad, good):
+        out = subprocess.run([sys.executable, "-X", "importtime", "-m", "plantlint", "check", "--no-cache",
+                              "--format", "lines", str(model)], cwd=tmp_path, capture_output=True, text=True,
+                             timeout=300, env=_env())
+        runs[model.stem] = out
+    typo, fine = runs["typo"], runs["good"]
+    assert typo.returncode == 1 and "unexpected '*'" in typo.stdout and "[syntax]" in typo.stdout
+    assert "sympy" not in _imported(typo.stderr)
+    assert fine.returncode == 0, fine.stdout
+    assert "sympy" in _imported(fine.stderr)
+
+
 def test_analysis_budget_found_by_the_analysis_is_cached(workspace: Path, warm_cache: Path) -> None:
     """Only the runner's own stops (time, memory, crash) stay out of the cache."""
     warm = warm_run(workspace, "check", "--format", "json", "--cache-dir", str(warm_cache), "unconfirmed")

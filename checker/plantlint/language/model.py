@@ -22,7 +22,9 @@ from plantlint.core.limits import MAX_POWER_BITS
 from plantlint.kernel.exact import sign
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
-from plantlint.language.syntax import NON_SMOOTH_FUNCTIONS, Claim, Expression, Parsed, Statement, near_miss, symbol
+from plantlint.language.expressions import symbol
+from plantlint.language.source import NON_SMOOTH_FUNCTIONS, Expression, near_miss
+from plantlint.language.syntax import Claim, Parsed, Statement
 
 CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
 QUANTITY_KINDS = ("const", "param", "state", "input", "let", "output")

@@ -1,7 +1,9 @@
 """Reading ``.plant`` text into statements with exact sympy expressions.
 
 The grammar lives in ``grammar/plant.lark``. Expressions are built from the
-parse tree node by node (never from the text), with every name and function
+parse tree node by node (never from the text; :mod:`plantlint.language.expressions`,
+imported at the first expression, so a file that does not parse is reported
+without sympy), with every name and function
 call remembered together with its source span so findings can point at it.
 Hostile input (huge files, deep nesting, huge exponents, bad bytes) is turned
 into a ``syntax`` finding before it can cost time or memory.
@@ -13,99 +15,25 @@ import hashlib
 import io
 import re
 from dataclasses import dataclass, field
-from fractions import Fraction
-from difflib import get_close_matches
 from functools import lru_cache
 from pathlib import Path
-from typing import Callable, Iterator, Sequence, TypeVar, Union
 
 import lark
-import sympy as sp
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from plantlint.core import anchors
-from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
-from plantlint.core.limits import (MAX_BYTES, MAX_DEPTH, MAX_EXPONENT, MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10,
-                                   MAX_NAME, MAX_POWER_BITS, MAX_STATEMENTS, MAX_TOKENS)
+from plantlint.core.limits import MAX_BYTES, MAX_DEPTH, MAX_NAME, MAX_STATEMENTS, MAX_TOKENS
 from plantlint.core.resources import data_path
+from plantlint.language.source import (FUNCTIONS, Expression, NameRef, ParseProblem, near_miss, shorten,
+                                       span_of, syntax_problem)
 
 
 KEYWORDS = frozenset(
     "plant const param state input let rate output point expect waive at in".split()
 )
-SMOOTH_FUNCTIONS: dict[str, tuple[int, Callable[..., sp.Expr]]] = {
-    "sin": (1, sp.sin),
-    "cos": (1, sp.cos),
-    "tan": (1, sp.tan),
-    "asin": (1, sp.asin),
-    "acos": (1, sp.acos),
-    "atan": (1, sp.atan),
-    "atan2": (2, sp.atan2),
-    "sinh": (1, sp.sinh),
-    "cosh": (1, sp.cosh),
-    "tanh": (1, sp.tanh),
-    "exp": (1, sp.exp),
-    "log": (1, sp.log),
-    "sqrt": (1, sp.sqrt),
-}
-NON_SMOOTH_FUNCTIONS: dict[str, tuple[int, Callable[..., sp.Expr]]] = {
-    "abs": (1, sp.Abs),
-    "sign": (1, sp.sign),
-    "min": (2, sp.Min),
-    "max": (2, sp.Max),
-    "sat": (3, lambda x, lo, hi: sp.Min(sp.Max(x, lo), hi)),
-}
-FUNCTIONS = {**SMOOTH_FUNCTIONS, **NON_SMOOTH_FUNCTIONS}
-#: Functions undefined (or not smooth) somewhere on the reals, whose domain the analysis checks.
-_SINGULAR_FUNCTIONS = frozenset({"sqrt", "log", "asin", "acos", "tan", "atan2"})
-#: What a kink looks like in an exact value.
-_KINKED = (sp.Abs, sp.sign, sp.Min, sp.Max, sp.Heaviside, sp.Piecewise)
 RESERVED = KEYWORDS | frozenset(FUNCTIONS) | {"pi"}
-
-
-class ParseProblem(Exception):
-    """A problem that stops reading a statement; carries the findings to report (one, or
-    several of one kind found in the same expression, such as two unknown functions)."""
-
-    def __init__(self, finding: Finding, *more: Finding):
-        super().__init__(finding.message)
-        self.findings = (finding, *more)
-
-
-@dataclass(frozen=True)
-class NameRef:
-    name: str
-    span: Span
-
-
-@dataclass(frozen=True)
-class CallRef:
-    function: str
-    span: Span
-
-
-@dataclass(frozen=True)
-class Expression:
-    """A parsed expression: its exact value (names as real symbols) and what it mentions."""
-
-    value: sp.Expr
-    span: Span
-    names: tuple[NameRef, ...]
-    calls: tuple[CallRef, ...]
-    #: the parse tree it was built from (read by the unit checker; not part of equality)
-    tree: Tree | Token | None = field(default=None, compare=False, repr=False)
-    #: singular parts as written (x^(-1), log(x), asin(x), ...) that the exact value no longer
-    #: shows: ``x^(-1)*x`` is 1 and ``exp(log(x))`` is x, but as written they are undefined at
-    #: x = 0; the domain checks take these parts too
-    hidden: tuple[sp.Expr, ...] = ()
-    #: calls and powers whose exact value is not smooth although the function is: sqrt(x^2)
-    #: is abs(x) for real x (span, what was written, unevaluated; its value)
-    kinks: tuple[tuple[Span, sp.Expr, sp.Expr], ...] = ()
-    #: calls of numbers outside the function's domain, as written: (span, log(0)) or
-    #: (span, sqrt(-1)); the model finding points at them rather than at the whole expression
-    undefined_calls: tuple[tuple[Span, sp.Expr], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -182,21 +110,12 @@ def parser() -> Lark:
     return saved_parser(grammar) or build_parser(grammar)
 
 
-def symbol(name: str) -> sp.Symbol:
-    """The sympy symbol for a model name (all model quantities are real)."""
-    return sp.Symbol(name, real=True)
-
-
-def _syntax(message: str, span: Span | None, hint: str | None = None, anchor: str = "") -> Finding:
-    return finding("syntax", message, span, hint=hint, anchor=anchor or message)
-
-
 # -- decoding and pre-checks ------------------------------------------------------
 
 def decode(data: bytes) -> tuple[str | None, Finding | None]:
     """Bytes to text: UTF-8 (a leading BOM is dropped), CRLF accepted."""
     if len(data) > MAX_BYTES:
-        return None, _syntax(
+        return None, syntax_problem(
             f"file is {len(data) / 1e6:.1f} MB; plant models are limited to {MAX_BYTES // 1024} KiB",
             Span(1, 1, 1, 2),
             anchor=anchors.problem("file too large"),
@@ -205,12 +124,12 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
         text = data.decode("utf-8")
     except UnicodeDecodeError as exc:
         if data[:2] in (b"\xff\xfe", b"\xfe\xff"):
-            return None, _syntax("file is UTF-16 (it starts with a UTF-16 byte-order mark); plant models are UTF-8",
+            return None, syntax_problem("file is UTF-16 (it starts with a UTF-16 byte-order mark); plant models are UTF-8",
                                  Span(1, 1, 1, 2), hint="save the file as UTF-8",
                                  anchor=anchors.problem("utf-16"))
         line = data.count(b"\n", 0, exc.start) + 1
         col = exc.start - (data.rfind(b"\n", 0, exc.start) + 1) + 1
-        return None, _syntax(
+        return None, syntax_problem(
             f"file is not valid UTF-8 (byte 0x{data[exc.start]:02x} at offset {exc.start})",
             Span.point(line, col),
             anchor=anchors.problem("invalid utf-8"),
@@ -219,13 +138,13 @@ def decode(data: bytes) -> tuple[str | None, Finding | None]:
         text = text[1:]
     nul = text.find("\x00")
     if nul >= 0:
-        return None, _syntax("file contains a NUL byte; is it a binary file?", _point_at(text, nul),
+        return None, syntax_problem("file contains a NUL byte; is it a binary file?", _point_at(text, nul),
                              anchor=anchors.problem("nul byte"))
     lone = _LONE_CR.search(text)
     if lone is not None:
         # other tools (SARIF viewers, editors) count a lone CR as a line end and plantlint
         # would not: the lines and columns of every finding would disagree with them
-        return None, _syntax("a lone carriage return (CR) ends a line here; plantlint reads LF or CRLF line ends",
+        return None, syntax_problem("a lone carriage return (CR) ends a line here; plantlint reads LF or CRLF line ends",
                              _point_at(text, lone.start()), hint="save the file with LF (or CRLF) line ends",
                              anchor=anchors.problem("lone carriage return"))
     return text, None
@@ -253,7 +172,7 @@ def _size_problem(text: str) -> Finding | None:
             start = match.start()
             line = text.count("\n", 0, start) + 1
             col = start - (text.rfind("\n", 0, start) + 1) + 1
-            return _syntax(f"more than {MAX_TOKENS} tokens; plant models are limited to {MAX_TOKENS}",
+            return syntax_problem(f"more than {MAX_TOKENS} tokens; plant models are limited to {MAX_TOKENS}",
                            Span.point(line, col), anchor=anchors.problem("too many tokens"))
     return None
 
@@ -279,7 +198,7 @@ def _nesting_problem(text: str) -> Finding | None:
         if ch in "+-":
             signs += 1
             if signs > MAX_DEPTH:
-                return _syntax(f"more than {MAX_DEPTH} signs in a row", Span.point(line, col), anchor=anchors.problem("nesting"))
+                return syntax_problem(f"more than {MAX_DEPTH} signs in a row", Span.point(line, col), anchor=anchors.problem("nesting"))
         elif not ch.isspace():
             signs = 0
         if ch == "#":
@@ -289,7 +208,7 @@ def _nesting_problem(text: str) -> Finding | None:
         elif ch == "(":
             depth += 1
             if depth > MAX_DEPTH:
-                return _syntax(
+                return syntax_problem(
                     f"parentheses nested more than {MAX_DEPTH} deep",
                     Span.point(line, col),
                     anchor=anchors.problem("nesting"),
@@ -314,13 +233,13 @@ def parse_text(text: str) -> Parsed:
         out.findings.append(_explain_error(exc, text))
         return out
     except RecursionError:
-        out.findings.append(_syntax("expression too deeply nested", Span(1, 1, 1, 2), anchor=anchors.problem("nesting")))
+        out.findings.append(syntax_problem("expression too deeply nested", Span(1, 1, 1, 2), anchor=anchors.problem("nesting")))
         return out
     if len(tree.children) > MAX_STATEMENTS:
         out.findings.append(
-            _syntax(
+            syntax_problem(
                 f"{len(tree.children)} statements; plant models are limited to {MAX_STATEMENTS}",
-                _span(tree.children[MAX_STATEMENTS]),
+                span_of(tree.children[MAX_STATEMENTS]),
                 anchor=anchors.problem("too many statements"),
             )
         )
@@ -332,19 +251,8 @@ def parse_text(text: str) -> Parsed:
         except ParseProblem as problem_:
             out.findings.extend(problem_.findings)
         except RecursionError:
-            out.findings.append(_syntax("expression too deeply nested", _span(node), anchor=anchors.problem("nesting")))
+            out.findings.append(syntax_problem("expression too deeply nested", span_of(node), anchor=anchors.problem("nesting")))
     return out
-
-
-def _span(node: Tree | Token) -> Span:
-    if isinstance(node, Token):
-        end_line = node.end_line or node.line or 1
-        end_col = node.end_column or ((node.column or 1) + len(node))
-        return Span(node.line or 1, node.column or 1, end_line, end_col)
-    meta = node.meta
-    if getattr(meta, "empty", True):
-        return Span(1, 1, 1, 2)
-    return Span(meta.line, meta.column, meta.end_line, meta.end_column)
 
 
 _EXPECTED_WORDS = {
@@ -366,67 +274,48 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
     if isinstance(exc, UnexpectedCharacters):
         ch = text[exc.pos_in_stream] if 0 <= exc.pos_in_stream < len(text) else ""
         if ch == '"':
-            return _syntax("unterminated text: a closing '\"' is missing on this line", Span.point(line, column), anchor=anchors.problem("unterminated string"))
+            return syntax_problem("unterminated text: a closing '\"' is missing on this line", Span.point(line, column), anchor=anchors.problem("unterminated string"))
         if ch == "[":
-            return _syntax("unterminated unit: a closing ']' is missing on this line", Span.point(line, column), anchor=anchors.problem("unterminated unit"))
+            return syntax_problem("unterminated unit: a closing ']' is missing on this line", Span.point(line, column), anchor=anchors.problem("unterminated unit"))
         shown = repr(ch) if ch.isprintable() else f"U+{ord(ch):04X}" if ch else "end of file"
-        return _syntax(f"unexpected character {shown}", Span.point(line, column), anchor=anchors.problem(f"unexpected character {shown}"))
+        return syntax_problem(f"unexpected character {shown}", Span.point(line, column), anchor=anchors.problem(f"unexpected character {shown}"))
     if isinstance(exc, (UnexpectedEOF, UnexpectedToken)):
         tok = getattr(exc, "token", None)
         consumed = _consumed_backwards(exc)
         if tok is None or tok.type == "$END":
             last = consumed[0] if consumed else None
             where = _after(last) if last is not None else Span.point(1, 1)
-            after = f" after '{_short(str(last))}'" if last is not None else ""
-            return _syntax(f"file ends in the middle of a statement{after}", where,
+            after = f" after '{shorten(str(last))}'" if last is not None else ""
+            return syntax_problem(f"file ends in the middle of a statement{after}", where,
                            hint="expected " + _expected(_accepted_after(text, last, exc.expected)),
                            anchor=anchors.problem("unexpected end"))
         broken = _incomplete_before_keyword(tok, consumed, text)
         if broken is not None:
             keyword, last = broken
-            message = f"incomplete statement: it stops after '{_short(str(last))}'"
-            return _syntax(message + f" (the next line starts a new `{keyword}` statement)", _after(last),
+            message = f"incomplete statement: it stops after '{shorten(str(last))}'"
+            return syntax_problem(message + f" (the next line starts a new `{keyword}` statement)", _after(last),
                            hint="expected " + _expected(_accepted_after(text, last, exc.expected)),
                            anchor=anchors.problem(f"incomplete statement before {keyword}"))
-        span = _span(tok)
+        span = span_of(tok)
         value = str(tok)
         misordered = _misordered_range_and_unit(tok, consumed)
         if misordered is not None:
-            return _syntax(misordered, span, anchor=anchors.problem("range and unit order"))
+            return syntax_problem(misordered, span, anchor=anchors.problem("range and unit order"))
         expected_keywords = [k for k in STATEMENT_KEYWORDS if k.upper() in exc.expected]
         if tok.type in ("NAME", "RULE_ID") and value not in RESERVED and expected_keywords \
                 and (_starts_line(tok, text) or not _expects_operand(exc.expected)):
-            message = f"unknown statement '{_short(value)}'; a statement starts with a keyword"
+            message = f"unknown statement '{shorten(value)}'; a statement starts with a keyword"
             close = near_miss(value, STATEMENT_KEYWORDS)
             hint = f"did you mean `{close}`?" if close else "keywords: " + ", ".join(STATEMENT_KEYWORDS)
-            return _syntax(message, span, hint=hint, anchor=anchors.problem(f"unknown statement {value}"))
+            return syntax_problem(message, span, hint=hint, anchor=anchors.problem(f"unknown statement {value}"))
         if tok.type == "NAME" and value in RESERVED:
             message = f"'{value}' is reserved and cannot be used here"
         elif value in KEYWORDS:
             message = f"unexpected keyword '{value}' (the previous statement is incomplete)"
         else:
-            message = f"unexpected '{_short(value)}'"
-        return _syntax(message, span, hint="expected " + _expected(exc.expected), anchor=anchors.problem(message))
-    return _syntax("cannot read this statement", Span.point(line, column), anchor=anchors.problem("syntax"))
-
-
-def _short(text: str, limit: int = 40) -> str:
-    """A quoted literal cut to a readable length (``2^1000^1000`` has 3,001 digits)."""
-    if len(text) <= limit:
-        return text
-    what = "digits" if text.lstrip("-").isdigit() else "characters"
-    return f"{text[: limit - 16]}... ({len(text)} {what})"
-
-
-def near_miss(name: str, candidates: Sequence[str] | set[str] | frozenset[str]) -> str | None:
-    """The candidate a misspelt ``name`` most likely means (same letters in another case
-    first, then the closest spelling), or None."""
-    pool = sorted(set(candidates) - {name})
-    same = [c for c in pool if c.lower() == name.lower()]
-    if same:
-        return same[0]
-    close = get_close_matches(name, pool, n=1, cutoff=0.75 if len(name) <= 3 else 0.6)
-    return close[0] if close else None
+            message = f"unexpected '{shorten(value)}'"
+        return syntax_problem(message, span, hint="expected " + _expected(exc.expected), anchor=anchors.problem(message))
+    return syntax_problem("cannot read this statement", Span.point(line, column), anchor=anchors.problem("syntax"))
 
 
 def _after(tok: Token) -> Span:
@@ -546,7 +435,7 @@ class _Builder:
         if kind == "header":
             kind = "plant"
         method = getattr(self, "_" + kind)  # by name: _plant, _const, ... _waive below
-        return method(node, _span(node))
+        return method(node, span_of(node))
 
     # each statement kind ------------------------------------------------------
     def _plant(self, node: Tree, span: Span) -> Statement:
@@ -597,271 +486,44 @@ class _Builder:
         pairs = []
         for a in assignments:
             target, expr = a.children
-            pairs.append((NameRef(str(target), _span(target)), self.expression(expr)))
+            pairs.append((NameRef(str(target), span_of(target)), self.expression(expr)))
         return Statement("point", span, *self._name(name), assignments=tuple(pairs), tolerance=tolerance)
 
     def _expect(self, node: Tree, span: Span) -> Statement:
         claim_node, at = node.children
         if claim_node.data == "claim_of_output":
             kind_tok, out_tok, value = claim_node.children
-            claim = Claim(str(kind_tok), _span(claim_node), NameRef(str(out_tok), _span(out_tok)), self.expression(value))
+            claim = Claim(str(kind_tok), span_of(claim_node), NameRef(str(out_tok), span_of(out_tok)), self.expression(value))
         else:
             (kind_tok,) = claim_node.children
-            claim = Claim(str(kind_tok), _span(claim_node))
+            claim = Claim(str(kind_tok), span_of(claim_node))
         return Statement("expect", span, claim=claim, at_point=_at(at))
 
     def _waive(self, node: Tree, span: Span) -> Statement:
         rule, at, doc = node.children
-        return Statement("waive", span, rule_id=NameRef(str(rule), _span(rule)), at_point=_at(at), doc=_doc(doc))
+        return Statement("waive", span, rule_id=NameRef(str(rule), span_of(rule)), at_point=_at(at), doc=_doc(doc))
 
     # pieces -------------------------------------------------------------------
     def _name(self, tok: Token) -> tuple[str, Span]:
         name = str(tok)
-        span = _span(tok)
+        span = span_of(tok)
         if len(name) > MAX_NAME:
-            raise ParseProblem(_syntax(f"name of {len(name)} characters; names are limited to {MAX_NAME}", span, anchor=anchors.problem("long name")))
+            raise ParseProblem(syntax_problem(f"name of {len(name)} characters; names are limited to {MAX_NAME}", span, anchor=anchors.problem("long name")))
         if name in RESERVED:
-            raise ParseProblem(_syntax(f"'{name}' is reserved and cannot name a quantity", span, anchor=anchors.problem(f"reserved {name}")))
+            raise ParseProblem(syntax_problem(f"'{name}' is reserved and cannot name a quantity", span, anchor=anchors.problem(f"reserved {name}")))
         return name, span
 
     def _range(self, rng: Tree | None) -> tuple[Expression | None, Expression | None, Span | None]:
         if rng is None:
             return None, None, None
         lo, _dots, hi = rng.children
-        return self.expression(lo), self.expression(hi), _span(rng)
+        return self.expression(lo), self.expression(hi), span_of(rng)
 
     def expression(self, root: Tree | Token) -> Expression:
         """The exact value of an expression subtree, with what it mentions."""
-        return _ExpressionBuilder().build(root)
+        from plantlint.language.expressions import build_expression  # sympy: only once there is an expression
 
-
-#: What an expression node stands for while its parent is being built: an exact value,
-#: or the terms of a sum / factors of a product still being collected.
-_Value = Union[sp.Expr, "_Terms", "_Factors"]
-_Chain = TypeVar("_Chain", "_Terms", "_Factors")
-
-
-class _ExpressionBuilder:
-    """Builds one expression's exact value from its parse tree, node by node, without
-    recursion (deep input cannot overflow the stack here; parentheses and runs of signs
-    are limited to MAX_DEPTH on the text, before parsing).
-
-    Nodes are visited after their operands, which come off a stack: the last operand
-    first. That order is part of the behaviour. Unknown functions are collected (every
-    one is named, in source order); of two other problems in one expression the last is
-    reported, and ``names`` and ``calls`` list the last mention first, which decides the mention a model finding points at (the first
-    offending name in ``names``).
-
-    lark's ``Transformer_NonRecursive`` was tried in its place: no recursion either, the
-    same spans (node spans through ``v_args(meta=True)``) and the same time within the
-    noise of measurement (the largest benchmark models, a 9,000-term sum), but it visits
-    left to right. The lists can be put back in this order afterwards; which of two
-    other problems is reported cannot, and every problem would come wrapped in a
-    ``VisitError``. So the walk stays here, small and explicit.
-    """
-
-    def __init__(self) -> None:
-        self.names: list[NameRef] = []
-        self.calls: list[CallRef] = []
-        self.values: dict[int, _Value] = {}  # by id(): tokens compare equal by their text
-        self.unknown: list[Finding] = []  # unknown functions: every one is reported, in order
-        self.singular: list[sp.Expr] = []  # singular parts as built (see Expression.hidden)
-        self.kinks: list[tuple[Span, sp.Expr, sp.Expr]] = []
-        self.undefined_calls: list[tuple[Span, sp.Expr]] = []
-
-    def build(self, root: Tree | Token) -> Expression:
-        for node in _operands_first(root):
-            self.values[id(node)] = self._token(node) if isinstance(node, Token) else self._node(node)
-        if self.unknown:
-            first, *rest = sorted(self.unknown, key=lambda f: (f.span.line, f.span.column) if f.span else (0, 0))
-            raise ParseProblem(first, *rest)
-        value = _done(self.values[id(root)])
-        hidden: tuple[sp.Expr, ...] = ()
-        if self.singular:
-            shown = set(sp.preorder_traversal(value))
-            hidden = tuple(p for p in dict.fromkeys(self.singular) if p not in shown)
-        return Expression(value, _span(root), tuple(self.names), tuple(self.calls), root, hidden, tuple(self.kinks),
-                          tuple(self.undefined_calls))
-
-    def _singular(self, part: sp.Expr) -> None:
-        """Remember a part that is undefined somewhere as written (it may be simplified away)."""
-        if part.free_symbols:
-            self.singular.append(part)
-
-    def _smooth_or_kink(self, written: Callable[[], sp.Expr], args: list[sp.Expr], value: sp.Expr, span: Span) -> None:
-        """A smooth function whose exact value has a kink its arguments do not have."""
-        if value.has(*_KINKED) and not any(a.has(*_KINKED) for a in args):
-            self.kinks.append((span, written(), value))
-
-    def _token(self, tok: Token) -> sp.Expr:
-        if tok.type == "NUMBER":
-            return _number(tok)
-        raise ParseProblem(_syntax(f"unexpected '{_short(str(tok))}'", _span(tok)))
-
-    def _node(self, node: Tree) -> _Value:
-        rule = self._RULES.get(node.data)
-        if rule is None:
-            raise ParseProblem(_syntax(f"cannot read {node.data}", _span(node)))
-        return rule(self, node)
-
-    def _built(self, node: Tree | Token) -> sp.Expr:
-        """The value of an operand (visited already), a collected sum or product built."""
-        return _done(self.values[id(node)])
-
-    # one method per kind of node in the grammar ------------------------------------
-    def _number_node(self, node: Tree) -> _Value:
-        return self.values[id(node.children[0])]
-
-    def _name(self, node: Tree) -> sp.Expr:
-        tok = node.children[0]
-        name = str(tok)
-        if len(name) > MAX_NAME:
-            raise ParseProblem(_syntax(f"name of {len(name)} characters; names are limited to {MAX_NAME}",
-                                       _span(tok), anchor=anchors.problem("long name")))
-        if name == "pi":
-            return sp.pi
-        self.names.append(NameRef(name, _span(tok)))
-        return symbol(name)
-
-    def _call(self, node: Tree) -> sp.Expr:
-        fname_tok, *arg_nodes = node.children
-        fname = str(fname_tok)
-        args = [self._built(a) for a in arg_nodes if a is not None]
-        span = _span(node)
-        self.calls.append(CallRef(fname, span))
-        entry = FUNCTIONS.get(fname)
-        if entry is None:
-            # recorded, and the walk goes on (with a stand-in value) so that every unknown
-            # function of the expression is named, not only one
-            close = near_miss(fname, FUNCTIONS)
-            self.unknown.append(finding(
-                "unknown-name", f"unknown function '{fname}'", _span(fname_tok),
-                hint=f"did you mean `{close}`?" if close else "functions: " + ", ".join(sorted(FUNCTIONS)),
-                anchor=anchors.problem(f"function {fname}")))
-            return sp.Integer(0)
-        arity, fn = entry
-        if len(args) != arity:
-            raise ParseProblem(_syntax(f"{fname} takes {arity} argument{'s' if arity > 1 else ''}, got {len(args)}", span))
-        value = fn(*args)
-        as_written = ((lambda: sp.Pow(args[0], sp.Rational(1, 2), evaluate=False)) if fname == "sqrt"
-                      else (lambda: getattr(sp, fname)(*args, evaluate=False)))
-        if fname in _SINGULAR_FUNCTIONS:
-            self._singular(as_written() if fname == "sqrt" else value)
-            if not value.free_symbols and (value.has(sp.zoo, sp.nan) or value.is_extended_real is False):
-                self.undefined_calls.append((span, as_written()))
-        if fname in SMOOTH_FUNCTIONS:
-            self._smooth_or_kink(as_written, args, value, span)
-        return value
-
-    def _neg(self, node: Tree) -> sp.Expr:
-        return -self._built(node.children[0])
-
-    def _pos(self, node: Tree) -> sp.Expr:
-        return self._built(node.children[0])
-
-    # chains of + - (and of * /) are collected and built in one step: building them
-    # pairwise costs time quadratic in their length
-    def _add(self, node: Tree) -> _Terms:
-        terms, b = self._collected(node, _Terms)
-        terms.append(b)
-        return terms
-
-    def _sub(self, node: Tree) -> _Terms:
-        terms, b = self._collected(node, _Terms)
-        terms.append(-b)
-        return terms
-
-    def _mul(self, node: Tree) -> _Factors:
-        factors, b = self._collected(node, _Factors)
-        factors.append(b)
-        return factors
-
-    def _div(self, node: Tree) -> _Factors:
-        factors, b = self._collected(node, _Factors)
-        factors.append(sp.Pow(b, -1))
-        self._singular(sp.Pow(b, -1, evaluate=False))
-        return factors
-
-    def _collected(self, node: Tree, chain: type[_Chain]) -> tuple[_Chain, sp.Expr]:
-        """The left operand as a chain of terms or factors (extended in place when it is
-        one already) and the right operand's value."""
-        left, right = node.children
-        a, b = self.values[id(left)], self._built(right)
-        return (a if isinstance(a, chain) else chain([_done(a)])), b
-
-    def _pow(self, node: Tree) -> sp.Expr:
-        base, exponent = node.children
-        b, e = self._built(base), self._built(exponent)
-        value = _power(b, e, _span(node))
-        if e.is_Rational and (e.is_negative or not e.is_Integer):
-            self._singular(sp.Pow(b, e, evaluate=False))
-            self._smooth_or_kink(lambda: sp.Pow(b, e, evaluate=False), [b], value, _span(node))
-        return value
-
-    _RULES: dict[str, Callable[["_ExpressionBuilder", Tree], _Value]] = {
-        "number": _number_node, "name": _name, "call": _call, "neg": _neg, "pos": _pos,
-        "add": _add, "sub": _sub, "mul": _mul, "div": _div, "pow": _pow,
-    }
-
-
-def _operands_first(root: Tree | Token) -> Iterator[Tree | Token]:
-    """Every node under ``root``, each after its operands, without recursion; operands
-    come off a stack, the last first. The name token of a ``name`` or ``call`` node is
-    part of that node, not an operand."""
-    stack: list[tuple[Tree | Token, bool]] = [(root, False)]
-    while stack:
-        node, expanded = stack.pop()
-        if expanded or isinstance(node, Token):
-            yield node
-            continue
-        stack.append((node, True))
-        named = node.data in ("call", "name")
-        for child in node.children:
-            if child is not None and not (named and isinstance(child, Token)):
-                stack.append((child, False))
-
-
-class _Terms(list):  # type: ignore[type-arg]
-    """Terms of a sum not yet built (each tree node has one parent, so it is extended in place)."""
-
-
-class _Factors(list):  # type: ignore[type-arg]
-    """Factors of a product not yet built."""
-
-
-def _done(value: sp.Expr | _Terms | _Factors) -> sp.Expr:
-    """The sympy value of a node, building a collected sum or product."""
-    if isinstance(value, _Terms):
-        return sp.Add(*value)
-    if isinstance(value, _Factors):
-        return sp.Mul(*value)
-    return value
-
-
-def _number(tok: Token) -> sp.Rational:
-    """A decimal literal as an exact rational (never a binary float)."""
-    text = str(tok)
-    mantissa, _, exponent = text.lower().partition("e")
-    exp10 = int(exponent) if exponent else 0
-    digits = mantissa.replace(".", "")
-    if abs(exp10) > MAX_LITERAL_EXP10 or len(digits) > MAX_LITERAL_DIGITS:
-        raise ParseProblem(_syntax(f"number {text[:20]}{'...' if len(text) > 20 else ''} is out of range", _span(tok), anchor=anchors.problem("number range")))
-    value = Fraction(mantissa) * (Fraction(10) ** exp10)
-    return sp.Rational(value.numerator, value.denominator)
-
-
-def _power(base: sp.Expr, exponent: sp.Expr, span: Span) -> sp.Expr:
-    if exponent.is_Number:
-        if exponent.is_Rational:
-            big = max(abs(int(exponent.p)), abs(int(exponent.q)))
-            if big > MAX_EXPONENT:
-                raise ParseProblem(_syntax(f"exponent {_short(str(exponent))} is beyond the supported range "
-                                           f"(|p|, |q| <= {MAX_EXPONENT})", span, anchor=anchors.problem("exponent range")))
-        if base.is_Number and base.is_Rational:
-            bits = max(abs(int(base.p)), abs(int(base.q)), 1).bit_length()
-            if bits * abs(int(exponent.p)) > MAX_POWER_BITS:
-                raise ParseProblem(_syntax("this power of a number is too large to compute exactly", span, anchor=anchors.problem("power size")))
-    return base ** exponent
+        return build_expression(root)
 
 
 def _doc(tree: Tree | None) -> str | None:
@@ -885,7 +547,7 @@ def _unit_span(tree: Tree | None) -> Span | None:
     raw = str(tok)[1:-1]
     text = raw.strip()
     if not text:
-        return _span(tok)
+        return span_of(tok)
     start = (tok.column or 1) + 1 + len(raw) - len(raw.lstrip())
     return Span(tok.line or 1, start, tok.line or 1, start + len(text))
 
@@ -894,4 +556,4 @@ def _at(tree: Tree | None) -> NameRef | None:
     if tree is None:
         return None
     tok = tree.children[0]
-    return NameRef(str(tok), _span(tok))
+    return NameRef(str(tok), span_of(tok))

@@ -78,14 +78,20 @@ class RawResult:
 
 
 def read_model(data: bytes, path: str = "") -> tuple[Any, list[Finding]]:
-    """Bytes to (Model or None, model findings). Never raises on bad input."""
-    from plantlint.language.model import build_model
+    """Bytes to (Model or None, model findings). Never raises on bad input.
+
+    A file that does not parse has no statements and nothing to resolve: it is reported
+    without importing the model layer (and sympy)."""
     from plantlint.language.syntax import decode, parse_text
 
     text, problem = decode(data)
     if problem is not None or text is None:
         return None, [problem] if problem else []
     parsed = parse_text(text)
+    if parsed.findings and not parsed.statements:
+        return None, list(parsed.findings)  # what build_model says of it, without sympy
+    from plantlint.language.model import build_model
+
     model, findings = build_model(parsed, path)
     if model is not None and not parsed.findings:
         from plantlint.language.units import check_units  # pint only when units are declared

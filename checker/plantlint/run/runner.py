@@ -416,19 +416,11 @@ _WARM_UP = (b"plant warm\nconst k = 2 [1/s]\nconst L = 1 [m]\nconst v = 1 [m/s]\
             b"input u [m/s] in -1 .. 1\nrate x = -k*x + u/(1 + (x/L)^2) + v*sin(x/L)^2\noutput y [m] = x\n")
 
 
-def analyse_all(
-    datas: list[bytes],
-    settings: AnalysisSettings,
-    jobs: int,
-    timeout: float,
-    on_done: Callable[[int], None] | None = None,
-    explain: bool = False,
-) -> list[RawResult]:
-    """Analyse every model in worker processes, at most ``jobs`` at a time (with
-    ``explain``, each result also carries the derivation that explain shows)."""
-    if not datas:
-        return []
-    # imported before forking, so that workers start warm: the engine and what it loads on first use
+def _preload(datas: list[bytes]) -> None:
+    """Import before forking what every worker would import, so that workers start warm:
+    the engine and what it loads on first use. Only worth it for several models: one
+    model's worker imports what it needs itself, so that a file that does not parse is
+    reported without sympy."""
     for module in _PRELOAD:
         importlib.import_module(module)
     from plantlint.run.pipeline import read_model
@@ -441,6 +433,22 @@ def analyse_all(
 
     if any(units.needs_pint(d) for d in datas):
         units.preload()  # pint's registry once (~0.7 s), not in every worker: only for unit names not in the table
+
+
+def analyse_all(
+    datas: list[bytes],
+    settings: AnalysisSettings,
+    jobs: int,
+    timeout: float,
+    on_done: Callable[[int], None] | None = None,
+    explain: bool = False,
+) -> list[RawResult]:
+    """Analyse every model in worker processes, at most ``jobs`` at a time (with
+    ``explain``, each result also carries the derivation that explain shows)."""
+    if not datas:
+        return []
+    if len(datas) > 1:
+        _preload(datas)
 
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)

@@ -343,6 +343,40 @@ def test_a_waiver_added_since_ref_is_shown_with_its_reason(tmp_path: Path) -> No
             in lines.stdout.splitlines())
 
 
+def test_a_waiver_removed_since_ref_makes_its_finding_introduced(tmp_path: Path) -> None:
+    """A defect accepted at REF (waived) and no longer accepted counts against the run
+    again: the change that removed the waiver is what a reviewer must look at."""
+    repo = tmp_path / "repo"
+    repo.mkdir()
+    env = git_env(tmp_path)
+    git(repo, env, "init", "-q")
+    waiver = 'waive zero-dynamics-unstable at rest "driven through an outer loop (invented)"\n'
+    (repo / "tail.plant").write_text(model("tail", UNSTABLE, waiver), encoding="utf-8")
+    git(repo, env, "add", "-A")
+    git(repo, env, "commit", "-q", "-m", "base")
+    (repo / "tail.plant").write_text(model("tail", UNSTABLE), encoding="utf-8")
+    run = plantlint(repo, env, "check", "--since", "HEAD", "--format", "json", "--no-cache", "tail.plant")
+    assert run.code == 1, run.stdout
+    assert rules_by_state(run.json()["files"][0]) == [("zero-dynamics-unstable", "introduced")]
+
+
+def test_a_model_whose_known_errors_stop_its_analysis_is_not_checked(tmp_path: Path) -> None:
+    """A syntax error already there at REF is known, but it keeps the analysis from
+    running: whatever else the change did (here it makes the zero dynamics unstable) was
+    not checked, so the gate cannot pass the model."""
+    broken = "rate = = (\n"
+    repo, env = base_and_change(tmp_path, {"tail.plant": model("tail", STABLE) + broken},
+                                {"tail.plant": model("tail", UNSTABLE) + broken})
+    run = plantlint(repo, env, "check", "--since", "base", "--format", "json", "--no-cache", "plants")
+    assert run.code == 1, run.stdout
+    (file,) = run.json()["files"]
+    assert rules_by_state(file) == [("syntax", "known")]
+    assert file["stop"]["kind"] == "blocked" and file["outcome"] == "not-decided"
+    assert "known at base: what changed since was not checked" in file["stop"]["detail"]
+    lines = plantlint(repo, env, "check", "--since", "base", "--format", "lines", "--no-cache", "plants")
+    assert "plants/tail.plant: error: could not be checked: the analysis did not run" in lines.stdout
+
+
 def test_structure_changes_are_worded_for_readers_not_in_internal_names() -> None:
     before = {"relative_degree": {"y": 2}, "envelope": {"regular": True},
               "points": {"rest": {"equilibrium": True, "well_defined": True,

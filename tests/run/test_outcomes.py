@@ -241,6 +241,35 @@ def test_internal_error_is_not_decided_not_a_pass(tmp_path: Path) -> None:
     assert claim["message"].startswith("`expect regular` not decided: the analysis stopped by an internal error")
 
 
+@pytest.mark.parametrize("settings", [("--only", "unused-name"), ("--skip", "syntax"), ("--skip", "syntax,unknown-name")])
+def test_a_model_whose_errors_are_left_out_of_the_report_is_not_a_pass(tmp_path: Path, settings: tuple[str, ...]) -> None:
+    """A syntax error keeps the analysis from running: a selection that leaves the error
+    out of the report must not turn "nothing was checked" into a pass."""
+    (tmp_path / "lift.plant").write_text(LIFT.format(degree=2) + "rate = = (\n", encoding="utf-8")
+    run = cli(tmp_path, "check", "--no-cache", "--format", "json", *settings, "lift.plant")
+    assert run.code == 1, run.stdout
+    (file,) = run.json()["files"]
+    assert file["findings"] == [] and file["outcome"] == "not-decided"
+    assert file["stop"] == {"kind": "blocked", "stage": None, "completed": [], "detail": file["stop"]["detail"]}
+    assert "has errors that stop it (syntax at line" in file["stop"]["detail"]
+    jsonschema.validate(run.json(), report_schema())
+
+
+def test_a_model_whose_errors_are_re_graded_is_not_a_pass(tmp_path: Path) -> None:
+    (tmp_path / "lift.plant").write_text(LIFT.format(degree=2) + "rate = = (\n", encoding="utf-8")
+    (tmp_path / "plantlint.toml").write_text(
+        '[severity.syntax]\nlevel = "note"\nreason = "a test of re-grading (invented)"\n', encoding="utf-8")
+    run = cli(tmp_path, "check", "--no-cache", "--format", "lines", "lift.plant")
+    assert run.code == 1, run.stdout
+    assert "note: unexpected '='" in run.stdout and "lift.plant: error: could not be checked" in run.stdout
+    # shown and failing as usual, the same model is a defect, not a stop
+    (tmp_path / "plantlint.toml").unlink()
+    plain = cli(tmp_path, "check", "--no-cache", "--format", "json", "lift.plant")
+    assert plain.code == 1
+    (file,) = plain.json()["files"]
+    assert file["stop"] is None and file["outcome"] == "defect" and [f["rule"] for f in file["findings"]] == ["syntax"]
+
+
 def _unproven_zero_model() -> str:
     """Invented: the input enters the first rate through sin(2 x2) - 2 sin(x2) cos(x2), a
     zero written so that the symbolic proof exceeds its size bound (a 64-term factor over

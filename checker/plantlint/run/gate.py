@@ -27,7 +27,7 @@ from plantlint.analysis.serialise import structural_facts
 from plantlint.core import anchors
 from plantlint.core.findings import FileReport, Finding, Report, Severity
 from plantlint.run.config import Config
-from plantlint.run.pipeline import RawResult, finish
+from plantlint.run.pipeline import RawResult, blocked, finish
 from plantlint.run.runner import (
     Source,
     UsageError,
@@ -125,7 +125,7 @@ def gate(ref: str, paths: list[str], config: Config, defaults: dict[str, Severit
     for src, raw, old_src in zip(now_sources, now_raws, old_sources):
         report = finish(src.display, raw, source_text(src.data), config, defaults)
         old_raw = next(old_iter) if old_src is not None else None
-        files.append(compare(report, old_raw, config, defaults))
+        files.append(compare(report, old_raw, config, defaults, ref))
         if old_raw is not None:
             files[-1].structure_changes.extend(waiver_changes(old_raw.waivers, raw.waivers))
     files.extend(_deleted(commit, top, paths, config, defaults, every, moved, jobs=jobs, use_cache=use_cache,
@@ -176,19 +176,26 @@ def _deleted(commit: str, top: Path, paths: list[str], config: Config, defaults:
     return reports
 
 
-def compare(report: FileReport, old_raw: RawResult | None, config: Config, defaults: dict[str, Severity]) -> FileReport:
-    """Mark each finding known/introduced, add the fixed ones, and diff the structure."""
+def compare(report: FileReport, old_raw: RawResult | None, config: Config, defaults: dict[str, Severity],
+            ref: str = "the baseline") -> FileReport:
+    """Mark each finding known/introduced, add the fixed ones, and diff the structure. A
+    finding waived at ``ref`` and not now is introduced (it counts again); a model whose
+    errors keep its analysis from running, all known at ``ref``, is not checked."""
     if old_raw is None:
         report.findings = [replace(f, baseline="introduced") for f in report.findings]
         return report
     old = finish(report.path, old_raw, None, config, defaults)
     before = Counter(f.fingerprint(old.plant) for f in old.findings)
+    waived_before = Counter(f.fingerprint(old.plant) for f in old.findings if f.waived)
     marked: list[Finding] = []
     for f in report.sorted_findings():
         key = f.fingerprint(report.plant)
         if before[key] > 0:
             before[key] -= 1
-            marked.append(replace(f, baseline="known"))
+            # accepted (waived) at REF and not now: it counts against the run again
+            unwaived = not f.waived and waived_before[key] > 0
+            waived_before[key] -= int(waived_before[key] > 0)
+            marked.append(replace(f, baseline="introduced" if unwaived else "known"))
         else:
             marked.append(replace(f, baseline="introduced"))
     now = Counter(f.fingerprint(report.plant) for f in report.findings)
@@ -200,6 +207,12 @@ def compare(report: FileReport, old_raw: RawResult | None, config: Config, defau
             marked.append(replace(f, baseline="fixed", span=None))
     report.findings = marked
     report.structure_changes = structure_changes(old_raw.analysis, report.analysis)
+    if report.stop is None and report.analysis is None and not any(
+            f.baseline == "introduced" and f.severity is Severity.ERROR and not f.waived for f in marked):
+        # its errors keep the analysis from running and were there at REF: what the
+        # change did to the model was not checked
+        report.stop = blocked([f for f in marked if f.baseline != "fixed"],
+                              f"known at {ref}: what changed since was not checked")
     return report
 
 

@@ -212,8 +212,30 @@ def finish(path: str, raw: RawResult, source: str | None, config: Config, defaul
 
     findings = raw.findings + unused_waivers(raw.findings, raw.waivers, _judged(raw))
     findings = apply_policy(findings, raw.waivers, defaults, config.severity, config.only, config.skip)
+    stop = raw.stop
+    if stop is None and not_analysed(raw) and not any(_stops_the_run(f) for f in findings):
+        stop = blocked(raw.findings, "which this run's rule selection (only/skip) or severity settings leave out")
     return FileReport(path=path, plant=raw.plant, findings=findings, analysis=raw.analysis, source=source,
-                      stop=raw.stop, stages=list(raw.stages))
+                      stop=stop, stages=list(raw.stages))
+
+
+def not_analysed(raw: RawResult) -> bool:
+    """The model's errors kept the analysis from running (not a budget or crash stop)."""
+    return raw.analysis is None and raw.stop is None
+
+
+def _stops_the_run(f: Finding) -> bool:
+    return f.severity is Severity.ERROR and not f.waived and not f.undecided
+
+
+def blocked(errors: list[Finding], why_not_shown: str) -> Stop:
+    """The stop of a model whose errors kept its analysis from running when those errors
+    do not fail the run themselves (hidden by --only/--skip or re-graded, or known under
+    --since): nothing of the model was checked, so it is not decided, never a pass."""
+    first = next((f for f in errors if f.severity is Severity.ERROR), errors[0] if errors else None)
+    what = (f"{first.rule} at line {first.span.line}" if first is not None and first.span is not None
+            else first.rule if first is not None else "errors")
+    return Stop("blocked", None, (), f"did not run: the model has errors that stop it ({what}), {why_not_shown}")
 
 
 #: Anchor of the finding that says a model could not be checked (the runner's own stops).

@@ -3,7 +3,9 @@
 Meant for editors, grep and CI logs: no heading and no summary (the exit code
 carries the verdict). Besides findings, only ``note:`` lines are written: structure
 changes under ``--since`` and the active settings that drop or re-grade findings
-(``skip``, ``only``, ``[severity]``), each with its reason; and, when something was
+(``skip``, ``only``, ``[severity]``), each with its reason; a ``path: error: could not be
+checked`` line for a model whose own errors stopped its analysis when this run leaves
+them out (selection, re-grading, or known under ``--since``); and, when something was
 not decided, one ``plantlint: error: not decided: ...`` line (``note`` when the
 configuration lets not-decided results pass, which is then always stated). Findings fixed since a
 baseline are left out because they no longer exist in the file.
@@ -65,6 +67,11 @@ class LinesFormatter:
                 if baseline == "fixed":
                     continue
                 stream.write(finding_line(file_report.path, finding, baseline, report.relaxation is not None) + "\n")
+            stop = file_report.stop
+            if stop is not None and stop.kind == "blocked":  # no finding of its own says so
+                word = "note" if report.relaxation is not None else "error"
+                stream.write(f"{one_line(file_report.path)}: {word}: could not be checked: the analysis "
+                             f"{one_line(stop.detail)}\n")
             for change in file_report.structure_changes:
                 shown = change_text(change)
                 kind = "" if shown.startswith("waiver ") else "structure "

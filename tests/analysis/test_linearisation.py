@@ -507,3 +507,40 @@ def test_rational_a_keeps_exact_poles_when_c_is_irrational() -> None:
     assert lin.characteristic_polynomial == "s^4"
     assert list(lin.poles) == [0j] * 4
     assert np.allclose(np.linalg.eigvals(np.array(A.tolist(), dtype=float)), 0)
+
+
+def test_irrational_entries_give_transmission_zeros_to_full_precision() -> None:
+    """A reviewer's model (numbers invented): sqrt(2 + x1), tan, atan and exp in the rates;
+    at the origin B and C are rational and A holds sqrt(2). The zero polynomial
+    det [[sI - A, -B], [C, 0]] is formed here by sympy from its own Jacobians (reference);
+    its root is -4/5 exactly, and the ball route must give it to far better than the 1e-9
+    that root isolation alone leaves."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = b"""plant transcendental
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+input u1
+input u2
+rate x1 = -tan(x1/2) + exp(x3)*u1 + 0.5*u2
+rate x2 = -sqrt(2 + x1)*x2 + x3 + u1 + (1 + x1^2)*u2
+rate x3 = -x3 + atan(x2) + 0.2*u1
+output y1 = atan(x1)
+output y2 = x2
+point origin: x1 = 0, x2 = 0, x3 = 0, u1 = 0, u2 = 0
+"""
+    x1, x2, x3, u1, u2, s = sp.symbols("x1 x2 x3 u1 u2 s")
+    rates = sp.Matrix([-sp.tan(x1 / 2) + sp.exp(x3) * u1 + u2 / 2,
+                       -sp.sqrt(2 + x1) * x2 + x3 + u1 + (1 + x1**2) * u2,
+                       -x3 + sp.atan(x2) + u1 / 5])
+    outputs = sp.Matrix([sp.atan(x1), x2])
+    at = {x1: 0, x2: 0, x3: 0, u1: 0, u2: 0}
+    A = rates.jacobian([x1, x2, x3]).subs(at)
+    B = rates.jacobian([u1, u2]).subs(at)
+    C = outputs.jacobian([x1, x2, x3]).subs(at)
+    pencil = sp.Matrix(sp.BlockMatrix([[s * sp.eye(3) - A, -B], [C, sp.zeros(2, 2)]]))
+    ref = sp.solve(sp.expand(pencil.det()), s)
+    assert ref == [sp.Rational(-4, 5)]
+    zeros = analyse_bytes(text).analysis["points"]["origin"]["linearisation"]["transmission_zeros"]
+    assert len(zeros) == 1 and abs(zeros[0][0] + 0.8) < 1e-15 and zeros[0][1] == 0

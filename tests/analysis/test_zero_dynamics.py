@@ -78,8 +78,9 @@ def test_square_mimo_zeros_equal_rosenbrock_pencil() -> None:
 
 
 @pytest.mark.filterwarnings("ignore::scipy.signal.BadCoefficients")
-def test_irrational_data_take_the_numeric_route() -> None:
-    # A scaled by sqrt(2): zeros scale by sqrt(2) too; reference scipy ss2zpk on the scaled data
+def test_irrational_data_are_decided_in_ball_arithmetic() -> None:
+    # A scaled by sqrt(2): zeros scale by sqrt(2) too; reference scipy ss2zpk on the scaled data.
+    # The signs come from rigorous balls of the exact numbers: no tolerance is involved.
     rng = np.random.default_rng(5)
     done = 0
     while done < 5:
@@ -91,7 +92,7 @@ def test_irrational_data_take_the_numeric_route() -> None:
         zd = zero_dynamics_at(Kernel(P), r, at_origin(P), "origin")
         As = A * np.sqrt(2.0)
         z, _, _ = scipy.signal.ss2zpk(As, B.astype(float), C.astype(float), np.zeros((1, 1)))
-        assert not zd.exact and zd.tolerance is not None and zd.consistent
+        assert zd.exact and zd.tolerance is None and zd.consistent
         assert_same_set(list(zd.eigenvalues), [complex(v) for v in z if abs(v) < 1e6], tol=1e-5)
         done += 1
 
@@ -247,7 +248,7 @@ def test_transcendental_point_against_hand_derivative() -> None:
     P = Plant.from_matrices("tr", [x1, x2], [u], [x1 * sp.sin(x1) - c * sp.sin(c) + x2, 0], [[0, 1]], [x2])
     zd = zero_dynamics_at(Kernel(P), [1], {x1: c, x2: 0}, "p")
     ref = float(sp.diff(x1 * sp.sin(x1), x1).subs(x1, c))
-    assert not zd.exact and zd.verdict == "non_minimum_phase"
+    assert zd.exact and zd.verdict == "non_minimum_phase"  # the sign from a ball, proven
     assert abs(zd.eigenvalues[0].real - ref) < 1e-14 and zd.eigenvalues[0].imag == 0
 
 
@@ -307,7 +308,7 @@ def test_mimo_nonlinear_numeric_route_against_sympy_closed_loop() -> None:
     dXi = np.array(sp.Matrix.vstack(grad(p1), grad(Lf[0]), grad(p2), grad(Lf[1])).subs(subs).evalf(), dtype=float)
     N = scipy.linalg.null_space(dXi)
     ref = np.linalg.eigvals(N.T @ J @ N)
-    assert not zd.exact and zd.consistent and zd.verdict == "minimum_phase"
+    assert zd.exact and zd.consistent and zd.verdict == "minimum_phase"
     assert_same_set(list(zd.eigenvalues), [complex(v) for v in ref], tol=1e-9)
 
 
@@ -384,7 +385,7 @@ def test_eigenvalues_near_the_axis_fail_the_claim_only_when_an_exact_coefficient
     finds the eigenvalues within its tolerance of the axis. Without link damping (c = 0) the
     s coefficient is exactly zero, so the polynomial is not Hurwitz (Stodola's necessary
     condition) and the claim fails, decided. With c = 1e-12 the eigenvalues are stable but
-    within the tolerance: nothing proves either, and the claim is not decided."""
+    stable by 1.7e-11 only: their balls prove it, and the claim holds."""
     from plantlint.run.pipeline import analyse_bytes
 
     s, c = sp.symbols("s c")
@@ -401,5 +402,83 @@ def test_eigenvalues_near_the_axis_fail_the_claim_only_when_an_exact_coefficient
     assert not claim.undecided and "has no s term (its coefficient is exactly zero), so it is not Hurwitz" in claim.message
     damped = FLEX.replace("rate w1 = -(MgL*sin(q1) + ks*(q1 - q2))/Il", "rate w1 = -(MgL*sin(q1) + ks*(q1 - q2) + 1e-12*w1)/Il")
     assert damped != FLEX
-    (claim,) = [f for f in analyse_bytes(damped.encode()).findings if f.rule == "expectation-failed"]
-    assert claim.undecided and "not proven to be on it or off it" in claim.message
+    raw = analyse_bytes(damped.encode())
+    assert [f for f in raw.findings if f.rule in ("expectation-failed", "zero-dynamics-critical")] == []
+    zd = raw.analysis["points"]["tilt"]["zero_dynamics"]
+    # real part -(c/Il)/2 with c = 1e-12, Il = 0.03 (the polynomial above, by hand)
+    assert zd["verdict"] == "minimum_phase"
+    assert all(abs(re + 1e-12 / 0.06) < 1e-20 for re, _ in zd["eigenvalues"])
+
+
+def test_a_large_coupling_does_not_hide_an_unstable_zero_dynamics() -> None:
+    """Invented: z' = 2 sin z - sqrt(2) + 1e12 xi, xi' = -xi + u, y = xi, at z = pi/4. With
+    xi held at 0 the zero dynamics are z' = 2 sin z - sqrt(2), whose linearisation at pi/4 is
+    2 cos(pi/4) = sqrt(2) > 0 (sympy.diff below): unstable, however large the coupling that
+    makes Df* large. (A tolerance relative to |Df*| once called it critical, a warning.)"""
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = b"""plant scaled
+state z in 0 .. 2
+state xi in -1 .. 1
+input u
+rate z = 2*sin(z) - sqrt(2) + 1e12*xi
+rate xi = -xi + u
+output y = xi
+point o: z = pi/4, xi = 0, u = 0
+expect minimum_phase at o
+"""
+    z = sp.Symbol("z")
+    ref = sp.diff(2 * sp.sin(z) - sp.sqrt(2), z).subs(z, sp.pi / 4)
+    assert sp.simplify(ref - sp.sqrt(2)) == 0
+    raw = analyse_bytes(text)
+    zd = raw.analysis["points"]["o"]["zero_dynamics"]
+    assert zd["verdict"] == "non_minimum_phase"
+    assert abs(zd["eigenvalues"][0][0] - float(ref)) < 1e-12
+    rules = sorted((f.rule, f.undecided) for f in raw.findings)
+    assert rules == [("expectation-failed", False), ("zero-dynamics-unstable", False)]
+
+
+IRRATIONAL_CENTRE = b"""plant centre
+state z1 in -1 .. 1
+state z2 in -1 .. 1
+state xi in -1 .. 1
+input u
+rate xi = u
+rate z1 = sqrt(2)*z1 + z2 + xi
+rate z2 = -3*z1 - sqrt(2)*z2
+output y = xi
+point o: z1 = 0, z2 = 0, xi = 0, u = 0
+expect minimum_phase at o
+"""
+
+
+def test_irrational_zero_dynamics_on_the_axis_and_the_pencil_zeros_there() -> None:
+    """Invented: with xi held at 0, (z1, z2) obey [[sqrt 2, 1], [-3, -sqrt 2]], whose
+    characteristic polynomial is s^2 + 1 (sympy below): eigenvalues +-i, on the axis with
+    irrational entries. The balls cannot sign a real part that is 0; they bound it, and the
+    exactly-zero s coefficient (Stodola) fails the claim. The linearisation's transmission
+    zeros are +-i too (the z block is unobservable); they are computed on a circle off the
+    roots of unity, where a ball determinant at a zero of the pencil would lose every digit
+    (reference: the Rosenbrock pencil, scipy)."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    s = sp.Symbol("s")
+    block = sp.Matrix([[sp.sqrt(2), 1], [-3, -sp.sqrt(2)]])
+    assert sp.expand(block.charpoly(s).as_expr()) == s**2 + 1
+    raw = analyse_bytes(IRRATIONAL_CENTRE)
+    point = raw.analysis["points"]["o"]
+    zd = point["zero_dynamics"]
+    assert zd["verdict"] == "critical"
+    assert_same_set([complex(a, b) for a, b in zd["eigenvalues"]], [1j, -1j], tol=1e-12)
+    (critical,) = [f for f in raw.findings if f.rule == "zero-dynamics-critical"]
+    assert "of the imaginary axis" in critical.message and "is not Hurwitz" in critical.message
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert not claim.undecided
+    assert not [f for f in raw.findings if f.rule == "internal-inconsistency"]
+    r2 = np.sqrt(2.0)
+    A = np.array([[r2, 1, 1], [-3, -r2, 0], [0, 0, 0]])
+    B = np.array([[0.0], [0.0], [1.0]])
+    C = np.array([[0.0, 0.0, 1.0]])
+    zeros = [complex(a, b) for a, b in point["linearisation"]["transmission_zeros"]]
+    assert_same_set(zeros, rosenbrock_zeros(A, B, C), tol=1e-12)
+    assert point["linearisation"]["cross_check"]["status"] == "agrees"

@@ -594,15 +594,22 @@ def _mid(z: acb) -> complex:
 
 
 def _ball_pencil_coefficients(A: list[list[arb]], B: list[list[arb]], C: list[list[arb]], tol: float) -> list[acb]:
-    """Coefficients (constant first) of det [[sI - A, -B], [C, 0]] from its values at the
-    (n + 1)-th roots of unity (the inverse transform is exact for degree <= n); leading
-    coefficients that are zero to the precision (ball contains 0, or below ``tol`` times
-    the largest) are dropped."""
+    """Coefficients (constant first) of det [[sI - A, -B], [C, 0]] from its values at
+    s_t = c w^t, w the (n + 1)-th root of unity and c = (13/10) e^(i pi / (7 (n + 1))) (the
+    inverse transform is exact for degree <= n); leading coefficients that are zero to the
+    precision (ball contains 0, or below ``tol`` times the largest) are dropped.
+
+    The circle is scaled and turned off the roots of unity themselves: a model's zeros
+    are often there (+-1, +-i), and a ball determinant at a zero of the pencil, where
+    sI - A is singular too, loses every digit (a reviewer's model: zeros +-i read as a
+    pencil that vanishes for every s)."""
     n, m = len(A), len(B[0])
     k = n + 1
     roots = [acb(arb(2 * t) / k).exp_pi_i() for t in range(k)]
+    shift = acb(arb(1) / (7 * k)).exp_pi_i() * arb(13) / 10
     values = []
-    for s in roots:
+    for w in roots:
+        s = shift * w
         M = acb_mat(n + m, n + m)
         for i in range(n):
             for j in range(n):
@@ -618,7 +625,7 @@ def _ball_pencil_coefficients(A: list[list[arb]], B: list[list[arb]], C: list[li
         total = acb(0)
         for t in range(k):
             total += values[t] * roots[(-t * q) % k]
-        coeffs.append(acb((total / k).real))  # real data: the imaginary part is rounding
+        coeffs.append(acb((total / (k * shift ** q)).real))  # real data: the imaginary part is rounding
     top = max((float(abs(c).mid()) for c in coeffs), default=0.0)
     while coeffs and (coeffs[-1].contains(0) or float(abs(coeffs[-1]).mid()) <= tol * top):
         coeffs.pop()
@@ -630,8 +637,8 @@ def _ball_roots(coeffs: list[acb]) -> list[complex]:
     else found by mpmath from the midpoints (multiple roots)."""
     if len(coeffs) <= 1:
         return []
-    try:
-        return [_mid(z) for z in acb_poly(coeffs).roots()]
+    try:  # refined to half the working precision: isolation alone can leave radii of 1e-9
+        return [_mid(z) for z in acb_poly(coeffs).roots(tol=arb(2) ** (-flint.ctx.prec // 2))]
     except ValueError:
         with mpmath.workdps(DIGITS):
             mids = [mpmath.mpf(c.real.mid().str(DIGITS + 10, radius=False)) for c in coeffs]

@@ -8,8 +8,12 @@ T = ker dXi(x0) into itself and spec(J) = {0 (r times)} union spec(J restricted 
 J is assembled from exact numbers at x0 by the product rule (f* is never built
 symbolically). When J and dXi(x0) are rational the restriction is computed exactly
 and the signs of the eigenvalues' real parts are decided exactly (rigorous root
-isolation plus an exact test for roots on the imaginary axis). Otherwise the
-numbers go to mpmath at 40+ digits with a tolerance that is stated in the result.
+isolation plus an exact test for roots on the imaginary axis). Otherwise (irrational
+numbers) det(sI - J) = s^r p(s) is formed in rigorous ball arithmetic and the roots of p
+are isolated in complex balls: a real part whose ball excludes 0 has a proven sign, one
+that holds 0 is reported with its bound. Only when the roots cannot be isolated (a
+repeated root) do the numbers go to mpmath at 40+ digits with a tolerance that is stated
+in the result.
 """
 
 from __future__ import annotations
@@ -20,13 +24,14 @@ from typing import Sequence
 import flint
 import mpmath
 import sympy as sp
-from flint import acb, fmpq, fmpq_mat, fmpz_poly
+from flint import acb, acb_poly, arb, arb_mat, fmpq, fmpq_mat, fmpz_poly
 
 from plantlint.core.deadline import bounded
 from plantlint.kernel.exact import number_decider, rank as exact_rank, has_undefined
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
+from plantlint.kernel.balls import to_arb
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.rational import polynomial_text, sympy_rational
 from plantlint.language.printer import show_number
@@ -314,8 +319,8 @@ def _numeric_route(
     rest_exact = data.f0 + data.G0 * (-(data.A0.LUsolve(data.b0)))
     if any(not decide(e).taken_zero for e in rest_exact):  # type: ignore[operator]
         return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics")
-    result: ZeroDynamics | None = None
-    for digits in _NUMERIC_DIGITS:
+    result = _ball_route(name, n, r, data)
+    for digits in _NUMERIC_DIGITS if result is None else ():
         with mpmath.workdps(digits):
             result = _numeric_once(name, n, r, data, digits)
         if result.consistent:
@@ -328,6 +333,49 @@ def _numeric_route(
                              for f in result.findings)
             return replace(result, not_hurwitz=why, findings=findings)
     return result
+
+
+def _ball_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics | None:
+    """The zero dynamics from rigorous balls of the exact numbers at the point: det(sI - J)
+    = s^r p(s) in ball arithmetic (arb), the roots of p isolated in complex balls (acb), and
+    the sign of each real part read off its ball: a ball that excludes 0 is a proof. A real
+    part whose ball holds 0 at the highest precision tried is reported with its bound (not
+    on the axis, not off it). None when the roots cannot be isolated (a repeated root) or
+    the numbers do not fit s^r p(s): the mpmath route then decides with its tolerance."""
+    old = flint.ctx.prec
+    try:
+        for bits in _BALL_BITS:
+            flint.ctx.prec = bits
+            try:
+                J, _, _ = _assemble(data, _to_arb_mat, lambda A: A.inv(), None)
+                coeffs = J.charpoly().coeffs()  # lowest power first
+            except (ZeroDivisionError, ValueError):  # a ball of A(x0) holding 0; a number without a ball
+                continue
+            if not all(c.contains(0) for c in coeffs[:r]):
+                return None  # not s^r p(s): the relative degrees do not fit the plant
+            try:
+                roots = acb_poly(coeffs[r:]).roots(tol=arb(2) ** (-bits // 2))
+            except ValueError:  # not isolated at this precision (or a repeated root)
+                continue
+            signs = [1 if z.real > 0 else (-1 if z.real < 0 else None) for z in roots]
+            if any(sg is None for sg in signs) and bits != _BALL_BITS[-1]:
+                continue
+            eigs = sorted(((complex(float(z.real.mid()), float(z.imag.mid())), sg) for z, sg in zip(roots, signs)),
+                          key=lambda e: (e[0].real, e[0].imag))
+            near = [abs(z.real).upper() for z, sg in zip(roots, signs) if sg is None]
+            bound = float(max(near)) if near else None
+            return _verdict(name, n - r, eigs, exact=bound is None, tolerance=bound, consistent=True, polynomial=None)
+    finally:
+        flint.ctx.prec = old
+    return None
+
+
+#: Precisions of the ball route; its bound for a real part it cannot sign is about 2^(-bits/2).
+_BALL_BITS = (128, 256, 512)
+
+
+def _to_arb_mat(M: sp.Matrix) -> arb_mat:
+    return arb_mat(M.rows, M.cols, [to_arb(e) for e in M])
 
 
 #: Bounds of the exact look at the characteristic polynomial when the numeric route leaves

@@ -366,4 +366,4 @@ def to_arb(value: object) -> arb:
         return arb(int(e.p)) / int(e.q)
     if e.free_symbols:
         raise UnsupportedExpression(f"not a constant: {e}")
-    return Program([e], []).run([])[0]
+    return Program([e], []).run([], prec=max(flint.ctx.prec, 128))[0]

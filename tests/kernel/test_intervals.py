@@ -150,3 +150,44 @@ def test_verdicts_agree_with_dense_sampling(c, lo1, w1, lo2, w2) -> None:
         wx, wy = v.witness["x1"], v.witness["x2"]
         assert lo1 <= wx <= lo1 + w1 and lo2 <= wy <= lo2 + w2
         assert abs(fn(wx, wy)) < 1e-8
+
+
+# -- witnesses stay inside the declared box --------------------------------------------------
+# The float box that the search splits is rounded outward from the exact ranges; its outer
+# faces can lie just outside them. A reviewer's cases (invented numbers).
+
+def test_no_witness_from_the_sliver_outside_an_exact_bound() -> None:
+    """x - 1/3 - 1e-20 is at most -1e-20 on x in [-1, 1/3] (by hand): never zero there. The
+    float just above 1/3 is outside the range; a witness there proves nothing. (At the
+    search's 64-bit precision 1e-20 cannot be proven either: not decided is the honest
+    answer, never singular.)"""
+    x = sp.Symbol("x", real=True)
+    v = certify_nonzero(x - sp.Rational(1, 3) - sp.Rational(1, 10**20), {x: (sp.Integer(-1), sp.Rational(1, 3))})
+    assert v.regular is not False and v.witness is None
+
+
+def test_a_decimal_bound_just_below_pi_over_2_is_proven_regular() -> None:
+    """cos x on |x| <= 1.5707963267948966 (the double of pi/2 written as a decimal, which is
+    1.9e-17 below pi/2; mpmath at 40 digits is the reference): positive on the whole
+    range, although the float box rounded outward reaches past pi/2."""
+    import mpmath
+
+    from fractions import Fraction
+
+    x = sp.Symbol("x", real=True)
+    bound = Fraction("1.5707963267948966")
+    with mpmath.workdps(40):
+        least = mpmath.cos(mpmath.mpf(bound.numerator) / bound.denominator)
+        assert 1.9e-17 < least < 2.0e-17
+    v = certify_nonzero(sp.cos(x), {x: (-bound, bound)})
+    assert v.regular is True and 0 < v.margin <= float(least)
+
+
+def test_a_zero_exactly_on_an_irrational_bound_is_found_there() -> None:
+    """cos x on [-pi/2, pi/2] vanishes at both ends (sympy: cos(pi/2) = 0): singular, with
+    the exact end point as the witness rather than a float outside the range."""
+    x = sp.Symbol("x", real=True)
+    assert sp.cos(sp.pi / 2) == 0
+    v = certify_nonzero(sp.cos(x), {x: (-sp.pi / 2, sp.pi / 2)})
+    assert v.regular is False and v.witness_exact
+    assert abs(abs(v.witness["x"]) - math.pi / 2) < 1e-15

@@ -24,6 +24,7 @@ exactly 0; sin and cos are period-aware); no symbolic derivative is formed.
 from __future__ import annotations
 
 import math
+from fractions import Fraction
 import time
 from collections import deque
 from dataclasses import dataclass
@@ -113,6 +114,115 @@ def outward_box(box: dict[sp.Symbol, tuple[Bound, Bound]]) -> dict[sp.Symbol, In
     return out
 
 
+class _Inside:
+    """The exact box, against which every witness is held: the float box the search
+    splits is rounded outward, so its outer faces can lie just outside the declared
+    ranges (a bound of 1/3, or a decimal just below pi/2), where a witness proves nothing.
+    Points are clamped to the floats inside the exact ranges; rational points are tested
+    exactly (balls for irrational bounds)."""
+
+    def __init__(self, box: dict[sp.Symbol, tuple[Bound, Bound]], used: Sequence[sp.Symbol]):
+        self.bounds = [(_exact(box[s][0]), _exact(box[s][1])) for s in used]
+        self.symbolic = [(_symbolic(box[s][0]), _symbolic(box[s][1])) for s in used]
+        self.inner = [(_float_at_least(lo), _float_at_most(hi)) for lo, hi in self.bounds]
+
+    def clamp(self, point: Sequence[float]) -> tuple[float, ...] | None:
+        """The nearest point with every coordinate inside its exact range (None when a
+        range holds no float)."""
+        if any(lo > hi for lo, hi in self.inner):
+            return None
+        return tuple(min(max(v, lo), hi) for v, (lo, hi) in zip(point, self.inner))
+
+    def faces(self, root: FloatBox) -> list[tuple[float, arb, float, arb]]:
+        """The outer faces of the float box with the exact bounds they stand for."""
+        old = flint.ctx.prec
+        flint.ctx.prec = BOX_PREC
+        try:
+            ball = [(_ball_of(lo), _ball_of(hi)) for lo, hi in self.bounds]
+        finally:
+            flint.ctx.prec = old
+        return [(lo, a, hi, b) for (lo, hi), (a, b) in zip(root, ball)]
+
+    def on_face(self, b: FloatBox, root: FloatBox) -> list[sp.Expr] | None:
+        """For a tiny sub-box on outer faces of the float box: the point with the exact
+        bound on each face it touches (pi/2, not the float next to it) and a simple
+        rational inside the box elsewhere; None when it touches no face or a coordinate
+        has no simple rational."""
+        out: list[sp.Expr] = []
+        touched = False
+        for (lo, hi), (root_lo, root_hi), (exact_lo, exact_hi) in zip(b, root, self.symbolic):
+            if lo == root_lo or hi == root_hi:
+                out.append(exact_lo if lo == root_lo else exact_hi)
+                touched = True
+                continue
+            simple = _simple_point([lo + (hi - lo) / 2], ((lo, hi),))
+            if simple is None:
+                return None
+            out.append(simple[0])
+        return out if touched else None
+
+    def contains(self, point: Sequence[float | sp.Rational]) -> bool:
+        return all(_at_least(v, lo) and _at_least(hi, v) for v, (lo, hi) in zip(point, self.bounds))
+
+
+def _exact(value: Bound) -> Fraction | arb:
+    """A bound as an exact rational when it is one, else a ball."""
+    if isinstance(value, (Fraction, int)):
+        return Fraction(value)
+    if isinstance(value, sp.Basic) and value.is_Rational:
+        return Fraction(int(value.p), int(value.q))
+    return _bound_ball(value)
+
+
+def _symbolic(value: Bound) -> sp.Expr:
+    """A bound as an exact sympy number (a float is the dyadic rational it is)."""
+    if isinstance(value, sp.Basic):
+        return value
+    if isinstance(value, Fraction):
+        return sp.Rational(value.numerator, value.denominator)
+    return sp.Rational(value) if isinstance(value, float) else sp.Integer(value)
+
+
+def _ball_of(v: Fraction | arb) -> arb:
+    return v if isinstance(v, arb) else arb(v.numerator) / v.denominator
+
+
+def _as_exact(v: float | sp.Rational | Fraction | arb) -> Fraction | arb:
+    if isinstance(v, (Fraction, arb)):
+        return v
+    if isinstance(v, float):
+        return Fraction(v)
+    return Fraction(int(v.p), int(v.q))
+
+
+def _at_least(a: float | sp.Rational | Fraction | arb, b: float | sp.Rational | Fraction | arb) -> bool:
+    """a >= b, certainly (exactly for rationals; by balls when one side is irrational)."""
+    x, y = _as_exact(a), _as_exact(b)
+    if isinstance(x, Fraction) and isinstance(y, Fraction):
+        return x >= y
+    return bool(_ball_of(x) >= _ball_of(y))
+
+
+def _float_at_least(bound: Fraction | arb) -> float:
+    """The smallest float certainly at or above ``bound``."""
+    v = float(bound) if isinstance(bound, Fraction) else float(bound.mid())
+    while not _at_least(v, bound):
+        v = math.nextafter(v, math.inf)
+    while _at_least(math.nextafter(v, -math.inf), bound):
+        v = math.nextafter(v, -math.inf)
+    return v
+
+
+def _float_at_most(bound: Fraction | arb) -> float:
+    """The largest float certainly at or below ``bound``."""
+    v = float(bound) if isinstance(bound, Fraction) else float(bound.mid())
+    while not _at_least(bound, v):
+        v = math.nextafter(v, -math.inf)
+    while _at_least(bound, math.nextafter(v, math.inf)):
+        v = math.nextafter(v, math.inf)
+    return v
+
+
 def _cover(box: FloatBox) -> list[arb]:
     old = flint.ctx.prec
     flint.ctx.prec = BOX_PREC
@@ -156,11 +266,31 @@ class _Evaluator:
         self.symbols = tuple(symbols)
         self.program = ForwardProgram(self.exprs, self.symbols)
 
+    #: per coordinate (outer lower face, its exact ball, outer upper face, its exact ball):
+    #: a sub-box on an outer face of the float box is enclosed up to the exact bound, not
+    #: to the float rounded outward from it (see :class:`_Inside`)
+    faces: list[tuple[float, arb, float, arb]] | None = None
+
+    def _cover(self, box: FloatBox) -> list[arb]:
+        if self.faces is None:
+            return _cover(box)
+        old = flint.ctx.prec
+        flint.ctx.prec = BOX_PREC
+        try:
+            out = []
+            for (lo, hi), (outer_lo, exact_lo, outer_hi, exact_hi) in zip(box, self.faces):
+                a = exact_lo if lo == outer_lo else arb(lo)
+                b = exact_hi if hi == outer_hi else arb(hi)
+                out.append(a.union(b))
+            return out
+        finally:
+            flint.ctx.prec = old
+
     def natural(self, box: FloatBox) -> list[arb]:
-        return self.program.values(_cover(box), BOX_PREC)
+        return self.program.values(self._cover(box), BOX_PREC)
 
     def enclose(self, box: FloatBox, centred: bool) -> list[arb]:
-        cover = _cover(box)
+        cover = self._cover(box)
         if not centred or not self.symbols:
             return self.program.values(cover, BOX_PREC)
         c = _centre(box)
@@ -184,7 +314,7 @@ class _Evaluator:
 
     def exactly_zero(self, point: Sequence[float | sp.Rational], indices: Sequence[int]) -> bool:
         """Exact symbolic check at a rational point (floats are exact dyadic rationals)."""
-        subs = {s: sp.Rational(v) for s, v in zip(self.symbols, point)}
+        subs = {s: sp.Rational(v) if isinstance(v, float) else v for s, v in zip(self.symbols, point)}
         return all(self.exprs[i].xreplace(subs) == 0 for i in indices)
 
     def snapped_zero(self, box: FloatBox, indices: Sequence[int]) -> tuple[float, ...] | None:
@@ -317,6 +447,8 @@ def certify_nonzero(
     used = _used_symbols(exprs, fbox)
     ev = _Evaluator(exprs, used)
     search = _Search(fbox, used, budget)
+    inside = _Inside(box, used)
+    ev.faces = inside.faces(search.root)
     single = len(exprs) == 1 and not exprs[0].has(sp.atan2)
 
     def decide(b: FloatBox, centred: bool) -> BoxStep:
@@ -324,7 +456,7 @@ def certify_nonzero(
         clean = [_float_below(x.abs_lower()) for x in enclosures if zd.of_ball(x).proven_nonzero]
         if clean:
             return "proven", max(clean)
-        points = [_centre(b)] + _corners(b)
+        points = _witness_candidates(b, inside)
         values = [ev.at(p) for p in points]
         for p, vals in zip(points, values):
             if all(v.is_finite() and v.contains(0) for v in vals) and search.exact_checks < MAX_EXACT_CHECKS:
@@ -334,8 +466,11 @@ def certify_nonzero(
         if max(search.relative_widths(b), default=0.0) < 1e-6 and search.exact_checks < MAX_EXACT_CHECKS:
             search.exact_checks += 1
             snapped = ev.snapped_zero(b, range(len(exprs)))
-            if snapped is not None:
+            if snapped is not None and inside.contains(snapped):
                 return "violated", (snapped, True)
+            face = inside.on_face(b, search.root)
+            if face is not None and ev.exactly_zero(face, range(len(exprs))):
+                return "violated", (tuple(float(v) for v in face), True)
         if single:
             signs = [_certain_sign(vals[0]) for vals in values]
             if 1 in signs and -1 in signs:
@@ -343,7 +478,7 @@ def certify_nonzero(
                 found = _bracket_zero(ev, a, c)
                 if found is not None:
                     snapped = _simple_point(found)
-                    if snapped is not None and search.exact_checks < MAX_EXACT_CHECKS:
+                    if snapped is not None and inside.contains(snapped) and search.exact_checks < MAX_EXACT_CHECKS:
                         # q2 = -1.6e-38 next to a zero that is exactly at q2 = 0: say the exact one
                         search.exact_checks += 1
                         if ev.exactly_zero(snapped, [0]):
@@ -369,12 +504,14 @@ def certify_sign(
     used = _used_symbols([expr], fbox)
     ev = _Evaluator([expr], used)
     search = _Search(fbox, used, budget)
+    inside = _Inside(box, used)
+    ev.faces = inside.faces(search.root)
 
     def decide(b: FloatBox, centred: bool) -> BoxStep:
         x = ev.enclose(b, centred)[0]
         if x.is_finite() and (x > 0 if strict else x >= 0):
             return "proven", _float_below(x)
-        for p in [_centre(b)] + _corners(b):
+        for p in _witness_candidates(b, inside):
             v = ev.at(p)[0]
             if v.is_finite() and v < 0:
                 return "violated", (p, False)
@@ -385,11 +522,24 @@ def certify_sign(
         if strict and max(search.relative_widths(b), default=0.0) < 1e-6 and search.exact_checks < MAX_EXACT_CHECKS:
             search.exact_checks += 1
             snapped = ev.snapped_zero(b, [0])
-            if snapped is not None:
+            if snapped is not None and inside.contains(snapped):
                 return "violated", (snapped, True)
+            face = inside.on_face(b, search.root)
+            if face is not None and ev.exactly_zero(face, [0]):
+                return "violated", (tuple(float(v) for v in face), True)
         return "split", None
 
     return search.run(decide)
+
+
+def _witness_candidates(b: FloatBox, inside: _Inside) -> list[tuple[float, ...]]:
+    """The centre and corners of a sub-box, each moved into the exact box (distinct)."""
+    out: list[tuple[float, ...]] = []
+    for p in [_centre(b)] + _corners(b):
+        q = inside.clamp(p)
+        if q is not None and q not in out:
+            out.append(q)
+    return out
 
 
 def _simple_point(point: Sequence[float], box: FloatBox | None = None) -> list[sp.Rational] | None:

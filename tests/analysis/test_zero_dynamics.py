@@ -482,3 +482,63 @@ def test_irrational_zero_dynamics_on_the_axis_and_the_pencil_zeros_there() -> No
     zeros = [complex(a, b) for a, b in point["linearisation"]["transmission_zeros"]]
     assert_same_set(zeros, rosenbrock_zeros(A, B, C), tol=1e-12)
     assert point["linearisation"]["cross_check"]["status"] == "agrees"
+
+
+REFINED = b"""plant rounded
+param k = 2
+param d = 1
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+state x4 in -1 .. 1
+input u1
+input u2
+rate x1 = -x1 + x3 + u1
+rate x2 = -x2 + x4^2 + u2
+rate x3 = x4
+rate x4 = -k*x3 - d*x4 + x1 + x2 + exp(x3) - 1 + u1 - u2
+output y1 = x1
+output y2 = x2
+point rounded: x1 = 0.0974146, x2 = 0.5, x3 = 0.1, x4 = 0 tolerance 1e-5
+expect minimum_phase at rounded
+"""
+
+
+def test_zero_dynamics_at_a_refined_equilibrium() -> None:
+    """A reviewer's model (invented numbers). The written x1 is rounded; the analysis runs
+    at the equilibrium refined near it, known to ~40 digits, not exactly, where the
+    zero dynamics were once "not defined" and the true claim failed. Holding y1 = x1 and
+    y2 = x2 (u1 = x1 - x3, u2 = x2 - x4^2) leaves x3' = x4,
+    x4' = -3 x3 - x4 + 2 x1 + exp(x3) - 1 + x4^2 (by hand), whose Jacobian at x3 = 1/10,
+    x4 = 0 has the eigenvalues of s^2 + s + 3 - e^(1/10) (numpy below)."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    x3, x4 = sp.symbols("x3 x4")
+    field = sp.Matrix([x4, -3 * x3 - x4 + sp.exp(x3) - 1 + x4**2])
+    J = np.array(field.jacobian([x3, x4]).subs({x3: sp.Rational(1, 10), x4: 0}).evalf(), dtype=float)
+    ref = np.linalg.eigvals(J)
+    raw = analyse_bytes(REFINED)
+    assert [f.rule for f in raw.findings] == ["point-refined"]  # the claim holds
+    zd = raw.analysis["points"]["rounded"]["zero_dynamics"]
+    assert zd["verdict"] == "minimum_phase"
+    assert_same_set([complex(a, b) for a, b in zd["eigenvalues"]], list(ref), tol=1e-9)
+
+
+def test_minimum_phase_of_a_plant_that_is_not_square_is_not_decided() -> None:
+    """One output, two inputs (invented): the zero dynamics as computed here need as many
+    outputs as inputs, so a minimum-phase claim is not decided rather than failed."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = b"""plant wide
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u1
+input u2
+rate x1 = -x1 + u1 + u2
+rate x2 = -x2 + x1 + u2
+output y = x1
+point rest: x1 = 0, x2 = 0, u1 = 0, u2 = 0
+expect minimum_phase at rest
+"""
+    (claim,) = [f for f in analyse_bytes(text).findings if f.rule == "expectation-failed"]
+    assert claim.undecided and "computed for square plants" in claim.message

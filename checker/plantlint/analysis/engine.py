@@ -11,7 +11,7 @@ its completion, so a stopped run can say what was and was not checked.
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import Callable
+from typing import Any, Callable
 
 import sympy as sp
 
@@ -168,7 +168,8 @@ def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
         if any(d is None for d in degrees):
             continue
         ints = [int(d) for d in degrees if d is not None]
-        pa.zero_dynamics = zero_dynamics_at(kernel, ints, pa.equilibrium.values, pa.name)
+        pa.zero_dynamics = zero_dynamics_at(kernel, ints, pa.equilibrium.values, pa.name,
+                                            approximate=_refined_not_exact(pa.equilibrium))
         result.findings.extend(pa.zero_dynamics.findings)
         result.findings.extend(box_zero_dynamics(pa.parametric, ints, pa.zero_dynamics))
         if pa.zero_dynamics.verdict == "not_applicable" and sum(ints) == plant.n:
@@ -503,6 +504,12 @@ def _box_failure(pa: PointAnalysis, prop: str, key: str | None = None) -> list[t
     return [(pa.name, message if decided else Undecided(message))]
 
 
+def _refined_not_exact(eq: Any) -> bool:
+    """A point analysed at the equilibrium refined near it, known to ~40 digits only."""
+    near = (eq.refinement or {}).get("equilibrium_near") if eq.status == "refined" else None
+    return isinstance(near, dict) and not near.get("exact", False)
+
+
 def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
     points = _points_for(a, c)
     if not points:
@@ -514,9 +521,11 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
             if c.point is not None:
                 out.append((pa.name, f"'{pa.name}' is not an equilibrium, so the zero dynamics are not defined there"))
             continue
-        if zd is None or zd.verdict == "undefined":
+        if zd is not None and zd.beyond_scope:
+            out.append((pa.name, Undecided(f"at point '{pa.name}' the zero dynamics were not computed: {zd.reason}")))
+        elif zd is None or zd.verdict == "undefined":
             reason = zd.reason if zd is not None and zd.reason else "the relative degree is not well defined there"
-            out.append((pa.name, f"at point '{pa.name}' the zero dynamics could not be computed: {reason}"))
+            out.append((pa.name, f"at point '{pa.name}' the zero dynamics are not defined: {reason}"))
         elif zd.verdict == "non_minimum_phase":
             out.append((pa.name, f"at point '{pa.name}' the zero dynamics are unstable: eigenvalues "
                                  f"{show_eigenvalues(zd.eigenvalues)}"))

@@ -61,6 +61,9 @@ class ZeroDynamics:
     #: on the numeric route, when the eigenvalues are only near the axis: why the exact
     #: characteristic polynomial cannot be Hurwitz (a coefficient that is exactly zero)
     not_hurwitz: str | None = None
+    #: "undefined" because of what this analysis covers (a plant that is not square), not
+    #: because of the plant: a claim about it is not decided rather than failed
+    beyond_scope: bool = False
 
 
 @dataclass
@@ -86,13 +89,17 @@ class _PointData:
 
 
 def zero_dynamics_at(
-    kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Symbol, sp.Expr], name: str
+    kernel: Kernel, degrees: Sequence[int], eq_values: dict[sp.Symbol, sp.Expr], name: str,
+    approximate: bool = False,
 ) -> ZeroDynamics:
-    """Zero dynamics of the plant at the point ``eq_values`` (states at least)."""
+    """Zero dynamics of the plant at the point ``eq_values`` (states at least);
+    ``approximate``: the point is a refined equilibrium (a rest point to ~40 digits, not
+    exactly), so the rest test has a tolerance and the exact routes are not taken."""
     plant = kernel.plant
     n, r = plant.n, sum(degrees)
     if len(degrees) != plant.p or plant.m != plant.p or any(d < 1 for d in degrees):
-        return ZeroDynamics(name, 0, "undefined", reason="needs a square plant and one relative degree >= 1 per output")
+        return ZeroDynamics(name, 0, "undefined", reason="the zero dynamics are computed for square plants (as many "
+                            "outputs as inputs) with one relative degree >= 1 per output", beyond_scope=True)
     if r > n:
         return ZeroDynamics(name, 0, "undefined", reason=f"total relative degree {r} exceeds the {n} states")
     if r == n:
@@ -109,9 +116,9 @@ def zero_dynamics_at(
     decide = number_decider(kernel)
     if _singular(data.A0, decide):
         return ZeroDynamics(name, n - r, "undefined", reason="decoupling matrix is singular at the point")
-    if data.rational():
+    if data.rational() and not approximate:
         return _exact_route(name, n, r, data)
-    return _numeric_route(name, n, r, degrees, data, decide)
+    return _numeric_route(name, n, r, degrees, data, decide, approximate)
 
 
 # -- exact numbers at the point --------------------------------------------------
@@ -313,13 +320,21 @@ def _complex(c: acb, sign: int | None) -> complex:
 
 # -- numeric route --------------------------------------------------------------------
 def _numeric_route(
-    name: str, n: int, r: int, degrees: Sequence[int], data: _PointData, decide: "object"
+    name: str, n: int, r: int, degrees: Sequence[int], data: _PointData, decide: "object", approximate: bool = False
 ) -> ZeroDynamics:
+    """Irrational numbers at the point (or, ``approximate``, a refined equilibrium known to
+    ~40 digits): balls first, then mpmath with a stated tolerance."""
     d = n - r
     rest_exact = data.f0 + data.G0 * (-(data.A0.LUsolve(data.b0)))
-    if any(not decide(e).taken_zero for e in rest_exact):  # type: ignore[operator]
+    if approximate:
+        if not _rests_within(data, rest_exact):
+            return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics "
+                                "(not even within the refinement of the equilibrium)")
+    elif any(not decide(e).taken_zero for e in rest_exact):  # type: ignore[operator]
         return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics")
-    result = _ball_route(name, n, r, data)
+    # at a refined equilibrium ker dXi is invariant under Df* only to the refinement's
+    # accuracy: the compression onto it (mpmath, with its tolerance) is the honest route
+    result = None if approximate else _ball_route(name, n, r, data)
     for digits in _NUMERIC_DIGITS if result is None else ():
         with mpmath.workdps(digits):
             result = _numeric_once(name, n, r, data, digits)
@@ -333,6 +348,23 @@ def _numeric_route(
                              for f in result.findings)
             return replace(result, not_hurwitz=why, findings=findings)
     return result
+
+
+#: A refined equilibrium is Newton-converged to about 40 digits (analysis/refine.py); its
+#: rest residual of the zero dynamics must be as small, relative to the rates' terms.
+REFINED_REST = 1e-25
+
+
+def _rests_within(data: _PointData, rest: sp.Matrix) -> bool:
+    """|f(x0) + G(x0) u*| small against the size of its terms (balls, 128 bits)."""
+    from plantlint.kernel.balls import ball
+
+    drive = data.G0 * (-(data.A0.LUsolve(data.b0)))
+    for i in range(rest.rows):
+        size = ball(data.f0[i]).abs_upper() + ball(drive[i]).abs_upper() + 1
+        if not bool(ball(rest[i]).abs_upper() <= size * REFINED_REST):
+            return False
+    return True
 
 
 def _ball_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics | None:

@@ -400,3 +400,40 @@ def test_relative_degree_at_a_point_over_the_box_per_output() -> None:
     failed = [f for f in findings if f.rule == "expectation-failed"]
     assert len(failed) == 1 and "relative_degree(y1)" in failed[0].message and "b = 0" in failed[0].message
     assert {"decoupling-singular", "relative-degree-ill-defined"} <= set(_rules(findings))
+
+
+PARAMETER_DEGREE = """plant reach
+param a = 0.5 in 0 .. 2
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u
+rate x1 = -x1 + x2 + ({gain})*u
+rate x2 = -x2 + u
+output y = x1
+point rest: x1 = 0, x2 = 0, u = 0
+expect relative_degree(y) = 1
+"""
+
+
+_a, _x1, _x2, _u = sp.symbols("a x1 x2 u")
+
+
+@pytest.mark.parametrize(("gain", "reference", "holds"), [("a - 1", _a - 1, False), ("x1 - a", _x1 - _a, True),
+                                                        ("2 + a*x2^2", 2 + _a * _x2**2, True)])
+def test_a_relative_degree_claim_holds_for_every_parameter_value(gain: str, reference: sp.Expr, holds: bool) -> None:
+    """Invented plants. L_g y is the gain itself (sympy.diff of the rate by u, below). With
+    gain a - 1 it vanishes for every state at a = 1, inside the range: there y has relative
+    degree 2, so `relative_degree(y) = 1` over the box is false. x1 - a and 2 + a x2^2 vanish
+    at some states but for no parameter value at every state: the claim holds."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    lg = sp.diff(-_x1 + _x2 + reference * _u, _u)
+    identically_zero_at_1 = sp.expand(lg.subs(_a, 1)) == 0
+    assert identically_zero_at_1 is (not holds)
+    raw = analyse_bytes(PARAMETER_DEGREE.format(gain=gain).encode())
+    claims = [f for f in raw.findings if f.rule == "expectation-failed"]
+    if holds:
+        assert claims == []
+    else:
+        (claim,) = claims
+        assert not claim.undecided and "at a = 1 (within its range) L_g y vanishes for every state" in claim.message

@@ -34,9 +34,10 @@ from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.balls import Program, UnsupportedExpression
+from plantlint.kernel.intervals import Budget, certify_nonzero
 from plantlint.kernel.lie import SCREEN_POINTS, Kernel, random_samples
 from plantlint.language.model import ClaimDecl, Model
-from plantlint.language.printer import show_expr, show_point
+from plantlint.language.printer import show_expr, show_number, show_point
 from plantlint.analysis.normal_form import NormalForm, normal_form_at, xi_name
 from plantlint.analysis.structure import (
     Envelope,
@@ -44,6 +45,7 @@ from plantlint.analysis.structure import (
     Structure,
     analyse_structure,
     certify_envelope,
+    lie_name,
     rates_and_outputs,
     structure_at_point,
 )
@@ -329,10 +331,12 @@ class Undecided(str):
     """A claim checker's message for "could not be decided" (as opposed to "fails")."""
 
 
-def claim_stage(claim: ClaimDecl) -> str:
-    """The stage after which ``claim`` can be decided."""
+def claim_stage(claim: ClaimDecl, ranged: bool = False) -> str:
+    """The stage after which ``claim`` can be decided (``ranged``: the model has parameters
+    with a range, over which a relative degree claim without a point is held too, with the
+    envelope stage's verdict)."""
     if claim.kind == "relative_degree":
-        return "structure" if claim.point is None else "points"
+        return ("envelope" if ranged else "structure") if claim.point is None else "points"
     return {"regular": "points", "minimum_phase": "zero dynamics", "state_linearizable": "distributions"}[claim.kind]
 
 
@@ -355,14 +359,14 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
         if claim.kind in ("regular", "minimum_phase") and not a.model.outputs:
             failures: list[tuple[str | None, str]] = [
                 (claim.point, "the model declares no output, so there is no relative degree or zero dynamics to check")]
-        elif claim_stage(claim) in a.completed:
+        elif claim_stage(claim, bool(a.kernel.plant.params)) in a.completed:
             failures = _CLAIM_CHECKS[claim.kind](a, claim)
         elif claim.kind == "regular" and claim.point is None and a.envelope is not None and a.envelope.regular is False:
             failures = [f for f in _regular_claim(a, claim) if f[0] is None]  # the envelope alone refutes it
         else:
             pending.append(finding("expectation-failed", f"`{text}` not decided",
                                    point=claim.point, anchor=claim.anchor, undecided=True,
-                                   hint=f"needs the stage '{claim_stage(claim)}' to complete"))
+                                   hint=f"needs the stage '{claim_stage(claim, bool(a.kernel.plant.params))}' to complete"))
             continue
         if not failures and a.kernel.uncertain:
             failures = [(claim.point, _unproven_zeros(a))]
@@ -432,7 +436,7 @@ def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, 
             origin = (f"; {c.value} is the relative degree of the linearisation at point '{linear[0]}', where the "
                       "nonlinear relative degree is not defined" if linear else "")
             return [(None, f"the relative degree of '{c.output}' is {_degree(generic)}{origin}")]
-        return []
+        return _degree_over_parameters(a, c.output or "", generic)
     out = []
     for pa in _points_for(a, c):
         at = pa.structure.relative_degree.get(c.output or "") if pa.structure else None
@@ -444,6 +448,63 @@ def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, 
             out.append((pa.name, f"at point '{pa.name}' {why}"))
         else:
             out.extend(_box_failure(pa, "rows", c.output))
+    return out
+
+
+#: How many states the search for a parameter-free witness of "the input reaches the output"
+#: tries, and its budget for each (a box of the ranged parameters only).
+_DEGREE_SAMPLES = 6
+_DEGREE_BUDGET = Budget(max_boxes=2000, max_seconds=0.5)
+
+
+def _degree_over_parameters(a: Analysis, output: str, r: int | None) -> list[tuple[str | None, str]]:
+    """The relative degree r holds for every value of the ranged parameters when, for each
+    value, the row L_g L_f^(r-1) y is not identically zero in the states (the rows below it
+    are zero identically in states and parameters). A proof: one state x0 at which the row
+    is never all zero over the parameter box. A refutation: a parameter value at which the
+    row vanishes identically (the input no longer reaches the output there in r steps).
+    Otherwise the claim is not decided over the box."""
+    plant = a.kernel.plant
+    if r is None or not plant.params or output not in plant.outputs:
+        return []
+    i = plant.outputs.index(output)
+    row = [a.kernel.lglf(j, i, r - 1) for j in range(plant.m)]
+    ranged = set(plant.params)
+    if not any(e.free_symbols & ranged for e in row):
+        return []
+    if a.envelope is not None and a.envelope.regular is True and plant.p == 1:
+        return []  # never zero on the box of states and parameters
+    box = {s: plant.param_box[s] for s in plant.params}
+    found: list[dict[sp.Symbol, sp.Expr]] = []
+    for x0 in _state_samples(plant):
+        at = [e.xreplace(x0) for e in row]
+        verdict = certify_nonzero(at, box, _DEGREE_BUDGET)
+        if verdict.regular is True:
+            return []
+        if verdict.regular is False and verdict.witness is not None and verdict.witness_exact:
+            found.append({s: sp.Rational(verdict.witness[str(s)]) for s in plant.params})
+    for p_star in found:
+        if all(a.kernel.is_zero(e.xreplace(p_star)).proven_zero for e in row):
+            where = ", ".join(f"{s} = {show_number(v)}" for s, v in p_star.items())
+            return [(None, f"at {where} (within its range) {lie_name(a.kernel, None, i, r - 1)} vanishes for every "
+                           f"state: the relative degree of '{output}' there is not {r}")]
+    return [(None, Undecided(f"over the parameter box it is not decided whether the relative degree of '{output}' "
+                             f"stays {r}: no state was found where {lie_name(a.kernel, None, i, r - 1)} is proven "
+                             "non-zero for every parameter value"))]
+
+
+def _state_samples(plant: Any) -> list[dict[sp.Symbol, sp.Expr]]:
+    """Rational states in the envelope: its centre, then points spread through it."""
+    from fractions import Fraction
+
+    out = []
+    for t in range(_DEGREE_SAMPLES):
+        x0: dict[sp.Symbol, sp.Expr] = {}
+        for k, s in enumerate(plant.states):
+            lo, hi = plant.state_box.get(s, (sp.Integer(-1), sp.Integer(1)))
+            frac = Fraction(1, 2) if t == 0 else Fraction(((t * 7 + k * 3) % 11) + 1, 13)
+            x0[s] = lo + (hi - lo) * sp.Rational(frac.numerator, frac.denominator)
+        out.append(x0)
     return out
 
 

@@ -173,7 +173,7 @@ def _claims_before_analysis(model: Any) -> list[Finding]:
     from plantlint.analysis.engine import claim_stage, claim_text
 
     return [finding("expectation-failed", f"`{claim_text(c)}` not decided", point=c.point,
-                    anchor=c.anchor, undecided=True, hint=f"needs the stage '{claim_stage(c)}' to complete")
+                    anchor=c.anchor, undecided=True, hint=f"needs the stage '{claim_stage(c, bool(model.ranged_params))}' to complete")
             for c in model.claims]
 
 

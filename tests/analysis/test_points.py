@@ -150,3 +150,38 @@ def test_tolerance_values_are_validated(tmp_path: Path) -> None:
         config.write_text(f"point-tolerance = {wrong}\n", encoding="utf-8")
         with pytest.raises(ConfigError, match="point-tolerance"):
             load_config(tmp_path)
+
+
+def test_a_rate_whose_terms_all_vanish_does_not_stop_the_refinement() -> None:
+    """A reviewer's model (invented numbers). x2' = -x2 + x4^2 + u2 has every term zero at
+    the equilibrium (x2 = x4 = 0), so what is left of it is the miss or an input fitted to
+    it, with no scale of its own; it once made the rounded point "not an equilibrium".
+    Changing x1 alone to (13/10 - e^(1/10))/2 makes the point an exact equilibrium (by
+    hand: x1' = 0 gives u1 = x1 - 1/10, then x4' = 0 gives 2 x1 - 13/10 + e^(1/10) = 0;
+    math.exp below)."""
+    import math
+
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = b"""plant rounded
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+state x4 in -1 .. 1
+input u1
+input u2
+rate x1 = -x1 + x3 + u1
+rate x2 = -x2 + x4^2 + u2
+rate x3 = x4
+rate x4 = -2*x3 - x4 + x1 + x2 + exp(x3) - 1 + u1 - u2
+output y1 = x1
+output y2 = x2
+point rounded: x1 = 0.0974146, x2 = 0, x3 = 0.1, x4 = 0 tolerance 1e-5
+"""
+    raw = analyse_bytes(text)
+    (note,) = [f for f in raw.findings if f.rule == "point-refined"]
+    assert not [f for f in raw.findings if f.rule == "point-not-equilibrium"]
+    x1 = (1.3 - math.exp(0.1)) / 2
+    assert f"x1 = {x1:.10g}" in note.message and "u2 = 0" in note.message
+    relative = raw.analysis["points"]["rounded"]["refinement"]["relative_residual"]
+    assert relative < 1e-6  # the rounding of x1 (6e-7 of its value), not 100 %

@@ -8,7 +8,9 @@ model's own scale and finds the equilibrium nearby:
   at the point (the largest |term| of f_i and of each g_ij u_j), the inputs left
   out of the point at their least-squares values; the largest ratio counts. It is
   dimensionless: 1e-4 means the rate is ten thousand times smaller than the
-  forces that make it up, the mark of a rounded value.
+  forces that make it up, the mark of a rounded value. A rate whose terms are no
+  larger than itself (all zero at the equilibrium) is measured against the
+  model's largest term instead: it has no scale of its own.
 * **refined point**: Newton's method (least squares, 200-bit balls through
   :class:`~plantlint.kernel.balls.Program`, never a float comparison for a
   decision) with one written value free at a time, plus the inputs left out; the
@@ -108,10 +110,16 @@ class _System:
 
 
 def _relative(rates: Sequence, sizes: Sequence) -> mpmath.mpf:
+    """The largest |rate| / size of its terms. A rate whose terms are no larger than the
+    rate itself (every term zero at the equilibrium, as for x2' = -x2 + u2 at x2 = 0: what
+    is left is the miss, or an input fitted to it) has no scale of its own and is measured
+    against the largest term of the model."""
+    scale = max(sizes, default=mpmath.mpf(0))
     worst = mpmath.mpf(0)
     for r, s in zip(rates, sizes):
         if r != 0:
-            worst = max(worst, abs(r) / s if s != 0 else mpmath.inf)
+            own = s if s > 2 * abs(r) else scale
+            worst = max(worst, abs(r) / own if own != 0 else mpmath.inf)
     return worst
 
 
@@ -237,7 +245,9 @@ def near_miss(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[s
                 return NearMiss(float(relative), shown, (), None)
             moved = [v for v in written if abs(found[v] - start[v]) > mpmath.mpf("1e-30") * scales[v]]
         values = {s: (given[s] if s not in moved else _rational(found[s])) for s in written}
-        values.update({u: _rational(found[u]) for u in unknown})
+        # an input Newton leaves at rounding level (1e-59 where the equilibrium needs 0) is 0
+        values.update({u: sp.Integer(0) if abs(found[u]) <= mpmath.mpf("1e-30") * scales[u] else _rational(found[u])
+                       for u in unknown})
         changed = tuple((v, given[v], values[v]) for v in moved)
         candidates = tuple((v, c) for v in moved if (c := _short(found[v])) is not None)
         return NearMiss(float(relative), shown, changed, values, candidates)

@@ -20,7 +20,7 @@ from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.exact import ZeroDecider, gauss_jordan, number_decider, has_undefined
 from plantlint.kernel.lie import Kernel
-from plantlint.language.printer import show_number
+from plantlint.language.printer import decimal_text, show_number
 from plantlint.kernel.plant import Plant, as_expr
 
 #: Outcomes of :func:`solve_point`.
@@ -290,7 +290,7 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     if values is None and miss is not None and miss.values is not None:
         values = miss.values
     changed = [(z, w) for z, w, _ in miss.changed] if miss is not None else []
-    moved = ", ".join(f"{z} = {_shown(values[z], exact)} (written {show_number(w)})" for z, w in changed) \
+    moved = ", ".join(f"{z} = {_beside(values[z], exact, _written(w))} (written {_written(w)})" for z, w in changed) \
         if values is not None else ""
     solved = ", ".join(f"{u} = {_shown(values[u], exact)}" for u in unknown) if values is not None else ""
     refinement: dict[str, object] = {
@@ -334,6 +334,28 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
 
 #: Wall-clock bound of the search for the equilibrium near a point that misses one.
 REFINE_SECONDS = 3.0
+
+
+def _written(value: sp.Expr) -> str:
+    """A value as the file wrote it: a decimal in full (0.1272105004, not 0.127211), so the
+    refined value beside it is seen to differ where it does."""
+    if value.is_Rational and not value.is_Integer:
+        text, exact = decimal_text(value, 20)
+        if exact:
+            return text
+    return show_number(value)
+
+
+def _beside(value: sp.Expr, exact: bool, written: str) -> str:
+    """A refined value next to the written one, with the digits it takes to tell them apart."""
+    shown = _shown(value, exact)
+    if exact or value.is_Integer:
+        return shown
+    for digits in range(11, 21):
+        if shown != written:
+            break
+        shown = format(float(value), f".{digits}g") if digits <= 17 else decimal_text(sp.Rational(value), digits)[0]
+    return shown
 
 
 def _shown(value: sp.Expr, exact: bool) -> str:

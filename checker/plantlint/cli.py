@@ -10,9 +10,10 @@ import argparse
 import math
 import os
 import signal
+import stat
 import sys
 from pathlib import Path
-from typing import TYPE_CHECKING, Sequence, TextIO
+from typing import TYPE_CHECKING, Callable, Sequence, TextIO
 
 from plantlint import __version__
 
@@ -332,24 +333,73 @@ def _config_start(paths: list[str]) -> Path:
 
 
 def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> int:
+    """Write the report; the exit code says what it found (0 or 1), or 2 when it could not
+    be written. With ``output`` the report is rendered in full into a temporary file beside
+    it and then renamed over it, so a run that fails leaves an earlier report whole."""
     from plantlint.core.findings import Report
     from plantlint.report.formats import get_formatter
 
     assert isinstance(report, Report)
     formatter = get_formatter(fmt)
-    if output:
-        try:
-            with open(output, "w", encoding="utf-8", newline="\n") as fh:
-                formatter.render(report, fh, color=False)
-        except OSError as exc:
-            return _fail(f"{output}: cannot write: {exc.strerror}")
-        if fmt in ("json", "sarif"):
-            # keep the terminal informed when the report went to a file
-            summary = get_formatter("lines")
-            summary.render(report, sys.stdout, color=False)
-    else:
-        formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))
+    try:
+        if output:
+            _write_atomically(output, lambda fh: formatter.render(report, fh, color=False))
+        else:
+            formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))
+    except BrokenPipeError:
+        raise
+    except OSError as exc:
+        return _fail(f"{output or 'standard output'}: cannot write: {exc.strerror or exc}")
+    except Exception as exc:  # a report that cannot be written is no finding: never exit 1 for it
+        return _fail(f"the {fmt} report could not be written: internal error ({type(exc).__name__}: "
+                     f"{_one_line(str(exc))}); {'no report written' if output else 'the output is incomplete'}")
+    if output and fmt in ("json", "sarif"):
+        # keep the terminal informed when the report went to a file
+        get_formatter("lines").render(report, sys.stdout, color=False)
     return EXIT_FINDINGS if report.fails() else EXIT_OK
+
+
+def _one_line(text: str) -> str:
+    from plantlint.report.formats.base import one_line
+
+    return one_line(text)
+
+
+def _write_atomically(output: str, write: Callable[[TextIO], None]) -> None:
+    """Call ``write`` on a temporary file in ``output``'s folder, then rename it to
+    ``output`` (``os.replace``: readers see the old report or the new one, never a part).
+    A link is followed, so the file it points to is replaced; a device or a pipe
+    (``/dev/stdout``) is written directly, as it cannot be replaced."""
+    import tempfile
+
+    target = os.path.realpath(output)
+    try:
+        mode = os.stat(target).st_mode
+    except FileNotFoundError:
+        mode = None
+    if mode is not None and not stat.S_ISREG(mode):
+        with open(output, "w", encoding="utf-8", newline="\n") as fh:
+            write(fh)
+        return
+    if mode is None:  # a new file gets the permissions open() would have given it
+        umask = os.umask(0)
+        os.umask(umask)
+        permissions = 0o666 & ~umask
+    else:
+        permissions = stat.S_IMODE(mode)
+    folder, name = os.path.split(target)
+    fd, temporary = tempfile.mkstemp(prefix=f".{name}.", suffix=".tmp", dir=folder or ".")
+    try:
+        with open(fd, "w", encoding="utf-8", newline="\n") as fh:
+            write(fh)
+        os.chmod(temporary, permissions)
+        os.replace(temporary, target)
+    except BaseException:
+        try:
+            os.unlink(temporary)
+        except OSError:
+            pass
+        raise
 
 
 def _rules(args: argparse.Namespace) -> int:

@@ -60,7 +60,7 @@ def shard_key(path: Path, root: Path) -> str:
 
 def preference(key: str, count: int) -> list[int]:
     """Shards 0..count-1 in the order this model prefers them (rendezvous hashing)."""
-    scores = [(hashlib.sha256(f"{key}\0{j}".encode("utf-8")).digest(), j) for j in range(count)]
+    scores = [(hashlib.sha256(f"{key}\0{j}".encode("utf-8", "surrogateescape")).digest(), j) for j in range(count)]
     return [j for _, j in sorted(scores, reverse=True)]
 
 

@@ -230,14 +230,14 @@ def _check(args: argparse.Namespace) -> int:
     from dataclasses import replace
 
     from plantlint.core.catalogue import load_catalogue
-    from plantlint.run.config import ConfigError, effective_jobs, load_config, parse_rule_list
+    from plantlint.run.config import ConfigError, effective_jobs, parse_rule_list
     from plantlint.core.findings import Report, Severity
     from plantlint.run.runner import UsageError, check_targets, discover
 
     catalogue = load_catalogue()
     known = frozenset(catalogue.ids())
     try:
-        config = load_config(_config_start(args.paths), Path(args.config) if args.config else None, known)
+        config = _load_config(args.paths, args.config, known)
         changes = {}
         if args.only:  # replaces the configuration's selection; every report says so
             changes.update(only=parse_rule_list(args.only, "--only", known), only_reason="",
@@ -311,6 +311,14 @@ def _say_excluded(paths: list[str], config: Config) -> None:
               f"\"{pattern}\" in {where}", file=sys.stderr)
 
 
+def _folder(p: Path) -> Path:
+    """The folder a checked path's configuration is looked for from."""
+    try:
+        return p.resolve() if p.is_dir() else p.resolve().parent
+    except (RuntimeError, OSError):  # a symbolic link loop: discovery reports it
+        return Path(os.path.abspath(p)).parent
+
+
 def _config_start(paths: list[str]) -> Path:
     """Where to look for the configuration: above the checked paths, else here.
 
@@ -319,17 +327,30 @@ def _config_start(paths: list[str]) -> Path:
     """
     if not paths:
         return Path.cwd()
-    def folder(p: Path) -> Path:
-        try:
-            return p.resolve() if p.is_dir() else p.resolve().parent
-        except (RuntimeError, OSError):  # a symbolic link loop: discovery reports it
-            return Path(os.path.abspath(p)).parent
-
-    folders = [folder(Path(p)) for p in paths]
+    folders = [_folder(Path(p)) for p in paths]
     try:
         return Path(os.path.commonpath([str(f) for f in folders]))
     except ValueError:
         return Path.cwd()
+
+
+def _load_config(paths: list[str], explicit: str | None, known: frozenset[str]) -> Config:
+    """The run's configuration: ``--config``, else the one the checked paths fall under.
+    Paths under two configuration files (two projects) are a usage error: one run has one
+    set of rules, so either file alone would silently misjudge the other project."""
+    from plantlint.run.config import ConfigError, find_config, load_config, shown_path
+
+    if explicit is None and len(paths) > 1:
+        files: dict[Path, str] = {}
+        for path in paths:
+            found = find_config(_folder(Path(path)))
+            if found is not None:
+                files.setdefault(found[0].resolve(), path)
+        if len(files) > 1:
+            named = ", ".join(f"{shown_path(f)} (for {p})" for f, p in sorted(files.items()))
+            raise ConfigError(f"the paths fall under {len(files)} configuration files: {named}; check each "
+                              "project separately, or pass --config FILE to use one for all")
+    return load_config(_config_start(paths), Path(explicit) if explicit else None, known)
 
 
 def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> int:
@@ -553,15 +574,14 @@ def _plot(args: argparse.Namespace) -> int:
     from plantlint.core.catalogue import load_catalogue
     from plantlint.core.deadline import LATE, bounded
     from plantlint.report.plots import plot_model
-    from plantlint.run.config import ConfigError, load_config
+    from plantlint.run.config import ConfigError
     from plantlint.run.runner import UsageError, discover, read_source
 
     states = [s.strip() for s in args.states.split(",")] if args.states else None
     if states is not None and (len(states) != 2 or not all(states)):
         return _fail("--states needs two state names separated by a comma, e.g. --states th,w")
     try:
-        config = load_config(_config_start(args.paths), Path(args.config) if args.config else None,
-                             frozenset(load_catalogue().ids()))
+        config = _load_config(args.paths, args.config, frozenset(load_catalogue().ids()))
         config = replace(config, **_timeout_change(args.timeout))
         targets = discover(args.paths, config.root, config.include, config.exclude)
     except (ConfigError, UsageError) as exc:

@@ -105,6 +105,13 @@ def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli: CLI) -> No
     ["check", "empty-folder"],
     ["check", "folder.plant"],
     ["check", "--config", "no-such.toml", "x.plant"],
+    ["check", "--since", "", "x.plant"],  # an empty value is no value, not "option not given"
+    ["check", "--since", " ", "x.plant"],
+    ["check", "--cache-dir", "", "x.plant"],
+    ["check", "--config", "", "x.plant"],
+    ["check", "--output", "", "x.plant"],
+    ["check", "--shard", "", "x.plant"],
+    ["merge", "--output", "", "shard.json"],
     ["rules", "no-such-rule"],
     ["no-such-command"],
 ], ids=lambda a: " ".join(a))

@@ -94,7 +94,8 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--cache-dir", metavar="DIR", help="cache folder (default: .plantlint/cache beside the configuration)")
     check.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
     check.add_argument("--color", choices=("auto", "always", "never"), default="auto",
-                       help="colour in text output (default: auto; NO_COLOR is honoured)")
+                       help="colour in text output (default: auto: on a terminal unless NO_COLOR is set; "
+                       "always overrides NO_COLOR)")
     check.add_argument("--shard", metavar="K/N",
                        help="check only shard K of N (a deterministic share of the models; "
                        "`plantlint merge` joins the shards' JSON reports)")
@@ -234,6 +235,10 @@ def _check(args: argparse.Namespace) -> int:
     from plantlint.core.findings import Report, Severity
     from plantlint.run.runner import UsageError, check_targets, discover
 
+    for option in ("since", "cache_dir", "config", "output", "shard"):
+        value = getattr(args, option)
+        if value is not None and not value.strip():  # `--since "$UNSET"`: not the same as leaving it out
+            return _fail(f"--{option.replace('_', '-')} needs a value; it was given an empty one")
     catalogue = load_catalogue()
     known = frozenset(catalogue.ids())
     try:
@@ -532,6 +537,8 @@ def _merge(args: argparse.Namespace) -> int:
     from plantlint.run.runner import read_source, source_text, Target
     from plantlint.run.shard import ShardError, merge_reports
 
+    if args.output is not None and not args.output.strip():
+        return _fail("--output needs a value; it was given an empty one")
     named = []
     for name in args.reports:
         try:

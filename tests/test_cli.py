@@ -105,6 +105,13 @@ def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli: CLI) -> No
     ["check", "empty-folder"],
     ["check", "folder.plant"],
     ["check", "--config", "no-such.toml", "x.plant"],
+    ["check", "--since", "", "x.plant"],  # an empty value is no value, not "option not given"
+    ["check", "--since", " ", "x.plant"],
+    ["check", "--cache-dir", "", "x.plant"],
+    ["check", "--config", "", "x.plant"],
+    ["check", "--output", "", "x.plant"],
+    ["check", "--shard", "", "x.plant"],
+    ["merge", "--output", "", "shard.json"],
     ["rules", "no-such-rule"],
     ["no-such-command"],
 ], ids=lambda a: " ".join(a))
@@ -240,6 +247,26 @@ def test_configuration_is_found_from_a_subfolder(project: Path, cli: CLI) -> Non
     run = cli(project / "models" / "line" / "deeper", "check", "--format", "json", "../drift.plant")
     assert run.code == 1 and rules_of(run) == [("zero-dynamics-critical", "error")]
     assert [f["path"] for f in run.json()["files"]] == ["../drift.plant"]
+
+
+def test_paths_under_two_configurations_are_a_usage_error(tmp_path: Path, cli: CLI) -> None:
+    """a/ re-grades the unstable zero dynamics to a note, b/ skips them: one run cannot
+    follow both, and neither may be dropped in silence."""
+    for name, table in (("a", '[severity.zero-dynamics-unstable]\nlevel = "note"\nreason = "a: not inverted"\n'),
+                        ("b", '[skip]\nzero-dynamics-unstable = "b: reviewed"\n')):
+        (tmp_path / name).mkdir()
+        (tmp_path / name / "plantlint.toml").write_text(table, encoding="utf-8")
+        copy(UNSTABLE, tmp_path / name / "tail.plant")
+    for args in (["a", "b"], ["a/tail.plant", "b/tail.plant"]):
+        run = cli(tmp_path, "check", "--format", "json", *args)
+        assert run.code == 2 and one_line_error(run) and run.stdout == "", run.stderr
+        assert "a/plantlint.toml (for a" in run.stderr and "b/plantlint.toml (for b" in run.stderr
+        assert "check each project separately" in run.stderr and "--config" in run.stderr
+    # each project alone, several paths in one project, and --config for both: as before
+    assert rules_of(cli(tmp_path, "check", "--format", "json", "a")) == [("zero-dynamics-unstable", "note")]
+    assert cli(tmp_path, "check", "--format", "json", "a/tail.plant", "a").code == 0
+    run = cli(tmp_path, "check", "--format", "json", "--config", "a/plantlint.toml", "a", "b")
+    assert run.code == 0 and rules_of(run) == [("zero-dynamics-unstable", "note")] * 2
 
 
 def test_severity_override_from_pyproject(tmp_path: Path, cli: CLI) -> None:

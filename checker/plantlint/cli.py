@@ -10,9 +10,10 @@ import argparse
 import math
 import os
 import signal
+import stat
 import sys
 from pathlib import Path
-from typing import TYPE_CHECKING, Sequence, TextIO
+from typing import TYPE_CHECKING, Callable, Sequence, TextIO
 
 from plantlint import __version__
 
@@ -93,7 +94,8 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--cache-dir", metavar="DIR", help="cache folder (default: .plantlint/cache beside the configuration)")
     check.add_argument("--config", metavar="FILE", help="use this plantlint.toml / pyproject.toml")
     check.add_argument("--color", choices=("auto", "always", "never"), default="auto",
-                       help="colour in text output (default: auto; NO_COLOR is honoured)")
+                       help="colour in text output (default: auto: on a terminal unless NO_COLOR is set; "
+                       "always overrides NO_COLOR)")
     check.add_argument("--shard", metavar="K/N",
                        help="check only shard K of N (a deterministic share of the models; "
                        "`plantlint merge` joins the shards' JSON reports)")
@@ -229,14 +231,18 @@ def _check(args: argparse.Namespace) -> int:
     from dataclasses import replace
 
     from plantlint.core.catalogue import load_catalogue
-    from plantlint.run.config import ConfigError, effective_jobs, load_config, parse_rule_list
+    from plantlint.run.config import ConfigError, effective_jobs, parse_rule_list
     from plantlint.core.findings import Report, Severity
     from plantlint.run.runner import UsageError, check_targets, discover
 
+    for option in ("since", "cache_dir", "config", "output", "shard"):
+        value = getattr(args, option)
+        if value is not None and not value.strip():  # `--since "$UNSET"`: not the same as leaving it out
+            return _fail(f"--{option.replace('_', '-')} needs a value; it was given an empty one")
     catalogue = load_catalogue()
     known = frozenset(catalogue.ids())
     try:
-        config = load_config(_config_start(args.paths), Path(args.config) if args.config else None, known)
+        config = _load_config(args.paths, args.config, known)
         changes = {}
         if args.only:  # replaces the configuration's selection; every report says so
             changes.update(only=parse_rule_list(args.only, "--only", known), only_reason="",
@@ -310,6 +316,14 @@ def _say_excluded(paths: list[str], config: Config) -> None:
               f"\"{pattern}\" in {where}", file=sys.stderr)
 
 
+def _folder(p: Path) -> Path:
+    """The folder a checked path's configuration is looked for from."""
+    try:
+        return p.resolve() if p.is_dir() else p.resolve().parent
+    except (RuntimeError, OSError):  # a symbolic link loop: discovery reports it
+        return Path(os.path.abspath(p)).parent
+
+
 def _config_start(paths: list[str]) -> Path:
     """Where to look for the configuration: above the checked paths, else here.
 
@@ -318,38 +332,100 @@ def _config_start(paths: list[str]) -> Path:
     """
     if not paths:
         return Path.cwd()
-    def folder(p: Path) -> Path:
-        try:
-            return p.resolve() if p.is_dir() else p.resolve().parent
-        except (RuntimeError, OSError):  # a symbolic link loop: discovery reports it
-            return Path(os.path.abspath(p)).parent
-
-    folders = [folder(Path(p)) for p in paths]
+    folders = [_folder(Path(p)) for p in paths]
     try:
         return Path(os.path.commonpath([str(f) for f in folders]))
     except ValueError:
         return Path.cwd()
 
 
+def _load_config(paths: list[str], explicit: str | None, known: frozenset[str]) -> Config:
+    """The run's configuration: ``--config``, else the one the checked paths fall under.
+    Paths under two configuration files (two projects) are a usage error: one run has one
+    set of rules, so either file alone would silently misjudge the other project."""
+    from plantlint.run.config import ConfigError, find_config, load_config, shown_path
+
+    if explicit is None and len(paths) > 1:
+        files: dict[Path, str] = {}
+        for path in paths:
+            found = find_config(_folder(Path(path)))
+            if found is not None:
+                files.setdefault(found[0].resolve(), path)
+        if len(files) > 1:
+            named = ", ".join(f"{shown_path(f)} (for {p})" for f, p in sorted(files.items()))
+            raise ConfigError(f"the paths fall under {len(files)} configuration files: {named}; check each "
+                              "project separately, or pass --config FILE to use one for all")
+    return load_config(_config_start(paths), Path(explicit) if explicit else None, known)
+
+
 def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> int:
+    """Write the report; the exit code says what it found (0 or 1), or 2 when it could not
+    be written. With ``output`` the report is rendered in full into a temporary file beside
+    it and then renamed over it, so a run that fails leaves an earlier report whole."""
     from plantlint.core.findings import Report
     from plantlint.report.formats import get_formatter
 
     assert isinstance(report, Report)
     formatter = get_formatter(fmt)
-    if output:
-        try:
-            with open(output, "w", encoding="utf-8", newline="\n") as fh:
-                formatter.render(report, fh, color=False)
-        except OSError as exc:
-            return _fail(f"{output}: cannot write: {exc.strerror}")
-        if fmt in ("json", "sarif"):
-            # keep the terminal informed when the report went to a file
-            summary = get_formatter("lines")
-            summary.render(report, sys.stdout, color=False)
-    else:
-        formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))
+    try:
+        if output:
+            _write_atomically(output, lambda fh: formatter.render(report, fh, color=False))
+        else:
+            formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))
+    except BrokenPipeError:
+        raise
+    except OSError as exc:
+        return _fail(f"{output or 'standard output'}: cannot write: {exc.strerror or exc}")
+    except Exception as exc:  # a report that cannot be written is no finding: never exit 1 for it
+        return _fail(f"the {fmt} report could not be written: internal error ({type(exc).__name__}: "
+                     f"{_one_line(str(exc))}); {'no report written' if output else 'the output is incomplete'}")
+    if output and fmt in ("json", "sarif"):
+        # keep the terminal informed when the report went to a file
+        get_formatter("lines").render(report, sys.stdout, color=False)
     return EXIT_FINDINGS if report.fails() else EXIT_OK
+
+
+def _one_line(text: str) -> str:
+    from plantlint.report.formats.base import one_line
+
+    return one_line(text)
+
+
+def _write_atomically(output: str, write: Callable[[TextIO], None]) -> None:
+    """Call ``write`` on a temporary file in ``output``'s folder, then rename it to
+    ``output`` (``os.replace``: readers see the old report or the new one, never a part).
+    A link is followed, so the file it points to is replaced; a device or a pipe
+    (``/dev/stdout``) is written directly, as it cannot be replaced."""
+    import tempfile
+
+    target = os.path.realpath(output)
+    try:
+        mode = os.stat(target).st_mode
+    except FileNotFoundError:
+        mode = None
+    if mode is not None and not stat.S_ISREG(mode):
+        with open(output, "w", encoding="utf-8", newline="\n") as fh:
+            write(fh)
+        return
+    if mode is None:  # a new file gets the permissions open() would have given it
+        umask = os.umask(0)
+        os.umask(umask)
+        permissions = 0o666 & ~umask
+    else:
+        permissions = stat.S_IMODE(mode)
+    folder, name = os.path.split(target)
+    fd, temporary = tempfile.mkstemp(prefix=f".{name}.", suffix=".tmp", dir=folder or ".")
+    try:
+        with open(fd, "w", encoding="utf-8", newline="\n") as fh:
+            write(fh)
+        os.chmod(temporary, permissions)
+        os.replace(temporary, target)
+    except BaseException:
+        try:
+            os.unlink(temporary)
+        except OSError:
+            pass
+        raise
 
 
 def _rules(args: argparse.Namespace) -> int:
@@ -461,6 +537,8 @@ def _merge(args: argparse.Namespace) -> int:
     from plantlint.run.runner import read_source, source_text, Target
     from plantlint.run.shard import ShardError, merge_reports
 
+    if args.output is not None and not args.output.strip():
+        return _fail("--output needs a value; it was given an empty one")
     named = []
     for name in args.reports:
         try:
@@ -503,15 +581,14 @@ def _plot(args: argparse.Namespace) -> int:
     from plantlint.core.catalogue import load_catalogue
     from plantlint.core.deadline import LATE, bounded
     from plantlint.report.plots import plot_model
-    from plantlint.run.config import ConfigError, load_config
+    from plantlint.run.config import ConfigError
     from plantlint.run.runner import UsageError, discover, read_source
 
     states = [s.strip() for s in args.states.split(",")] if args.states else None
     if states is not None and (len(states) != 2 or not all(states)):
         return _fail("--states needs two state names separated by a comma, e.g. --states th,w")
     try:
-        config = load_config(_config_start(args.paths), Path(args.config) if args.config else None,
-                             frozenset(load_catalogue().ids()))
+        config = _load_config(args.paths, args.config, frozenset(load_catalogue().ids()))
         config = replace(config, **_timeout_change(args.timeout))
         targets = discover(args.paths, config.root, config.include, config.exclude)
     except (ConfigError, UsageError) as exc:

@@ -314,6 +314,9 @@ def test_sarif_keeps_rule_index_valid_for_rules_outside_the_catalogue(sarif_vali
         ("my models/a#1.plant", {"uri": "my%20models/a%231.plant", "uriBaseId": "%SRCROOT%"}),
         ("/abs/path/a.plant", {"uri": "file:///abs/path/a.plant"}),
         ("C:\\work\\a.plant", {"uri": "file:///C:/work/a.plant"}),
+        ("m/caf\u00e9.plant", {"uri": "m/caf%C3%A9.plant", "uriBaseId": "%SRCROOT%"}),  # UTF-8 name
+        ("m/caf\udce9.plant", {"uri": "m/caf%E9.plant", "uriBaseId": "%SRCROOT%"}),  # Latin-1 byte 0xe9
+        ("/m/caf\udce9.plant", {"uri": "file:///m/caf%E9.plant"}),
     ],
 )
 def test_sarif_artifact_locations(path: str, expected: dict[str, str]) -> None:

@@ -15,10 +15,11 @@ import subprocess
 import sys
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import pytest
 
-from conftest import FIXTURES as FIXTURE_ROOT, Run, run_on_terminal
+from conftest import FIXTURES as FIXTURE_ROOT, MAGLEV, Run, run_on_terminal
 
 FIXTURES = FIXTURE_ROOT / "rules"
 
@@ -285,6 +286,68 @@ def test_tiny_budget_stops_each_model_and_the_run_goes_on(workspace: Path, tmp_p
     assert cache_entries(cache) == []
     full = plantlint(workspace, "check", "--format", "json", "--cache-dir", str(cache), paths[0])
     assert [f["rule"] for f in json.loads(full.stdout)["files"][0]["findings"]] == ["zero-dynamics-unstable"]
+
+
+def _check_in_process(capsys: pytest.CaptureFixture[str], cache: Path) -> dict[str, Any]:
+    """``check --format json maglev.plant`` through main() in this process: the worker is
+    forked from it, so what a test patches here holds in the worker too."""
+    from plantlint.cli import main
+
+    code = main(["check", "--format", "json", "--jobs", "1", "--cache-dir", str(cache), "maglev.plant"])
+    out, err = capsys.readouterr()
+    assert code in (0, 1) and "Traceback" not in err, err
+    (file,) = json.loads(out)["files"]
+    return dict(file)
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the worker must be forked from the test")
+def test_a_result_shaped_by_the_envelope_proofs_clock_is_not_cached(tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+                                                                    capsys: pytest.CaptureFixture[str]) -> None:
+    """A slow machine runs out of ``envelope-seconds``; a later run on a fast one must prove
+    the envelope, not replay "undecided" from the cache."""
+    import types
+
+    from plantlint.kernel import intervals
+
+    monkeypatch.chdir(tmp_path)
+    Path("maglev.plant").write_bytes(MAGLEV)
+    cache = tmp_path / "cache"
+    ticks = iter(range(0, 10**9, 1000))  # a machine on which every box takes 1000 s
+    monkeypatch.setattr(intervals, "time", types.SimpleNamespace(perf_counter=lambda: float(next(ticks))))
+    slow = _check_in_process(capsys, cache)
+    unproven = [f["message"] for f in slow["findings"] if f["rule"] == "envelope-unproven"]
+    assert unproven and "undecided" in unproven[0], slow["findings"]
+    assert cache_entries(cache) == []
+    monkeypatch.undo()  # the fast machine, same model, same settings, same cache
+    monkeypatch.chdir(tmp_path)
+    fast = _check_in_process(capsys, cache)
+    assert "envelope-unproven" not in [f["rule"] for f in fast["findings"]]
+    assert fast["analysis"]["envelope"]["regular"] is True
+    assert len(cache_entries(cache)) == 1  # a result no clock shaped is cached
+    assert _check_in_process(capsys, cache) == fast
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the worker must be forked from the test")
+def test_a_result_shaped_by_a_bounded_step_is_not_cached(tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+                                                         capsys: pytest.CaptureFixture[str]) -> None:
+    """The search for the equilibrium near a point (core.deadline.bounded, REFINE_SECONDS)
+    runs out of its time: the finding says so, and that result is not cached."""
+    from plantlint.analysis import equilibria
+
+    monkeypatch.chdir(tmp_path)
+    Path("maglev.plant").write_bytes(MAGLEV)
+    cache = tmp_path / "cache"
+    monkeypatch.setattr(equilibria, "REFINE_SECONDS", 1e-9)
+    slow = _check_in_process(capsys, cache)
+    (miss,) = [f["message"] for f in slow["findings"] if f["rule"] == "point-not-equilibrium"]
+    assert "was not worked out within" in miss, miss
+    assert cache_entries(cache) == []
+    monkeypatch.undo()
+    monkeypatch.chdir(tmp_path)
+    fast = _check_in_process(capsys, cache)
+    (miss,) = [f["message"] for f in fast["findings"] if f["rule"] == "point-not-equilibrium"]
+    assert "it is an equilibrium with i = 0.70035" in miss, miss
+    assert len(cache_entries(cache)) == 1
 
 
 def test_budget_beyond_any_wait_is_accepted(workspace: Path) -> None:

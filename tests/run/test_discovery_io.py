@@ -10,6 +10,7 @@ import os
 import subprocess
 import sys
 from pathlib import Path
+from typing import Any
 
 import pytest
 
@@ -82,3 +83,103 @@ def test_unreadable_file_is_an_io_problem_not_a_syntax_finding(tmp_path: Path, c
     code, err = run(capsys, "secret.plant")
     assert code == 2
     assert "secret.plant: cannot read: Permission denied" in err
+
+
+# -- file names that are not UTF-8; writing the report ------------------------------------
+
+def _strings(value: object) -> list[str]:
+    if isinstance(value, str):
+        return [value]
+    if isinstance(value, dict):
+        return [s for k, v in value.items() for s in (*_strings(k), *_strings(v))]
+    if isinstance(value, list):
+        return [s for v in value for s in _strings(v)]
+    return []
+
+
+def _latin1_named_model(tmp_path: Path) -> Path:
+    """A folder ``my models`` holding a model whose name is the Latin-1 bytes ``caf\\xe9.plant``."""
+    if sys.platform == "darwin" or sys.getfilesystemencoding().lower() not in ("utf-8", "utf8"):
+        pytest.skip("needs a file system that takes any bytes as a name")
+    folder = tmp_path / "my models"
+    folder.mkdir()
+    name = os.fsdecode(b"caf\xe9.plant")
+    assert "\udce9" in name  # what discovery reads back: a lone surrogate for the byte 0xe9
+    # an unused parameter: one warning, so every format names the file and the run passes
+    (folder / name).write_text(MODEL.replace("state", "param k = 2\nstate"), encoding="utf-8")
+    return folder
+
+
+def test_a_file_name_that_is_not_utf8_in_every_format(tmp_path: Path, capsys: pytest.CaptureFixture[str],
+                                                      monkeypatch: pytest.MonkeyPatch) -> None:
+    import json
+
+    import jsonschema
+
+    from conftest import STANDARDS
+    from plantlint.report.formats.json_report import report_schema
+
+    monkeypatch.chdir(tmp_path)
+    _latin1_named_model(tmp_path)
+    sarif = tmp_path / "r.sarif"
+    code, err = run(capsys, "--format", "sarif", "--output", str(sarif), "my models")
+    assert code == 0, err
+    raw = sarif.read_bytes()
+    log = json.loads(raw.decode("utf-8"))  # strict UTF-8
+    schema = json.loads((STANDARDS / "sarif-schema-2.1.0.json").read_text(encoding="utf-8"))
+    jsonschema.Draft4Validator(schema).validate(log)
+    assert not any(0xD800 <= ord(c) <= 0xDFFF for s in _strings(log) for c in s)
+    # the URI percent-encodes the name's own bytes (0xe9), not a UTF-8 encoding of a character
+    (result,) = log["runs"][0]["results"]
+    assert result["ruleId"] == "unused-name"
+    assert result["locations"][0]["physicalLocation"]["artifactLocation"] == {
+        "uri": "my%20models/caf%E9.plant", "uriBaseId": "%SRCROOT%"}
+    report = tmp_path / "r.json"
+    code, err = run(capsys, "--format", "json", "--output", str(report), "my models")
+    assert code == 0, err
+    data = json.loads(report.read_bytes().decode("utf-8"))
+    jsonschema.Draft202012Validator(report_schema()).validate(data)
+    assert [f["path"] for f in data["files"]] == ["my models/caf\\xe9.plant"]
+    assert not any(0xD800 <= ord(c) <= 0xDFFF for s in _strings(data) for c in s)
+    for fmt in ("lines", "text", "markdown"):
+        code = main(["check", "--no-cache", "--jobs", "1", "--format", fmt, "my models"])
+        out, err = capsys.readouterr()
+        assert code == 0 and "Traceback" not in err, err
+        assert "my models/caf\\xe9.plant" in out, out  # the byte shown as in the JSON report
+        assert "unused-name" in out or fmt == "markdown", out
+    code = main(["check", "--no-cache", "--jobs", "1", "--shard", "1/1", "my models"])  # hashes the name
+    assert code == 0 and "Traceback" not in capsys.readouterr().err
+
+
+def test_a_report_that_cannot_be_written_keeps_the_earlier_one(tmp_path: Path, capsys: pytest.CaptureFixture[str],
+                                                               monkeypatch: pytest.MonkeyPatch) -> None:
+    from plantlint.report.formats.sarif import SarifFormatter
+
+    monkeypatch.chdir(tmp_path)
+    Path("lag.plant").write_text(MODEL.replace("state", "param k = 2\nstate"), encoding="utf-8")
+    Path("out").mkdir()
+    earlier = Path("out/r.sarif")
+    code, err = run(capsys, "--format", "sarif", "--output", str(earlier), "lag.plant")
+    assert code == 0, err
+    before = earlier.read_bytes()
+    earlier.chmod(0o640)
+
+    def half_then_fail(self: object, report: object, stream: Any, *, color: bool = False) -> None:
+        stream.write('{"version": "2.1.0", "runs": [')
+        raise ValueError("broken\nin two lines")
+
+    monkeypatch.setattr(SarifFormatter, "render", half_then_fail)
+    code, err = run(capsys, "--format", "sarif", "--output", str(earlier), "lag.plant")
+    # not 1 (1 means findings): a report that could not be written is an I/O problem, in one line
+    assert code == 2
+    assert err.count("\n") == 1 and "could not be written" in err and "ValueError" in err, err
+    assert earlier.read_bytes() == before  # neither truncated nor half-written
+    assert sorted(p.name for p in Path("out").iterdir()) == ["r.sarif"]  # no temporary file left
+    monkeypatch.undo()
+    monkeypatch.chdir(tmp_path)
+    code, err = run(capsys, "--format", "json", "--output", str(earlier), "lag.plant")
+    assert code == 0, err
+    assert earlier.read_bytes().startswith(b'{\n  "format": "plantlint-report"')  # replaced in full
+    assert earlier.stat().st_mode & 0o777 == 0o640  # with the permissions it had
+    code, err = run(capsys, "--format", "json", "--output", "no/such/folder/r.json", "lag.plant")
+    assert code == 2 and "no/such/folder/r.json: cannot write" in err and err.count("\n") == 1, err

@@ -15,10 +15,11 @@ import shutil
 import subprocess
 import sys
 from pathlib import Path
+from typing import Any
 
 import pytest
 
-from plantlint.core.findings import FileReport, Finding, Report, Severity, Span
+from plantlint.core.findings import Adjustment, FileReport, Finding, Relaxation, Report, Severity, Span
 from plantlint.report.formats.json_report import build_report, read_report
 from plantlint.run.shard import SLACK, ShardError, assign, merge_reports, parse_shard
 from conftest import REPO, Run, git, git_env
@@ -97,6 +98,38 @@ def test_merge_refuses_what_it_cannot_vouch_for(tmp_path: Path) -> None:
         merge_reports([("one.json", one), ("other.json", other)])
     with pytest.raises(ShardError, match="not a plantlint JSON report"):
         merge_reports([("x.json", {"runs": []})])
+
+
+def test_merge_refuses_shards_that_ran_with_different_rule_settings(tmp_path: Path,
+                                                                    capsys: pytest.CaptureFixture[str]) -> None:
+    from plantlint.cli import main
+
+    def shard(index: int, *adjustments: Adjustment, relaxation: Relaxation | None = None) -> dict[str, Any]:
+        report = Report(files=[FileReport(f"m{index}.plant", f"m{index}", [])], tool_version="1",
+                        adjustments=adjustments, relaxation=relaxation)
+        report.shard = {"index": index, "count": 2, "models": 2, "positions": [index - 1], "fail_on": "error"}
+        return build_report(report)
+
+    skip = Adjustment("skip", ("unused-name",), "", "--skip on the command line")
+    only = Adjustment("only", ("unused-name",), "", "--only on the command line")
+    graded = Adjustment("severity", ("unused-name",), "tidy-up", "plantlint.toml", Severity.NOTE)
+    merged = merge_reports([("1.json", shard(1, skip)), ("2.json", shard(2, skip))])  # the same: fine
+    assert merged.adjustments == (skip,) and [f.path for f in merged.files] == ["m1.plant", "m2.plant"]
+    for first, second in [((skip,), ()), ((), (only,)), ((skip,), (only,)), ((graded,), (graded, skip)),
+                          ((graded,), (Adjustment("severity", ("unused-name",), "tidy-up", "plantlint.toml",
+                                                  Severity.ERROR),))]:
+        with pytest.raises(ShardError, match="different rule settings"):
+            merge_reports([("1.json", shard(1, *first)), ("2.json", shard(2, *second))])
+    with pytest.raises(ShardError, match="undecided"):
+        merge_reports([("1.json", shard(1)), ("2.json", shard(2, relaxation=Relaxation("known", "plantlint.toml")))])
+    # through the command line: the usage exit code and one line naming both settings
+    (tmp_path / "1.json").write_text(json.dumps(shard(1, skip)), encoding="utf-8")
+    (tmp_path / "2.json").write_text(json.dumps(shard(2)), encoding="utf-8")
+    code = main(["merge", str(tmp_path / "1.json"), str(tmp_path / "2.json")])
+    out, err = capsys.readouterr()
+    assert code == 2 and out == "" and err.count("\n") == 1, err
+    assert "1.json: rule unused-name skipped by --skip on the command line; " in err
+    assert "2.json: no rule settings)" in err
 
 
 # -- end to end on example_repo -------------------------------------------------------------

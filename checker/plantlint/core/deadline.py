@@ -12,6 +12,11 @@ the running code. It is available in the main thread of a POSIX process (a worke
 runs its analysis there); elsewhere ``within`` runs the step unbounded in time and
 callers rely on their size limits. Bounds nest: an inner step never extends an
 outer one, and the timer and handler found on entry are restored on exit.
+
+A result shaped by a bound that ran out depends on the machine's speed and load, so it
+must not be cached: every wall-clock bound that runs out is counted (:func:`ran_out`;
+``bounded`` does it, and so do the envelope proofs' own time checks), and the pipeline
+compares :func:`times_run_out` before and after an analysis.
 """
 
 from __future__ import annotations
@@ -32,6 +37,21 @@ class TimeUp(BaseException):
     def __init__(self, token: object):
         super().__init__("step ran out of its time")
         self.token = token
+
+
+_runs_out = 0  # wall-clock bounds that ran out in this process (see ran_out)
+
+
+def ran_out() -> None:
+    """Record that a wall-clock bound ran out: what the step would have given with more
+    time is not in the result, so the result depends on the machine's speed."""
+    global _runs_out
+    _runs_out += 1
+
+
+def times_run_out() -> int:
+    """How many wall-clock bounds ran out in this process so far."""
+    return _runs_out
 
 
 _stack: list[tuple[object, float]] = []  # (token, absolute deadline), outermost first
@@ -109,4 +129,5 @@ def bounded(seconds: float, step: Callable[[], T]) -> T | _Late:
     except TimeUp as exc:
         if not expired(exc, token):
             raise
+        ran_out()
         return LATE

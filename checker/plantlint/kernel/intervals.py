@@ -34,6 +34,7 @@ import flint
 import sympy as sp
 from flint import arb
 
+from plantlint.core import deadline
 from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import UnsupportedExpression, to_arb
 from plantlint.kernel.forward import ForwardProgram
@@ -377,7 +378,10 @@ class _Search:
         margin = math.inf
         examined = 0
         while queue:
-            if examined >= self.budget.max_boxes or time.perf_counter() - start > self.budget.max_seconds:
+            if examined >= self.budget.max_boxes:
+                break  # a size bound: the same stop on every machine
+            if time.perf_counter() - start > self.budget.max_seconds:
+                deadline.ran_out()  # a time bound: the result depends on the machine
                 break
             box = queue.popleft()
             examined += 1

@@ -13,7 +13,7 @@ import re
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
-from plantlint.core import anchors
+from plantlint.core import anchors, deadline
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import (
     FileReport,
@@ -50,6 +50,9 @@ class RawResult:
     stop: Stop | None = None  # set when the analysis did not complete
     #: the derivation for ``explain`` (analysis.serialise.explain_json), only when asked for
     explain: dict[str, Any] | None = None
+    #: a step of the analysis stopped at its own wall-clock bound (an envelope proof's
+    #: seconds, a ``bounded`` step): the result depends on the machine, so it is not cached
+    timed_out_step: bool = False
 
     def to_data(self) -> dict[str, Any]:
         return {
@@ -61,6 +64,7 @@ class RawResult:
             "pending": [finding_to_data(f) for f in self.pending],
             "stop": self.stop.to_data() if self.stop is not None else None,
             "explain": self.explain,
+            "timed_out_step": self.timed_out_step,
         }
 
     @classmethod
@@ -74,6 +78,7 @@ class RawResult:
             pending=[finding_from_data(x) for x in d.get("pending", [])],
             stop=Stop.from_data(d["stop"]) if d.get("stop") else None,
             explain=d.get("explain"),
+            timed_out_step=bool(d.get("timed_out_step", False)),
         )
 
 
@@ -115,6 +120,14 @@ def analyse_bytes(data: bytes, settings: AnalysisSettings | Config = AnalysisSet
     """
     if isinstance(settings, Config):
         settings = settings.analysis
+    runs_out = deadline.times_run_out()
+    result = _analyse(data, settings, progress, explain)
+    result.timed_out_step = deadline.times_run_out() > runs_out
+    return result
+
+
+def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None, explain: bool) -> RawResult:
+    """:func:`analyse_bytes` without the record of time bounds."""
     model, findings = read_model(data)
     result = RawResult(findings=list(findings))
     if model is None:

@@ -47,7 +47,8 @@ from plantlint.core.settings import AnalysisSettings
 from plantlint.run.config import Config
 from plantlint.run.pipeline import STOP_ANCHOR, RawResult, finish, stopped
 
-CACHE_FORMAT = 2  # 2: the analysis has a linearisation per point
+CACHE_FORMAT = 3  # 2: the analysis has a linearisation per point; 3: results shaped by a
+# wall-clock bound are no longer stored (entries of format 2 may hold such results)
 MEMORY_LIMIT = 6 * 1024**3  # bytes of address space per worker
 MAX_WAIT = 3600.0  # seconds; longest single wait for worker messages
 BUDGET_ANCHOR = STOP_ANCHOR  # anchor of the runner's own stops (analysis-incomplete)
@@ -646,19 +647,23 @@ def raw_results(
                 progress.close()
         for i, raw in zip(todo, fresh):
             raws[i] = raw
-            if keys[i] is not None and not cut_short(raw):
+            if keys[i] is not None and cacheable(raw):
                 cache.put(keys[i] or "", raw)
     return [r or RawResult() for r in raws]
 
 
-def cut_short(raw: RawResult) -> bool:
-    """True when the runner stopped the analysis (time, memory, internal error).
+def cacheable(raw: RawResult) -> bool:
+    """False when the result depends on the machine and its load: the runner stopped the
+    analysis (time, memory, internal error), or a step of it stopped at its own
+    wall-clock bound (an envelope proof out of ``envelope-seconds``, a ``bounded`` step
+    out of its seconds: ``RawResult.timed_out_step``). A later run on a faster or idler
+    machine must compute such a result afresh, not replay it.
 
-    Such results depend on the machine and its load, so they are not cached. The
-    analysis' own budget findings (for example an unconfirmed zero decision) are a
-    deterministic outcome of the model and the settings and are cached like any other.
+    What the analysis stops by a size bound (an envelope proof out of boxes, an expression
+    too large for symbolic confirmation: an ``analysis-budget`` finding) is a
+    deterministic outcome of the model and the settings and is cached like any other.
     """
-    return raw.stop is not None
+    return raw.stop is None and not raw.timed_out_step
 
 
 def source_text(data: bytes | None) -> str | None:

@@ -60,7 +60,7 @@ def shard_key(path: Path, root: Path) -> str:
 
 def preference(key: str, count: int) -> list[int]:
     """Shards 0..count-1 in the order this model prefers them (rendezvous hashing)."""
-    scores = [(hashlib.sha256(f"{key}\0{j}".encode("utf-8")).digest(), j) for j in range(count)]
+    scores = [(hashlib.sha256(f"{key}\0{j}".encode("utf-8", "surrogateescape")).digest(), j) for j in range(count)]
     return [j for _, j in sorted(scores, reverse=True)]
 
 
@@ -123,10 +123,17 @@ def _size(path: Path) -> int:
 
 # -- merging ---------------------------------------------------------------------------------
 
+def _settings(report: Report) -> str:
+    """The run's --only/--skip/severity settings in words, for a refusal."""
+    return "; ".join(f"{a.describe()} by {a.source}" for a in report.adjustments) or "no rule settings"
+
+
 def merge_reports(named: Sequence[tuple[str, dict[str, Any]]], fail_on: Severity | None = None) -> Report:
     """One report from the JSON reports of every shard of a run, as the unsharded run
     would have written it. Refuses (``ShardError``) a missing, repeated or foreign
-    shard, reports of different runs, and a set that does not cover every model."""
+    shard, reports of different runs (shard count, fail level, --since, version, rule
+    settings: --only, --skip, severity; [undecided] fail), and a set that does not cover
+    every model."""
     from plantlint.report.formats.json_report import ReportReadError, read_report
 
     if not named:
@@ -151,6 +158,13 @@ def merge_reports(named: Sequence[tuple[str, dict[str, Any]]], fail_on: Severity
                                  "not shards of one run")
         if report.since != first.since or report.tool_version != first.tool_version:
             raise ShardError(f"{name} and {first_name} come from different runs (--since or plantlint version)")
+        if report.adjustments != first.adjustments:
+            raise ShardError(f"{first_name} and {name} ran with different rule settings ({first_name}: "
+                             f"{_settings(first)}; {name}: {_settings(report)}): not shards of one run; run "
+                             "every shard with the same --only, --skip and configuration")
+        if report.relaxation != first.relaxation:
+            raise ShardError(f"{name} and {first_name} differ in whether not-decided results fail "
+                             "([undecided] fail): not shards of one run")
         if info["index"] in seen:
             raise ShardError(f"shard {info['index']}/{count} given twice ({seen[info['index']]} and {name})")
         seen[info["index"]] = name

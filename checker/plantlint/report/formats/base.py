@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import unicodedata
 from collections.abc import Iterator
-from typing import Protocol, TextIO
+from typing import Any, Protocol, TextIO
 
 from plantlint.core.findings import Adjustment, FileReport, Finding, Report
 
@@ -28,15 +28,45 @@ class Formatter(Protocol):
     def render(self, report: Report, stream: TextIO, *, color: bool = False) -> None: ...
 
 
+def _surrogate_text(ch: str) -> str:
+    """A lone surrogate in words: ``\\xNN`` for a byte that was not UTF-8 in a file name
+    (Python's ``surrogateescape`` maps byte NN to U+DCNN), ``\\uNNNN`` for any other."""
+    code = ord(ch)
+    return f"\\x{code - 0xDC00:02x}" if 0xDC80 <= code <= 0xDCFF else f"\\u{code:04x}"
+
+
+def readable(text: str) -> str:
+    """``text`` without lone surrogates: a file name that is not UTF-8 shows each byte that
+    could not be decoded as ``\\xNN`` (as Python's ``backslashreplace`` does:
+    ``caf\\xe9.plant``), so the text is valid Unicode and every format can write it."""
+    if not any(0xD800 <= ord(ch) <= 0xDFFF for ch in text):
+        return text
+    return "".join(_surrogate_text(ch) if 0xD800 <= ord(ch) <= 0xDFFF else ch for ch in text)
+
+
+def readable_data(value: Any) -> Any:
+    """JSON-ready data with every string (keys too) made :func:`readable`."""
+    if isinstance(value, str):
+        return readable(value)
+    if isinstance(value, dict):
+        return {readable_data(key): readable_data(item) for key, item in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [readable_data(item) for item in value]
+    return value
+
+
 def one_line(text: str) -> str:
     """``text`` made safe for a single output line: whitespace controls become
-    spaces and other control characters ``?`` (file text is untrusted and must not
-    smuggle terminal escape sequences or break line-oriented tools)."""
+    spaces, a byte of a file name that is not UTF-8 ``\\xNN`` (:func:`readable`) and
+    other control characters ``?`` (file text is untrusted and must not smuggle terminal
+    escape sequences or break line-oriented tools)."""
     out = []
     for ch in text:
         if ch in "\t\n\r\v\f":
             out.append(" ")
-        elif unicodedata.category(ch) in ("Cc", "Cs") or ch in "\u2028\u2029\x85":
+        elif 0xD800 <= ord(ch) <= 0xDFFF:
+            out.append(_surrogate_text(ch))
+        elif unicodedata.category(ch) == "Cc" or ch in "\u2028\u2029\x85":
             out.append("?")
         else:
             out.append(ch)

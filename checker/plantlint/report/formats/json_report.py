@@ -15,7 +15,7 @@ from typing import Any, TextIO
 from dataclasses import dataclass
 
 from plantlint.core.findings import Adjustment, FileReport, Finding, Relaxation, Report, Severity, Span, Stop
-from plantlint.report.formats.base import baseline_counts, baseline_of, findings_in_order
+from plantlint.report.formats.base import baseline_counts, baseline_of, findings_in_order, readable_data
 
 REPORT_FORMAT = "plantlint-report"
 REPORT_VERSION = 2  # 2: top-level "adjustments" (active only/skip/severity settings with reasons);
@@ -108,7 +108,8 @@ def build_report(report: Report) -> dict[str, Any]:
     if report.since is not None:
         summary.update(baseline_counts(report))
     out["summary"] = summary
-    return out
+    # a file name that is not UTF-8 shows its undecodable bytes as \\xNN: valid UTF-8 JSON
+    return readable_data(out)
 
 
 class ReportReadError(ValueError):

@@ -8,6 +8,7 @@ result keeps its identity when unrelated edits move it.
 from __future__ import annotations
 
 import json
+import os
 import re
 from typing import Any, Iterable, TextIO
 from urllib.parse import quote
@@ -15,7 +16,7 @@ from urllib.parse import quote
 from plantlint.core.catalogue import Catalogue, Rule, load_catalogue
 from plantlint.report.look import PAGE_SECTIONS
 from plantlint.core.findings import Adjustment, Finding, Report, Span
-from plantlint.report.formats.base import baseline_of, findings_in_order
+from plantlint.report.formats.base import baseline_of, findings_in_order, readable, readable_data
 
 SARIF_VERSION = "2.1.0"
 SARIF_SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
@@ -28,17 +29,27 @@ BASELINE_STATE = {"introduced": "new", "known": "unchanged", "fixed": "absent"}
 _DRIVE = re.compile(r"^[A-Za-z]:/")
 
 
+def _raw_bytes(path: str) -> bytes:
+    """The file name's bytes as the file system holds them (a name that is not UTF-8 was
+    read with ``surrogateescape``; ``os.fsencode`` gives its bytes back)."""
+    try:
+        return os.fsencode(path)
+    except UnicodeEncodeError:  # a surrogate no file system gave (a hand-edited report)
+        return readable(path).encode("utf-8")
+
+
 def artifact_location(path: str) -> dict[str, str]:
     """A SARIF artifactLocation: relative paths against ``%SRCROOT%`` with forward
-    slashes, absolute paths as ``file:`` URIs."""
+    slashes, absolute paths as ``file:`` URIs; the name's raw bytes percent-encoded
+    (RFC 3986), so a file name that is not UTF-8 keeps its identity (``caf%E9.plant``)."""
     forward = path.replace("\\", "/")
     while forward.startswith("./"):
         forward = forward[2:]
     if forward.startswith("/"):
-        return {"uri": "file://" + quote(forward, safe="/")}
+        return {"uri": "file://" + quote(_raw_bytes(forward), safe="/")}
     if _DRIVE.match(forward):
-        return {"uri": "file:///" + quote(forward, safe="/:")}
-    return {"uri": quote(forward, safe="/"), "uriBaseId": SOURCE_ROOT}
+        return {"uri": "file:///" + quote(_raw_bytes(forward), safe="/:")}
+    return {"uri": quote(_raw_bytes(forward), safe="/"), "uriBaseId": SOURCE_ROOT}
 
 
 def _pascal(rule_id: str) -> str:
@@ -207,7 +218,8 @@ def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str,
         changes = {f.path: [dict(c) for c in f.structure_changes] for f in report.files if f.structure_changes}
         if changes:
             run["properties"]["structureChanges"] = changes
-    return {"$schema": SARIF_SCHEMA_URI, "version": SARIF_VERSION, "runs": [run]}
+    # messages and names may hold a file name that is not UTF-8: no lone surrogates in the log
+    return readable_data({"$schema": SARIF_SCHEMA_URI, "version": SARIF_VERSION, "runs": [run]})
 
 
 class SarifFormatter:

@@ -267,6 +267,12 @@ def test_paths_under_two_configurations_are_a_usage_error(tmp_path: Path, cli: C
     assert cli(tmp_path, "check", "--format", "json", "a/tail.plant", "a").code == 0
     run = cli(tmp_path, "check", "--format", "json", "--config", "a/plantlint.toml", "a", "b")
     assert run.code == 0 and rules_of(run) == [("zero-dynamics-unstable", "note")] * 2
+    # a project's file and a folder under none: a/ would lose its re-grading in silence
+    (tmp_path / "c").mkdir()
+    copy(UNSTABLE, tmp_path / "c" / "tail.plant")
+    run = cli(tmp_path, "check", "--format", "json", "a", "c")
+    assert run.code == 2 and one_line_error(run), run.stderr
+    assert "a/plantlint.toml (for a)" in run.stderr and "no configuration file (for c)" in run.stderr
 
 
 def test_severity_override_from_pyproject(tmp_path: Path, cli: CLI) -> None:

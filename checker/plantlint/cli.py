@@ -346,14 +346,18 @@ def _load_config(paths: list[str], explicit: str | None, known: frozenset[str]) 
     from plantlint.run.config import ConfigError, find_config, load_config, shown_path
 
     if explicit is None and len(paths) > 1:
-        files: dict[Path, str] = {}
+        files: dict[Path | None, str] = {}
         for path in paths:
             found = find_config(_folder(Path(path)))
-            if found is not None:
-                files.setdefault(found[0].resolve(), path)
-        if len(files) > 1:
-            named = ", ".join(f"{shown_path(f)} (for {p})" for f, p in sorted(files.items()))
-            raise ConfigError(f"the paths fall under {len(files)} configuration files: {named}; check each "
+            files.setdefault(found[0].resolve() if found is not None else None, path)
+        common = find_config(_config_start(paths))
+        used = common[0].resolve() if common is not None else None
+        if len(files) > 1 or used not in files:
+            # two projects, or one project's file and paths under none: whichever the run
+            # used, some path would be judged by rules that are not its own
+            named = ", ".join(f"{shown_path(f) if f is not None else 'no configuration file'} (for {p})"
+                              for f, p in sorted(files.items(), key=lambda kv: str(kv[0])))
+            raise ConfigError(f"the paths fall under different configurations: {named}; check each "
                               "project separately, or pass --config FILE to use one for all")
     return load_config(_config_start(paths), Path(explicit) if explicit else None, known)
 

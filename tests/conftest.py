@@ -262,3 +262,26 @@ def integer_system(rng: np.random.Generator, n: int, m: int, p: int,
         Ti = np.rint(np.linalg.inv(T)).astype(int)
         A, B, C = T @ A @ Ti, T @ B, C @ Ti
     return A, B, C
+
+
+#: A reviewer's four-state plant (invented numbers) with a rounded point: x2' = -x2 + x4^2 + u2
+#: has every term zero at the equilibrium; changing x1 alone to (13/10 - e^(1/10))/2 makes
+#: the point exact. Used by the refinement and the zero-dynamics tests.
+ROUNDED = b"""plant rounded
+param k = 2
+param d = 1
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+state x4 in -1 .. 1
+input u1
+input u2
+rate x1 = -x1 + x3 + u1
+rate x2 = -x2 + x4^2 + u2
+rate x3 = x4
+rate x4 = -k*x3 - d*x4 + x1 + x2 + exp(x3) - 1 + u1 - u2
+output y1 = x1
+output y2 = x2
+point rounded: x1 = 0.0974146, x2 = 0, x3 = 0.1, x4 = 0 tolerance 1e-5
+expect minimum_phase at rounded
+"""

@@ -12,7 +12,7 @@ import pytest
 
 from plantlint.run.config import Config, ConfigError, load_config
 from plantlint.run.pipeline import analyse_bytes, read_model
-from conftest import MAGLEV
+from conftest import MAGLEV, ROUNDED
 
 # One tank of a quadruple-tank rig (demo numbers, invented): the level at the
 # operating point is written from the flow through a `let`, as engineers do.
@@ -163,22 +163,7 @@ def test_a_rate_whose_terms_all_vanish_does_not_stop_the_refinement() -> None:
 
     from plantlint.run.pipeline import analyse_bytes
 
-    text = b"""plant rounded
-state x1 in -1 .. 1
-state x2 in -1 .. 1
-state x3 in -1 .. 1
-state x4 in -1 .. 1
-input u1
-input u2
-rate x1 = -x1 + x3 + u1
-rate x2 = -x2 + x4^2 + u2
-rate x3 = x4
-rate x4 = -2*x3 - x4 + x1 + x2 + exp(x3) - 1 + u1 - u2
-output y1 = x1
-output y2 = x2
-point rounded: x1 = 0.0974146, x2 = 0, x3 = 0.1, x4 = 0 tolerance 1e-5
-"""
-    raw = analyse_bytes(text)
+    raw = analyse_bytes(ROUNDED)
     (note,) = [f for f in raw.findings if f.rule == "point-refined"]
     assert not [f for f in raw.findings if f.rule == "point-not-equilibrium"]
     x1 = (1.3 - math.exp(0.1)) / 2

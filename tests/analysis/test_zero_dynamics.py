@@ -17,7 +17,7 @@ from plantlint.analysis.serialise import normal_form_json
 from plantlint.kernel.plant import Plant
 from plantlint.analysis.serialise import zero_dynamics_json
 from plantlint.analysis.zero_dynamics import zero_dynamics_at
-from conftest import assert_same_set, integer_system, linear_plant, markov_degrees, rosenbrock_zeros
+from conftest import ROUNDED, assert_same_set, integer_system, linear_plant, markov_degrees, rosenbrock_zeros
 
 x1, x2, x3 = sp.symbols("x1 x2 x3")
 u = sp.Symbol("u")
@@ -484,26 +484,6 @@ def test_irrational_zero_dynamics_on_the_axis_and_the_pencil_zeros_there() -> No
     assert point["linearisation"]["cross_check"]["status"] == "agrees"
 
 
-REFINED = b"""plant rounded
-param k = 2
-param d = 1
-state x1 in -1 .. 1
-state x2 in -1 .. 1
-state x3 in -1 .. 1
-state x4 in -1 .. 1
-input u1
-input u2
-rate x1 = -x1 + x3 + u1
-rate x2 = -x2 + x4^2 + u2
-rate x3 = x4
-rate x4 = -k*x3 - d*x4 + x1 + x2 + exp(x3) - 1 + u1 - u2
-output y1 = x1
-output y2 = x2
-point rounded: x1 = 0.0974146, x2 = 0.5, x3 = 0.1, x4 = 0 tolerance 1e-5
-expect minimum_phase at rounded
-"""
-
-
 def test_zero_dynamics_at_a_refined_equilibrium() -> None:
     """A reviewer's model (invented numbers). The written x1 is rounded; the analysis runs
     at the equilibrium refined near it, known to ~40 digits, not exactly, where the
@@ -517,7 +497,7 @@ def test_zero_dynamics_at_a_refined_equilibrium() -> None:
     field = sp.Matrix([x4, -3 * x3 - x4 + sp.exp(x3) - 1 + x4**2])
     J = np.array(field.jacobian([x3, x4]).subs({x3: sp.Rational(1, 10), x4: 0}).evalf(), dtype=float)
     ref = np.linalg.eigvals(J)
-    raw = analyse_bytes(REFINED)
+    raw = analyse_bytes(ROUNDED)
     assert [f.rule for f in raw.findings] == ["point-refined"]  # the claim holds
     zd = raw.analysis["points"]["rounded"]["zero_dynamics"]
     assert zd["verdict"] == "minimum_phase"

@@ -220,6 +220,19 @@ def _nesting_problem(text: str) -> Finding | None:
 
 # -- parsing --------------------------------------------------------------------
 
+def parses(text: str) -> bool:
+    """Does the text get past the size checks and the parser? (No statement is built, so
+    nothing is imported for the expressions: a cheap look before deciding to load the
+    analysis.)"""
+    if _nesting_problem(text) or _size_problem(text):
+        return False
+    try:
+        parser().parse(text)
+    except (UnexpectedInput, RecursionError):
+        return False
+    return True
+
+
 def parse_text(text: str) -> Parsed:
     """Parse a whole file. Never raises for bad input: problems come back as findings."""
     out = Parsed()

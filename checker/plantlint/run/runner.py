@@ -417,10 +417,18 @@ _WARM_UP = (b"plant warm\nconst k = 2 [1/s]\nconst L = 1 [m]\nconst v = 1 [m/s]\
             b"input u [m/s] in -1 .. 1\nrate x = -k*x + u/(1 + (x/L)^2) + v*sin(x/L)^2\noutput y [m] = x\n")
 
 
+def _parses(data: bytes) -> bool:
+    """Will the model get as far as the analysis (decoded and parsed; ~5 ms a model)?"""
+    from plantlint.language.syntax import decode, parses
+
+    text, problem = decode(data)
+    return problem is None and text is not None and parses(text)
+
+
 def _preload(datas: list[bytes]) -> None:
-    """Import before forking what every worker would import, so that workers start warm:
-    the engine and what it loads on first use. Only worth it for several models: one
-    model's worker imports what it needs itself, so that a file that does not parse is
+    """Import before forking what every worker would import, so that workers start warm
+    (the engine and what it loads on first use) and a model's time budget is spent on its
+    analysis, not on imports. Skipped for a single file that does not parse: it is
     reported without sympy."""
     for module in _PRELOAD:
         importlib.import_module(module)
@@ -448,7 +456,7 @@ def analyse_all(
     ``explain``, each result also carries the derivation that explain shows)."""
     if not datas:
         return []
-    if len(datas) > 1:
+    if len(datas) > 1 or _parses(datas[0]):
         _preload(datas)
 
     ctx = _context()

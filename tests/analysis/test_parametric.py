@@ -437,3 +437,20 @@ def test_a_relative_degree_claim_holds_for_every_parameter_value(gain: str, refe
     else:
         (claim,) = claims
         assert not claim.undecided and "at a = 1 (within its range) L_g y vanishes for every state" in claim.message
+
+
+def test_a_refined_point_stays_an_equilibrium_over_the_parameter_box() -> None:
+    """The rounded four-state plant (conftest) with its damping d ranged over 0.5 .. 1.5. The
+    refined point does not depend on d (x4 = 0), so it is an equilibrium for every d, to
+    the refinement's accuracy; its residual is a 40-digit rounding, never exactly zero.
+    Holding y1, y2 leaves the zero dynamics s^2 + d s + 3 - e^(1/10) (by hand), Hurwitz for
+    every d > 0 since 3 - e^(1/10) > 0 (second-order Routh condition; math.exp below)."""
+    import math
+
+    from conftest import ROUNDED
+
+    assert 3 - math.exp(0.1) > 0
+    text = ROUNDED.replace(b"param d = 1\n", b"param d = 1 in 0.5 .. 1.5\n")
+    assert text != ROUNDED
+    raw = analyse_bytes(text)
+    assert [f.rule for f in raw.findings] == ["point-refined"]  # the minimum-phase claim holds over the box

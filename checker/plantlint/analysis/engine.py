@@ -549,11 +549,24 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
                               + (f" (singular at {where})" if where else "")))
     for pa in _points_for(a, c):
         if pa.structure is None or not pa.structure.well_defined:
-            out.append((pa.name, f"at point '{pa.name}' the relative degree is not well defined "
-                                 "or the decoupling matrix is singular"))
+            out.append((pa.name, f"at point '{pa.name}' {_why_not_regular(a, pa)}"))
         else:
             out.extend(_box_failure(pa, "decoupling"))
     return out
+
+
+def _why_not_regular(a: Analysis, pa: PointAnalysis) -> str:
+    """Which of the two a point fails: an output's relative degree, or the decoupling matrix."""
+    st = pa.structure
+    if st is None:
+        return "the structure could not be computed"
+    undefined = [o for o, r in st.relative_degree.items() if r is None]
+    if undefined:
+        return f"the relative degree of {', '.join(undefined)} is not well defined"
+    p = a.kernel.plant.p
+    return (f"the decoupling matrix is singular (rank {st.decoupling_rank} for {p} output{'s' if p != 1 else ''}"
+            + (f", {a.kernel.plant.m} input{'s' if a.kernel.plant.m != 1 else ''}" if a.kernel.plant.m != p else "")
+            + ")")
 
 
 def _box_failure(pa: PointAnalysis, prop: str, key: str | None = None) -> list[tuple[str | None, str]]:

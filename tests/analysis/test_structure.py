@@ -675,3 +675,42 @@ def test_a_relative_degree_read_off_a_linearisation_is_explained() -> None:
         "`expect relative_degree(pos) = 4` does not hold: the relative degree of 'pos' is 3; 4 is the relative "
         "degree of the linearisation at point 'rest', where the nonlinear relative degree is not defined",
     ]
+
+
+def test_a_failed_regular_claim_at_a_point_says_which_part_fails() -> None:
+    """Invented plants. (1) y = x1 with x1' = x1*u: L_g y = x1 vanishes at x1 = 0, so y's
+    relative degree is not well defined there. (2) x1' = u1 + u2, x2' = x3*u1 + u2: both rows
+    of the decoupling matrix are non-zero at x3 = 1 but its determinant 1 - x3 (sympy below)
+    vanishes: each output has relative degree 1 and the matrix is singular, rank 1."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    x3 = sp.Symbol("x3")
+    assert sp.Matrix([[1, 1], [x3, 1]]).det().subs(x3, 1) == 0
+    one = b"""plant one
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u
+rate x1 = x1*u
+rate x2 = -x2
+output y = x1
+point o: x1 = 0, x2 = 0, u = 0
+expect regular at o
+"""
+    two = b"""plant two
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in 0 .. 2
+input u1
+input u2
+rate x1 = u1 + u2
+rate x2 = x3*u1 + u2
+rate x3 = -x3 + 1
+output y1 = x1
+output y2 = x2
+point o: x1 = 0, x2 = 0, x3 = 1, u1 = 0, u2 = 0
+expect regular at o
+"""
+    (claim,) = [f for f in analyse_bytes(one).findings if f.rule == "expectation-failed"]
+    assert "at point 'o' the relative degree of y is not well defined" in claim.message
+    (claim,) = [f for f in analyse_bytes(two).findings if f.rule == "expectation-failed"]
+    assert "at point 'o' the decoupling matrix is singular (rank 1 for 2 outputs)" in claim.message

@@ -971,7 +971,10 @@ def _point_findings(
                 point=name,
                 anchor=anchors.point(name),
                 hint="the input cannot steer these directions to first order by state feedback "
-                "through the drift brackets",
+                "through the drift brackets" + (
+                    " (brackets of the input fields with each other, such as [g1, g2], are not part of "
+                    "this distribution: the plant may still be steered there by nonlinear input sequences, "
+                    "but it cannot be feedback linearized around the point)" if structure.m > 1 else ""),
             )
         )
     low = [k for k in singular if k <= n - 2]

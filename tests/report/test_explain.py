@@ -261,4 +261,20 @@ def test_a_regular_envelope_without_a_margin_says_why(tmp_path: Path) -> None:
     out = io.StringIO()
     explain_file(model, None, "text", out, color=False)
     (line,) = [ln for ln in out.getvalue().splitlines() if "proven regular" in ln]
-    assert "no margin stated (a factor of the term is a denominator" in line
+    assert "no margin stated (the term is proven non-zero factor by factor; a lower bound of its size would also need an upper bound of its denominator" in line
+
+
+def test_explain_says_singular_everywhere_rather_than_at_a_point(tmp_path: Path) -> None:
+    """Invented: three outputs, two inputs. The 3 x 2 decoupling matrix has rank at most 2
+    (linear algebra), so no vector relative degree exists at any state: the envelope line
+    says so, not "vanishes at" the envelope's centre."""
+    model = tmp_path / "wide.plant"
+    model.write_text("plant wide\nstate x1 in -1 .. 1\nstate x2 in -1 .. 1\nstate x3 in -1 .. 1\ninput u1\n"
+                     "input u2\nrate x1 = u1\nrate x2 = u2\nrate x3 = u1 + u2\noutput y1 = x1\noutput y2 = x2\n"
+                     "output y3 = x3\n", encoding="utf-8")
+    out = io.StringIO()
+    explain_file(model, None, "text", out, color=False)
+    text = out.getvalue()
+    assert "singular everywhere: the decoupling matrix is singular for every state" in text
+    assert "generic structure vanishes" not in text
+

@@ -169,14 +169,18 @@ def _render_envelope(console: Any, env: dict[str, Any]) -> None:
         console.print("  box " + ", ".join(f"{k} in [{lo}, {hi}]" for k, (lo, hi) in env["box"].items()))
     verdict = {True: "proven regular", False: "singular", None: "not proven"}[env.get("regular")]
     what = env.get("certified") or ""
-    if env.get("witness"):  # "singular: det A (the decoupling matrix) vanishes at ..."
+    if what == "generic structure":  # no vector relative degree anywhere: not a point of the box
+        line = ("  singular everywhere: the decoupling matrix is singular for every state (generic rank below the "
+                "number of outputs), or an output never sees the inputs")
+    elif env.get("witness"):  # "singular: det A (the decoupling matrix) vanishes at ..."
         line = f"  {verdict}: {what + ' vanishes' if what else 'vanishes'} at {show_point(env['witness'])}"
     else:
         line = f"  {verdict}" + (f" ({what})" if what else "")
     if env.get("margin") is not None:
         line += f"; certified margin {env['margin']:.4g}"
     elif env.get("regular"):
-        line += "; no margin stated (a factor of the term is a denominator, whose bound from below is not computed)"
+        line += ("; no margin stated (the term is proven non-zero factor by factor; a lower bound of its size "
+                 "would also need an upper bound of its denominator, which is not computed)")
     if env.get("boxes"):
         line += f"  [{env['boxes']} box{'es' if env['boxes'] != 1 else ''}, {env['seconds']} s]"
     console.print(line)

@@ -454,3 +454,27 @@ def test_a_refined_point_stays_an_equilibrium_over_the_parameter_box() -> None:
     assert text != ROUNDED
     raw = analyse_bytes(text)
     assert [f.rule for f in raw.findings] == ["point-refined"]  # the minimum-phase claim holds over the box
+
+
+def test_a_row_that_vanishes_names_only_the_parameters_it_depends_on() -> None:
+    """A reviewer's model (invented numbers): the decoupling rows are (a - 1, 0) for y1 and
+    (0, b - 1) for y2 (by hand: L_g x1 and L_g x3). The row of y2 vanishes at b = 1 whatever
+    a is; naming a as well (the box's midpoint) said nothing true about it."""
+    text = b"""plant two_gains
+param a = 0.5 in 0 .. 2
+param b = 2 in 1 .. 2
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+input u1
+input u2
+rate x1 = -x1 + x2 + (a - 1)*u1
+rate x2 = -x2 + u1 + u2
+rate x3 = -x3 + x1 + (b - 1)*u2
+output y1 = x1
+output y2 = x3
+point origin: x1 = 0, x2 = 0, x3 = 0, u1 = 0, u2 = 0
+"""
+    (finding,) = [f for f in analyse_bytes(text).findings if f.rule == "relative-degree-ill-defined"]
+    assert "the row of y1 in A vanishes at a = 1 (exactly)" in finding.message
+    assert "the row of y2 in A vanishes at b = 1 (exactly)" in finding.message

@@ -485,7 +485,8 @@ def _degree_over_parameters(a: Analysis, output: str, r: int | None) -> list[tup
             found.append({s: sp.Rational(verdict.witness[str(s)]) for s in plant.params})
     for p_star in found:
         if all(a.kernel.is_zero(e.xreplace(p_star)).proven_zero for e in row):
-            where = ", ".join(f"{s} = {show_number(v)}" for s, v in p_star.items())
+            named = {s for e in row for s in e.free_symbols}
+            where = ", ".join(f"{s} = {show_number(v)}" for s, v in p_star.items() if s in named)
             return [(None, f"at {where} (within its range) {lie_name(a.kernel, None, i, r - 1)} vanishes for every "
                            f"state: the relative degree of '{output}' there is not {r}")]
     return [(None, Undecided(f"over the parameter box it is not decided whether the relative degree of '{output}' "

@@ -172,12 +172,19 @@ def _row(params: ParameterBox, A: sp.Matrix, values: dict[sp.Symbol, sp.Expr], i
         return BoxVerdict("undecided", f"the row of {plant.outputs[i]} in A could not be certified non-zero "
                           f"over the box within the budget (e.g. {_show_boxes(v)})")
     w = exact_point(params, v.witness or {})
+    mentioned = {str(s) for e in exprs for s in e.free_symbols}  # a = 1 for a row (0, b - 1) says nothing
     for candidate in [w, *snapped(params, v.witness or {})]:
         if all(sp.cancel(e.xreplace(candidate)) == 0 for e in exprs):
             return BoxVerdict("violated", f"the row of {plant.outputs[i]} in A vanishes at "
-                              f"{show_values(params.named(candidate))} (exactly)", params.named(candidate), "undefined")
+                              f"{show_values(_only(params.named(candidate), mentioned))} (exactly)",
+                              params.named(candidate), "undefined")
     return BoxVerdict("undecided", f"the row of {plant.outputs[i]} in A comes close to zero near "
-                      f"{show_values(params.named(w))} but a common zero is not proven")
+                      f"{show_values(_only(params.named(w), mentioned))} but a common zero is not proven")
+
+
+def _only(values: dict[str, sp.Expr], names: set[str]) -> dict[str, sp.Expr]:
+    """The values of the parameters an expression depends on (all of them if it names none)."""
+    return {k: v for k, v in values.items() if k in names} or values
 
 
 def box_zero_dynamics(out: ParametricPoint | None, degrees: Sequence[int], zero_dynamics: ZeroDynamics | None

@@ -375,6 +375,9 @@ def test_text_summary_and_verdict() -> None:
     assert _render("text", report).rstrip().splitlines()[-1] == "PASSED: no unwaived finding at or above error"
     report.fail_on = Severity.WARNING
     assert _render("text", report).rstrip().splitlines()[-1] == "FAILED: 1 unwaived finding at or above warning"
+    report.files = []  # every path given left out by the configuration (a hook on an archived model)
+    assert (_render("text", report).rstrip().splitlines()[-1]
+            == "PASSED: no model to check (the files given are left out by the configuration)")
 
 
 def test_text_under_since() -> None:

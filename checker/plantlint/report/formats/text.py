@@ -299,6 +299,9 @@ def verdict(report: Report) -> Text:
     elif undecided and report.relaxation is None:
         text = Text("NOT DECIDED", style="bold yellow")
         text.append(f": {undecided}; the run fails (no defect found, but not everything could be checked)")
+    elif not any(not f.deleted for f in report.files):  # every path given was excluded (a hook on an archive)
+        text = Text("PASSED", style="bold green")
+        text.append(": no model to check (the files given are left out by the configuration)")
     else:
         text = Text("PASSED", style="bold green")
         text.append(f": no unwaived finding at or above {level}{scope}")

@@ -297,3 +297,17 @@ def test_a_function_of_a_number_outside_its_domain_is_named_where_it_is_written(
     assert found == [(14, "log(0) in rate x has no real value, so rate x is undefined for every state"),
                      (23, "sqrt(-1) in rate x has no real value, so rate x is undefined for every state"),
                      (34, "acos(2) in rate x has no real value, so rate x is undefined for every state")]
+
+
+@pytest.mark.parametrize("tail", ["", "\nexpect regular", " at rest", " at rest\nexpect regular", " because"])
+def test_a_waiver_without_its_reason_says_so(tail: str) -> None:
+    """`waive RULE` with nothing (or a word) where the quoted reason belongs: the message
+    names what is missing, wherever the statement stops, rather than 'file ends in the
+    middle of a statement'."""
+    text = ("plant w\nstate x in -1 .. 1\ninput u\nrate x = -x + u\noutput y = x\npoint rest: x = 0, u = 0\n"
+            f"waive envelope-singular{tail}\n")
+    (problem,) = parse_text(text).findings
+    assert problem.message == "a waiver needs a reason, in double quotes after the rule id"
+    assert problem.span is not None and problem.span.line == 7
+    written = "waive envelope-singular at rest" if tail.startswith(" at rest") else "waive envelope-singular"
+    assert problem.hint == f'{written} "why it is accepted"'

@@ -295,6 +295,12 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
     if isinstance(exc, (UnexpectedEOF, UnexpectedToken)):
         tok = getattr(exc, "token", None)
         consumed = _consumed_backwards(exc)
+        unreasoned = _waiver_without_reason(consumed, exc.expected)
+        if unreasoned is not None:
+            last, waive = unreasoned
+            written = " ".join(text[waive.start_pos:last.end_pos].split())  # as written, on one line
+            return syntax_problem('a waiver needs a reason, in double quotes after the rule id', _after(last),
+                                  hint=f'{written} "why it is accepted"', anchor=anchors.problem("waiver without reason"))
         if tok is None or tok.type == "$END":
             last = consumed[0] if consumed else None
             where = _after(last) if last is not None else Span.point(1, 1)
@@ -329,6 +335,19 @@ def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
             message = f"unexpected '{shorten(value)}'"
         return syntax_problem(message, span, hint="expected " + _expected(exc.expected), anchor=anchors.problem(message))
     return syntax_problem("cannot read this statement", Span.point(line, column), anchor=anchors.problem("syntax"))
+
+
+def _waiver_without_reason(consumed: list[Token], expected: "set[str] | frozenset[str]") -> tuple[Token, Token] | None:
+    """(last token, `waive` token) of a `waive RULE [at POINT]` that stops where its reason
+    belongs; None for anything else."""
+    if "STRING" not in expected or not consumed:
+        return None
+    for tok in consumed:  # newest first: the point name, `at`, the rule id, then `waive`
+        if str(tok) == "waive" and tok is not consumed[0]:
+            return consumed[0], tok
+        if tok.type not in ("RULE_ID", "NAME") and str(tok) != "at":
+            return None
+    return None
 
 
 def _after(tok: Token) -> Span:

@@ -150,14 +150,15 @@ def test_no_command_shows_help_and_exits_2(tmp_path: Path, cli: CLI) -> None:
     ('[only]\nrules = ["unused-name"]\n', "only needs a reason"),
     ('[severity]\nunused-name = "note"\n',
      'by a table [severity.unused-name] with level = "note" and reason = "why"'),
-    ('[severity.unused-name]\nlevel = "note"\n', "'severity.unused-name' must be written"),
+    ('[severity.unused-name]\nlevel = "note"\n', '[severity.unused-name] needs reason = "why" as well'),
+    ('[severity.unused-name]\nreason = "r"\n', '[severity.unused-name] needs level = "error|warning|note" as well'),
     # a top-level setting below a [table] header belongs to that table in TOML (TOML 1.0, "Table")
     ('[severity.unused-name]\nlevel = "note"\nreason = "r"\ntimeout = 30\n',
      "'timeout' is written inside the table [severity.unused-name]"),
     ('[skip]\nunused-name = "r"\nfail-on = "warning"\n', "'fail-on' is written inside the table [skip]"),
 ], ids=["unknown key", "fail-on", "timeout", "jobs", "include", "severity rule", "severity value", "cache",
         "not toml", "skip list", "skip empty reason", "skip not text", "only list", "only without reason",
-        "severity without table", "severity without reason", "setting swallowed by severity",
+        "severity without table", "severity without reason", "severity without level", "setting swallowed by severity",
         "setting swallowed by skip"])
 def test_bad_configuration_exits_2(tmp_path: Path, cli: CLI, toml: str, mentions: str) -> None:
     (tmp_path / "plantlint.toml").write_text(toml, encoding="utf-8")

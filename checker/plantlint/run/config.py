@@ -288,6 +288,9 @@ def _severities(value: Any, where: str, known: frozenset[str]) -> tuple[dict[str
             raise ConfigError(f"{where}: severity override of '{rule}' needs a reason: replace "
                               f'`{rule} = "{entry}"` under [severity] by a table [severity.{rule}] with '
                               f'level = "{entry}" and reason = "why"')
+        if isinstance(entry, dict) and set(entry) < {"level", "reason"}:  # one of the two is missing
+            missing = "reason = \"why\"" if "level" in entry else 'level = "error|warning|note"'
+            raise ConfigError(f"{where}: [severity.{rule}] needs {missing} as well")
         if not isinstance(entry, dict) or sorted(entry) != ["level", "reason"]:
             raise ConfigError(f"{where}: 'severity.{rule}' must be written {how}")
         levels[rule] = _severity(entry["level"], f"severity.{rule}.level", where)

@@ -100,6 +100,10 @@ def _show_boxes(v: EnvelopeVerdict) -> str:
     return "; ".join(", ".join(f"{k} in [{lo:.6g}, {hi:.6g}]" for k, (lo, hi) in b.items()) for b in v.undecided[:2])
 
 
+def _open(count: int) -> str:
+    return f"{count} sub-box{'' if count == 1 else 'es'} left open"
+
+
 def show_values(values: dict[str, sp.Expr]) -> str:
     return ", ".join(f"{k} = {show_number(v)}" for k, v in values.items())
 
@@ -433,7 +437,7 @@ def _decoupling(params: ParameterBox, A: sp.Matrix, values: dict[sp.Symbol, sp.E
                           f"{show_number(v.margin or 0.0)})")
     if v.regular is None:
         return BoxVerdict("undecided", f"{what} at the point could not be certified non-zero over the box "
-                          f"within the budget ({v.undecided_count} sub-boxes open, e.g. {_show_boxes(v)})")
+                          f"within the budget ({_open(v.undecided_count)}, e.g. {_show_boxes(v)})")
     w = exact_point(params, v.witness or {})
     how = "exactly" if v.witness_exact else "a zero proven by a sign change next to it"
     if not v.witness_exact:
@@ -477,7 +481,7 @@ def _zero_dynamics(params: ParameterBox, degrees: list[int], values: dict[sp.Sym
     if verdict.stable is None:
         shown = _show_boxes(ev)
         return BoxVerdict("undecided", f"{failed.label} of the zero-dynamics polynomial could not be certified "
-                          f"positive within the budget ({ev.undecided_count} sub-boxes open, e.g. {shown})")
+                          f"positive within the budget ({_open(ev.undecided_count)}, e.g. {shown})")
     w = _simple_witness(params, failed.expr, ev.witness or {}, ev.witness_exact)
     at_w = {s: params.at(values[s], w) for s in plant.states}
     at_w.update(w)
@@ -551,7 +555,7 @@ def _controllability(params: ParameterBox, values: dict[sp.Symbol, sp.Expr] | No
                           "certified non-zero)")
     if v.regular is None:
         return BoxVerdict("undecided", "the controllability rank could not be certified over the box within "
-                          f"the budget ({v.undecided_count} sub-boxes open, e.g. {_show_boxes(v)})")
+                          f"the budget ({_open(v.undecided_count)}, e.g. {_show_boxes(v)})")
     w = exact_point(params, v.witness or {})
     full = sp.Matrix.hstack(*columns).xreplace(holders.back)
     for candidate in [w, *snapped(params, v.witness or {})]:

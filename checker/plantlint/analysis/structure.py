@@ -551,8 +551,10 @@ def certify_envelope(
         findings.append(finding(
             "envelope-unproven",
             f"regularity over the envelope is unproven: {verdict.undecided_count} box"
-            f"{'es' if verdict.undecided_count != 1 else ''} undecided for {certified} after "
-            f"{clock.boxes} boxes and {clock.seconds:.2f} s, e.g. {shown}",
+            f"{'es' if verdict.undecided_count != 1 else ''} undecided for {certified} "
+            + (f"after {clock.boxes} box{'es' if clock.boxes != 1 else ''} and {clock.seconds:.2f} s" if clock.boxes
+               else f"(the budget ran out before a box was examined, {clock.seconds:.2f} s)")
+            + f", e.g. {shown}",
             anchor=anchors.ENVELOPE, hint="raise the budget, or narrow the envelope near those boxes",
         ))
     if undecided_model:

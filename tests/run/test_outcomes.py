@@ -514,3 +514,16 @@ def test_markdown_summary_counts_models_and_claims_not_decided(lift: Path, monke
     assert "### plantlint — FAILED" in text
     assert ("**Not decided: 1 model could not be checked (1 cut short; budget 2 s per model, set explicitly), "
             "2 claims not decided.**") in text
+
+
+def test_a_stop_after_the_last_stage_says_so() -> None:
+    """A budget that runs out once every stage has finished (while the results are put
+    together) is still a stop, worded as what happened rather than 'in stage None'."""
+    from plantlint.analysis.stages import STAGES
+    from plantlint.run.pipeline import RawResult, stopped
+
+    snapshot = RawResult(plant="lift", stages=list(STAGES))
+    raw = stopped(snapshot, "time", list(STAGES), tuple(STAGES), 0.3)
+    (incomplete,) = [f for f in raw.findings if f.rule == "analysis-incomplete"]
+    assert "stopped at its 0.3 s budget after its last stage, while its results were put together" in incomplete.message
+    assert "not completed: none" in incomplete.message and raw.stop is not None

@@ -298,7 +298,8 @@ def stopped(snapshot: RawResult | None, kind: str, stages: list[str], all_stages
     running = next((s for s in all_stages if s not in stages), None)
     if snapshot is None:
         running = "reading the model"
-    where = f" in stage {running}" if running else ""
+    # every stage done: the stop came while the results were put together and sent
+    where = f" in stage {running}" if running else " after its last stage, while its results were put together"
     if kind == "time":
         what = f"stopped at its {seconds:g} s budget{where}"
     elif kind == "memory":

@@ -388,3 +388,8 @@ def test_structure_changes_are_worded_for_readers_not_in_internal_names() -> Non
     assert shown == ["point rest: state linearizable: no -> yes", "point rest: well defined: yes -> no",
                      "point rest: zero dynamics: non-minimum phase -> minimum phase"]
     assert not any("_" in line for line in shown)
+    # zero dynamics not computed at REF (not an equilibrium there), none now (relative degree n)
+    before["points"]["rest"]["zero_dynamics"] = None
+    after["points"]["rest"]["zero_dynamics"] = {"verdict": "not_applicable"}
+    shown = [change_text(c) for c in structure_changes(before, after)]
+    assert "point rest: zero dynamics: not computed -> none (total relative degree n)" in shown

@@ -221,7 +221,7 @@ VERDICT_WORDS = {
     "minimum_phase": "minimum phase",
     "non_minimum_phase": "non-minimum phase",
     "critical": "critical",
-    "not_applicable": "not applicable",
+    "not_applicable": "none (total relative degree n)",
     "undefined": "not defined",
 }
 

@@ -117,10 +117,13 @@ def change_text(change: dict[str, object]) -> str:
     """One structural change under --since, e.g. 'point rest: zero dynamics: minimum phase -> critical';
     a waiver added, removed or re-worded since the baseline (``what`` = 'waiver RULE [at POINT]',
     the reasons before and after) reads 'waiver added: RULE at POINT: "REASON"'."""
-    def shown(value: object) -> str:
-        return "none" if value is None else str(value).lower() if isinstance(value, bool) else str(value)
-
     what = one_line(str(change.get("what", "")))
+    # a point's zero dynamics that were not computed (not an equilibrium, degree not defined)
+    missing = "not computed" if what.endswith("zero dynamics") else "none"
+
+    def shown(value: object) -> str:
+        return missing if value is None else str(value).lower() if isinstance(value, bool) else str(value)
+
     before, after = change.get("before"), change.get("after")
     if what.startswith("waiver ") and (isinstance(before, str) or isinstance(after, str)):
         subject = what.removeprefix("waiver ")

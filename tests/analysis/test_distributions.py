@@ -451,3 +451,37 @@ def test_ball_determinant_proves_only_what_is_certain() -> None:
     assert ball_rank(singular)[0] < len(singular)
     blurred = [[arb(1), arb(0, 1e-30)], [arb(0, 1e-30), arb(0, 1e-30)]]  # may be singular: not proven
     assert ball_rank(blurred)[0] < len(blurred)
+
+
+def test_a_linearizing_output_bent_by_a_square_is_found() -> None:
+    """A reviewer's plant (invented): x1' = x2 + 2 x2 x3, x2' = x3, x3' = -x3 - x1 + u. The
+    measured x1 has relative degree 2, but phi = x1 - x2^2 has relative degree 3 = n (by
+    hand: L_f phi = x2, L_f^2 phi = x3, L_g L_f^2 phi = 1; sympy below), so the plant is
+    state linearizable through it."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    x1, x2, x3 = sp.symbols("x1 x2 x3")
+    f = sp.Matrix([x2 + 2 * x2 * x3, x3, -x3 - x1])
+    g = sp.Matrix([0, 0, 1])
+    xs = [x1, x2, x3]
+
+    def lie(h: sp.Expr, v: sp.Matrix) -> sp.Expr:
+        return sp.expand((sp.Matrix([h]).jacobian(xs) * v)[0])
+
+    phi = x1 - x2**2
+    assert lie(phi, g) == 0 and lie(lie(phi, f), g) == 0 and lie(lie(lie(phi, f), f), g) != 0
+    text = b"""plant bent
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+input u
+rate x1 = x2 + 2*x2*x3
+rate x2 = x3
+rate x3 = -x3 - x1 + u
+output y = x1
+point origin: x1 = 0, x2 = 0, x3 = 0
+expect state_linearizable
+"""
+    raw = analyse_bytes(text)
+    point = raw.analysis["points"]["origin"]
+    assert point["state_linearizable"] is True and point["linearizing_output"] == "x1 - x2^2"

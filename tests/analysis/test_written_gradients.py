@@ -29,7 +29,7 @@ def test_search_candidates_carry_sympys_gradients() -> None:
     for phi, gradient in linearizing_output._candidates(X):
         assert list(gradient) == [sp.diff(phi, x) for x in X], phi
         seen += 1
-    assert seen == 4 + 6 * 10 + 10  # states, two-state combinations (10 weights), products
+    assert seen == 4 + 6 * 10 + 10 + 12 * 4  # states, two-state combinations (10 weights), products, x_a + c x_b^2
 
 
 def test_normal_form_candidates_carry_sympys_gradients_and_lie_derivatives() -> None:

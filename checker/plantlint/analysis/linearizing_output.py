@@ -107,7 +107,8 @@ def _annihilates(gradient: Vector, point: dict[sp.Symbol, sp.Expr], columns: lis
 
 def _candidates(states: Sequence[sp.Symbol]) -> Iterator[tuple[sp.Expr, tuple[sp.Expr, ...]]]:
     """States, then x_a +- c x_b and c x_a +- x_b (c = 1, 2, 3), then squares and products,
-    each with its gradient (written down: these candidates need no differentiation)."""
+    then x_a + c x_b^2 (c = +-1, +-1/2), each with its gradient (written down: these
+    candidates need no differentiation)."""
     n = len(states)
     zero = sp.Integer(0)
 
@@ -125,3 +126,9 @@ def _candidates(states: Sequence[sp.Symbol]) -> Iterator[tuple[sp.Expr, tuple[sp
         for b in range(a, n):
             both = {a: 2 * states[a]} if a == b else {a: states[b], b: states[a]}
             yield states[a] * states[b], gradient(both)
+    # a state bent by another's square (x1 - x2^2: a quadratic coordinate change)
+    for a in range(n):
+        for b in range(n):
+            if a != b:
+                for c in (sp.Integer(1), sp.Integer(-1), sp.Rational(1, 2), sp.Rational(-1, 2)):
+                    yield states[a] + c * states[b] ** 2, gradient({a: sp.Integer(1), b: 2 * c * states[b]})

@@ -71,6 +71,7 @@ def zero_dynamics_json(zd: ZeroDynamics) -> dict[str, object]:
 def distributions_json(pd: PointDistributions) -> dict[str, object]:
     """The per-point distribution summary of the JSON report."""
     from plantlint.analysis.distributions import distribution_name
+    from plantlint.language.printer import show_expr
 
     out: dict[str, object] = {
         "controllability_rank": pd.controllability_rank,
@@ -82,7 +83,7 @@ def distributions_json(pd: PointDistributions) -> dict[str, object]:
     if not pd.involutive:
         out["involutivity_witness"] = pd.witness
     if pd.output_searched:
-        out["linearizing_output"] = None if pd.linearizing_output is None else str(pd.linearizing_output)
+        out["linearizing_output"] = None if pd.linearizing_output is None else show_expr(pd.linearizing_output)
     return out
 
 

@@ -170,3 +170,25 @@ def test_a_rate_whose_terms_all_vanish_does_not_stop_the_refinement() -> None:
     assert f"x1 = {x1:.10g}" in note.message and "u2 = 0" in note.message
     relative = raw.analysis["points"]["rounded"]["refinement"]["relative_residual"]
     assert relative < 1e-6  # the rounding of x1 (6e-7 of its value), not 100 %
+
+
+def test_a_written_input_that_misses_is_measured_against_its_own_rate() -> None:
+    """A reviewer's model (invented): x2' = -x2 + u2 with x2 = 0 and u2 = 0.5 written. The
+    rate is 0.5 (by hand), all of its one non-zero term: a miss of 100 %, whatever the
+    scale of the other rate (-1000 x1 + 1000 u1). Only an input left out of the point, whose
+    value is fitted to the miss, has no size of its own."""
+    text = b"""plant scales
+state x1 in -2 .. 2
+state x2 in -1 .. 1
+input u1
+input u2
+rate x1 = -1000*x1 + 1000*u1
+rate x2 = -x2 + u2
+output y1 = x1
+output y2 = x2
+point p: x1 = 1, u1 = 1, x2 = 0, u2 = 0.5 tolerance 1e-3
+"""
+    raw = analyse_bytes(text)
+    (missed,) = [f for f in raw.findings if f.rule == "point-not-equilibrium"]
+    assert "dx2/dt = 0.5 (the largest rate is 100% of the size of its terms)" in missed.message
+    assert not [f for f in raw.findings if f.rule == "point-refined"]

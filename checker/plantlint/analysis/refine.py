@@ -66,17 +66,24 @@ class _System:
         n = plant.n
         rates = []
         terms: list[list[sp.Expr]] = []
+        #: per rate, the input of each term (None for a term of f)
+        self.term_inputs: list[list[sp.Symbol | None]] = []
+        #: inputs whose values are fitted (left out of the point): their terms carry the miss
+        self.fitted: frozenset[sp.Symbol] = frozenset()
         for i in range(n):
             f_i = plant.nominal(plant.f[i])
             parts = [t for t in sp.Add.make_args(f_i) if t != 0]
+            owners: list[sp.Symbol | None] = [None] * len(parts)
             rate = f_i
             for j, u in enumerate(plant.inputs):
                 g_ij = plant.nominal(plant.g[j][i])
                 if g_ij != 0:
                     parts.append(g_ij * u)
+                    owners.append(u)
                     rate = rate + g_ij * u
             rates.append(rate)
             terms.append(parts)
+            self.term_inputs.append(owners)
         self.n = n
         self.sizes = [len(t) for t in terms]
         jac = [sp.diff(r, v) for r in rates for v in self.symbols]
@@ -102,23 +109,28 @@ class _System:
         rates = mids[:n]
         at = n
         sizes = []
-        for count in self.sizes:
-            sizes.append(max((abs(v) for v in mids[at:at + count]), default=mpmath.mpf(0)))
+        for count, owners in zip(self.sizes, self.term_inputs):
+            parts = mids[at:at + count]
+            size = max((abs(v) for v in parts), default=mpmath.mpf(0))
+            own = max((abs(v) for v, u in zip(parts, owners) if u not in self.fitted), default=mpmath.mpf(0))
+            # a rate whose only non-zero terms are fitted inputs (x2' = -x2 + u2 at x2 = 0, u2
+            # left out) is made of the miss itself: it has no size of its own (None)
+            sizes.append(size if own != 0 or size == 0 else None)
             at += count
         jac = [mids[at + i * k: at + (i + 1) * k] for i in range(n)]
         return rates, sizes, jac
 
 
 def _relative(rates: Sequence, sizes: Sequence) -> mpmath.mpf:
-    """The largest |rate| / size of its terms. A rate whose terms are no larger than the
-    rate itself (every term zero at the equilibrium, as for x2' = -x2 + u2 at x2 = 0: what
-    is left is the miss, or an input fitted to it) has no scale of its own and is measured
-    against the largest term of the model."""
-    scale = max(sizes, default=mpmath.mpf(0))
+    """The largest |rate| / size of its terms. A rate whose only non-zero terms are inputs
+    fitted to the miss (size None: x2' = -x2 + u2 at x2 = 0 with u2 left out of the point)
+    has no scale of its own and is measured against the largest term of the model; a
+    written input is a term like any other (u2 = 0.5 written there is a miss of 100 %)."""
+    scale = max((s for s in sizes if s is not None), default=mpmath.mpf(0))
     worst = mpmath.mpf(0)
     for r, s in zip(rates, sizes):
         if r != 0:
-            own = s if s > 2 * abs(r) else scale
+            own = s if s is not None else scale
             worst = max(worst, abs(r) / own if own != 0 else mpmath.inf)
     return worst
 
@@ -203,6 +215,7 @@ def near_miss(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[s
             system = _System(plant)
         except UnsupportedExpression:
             return None
+        system.fitted = frozenset(unknown)
         start = {s: _exact(v) for s, v in given.items()}
         start.update({u: mpmath.mpf(0) for u in unknown})
         # the inputs left out at their least-squares values (the rates are affine in them)
@@ -217,6 +230,8 @@ def near_miss(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[s
                 out = system.run(start) or out
         rates, sizes, _ = out
         relative = _relative(rates, sizes)
+        scale = max((z for z in sizes if z is not None), default=mpmath.mpf(0))
+        sizes = [z if z is not None else scale for z in sizes]  # measured as _relative measures them
         shown = tuple((s, float(r), float(z)) for s, r, z in zip(plant.states, rates, sizes)
                       if r != 0 and (z == 0 or abs(r) / z > CONVERGED))
         written = [s for s in (*plant.states, *plant.inputs) if s in given]

@@ -262,6 +262,11 @@ def test_a_model_whose_errors_are_re_graded_is_not_a_pass(tmp_path: Path) -> Non
     run = cli(tmp_path, "check", "--no-cache", "--format", "lines", "lift.plant")
     assert run.code == 1, run.stdout
     assert "note: unexpected '='" in run.stdout and "lift.plant: error: could not be checked" in run.stdout
+    # re-graded, but still at or above the run's fail level: shown and failing, not a stop
+    run = cli(tmp_path, "check", "--no-cache", "--format", "json", "--fail-on", "note", "lift.plant")
+    assert run.code == 1
+    (file,) = run.json()["files"]
+    assert file["stop"] is None and file["outcome"] == "defect"
     # shown and failing as usual, the same model is a defect, not a stop
     (tmp_path / "plantlint.toml").unlink()
     plain = cli(tmp_path, "check", "--no-cache", "--format", "json", "lift.plant")

@@ -27,7 +27,7 @@ from plantlint.analysis.serialise import structural_facts
 from plantlint.core import anchors
 from plantlint.core.findings import FileReport, Finding, Report, Severity
 from plantlint.run.config import Config
-from plantlint.run.pipeline import RawResult, blocked, finish
+from plantlint.run.pipeline import RawResult, blocked, fails_the_run, finish
 from plantlint.run.runner import (
     Source,
     UsageError,
@@ -208,7 +208,7 @@ def compare(report: FileReport, old_raw: RawResult | None, config: Config, defau
     report.findings = marked
     report.structure_changes = structure_changes(old_raw.analysis, report.analysis)
     if report.stop is None and report.analysis is None and not any(
-            f.baseline == "introduced" and f.severity is Severity.ERROR and not f.waived for f in marked):
+            f.baseline == "introduced" and fails_the_run(f, config.fail_on) for f in marked):
         # its errors keep the analysis from running and were there at REF: what the
         # change did to the model was not checked
         report.stop = blocked([f for f in marked if f.baseline != "fixed"],

@@ -226,7 +226,7 @@ def finish(path: str, raw: RawResult, source: str | None, config: Config, defaul
     findings = raw.findings + unused_waivers(raw.findings, raw.waivers, _judged(raw))
     findings = apply_policy(findings, raw.waivers, defaults, config.severity, config.only, config.skip)
     stop = raw.stop
-    if stop is None and not_analysed(raw) and not any(_stops_the_run(f) for f in findings):
+    if stop is None and not_analysed(raw) and not any(fails_the_run(f, config.fail_on) for f in findings):
         stop = blocked(raw.findings, "which this run's rule selection (only/skip) or severity settings leave out")
     return FileReport(path=path, plant=raw.plant, findings=findings, analysis=raw.analysis, source=source,
                       stop=stop, stages=list(raw.stages))
@@ -237,8 +237,9 @@ def not_analysed(raw: RawResult) -> bool:
     return raw.analysis is None and raw.stop is None
 
 
-def _stops_the_run(f: Finding) -> bool:
-    return f.severity is Severity.ERROR and not f.waived and not f.undecided
+def fails_the_run(f: Finding, fail_on: Severity) -> bool:
+    """A decided, unwaived finding at or above the run's fail level."""
+    return f.severity.rank >= fail_on.rank and not f.waived and not f.undecided
 
 
 def blocked(errors: list[Finding], why_not_shown: str) -> Stop:

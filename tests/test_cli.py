@@ -273,7 +273,15 @@ def test_paths_under_two_configurations_are_a_usage_error(tmp_path: Path, cli: C
     copy(UNSTABLE, tmp_path / "c" / "tail.plant")
     run = cli(tmp_path, "check", "--format", "json", "a", "c")
     assert run.code == 2 and one_line_error(run), run.stderr
-    assert "a/plantlint.toml (for a)" in run.stderr and "no configuration file (for c)" in run.stderr
+    assert "this run would use no configuration file, but a/plantlint.toml (for a/tail.plant)" in run.stderr
+    # a project nested in a checked folder: its own file, not the outer one, judges its models
+    (tmp_path / "a" / "sub").mkdir()
+    (tmp_path / "a" / "sub" / "plantlint.toml").write_text('fail-on = "warning"\n', encoding="utf-8")
+    copy(UNSTABLE, tmp_path / "a" / "sub" / "tail.plant")
+    for cwd, args in ((tmp_path, ["a"]), (tmp_path / "a", [])):
+        run = cli(cwd, "check", "--format", "json", *args)
+        assert run.code == 2 and one_line_error(run), run.stderr
+        assert "sub/plantlint.toml (for " in run.stderr and "sub/tail.plant)" in run.stderr
 
 
 def test_severity_override_from_pyproject(tmp_path: Path, cli: CLI) -> None:

@@ -341,25 +341,38 @@ def _config_start(paths: list[str]) -> Path:
 
 def _load_config(paths: list[str], explicit: str | None, known: frozenset[str]) -> Config:
     """The run's configuration: ``--config``, else the one the checked paths fall under.
-    Paths under two configuration files (two projects) are a usage error: one run has one
-    set of rules, so either file alone would silently misjudge the other project."""
+    Models under different configurations (two projects side by side, a project nested in
+    a folder that is checked, or a project's models beside models under none) are a usage
+    error: one run has one set of rules, so some model would be judged by rules that are
+    not its own."""
     from plantlint.run.config import ConfigError, find_config, load_config, shown_path
+    from plantlint.run.runner import UsageError, discover
 
-    if explicit is None and len(paths) > 1:
-        files: dict[Path | None, str] = {}
-        for path in paths:
-            found = find_config(_folder(Path(path)))
-            files.setdefault(found[0].resolve() if found is not None else None, path)
-        common = find_config(_config_start(paths))
-        used = common[0].resolve() if common is not None else None
-        if len(files) > 1 or used not in files:
-            # two projects, or one project's file and paths under none: whichever the run
-            # used, some path would be judged by rules that are not its own
-            named = ", ".join(f"{shown_path(f) if f is not None else 'no configuration file'} (for {p})"
-                              for f, p in sorted(files.items(), key=lambda kv: str(kv[0])))
-            raise ConfigError(f"the paths fall under different configurations: {named}; check each "
-                              "project separately, or pass --config FILE to use one for all")
-    return load_config(_config_start(paths), Path(explicit) if explicit else None, known)
+    config = load_config(_config_start(paths), Path(explicit) if explicit else None, known)
+    if explicit is not None:
+        return config
+    used = config.source.resolve() if config.source is not None else None
+    try:
+        targets = discover(paths or [str(config.root)], config.root, config.include, config.exclude)
+    except UsageError:
+        return config  # the run itself reports the path
+    own: dict[Path, Path | None] = {}
+    mismatched: dict[Path | None, str] = {}
+    for t in targets:
+        folder = _folder(t.path)
+        if folder not in own:
+            found = find_config(folder)
+            own[folder] = found[0].resolve() if found is not None else None
+        if own[folder] != used:
+            mismatched.setdefault(own[folder], str(t.display))
+    if mismatched:
+        named = ", ".join(f"{shown_path(f) if f is not None else 'no configuration file'} (for {p})"
+                          for f, p in sorted(mismatched.items(), key=lambda kv: str(kv[0])))
+        this = shown_path(used) if used is not None else "no configuration file"
+        raise ConfigError(f"the models fall under different configurations: this run would use {this}, "
+                          f"but {named}; check each project separately, or pass --config FILE to use one "
+                          "for all")
+    return config
 
 
 def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> int:

@@ -544,3 +544,31 @@ point origin: x1 = 0, x2 = 0, x3 = 0, u1 = 0, u2 = 0
     assert ref == [sp.Rational(-4, 5)]
     zeros = analyse_bytes(text).analysis["points"]["origin"]["linearisation"]["transmission_zeros"]
     assert len(zeros) == 1 and abs(zeros[0][0] + 0.8) < 1e-15 and zeros[0][1] == 0
+
+
+def test_large_transmission_zeros_are_not_lost_to_the_sampling_circle() -> None:
+    """A reviewer's probe (invented numbers): with x3 held at 0, x1'' = -1e30 (x1^2 - pi^2) - x1'
+    linearises at x1 = pi to s^2 + s + 2e30 pi (by hand), zeros -1/2 +- 2.5e15 i. Sampled on a
+    circle of radius 1.3 the pencil's coefficients were 1e30 apart and the leading one was
+    dropped (a false internal-inconsistency); the circle now follows the size of A."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = b"""plant stiff
+state x1 in -10 .. 10
+state x2 in -10 .. 10
+state x3 in -10 .. 10
+input u in -100 .. 100
+rate x1 = x2
+rate x2 = -1e30*(x1^2 - pi^2) - x2 + x3
+rate x3 = u
+output y = x3
+point p: x1 = pi, x2 = 0, x3 = 0, u = 0
+"""
+    ref = np.roots([1.0, 1.0, 2e30 * math.pi])
+    raw = analyse_bytes(text)
+    assert not [f for f in raw.findings if f.rule == "internal-inconsistency"]
+    zeros = [complex(a, b) for a, b in raw.analysis["points"]["p"]["linearisation"]["transmission_zeros"]]
+    assert len(zeros) == 2
+    for z in zeros:
+        assert min(abs(z - r) / abs(r) for r in ref) < 1e-12
+        assert abs(z.real + 0.5) < 1e-6

@@ -606,7 +606,11 @@ def _ball_pencil_coefficients(A: list[list[arb]], B: list[list[arb]], C: list[li
     n, m = len(A), len(B[0])
     k = n + 1
     roots = [acb(arb(2 * t) / k).exp_pi_i() for t in range(k)]
-    shift = acb(arb(1) / (7 * k)).exp_pi_i() * arb(13) / 10
+    # the circle's radius follows the size of A (a power of two times 13/10): zeros at 1e6
+    # sampled on |s| = 1.3 left coefficients 1e32 apart, and the leading one was dropped
+    size = max((sum(float(abs(e).upper()) for e in row) for row in A), default=0.0)
+    radius = arb(2) ** max(0, math.ceil(math.log2(size))) if size > 1 else arb(1)
+    shift = acb(arb(1) / (7 * k)).exp_pi_i() * arb(13) / 10 * radius
     values = []
     for w in roots:
         s = shift * w
@@ -620,16 +624,17 @@ def _ball_pencil_coefficients(A: list[list[arb]], B: list[list[arb]], C: list[li
             for j in range(n):
                 M[n + i, j] = C[i][j]
         values.append(M.det())
-    coeffs = []
+    scaled = []  # coefficients of the polynomial in s / radius: comparable in size
+    turn = shift / radius
     for q in range(k):
         total = acb(0)
         for t in range(k):
             total += values[t] * roots[(-t * q) % k]
-        coeffs.append(acb((total / (k * shift ** q)).real))  # real data: the imaginary part is rounding
-    top = max((float(abs(c).mid()) for c in coeffs), default=0.0)
-    while coeffs and (coeffs[-1].contains(0) or float(abs(coeffs[-1]).mid()) <= tol * top):
-        coeffs.pop()
-    return coeffs
+        scaled.append(acb((total / (k * turn ** q)).real))  # real data: the imaginary part is rounding
+    top = max((float(abs(c).mid()) for c in scaled), default=0.0)
+    while scaled and (scaled[-1].contains(0) or float(abs(scaled[-1]).mid()) <= tol * top):
+        scaled.pop()
+    return [c / radius ** q for q, c in enumerate(scaled)]
 
 
 def _ball_roots(coeffs: list[acb]) -> list[complex]:

@@ -393,3 +393,26 @@ def test_structure_changes_are_worded_for_readers_not_in_internal_names() -> Non
     after["points"]["rest"]["zero_dynamics"] = {"verdict": "not_applicable"}
     shown = [change_text(c) for c in structure_changes(before, after)]
     assert "point rest: zero dynamics: not computed -> none (total relative degree n)" in shown
+
+
+def test_file_names_that_are_not_utf8_are_followed_through_renames_and_deletions(tmp_path: Path) -> None:
+    """git prints such names as raw bytes: read as the file system reads them (not with
+    replacement characters), a rename is followed (its findings stay known) and a deletion
+    is listed."""
+    repo = tmp_path / "repo"
+    repo.mkdir()
+    env = git_env(tmp_path)
+    git(repo, env, "init", "-q")
+    renamed, deleted = os.fsdecode(b"ren\xfa.plant"), os.fsdecode(b"gon\xe9.plant")
+    (repo / renamed).write_text(model("ren", UNSTABLE), encoding="utf-8")
+    (repo / deleted).write_text(model("gone", UNSTABLE), encoding="utf-8")
+    git(repo, env, "add", "-A")
+    git(repo, env, "commit", "-q", "-m", "base")
+    git(repo, env, "mv", renamed, "plain.plant")
+    git(repo, env, "rm", "-q", deleted)
+    run = plantlint(repo, env, "check", "--since", "HEAD", "--format", "json", "--no-cache", ".")
+    assert run.code == 0, run.stdout + run.stderr
+    files = {f["path"]: f for f in run.json()["files"]}
+    assert rules_by_state(files["plain.plant"]) == [("zero-dynamics-unstable", "known")]
+    (gone,) = [f for p, f in files.items() if p.startswith("gon")]
+    assert gone["structure_changes"] == [{"what": "model", "before": "present", "after": "deleted"}]

@@ -16,6 +16,7 @@ when no rule fires (for example because the new finding is waived).
 
 from __future__ import annotations
 
+import os
 import subprocess
 from collections import Counter
 from dataclasses import replace
@@ -53,7 +54,7 @@ def repo_top(cwd: Path) -> Path:
     out = _git(["rev-parse", "--show-toplevel"], cwd)
     if out.returncode != 0:
         raise UsageError("--since needs a git repository (none found here)")
-    return Path(out.stdout.decode().strip())
+    return Path(os.fsdecode(out.stdout).strip())
 
 
 def resolve_ref(ref: str, top: Path) -> str:
@@ -74,7 +75,7 @@ def renames(commit: str, top: Path) -> dict[str, str]:
     out = _git(["diff-index", "--name-status", "-M", "-z", commit, "--"], top)
     if out.returncode != 0:
         return {}
-    fields = out.stdout.decode("utf-8", errors="replace").split("\0")
+    fields = os.fsdecode(out.stdout).split("\0")
     mapping: dict[str, str] = {}
     i = 0
     while i < len(fields) and fields[i]:
@@ -152,7 +153,7 @@ def _deleted(commit: str, top: Path, paths: list[str], config: Config, defaults:
         listed = _git(["ls-tree", "-r", "-z", "--name-only", commit, "--", rel_dir if rel_dir != "." else "."], top)
         if listed.returncode != 0:
             continue
-        for name in sorted(n for n in listed.stdout.decode("utf-8", "replace").split("\0") if n.endswith(".plant")):
+        for name in sorted(n for n in os.fsdecode(listed.stdout).split("\0") if n.endswith(".plant")):
             path = top / name
             if (path.resolve() in current or name in renamed_from or path.exists()
                     or not selected_in_folder(path, folder, config.root, config.include, config.exclude)):

@@ -416,3 +416,23 @@ def test_file_names_that_are_not_utf8_are_followed_through_renames_and_deletions
     assert rules_by_state(files["plain.plant"]) == [("zero-dynamics-unstable", "known")]
     (gone,) = [f for p, f in files.items() if p.startswith("gon")]
     assert gone["structure_changes"] == [{"what": "model", "before": "present", "after": "deleted"}]
+
+
+def test_a_new_syntax_error_worded_like_the_old_one_is_introduced(tmp_path: Path) -> None:
+    """A syntax error's fingerprint holds the statement it is in: fixing one `x +* u` and
+    writing another elsewhere is a new error (it fails the run even where not-decided
+    results are let pass), while moving the old one down keeps it known."""
+    relax = '[undecided]\nfail = false\nreason = "a test of the gate (invented)"\n'
+    head = "plant typo\nstate x in -1 .. 1\nstate z in -1 .. 1\ninput u\n"
+    base = head + "rate x = x +* u\nrate z = -z + u\noutput y = x\n"
+    moved = "# a comment\n" + base
+    other = head + "rate x = -x + u\nrate z = z +* u\noutput y = x\n"
+    for changed, state, code in ((moved, "known", 0), (other, "introduced", 1)):
+        home = tmp_path / state
+        home.mkdir()
+        repo, env = base_and_change(home, {"typo.plant": base}, {"typo.plant": changed})
+        (repo / "plantlint.toml").write_text(relax, encoding="utf-8")
+        run = plantlint(repo, env, "check", "--since", "base", "--format", "json", "--no-cache", "plants")
+        assert run.code == code, run.stdout
+        (file,) = run.json()["files"]
+        assert [(f["rule"], f["baseline"]) for f in file["findings"] if f["baseline"] != "fixed"] == [("syntax", state)]

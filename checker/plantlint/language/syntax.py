@@ -282,6 +282,20 @@ STATEMENT_KEYWORDS = ("plant", "const", "param", "state", "input", "let", "rate"
 
 
 def _explain_error(exc: UnexpectedInput, text: str) -> Finding:
+    """The finding for a file the parser rejects. Its anchor (what it is about, for the
+    --since fingerprint) includes the offending line's text, so a new error with the same
+    wording on another statement is not taken for the one at the baseline."""
+    from dataclasses import replace
+
+    problem = _explain(exc, text)
+    if problem.span is None:
+        return problem
+    lines = text.splitlines()
+    line = lines[problem.span.line - 1].strip() if 0 < problem.span.line <= len(lines) else ""
+    return replace(problem, anchor=f"{problem.anchor} in `{line[:200]}`")
+
+
+def _explain(exc: UnexpectedInput, text: str) -> Finding:
     line = getattr(exc, "line", None) or 1
     column = getattr(exc, "column", None) or 1
     if isinstance(exc, UnexpectedCharacters):

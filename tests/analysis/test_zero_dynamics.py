@@ -522,3 +522,32 @@ expect minimum_phase at rest
 """
     (claim,) = [f for f in analyse_bytes(text).findings if f.rule == "expectation-failed"]
     assert claim.undecided and "computed for square plants" in claim.message
+
+
+def test_a_barely_unstable_mode_at_a_refined_point_is_not_called_critical() -> None:
+    """A reviewer's probe (invented numbers). y = x3 held; x1'' = -x1^3 + 2 + 1e-12 x1' + x3
+    linearises at x1 to s^2 - 1e-12 s + 3 x1^2 (by hand; numpy below): real parts +5e-13,
+    unstable. The point is rounded (1.2599 for 2^(1/3)), so the analysis runs at a refined
+    equilibrium known to ~40 digits; a tolerance of 1e-9 |Df*| once called these modes
+    "critical", a warning that passes a gate."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = b"""plant nudge
+state x1 in -3 .. 3
+state x2 in -3 .. 3
+state x3 in -3 .. 3
+input u in -5 .. 5
+rate x1 = x2
+rate x2 = -x1^3 + 2 + 1e-12*x2 + x3
+rate x3 = u
+output y = x3
+point p: x1 = 1.2599, x2 = 0, x3 = 0, u = 0 tolerance 1e-3
+"""
+    ref = np.roots([1.0, -1e-12, 3 * 1.2599**2])
+    assert all(r.real > 0 for r in ref)
+    raw = analyse_bytes(text)
+    rules = sorted(f.rule for f in raw.findings)
+    assert rules == ["point-refined", "zero-dynamics-unstable"], rules
+    zd = raw.analysis["points"]["p"]["zero_dynamics"]
+    assert zd["verdict"] == "non_minimum_phase"
+    assert all(abs(re - 5e-13) < 1e-18 for re, _ in zd["eigenvalues"])

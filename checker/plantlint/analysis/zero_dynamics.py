@@ -18,6 +18,7 @@ in the result.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field, replace
 from typing import Sequence
 
@@ -461,14 +462,26 @@ def _numeric_once(name: str, n: int, r: int, data: _PointData, digits: int) -> Z
     scale = 1.0 + float(mpmath.mnorm(J, 1))
     match_tol = 10.0 * scale * 10.0 ** (-digits / (n + 1))
     consistent = _same_multiset(eig_j, [0j] * r + eig_m, match_tol) and float(min(sigma)) > 1e-20 * scale
-    # relative to the size of Df*(x0) (M is a compression of it), with a floor at the
-    # noise level of the working precision
-    tol = max(CRITICAL_TOLERANCE * float(mpmath.mnorm(J, "F")), 10.0 ** (-digits / 2))
+    # A simple eigenvalue, well apart from the others, is computed to about the working
+    # precision times |Df*|: its sign is read with a tolerance of half the digits. One in a
+    # cluster (a repeated root splits by the square root of the error, or worse) gets the
+    # wide tolerance, relative to |Df*| (M is a compression of it). A wide tolerance for
+    # every eigenvalue once called an unstable mode of a stiff refined point "critical".
+    size = float(mpmath.mnorm(J, "F"))
+    tight = 10.0 ** (-digits / 2) * (1.0 + size)
+    wide = max(CRITICAL_TOLERANCE * size, 10.0 ** (-digits / 2))
     eigs: list[tuple[complex, int | None]] = []
-    for z in sorted(eig_m, key=lambda z: (z.real, z.imag)):
+    used: list[float] = []
+    ordered = sorted(eig_m, key=lambda z: (z.real, z.imag))
+    for k, z in enumerate(ordered):
+        apart = min((abs(z - w) for q, w in enumerate(ordered) if q != k), default=math.inf)
+        tol = tight if apart > 1e-6 * (1.0 + size) else wide
         sign = 0 if abs(z.real) <= tol else (1 if z.real > 0 else -1)
+        if sign == 0:
+            used.append(tol)
         eigs.append((z, sign))
-    return _verdict(name, d, eigs, exact=False, tolerance=tol, consistent=consistent, polynomial=None)
+    tolerance = max(used) if used else tight
+    return _verdict(name, d, eigs, exact=False, tolerance=tolerance, consistent=consistent, polynomial=None)
 
 
 def _eigenvalues(M: mpmath.matrix) -> list[complex]:

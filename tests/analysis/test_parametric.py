@@ -419,12 +419,14 @@ _a, _x1, _x2, _u = sp.symbols("a x1 x2 u")
 
 
 @pytest.mark.parametrize(("gain", "reference", "holds"), [("a - 1", _a - 1, False), ("x1 - a", _x1 - _a, True),
-                                                        ("2 + a*x2^2", 2 + _a * _x2**2, True)])
+                                                        ("2 + a*x2^2", 2 + _a * _x2**2, True),
+                                                        ("x1^2 + a - 1", _x1**2 + _a - 1, True)])
 def test_a_relative_degree_claim_holds_for_every_parameter_value(gain: str, reference: sp.Expr, holds: bool) -> None:
     """Invented plants. L_g y is the gain itself (sympy.diff of the rate by u, below). With
     gain a - 1 it vanishes for every state at a = 1, inside the range: there y has relative
-    degree 2, so `relative_degree(y) = 1` over the box is false. x1 - a and 2 + a x2^2 vanish
-    at some states but for no parameter value at every state: the claim holds."""
+    degree 2, so `relative_degree(y) = 1` over the box is false. x1 - a, 2 + a x2^2 and
+    x1^2 + a - 1 vanish at some states but for no parameter value at every state: the claim
+    holds (for the last no single state shows it, two together do)."""
     from plantlint.run.pipeline import analyse_bytes
 
     lg = sp.diff(-_x1 + _x2 + reference * _u, _u)

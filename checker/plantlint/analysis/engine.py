@@ -460,10 +460,10 @@ _DEGREE_BUDGET = Budget(max_boxes=2000, max_seconds=0.5)
 def _degree_over_parameters(a: Analysis, output: str, r: int | None) -> list[tuple[str | None, str]]:
     """The relative degree r holds for every value of the ranged parameters when, for each
     value, the row L_g L_f^(r-1) y is not identically zero in the states (the rows below it
-    are zero identically in states and parameters). A proof: one state x0 at which the row
-    is never all zero over the parameter box. A refutation: a parameter value at which the
-    row vanishes identically (the input no longer reaches the output there in r steps).
-    Otherwise the claim is not decided over the box."""
+    are zero identically in states and parameters). A proof: one state x0, or a few states
+    together, at which the row is never all zero over the parameter box. A refutation: a
+    parameter value at which the row vanishes identically (the input no longer reaches the
+    output there in r steps). Otherwise the claim is not decided over the box."""
     plant = a.kernel.plant
     if r is None or not plant.params or output not in plant.outputs:
         return []
@@ -476,13 +476,19 @@ def _degree_over_parameters(a: Analysis, output: str, r: int | None) -> list[tup
         return []  # never zero on the box of states and parameters
     box = {s: plant.param_box[s] for s in plant.params}
     found: list[dict[sp.Symbol, sp.Expr]] = []
+    rows_at: list[sp.Expr] = []
     for x0 in _state_samples(plant):
         at = [e.xreplace(x0) for e in row]
+        rows_at.extend(at)
         verdict = certify_nonzero(at, box, _DEGREE_BUDGET)
         if verdict.regular is True:
             return []
         if verdict.regular is False and verdict.witness is not None and verdict.witness_exact:
             found.append({s: sp.Rational(verdict.witness[str(s)]) for s in plant.params})
+    # no single state will do (x1^2 + a - 1 vanishes at some a for every x1): the states
+    # together, "never all zero at once" over the box, prove it for every parameter value
+    if certify_nonzero(rows_at, box, _DEGREE_BUDGET).regular is True:
+        return []
     for p_star in found:
         if all(a.kernel.is_zero(e.xreplace(p_star)).proven_zero for e in row):
             named = {s for e in row for s in e.free_symbols}

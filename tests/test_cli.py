@@ -111,6 +111,8 @@ def test_exit_codes_for_clean_and_failing_models(tmp_path: Path, cli: CLI) -> No
     ["check", "--config", "", "x.plant"],
     ["check", "--output", "", "x.plant"],
     ["check", "--shard", "", "x.plant"],
+    ["check", "--only", "", "x.plant"],  # `--only "$RULES"` with nothing in it must not run every rule
+    ["check", "--skip", "", "x.plant"],
     ["merge", "--output", "", "shard.json"],
     ["rules", "no-such-rule"],
     ["no-such-command"],

@@ -235,7 +235,7 @@ def _check(args: argparse.Namespace) -> int:
     from plantlint.core.findings import Report, Severity
     from plantlint.run.runner import UsageError, check_targets, discover
 
-    for option in ("since", "cache_dir", "config", "output", "shard"):
+    for option in ("since", "cache_dir", "config", "output", "shard", "only", "skip"):
         value = getattr(args, option)
         if value is not None and not value.strip():  # `--since "$UNSET"`: not the same as leaving it out
             return _fail(f"--{option.replace('_', '-')} needs a value; it was given an empty one")

@@ -547,7 +547,9 @@ def _verdict(
 def show_eigenvalues(values: Sequence[complex]) -> str:
     """Eigenvalues for a message, conjugate pairs written with +-."""
     parts: list[str] = []
-    pending = list(values)
+    # a real root computed as a pair with an imaginary part at rounding level (a double root
+    # -2.50663 +- 9.6e-21i) is shown as the real number it is
+    pending = [complex(z.real, 0.0) if abs(z.imag) <= 1e-15 * abs(z) else z for z in values]
     while pending:
         z = pending.pop(0)
         if z.imag == 0:

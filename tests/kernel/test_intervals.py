@@ -191,3 +191,20 @@ def test_a_zero_exactly_on_an_irrational_bound_is_found_there() -> None:
     v = certify_nonzero(sp.cos(x), {x: (-sp.pi / 2, sp.pi / 2)})
     assert v.regular is False and v.witness_exact
     assert abs(abs(v.witness["x"]) - math.pi / 2) < 1e-15
+
+
+def test_a_zero_between_the_last_float_and_an_exact_bound_is_found() -> None:
+    """cos x on [-1, 1.5707963267948967]: the decimal bound lies 8e-18 past pi/2 (mpmath at
+    40 digits: cos there is negative), and no double lies between pi/2 and it. The sign at
+    the exact bound differs from the sign inside: the zero is in the range."""
+    import mpmath
+
+    from fractions import Fraction
+
+    x = sp.Symbol("x", real=True)
+    bound = Fraction("1.5707963267948967")
+    with mpmath.workdps(40):
+        assert mpmath.cos(mpmath.mpf(bound.numerator) / bound.denominator) < 0
+    v = certify_nonzero(sp.cos(x), {x: (Fraction(-1), bound)})
+    assert v.regular is False and not v.witness_exact
+    assert abs(v.witness["x"] - math.pi / 2) < 1e-15

@@ -475,6 +475,10 @@ def certify_nonzero(
             face = inside.on_face(b, search.root)
             if face is not None and ev.exactly_zero(face, range(len(exprs))):
                 return "violated", (tuple(float(v) for v in face), True)
+            if face is not None and single and _sign_change_to_face(ev, b, face, inside):
+                # the value at the exact bound has the other sign than inside: the zero lies
+                # between them, in the box (a bound just past pi/2, with no float beyond pi/2)
+                return "violated", (tuple(float(v) for v in face), False)
         if single:
             signs = [_certain_sign(vals[0]) for vals in values]
             if 1 in signs and -1 in signs:
@@ -534,6 +538,27 @@ def certify_sign(
         return "split", None
 
     return search.run(decide)
+
+
+def _sign_change_to_face(ev: _Evaluator, b: FloatBox, face: Sequence[sp.Expr], inside: _Inside) -> bool:
+    """Certain opposite signs at the exact face point and at the sub-box's centre (moved
+    into the box), with the expression finite on the whole sub-box: a zero between them."""
+    centre = inside.clamp(_centre(b))
+    if centre is None:
+        return False
+    old = flint.ctx.prec
+    flint.ctx.prec = POINT_PREC
+    try:
+        at_face = ev.program.values([to_arb(v) for v in face], POINT_PREC)[0]
+    except (UnsupportedExpression, ValueError, ZeroDivisionError):
+        return False
+    finally:
+        flint.ctx.prec = old
+    at_centre = ev.at(centre)[0]
+    if not (at_face.is_finite() and at_centre.is_finite()):
+        return False
+    signs = {_certain_sign(at_face), _certain_sign(at_centre)}
+    return signs == {1, -1} and ev.natural(b)[0].is_finite()
 
 
 def _witness_candidates(b: FloatBox, inside: _Inside) -> list[tuple[float, ...]]:

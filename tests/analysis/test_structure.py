@@ -714,3 +714,26 @@ expect regular at o
     assert "at point 'o' the relative degree of y is not well defined" in claim.message
     (claim,) = [f for f in analyse_bytes(two).findings if f.rule == "expectation-failed"]
     assert "at point 'o' the decoupling matrix is singular (rank 1 for 2 outputs)" in claim.message
+
+
+def test_an_envelope_left_open_by_precision_says_so_rather_than_blame_the_budget() -> None:
+    """A reviewer's model (invented): L_g y = x1 - 1/3 - 1e-20 on x1 in -1 .. 1/3 is at most
+    -1e-20 (by hand), below what the 64-bit search resolves next to 1/3. The boxes there
+    cannot be split any more: the finding and the claim say that, not "within its budget"."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = b"""plant sliver
+state x1 in -1 .. 1/3
+state x2 in -1 .. 1
+input u
+rate x1 = -x1 - 1
+rate x2 = -x2 + (x1 - 1/3 - 1e-20)*u
+output y = x2
+expect regular
+"""
+    raw = analyse_bytes(text)
+    (unproven,) = [f for f in raw.findings if f.rule == "envelope-unproven"]
+    assert "cannot be split further at double precision" in unproven.message
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert claim.undecided and "within its budget" not in claim.message
+    assert "cannot be split further at double precision" in claim.message

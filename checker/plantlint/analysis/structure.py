@@ -552,10 +552,15 @@ def certify_envelope(
             "envelope-unproven",
             f"regularity over the envelope is unproven: {verdict.undecided_count} box"
             f"{'es' if verdict.undecided_count != 1 else ''} undecided for {certified} "
-            + (f"after {clock.boxes} box{'es' if clock.boxes != 1 else ''} and {clock.seconds:.2f} s" if clock.boxes
+            + ("that cannot be split further at double precision (the term comes within rounding of zero there)"
+               if verdict.too_narrow else
+               f"after {clock.boxes} box{'es' if clock.boxes != 1 else ''} and {clock.seconds:.2f} s" if clock.boxes
                else f"(the budget ran out before a box was examined, {clock.seconds:.2f} s)")
             + f", e.g. {shown}",
-            anchor=anchors.ENVELOPE, hint="raise the budget, or narrow the envelope near those boxes",
+            anchor=anchors.ENVELOPE,
+            hint=("move the envelope's bound away from where the term nearly vanishes, or check whether it "
+                  "vanishes there exactly" if verdict.too_narrow else
+                  "raise the budget, or narrow the envelope near those boxes"),
         ))
     if undecided_model:
         findings.append(finding(
@@ -565,7 +570,10 @@ def certify_envelope(
         ))
     regular = verdict.regular if not undecided_model else None
     margin = verdict.margin if regular else None
-    return Envelope(regular, margin, None, tuple(findings), clock.boxes, clock.seconds, certified)
+    narrow = ("the boxes where the term comes within rounding of zero cannot be split further at double "
+              "precision" if verdict.regular is None and verdict.too_narrow and not undecided_model else "")
+    return Envelope(regular, margin, None, tuple(findings), clock.boxes, clock.seconds, certified,
+                    undecidable=narrow)
 
 
 def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbol, Any],
@@ -597,7 +605,8 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
     if undecided:
         first = undecided[0]
         return EnvelopeVerdict(None, None, None, first.undecided, boxes,
-                               sum(v.undecided_count for v in undecided)), exprs
+                               sum(v.undecided_count for v in undecided),
+                               too_narrow=all(v.too_narrow for v in undecided)), exprs
     return EnvelopeVerdict(True, margin, None, [], boxes), exprs
 
 

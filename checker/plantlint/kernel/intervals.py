@@ -78,6 +78,8 @@ class EnvelopeVerdict:
     undecided: list[dict[str, Interval]]
     boxes_examined: int
     undecided_count: int = 0
+    #: every open box is too narrow to split at double precision (not a budget that ran out)
+    too_narrow: bool = False
     witness_exact: bool = False  # the expression is exactly zero at the witness (else: bracketed)
     seconds: float = 0.0
 
@@ -409,7 +411,7 @@ class _Search:
         if open_boxes:
             return EnvelopeVerdict(
                 None, None, None, [self.named_box(b) for b in open_boxes[:3]], examined,
-                undecided_count=len(open_boxes), seconds=seconds,
+                undecided_count=len(open_boxes), seconds=seconds, too_narrow=not queue,
             )
         return EnvelopeVerdict(True, margin, None, [], examined, seconds=seconds)
 

@@ -393,7 +393,10 @@ def _ball_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics | N
             signs = [1 if z.real > 0 else (-1 if z.real < 0 else None) for z in roots]
             if any(sg is None for sg in signs) and bits != _BALL_BITS[-1]:
                 continue
-            eigs = sorted(((complex(float(z.real.mid()), float(z.imag.mid())), sg) for z, sg in zip(roots, signs)),
+            # a real part whose ball holds 0 is shown as 0 (its bound is stated beside it), not
+            # as the ball's midpoint (1.5e-153, noise)
+            eigs = sorted(((complex(float(z.real.mid()) if sg is not None else 0.0, float(z.imag.mid())), sg)
+                           for z, sg in zip(roots, signs)),
                           key=lambda e: (e[0].real, e[0].imag))
             near = [abs(z.real).upper() for z, sg in zip(roots, signs) if sg is None]
             bound = float(max(near)) if near else None

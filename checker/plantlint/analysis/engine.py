@@ -171,7 +171,7 @@ def run_analysis(model: Model, settings: AnalysisSettings = AnalysisSettings(),
             continue
         ints = [int(d) for d in degrees if d is not None]
         pa.zero_dynamics = zero_dynamics_at(kernel, ints, pa.equilibrium.values, pa.name,
-                                            approximate=_refined_not_exact(pa.equilibrium))
+                                            approximate=pa.equilibrium.approximate)
         result.findings.extend(pa.zero_dynamics.findings)
         result.findings.extend(box_zero_dynamics(pa.parametric, ints, pa.zero_dynamics))
         if pa.zero_dynamics.verdict == "not_applicable" and sum(ints) == plant.n:
@@ -354,19 +354,20 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
     """
     out: list[Finding] = []
     pending: list[Finding] = []
+    ranged = bool(a.kernel.plant.params)
     for claim in a.model.claims:
         text = claim_text(claim)
         if claim.kind in ("regular", "minimum_phase") and not a.model.outputs:
             failures: list[tuple[str | None, str]] = [
                 (claim.point, "the model declares no output, so there is no relative degree or zero dynamics to check")]
-        elif claim_stage(claim, bool(a.kernel.plant.params)) in a.completed:
+        elif claim_stage(claim, ranged) in a.completed:
             failures = _CLAIM_CHECKS[claim.kind](a, claim)
         elif claim.kind == "regular" and claim.point is None and a.envelope is not None and a.envelope.regular is False:
             failures = [f for f in _regular_claim(a, claim) if f[0] is None]  # the envelope alone refutes it
         else:
             pending.append(finding("expectation-failed", f"`{text}` not decided",
                                    point=claim.point, anchor=claim.anchor, undecided=True,
-                                   hint=f"needs the stage '{claim_stage(claim, bool(a.kernel.plant.params))}' to complete"))
+                                   hint=f"needs the stage '{claim_stage(claim, ranged)}' to complete"))
             continue
         if not failures and a.kernel.uncertain:
             failures = [(claim.point, _unproven_zeros(a))]
@@ -583,12 +584,6 @@ def _box_failure(pa: PointAnalysis, prop: str, key: str | None = None) -> list[t
         return []
     message, decided = found
     return [(pa.name, message if decided else Undecided(message))]
-
-
-def _refined_not_exact(eq: Any) -> bool:
-    """A point analysed at the equilibrium refined near it, known to ~40 digits only."""
-    near = (eq.refinement or {}).get("equilibrium_near") if eq.status == "refined" else None
-    return isinstance(near, dict) and not near.get("exact", False)
 
 
 def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:

@@ -47,6 +47,13 @@ class Equilibrium:
     #: (status "refined") the tolerance within which the analysis runs there instead
     refinement: dict[str, object] | None = None
 
+    @property
+    def approximate(self) -> bool:
+        """Analysed at the equilibrium refined near the point, known to ~40 digits only (an
+        exact equilibrium found near it is not approximate)."""
+        near = (self.refinement or {}).get("equilibrium_near") if self.status == "refined" else None
+        return isinstance(near, dict) and not near.get("exact", False)
+
 
 # -- exact numbers ---------------------------------------------------------------
 # -- the point -------------------------------------------------------------------

@@ -37,6 +37,7 @@ from typing import Callable, Sequence
 import sympy as sp
 
 from plantlint.analysis.equilibria import Equilibrium
+from plantlint.analysis.refine import REFINED_RESIDUAL
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
 from plantlint.core import anchors
 from plantlint.core.deadline import LATE, bounded
@@ -263,9 +264,6 @@ def _equilibrium(params: ParameterBox, eq: Equilibrium, written: dict[sp.Symbol,
     kernel = params.kernel
     plant = kernel.plant
     solved = set(eq.solved_inputs)
-    # a refined equilibrium is known to ~40 digits: its residuals are tiny, not exactly zero
-    near = (eq.refinement or {}).get("equilibrium_near") if eq.status == "refined" else None
-    approximate = isinstance(near, dict) and not near.get("exact", False)
     values: dict[sp.Symbol, sp.Expr] = {}
     for s in (*plant.states, *plant.inputs):
         if s in solved or s not in eq.values:
@@ -298,7 +296,7 @@ def _equilibrium(params: ParameterBox, eq: Equilibrium, written: dict[sp.Symbol,
                 params.named(witness), "not_equilibrium"), values
         test = confirm_zero(r)
         if not test.proven_zero:
-            if approximate and _within_refinement(params, r, f0[i]):
+            if eq.approximate and _within_refinement(params, r, f0[i]):  # tiny, not exactly zero
                 continue
             uncertain.append(f"d{plant.states[i]}/dt")
     if uncertain:
@@ -306,11 +304,6 @@ def _equilibrium(params: ParameterBox, eq: Equilibrium, written: dict[sp.Symbol,
                           "value tried but could not be confirmed zero over the box symbolically"), values
     how = "inputs solved as functions of the parameters" if unknown else "residuals vanish identically"
     return BoxVerdict("proven", f"an equilibrium for every parameter value in the box ({how})"), values
-
-
-#: How small a refined point's residual must stay over the whole parameter box, relative to
-#: the rate's size at the nominal values (the refinement converges to ~1e-40).
-REFINED_RESIDUAL = 1e-25
 
 
 def _within_refinement(params: ParameterBox, r: sp.Expr, rate: sp.Expr) -> bool:

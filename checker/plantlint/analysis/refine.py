@@ -8,9 +8,9 @@ model's own scale and finds the equilibrium nearby:
   at the point (the largest |term| of f_i and of each g_ij u_j), the inputs left
   out of the point at their least-squares values; the largest ratio counts. It is
   dimensionless: 1e-4 means the rate is ten thousand times smaller than the
-  forces that make it up, the mark of a rounded value. A rate whose terms are no
-  larger than itself (all zero at the equilibrium) is measured against the
-  model's largest term instead: it has no scale of its own.
+  forces that make it up, the mark of a rounded value. A rate whose only non-zero
+  terms are inputs left out of the point (fitted to the miss) has no scale of its
+  own and is measured against the model's largest term instead.
 * **refined point**: Newton's method (least squares, 200-bit balls through
   :class:`~plantlint.kernel.balls.Program`, never a float comparison for a
   decision) with one written value free at a time, plus the inputs left out; the
@@ -38,6 +38,10 @@ from plantlint.kernel.plant import Plant
 PREC = 200  # bits for every evaluation (about 60 digits)
 DIGITS = 50  # mpmath working digits
 CONVERGED = mpmath.mpf("1e-40")  # relative residual taken as converged (far below any rounding)
+#: What a refined point's residuals may be, relative to the size of their rates, where it is
+#: used as an equilibrium (its zero dynamics, its equilibrium over a parameter box): far
+#: above what the refinement leaves (CONVERGED), far below any rounding in a model.
+REFINED_RESIDUAL = 1e-25
 MAX_STEPS = 40
 FAR = 1.0  # a refined value may differ from the written one by at most its own size (or range)
 

@@ -32,6 +32,7 @@ from plantlint.kernel.exact import number_decider, rank as exact_rank, has_undef
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
+from plantlint.analysis.refine import REFINED_RESIDUAL
 from plantlint.kernel.balls import to_arb
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.rational import polynomial_text, sympy_rational
@@ -326,9 +327,10 @@ def _numeric_route(
     """Irrational numbers at the point (or, ``approximate``, a refined equilibrium known to
     ~40 digits): balls first, then mpmath with a stated tolerance."""
     d = n - r
-    rest_exact = data.f0 + data.G0 * (-(data.A0.LUsolve(data.b0)))
+    drive = data.G0 * (-(data.A0.LUsolve(data.b0)))  # G(x0) u*
+    rest_exact = data.f0 + drive
     if approximate:
-        if not _rests_within(data, rest_exact):
+        if not _rests_within(data.f0, drive):
             return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics "
                                 "(not even within the refinement of the equilibrium)")
     elif any(not decide(e).taken_zero for e in rest_exact):  # type: ignore[operator]
@@ -351,19 +353,14 @@ def _numeric_route(
     return result
 
 
-#: A refined equilibrium is Newton-converged to about 40 digits (analysis/refine.py); its
-#: rest residual of the zero dynamics must be as small, relative to the rates' terms.
-REFINED_REST = 1e-25
-
-
-def _rests_within(data: _PointData, rest: sp.Matrix) -> bool:
-    """|f(x0) + G(x0) u*| small against the size of its terms (balls, 128 bits)."""
+def _rests_within(f0: sp.Matrix, drive: sp.Matrix) -> bool:
+    """|f(x0) + G(x0) u*| within a refined equilibrium's accuracy (REFINED_RESIDUAL) of the
+    size of its two parts (balls, 128 bits)."""
     from plantlint.kernel.balls import ball
 
-    drive = data.G0 * (-(data.A0.LUsolve(data.b0)))
-    for i in range(rest.rows):
-        size = ball(data.f0[i]).abs_upper() + ball(drive[i]).abs_upper() + 1
-        if not bool(ball(rest[i]).abs_upper() <= size * REFINED_REST):
+    for i in range(f0.rows):
+        size = ball(f0[i]).abs_upper() + ball(drive[i]).abs_upper() + 1
+        if not bool(ball(f0[i] + drive[i]).abs_upper() <= size * REFINED_RESIDUAL):
             return False
     return True
 

@@ -41,6 +41,8 @@ from plantlint.kernel.forward import ForwardProgram
 
 Interval = tuple[float, float]
 FloatBox = tuple[Interval, ...]
+#: per coordinate (outer lower face, its exact ball, outer upper face, its exact ball)
+Faces = list[tuple[float, arb, float, arb]]
 Bound = object  # sympy number, int, float or fractions.Fraction
 
 #: Precision (bits) of enclosures over boxes, and of evaluations at points.
@@ -86,8 +88,6 @@ class EnvelopeVerdict:
 
 # -- boxes ----------------------------------------------------------------------------
 def _bound_ball(value: Bound) -> arb:
-    from fractions import Fraction
-
     if isinstance(value, Fraction):
         return arb(value.numerator) / value.denominator
     return to_arb(value)
@@ -136,7 +136,7 @@ class _Inside:
             return None
         return tuple(min(max(v, lo), hi) for v, (lo, hi) in zip(point, self.inner))
 
-    def faces(self, root: FloatBox) -> list[tuple[float, arb, float, arb]]:
+    def faces(self, root: FloatBox) -> Faces:
         """The outer faces of the float box with the exact bounds they stand for."""
         old = flint.ctx.prec
         flint.ctx.prec = BOX_PREC
@@ -187,7 +187,7 @@ def _symbolic(value: Bound) -> sp.Expr:
 
 
 def _ball_of(v: Fraction | arb) -> arb:
-    return v if isinstance(v, arb) else arb(v.numerator) / v.denominator
+    return v if isinstance(v, arb) else _bound_ball(v)
 
 
 def _as_exact(v: float | sp.Rational | Fraction | arb) -> Fraction | arb:
@@ -226,11 +226,16 @@ def _float_at_most(bound: Fraction | arb) -> float:
     return v
 
 
-def _cover(box: FloatBox) -> list[arb]:
+def _cover(box: FloatBox, faces: Faces | None = None) -> list[arb]:
+    """Balls covering a float box; with ``faces``, a side on an outer face of the search's
+    box reaches the exact bound, not the float rounded outward from it (see :class:`_Inside`)."""
     old = flint.ctx.prec
     flint.ctx.prec = BOX_PREC
     try:
-        return [arb(lo).union(arb(hi)) if lo != hi else arb(lo) for lo, hi in box]
+        if faces is None:
+            return [arb(lo).union(arb(hi)) if lo != hi else arb(lo) for lo, hi in box]
+        return [(exact_lo if lo == outer_lo else arb(lo)).union(exact_hi if hi == outer_hi else arb(hi))
+                for (lo, hi), (outer_lo, exact_lo, outer_hi, exact_hi) in zip(box, faces)]
     finally:
         flint.ctx.prec = old
 
@@ -269,31 +274,14 @@ class _Evaluator:
         self.symbols = tuple(symbols)
         self.program = ForwardProgram(self.exprs, self.symbols)
 
-    #: per coordinate (outer lower face, its exact ball, outer upper face, its exact ball):
-    #: a sub-box on an outer face of the float box is enclosed up to the exact bound, not
-    #: to the float rounded outward from it (see :class:`_Inside`)
-    faces: list[tuple[float, arb, float, arb]] | None = None
-
-    def _cover(self, box: FloatBox) -> list[arb]:
-        if self.faces is None:
-            return _cover(box)
-        old = flint.ctx.prec
-        flint.ctx.prec = BOX_PREC
-        try:
-            out = []
-            for (lo, hi), (outer_lo, exact_lo, outer_hi, exact_hi) in zip(box, self.faces):
-                a = exact_lo if lo == outer_lo else arb(lo)
-                b = exact_hi if hi == outer_hi else arb(hi)
-                out.append(a.union(b))
-            return out
-        finally:
-            flint.ctx.prec = old
+    #: the outer faces of the search's box and the exact bounds they stand for (_cover)
+    faces: Faces | None = None
 
     def natural(self, box: FloatBox) -> list[arb]:
-        return self.program.values(self._cover(box), BOX_PREC)
+        return self.program.values(_cover(box, self.faces), BOX_PREC)
 
     def enclose(self, box: FloatBox, centred: bool) -> list[arb]:
-        cover = self._cover(box)
+        cover = _cover(box, self.faces)
         if not centred or not self.symbols:
             return self.program.values(cover, BOX_PREC)
         c = _centre(box)
@@ -471,12 +459,9 @@ def certify_nonzero(
                     return "violated", (p, True)
         if max(search.relative_widths(b), default=0.0) < 1e-6 and search.exact_checks < MAX_EXACT_CHECKS:
             search.exact_checks += 1
-            snapped = ev.snapped_zero(b, range(len(exprs)))
-            if snapped is not None and inside.contains(snapped):
-                return "violated", (snapped, True)
-            face = inside.on_face(b, search.root)
-            if face is not None and ev.exactly_zero(face, range(len(exprs))):
-                return "violated", (tuple(float(v) for v in face), True)
+            exact, face = _exact_zero_in(ev, b, range(len(exprs)), inside, search.root)
+            if exact is not None:
+                return "violated", (exact, True)
             if face is not None and single and _sign_change_to_face(ev, b, face, inside):
                 # the value at the exact bound has the other sign than inside: the zero lies
                 # between them, in the box (a bound just past pi/2, with no float beyond pi/2)
@@ -531,15 +516,27 @@ def certify_sign(
                     return "violated", (p, True)
         if strict and max(search.relative_widths(b), default=0.0) < 1e-6 and search.exact_checks < MAX_EXACT_CHECKS:
             search.exact_checks += 1
-            snapped = ev.snapped_zero(b, [0])
-            if snapped is not None and inside.contains(snapped):
-                return "violated", (snapped, True)
-            face = inside.on_face(b, search.root)
-            if face is not None and ev.exactly_zero(face, [0]):
-                return "violated", (tuple(float(v) for v in face), True)
+            exact, _ = _exact_zero_in(ev, b, [0], inside, search.root)
+            if exact is not None:
+                return "violated", (exact, True)
         return "split", None
 
     return search.run(decide)
+
+
+def _exact_zero_in(ev: _Evaluator, b: FloatBox, indices: Sequence[int], inside: _Inside, root: FloatBox
+                   ) -> tuple[tuple[float, ...] | None, list[sp.Expr] | None]:
+    """A tiny sub-box's exact zero of the expressions (``indices``), if there is one in the
+    declared box: at the simple rational nearest its centre, or at the exact bounds of the
+    outer faces it touches (pi/2, not the float beside it). Also returns that face point
+    (None when the sub-box touches no face) for a sign test."""
+    snapped = ev.snapped_zero(b, indices)
+    if snapped is not None and inside.contains(snapped):
+        return snapped, None
+    face = inside.on_face(b, root)
+    if face is not None and ev.exactly_zero(face, indices):
+        return tuple(float(v) for v in face), face
+    return None, face
 
 
 def _sign_change_to_face(ev: _Evaluator, b: FloatBox, face: Sequence[sp.Expr], inside: _Inside) -> bool:

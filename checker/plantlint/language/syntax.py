@@ -223,30 +223,42 @@ def _nesting_problem(text: str) -> Finding | None:
 def parses(text: str) -> bool:
     """Does the text get past the size checks and the parser? (No statement is built, so
     nothing is imported for the expressions: a cheap look before deciding to load the
-    analysis.)"""
-    if _nesting_problem(text) or _size_problem(text):
-        return False
+    analysis.) The tree is kept for :func:`parse_text` of the same text: a worker forked
+    after this look does not parse the file again."""
+    return _tree(text)[0] is not None
+
+
+#: The last texts parsed and their trees, oldest first (see :func:`parses`; two, so that
+#: the runner's warm-up model read after the look does not push the file out).
+_recent: dict[str, Tree] = {}
+
+
+def _tree(text: str) -> tuple[Tree | None, Finding | None]:
+    """The parse tree of a whole file, or the finding that says why there is none."""
+    if text in _recent:
+        return _recent[text], None
+    problem = _nesting_problem(text) or _size_problem(text)
+    if problem is not None:
+        return None, problem
     try:
-        parser().parse(text)
-    except (UnexpectedInput, RecursionError):
-        return False
-    return True
+        tree = parser().parse(text)
+    except UnexpectedInput as exc:
+        return None, _explain_error(exc, text)
+    except RecursionError:
+        return None, syntax_problem("expression too deeply nested", Span(1, 1, 1, 2), anchor=anchors.problem("nesting"))
+    _recent[text] = tree
+    while len(_recent) > 2:
+        del _recent[next(iter(_recent))]
+    return tree, None
 
 
 def parse_text(text: str) -> Parsed:
     """Parse a whole file. Never raises for bad input: problems come back as findings."""
     out = Parsed()
-    problem = _nesting_problem(text) or _size_problem(text)
-    if problem is not None:
+    tree, problem = _tree(text)
+    if tree is None:
+        assert problem is not None
         out.findings.append(problem)
-        return out
-    try:
-        tree = parser().parse(text)
-    except UnexpectedInput as exc:
-        out.findings.append(_explain_error(exc, text))
-        return out
-    except RecursionError:
-        out.findings.append(syntax_problem("expression too deeply nested", Span(1, 1, 1, 2), anchor=anchors.problem("nesting")))
         return out
     if len(tree.children) > MAX_STATEMENTS:
         out.findings.append(

@@ -19,6 +19,7 @@ from plantlint import __version__
 
 if TYPE_CHECKING:  # imported lazily at run time (no sympy for --version or warm runs)
     from plantlint.run.config import Config
+    from plantlint.run.runner import Target
 
 CAUTION = (
     "plantlint checks the structure of a plant model (relative degree, regularity, zero "
@@ -233,7 +234,7 @@ def _check(args: argparse.Namespace) -> int:
     from plantlint.core.catalogue import load_catalogue
     from plantlint.run.config import ConfigError, effective_jobs, parse_rule_list
     from plantlint.core.findings import Report, Severity
-    from plantlint.run.runner import UsageError, check_targets, discover
+    from plantlint.run.runner import UsageError, check_targets
 
     for option in ("since", "cache_dir", "config", "output", "shard", "only", "skip"):
         value = getattr(args, option)
@@ -242,7 +243,7 @@ def _check(args: argparse.Namespace) -> int:
     catalogue = load_catalogue()
     known = frozenset(catalogue.ids())
     try:
-        config = _load_config(args.paths, args.config, known)
+        config, targets = _load_config(args.paths, args.config, known)  # the models: one discovery
         changes = {}
         if args.only:  # replaces the configuration's selection; every report says so
             changes.update(only=parse_rule_list(args.only, "--only", known), only_reason="",
@@ -260,7 +261,7 @@ def _check(args: argparse.Namespace) -> int:
                 raise ConfigError("--jobs must be >= 0 (0: one per CPU)")
             changes["jobs"] = args.jobs
         config = replace(config, **changes)
-    except ConfigError as exc:
+    except (ConfigError, UsageError) as exc:
         return _fail(str(exc))
     defaults = {r.id: r.severity for r in catalogue}
     paths = args.paths or [str(config.root)]
@@ -280,9 +281,8 @@ def _check(args: argparse.Namespace) -> int:
             from plantlint.run.gate import gate
 
             report = gate(args.since, paths, config, defaults, jobs=effective_jobs(config), use_cache=use_cache,
-                          cache_dir=cache_dir, show_progress=sys.stderr.isatty(), shard=shard)
+                          cache_dir=cache_dir, show_progress=sys.stderr.isatty(), shard=shard, every=targets)
         else:
-            targets = discover(paths, config.root, config.include, config.exclude)
             if shard is not None:
                 targets = shard.pick(targets)
             files = check_targets(targets, config, defaults, jobs=effective_jobs(config), use_cache=use_cache,
@@ -339,23 +339,21 @@ def _config_start(paths: list[str]) -> Path:
         return Path.cwd()
 
 
-def _load_config(paths: list[str], explicit: str | None, known: frozenset[str]) -> Config:
-    """The run's configuration: ``--config``, else the one the checked paths fall under.
-    Models under different configurations (two projects side by side, a project nested in
-    a folder that is checked, or a project's models beside models under none) are a usage
-    error: one run has one set of rules, so some model would be judged by rules that are
-    not its own."""
+def _load_config(paths: list[str], explicit: str | None, known: frozenset[str]) -> tuple[Config, list[Target]]:
+    """The run's configuration (``--config``, else the one the checked paths fall under)
+    and the models it finds (discovery raises UsageError for a path it cannot use). Models
+    under different configurations (two projects side by side, a project nested in a
+    folder that is checked, or a project's models beside models under none) are a usage
+    error unless ``--config`` names one: one run has one set of rules, so some model would
+    be judged by rules that are not its own."""
     from plantlint.run.config import ConfigError, find_config, load_config, shown_path
-    from plantlint.run.runner import UsageError, discover
+    from plantlint.run.runner import discover
 
     config = load_config(_config_start(paths), Path(explicit) if explicit else None, known)
+    targets = discover(paths or [str(config.root)], config.root, config.include, config.exclude)
     if explicit is not None:
-        return config
+        return config, targets
     used = config.source.resolve() if config.source is not None else None
-    try:
-        targets = discover(paths or [str(config.root)], config.root, config.include, config.exclude)
-    except UsageError:
-        return config  # the run itself reports the path
     own: dict[Path, Path | None] = {}
     mismatched: dict[Path | None, str] = {}
     for t in targets:
@@ -372,7 +370,7 @@ def _load_config(paths: list[str], explicit: str | None, known: frozenset[str]) 
         raise ConfigError(f"the models fall under different configurations: this run would use {this}, "
                           f"but {named}; check each project separately, or pass --config FILE to use one "
                           "for all")
-    return config
+    return config, targets
 
 
 def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> int:
@@ -599,15 +597,14 @@ def _plot(args: argparse.Namespace) -> int:
     from plantlint.core.deadline import LATE, bounded
     from plantlint.report.plots import plot_model
     from plantlint.run.config import ConfigError
-    from plantlint.run.runner import UsageError, discover, read_source
+    from plantlint.run.runner import UsageError, read_source
 
     states = [s.strip() for s in args.states.split(",")] if args.states else None
     if states is not None and (len(states) != 2 or not all(states)):
         return _fail("--states needs two state names separated by a comma, e.g. --states th,w")
     try:
-        config = _load_config(args.paths, args.config, frozenset(load_catalogue().ids()))
+        config, targets = _load_config(args.paths, args.config, frozenset(load_catalogue().ids()))
         config = replace(config, **_timeout_change(args.timeout))
-        targets = discover(args.paths, config.root, config.include, config.exclude)
     except (ConfigError, UsageError) as exc:
         return _fail(str(exc))
     seconds, why = config.budget()

@@ -101,11 +101,13 @@ def old_version(commit: str, path: str, top: Path) -> bytes | None:
 
 
 def gate(ref: str, paths: list[str], config: Config, defaults: dict[str, Severity], *, jobs: int, use_cache: bool,
-         cache_dir: Path | None, show_progress: bool, shard: Any = None) -> Report:
-    """The gate over ``paths``; with ``shard`` (run.shard.Shard) only that shard's models."""
+         cache_dir: Path | None, show_progress: bool, shard: Any = None, every: list[Any] | None = None) -> Report:
+    """The gate over ``paths``; with ``shard`` (run.shard.Shard) only that shard's models;
+    ``every``: the models under ``paths`` when the caller has discovered them already."""
     top = repo_top(Path.cwd())
     commit = resolve_ref(ref, top)
-    every = discover(paths, config.root, config.include, config.exclude)
+    if every is None:
+        every = discover(paths, config.root, config.include, config.exclude)
     targets = shard.pick(every) if shard is not None else every
     moved = renames(commit, top)
     now_sources = [read_source(t) for t in targets]

@@ -96,6 +96,30 @@ def test_rounded_state_is_one_rule_with_relative_residual_and_the_value_to_write
     assert f"u = {2 * I_EXACT:.10g} (written 1.4)" in g.message  # u = R i at rest
 
 
+def test_following_the_hint_of_an_irrational_equilibrium_ends_the_finding() -> None:
+    """The equilibrium current sqrt(m g / k) x is irrational, so no written decimal is an
+    equilibrium: the hint gives the value to write with the tolerance its rounding needs
+    (the residual by hand, in decimal arithmetic, below), and writing what it says passes.
+    It used to say only `write i = 0.7003570517`, which missed again."""
+    from decimal import Decimal, getcontext
+
+    f = _one(analyse_bytes(MAGLEV, Config()), "point-not-equilibrium")
+    hint = f.hint or ""
+    shown = f"{I_EXACT:.10g}"
+    assert f"write i = {shown} with `tolerance " in hint and "keep the written value with `tolerance 2e-4`" in hint
+    tolerance = hint.split(f"write i = {shown} with `tolerance ")[1].split("`")[0]
+    # the residual of dv/dt = g - k i^2/(m x^2) at the rounded i, relative to its largest term
+    getcontext().prec = 50
+    term = Decimal("0.0001") * Decimal(shown) ** 2 / (Decimal("0.05") * Decimal("0.01") ** 2)
+    relative = abs(Decimal("9.81") - term) / max(Decimal("9.81"), term)
+    assert Decimal(tolerance) / 10 < relative < Decimal(tolerance)
+    fixed = MAGLEV.replace(b"i = 0.7004", f"i = {shown} tolerance {tolerance}".encode())
+    raw = analyse_bytes(fixed, Config())
+    assert "point-not-equilibrium" not in [g.rule for g in raw.findings]
+    note = _one(raw, "point-refined")
+    assert note.hint is None  # a rounded value cannot make the point exact: no "write" advice
+
+
 def test_exact_value_is_given_when_one_exists() -> None:
     text = b"plant cart\nstate x in -1 .. 1\nstate v in -1 .. 1\ninput F\nrate x = v\nrate v = F\n" \
            b"output y = x\npoint moving: x = 0, v = 0.5, F = 0\n"

@@ -297,8 +297,11 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     if values is None and miss is not None and miss.values is not None:
         values = miss.values
     changed = [(z, w) for z, w, _ in miss.changed] if miss is not None else []
-    moved = ", ".join(f"{z} = {_beside(values[z], exact, _written(w))} (written {_written(w)})" for z, w in changed) \
-        if values is not None else ""
+    shown = {z: _beside(values[z], exact, _written(w)) for z, w in changed} if values is not None else {}
+    moved = ", ".join(f"{z} = {shown[z]} (written {_written(w)})" for z, w in changed)
+    to_write = ", ".join(f"{z} = {shown[z]}" for z, _ in changed)
+    # a refined value is shown rounded: what the point misses by once it is written so
+    rounded = _rounded_miss(plant, written, unknown, shown) if shown and not exact else None
     solved = ", ".join(f"{u} = {_shown(values[u], exact)}" for u in unknown) if values is not None else ""
     refinement: dict[str, object] = {
         "relative_residual": miss.relative if miss is not None else None,
@@ -316,7 +319,8 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
             f"{_ratio(miss.relative)} of the size of their terms; the analysis runs at the "
             f"{'exact' if exact else 'refined'} equilibrium {moved}" + (f", {solved}" if solved and moved else solved),
             point=name, anchor=anchors.point(name),
-            hint=f"write {moved.split(' (written')[0]} to make the point exact" if moved else None,
+            # a refined value is irrational or long: writing it rounded would miss again
+            hint=f"write {to_write} to make the point exact" if moved and (exact or rounded == 0) else None,
         )
         return Equilibrium(name, True, "refined", values, tuple(unknown), (), eq.residual, (*others, note),
                            refinement={**refinement, "refined": True})
@@ -326,10 +330,7 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     hint = None
     if values is not None and moved:
         message += f"; it is {'an exact' if exact else 'an'} equilibrium with {moved}"
-        hint = f"write {moved.split(' (written')[0]}"
-        if miss is not None and miss.relative < 0.1:
-            hint += (f", or accept the rounding: `tolerance {_above(miss.relative)}` at the end of the point "
-                     f"(or point-tolerance in plantlint.toml)")
+        hint = _rounding_hint(to_write, exact, rounded, miss.relative if miss is not None else None)
     elif miss is not None and miss.values is None:
         message += "; no equilibrium was found near it by changing the values written"
     elif late:
@@ -337,6 +338,37 @@ def _rounded(plant: Plant, name: str, given: dict[sp.Symbol, sp.Expr], eq: Equil
     missed = finding("point-not-equilibrium", message, point=name, anchor=anchors.point(name),
                      hint=hint)
     return replace(eq, findings=(*others, missed), refinement={**refinement, "refined": False})
+
+
+def _rounded_miss(plant: Plant, written: dict[sp.Symbol, sp.Expr], unknown: list[sp.Symbol],
+                  shown: dict[sp.Symbol, str]) -> float | None:
+    """The relative residual left once the refined values are written as shown (a refined
+    value is irrational or long, so its rounding leaves a miss of its own); None when it
+    cannot be measured."""
+    from fractions import Fraction
+
+    from plantlint.analysis.refine import relative_at
+
+    trial = dict(written)
+    try:
+        trial.update({z: sp.Rational(Fraction(text)) for z, text in shown.items()})
+        return relative_at(plant, trial, unknown)
+    except (ArithmeticError, ValueError, TypeError):
+        return None
+
+
+def _rounding_hint(to_write: str, exact: bool, rounded: float | None, relative: float | None) -> str:
+    """What to write for a point that misses its equilibrium. An exact value makes the point
+    exact; a refined one is shown rounded, so the hint gives the tolerance each choice needs
+    (writing the shown value alone would miss again, by less)."""
+    where = " at the end of the point (or point-tolerance in plantlint.toml)"
+    keep = f"keep the written value with `tolerance {_above(relative)}`" if relative is not None and relative < 0.1 else ""
+    if exact or rounded == 0:
+        return f"write {to_write}" + (f", or {keep}{where}" if keep else "")
+    if rounded is None:
+        return (f"write {to_write} (rounded: it needs a tolerance too)" + (f", or {keep}" if keep else "")) + where
+    return (f"the equilibrium is not a short exact number: write {to_write} with `tolerance {_above(rounded)}`"
+            + (f", or {keep}" if keep else "") + where)
 
 
 #: Wall-clock bound of the search for the equilibrium near a point that misses one.

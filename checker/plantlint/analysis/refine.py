@@ -210,29 +210,46 @@ def _short(value: mpmath.mpf) -> sp.Rational | None:
     return None
 
 
+def relative_at(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[sp.Symbol]) -> float | None:
+    """The relative residual at a point, measured as :func:`near_miss` measures it (the
+    inputs left out at their best values); None when the rates cannot be evaluated there."""
+    with mpmath.workdps(DIGITS):
+        measured = _measured(plant, given, unknown)
+        return None if measured is None else float(_relative(*measured[2][:2]))
+
+
+def _measured(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[sp.Symbol]
+              ) -> tuple[_System, dict[sp.Symbol, mpmath.mpf], tuple[list, list, list[list]]] | None:
+    """The system, the point (the inputs left out at their least-squares values: the rates
+    are affine in them) and (rates, sizes, Jacobian) there; None when undefined."""
+    try:
+        system = _System(plant)
+    except UnsupportedExpression:
+        return None
+    system.fitted = frozenset(unknown)
+    start = {s: _exact(v) for s, v in given.items()}
+    start.update({u: mpmath.mpf(0) for u in unknown})
+    out = system.run(start)
+    if out is None:
+        return None
+    if unknown:
+        index = {s: i for i, s in enumerate(system.symbols)}
+        best = _least_squares([[row[index[u]] for u in unknown] for row in out[2]], [-r for r in out[0]])
+        if best is not None:
+            start.update({u: b for u, b in zip(unknown, best)})
+            out = system.run(start) or out
+    return system, start, out
+
+
 def near_miss(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[sp.Symbol]) -> NearMiss | None:
     """Measure the miss and look for the equilibrium nearby. ``given`` holds every state and
     the inputs written in the point; ``unknown`` the inputs left out. None when the rates
     cannot be evaluated there (a function outside the balls' reach)."""
     with mpmath.workdps(DIGITS):
-        try:
-            system = _System(plant)
-        except UnsupportedExpression:
+        measured = _measured(plant, given, unknown)
+        if measured is None:
             return None
-        system.fitted = frozenset(unknown)
-        start = {s: _exact(v) for s, v in given.items()}
-        start.update({u: mpmath.mpf(0) for u in unknown})
-        # the inputs left out at their least-squares values (the rates are affine in them)
-        out = system.run(start)
-        if out is None:
-            return None
-        if unknown:
-            index = {s: i for i, s in enumerate(system.symbols)}
-            best = _least_squares([[row[index[u]] for u in unknown] for row in out[2]], [-r for r in out[0]])
-            if best is not None:
-                start.update({u: b for u, b in zip(unknown, best)})
-                out = system.run(start) or out
-        rates, sizes, _ = out
+        system, start, (rates, sizes, _) = measured
         relative = _relative(rates, sizes)
         scale = max((z for z in sizes if z is not None), default=mpmath.mpf(0))
         sizes = [z if z is not None else scale for z in sizes]  # measured as _relative measures them

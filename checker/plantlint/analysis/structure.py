@@ -125,6 +125,21 @@ def readable(expr: sp.Expr) -> str:
     return text if len(text) <= MESSAGE_CHARS else text[: MESSAGE_CHARS - 3] + "..."
 
 
+#: Longest expression a message shows beside its name; a longer one is named only.
+SHOWN_TERM_CHARS = 60
+
+
+def _entries(kernel: Kernel, row: tuple[sp.Expr, ...], output: int, r: int) -> tuple[str, bool]:
+    """The terms L_gj L_f^(r-1) h_i of a row for a message, with their expressions when
+    every one is short; else by name only (a long expression, cut, says less than its
+    name). Also whether they were left out."""
+    names = [lie_name(kernel, j, output, r - 1) for j in range(len(row))]
+    texts = [readable(e) for e in row]
+    if all(len(t) <= SHOWN_TERM_CHARS for t in texts):
+        return "; ".join(f"{n} = {t}" for n, t in zip(names, texts)), False
+    return (", ".join(names[:-1]) + " and " + names[-1]) if len(names) > 1 else names[0], True
+
+
 def _small_degrees(expr: sp.Expr) -> bool:
     """Whether factoring stays small: sympy's factor reads exp(-8000/T) as a power of
     exp(1/T), a polynomial of degree 8000, and factors it in C code that no time bound
@@ -365,15 +380,18 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
         all_defined = False
         undefined = [not s.taken_zero for s in states]
         state = "undefined" if all(undefined) else ("zero or undefined" if any(undefined) else "zero")
-        shown = "; ".join(f"{lie_name(kernel, j, i, r - 1)} = {readable(e)}" for j, e in enumerate(out.row))
+        shown, long = _entries(kernel, out.row, i, r)
+        verb = "is" if len(out.row) == 1 else "are both" if len(out.row) == 2 else "are all"
         findings.append(finding(
             "relative-degree-ill-defined",
             f"relative degree of {out.name} is not defined at point {name}: "
             + ("the model is undefined there: " if any(undefined) else "")
-            + f"{shown} {'is' if len(out.row) == 1 else 'are all'} {state} there "
+            + f"{shown} {verb} {state} there "
             f"(generic relative degree {r})",
             point=name, anchor=anchors.point(name),
-            hint="move the operating point off the singular set, or choose another output",
+            hint="move the operating point off the singular set, or choose another output"
+            + (f" (`plantlint explain --point {name}` shows the {'terms' if len(out.row) > 1 else 'term'} "
+               "in full)" if long else ""),
         ))
     if not defined_rows:
         return PointStructure(name, degrees, False, 0, True, tuple(findings))

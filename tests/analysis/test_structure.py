@@ -21,6 +21,7 @@ from plantlint.analysis.structure import (
     structure_at_point,
 )
 from plantlint.analysis.serialise import envelope_json, point_json, structure_json
+from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
 from conftest import MAGLEV, linear_plant
 
@@ -737,3 +738,46 @@ expect regular
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert claim.undecided and "within its budget" not in claim.message
     assert "cannot be split further at double precision" in claim.message
+
+
+ARM_HANGING = b"""plant arm2
+param l1 = 0.5
+param l2 = 0.4
+param m1 = 2
+param m2 = 1.5
+state q1 in -2 .. 2
+state q2 in -0.5 .. 2.5
+state w1 in -3 .. 3
+state w2 in -3 .. 3
+input t1
+input t2
+let a = (m1 + m2)*l1^2 + m2*l2^2
+let b = m2*l1*l2
+let c = m2*l2^2
+let M11 = a + 2*b*cos(q2)
+let M12 = c + b*cos(q2)
+let det = M11*c - M12^2
+let r1 = t1 + b*sin(q2)*(2*w1*w2 + w2^2)
+let r2 = t2 - b*sin(q2)*w1^2
+rate q1 = w1
+rate q2 = w2
+rate w1 = (c*r1 - M12*r2)/det
+rate w2 = (M11*r2 - M12*r1)/det
+output tip_x = l1*cos(q1) + l2*cos(q1 + q2)
+output tip_y = l1*sin(q1) + l2*sin(q1 + q2)
+point hang: q1 = -pi/2, q2 = 0, w1 = 0, w2 = 0
+"""
+
+
+def test_a_vanishing_row_of_long_terms_is_named_not_cut() -> None:
+    """Two-link planar arm with point masses at the link ends (the kinematics and mass
+    matrix of Spong, Hutchinson & Vidyasagar, Robot Modeling and Control, ch. 7, from
+    memory; numbers invented). Hanging straight down (q1 = -pi/2, q2 = 0) the Jacobian row
+    of the tip height, (l1 cos q1 + l2 cos(q1 + q2), l2 cos(q1 + q2)), is zero, so
+    L_g L_f tip_y = dtip_y/dq M^-1 vanishes for both torques while tip_x keeps degree 2.
+    Its terms are long quotients: the message names them instead of cutting them."""
+    raw = analyse_bytes(ARM_HANGING, Config())
+    (f,) = [f for f in raw.findings if f.rule == "relative-degree-ill-defined"]
+    assert "L_g[t1] L_f tip_y and L_g[t2] L_f tip_y are both zero there (generic relative degree 2)" in f.message
+    assert "..." not in f.message and "plantlint explain --point hang" in (f.hint or "")
+    assert raw.analysis["points"]["hang"]["relative_degree"] == {"tip_x": 2, "tip_y": None}

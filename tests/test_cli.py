@@ -537,3 +537,27 @@ def test_wheel_installs_and_finds_its_grammar_and_rules(tmp_path: Path) -> None:
     listed = subprocess.run([str(script), "rules", "--format", "json"], cwd=elsewhere, capture_output=True,
                             text=True, timeout=120)
     assert listed.returncode == 0 and len(json.loads(listed.stdout)) == len(load_catalogue())
+
+
+def test_every_report_names_the_configuration_file_it_ran_under(tmp_path: Path, cli: CLI) -> None:
+    """A CI log must say which settings made a run pass: the text summary, the JSON report
+    (validated against the shipped schema with jsonschema) and SARIF's invocation
+    properties name the configuration file, or say that the defaults applied (common
+    practice for build tools' logs)."""
+    import jsonschema
+
+    from plantlint.report.formats.json_report import report_schema
+
+    copy(CLEAN, tmp_path / "x.plant")
+    bare = cli(tmp_path, "check", "x.plant", "--format", "json")
+    data = json.loads(bare.stdout)
+    jsonschema.Draft202012Validator(report_schema()).validate(data)
+    assert data["configuration"] is None
+    assert "configuration: none found (the defaults)" in cli(tmp_path, "check", "x.plant").stdout
+    (tmp_path / "plantlint.toml").write_text('timeout = 30\n', encoding="utf-8")
+    data = json.loads(cli(tmp_path, "check", "x.plant", "--format", "json").stdout)
+    jsonschema.Draft202012Validator(report_schema()).validate(data)
+    assert data["configuration"] == "plantlint.toml"
+    assert "configuration: plantlint.toml" in cli(tmp_path, "check", "x.plant").stdout
+    sarif = json.loads(cli(tmp_path, "check", "x.plant", "--format", "sarif").stdout)
+    assert sarif["runs"][0]["invocations"][0]["properties"]["configuration"] == "plantlint.toml"

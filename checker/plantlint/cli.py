@@ -296,11 +296,19 @@ def _check(args: argparse.Namespace) -> int:
               file=sys.stderr)
     report.adjustments = config.adjustments()
     report.budget = config.budget()[1]
+    report.configuration = _shown_source(config)
     if not config.undecided_fail:
         from plantlint.core.findings import Relaxation
 
         report.relaxation = Relaxation(config.undecided_reason or "", str(config.source or "the configuration"))
     return _emit(report, args.format, args.output, args.color)
+
+
+def _shown_source(config: Config) -> str | None:
+    """The configuration file as reports show it (None: the run used the defaults)."""
+    from plantlint.run.config import shown_path
+
+    return shown_path(config.source) if config.source is not None else None
 
 
 def _say_excluded(paths: list[str], config: Config) -> None:

@@ -104,9 +104,10 @@ def test_merge_refuses_shards_that_ran_with_different_rule_settings(tmp_path: Pa
                                                                     capsys: pytest.CaptureFixture[str]) -> None:
     from plantlint.cli import main
 
-    def shard(index: int, *adjustments: Adjustment, relaxation: Relaxation | None = None) -> dict[str, Any]:
+    def shard(index: int, *adjustments: Adjustment, relaxation: Relaxation | None = None,
+              configuration: str | None = None) -> dict[str, Any]:
         report = Report(files=[FileReport(f"m{index}.plant", f"m{index}", [])], tool_version="1",
-                        adjustments=adjustments, relaxation=relaxation)
+                        adjustments=adjustments, relaxation=relaxation, configuration=configuration)
         report.shard = {"index": index, "count": 2, "models": 2, "positions": [index - 1], "fail_on": "error"}
         return build_report(report)
 
@@ -120,6 +121,11 @@ def test_merge_refuses_shards_that_ran_with_different_rule_settings(tmp_path: Pa
                                                   Severity.ERROR),))]:
         with pytest.raises(ShardError, match="different rule settings"):
             merge_reports([("1.json", shard(1, *first)), ("2.json", shard(2, *second))])
+    with pytest.raises(ShardError, match="different configuration files"):
+        merge_reports([("1.json", shard(1)), ("2.json", shard(2, configuration="plantlint.toml"))])
+    kept = merge_reports([("1.json", shard(1, configuration="a/plantlint.toml")),
+                          ("2.json", shard(2, configuration="a/plantlint.toml"))])
+    assert kept.configuration == "a/plantlint.toml"
     with pytest.raises(ShardError, match="undecided"):
         merge_reports([("1.json", shard(1)), ("2.json", shard(2, relaxation=Relaxation("known", "plantlint.toml")))])
     # through the command line: the usage exit code and one line naming both settings

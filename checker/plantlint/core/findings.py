@@ -192,6 +192,8 @@ class Report:
     budget: str | None = None  # the time budget in words, e.g. "15 s per model (interactive)"
     adjustments: tuple[Adjustment, ...] = ()  # active only/skip/severity settings, with reasons
     shard: dict[str, Any] | None = None  # under --shard: index, count, models, positions, fail_on
+    #: the configuration file the run used, as shown to the user (None: none found, the defaults)
+    configuration: str | None = None
 
     def counts(self) -> dict[str, int]:
         """Findings by severity (decided, unwaived), waived ones, claims not decided, and

@@ -162,6 +162,9 @@ def merge_reports(named: Sequence[tuple[str, dict[str, Any]]], fail_on: Severity
             raise ShardError(f"{first_name} and {name} ran with different rule settings ({first_name}: "
                              f"{_settings(first)}; {name}: {_settings(report)}): not shards of one run; run "
                              "every shard with the same --only, --skip and configuration")
+        if report.configuration != first.configuration:
+            raise ShardError(f"{name} and {first_name} ran under different configuration files "
+                             f"({report.configuration or 'none'} vs {first.configuration or 'none'}): not shards of one run")
         if report.relaxation != first.relaxation:
             raise ShardError(f"{name} and {first_name} differ in whether not-decided results fail "
                              "([undecided] fail): not shards of one run")

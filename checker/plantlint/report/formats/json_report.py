@@ -93,6 +93,7 @@ def build_report(report: Report) -> dict[str, Any]:
         "version": REPORT_VERSION,
         "tool": {"name": "plantlint", "version": report.tool_version},
     }
+    out["configuration"] = report.configuration
     if report.since is not None:
         out["since"] = report.since
     out["adjustments"] = [adjustment.to_data() for adjustment in report.adjustments]
@@ -164,7 +165,8 @@ def read_report(data: Any) -> Report:
         undecided = data["undecided"]
         relaxation = None if undecided["fail"] else Relaxation(undecided["reason"], undecided["source"])
         return Report(files=files, tool_version=data["tool"]["version"], fail_on=fail_on, since=since,
-                      adjustments=adjustments, shard=shard, relaxation=relaxation, budget=data["budget"])
+                      adjustments=adjustments, shard=shard, relaxation=relaxation, budget=data["budget"],
+                      configuration=data.get("configuration"))
     except (KeyError, TypeError, ValueError) as exc:
         raise ReportReadError(f"malformed report ({type(exc).__name__}: {exc})") from None
 

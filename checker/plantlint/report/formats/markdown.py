@@ -210,6 +210,8 @@ def render_markdown(report: Report) -> str:
 def _settings(report: Report) -> list[str]:
     """The active settings that change what is reported or what fails, with their reasons."""
     lines = [f"- {text(adjustment_text(a))}" for a in report.adjustments]
+    if lines and report.configuration:
+        lines.insert(0, f"- configuration file: {text(report.configuration)}")
     relaxed = getattr(report, "relaxation", None)
     if relaxed is not None:
         lines.append(f"- not-decided results do not fail this run (set in {text(relaxed.source)}): "

@@ -208,6 +208,7 @@ def build_sarif(report: Report, catalogue: Catalogue | None = None) -> dict[str,
                            "notChecked": counts["not_checked"], "cutShort": counts["cut_short"]}
     if report.budget:
         bag["budget"] = report.budget
+    bag["configuration"] = report.configuration
     if report.relaxation is not None:
         bag["undecided"] = {"fail": False, "reason": report.relaxation.reason,
                             "source": report.relaxation.source}

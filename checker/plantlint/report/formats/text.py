@@ -271,6 +271,8 @@ class TextFormatter:
         relaxed = relaxation_text(report)
         if relaxed:
             console.print(Text(relaxed, style="magenta"), soft_wrap=True)
+        console.print(Text(f"configuration: {one_line(report.configuration)}" if report.configuration
+                           else "configuration: none found (the defaults)", style=_DIM), soft_wrap=True)
         if report.adjustments:
             console.print(Text("settings that change what is reported:", style="bold"), soft_wrap=True)
             for adjustment in report.adjustments:

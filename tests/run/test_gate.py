@@ -395,6 +395,24 @@ def test_structure_changes_are_worded_for_readers_not_in_internal_names() -> Non
     assert "point rest: zero dynamics: not computed -> none (total relative degree n)" in shown
 
 
+def test_an_output_or_point_added_or_removed_is_said_so_not_shown_as_none() -> None:
+    """A second output (a new sensor) and a renamed point: 'relative degree of z: none -> 2'
+    read as if z had lost its relative degree. An analysis cut short before its points says
+    nothing about them: no added/removed there."""
+    before = {"relative_degree": {"y": 1}, "envelope": {"regular": True},
+              "points": {"rest": {"equilibrium": True, "well_defined": True, "zero_dynamics": None}}}
+    after = {"relative_degree": {"y": 1, "z": 2}, "envelope": {"regular": True},
+             "points": {"idle": {"equilibrium": True, "well_defined": True, "zero_dynamics": None}}}
+    shown = [change_text(c) for c in structure_changes(before, after)]
+    assert "relative degree of z: 2 (added since the baseline)" in shown
+    assert "point idle: equilibrium: yes (added since the baseline)" in shown
+    assert "point rest: equilibrium: was yes (removed since the baseline)" in shown
+    assert not any("none" in line for line in shown), shown
+    cut_short = {"relative_degree": {"y": 1}}
+    assert all("added" not in c and "removed" not in c for c in structure_changes(cut_short, after)
+               if c["what"].startswith("point "))
+
+
 def test_file_names_that_are_not_utf8_are_followed_through_renames_and_deletions(tmp_path: Path) -> None:
     """git prints such names as raw bytes: read as the file system reads them (not with
     replacement characters), a rename is followed (its findings stay known) and a deletion

@@ -255,10 +255,22 @@ def summary(analysis: dict[str, Any] | None) -> dict[str, Any]:
     return {what: _words(value) for what, value in structural_facts(analysis).items()}
 
 
+def _section(analysis: dict[str, Any] | None, key: str) -> bool:
+    """Whether a serialised analysis holds the section a structural fact comes from."""
+    section = "points" if key.startswith("point ") else "relative_degree" if key.startswith("relative degree") else None
+    return bool(analysis) and section is not None and isinstance(analysis.get(section), dict)
+
+
 def structure_changes(before: dict[str, Any] | None, after: dict[str, Any] | None) -> list[dict[str, Any]]:
     old, new = summary(before), summary(after)
     changes = []
     for key in sorted(set(old) | set(new)):
-        if old.get(key) != new.get(key):
-            changes.append({"what": key, "before": old.get(key), "after": new.get(key)})
+        if old.get(key) != new.get(key) or (key in old) != (key in new):
+            change = {"what": key, "before": old.get(key), "after": new.get(key)}
+            # an output or point added or removed since the baseline: null alone would read as
+            # "no relative degree" or "not an equilibrium". Only when both versions have the
+            # section (an analysis cut short before its points has none: nothing is known)
+            if (key in old) != (key in new) and _section(before, key) and _section(after, key):
+                change["added" if key in new else "removed"] = True
+            changes.append(change)
     return changes

@@ -125,6 +125,10 @@ def change_text(change: dict[str, object]) -> str:
         return missing if value is None else str(value).lower() if isinstance(value, bool) else str(value)
 
     before, after = change.get("before"), change.get("after")
+    if change.get("added"):
+        return f"{what}: {shown(after)} (added since the baseline)"
+    if change.get("removed"):
+        return f"{what}: was {shown(before)} (removed since the baseline)"
     if what.startswith("waiver ") and (isinstance(before, str) or isinstance(after, str)):
         subject = what.removeprefix("waiver ")
         if before is None:

@@ -129,3 +129,39 @@ def test_regular_claim_without_a_box_says_the_envelope_is_not_one() -> None:
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert claim.undecided and "not a box: state v has no range" in claim.message
     assert "budget" not in claim.message
+
+
+def test_a_decoupling_matrix_singular_everywhere_fails_each_claim_once() -> None:
+    """Two outputs of a plant with one input (a second sensor added to a SISO loop): the
+    decoupling matrix is 2 x 1, so its rank is at most 1 < 2 for every state (numpy's
+    matrix_rank of A = [[L_g L_f y1], [L_g y2]] at the points, below, is 1). Every point
+    fails `expect regular` and `expect minimum_phase` for that one reason: each claim is
+    reported once, without a copy per point. The tank is invented demo data."""
+    text = b"""plant tank2
+state h1 in 0.1 .. 2
+state h2 in 0.1 .. 2
+input q in 0 .. 1
+rate h1 = q - h1
+rate h2 = h1 - h2
+output level2 = h2
+output level1 = h1
+point low: h1 = 0.5, h2 = 0.5, q = 0.5
+point high: h1 = 1, h2 = 1, q = 1
+expect regular
+expect minimum_phase
+"""
+    raw = analyse_bytes(text, Config())
+    failed = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert len(failed) == 2 and all(f.point is None for f in failed), [f.message for f in failed]
+    assert "singular everywhere" in failed[0].message and "not defined at any point" in failed[1].message
+    # the reference, sympy done another way: each row of A is the first L_g L_f^k h not zero
+    h1, h2, = sp.symbols("h1 h2")
+    X, f, g = sp.Matrix([h1, h2]), sp.Matrix([-h1, h1 - h2]), sp.Matrix([1, 0])
+    rows = []
+    for y in (h2, h1):
+        lie = sp.Matrix([y])
+        while (lie.jacobian(X) * g)[0] == 0:
+            lie = lie.jacobian(X) * f
+        rows.append([float((lie.jacobian(X) * g)[0].subs({h1: 0.5, h2: 0.5}))])
+    assert np.linalg.matrix_rank(np.array(rows)) == 1
+    assert "decoupling-singular" in [f.rule for f in raw.findings]

@@ -547,10 +547,10 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
         elif env is None or env.regular is None:
             out.append((None, Undecided("regularity over the envelope could not be proven within its budget "
                                         "(see the envelope-unproven finding)")))
-        elif (env.regular is False and a.structure.rank_certain and a.structure.generic_rank is not None
-              and a.structure.generic_rank < a.kernel.plant.p):
+        elif env.regular is False and _singular_everywhere(a):
             out.append((None, f"the decoupling matrix is singular everywhere (generic rank {a.structure.generic_rank} for "
                               f"{a.kernel.plant.p} outputs; see the decoupling-singular finding)"))
+            return out  # every point fails for that one reason: said once, not once more per point
         elif env.regular is False:
             where = show_point(env.witness or {})
             out.append((None, "the relative degree is not well defined everywhere in the envelope"
@@ -561,6 +561,13 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
         else:
             out.extend(_box_failure(pa, "decoupling"))
     return out
+
+
+def _singular_everywhere(a: Analysis) -> bool:
+    """Is the decoupling matrix proven singular for every state (generic rank below the
+    number of outputs)?"""
+    st = a.structure
+    return bool(st is not None and st.rank_certain and st.generic_rank is not None and st.generic_rank < a.kernel.plant.p)
 
 
 def _why_not_regular(a: Analysis, pa: PointAnalysis) -> str:
@@ -590,6 +597,10 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
     points = _points_for(a, c)
     if not points:
         return [(None, "the model declares no operating point to check it at")]
+    if c.point is None and _singular_everywhere(a):
+        return [(None, f"the decoupling matrix is singular everywhere (generic rank {a.structure.generic_rank} for "
+                       f"{a.kernel.plant.p} outputs), so the zero dynamics are not defined at any point (see the "
+                       "decoupling-singular finding)")]
     out: list[tuple[str | None, str]] = []
     for pa in points:
         zd = pa.zero_dynamics

@@ -165,3 +165,33 @@ expect minimum_phase
         rows.append([float((lie.jacobian(X) * g)[0].subs({h1: 0.5, h2: 0.5}))])
     assert np.linalg.matrix_rank(np.array(rows)) == 1
     assert "decoupling-singular" in [f.rule for f in raw.findings]
+
+
+def test_an_output_the_inputs_never_reach_fails_each_claim_once() -> None:
+    """y = x1 of two decoupled first-order lags, the input on the second: the transfer
+    function from u to y is zero (scipy.signal.ss2tf, below), so the output has no relative
+    degree at any state. `expect regular` and `expect minimum_phase` each fail once for that
+    reason, not once more per point nor with an envelope 'witness' that means nothing."""
+    import scipy.signal
+
+    num, _ = scipy.signal.ss2tf(np.array([[-1.0, 0.0], [0.0, -2.0]]), np.array([[0.0], [1.0]]),
+                                np.array([[1.0, 0.0]]), np.array([[0.0]]))
+    assert np.allclose(num, 0)
+    text = b"""plant lags
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+input u in -1 .. 1
+rate x1 = -x1
+rate x2 = -2*x2 + u
+output y = x1
+point rest: x1 = 0, x2 = 0, u = 0
+point held: x1 = 0, x2 = 0.5, u = 1
+expect regular
+expect minimum_phase
+"""
+    raw = analyse_bytes(text, Config())
+    failed = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert len(failed) == 2 and all(f.point is None for f in failed), [f.message for f in failed]
+    assert all("y never sees the inputs" in f.message for f in failed)
+    assert "singular at" not in failed[0].message
+    assert "relative-degree-undefined" in [f.rule for f in raw.findings]

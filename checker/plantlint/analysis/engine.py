@@ -539,6 +539,8 @@ def _degree(r: int | None) -> str:
 
 def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
     out: list[tuple[str | None, str]] = []
+    if c.point is None and (unreached := _never_reached(a)):
+        return [(None, _unreached_text(unreached))]  # so at every point: said once
     if c.point is None:
         env = a.envelope
         if env is not None and env.regular is None and env.undecidable:
@@ -561,6 +563,19 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
         else:
             out.extend(_box_failure(pa, "decoupling"))
     return out
+
+
+def _never_reached(a: Analysis) -> list[str]:
+    """Outputs proven never to see the inputs (L_g L_f^k h = 0 identically for every k):
+    they have no relative degree at any state."""
+    st = a.structure
+    return [o.name for o in st.outputs if o.relative_degree is None and not o.unconfirmed] if st is not None else []
+
+
+def _unreached_text(names: list[str]) -> str:
+    which = ", ".join(names)
+    return (f"{which} never {'sees' if len(names) == 1 else 'see'} the inputs, so {'its' if len(names) == 1 else 'their'} "
+            "relative degree is defined at no state (see the relative-degree-undefined finding)")
 
 
 def _singular_everywhere(a: Analysis) -> bool:
@@ -597,6 +612,8 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
     points = _points_for(a, c)
     if not points:
         return [(None, "the model declares no operating point to check it at")]
+    if c.point is None and (unreached := _never_reached(a)):
+        return [(None, _unreached_text(unreached) + ", and the zero dynamics are not defined at any point")]
     if c.point is None and _singular_everywhere(a):
         return [(None, f"the decoupling matrix is singular everywhere (generic rank {a.structure.generic_rank} for "
                        f"{a.kernel.plant.p} outputs), so the zero dynamics are not defined at any point (see the "

@@ -4,6 +4,7 @@ a source is named."""
 
 from __future__ import annotations
 
+import json
 import math
 from dataclasses import replace
 from pathlib import Path
@@ -154,6 +155,14 @@ def test_explain_says_the_point_was_refined(tmp_path: Path, capsys: pytest.Captu
     main(["explain", str(model)])
     out = capsys.readouterr().out
     assert "equilibrium: yes, refined from the written values" in out
+    # its linearisation is exact arithmetic on 40-digit values, not the exact equilibrium's;
+    # det(sI - A) then has coefficients of hundreds of digits: left to the JSON report
+    assert "exact arithmetic on the refined equilibrium's 40-digit values" in out
+    assert "det(sI - A) = (exact, " in out and max(len(line) for line in out.splitlines()) < 400
+    main(["explain", str(model), "--format", "json"])
+    data = json.loads(capsys.readouterr().out)
+    (point,) = data["points"] if isinstance(data["points"], list) else data["points"].values()
+    assert len(point["linearisation"]["characteristic_polynomial"]) > 160
 
 
 def test_tolerance_in_the_configuration_and_the_point_taking_precedence() -> None:

@@ -208,7 +208,8 @@ def _render_point(console: Any, p: dict[str, Any], d: dict[str, Any]) -> None:
     if p.get("zero_dynamics") is not None:
         _render_zero_dynamics(console, p["zero_dynamics"])
     if p.get("linearisation") is not None:
-        _render_linearisation(console, p["linearisation"], d["states"], d["inputs"], list(d["outputs"]))
+        _render_linearisation(console, p["linearisation"], d["states"], d["inputs"], list(d["outputs"]),
+                              refined=p.get("status") == "refined")
     if p.get("distributions") is not None:
         _render_point_distributions(console, p["distributions"])
     if p.get("parameter_box") is not None:
@@ -248,7 +249,7 @@ def _render_zero_dynamics(console: Any, zd: dict[str, Any]) -> None:
     if zd["eigenvalues"]:
         text += f"; eigenvalues {zd['eigenvalues']}"
     if zd["characteristic_polynomial"]:
-        text += f"; p(s) = {zd['characteristic_polynomial']}"
+        text += f"; p(s) = {_polynomial(zd['characteristic_polynomial'])}"
     console.print(text + (" (exact)" if zd["exact"] and zd["dimension"] else ""))
     if zd["reason"]:
         console.print(f"    ({zd['reason']})")
@@ -279,15 +280,17 @@ def _render_parameter_box(console: Any, box: dict[str, Any]) -> None:
 
 
 def _render_linearisation(console: Any, lin: dict[str, Any], states: list[str], inputs: list[str],
-                          outputs: list[str]) -> None:
+                          outputs: list[str], refined: bool = False) -> None:
     if lin["status"] != "computed":
         console.print(f"  linearisation (nominal parameter values): not computed, {lin['reason']}")
         return
     how = "exact" if lin["exact"] else "irrational entries: rigorous ball arithmetic"
+    if refined:
+        how += " arithmetic on the refined equilibrium's 40-digit values"
     console.print(f"  linearisation (nominal parameter values, {how}):")
     console.print(f"    order: x = ({', '.join(states)}), u = ({', '.join(inputs)}), y = ({', '.join(outputs)})")
     _render_matrices(console, lin)
-    poly = f"; det(sI - A) = {lin['characteristic_polynomial']}" if lin["characteristic_polynomial"] else ""
+    poly = f"; det(sI - A) = {_polynomial(lin['characteristic_polynomial'])}" if lin["characteristic_polynomial"] else ""
     console.print(f"    open-loop poles: {lin['poles'] or 'none'}{poly}")
     _render_ranks(console, lin, len(states))
     _render_zeros(console, lin)
@@ -298,6 +301,17 @@ def _render_linearisation(console: Any, lin: dict[str, Any], states: list[str], 
         console.print(f"    cross-check with the zero dynamics: DISAGREES; {check['detail']}")
     if lin["reason"]:
         console.print(f"    ({lin['reason']})")
+
+
+#: Longest exact polynomial explain writes out; a longer one (a refined point's 40-digit
+#: values make coefficients of hundreds of digits) is left to the JSON report.
+POLYNOMIAL_CHARS = 160
+
+
+def _polynomial(text: str) -> str:
+    if len(text) <= POLYNOMIAL_CHARS:
+        return text
+    return f"(exact, {len(text):,} characters: in `--format json`)"
 
 
 def _render_matrices(console: Any, lin: dict[str, Any]) -> None:
@@ -321,14 +335,14 @@ def _render_ranks(console: Any, lin: dict[str, Any], n: int) -> None:
             continue
         console.print(f"    {kind} rank {rank} of {n}")
         for g in groups:
-            factor = f"; factor {g['polynomial']} of det(sI - A)" if g["polynomial"] else ""
+            factor = f"; factor {_polynomial(g['polynomial'])} of det(sI - A)" if g["polynomial"] else ""
             console.print(f"      {what}: {'; '.join(g['directions'])}  (mode{'s' if g['count'] > 1 else ''} "
                           f"at s = {g['modes']}{factor})")
 
 
 def _render_zeros(console: Any, lin: dict[str, Any]) -> None:
     if lin["transmission_zeros"]:
-        zp = f"; zero polynomial {lin['zero_polynomial']}" if lin["zero_polynomial"] else ""
+        zp = f"; zero polynomial {_polynomial(lin['zero_polynomial'])}" if lin["zero_polynomial"] else ""
         console.print(f"    transmission zeros: {lin['transmission_zeros']}{zp}")
     elif lin["transmission_zeros"] is not None:
         console.print("    transmission zeros: none (det [[sI - A, -B], [C, 0]] is a non-zero constant)")

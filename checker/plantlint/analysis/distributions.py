@@ -37,6 +37,7 @@ from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass, field
 from fractions import Fraction
 from math import gcd, isfinite, lcm
+from typing import Any
 
 import sympy as sp
 from flint import arb
@@ -199,8 +200,9 @@ class _PointEchelon:
     an entry not proven non-zero as zero, so the ranks agree.
     """
 
-    def __init__(self, decide: Callable[[sp.Expr], ZeroDecision]):
+    def __init__(self, decide: Callable[[sp.Expr], ZeroDecision], size: Callable[[sp.Expr], int] | None = None):
         self.decide = decide
+        self.size = size or _size
         self.pivots: list[tuple[int, list[sp.Expr]]] = []
 
     def add(self, column: Sequence[sp.Expr]) -> bool:
@@ -210,9 +212,9 @@ class _PointEchelon:
             if v[row] != 0:
                 ratio = v[row] / w[row]
                 v = [vi - ratio * wi if wi != 0 else vi for vi, wi in zip(v, w)]
-                v[row] = sp.Integer(0)
+                v[row] = sp.Integer(0) if isinstance(v[row], sp.Basic) else v[row] * 0  # exactly zero, in kind
         used = {row for row, _ in self.pivots}
-        for i in sorted((i for i in range(len(v)) if i not in used and v[i] != 0), key=lambda i: _size(v[i])):
+        for i in sorted((i for i in range(len(v)) if i not in used and v[i] != 0), key=lambda i: self.size(v[i])):
             if self.decide(v[i]).proven_nonzero:
                 self.pivots.append((i, v))
                 return True
@@ -731,9 +733,6 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
     point is an equilibrium of the drift, the ranks stop there and the Kalman columns give
     the controllability rank (:func:`_kalman_rank`)."""
     n, m = structure.n, structure.m
-    echelon = _PointEchelon(decide)
-    ranks: list[int] = []
-    basis: list[list[sp.Expr]] = []
     known = len(structure.ranks)
     # the brackets' values at a rational point come from Taylor mode (exact, no symbolic
     # field evaluated); where a derivative does not exist there, no field does either
@@ -750,25 +749,104 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
         if _ball_ranks(kernel, values, n, m) == generic:
             return generic, [], None
     kalman = _kalman_columns(kernel, values, decide) if known < n else None
-    for k in range(n if m else 0):
+    if taylor is None and m:
+        # values that are not rational (sin(1/4)): Taylor mode on formal numbers proves the
+        # zeros and the balls the non-zeros; only what neither settles takes the fields
+        formal = _formal_ranks(kernel, values, n, m, known, kalman)
+        if formal == "undefined":
+            decide.undefined.append("the brackets at the point (a derivative of the rates does not exist there)")
+            return [0] * n, [], None
+        if formal is not None:
+            return formal[0], formal[1], kalman
+
+    def rows(k: int) -> list[list[sp.Expr]]:
+        if taylor:
+            # ad_f^k g_j for every input: fields the generic analysis left out are dependent
+            # identically, so at the point too, and the echelon skips them
+            return [taylor[j][k] for j in range(m)]
+        # the generic fields of order k; past where the generic analysis stopped, the kernel
+        # builds the higher brackets
+        block = [f for f in structure.fields if f.order == k] or _block(kernel, m, k)
+        return [list(r) for r in matrix_at(kernel, [f.vector for f in block], values).tolist()]
+
+    ranks, basis = _column_ranks(rows, n if m else 0, known, kalman, _PointEchelon(decide))
+    return ranks or [0] * n, basis, kalman
+
+
+def _column_ranks(rows: Callable[[int], list[list[Any]]], orders: int, known: int, kalman: object,
+                  echelon: _PointEchelon) -> tuple[list[int], list[list[Any]]]:
+    """The rank of each D_k (k < orders) at the point from its new columns, one order at a
+    time, and the basis kept; past where the generic analysis stopped, the Kalman columns
+    decide instead (the loop stops there)."""
+    n = orders
+    ranks: list[int] = []
+    basis: list[list[Any]] = []
+    for k in range(orders):
         if k >= known and kalman is not None:
             break
         if len(basis) == n:
             ranks.append(n)
             continue
-        if taylor:
-            # ad_f^k g_j for every input: fields the generic analysis left out are dependent
-            # identically, so at the point too, and the echelon skips them
-            rows = [taylor[j][k] for j in range(m)]
-        else:  # the generic fields of order k; past where the generic analysis stopped,
-            # the kernel builds the higher brackets
-            block = [f for f in structure.fields if f.order == k] or _block(kernel, m, k)
-            rows = [list(r) for r in matrix_at(kernel, [f.vector for f in block], values).tolist()]
-        for row in rows:
+        for row in rows(k):
             if len(basis) < n and echelon.add(row):
                 basis.append(row)
         ranks.append(len(basis))
-    return ranks or [0] * n, basis, kalman
+    return ranks, basis
+
+
+def _formal_ranks(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], n: int, m: int, known: int, kalman: object
+                  ) -> tuple[list[int], list[list[sp.Expr]]] | str | None:
+    """Ranks and basis at a rational point of a plant whose values there are not rational,
+    from Taylor-mode brackets on formal numbers (:mod:`plantlint.kernel.formal`): every
+    pivot proven non-zero by a ball, every entry left out proven zero formally. None when
+    something is unsettled (the symbolic fields decide then); "undefined" as in
+    :func:`_taylor_brackets`."""
+    import flint
+
+    from plantlint.kernel.formal import PREC, Formal, FormalField, Unsettled
+    from plantlint.kernel.taylor import Inexact, Undefined
+
+    at = kernel.towers_at(values)
+    if at is None:
+        return None
+    towers, vector = at
+
+    def settled(e: Formal) -> ZeroDecision:
+        d = e.decision()
+        if not d.certain:
+            raise Unsettled("an entry neither formally zero nor away from 0 in its ball")
+        return d
+
+    old = flint.ctx.prec
+    flint.ctx.prec = PREC
+    try:
+        columns = towers.brackets(vector, n - 1, FormalField())
+        ranks, basis = _column_ranks(lambda k: [columns[j][k] for j in range(m)], n, known, kalman,
+                                     _PointEchelon(settled, size=Formal.size))  # type: ignore[arg-type]
+    except (Undefined, ZeroDivisionError):
+        return "undefined"
+    except Inexact:  # Unsettled among them
+        return None
+    finally:
+        flint.ctx.prec = old
+    return ranks or [0] * n, [[_to_sympy(e) for e in row] for row in basis]
+
+
+def _to_sympy(e: Any) -> sp.Expr:
+    """A formal number as the exact sympy number it stands for (for the missing directions)."""
+    from plantlint.kernel.formal import Formal
+
+    if not isinstance(e, Formal):
+        return sp.Integer(e) if isinstance(e, int) else e
+
+    def make(name: str, args: tuple[sp.Expr, ...]) -> sp.Expr:
+        if name == "pi":
+            return sp.pi
+        if name.startswith("pow "):
+            return args[0] ** sp.Rational(name.split()[1])
+        return getattr(sp, name)(*args)
+
+    return e.build(make, sympy_rational)
 
 
 def _taylor_brackets(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], order: int

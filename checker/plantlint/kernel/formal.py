@@ -1,0 +1,279 @@
+"""Numbers at a point as (rational function of formal unknowns, rigorous ball) pairs.
+
+Taylor mode (:mod:`plantlint.kernel.taylor`) runs on any field. At a rational point of a
+plant with sin, exp, sqrt, ... the values are not rational (sin(1/4)), so the exact field
+of rationals stops there, and balls alone can prove a value non-zero but never zero.
+This field carries both: every transcendental value met on the way (sin(1/4), a square
+root, pi) becomes a *formal unknown*, and each number is a quotient N / D of polynomials
+with rational coefficients in those unknowns (python-flint ``fmpq_mpoly``), next to a
+rigorous ball of its value.
+
+* N = 0 proves the number zero: an identity of the polynomial ring holds whatever the
+  unknowns stand for, and D is not zero at their values (every divisor met was proven
+  non-zero by its ball before dividing, and D divides their product).
+* A ball away from 0 proves it non-zero.
+* Anything else (an identity between unknowns, sin(a)^2 + cos(a)^2 = 1, or a value too
+  small for the balls) is *unsettled*: the caller goes on with its own, slower, route.
+
+A division by a number that is not proven non-zero stops the computation the same way
+(:class:`Unsettled`); a division by a proven zero is :class:`~plantlint.kernel.taylor.Undefined`,
+as in the other fields. Sizes are bounded (:data:`MAX_TERMS`, :data:`MAX_UNKNOWNS`): past
+them the computation is unsettled, never slow.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Any, Callable
+
+import flint
+from flint import arb, fmpq, fmpq_mpoly_ctx
+
+from plantlint.kernel import decision as zd
+from plantlint.kernel.taylor import ArbField, Inexact, QField, Undefined
+
+#: Formal unknowns one computation may introduce.
+MAX_UNKNOWNS = 64
+#: Terms of a numerator or denominator beyond which the computation is unsettled.
+MAX_TERMS = 4000
+#: Ball precision (bits) of the values beside the formal numbers.
+PREC = 256
+
+
+class Unsettled(Inexact):
+    """Neither the formal zero test nor the balls settle a question: use another route."""
+
+
+class _Space:
+    """The unknowns of one computation: their polynomial ring, balls and meanings."""
+
+    def __init__(self) -> None:
+        self.ctx = fmpq_mpoly_ctx.get(("t", MAX_UNKNOWNS))
+        self.gens = self.ctx.gens()
+        self.index: dict[tuple, int] = {}
+        self.balls: list[arb] = []
+        #: per unknown: (function name, argument numbers) it stands for, for :meth:`Formal.build`
+        self.meanings: list[tuple[str, tuple[Any, ...]]] = []
+        self.one = self.ctx.constant(1)
+
+    def unknown(self, key: tuple, ball: arb, meaning: tuple[str, tuple[Any, ...]]) -> "Formal":
+        i = self.index.get(key)
+        if i is None:
+            if len(self.balls) == MAX_UNKNOWNS:
+                raise Unsettled("too many transcendental values")
+            i = self.index[key] = len(self.balls)
+            self.balls.append(ball)
+            self.meanings.append(meaning)
+        return Formal(self, self.gens[i], self.one, self.balls[i])
+
+    def constant(self, q: fmpq) -> "Formal":
+        return Formal(self, self.ctx.constant(q), self.one, arb(q))
+
+
+class Formal:
+    """N / D in the unknowns of a :class:`_Space`, with a ball of its value."""
+
+    __slots__ = ("space", "num", "den", "ball")
+
+    def __init__(self, space: _Space, num: Any, den: Any, ball: arb):
+        if len(num) > MAX_TERMS or len(den) > MAX_TERMS:
+            raise Unsettled("expression too large")
+        if num.is_zero():
+            den, ball = space.one, arb(0)
+        elif den.is_constant() and den != space.one:
+            c = den.coeffs()[0]
+            num, den = num / c, space.one
+        self.space, self.num, self.den, self.ball = space, num, den, ball
+
+    # -- the field operations ------------------------------------------------------------
+    def _lift(self, other: Any) -> "Formal":
+        if isinstance(other, Formal):
+            return other
+        if isinstance(other, Fraction):
+            return self.space.constant(fmpq(other.numerator, other.denominator))
+        if isinstance(other, (int, fmpq)) and not isinstance(other, bool):
+            return self.space.constant(fmpq(other))
+        return NotImplemented  # type: ignore[return-value]
+
+    def __add__(self, other: Any) -> "Formal":
+        o = self._lift(other)
+        if o is NotImplemented:
+            return NotImplemented
+        if self.den == o.den:
+            return Formal(self.space, self.num + o.num, self.den, self.ball + o.ball)
+        return _reduced(self.space, self.num * o.den + o.num * self.den, self.den * o.den, self.ball + o.ball)
+
+    __radd__ = __add__
+
+    def __neg__(self) -> "Formal":
+        return Formal(self.space, -self.num, self.den, -self.ball)
+
+    def __sub__(self, other: Any) -> "Formal":
+        o = self._lift(other)
+        return NotImplemented if o is NotImplemented else self + (-o)
+
+    def __rsub__(self, other: Any) -> "Formal":
+        o = self._lift(other)
+        return NotImplemented if o is NotImplemented else o + (-self)
+
+    def __mul__(self, other: Any) -> "Formal":
+        o = self._lift(other)
+        if o is NotImplemented:
+            return NotImplemented
+        return _reduced(self.space, self.num * o.num, self.den * o.den, self.ball * o.ball)
+
+    __rmul__ = __mul__
+
+    def __truediv__(self, other: Any) -> "Formal":
+        o = self._lift(other)
+        if o is NotImplemented:
+            return NotImplemented
+        return self * o.inverse()
+
+    def __rtruediv__(self, other: Any) -> "Formal":
+        o = self._lift(other)
+        return NotImplemented if o is NotImplemented else o * self.inverse()
+
+    def inverse(self) -> "Formal":
+        if self.num.is_zero():
+            raise Undefined("division by zero")
+        if self.ball.contains(0):
+            raise Unsettled("division by a value not proven non-zero")
+        return Formal(self.space, self.den, self.num, 1 / self.ball)
+
+    # exact comparisons with 0 only where they are proofs (formal zero is zero)
+    def __eq__(self, other: object) -> bool:
+        if isinstance(other, int) and other == 0:
+            return self.num.is_zero()
+        if isinstance(other, Formal):
+            return (self - other).num.is_zero()
+        return NotImplemented
+
+    def __ne__(self, other: object) -> bool:
+        result = self.__eq__(other)
+        return result if result is NotImplemented else not result
+
+    __hash__ = None  # type: ignore[assignment]
+
+    def is_constant(self) -> bool:
+        return self.num.is_constant() and self.den.is_constant()
+
+    def rational(self) -> fmpq:
+        """The value of a constant (check :meth:`is_constant` first)."""
+        c = self.num.coeffs()
+        return (c[0] if c else fmpq(0)) / self.den.coeffs()[0]
+
+    def key(self) -> tuple:
+        return (str(self.num), str(self.den))
+
+    def size(self) -> int:
+        return len(self.num) + len(self.den)
+
+    def decision(self) -> zd.ZeroDecision:
+        if self.num.is_zero():
+            return zd.proven_zero("formal")
+        if self.ball.is_finite() and not self.ball.contains(0):
+            return zd.proven_nonzero("ball")
+        return zd.UNDECIDED
+
+    def build(self, make: Callable[[str, tuple[Any, ...]], Any], rational: Callable[[fmpq], Any]) -> Any:
+        """The number rebuilt by the caller's constructors: ``make(name, args)`` for each
+        unknown (its arguments rebuilt first), ``rational`` for the coefficients."""
+        cache: dict[int, Any] = {}
+
+        def unknown(i: int) -> Any:
+            if i not in cache:
+                name, args = self.space.meanings[i]
+                cache[i] = make(name, tuple(a.build(make, rational) if isinstance(a, Formal) else rational(a)
+                                            for a in args))
+            return cache[i]
+
+        def poly(p: Any) -> Any:
+            total = rational(fmpq(0))
+            for exps, coeff in p.terms():
+                term = rational(coeff)
+                for i, e in enumerate(exps):
+                    if e:
+                        term = term * unknown(i) ** e
+                total = total + term
+            return total
+
+        return poly(self.num) / poly(self.den)
+
+
+def _reduced(space: _Space, num: Any, den: Any, ball: arb) -> Formal:
+    """N / D with their common factor taken out when D is not a constant."""
+    if not den.is_constant() and not num.is_zero():
+        g = num.gcd(den)
+        if not g.is_constant():
+            num, den = num / g, den / g
+    return Formal(space, num, den, ball)
+
+
+class FormalField:
+    """Taylor mode's field interface (see :class:`~plantlint.kernel.taylor.QField`) on
+    :class:`Formal` numbers. Rationals stay exact constants; a function value that is not
+    rational becomes an unknown (one per function and argument)."""
+
+    exact = True  # zero tests are proofs (the brackets skip formal zeros)
+
+    def __init__(self) -> None:
+        self.space = _Space()
+        self._q = QField()
+        self._balls = ArbField(PREC)
+
+    def const(self, q: Fraction) -> Formal:
+        return self.space.constant(fmpq(q.numerator, q.denominator))
+
+    def number(self, value: Any) -> Formal:
+        if isinstance(value, Formal):
+            return value
+        return self.space.constant(self._q.number(value))
+
+    def pi(self) -> Formal:
+        return self.space.unknown(("pi",), arb.pi(), ("pi", ()))
+
+    def base(self, name: str, a: Formal) -> Formal:
+        if name == "inv":
+            return a.inverse()
+        return self._of(name, (a,), lambda: self._q.base(name, a.rational()),
+                        lambda: self._balls.base(name, a.ball))
+
+    def powq(self, a: Formal, q: Fraction) -> Formal:
+        return self._of(f"pow {q}", (a,), lambda: self._q.powq(a.rational(), q),
+                        lambda: self._balls.powq(a.ball, q))
+
+    def atan2(self, y: Formal, x: Formal) -> Formal:
+        return self._of("atan2", (y, x), lambda: self._q.atan2(y.rational(), x.rational()),
+                        lambda: self._balls.atan2(y.ball, x.ball))
+
+    def is_zero(self, a: Formal) -> zd.ZeroDecision:
+        return a.decision()
+
+    def _of(self, name: str, args: tuple[Formal, ...], exact: Callable[[], fmpq], ball: Callable[[], arb]) -> Formal:
+        """A function value: exact when the arguments are rational and so is the value
+        (sin(0) = 0); else an unknown, with its ball. A domain error proven on exact
+        arguments is Undefined; on a ball of an unknown's value it is only unsettled."""
+        constant = all(a.is_constant() for a in args)
+        if constant:
+            try:
+                return self.space.constant(exact())
+            except Undefined:
+                raise
+            except Inexact:
+                pass
+        old = flint.ctx.prec
+        flint.ctx.prec = PREC
+        try:
+            value = ball()
+        except Undefined:
+            if constant:
+                raise
+            raise Unsettled(f"{name} of a value near its domain's edge") from None
+        finally:
+            flint.ctx.prec = old
+        key = (name, *(a.key() for a in args))
+        return self.space.unknown(key, value, (name, args))
+
+
+__all__ = ["MAX_TERMS", "MAX_UNKNOWNS", "Formal", "FormalField", "Unsettled"]

@@ -1,0 +1,76 @@
+"""Taylor mode on formal numbers: zero proofs by polynomial identity, non-zero proofs by
+balls, and nothing claimed that neither gives.
+
+References: the brackets ad_f^k g by sympy done the slow way (symbolic Lie brackets
+[f, g] = Dg f - Df g, substituted at the point and evaluated to 60 digits by sympy's
+evalf), and the identity sin(a)^2 + cos(a)^2 = 1 (common knowledge) as the case the
+formal test must leave open.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import flint
+import pytest
+import sympy as sp
+
+from plantlint.kernel.formal import PREC, FormalField, Unsettled
+from plantlint.kernel.taylor import Towers, Undefined
+
+x1, x2, x3 = sp.symbols("x1 x2 x3")
+X = [x1, x2, x3]
+
+
+def _bracket(f: sp.Matrix, g: sp.Matrix) -> sp.Matrix:
+    return g.jacobian(X) * f - f.jacobian(X) * g
+
+
+def test_brackets_on_formal_numbers_are_the_symbolic_brackets_at_the_point() -> None:
+    """A rational point of a plant with sin, exp and sqrt: the values are not rational, so
+    the exact field stops; the formal numbers rebuilt as sympy numbers equal the symbolic
+    brackets there to 50 digits, and each ball contains its value."""
+    f = sp.Matrix([x2, -sp.sin(x1) + x3 * sp.exp(x2), -x3 + sp.sqrt(1 + x1**2)])
+    g = sp.Matrix([0, sp.cos(x1), 1 + x2])
+    point = {x1: sp.Rational(1, 4), x2: sp.Rational(-1, 3), x3: sp.Rational(2, 5)}
+    towers = Towers(X, [], list(f), [list(g)], [x1])
+    old = flint.ctx.prec
+    flint.ctx.prec = PREC
+    try:
+        formal = towers.brackets([Fraction(1, 4), Fraction(-1, 3), Fraction(2, 5)], 2, FormalField())[0]
+    finally:
+        flint.ctx.prec = old
+    ad = g
+    for k in range(3):
+        for i in range(3):
+            exact = sp.N(ad[i].subs(point), 60)
+            number = formal[k][i]
+            rebuilt = sp.N(number.build(lambda name, args: sp.pi if name == "pi" else getattr(sp, name)(*args),
+                                        lambda c: sp.Rational(int(c.p), int(c.q))), 60)
+            assert abs(rebuilt - exact) < sp.Float("1e-50"), (k, i)
+            flint.ctx.prec = PREC
+            try:  # the ball of the value overlaps sympy's 60 digits (to 1e-50)
+                assert number.ball.overlaps(flint.arb(str(exact), "1e-50")), (k, i)
+                assert number.ball.rad() < 1e-60
+            finally:
+                flint.ctx.prec = old
+        ad = _bracket(f, ad)
+
+
+def test_zero_by_identity_nonzero_by_ball_and_the_rest_left_open() -> None:
+    field = FormalField()
+    quarter = field.const(Fraction(1, 4))
+    s, c = field.base("sin", quarter), field.base("cos", quarter)
+    assert field.base("sin", field.const(Fraction(0))) == 0  # sin(0) = 0 exactly: a rational, no unknown
+    assert (s * c - c * s).decision().proven_zero  # an identity of the polynomial ring
+    assert (s * s + c * c).decision().proven_nonzero  # = 1: away from 0 in its ball
+    assert s is not field.base("sin", quarter) and (field.base("sin", quarter) - s).decision().proven_zero
+    # sin^2 + cos^2 - 1 = 0 needs the identity between the unknowns: neither test settles it
+    assert not (s * s + c * c - 1).decision().certain
+    with pytest.raises(Undefined):
+        _ = s / (s - s)  # a proven zero divisor
+    with pytest.raises(Unsettled):
+        _ = s / (s * s + c * c - 1)  # a divisor not proven non-zero
+    # a proven domain error of an exact argument is undefined, as in the exact field
+    with pytest.raises(Undefined):
+        field.base("log", field.const(Fraction(-1)))

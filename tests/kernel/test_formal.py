@@ -74,3 +74,40 @@ def test_zero_by_identity_nonzero_by_ball_and_the_rest_left_open() -> None:
     # a proven domain error of an exact argument is undefined, as in the exact field
     with pytest.raises(Undefined):
         field.base("log", field.const(Fraction(-1)))
+
+
+@pytest.mark.parametrize("name, turns", [("sin", Fraction(1, 4)), ("cos", Fraction(1, 4)), ("sin", Fraction(2, 3)),
+                                         ("cos", Fraction(-5, 6)), ("tan", Fraction(1, 3)), ("sin", Fraction(7, 2)),
+                                         ("tan", Fraction(3, 4)), ("sin", Fraction(1, 12))])
+def test_trigonometric_values_at_multiples_of_pi_are_those_sympy_writes(name: str, turns: Fraction) -> None:
+    """sympy evaluates sin(pi/4) to sqrt(2)/2 in the values a model is written with, so the
+    formal numbers must take the same values: at multiples of 30 and 45 degrees the formal
+    number is sympy's radical (rebuilt and compared exactly), with sqrt(c)^2 = c built in;
+    at 15 degrees (pi/12) it stays an unknown whose ball holds sympy's value."""
+    field = FormalField()
+    angle = field.pi() * turns
+    value = field.base(name, angle)
+    reference = getattr(sp, name)(sp.pi * sp.Rational(turns.numerator, turns.denominator))
+    rebuilt = value.build(lambda n, args: sp.pi if n == "pi" else getattr(sp, n)(*args),
+                          lambda c: sp.Rational(int(c.p), int(c.q)))
+    if turns.denominator in (1, 2, 3, 4, 6):
+        assert sp.simplify(rebuilt - reference) == 0 and "pi" not in str(rebuilt)
+        assert (value * value - field.const(Fraction(int(sp.Rational(reference**2).p),
+                                                     int(sp.Rational(reference**2).q)))).decision().proven_zero
+    else:
+        assert rebuilt == reference
+    old = flint.ctx.prec
+    flint.ctx.prec = PREC
+    try:
+        assert value.ball.overlaps(flint.arb(str(sp.N(reference, 60)), "1e-50"))
+    finally:
+        flint.ctx.prec = old
+
+
+def test_square_roots_reduce_and_tan_at_a_right_angle_is_undefined() -> None:
+    field = FormalField()
+    root2 = field.base("sqrt", field.const(Fraction(2)))
+    assert (root2 * root2 * root2 - 2 * root2).decision().proven_zero  # sqrt(2)^3 = 2 sqrt(2)
+    assert (field.base("sin", field.pi() / 4) - field.base("cos", field.pi() / 4)).decision().proven_zero
+    with pytest.raises(Undefined):
+        field.base("tan", field.pi() / 2)

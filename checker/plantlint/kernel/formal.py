@@ -15,6 +15,12 @@ rigorous ball of its value.
 * Anything else (an identity between unknowns, sin(a)^2 + cos(a)^2 = 1, or a value too
   small for the balls) is *unsettled*: the caller goes on with its own, slower, route.
 
+Two identities are built in, because sympy applies them to the values a model is written
+with and the Taylor programs see those: a square root of a rational c is an unknown t with
+t^2 = c (reduced after every product), and sin, cos and tan of a rational multiple of pi
+whose value is in Q(sqrt(2), sqrt(3)) (multiples of 30 and 45 degrees) take that value
+(sin(pi/4) is sqrt(2)/2, as sympy writes cos(pi/4)).
+
 A division by a number that is not proven non-zero stops the computation the same way
 (:class:`Unsettled`); a division by a proven zero is :class:`~plantlint.kernel.taylor.Undefined`,
 as in the other fields. Sizes are bounded (:data:`MAX_TERMS`, :data:`MAX_UNKNOWNS`): past
@@ -55,6 +61,8 @@ class _Space:
         #: per unknown: (function name, argument numbers) it stands for, for :meth:`Formal.build`
         self.meanings: list[tuple[str, tuple[Any, ...]]] = []
         self.one = self.ctx.constant(1)
+        #: unknowns that are square roots of rationals: index -> the rational (t^2 = c)
+        self.squares: dict[int, fmpq] = {}
 
     def unknown(self, key: tuple, ball: arb, meaning: tuple[str, tuple[Any, ...]]) -> "Formal":
         i = self.index.get(key)
@@ -201,8 +209,31 @@ class Formal:
         return poly(self.num) / poly(self.den)
 
 
+def _squares_reduced(space: _Space, p: Any) -> Any:
+    """``p`` with every square of a square-root unknown replaced by its rational (t^2 = c)."""
+    if not space.squares or p.is_constant():
+        return p
+    out: dict[tuple[int, ...], fmpq] = {}
+    changed = False
+    for exps, coeff in p.terms():
+        e = list(exps)
+        for i, c in space.squares.items():
+            if e[i] >= 2:
+                k = e[i] // 2
+                coeff, e[i], changed = coeff * c ** k, e[i] - 2 * k, True
+        key = tuple(e)
+        out[key] = out.get(key, fmpq(0)) + coeff
+    if not changed:
+        return p
+    return space.ctx.from_dict({k: v for k, v in out.items() if v != 0})
+
+
 def _reduced(space: _Space, num: Any, den: Any, ball: arb) -> Formal:
-    """N / D with their common factor taken out when D is not a constant."""
+    """N / D with squares of square roots reduced and the common factor taken out when D
+    is not a constant."""
+    num, den = _squares_reduced(space, num), _squares_reduced(space, den)
+    if den.is_zero():
+        raise Undefined("division by zero")
     if not den.is_constant() and not num.is_zero():
         g = num.gcd(den)
         if not g.is_constant():
@@ -236,8 +267,47 @@ class FormalField:
     def base(self, name: str, a: Formal) -> Formal:
         if name == "inv":
             return a.inverse()
-        return self._of(name, (a,), lambda: self._q.base(name, a.rational()),
-                        lambda: self._balls.base(name, a.ball))
+        if name in ("sin", "cos", "tan"):
+            special = self._at_pi_multiple(name, a)
+            if special is not None:
+                return special
+        out = self._of(name, (a,), lambda: self._q.base(name, a.rational()),
+                       lambda: self._balls.base(name, a.ball))
+        if name == "sqrt" and a.is_constant() and not out.is_constant():
+            self.space.squares[self.space.index[("sqrt", a.key())]] = a.rational()
+        return out
+
+    def _at_pi_multiple(self, name: str, a: Formal) -> Formal | None:
+        """sin, cos or tan of r pi (r rational) at a multiple of 30 or 45 degrees, exactly."""
+        pi = self.space.index.get(("pi",))
+        if pi is None or not a.den.is_constant() or len(a.num) != 1:
+            return None
+        ((exps, coeff),) = a.num.terms()
+        if any(e != (1 if i == pi else 0) for i, e in enumerate(exps)):
+            return None
+        r = coeff / a.den.coeffs()[0]
+        degrees = r * 180
+        if degrees.q != 1 or (int(degrees.p) % 30 and int(degrees.p) % 45):
+            return None
+        d = int(degrees.p)
+
+        def sine(deg: int) -> Formal:
+            deg %= 360
+            sign = 1
+            if deg >= 180:
+                deg, sign = deg - 180, -1
+            if deg > 90:
+                deg = 180 - deg
+            value = {0: self.const(Fraction(0)), 30: self.const(Fraction(1, 2)), 90: self.const(Fraction(1)),
+                     45: self.base("sqrt", self.const(Fraction(2))) * Fraction(1, 2),
+                     60: self.base("sqrt", self.const(Fraction(3))) * Fraction(1, 2)}[deg]
+            return value * sign
+
+        if name == "sin":
+            return sine(d)
+        if name == "cos":
+            return sine(d + 90)
+        return sine(d) / sine(d + 90)  # tan: Undefined where the cosine is 0
 
     def powq(self, a: Formal, q: Fraction) -> Formal:
         return self._of(f"pow {q}", (a,), lambda: self._q.powq(a.rational(), q),

@@ -131,6 +131,15 @@ def test_regular_claim_without_a_box_says_the_envelope_is_not_one() -> None:
     assert "budget" not in claim.message
 
 
+def _claims_failed_once(text: bytes) -> tuple[object, list]:
+    """The analysis of a model whose `expect regular` and `expect minimum_phase` must each
+    fail once, for the whole model (no copy per point)."""
+    raw = analyse_bytes(text, Config())
+    failed = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert len(failed) == 2 and all(f.point is None for f in failed), [f.message for f in failed]
+    return raw, failed
+
+
 def test_a_decoupling_matrix_singular_everywhere_fails_each_claim_once() -> None:
     """Two outputs of a plant with one input (a second sensor added to a SISO loop): the
     decoupling matrix is 2 x 1, so its rank is at most 1 < 2 for every state (numpy's
@@ -150,9 +159,7 @@ point high: h1 = 1, h2 = 1, q = 1
 expect regular
 expect minimum_phase
 """
-    raw = analyse_bytes(text, Config())
-    failed = [f for f in raw.findings if f.rule == "expectation-failed"]
-    assert len(failed) == 2 and all(f.point is None for f in failed), [f.message for f in failed]
+    raw, failed = _claims_failed_once(text)
     assert "singular everywhere" in failed[0].message and "not defined at any point" in failed[1].message
     # the reference, sympy done another way: each row of A is the first L_g L_f^k h not zero
     h1, h2, = sp.symbols("h1 h2")
@@ -189,9 +196,7 @@ point held: x1 = 0, x2 = 0.5, u = 1
 expect regular
 expect minimum_phase
 """
-    raw = analyse_bytes(text, Config())
-    failed = [f for f in raw.findings if f.rule == "expectation-failed"]
-    assert len(failed) == 2 and all(f.point is None for f in failed), [f.message for f in failed]
+    raw, failed = _claims_failed_once(text)
     assert all("y never sees the inputs" in f.message for f in failed)
     assert "singular at" not in failed[0].message
     assert "relative-degree-undefined" in [f.rule for f in raw.findings]

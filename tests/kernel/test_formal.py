@@ -111,3 +111,6 @@ def test_square_roots_reduce_and_tan_at_a_right_angle_is_undefined() -> None:
     assert (field.base("sin", field.pi() / 4) - field.base("cos", field.pi() / 4)).decision().proven_zero
     with pytest.raises(Undefined):
         field.base("tan", field.pi() / 2)
+    # sympy writes sqrt(2) as 2^(1/2) and 1/sqrt(2) as 2^(-1/2): the same unknown, reduced
+    assert (field.powq(field.const(Fraction(2)), Fraction(1, 2)) - root2).decision().proven_zero
+    assert (field.powq(field.const(Fraction(2)), Fraction(-3, 2)) * 4 - root2).decision().proven_zero

@@ -310,6 +310,11 @@ class FormalField:
         return sine(d) / sine(d + 90)  # tan: Undefined where the cosine is 0
 
     def powq(self, a: Formal, q: Fraction) -> Formal:
+        if q.denominator == 2 and a.is_constant():  # sqrt(c)^p: the square root reduces (t^2 = c)
+            root, out = self.base("sqrt", a), self.const(Fraction(1))
+            for _ in range(abs(q.numerator)):
+                out = out * root
+            return out if q.numerator > 0 else out.inverse()
         return self._of(f"pow {q}", (a,), lambda: self._q.powq(a.rational(), q),
                         lambda: self._balls.powq(a.ball, q))
 

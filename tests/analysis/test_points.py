@@ -225,3 +225,28 @@ point p: x1 = 1, u1 = 1, x2 = 0, u2 = 0.5 tolerance 1e-3
     (missed,) = [f for f in raw.findings if f.rule == "point-not-equilibrium"]
     assert "dx2/dt = 0.5 (the largest rate is 100% of the size of its terms)" in missed.message
     assert not [f for f in raw.findings if f.rule == "point-refined"]
+
+
+def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
+    """The refinement's Gauss-Newton step solves the normal equations by LU when the
+    Jacobian has full rank (an mpmath SVD of 20 x 21 took most of a second per step); it
+    must be the minimum-norm least-squares solution, as numpy.linalg.lstsq computes it,
+    for wide and tall matrices, and leave a singular one to the SVD."""
+    import numpy as np
+    import mpmath
+
+    from plantlint.analysis.refine import DIGITS, _full_rank_least_squares, _least_squares
+
+    rng = np.random.default_rng(7)
+    with mpmath.workdps(DIGITS):
+        for rows, cols in ((20, 21), (6, 3), (4, 4)):
+            A = rng.normal(size=(rows, cols))
+            b = rng.normal(size=rows)
+            x = _full_rank_least_squares([[mpmath.mpf(v) for v in r] for r in A], [mpmath.mpf(v) for v in b])
+            reference = np.linalg.lstsq(A, b, rcond=None)[0]
+            assert x is not None and np.allclose([float(v) for v in x], reference, rtol=1e-9, atol=1e-12)
+        singular = [[mpmath.mpf(1), mpmath.mpf(2)], [mpmath.mpf(2), mpmath.mpf(4)]]
+        assert _full_rank_least_squares(singular, [mpmath.mpf(1), mpmath.mpf(2)]) is None
+        x = _least_squares(singular, [mpmath.mpf(1), mpmath.mpf(2)])  # the SVD's pseudo-inverse
+        reference = np.linalg.lstsq(np.array([[1.0, 2.0], [2.0, 4.0]]), np.array([1.0, 2.0]), rcond=None)[0]
+        assert np.allclose([float(v) for v in x], reference)

@@ -44,6 +44,11 @@ CONVERGED = mpmath.mpf("1e-40")  # relative residual taken as converged (far bel
 REFINED_RESIDUAL = 1e-25
 MAX_STEPS = 40
 FAR = 1.0  # a refined value may differ from the written one by at most its own size (or range)
+#: A Gauss-Newton step this small (scaled) without convergence: stalled at a least-squares
+#: minimum that is not a zero (a converging step is the size of the residual, above 1e-40).
+STALLED = mpmath.mpf("1e-45")
+#: A Newton iterate this far from the start (in scales) is given up: FAR would refuse it.
+AWAY = 10 * FAR
 
 
 @dataclass(frozen=True)
@@ -108,7 +113,7 @@ class _System:
             flint.ctx.prec = old
         if not all(b.is_finite() for b in values):
             return None
-        mids = [mpmath.mpf(b.mid().str(DIGITS + 5, radius=False)) for b in values]
+        mids = [_mid(b) for b in values]
         n, k = self.n, len(self.symbols)
         rates = mids[:n]
         at = n
@@ -123,6 +128,13 @@ class _System:
             at += count
         jac = [mids[at + i * k: at + (i + 1) * k] for i in range(n)]
         return rates, sizes, jac
+
+
+def _mid(ball: arb) -> mpmath.mpf:
+    """A ball's midpoint as an mpmath number (from its binary mantissa and exponent, not
+    through decimal text: the text took most of the time of a Newton step)."""
+    man, exp = ball.mid().man_exp()
+    return mpmath.ldexp(mpmath.mpf(int(man)), int(exp))
 
 
 def _relative(rates: Sequence, sizes: Sequence) -> mpmath.mpf:
@@ -144,6 +156,9 @@ def _least_squares(A: list[list], b: list) -> list | None:
     rows, cols = len(A), len(A[0]) if A else 0
     if cols == 0 or rows == 0:
         return [mpmath.mpf(0)] * cols
+    fast = _full_rank_least_squares(A, b)
+    if fast is not None:
+        return fast
     try:
         U, S, V = mpmath.svd_r(mpmath.matrix(A))
     except (ZeroDivisionError, ValueError):
@@ -157,6 +172,23 @@ def _least_squares(A: list[list], b: list) -> list | None:
         for j in range(cols):
             x[j] += coefficient * V[k, j]
     return x
+
+
+def _full_rank_least_squares(A: list[list], b: list) -> list | None:
+    """The same x when A has full rank, by LU on the normal equations (A A^T y = b, x = A^T y
+    for a wide A; A^T A x = A^T b for a tall one): an SVD of 20 x 21 entries at 50 digits
+    takes most of a second in mpmath, this a few hundredths. None when the LU finds the
+    matrix singular (then the SVD's pseudo-inverse decides)."""
+    M = mpmath.matrix(A)
+    try:
+        if M.rows <= M.cols:
+            y = mpmath.lu_solve(M * M.T, mpmath.matrix(b))
+            x = M.T * y
+        else:
+            x = mpmath.lu_solve(M.T * M, M.T * mpmath.matrix(b))
+    except (ZeroDivisionError, ValueError):
+        return None
+    return [x[j] for j in range(M.cols)]
 
 
 def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.Symbol],
@@ -175,8 +207,12 @@ def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.S
         step = _least_squares(A, [-r for r in rates])
         if step is None:
             return None
+        if all(abs(d) <= STALLED for d in step):
+            return None  # a least-squares minimum that is not a zero: no later step moves it
         for v, d in zip(free, step):
             point[v] = point[v] + d * scales[v]
+        if any(abs(point[v] - start[v]) > AWAY * scales[v] for v in free):
+            return None  # far beyond where a refined value is accepted (FAR)
     return None
 
 

@@ -250,3 +250,13 @@ def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
         x = _least_squares(singular, [mpmath.mpf(1), mpmath.mpf(2)])  # the SVD's pseudo-inverse
         reference = np.linalg.lstsq(np.array([[1.0, 2.0], [2.0, 4.0]]), np.array([1.0, 2.0]), rcond=None)[0]
         assert np.allclose([float(v) for v in x], reference)
+
+
+def test_minimum_phase_without_an_equilibrium_says_where_the_zero_dynamics_live() -> None:
+    """The zero dynamics are defined around an equilibrium (Isidori, Nonlinear Control
+    Systems, 3rd ed., sec. 4.3, from memory): with none declared, the claim fails and says
+    so, pointing at the points' own findings, not at unstable dynamics."""
+    raw = analyse_bytes(MAGLEV + b"expect minimum_phase\n", Config())
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert "no declared point is an equilibrium, and the zero dynamics are taken at one" in claim.message
+    assert "point-not-equilibrium" in [f.rule for f in raw.findings]

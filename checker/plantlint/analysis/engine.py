@@ -651,7 +651,8 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
         elif zd.verdict == "minimum_phase":
             out.extend(_box_failure(pa, "zero_dynamics"))
     if c.point is None and not any(p.equilibrium.equilibrium for p in points):
-        out.append((None, "no declared point is an equilibrium"))
+        out.append((None, "no declared point is an equilibrium, and the zero dynamics are taken at one "
+                          "(see the findings at the points)"))
     return out
 
 

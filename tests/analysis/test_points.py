@@ -231,7 +231,8 @@ def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
     """The refinement's Gauss-Newton step solves the normal equations by LU when the
     Jacobian has full rank (an mpmath SVD of 20 x 21 took most of a second per step); it
     must be the minimum-norm least-squares solution, as numpy.linalg.lstsq computes it,
-    for wide and tall matrices, and leave a singular one to the SVD."""
+    for wide and square matrices, and leave tall, singular and badly scaled ones (values of
+    1e300 next to 1: the normal equations square the condition number) to the SVD."""
     import numpy as np
     import mpmath
 
@@ -242,9 +243,15 @@ def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
         for rows, cols in ((20, 21), (6, 3), (4, 4)):
             A = rng.normal(size=(rows, cols))
             b = rng.normal(size=rows)
-            x = _full_rank_least_squares([[mpmath.mpf(v) for v in r] for r in A], [mpmath.mpf(v) for v in b])
+            rows_mp, b_mp = [[mpmath.mpf(v) for v in r] for r in A], [mpmath.mpf(v) for v in b]
+            fast = _full_rank_least_squares(rows_mp, b_mp)
+            assert (fast is None) == (rows > cols)
             reference = np.linalg.lstsq(A, b, rcond=None)[0]
-            assert x is not None and np.allclose([float(v) for v in x], reference, rtol=1e-9, atol=1e-12)
+            assert np.allclose([float(v) for v in _least_squares(rows_mp, b_mp)], reference, rtol=1e-9, atol=1e-12)
+        scaled = [[mpmath.mpf("1e300"), mpmath.mpf(1)], [mpmath.mpf(1), mpmath.mpf("1e-300")]]
+        x = _full_rank_least_squares(scaled, [mpmath.mpf(1), mpmath.mpf(1)])
+        if x is not None:  # accepted only when it solves the system
+            assert abs(scaled[0][0] * x[0] + scaled[0][1] * x[1] - 1) < mpmath.mpf("1e-25")
         singular = [[mpmath.mpf(1), mpmath.mpf(2)], [mpmath.mpf(2), mpmath.mpf(4)]]
         assert _full_rank_least_squares(singular, [mpmath.mpf(1), mpmath.mpf(2)]) is None
         x = _least_squares(singular, [mpmath.mpf(1), mpmath.mpf(2)])  # the SVD's pseudo-inverse

@@ -47,8 +47,6 @@ FAR = 1.0  # a refined value may differ from the written one by at most its own 
 #: A Gauss-Newton step this small (scaled) without convergence: stalled at a least-squares
 #: minimum that is not a zero (a converging step is the size of the residual, above 1e-40).
 STALLED = mpmath.mpf("1e-45")
-#: A Newton iterate this far from the start (in scales) is given up: FAR would refuse it.
-AWAY = 10 * FAR
 
 
 @dataclass(frozen=True)
@@ -175,18 +173,20 @@ def _least_squares(A: list[list], b: list) -> list | None:
 
 
 def _full_rank_least_squares(A: list[list], b: list) -> list | None:
-    """The same x when A has full rank, by LU on the normal equations (A A^T y = b, x = A^T y
-    for a wide A; A^T A x = A^T b for a tall one): an SVD of 20 x 21 entries at 50 digits
-    takes most of a second in mpmath, this a few hundredths. None when the LU finds the
-    matrix singular (then the SVD's pseudo-inverse decides)."""
+    """The same x for a wide or square A of full row rank, by LU on the normal equations
+    (A A^T y = b, x = A^T y: the minimum-norm solution of A x = b). An SVD of 20 x 21 entries
+    at 50 digits takes most of a second in mpmath, this a few hundredths. None for a tall A
+    (its SVD is small), when the LU finds A A^T singular, or when x does not solve A x = b
+    to 30 digits (a badly scaled A squares its condition number): the SVD decides then."""
     M = mpmath.matrix(A)
+    if M.rows > M.cols:
+        return None
+    B = mpmath.matrix(b)
     try:
-        if M.rows <= M.cols:
-            y = mpmath.lu_solve(M * M.T, mpmath.matrix(b))
-            x = M.T * y
-        else:
-            x = mpmath.lu_solve(M.T * M, M.T * mpmath.matrix(b))
+        x = M.T * mpmath.lu_solve(M * M.T, B)
     except (ZeroDivisionError, ValueError):
+        return None
+    if mpmath.norm(M * x - B) > mpmath.mpf("1e-30") * (mpmath.norm(B) + mpmath.mpf("1e-300")):
         return None
     return [x[j] for j in range(M.cols)]
 
@@ -211,8 +211,6 @@ def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.S
             return None  # a least-squares minimum that is not a zero: no later step moves it
         for v, d in zip(free, step):
             point[v] = point[v] + d * scales[v]
-        if any(abs(point[v] - start[v]) > AWAY * scales[v] for v in free):
-            return None  # far beyond where a refined value is accepted (FAR)
     return None
 
 

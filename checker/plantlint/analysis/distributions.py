@@ -808,22 +808,9 @@ def _formal_ranks(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], n: int, m: i
 
     field = FormalField()
     at = kernel.towers_at(values)
-    if at is not None:
-        towers, vector = at
-    else:  # irrational values at the point (q = pi/4): formal numbers from their sympy form
-        towers = kernel.towers() if kernel.route == "numeric" else None
-        full = dict(kernel.plant.param_nominal)
-        full.update(values)
-        old = flint.ctx.prec
-        flint.ctx.prec = PREC
-        try:
-            vector = [_formal_number(field, full.get(s)) for s in kernel.free_symbols()]
-        except (Inexact, Undefined, ValueError, TypeError):
-            return None
-        finally:
-            flint.ctx.prec = old
-        if towers is None:
-            return None
+    towers = at[0] if at is not None else kernel.towers() if kernel.route == "numeric" else None
+    if towers is None:
+        return None
 
     def settled(e: Formal) -> ZeroDecision:
         d = e.decision()
@@ -834,74 +821,26 @@ def _formal_ranks(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], n: int, m: i
     old = flint.ctx.prec
     flint.ctx.prec = PREC
     try:
-        columns = towers.brackets(vector, n - 1, field)
-        ranks, basis = _column_ranks(lambda k: [columns[j][k] for j in range(m)], n, known, kalman,
-                                     _PointEchelon(settled, size=Formal.size))  # type: ignore[arg-type]
-    except (Undefined, ZeroDivisionError):
-        return "undefined"
-    except Inexact:  # Unsettled among them
-        return None
+        if at is not None:
+            vector = at[1]
+        else:  # irrational values at the point (q = pi/4): formal numbers read from their sympy form
+            full = dict(kernel.plant.param_nominal)
+            full.update(values)
+            try:
+                vector = [field.number(full.get(s)) for s in kernel.free_symbols()]
+            except (Inexact, Undefined, ValueError, TypeError):
+                return None
+        try:
+            columns = towers.brackets(vector, n - 1, field)
+            ranks, basis = _column_ranks(lambda k: [columns[j][k] for j in range(m)], n, known, kalman,
+                                         _PointEchelon(settled, size=Formal.size))  # type: ignore[arg-type]
+        except (Undefined, ZeroDivisionError):
+            return "undefined"
+        except Inexact:  # Unsettled among them
+            return None
     finally:
         flint.ctx.prec = old
-    return ranks or [0] * n, [[_to_sympy(e) for e in row] for row in basis]
-
-
-#: The functions a point value may hold that formal numbers take (those of the language's
-#: smooth functions that Taylor mode knows; anything else leaves the point to the fields).
-_FORMAL_FUNCTIONS = {sp.sin: "sin", sp.cos: "cos", sp.tan: "tan", sp.exp: "exp", sp.log: "log", sp.atan: "atan",
-                     sp.asin: "asin", sp.acos: "acos", sp.sinh: "sinh", sp.cosh: "cosh", sp.tanh: "tanh"}
-
-
-def _formal_number(field: Any, value: object) -> Any:
-    """A point value (an exact sympy number: pi/4, sqrt(2), exp(-160/7)) as a formal number,
-    read from its tree; ValueError for what it does not take."""
-    if not isinstance(value, sp.Basic) or value.free_symbols:
-        raise ValueError("not an exact number")
-    if value.is_Rational:
-        return field.const(Fraction(int(value.p), int(value.q)))
-    if value is sp.pi:
-        return field.pi()
-    if value.is_Add or value.is_Mul:
-        parts = [_formal_number(field, a) for a in value.args]
-        total = parts[0]
-        for part in parts[1:]:
-            total = total + part if value.is_Add else total * part
-        return total
-    if value.is_Pow:
-        base, exp = value.args
-        if exp.is_Integer:
-            b = _formal_number(field, base)
-            k = int(exp)
-            if abs(k) > 64:
-                raise ValueError("power too large")
-            out = field.const(Fraction(1))
-            for _ in range(abs(k)):
-                out = out * b
-            return out if k >= 0 else field.base("inv", out)
-        if exp.is_Rational:
-            return field.powq(_formal_number(field, base), Fraction(int(exp.p), int(exp.q)))
-        raise ValueError("power")
-    name = _FORMAL_FUNCTIONS.get(type(value))
-    if name is not None and len(value.args) == 1:
-        return field.base(name, _formal_number(field, value.args[0]))
-    raise ValueError(f"{type(value).__name__} in a point value")
-
-
-def _to_sympy(e: Any) -> sp.Expr:
-    """A formal number as the exact sympy number it stands for (for the missing directions)."""
-    from plantlint.kernel.formal import Formal
-
-    if not isinstance(e, Formal):
-        return sp.Integer(e) if isinstance(e, int) else e
-
-    def make(name: str, args: tuple[sp.Expr, ...]) -> sp.Expr:
-        if name == "pi":
-            return sp.pi
-        if name.startswith("pow "):
-            return args[0] ** sp.Rational(name.split()[1])
-        return getattr(sp, name)(*args)
-
-    return e.build(make, sympy_rational)
+    return ranks or [0] * n, [[e.to_sympy() for e in row] for row in basis]
 
 
 def _taylor_brackets(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], order: int

@@ -33,9 +33,11 @@ from fractions import Fraction
 from typing import Any, Callable
 
 import flint
+import sympy as sp
 from flint import arb, fmpq, fmpq_mpoly_ctx
 
 from plantlint.kernel import decision as zd
+from plantlint.kernel.rational import sympy_rational
 from plantlint.kernel.taylor import ArbField, Inexact, QField, Undefined
 
 #: Formal unknowns one computation may introduce.
@@ -184,22 +186,22 @@ class Formal:
             return zd.proven_nonzero("ball")
         return zd.UNDECIDED
 
-    def build(self, make: Callable[[str, tuple[Any, ...]], Any], rational: Callable[[fmpq], Any]) -> Any:
-        """The number rebuilt by the caller's constructors: ``make(name, args)`` for each
-        unknown (its arguments rebuilt first), ``rational`` for the coefficients."""
-        cache: dict[int, Any] = {}
+    def to_sympy(self) -> sp.Expr:
+        """The exact sympy number this stands for (each unknown as the function value it is)."""
+        cache: dict[int, sp.Expr] = {}
 
-        def unknown(i: int) -> Any:
+        def unknown(i: int) -> sp.Expr:
             if i not in cache:
                 name, args = self.space.meanings[i]
-                cache[i] = make(name, tuple(a.build(make, rational) if isinstance(a, Formal) else rational(a)
-                                            for a in args))
+                built = tuple(a.to_sympy() if isinstance(a, Formal) else sympy_rational(a) for a in args)
+                cache[i] = (sp.pi if name == "pi" else built[0] ** sp.Rational(name.split()[1])
+                            if name.startswith("pow ") else getattr(sp, name)(*built))
             return cache[i]
 
-        def poly(p: Any) -> Any:
-            total = rational(fmpq(0))
+        def poly(p: Any) -> sp.Expr:
+            total = sp.Integer(0)
             for exps, coeff in p.terms():
-                term = rational(coeff)
+                term = sympy_rational(coeff)
                 for i, e in enumerate(exps):
                     if e:
                         term = term * unknown(i) ** e
@@ -257,9 +259,49 @@ class FormalField:
         return self.space.constant(fmpq(q.numerator, q.denominator))
 
     def number(self, value: Any) -> Formal:
+        """A number of the point: a Formal, an exact rational, or an exact sympy number
+        (pi/4, sqrt(2), exp(-160/7)) read from its tree; ValueError for what it does not take."""
         if isinstance(value, Formal):
             return value
+        if isinstance(value, sp.Basic):
+            return self._from_sympy(value)
         return self.space.constant(self._q.number(value))
+
+    #: sympy's functions that a point value may hold (those Taylor mode knows).
+    _FUNCTIONS = {sp.sin: "sin", sp.cos: "cos", sp.tan: "tan", sp.exp: "exp", sp.log: "log", sp.atan: "atan",
+                  sp.asin: "asin", sp.acos: "acos", sp.sinh: "sinh", sp.cosh: "cosh", sp.tanh: "tanh"}
+
+    def _from_sympy(self, value: sp.Basic) -> Formal:
+        if value.free_symbols:
+            raise ValueError("not an exact number")
+        if value.is_Rational:
+            return self.const(Fraction(int(value.p), int(value.q)))
+        if value is sp.pi:
+            return self.pi()
+        if value.is_Add or value.is_Mul:
+            parts = [self._from_sympy(a) for a in value.args]
+            total = parts[0]
+            for part in parts[1:]:
+                total = total + part if value.is_Add else total * part
+            return total
+        if value.is_Pow:
+            base, exp = value.args
+            if exp.is_Integer:
+                b = self._from_sympy(base)
+                k = int(exp)
+                if abs(k) > 64:
+                    raise ValueError("power too large")
+                out = self.const(Fraction(1))
+                for _ in range(abs(k)):
+                    out = out * b
+                return out if k >= 0 else out.inverse()
+            if exp.is_Rational:
+                return self.powq(self._from_sympy(base), Fraction(int(exp.p), int(exp.q)))
+            raise ValueError("power")
+        name = self._FUNCTIONS.get(type(value))
+        if name is not None and len(value.args) == 1:
+            return self.base(name, self._from_sympy(value.args[0]))
+        raise ValueError(f"{type(value).__name__} in a point value")
 
     def pi(self) -> Formal:
         return self.space.unknown(("pi",), arb.pi(), ("pi", ()))

@@ -252,12 +252,24 @@ def relative_at(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence
         return None if measured is None else float(_relative(*measured[2][:2]))
 
 
+#: The plant measured last and its compiled system: the check of a rounded refined value
+#: (:func:`relative_at`) follows the search (:func:`near_miss`) on the same plant, and
+#: compiling the rates, terms and Jacobian again cost as much as a few Newton steps.
+_LAST: list[tuple[Plant, _System]] = []
+
+
+def _system(plant: Plant) -> _System:
+    if not (_LAST and _LAST[0][0] is plant):
+        _LAST[:] = [(plant, _System(plant))]
+    return _LAST[0][1]
+
+
 def _measured(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[sp.Symbol]
               ) -> tuple[_System, dict[sp.Symbol, mpmath.mpf], tuple[list, list, list[list]]] | None:
     """The system, the point (the inputs left out at their least-squares values: the rates
     are affine in them) and (rates, sizes, Jacobian) there; None when undefined."""
     try:
-        system = _System(plant)
+        system = _system(plant)
     except UnsupportedExpression:
         return None
     system.fitted = frozenset(unknown)

@@ -239,9 +239,16 @@ def test_unknown_unit_is_reported_at_its_text() -> None:
 
 
 def test_unknown_unit_suggests_the_known_spelling() -> None:
-    _model, findings = read_model(b'plant r\nparam R = 2 [Ohm]\nparam A = 1 [m2]\n', "r.plant")
+    # a whole model: one whose names do not resolve (no state) is not read for units
+    _model, findings = read_model(b'plant r\nparam R = 2 [Ohm]\nparam A = 1 [m2]\nstate x\nrate x = -R*A*x\n', "r.plant")
     hints = [f.hint for f in findings if f.rule == "unit-unknown"]
     assert hints == ["did you mean ohm?", "did you mean m^2?"]
+
+
+def test_a_model_whose_names_do_not_resolve_is_not_read_for_units() -> None:
+    """Like a file that does not parse: its units are checked once its names resolve."""
+    _model, findings = read_model(b'plant r\nparam R = 2 [Ohm]\nstate x\nrate x = -R*y\n', "r.plant")
+    assert [f.rule for f in findings] == ["unknown-name"]
 
 
 def test_one_unit_of_time_for_all_rates() -> None:

@@ -1,30 +1,31 @@
 """Exact values of parsed expressions: sympy trees built from the parse tree.
 
-:mod:`plantlint.language.syntax` reads text into statements without sympy; each
-expression's value is built here, node by node from its parse tree (never from the
-text), with the names and calls it mentions and its parts as written (``hidden``,
-``kinks``, ``undefined_calls``) for the domain and smoothness checks. A file that
-does not parse never gets here, so it is reported without importing sympy.
+:mod:`plantlint.language.syntax` reads text into statements, and what each expression
+mentions, without sympy. An expression's value is built here on first use, node by node
+from its parse tree (never from the text), with its parts as written (``hidden``,
+``kinks``, ``undefined_calls``) for the domain and smoothness checks. A file that does
+not parse, or whose names do not resolve, never gets here, so it is reported without
+importing sympy.
 """
 
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Callable, Iterator, TypeVar, Union
+from typing import Callable, TypeVar, Union
 
 import sympy as sp
 from lark import Token, Tree
 
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
-from plantlint.core.limits import MAX_EXPONENT, MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10, MAX_NAME, MAX_POWER_BITS
+from plantlint.core.limits import MAX_NAME
 from plantlint.core.findings import Finding, Span
-from plantlint.language.source import (FUNCTIONS, SMOOTH_FUNCTIONS, CallRef, Expression, NameRef, ParseProblem,
-                                       near_miss, shorten, span_of, syntax_problem)
+from plantlint.language.source import (FUNCTIONS, SMOOTH_FUNCTIONS, Built, ParseProblem, check_power, near_miss,
+                                       number, operands_first, shorten, span_of, syntax_problem)
 
 
-def build_expression(root: Tree | Token) -> Expression:
-    """The exact value of an expression subtree, with what it mentions."""
+def build_value(root: Tree | Token) -> Built:
+    """The exact value of an expression subtree and its parts as written."""
     return _ExpressionBuilder().build(root)
 
 
@@ -59,31 +60,23 @@ class _ExpressionBuilder:
     recursion (deep input cannot overflow the stack here; parentheses and runs of signs
     are limited to MAX_DEPTH on the text, before parsing).
 
-    Nodes are visited after their operands, which come off a stack: the last operand
-    first. That order is part of the behaviour. Unknown functions are collected (every
-    one is named, in source order); of two other problems in one expression the last is
-    reported, and ``names`` and ``calls`` list the last mention first, which decides the mention a model finding points at (the first
-    offending name in ``names``).
-
-    lark's ``Transformer_NonRecursive`` was tried in its place: no recursion either, the
-    same spans (node spans through ``v_args(meta=True)``) and the same time within the
-    noise of measurement (the largest benchmark models, a 9,000-term sum), but it visits
-    left to right. The lists can be put back in this order afterwards; which of two
-    other problems is reported cannot, and every problem would come wrapped in a
-    ``VisitError``. So the walk stays here, small and explicit.
+    It visits the nodes in the order of the walk that read the expression's names
+    (:func:`plantlint.language.syntax.mentions`, where that order is explained), which
+    has already refused every problem it can find without values; the checks here that
+    repeat its checks are kept so that the builder refuses what it cannot build on its own.
+    What only a value shows (a power of numbers reached through a function) is refused
+    here, as a :class:`ParseProblem` the model build reports.
     """
 
     def __init__(self) -> None:
-        self.names: list[NameRef] = []
-        self.calls: list[CallRef] = []
         self.values: dict[int, _Value] = {}  # by id(): tokens compare equal by their text
         self.unknown: list[Finding] = []  # unknown functions: every one is reported, in order
-        self.singular: list[sp.Expr] = []  # singular parts as built (see Expression.hidden)
+        self.singular: list[sp.Expr] = []  # singular parts as built (see Built.hidden)
         self.kinks: list[tuple[Span, sp.Expr, sp.Expr]] = []
         self.undefined_calls: list[tuple[Span, sp.Expr]] = []
 
-    def build(self, root: Tree | Token) -> Expression:
-        for node in _operands_first(root):
+    def build(self, root: Tree | Token) -> Built:
+        for node in operands_first(root):
             self.values[id(node)] = self._token(node) if isinstance(node, Token) else self._node(node)
         if self.unknown:
             first, *rest = sorted(self.unknown, key=lambda f: (f.span.line, f.span.column) if f.span else (0, 0))
@@ -93,8 +86,7 @@ class _ExpressionBuilder:
         if self.singular:
             shown = set(sp.preorder_traversal(value))
             hidden = tuple(p for p in dict.fromkeys(self.singular) if p not in shown)
-        return Expression(value, span_of(root), tuple(self.names), tuple(self.calls), root, hidden, tuple(self.kinks),
-                          tuple(self.undefined_calls))
+        return Built(value, hidden, tuple(self.kinks), tuple(self.undefined_calls))
 
     def _singular(self, part: sp.Expr) -> None:
         """Remember a part that is undefined somewhere as written (it may be simplified away)."""
@@ -133,7 +125,6 @@ class _ExpressionBuilder:
                                        span_of(tok), anchor=anchors.problem("long name")))
         if name == "pi":
             return sp.pi
-        self.names.append(NameRef(name, span_of(tok)))
         return symbol(name)
 
     def _call(self, node: Tree) -> sp.Expr:
@@ -141,7 +132,6 @@ class _ExpressionBuilder:
         fname = str(fname_tok)
         args = [self._built(a) for a in arg_nodes if a is not None]
         span = span_of(node)
-        self.calls.append(CallRef(fname, span))
         entry = FUNCTIONS.get(fname)
         if entry is None:
             # recorded, and the walk goes on (with a stand-in value) so that every unknown
@@ -217,23 +207,6 @@ class _ExpressionBuilder:
     }
 
 
-def _operands_first(root: Tree | Token) -> Iterator[Tree | Token]:
-    """Every node under ``root``, each after its operands, without recursion; operands
-    come off a stack, the last first. The name token of a ``name`` or ``call`` node is
-    part of that node, not an operand."""
-    stack: list[tuple[Tree | Token, bool]] = [(root, False)]
-    while stack:
-        node, expanded = stack.pop()
-        if expanded or isinstance(node, Token):
-            yield node
-            continue
-        stack.append((node, True))
-        named = node.data in ("call", "name")
-        for child in node.children:
-            if child is not None and not (named and isinstance(child, Token)):
-                stack.append((child, False))
-
-
 class _Terms(list):  # type: ignore[type-arg]
     """Terms of a sum not yet built (each tree node has one parent, so it is extended in place)."""
 
@@ -253,25 +226,12 @@ def _done(value: sp.Expr | _Terms | _Factors) -> sp.Expr:
 
 def _number(tok: Token) -> sp.Rational:
     """A decimal literal as an exact rational (never a binary float)."""
-    text = str(tok)
-    mantissa, _, exponent = text.lower().partition("e")
-    exp10 = int(exponent) if exponent else 0
-    digits = mantissa.replace(".", "")
-    if abs(exp10) > MAX_LITERAL_EXP10 or len(digits) > MAX_LITERAL_DIGITS:
-        raise ParseProblem(syntax_problem(f"number {text[:20]}{'...' if len(text) > 20 else ''} is out of range", span_of(tok), anchor=anchors.problem("number range")))
-    value = Fraction(mantissa) * (Fraction(10) ** exp10)
+    value = number(tok)
     return sp.Rational(value.numerator, value.denominator)
 
 
 def _power(base: sp.Expr, exponent: sp.Expr, span: Span) -> sp.Expr:
-    if exponent.is_Number:
-        if exponent.is_Rational:
-            big = max(abs(int(exponent.p)), abs(int(exponent.q)))
-            if big > MAX_EXPONENT:
-                raise ParseProblem(syntax_problem(f"exponent {shorten(str(exponent))} is beyond the supported range "
-                                           f"(|p|, |q| <= {MAX_EXPONENT})", span, anchor=anchors.problem("exponent range")))
-        if base.is_Number and base.is_Rational:
-            bits = max(abs(int(base.p)), abs(int(base.q)), 1).bit_length()
-            if bits * abs(int(exponent.p)) > MAX_POWER_BITS:
-                raise ParseProblem(syntax_problem("this power of a number is too large to compute exactly", span, anchor=anchors.problem("power size")))
+    if exponent.is_Number and exponent.is_Rational:
+        check_power(Fraction(int(base.p), int(base.q)) if base.is_Number and base.is_Rational else None,
+                    Fraction(int(exponent.p), int(exponent.q)), span)
     return base ** exponent

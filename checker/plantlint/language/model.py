@@ -23,11 +23,9 @@ from plantlint.kernel.exact import sign
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
 from plantlint.language.expressions import symbol
-from plantlint.language.source import NON_SMOOTH_FUNCTIONS, Expression, near_miss
-from plantlint.language.syntax import Claim, Parsed, Statement
-
-CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
-QUANTITY_KINDS = ("const", "param", "state", "input", "let", "output")
+from plantlint.language.names import CLAIMS, QUANTITY_KINDS, Names
+from plantlint.language.source import NON_SMOOTH_FUNCTIONS, ParseProblem, near_miss
+from plantlint.language.syntax import Claim, Expression, Parsed, Statement
 
 
 @dataclass(frozen=True)
@@ -157,6 +155,10 @@ class _Scope:
     #: per rate, output or definition: its singular parts as written that its value no longer
     #: shows, with those of the definitions it uses (see Expression.hidden)
     hidden: dict[str, tuple[sp.Expr, ...]] = field(default_factory=dict)
+    names: Names = field(init=False)
+
+    def __post_init__(self) -> None:
+        self.names = Names(self.add, self.declared)
 
     def add(self, rule: str, message: str, span: Span | None, anchor: str, hint: str | None = None,
             point: str | None = None) -> None:
@@ -164,7 +166,7 @@ class _Scope:
 
     def owns(self, st: Statement) -> bool:
         """Is ``st`` the declaration its name resolves to (not a duplicate)?"""
-        return self.declared.get(st.name or "") is st
+        return self.names.owns(st)
 
     def allowed(self, dynamic: set[str]) -> set[str]:
         """Names an expression of the dynamics may use: states, inputs, ranged parameters
@@ -191,9 +193,12 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
 
 
 def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]:
-    header = _header(scope, parsed)
+    header = scope.names.header(parsed)
     if header is None:
         return None, scope.findings
+    problems = _value_problems(parsed.statements)
+    if problems:
+        return None, [*scope.findings, *problems]
     statements = parsed.statements
     body = statements[1:]
     by_kind: dict[str, list[Statement]] = {}
@@ -203,16 +208,14 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
 
     for st in body:
         if st.kind in QUANTITY_KINDS and st.name:
-            _declare(scope, st)
+            scope.names.declare(st)
     ranged = _constants_and_parameters(scope, body)
     _states_and_inputs(scope, body)
     ranged = _ranges(scope, body, ranged)
     states = _owned_names(scope, by_kind.get("state", []))
     inputs = _owned_names(scope, by_kind.get("input", []))
     if not by_kind.get("state"):
-        scope.add("syntax", "the model declares no states: there is no dynamics to analyse",
-                  header.name_span or header.span, anchors.problem("no states"),
-                  hint="declare the plant's states (`state x in LO .. HI`) and their rates (`rate x = ...`)")
+        scope.names.no_states(header)
     _envelope_span(scope, by_kind.get("state", []))
     dynamic = set(states) | set(inputs) | set(ranged)
     _definitions(scope, by_kind.get("let", []), dynamic)
@@ -253,22 +256,26 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
 
 # -- the passes, in the order build_model runs them ---------------------------------
 
-def _header(scope: _Scope, parsed: Parsed) -> Statement | None:
-    """The `plant NAME` header, or None when the file cannot be read as a model (a syntax
-    problem, no statement, no header first). A second header is reported and ignored."""
-    if parsed.findings:
-        return None
-    statements = parsed.statements
-    if not statements:
-        scope.add("syntax", "empty model: a file starts with `plant NAME`", Span(1, 1, 1, 2), "empty")
-        return None
-    header = statements[0]
-    if header.kind != "plant":
-        scope.add("syntax", "a model file must start with `plant NAME`", header.span, "no header")
-        return None
-    for extra in (s for s in statements[1:] if s.kind == "plant"):
-        scope.add("syntax", "a file holds one plant: a second `plant` header", extra.span, "second header")
-    return header
+def _value_problems(statements: list[Statement]) -> list[Finding]:
+    """Build every expression's value, in statement order, and return the problems only a
+    value shows (a power of numbers too large to compute, reached through a function: the
+    parser refuses those it can see without values). As when the parser finds a problem,
+    the file is then not read as a model; each statement gives its first problem."""
+    problems: list[Finding] = []
+    for st in statements:
+        try:
+            for expr in _expressions(st):
+                expr.value  # noqa: B018 - built here, where its problem can be reported
+        except ParseProblem as problem:
+            problems.extend(problem.findings)
+    return problems
+
+
+def _expressions(st: Statement) -> list[Expression]:
+    """The expressions of a statement, in the order the parser reads them."""
+    exprs = [st.low, st.high, st.expr, *(e for _, e in st.assignments), st.tolerance,
+             st.claim.value if st.claim is not None else None]
+    return [e for e in exprs if e is not None]
 
 
 def _constants_and_parameters(scope: _Scope, body: list[Statement]) -> list[str]:
@@ -376,9 +383,7 @@ def _rates(scope: _Scope, by_kind: dict[str, list[Statement]], dynamic: set[str]
         if target is None or target.kind != "state":
             _orphan_rate(scope, st, target, dynamic)
         elif name in rate_stmts:
-            first = rate_stmts[name].span.line
-            scope.add("duplicate-name", f"second rate for state '{name}' (the first is on line {first})",
-                      st.name_span, anchors.rate(name, "twice"))
+            scope.names.second_rate(st, rate_stmts[name])
         else:
             rate_stmts[name] = st
             rates[name] = _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=anchors.rate(name))
@@ -386,19 +391,14 @@ def _rates(scope: _Scope, by_kind: dict[str, list[Statement]], dynamic: set[str]
     for st in by_kind.get("state", []):
         name = st.name or ""
         if scope.owns(st) and name not in rate_stmts:
-            scope.add("missing-rate", f"state '{name}' has no rate", st.name_span, anchors.declaration("state", name),
-                      hint=f"add `rate {name} = ...`")
+            scope.names.missing_rate(st)
     return rates, rate_stmts
 
 
 def _orphan_rate(scope: _Scope, st: Statement, target: Statement | None, dynamic: set[str]) -> None:
     """A rate for a name that is not a state: reported, and its expression still checked."""
-    name = st.name or ""
-    what = f"the {target.kind} '{name}'" if target is not None else f"'{name}', which is not declared"
-    close = _did_you_mean(scope, name, ("state",)) if target is None else None
-    scope.add("orphan-rate", f"rate for {what}; rates belong to states", st.name_span, anchors.rate(name),
-              hint=close or f"declare `state {name}` or remove this rate")
-    _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=anchors.rate(name))
+    scope.names.orphan_rate(st, target)
+    _resolve(scope, st.expr, allowed=scope.allowed(dynamic), where=anchors.rate(st.name))
 
 
 def _outputs(scope: _Scope, stmts: list[Statement], dynamic: set[str], inputs: tuple[str, ...]
@@ -429,16 +429,6 @@ def _outputs(scope: _Scope, stmts: list[Statement], dynamic: set[str], inputs: t
 
 # -- helpers ----------------------------------------------------------------------
 
-def _declare(scope: _Scope, st: Statement) -> None:
-    name = st.name or ""
-    first = scope.declared.get(name)
-    if first is not None:
-        scope.add("duplicate-name", f"'{name}' is already declared as a {first.kind} on line {first.span.line}",
-                  st.name_span, anchors.declaration(st.kind, name, "twice"))
-        return
-    scope.declared[name] = st
-
-
 def _let_names(scope: _Scope) -> list[str]:
     return [str(s) for s in scope.lets]
 
@@ -453,19 +443,7 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
     if expr is None:
         return None
     _mark_used(scope, expr)
-    ok = True
-    for ref in expr.names:
-        target = scope.declared.get(ref.name)
-        if target is None:
-            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, anchors.about("name", ref.name, "in", st.kind, st.name),
-                      hint=_did_you_mean(scope, ref.name, ("const", "param")))
-            ok = False
-        elif target.kind not in ("const", "param") or target.span.line > st.span.line or target is st:
-            why = "is declared later" if target.kind in ("const", "param") else f"is a {target.kind}"
-            scope.add("unknown-name", f"'{ref.name}' {why}; a {st.kind} value may use only earlier constants and parameters",
-                      ref.span, anchors.about("name", ref.name, "in", st.kind, st.name))
-            ok = False
-    if not ok:
+    if not scope.names.constant_refs(st, expr):
         return None
     value = _substituted(expr.value, expr.span, scope.constants)
     if value.free_symbols:
@@ -532,16 +510,8 @@ def _nominals(scope: _Scope) -> dict[sp.Symbol, sp.Expr]:
 
 def _range_value(scope: _Scope, st: Statement, expr: Expression) -> sp.Expr | None:
     _mark_used(scope, expr)
-    for ref in expr.names:
-        target = scope.declared.get(ref.name)
-        if target is None:
-            scope.add("unknown-name", f"unknown name '{ref.name}'", ref.span, anchors.about("name", ref.name, "in", "range", st.name),
-                      hint=_did_you_mean(scope, ref.name, ("const", "param")))
-            return None
-        if target.kind not in ("const", "param"):
-            scope.add("bad-range", f"range of '{st.name}' uses the {target.kind} '{ref.name}'; ranges must be constant",
-                      ref.span, anchors.range_of(st.name, "not", "constant"))
-            return None
+    if not scope.names.range_refs(st, expr):
+        return None
     value = _substituted(expr.value, expr.span, scope.constants, _nominals(scope))
     if value.free_symbols or not value.is_finite:
         scope.add("bad-range", f"range bound of '{st.name}' is not a finite number", expr.span, anchors.range_of(st.name, "bound"))
@@ -558,24 +528,7 @@ def _resolve(scope: _Scope, expr: Expression | None, allowed: set[str], where: s
     if expr is None:
         return sp.Integer(0)
     _mark_used(scope, expr)
-    for ref in expr.names:
-        if ref.name in allowed or symbol(ref.name) in scope.constants:
-            continue
-        target = scope.declared.get(ref.name)
-        if target is None:
-            message = f"unknown name '{ref.name}'"
-            hint = _did_you_mean(scope, ref.name, ("const", "param", "state", "input", "let"))
-        elif target.kind == "let" and where == anchors.let(ref.name):
-            message = f"'{ref.name}' is used in its own definition; a definition cannot use itself"
-            hint = "give the value it builds on a name of its own, defined before this line"
-        elif target.kind == "let":
-            message = f"'{ref.name}' is defined later (line {target.span.line}); define it before use"
-            hint = None
-        else:
-            message = f"'{ref.name}' is an {target.kind}" if target.kind[0] in "aeiou" else f"'{ref.name}' is a {target.kind}"
-            message += " and cannot be used here"
-            hint = "outputs are named by expect/waive, not used in expressions" if target.kind == "output" else None
-        scope.add("unknown-name", message, ref.span, anchors.about("name", ref.name, "in", where), hint=hint)
+    scope.names.dynamic_refs(expr, allowed, lambda name: symbol(name) in scope.constants, where)
     value = _substituted(expr.value, expr.span, scope.lets, scope.constants)
     hidden = [_substituted(p, expr.span, scope.lets, scope.constants) for p in expr.hidden]
     for ref in expr.names:
@@ -747,8 +700,7 @@ def _points(scope: _Scope, stmts: list[Statement], states: tuple[str, ...]) -> l
     for st in stmts:
         name = st.name or ""
         if name in seen:
-            scope.add("duplicate-name", f"point '{name}' is already declared on line {seen[name].span.line}",
-                      st.name_span, anchors.point(name, "twice"))
+            scope.names.second_point(st, seen[name])
             continue
         seen[name] = st
         values, value_spans, given = _point_assignments(scope, st)
@@ -772,16 +724,10 @@ def _point_assignments(scope: _Scope, st: Statement) -> tuple[dict[str, sp.Expr]
     value_spans: dict[str, Span] = {}
     given: set[str] = set()
     for target, expr in st.assignments:
-        kind = scope.declared.get(target.name)
-        if kind is None or kind.kind not in ("state", "input"):
-            what = f"a {kind.kind}" if kind is not None else "not declared"
-            scope.add("unknown-name", f"point '{name}' sets '{target.name}', which is {what}; points set states and inputs",
-                      target.span, anchors.point(name, "sets", target.name), point=name,
-                      hint=_did_you_mean(scope, target.name, ("state", "input")))
+        if not scope.names.point_target(name, target):
             continue
         if target.name in values:
-            scope.add("duplicate-name", f"point '{name}' sets '{target.name}' twice", target.span,
-                      anchors.point(name, "sets", target.name, "twice"), point=name)
+            scope.names.set_twice(name, target)
             continue
         given.add(target.name)
         value = _point_value(scope, name, target.name, expr)
@@ -827,23 +773,16 @@ def _point_value(scope: _Scope, point: str, target: str, expr: Expression) -> sp
     """A point value: a constant expression in numbers, constants, parameters and
     definitions (``let``) whose expansion uses only those."""
     _mark_used(scope, expr)
-    for ref in expr.names:
-        decl = scope.declared.get(ref.name)
-        if decl is not None and decl.kind in ("const", "param"):
-            continue
-        if decl is not None and decl.kind == "let" and symbol(ref.name) in scope.lets:
-            dynamic = sorted(str(s) for s in scope.lets[symbol(ref.name)].free_symbols
-                             if (scope.declared.get(str(s)) or decl).kind in ("state", "input"))
-            if not dynamic:
-                continue
-            kind = scope.declared[dynamic[0]].kind
-            what = f"the definition '{ref.name}', which depends on the {kind} '{dynamic[0]}'"
-        else:
-            what = f"the {decl.kind} '{ref.name}'" if decl is not None else f"unknown name '{ref.name}'"
-        scope.add("unknown-name", f"point '{point}' value uses {what}; point values must be constant",
-                  ref.span, anchors.point(point, "value", target), point=point,
-                  hint=(_did_you_mean(scope, ref.name, ("const", "param", "let")) if decl is None else None)
-                  or "a point value may use numbers, constants, parameters and definitions built from them")
+
+    def dynamic_of(let: str) -> list[str]:
+        """The states and inputs the definition's value uses, by name."""
+        value = scope.lets.get(symbol(let))
+        if value is None:
+            return []
+        return sorted(str(s) for s in value.free_symbols
+                      if (decl := scope.declared.get(str(s))) is not None and decl.kind in ("state", "input"))
+
+    if not scope.names.point_value_refs(point, target, expr, dynamic_of):
         return None
     value = _substituted(expr.value, expr.span, scope.lets, scope.constants, _nominals(scope))
     if value.has(sp.zoo, sp.nan) or value.free_symbols:
@@ -897,9 +836,7 @@ def _claim(scope: _Scope, st: Statement, outputs: list[str], point_names: set[st
         scope.add("unknown-reference", f"unknown claim '{claim.kind}'", claim.span, anchors.about("claim", claim.kind),
                   hint=f"did you mean `{close}`?" if close else "claims: " + ", ".join(CLAIMS))
         return None
-    if (claim.output is not None) != (claim.kind == "relative_degree"):
-        form = "relative_degree(OUTPUT) = N" if claim.kind == "relative_degree" else claim.kind
-        scope.add("syntax", f"write this claim as `expect {form}`", claim.span, anchors.about("claim", "form", claim.kind))
+    if not scope.names.claim_form(claim):
         return None
     ok, value = _claimed_degree(scope, claim, outputs) if claim.output is not None else (True, None)
     at = st.at_point
@@ -955,7 +892,7 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
             scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,
                       anchors.about("waive", "point", at.name), hint=_suggest(at.name, point_names) or _choices("points", point_names))
         elif not (st.doc or "").strip():
-            scope.add("syntax", "a waiver needs a reason", st.span, anchors.about("waive", rule.name, "reason"))
+            scope.names.waiver_without_reason(st)
         elif (first := seen.get((rule.name, at.name if at else None))) is not None:
             where = f" at {at.name}" if at else ""
             scope.add("unused-waiver", f"the waiver of '{rule.name}'{where} repeats the one on line {first.line}: it "
@@ -971,16 +908,6 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
 def _suggest(name: str, candidates: "list[str] | set[str] | tuple[str, ...]") -> str | None:
     close = near_miss(name, set(candidates))
     return f"did you mean `{close}`?" if close else None
-
-
-def _did_you_mean(scope: _Scope, name: str, kinds: tuple[str, ...]) -> str | None:
-    """``did you mean `z` (the state)?`` for a near-miss of a declared name of these kinds."""
-    pool = {n: st.kind for n, st in scope.declared.items() if st.kind in kinds}
-    close = near_miss(name, set(pool))
-    if close is None:
-        return None
-    kind = {"const": "constant", "param": "parameter", "let": "definition"}.get(pool[close], pool[close])
-    return f"did you mean `{close}` (the {kind})?"
 
 
 def _choices(what: str, names: set[str]) -> str:

@@ -1,5 +1,6 @@
 """What reading a file and building its expressions share: the functions of the language,
-the records of a parsed expression and the helpers that locate and word problems.
+the records of what an expression mentions and of its value, the limits on numbers and
+powers, and the helpers that locate and word problems.
 
 No sympy and no lark parser here: :mod:`plantlint.language.syntax` (text to statements)
 and :mod:`plantlint.language.expressions` (an expression's exact value) both build on it.
@@ -7,13 +8,16 @@ and :mod:`plantlint.language.expressions` (an expression's exact value) both bui
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from difflib import get_close_matches
-from typing import TYPE_CHECKING, Sequence
+from fractions import Fraction
+from typing import TYPE_CHECKING, Iterator, Sequence
 
 from lark import Token, Tree
 
+from plantlint.core import anchors
 from plantlint.core.catalogue import finding
+from plantlint.core.limits import MAX_EXPONENT, MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10, MAX_POWER_BITS
 from plantlint.core.findings import Finding, Span
 
 if TYPE_CHECKING:
@@ -50,24 +54,12 @@ class CallRef:
 
 
 @dataclass(frozen=True)
-class Expression:
-    """A parsed expression: its exact value (names as real symbols) and what it mentions."""
+class Built:
+    """An expression's exact value and its parts as written (see :class:`Expression`)."""
 
     value: sp.Expr
-    span: Span
-    names: tuple[NameRef, ...]
-    calls: tuple[CallRef, ...]
-    #: the parse tree it was built from (read by the unit checker; not part of equality)
-    tree: Tree | Token | None = field(default=None, compare=False, repr=False)
-    #: singular parts as written (x^(-1), log(x), asin(x), ...) that the exact value no longer
-    #: shows: ``x^(-1)*x`` is 1 and ``exp(log(x))`` is x, but as written they are undefined at
-    #: x = 0; the domain checks take these parts too
     hidden: tuple[sp.Expr, ...] = ()
-    #: calls and powers whose exact value is not smooth although the function is: sqrt(x^2)
-    #: is abs(x) for real x (span, what was written, unevaluated; its value)
     kinks: tuple[tuple[Span, sp.Expr, sp.Expr], ...] = ()
-    #: calls of numbers outside the function's domain, as written: (span, log(0)) or
-    #: (span, sqrt(-1)); the model finding points at them rather than at the whole expression
     undefined_calls: tuple[tuple[Span, sp.Expr], ...] = ()
 
 
@@ -103,3 +95,47 @@ def near_miss(name: str, candidates: Sequence[str] | set[str] | frozenset[str]) 
         return same[0]
     close = get_close_matches(name, pool, n=1, cutoff=0.75 if len(name) <= 3 else 0.6)
     return close[0] if close else None
+
+
+def operands_first(root: Tree | Token) -> Iterator[Tree | Token]:
+    """Every node under ``root``, each after its operands, without recursion; operands
+    come off a stack, the last first. The name token of a ``name`` or ``call`` node is
+    part of that node, not an operand."""
+    stack: list[tuple[Tree | Token, bool]] = [(root, False)]
+    while stack:
+        node, expanded = stack.pop()
+        if expanded or isinstance(node, Token):
+            yield node
+            continue
+        stack.append((node, True))
+        named = node.data in ("call", "name")
+        for child in node.children:
+            if child is not None and not (named and isinstance(child, Token)):
+                stack.append((child, False))
+
+
+def number(tok: Token) -> Fraction:
+    """A decimal literal as an exact rational (never a binary float), or the problem with it."""
+    text = str(tok)
+    mantissa, _, exponent = text.lower().partition("e")
+    exp10 = int(exponent) if exponent else 0
+    digits = mantissa.replace(".", "")
+    if abs(exp10) > MAX_LITERAL_EXP10 or len(digits) > MAX_LITERAL_DIGITS:
+        raise ParseProblem(syntax_problem(f"number {text[:20]}{'...' if len(text) > 20 else ''} is out of range",
+                                          span_of(tok), anchor=anchors.problem("number range")))
+    return Fraction(mantissa) * (Fraction(10) ** exp10)
+
+
+def check_power(base: Fraction | None, exponent: Fraction, span: Span) -> None:
+    """Refuse a rational exponent beyond the supported range, and a power of a rational
+    number too large to compute exactly (the value builder applies the same limits to
+    what it meets as numbers)."""
+    big = max(abs(exponent.numerator), exponent.denominator)
+    if big > MAX_EXPONENT:
+        raise ParseProblem(syntax_problem(f"exponent {shorten(str(exponent))} is beyond the supported range "
+                                          f"(|p|, |q| <= {MAX_EXPONENT})", span, anchor=anchors.problem("exponent range")))
+    if base is not None:
+        bits = max(abs(base.numerator), base.denominator, 1).bit_length()
+        if bits * abs(exponent.numerator) > MAX_POWER_BITS:
+            raise ParseProblem(syntax_problem("this power of a number is too large to compute exactly", span,
+                                              anchor=anchors.problem("power size")))

@@ -1,11 +1,11 @@
-"""Reading ``.plant`` text into statements with exact sympy expressions.
+"""Reading ``.plant`` text into statements, without sympy.
 
-The grammar lives in ``grammar/plant.lark``. Expressions are built from the
-parse tree node by node (never from the text; :mod:`plantlint.language.expressions`,
-imported at the first expression, so a file that does not parse is reported
-without sympy), with every name and function
-call remembered together with its source span so findings can point at it.
-Hostile input (huge files, deep nesting, huge exponents, bad bytes) is turned
+The grammar lives in ``grammar/plant.lark``. Each expression is read from the parse
+tree (never from the text) for the names and function calls it mentions, each with its
+source span so findings can point at it; its exact value is built from the same tree on
+first use (:mod:`plantlint.language.expressions`). So a file that does not parse, or
+whose names do not resolve (:mod:`plantlint.language.names`), is reported without
+sympy. Hostile input (huge files, deep nesting, huge exponents, bad bytes) is turned
 into a ``syntax`` finding before it can cost time or memory.
 """
 
@@ -15,8 +15,10 @@ import hashlib
 import io
 import re
 from dataclasses import dataclass, field
+from fractions import Fraction
 from functools import lru_cache
 from pathlib import Path
+from typing import TYPE_CHECKING, Callable, Optional
 
 import lark
 from lark import Lark, Token, Tree
@@ -24,16 +26,90 @@ from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput
 
 from plantlint.core import anchors
 from plantlint.core.findings import Finding, Span
+from plantlint.core.catalogue import finding
 from plantlint.core.limits import MAX_BYTES, MAX_DEPTH, MAX_NAME, MAX_STATEMENTS, MAX_TOKENS
 from plantlint.core.resources import data_path
-from plantlint.language.source import (FUNCTIONS, Expression, NameRef, ParseProblem, near_miss, shorten,
-                                       span_of, syntax_problem)
+from plantlint.language.source import (FUNCTIONS, Built, CallRef, NameRef, ParseProblem, check_power, near_miss,
+                                       number, operands_first, shorten, span_of, syntax_problem)
+
+
+if TYPE_CHECKING:
+    import sympy as sp
 
 
 KEYWORDS = frozenset(
     "plant const param state input let rate output point expect waive at in".split()
 )
 RESERVED = KEYWORDS | frozenset(FUNCTIONS) | {"pi"}
+
+
+class Expression:
+    """A parsed expression: what it mentions, read from its parse tree without sympy, and its
+    exact value (names as real symbols), built from the same tree on first use.
+
+    ``names`` and ``calls`` come from :func:`plantlint.language.syntax.mentions`; the value
+    and the parts as written (``hidden``, ``kinks``, ``undefined_calls``) from
+    :mod:`plantlint.language.expressions`, which imports sympy. So a model whose names do
+    not resolve is answered without sympy: nothing asks for a value.
+
+    Building the value can still find a problem the walk could not (a power of numbers
+    reached only through a function, ``sqrt(4)^(10^6)``): it raises :class:`ParseProblem`,
+    and the model build asks for every value first, in statement order, to report it.
+    """
+
+    __slots__ = ("span", "names", "calls", "tree", "_built")
+
+    def __init__(self, span: Span, names: tuple[NameRef, ...], calls: tuple[CallRef, ...],
+                 tree: Tree | Token | None = None, built: Built | None = None):
+        self.span = span
+        self.names = names
+        self.calls = calls
+        #: the parse tree (read by the value builder and the unit checker)
+        self.tree = tree
+        self._built = built
+
+    def _value_parts(self) -> Built:
+        if self._built is None:
+            from plantlint.language.expressions import build_value  # sympy: only once a value is asked for
+
+            assert self.tree is not None, "an expression without a tree carries its value"
+            self._built = build_value(self.tree)
+        return self._built
+
+    @property
+    def value(self) -> sp.Expr:
+        return self._value_parts().value
+
+    @property
+    def hidden(self) -> tuple[sp.Expr, ...]:
+        """Singular parts as written (x^(-1), log(x), asin(x), ...) that the exact value no
+        longer shows: ``x^(-1)*x`` is 1 and ``exp(log(x))`` is x, but as written they are
+        undefined at x = 0; the domain checks take these parts too."""
+        return self._value_parts().hidden
+
+    @property
+    def kinks(self) -> tuple[tuple[Span, sp.Expr, sp.Expr], ...]:
+        """Calls and powers whose exact value is not smooth although the function is:
+        sqrt(x^2) is abs(x) for real x (span, what was written, unevaluated; its value)."""
+        return self._value_parts().kinks
+
+    @property
+    def undefined_calls(self) -> tuple[tuple[Span, sp.Expr], ...]:
+        """Calls of numbers outside the function's domain, as written: (span, log(0)) or
+        (span, sqrt(-1)); the model finding points at them rather than at the whole expression."""
+        return self._value_parts().undefined_calls
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Expression):
+            return NotImplemented
+        return (self.span, self.names, self.calls) == (other.span, other.names, other.calls) and self.value == other.value
+
+    def __hash__(self) -> int:
+        return hash((self.span, self.names, self.calls))
+
+    def __repr__(self) -> str:
+        return f"Expression(span={self.span!r}, names={self.names!r}, calls={self.calls!r})"
+
 
 
 @dataclass(frozen=True)
@@ -578,10 +654,8 @@ class _Builder:
         return self.expression(lo), self.expression(hi), span_of(rng)
 
     def expression(self, root: Tree | Token) -> Expression:
-        """The exact value of an expression subtree, with what it mentions."""
-        from plantlint.language.expressions import build_expression  # sympy: only once there is an expression
-
-        return build_expression(root)
+        """An expression subtree: what it mentions now, its exact value on first use."""
+        return mentions(root)
 
 
 def _doc(tree: Tree | None) -> str | None:
@@ -615,3 +689,135 @@ def _at(tree: Tree | None) -> NameRef | None:
         return None
     tok = tree.children[0]
     return NameRef(str(tok), span_of(tok))
+
+
+# -- what an expression mentions --------------------------------------------------
+
+def mentions(root: Tree | Token) -> Expression:
+    """An expression read from its parse tree without sympy: the names and calls it
+    mentions, and every problem that needs no value (unknown function, number of
+    arguments, long name, number out of range, and a power of numbers too large to
+    compute, where its operands are rational numbers written with + - * / ^). Its exact
+    value is built on first use (:class:`Expression`)."""
+    return _Reader().read(root)
+
+
+#: A node's value as far as the reader follows it: a rational number, or None for anything
+#: else (a name, a function's value, pi, a quotient by zero, a root).
+_Rational = Optional[Fraction]
+
+
+class _Reader:
+    """The walk behind :func:`mentions`. It visits the nodes in the order the value builder
+    (:mod:`plantlint.language.expressions`) does, after their operands, which come off a
+    stack: the last operand first. That order is part of the behaviour: unknown functions
+    are collected (every one is named, in source order); of two other problems in one
+    expression the last is reported; ``names`` and ``calls`` list the last mention first,
+    which decides the mention a model finding points at (the first offending name in
+    ``names``).
+
+    lark's ``Transformer_NonRecursive`` was tried in the builder's place: no recursion
+    either, the same spans and the same time within the noise of measurement (the largest
+    benchmark models, a 9,000-term sum), but it visits left to right. The lists can be
+    put back in this order afterwards; which of two other problems is reported cannot,
+    and every problem would come wrapped in a ``VisitError``. So the walk stays explicit.
+    """
+
+    def __init__(self) -> None:
+        self.names: list[NameRef] = []
+        self.calls: list[CallRef] = []
+        self.unknown: list[Finding] = []
+        self.numbers: dict[int, _Rational] = {}  # by id(): tokens compare equal by their text
+
+    def read(self, root: Tree | Token) -> Expression:
+        for node in operands_first(root):
+            self.numbers[id(node)] = self._token(node) if isinstance(node, Token) else self._node(node)
+        if self.unknown:
+            first, *rest = sorted(self.unknown, key=lambda f: (f.span.line, f.span.column) if f.span else (0, 0))
+            raise ParseProblem(first, *rest)
+        return Expression(span_of(root), tuple(self.names), tuple(self.calls), root)
+
+    def _token(self, tok: Token) -> _Rational:
+        if tok.type == "NUMBER":
+            return number(tok)
+        raise ParseProblem(syntax_problem(f"unexpected '{shorten(str(tok))}'", span_of(tok)))
+
+    def _node(self, node: Tree) -> _Rational:
+        rule = self._RULES.get(node.data)
+        if rule is None:
+            raise ParseProblem(syntax_problem(f"cannot read {node.data}", span_of(node)))
+        return rule(self, node)
+
+    def _of(self, node: Tree | Token) -> _Rational:
+        return self.numbers[id(node)]
+
+    def _number(self, node: Tree) -> _Rational:
+        return self._of(node.children[0])
+
+    def _name(self, node: Tree) -> _Rational:
+        tok = node.children[0]
+        name = str(tok)
+        if len(name) > MAX_NAME:
+            raise ParseProblem(syntax_problem(f"name of {len(name)} characters; names are limited to {MAX_NAME}",
+                                              span_of(tok), anchor=anchors.problem("long name")))
+        if name != "pi":
+            self.names.append(NameRef(name, span_of(tok)))
+        return None
+
+    def _call(self, node: Tree) -> _Rational:
+        fname_tok, *arg_nodes = node.children
+        fname = str(fname_tok)
+        arity = sum(1 for a in arg_nodes if a is not None)
+        span = span_of(node)
+        self.calls.append(CallRef(fname, span))
+        expected = FUNCTIONS.get(fname)
+        if expected is None:
+            # recorded, and the walk goes on (the value builder's stand-in for an unknown
+            # function is 0) so that every unknown function of the expression is named
+            close = near_miss(fname, FUNCTIONS)
+            self.unknown.append(finding(
+                "unknown-name", f"unknown function '{fname}'", span_of(fname_tok),
+                hint=f"did you mean `{close}`?" if close else "functions: " + ", ".join(sorted(FUNCTIONS)),
+                anchor=anchors.problem(f"function {fname}")))
+            return Fraction(0)
+        if arity != expected:
+            raise ParseProblem(syntax_problem(f"{fname} takes {expected} argument{'s' if expected > 1 else ''}, got {arity}",
+                                              span))
+        return None
+
+    def _neg(self, node: Tree) -> _Rational:
+        a = self._of(node.children[0])
+        return None if a is None else -a
+
+    def _pos(self, node: Tree) -> _Rational:
+        return self._of(node.children[0])
+
+    def _binary(self, node: Tree, op: Callable[[Fraction, Fraction], _Rational]) -> _Rational:
+        a, b = (self._of(c) for c in node.children)
+        return None if a is None or b is None else op(a, b)
+
+    def _add(self, node: Tree) -> _Rational:
+        return self._binary(node, lambda a, b: a + b)
+
+    def _sub(self, node: Tree) -> _Rational:
+        return self._binary(node, lambda a, b: a - b)
+
+    def _mul(self, node: Tree) -> _Rational:
+        return self._binary(node, lambda a, b: a * b)
+
+    def _div(self, node: Tree) -> _Rational:
+        return self._binary(node, lambda a, b: a / b if b != 0 else None)
+
+    def _pow(self, node: Tree) -> _Rational:
+        base, exponent = (self._of(c) for c in node.children)
+        if exponent is None:
+            return None
+        check_power(base, exponent, span_of(node))
+        if base is None or exponent.denominator != 1 or (base == 0 and exponent < 0):
+            return None
+        return base ** exponent.numerator
+
+    _RULES: dict[str, Callable[["_Reader", Tree], _Rational]] = {
+        "number": _number, "name": _name, "call": _call, "neg": _neg, "pos": _pos,
+        "add": _add, "sub": _sub, "mul": _mul, "div": _div, "pow": _pow,
+    }

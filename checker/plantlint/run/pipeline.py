@@ -85,24 +85,38 @@ class RawResult:
 def read_model(data: bytes, path: str = "") -> tuple[Any, list[Finding]]:
     """Bytes to (Model or None, model findings). Never raises on bad input.
 
-    A file that does not parse has no statements and nothing to resolve: it is reported
-    without importing the model layer (and sympy)."""
+    A file that does not parse, or whose names do not resolve, is reported without
+    importing the model layer (and sympy): nothing of it needs a value."""
+    model, findings, _ = _read(data, path)
+    return model, findings
+
+
+def _read(data: bytes, path: str = "") -> tuple[Any, list[Finding], str | None]:
+    """:func:`read_model`, with the plant's name (also of a model stopped by its names)."""
     from plantlint.language.syntax import decode, parse_text
 
     text, problem = decode(data)
     if problem is not None or text is None:
-        return None, [problem] if problem else []
+        return None, [problem] if problem else [], None
     parsed = parse_text(text)
-    if parsed.findings and not parsed.statements:
-        return None, list(parsed.findings)  # what build_model says of it, without sympy
+    if parsed.findings:
+        return None, list(parsed.findings), None  # what build_model says of it, without sympy
+    from plantlint.language.names import name_problems
+
+    stopping = name_problems(parsed)
+    if stopping:
+        # like a file that does not parse, it is not read as a model: its units and values
+        # are looked at once its names resolve (a waiver of a unit rule needs the model)
+        header = parsed.statements[0] if parsed.statements and parsed.statements[0].kind == "plant" else None
+        return None, stopping, header.name if header is not None else None
     from plantlint.language.model import build_model
 
     model, findings = build_model(parsed, path)
-    if model is not None and not parsed.findings:
+    if model is not None:
         from plantlint.language.units import check_units  # pint only when units are declared
 
         findings = [*findings, *check_units(parsed.statements)]
-    return model, findings
+    return model, findings, model.name if model is not None else None
 
 
 Progress = Callable[[str, RawResult], None]
@@ -128,8 +142,8 @@ def analyse_bytes(data: bytes, settings: AnalysisSettings | Config = AnalysisSet
 
 def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None, explain: bool) -> RawResult:
     """:func:`analyse_bytes` without the record of time bounds."""
-    model, findings = read_model(data)
-    result = RawResult(findings=list(findings))
+    model, findings, plant = _read(data)
+    result = RawResult(plant=plant, findings=list(findings))
     if model is None:
         return result
     result.plant = model.name

@@ -417,19 +417,24 @@ _WARM_UP = (b"plant warm\nconst k = 2 [1/s]\nconst L = 1 [m]\nconst v = 1 [m/s]\
             b"input u [m/s] in -1 .. 1\nrate x = -k*x + u/(1 + (x/L)^2) + v*sin(x/L)^2\noutput y [m] = x\n")
 
 
-def _parses(data: bytes) -> bool:
-    """Will the model get as far as the analysis (decoded and parsed; ~5 ms a model)?"""
-    from plantlint.language.syntax import decode, parses
+def _reaches_values(data: bytes) -> bool:
+    """Will the model get as far as building values (decoded, parsed, its names resolved;
+    a few milliseconds a model)? One that does not is answered without sympy."""
+    from plantlint.language.names import name_problems
+    from plantlint.language.syntax import decode, parse_text, parses
 
     text, problem = decode(data)
-    return problem is None and text is not None and parses(text)
+    if problem is not None or text is None or not parses(text):
+        return False
+    parsed = parse_text(text)
+    return not parsed.findings and not name_problems(parsed)
 
 
 def _preload(datas: list[bytes]) -> None:
     """Import before forking what every worker would import, so that workers start warm
     (the engine and what it loads on first use) and a model's time budget is spent on its
-    analysis, not on imports. Skipped for a single file that does not parse: it is
-    reported without sympy."""
+    analysis, not on imports. Skipped for a single file that does not parse or whose
+    names do not resolve: it is reported without sympy."""
     for module in _PRELOAD:
         importlib.import_module(module)
     from plantlint.run.pipeline import read_model
@@ -456,7 +461,7 @@ def analyse_all(
     ``explain``, each result also carries the derivation that explain shows)."""
     if not datas:
         return []
-    if len(datas) > 1 or _parses(datas[0]):
+    if len(datas) > 1 or _reaches_values(datas[0]):
         _preload(datas)
 
     ctx = _context()

@@ -78,6 +78,9 @@ class Analysis:
     distributions: DistributionStructure | None = None
     findings: list[Finding] = field(default_factory=list)
     completed: list[str] = field(default_factory=list)  # stages finished, in order
+    #: claim checks already made, by what they depend on: the claims are checked again after
+    #: every stage (progress snapshots), and a proof over a parameter box costs time
+    claim_memo: dict[tuple[Any, ...], Any] = field(default_factory=dict, repr=False, compare=False)
 
     def done(self, name: str, stage: Stage | None) -> None:
         self.completed.append(name)
@@ -437,7 +440,11 @@ def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, 
             origin = (f"; {c.value} is the relative degree of the linearisation at point '{linear[0]}', where the "
                       "nonlinear relative degree is not defined" if linear else "")
             return [(None, f"the relative degree of '{c.output}' is {_degree(generic)}{origin}")]
-        return _degree_over_parameters(a, c.output or "", generic)
+        # it reads the envelope only for its shortcut (regular over the whole box)
+        key = ("degree over parameters", c.output, generic, a.envelope is not None and a.envelope.regular is True)
+        if key not in a.claim_memo:
+            a.claim_memo[key] = _degree_over_parameters(a, c.output or "", generic)
+        return list(a.claim_memo[key])
     out = []
     for pa in _points_for(a, c):
         at = pa.structure.relative_degree.get(c.output or "") if pa.structure else None

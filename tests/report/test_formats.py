@@ -530,17 +530,66 @@ def test_waiver_changes_under_since_are_worded_as_waivers() -> None:
 
 
 def test_formats_are_loaded_when_asked_for() -> None:
-    """JSON, SARIF and the one-line format never load the terminal library (rich); the
-    text format does. A fresh interpreter, so that nothing else has imported it."""
+    """JSON, SARIF, the one-line format and the text format without colour never load the
+    terminal library (rich); the text format in colour does. Only a character beyond
+    ASCII in a quoted source line has plain text ask rich for its width in terminal cells
+    (rich.cells alone). A fresh interpreter, so that nothing else has imported rich."""
     code = ("import io, sys\n"
-            "from plantlint.core.findings import Report\n"
+            "from plantlint.core.findings import FileReport, Finding, Report, Severity, Span\n"
             "from plantlint.report.formats import get_formatter\n"
-            "for name in sys.argv[1:]:\n"
-            "    get_formatter(name).render(Report([], '0'), io.StringIO(), color=False)\n"
-            "print('rich' in sys.modules)\n")
-    for names, loaded in ((["json", "sarif", "lines"], "False"), (["text"], "True")):
-        out = subprocess.run([sys.executable, "-c", code, *names], capture_output=True, text=True, check=True)
-        assert out.stdout.strip() == loaded, names
+            "color, source = sys.argv[1] == 'color', sys.argv[2].replace('_', '\\u5f62')\n"
+            "f = Finding('unknown-name', Severity.ERROR, 'unknown name', Span(2, 5, 2, 6), anchor='x')\n"
+            "report = Report([FileReport('w.plant', 'w', [f], source=source)], '0')\n"
+            "for name in sys.argv[3:]:\n"
+            "    get_formatter(name).render(report, io.StringIO(), color=color)\n"
+            "print(' '.join(sorted(m for m in sys.modules if m.startswith('rich') and m.count('.') < 2)))\n")
+    ascii_source, wide_source = "plant w\nlet v = x\n", "plant w\nlet _ = x\n"
+    for args, check in (
+            (["plain", ascii_source, "json", "sarif", "lines", "text"], lambda loaded: loaded == []),
+            (["plain", wide_source, "text"], lambda loaded: "rich.cells" in loaded and "rich.console" not in loaded),
+            (["color", ascii_source, "text"], lambda loaded: "rich.console" in loaded)):
+        out = subprocess.run([sys.executable, "-c", code, *args], capture_output=True, text=True, check=True)
+        assert check(out.stdout.split()), (args, out.stdout)
+
+
+def _reports_to_draw() -> list[Report]:
+    """Reports with every part of the text layout: findings with excerpts, hints, waivers,
+    baselines and fixed findings, structure changes, adjustments, a double-width source
+    character, tabs, a long message that wraps and a file that could not be checked."""
+    from plantlint.core.findings import Stop
+
+    wide = Finding("unknown-name", Severity.ERROR, "unknown name '\u5f62\u72b6' " + "and a long explanation " * 12,
+                   Span(2, 5, 2, 7), hint="did you mean `x`? " * 8, anchor="let w")
+    reports = [_report(), _since_report(), Report([FileReport("w.plant", "w", [wide],
+                                                              source="plant w\nlet \u5f62\u72b6 = \tx\n")], "0.1.0")]
+    report = _report(adjustments=(Adjustment("skip", ("unused-name",), "demo", "plantlint.toml", None),))
+    report.files[1].stop = Stop("time", "envelope", ("structure",), "stopped at its 1 s budget in stage envelope")
+    reports.append(report)
+    return reports
+
+
+def test_plain_text_is_what_rich_draws_without_colour(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Without colour the text format writes its lines itself; rich without colour (the
+    console the format used before) draws the very same characters. The reference is
+    rich's own rendering of the same styled lines."""
+    from rich.console import Console
+
+    from plantlint.report.formats import text as text_format
+
+    def rich_plain(stream, color):  # type: ignore[no-untyped-def]
+        return text_format.ColourWriter(Console(
+            file=stream, force_terminal=False, no_color=True, color_system=None, width=text_format.report_width(),
+            highlight=False, markup=False, emoji=False, soft_wrap=False, legacy_windows=False))
+
+    for width in ("100", "60"):
+        monkeypatch.setenv("COLUMNS", width)
+        for report in _reports_to_draw():
+            plain = _render("text", report)
+            with monkeypatch.context() as m:
+                m.setattr(text_format, "make_writer", rich_plain)
+                drawn = _render("text", report)
+            assert plain == drawn
+            assert "\x1b[" not in plain
 
 
 def test_text_wrapping_keeps_assignments_whole_and_loses_no_word() -> None:

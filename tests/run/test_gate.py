@@ -454,3 +454,22 @@ def test_a_new_syntax_error_worded_like_the_old_one_is_introduced(tmp_path: Path
         assert run.code == code, run.stdout
         (file,) = run.json()["files"]
         assert [(f["rule"], f["baseline"]) for f in file["findings"] if f["baseline"] != "fixed"] == [("syntax", state)]
+
+
+def test_what_a_stopped_model_did_not_check_is_not_called_fixed(tmp_path: Path) -> None:
+    """A model that its own errors stop is checked only as far as it got: a typo in a
+    name stops it at its names, a kink at its values. A finding of the baseline from a
+    later step was not looked at, so it is left out, never reported as fixed; what the
+    step reached did check is (the unused constant, removed, is fixed)."""
+    spare = "const spare = 1\n"
+    base = {"typo.plant": model("typo", UNSTABLE, spare), "kink.plant": model("kink", UNSTABLE, spare),
+            "mended.plant": model("mended", UNSTABLE, spare)}
+    changed = {"typo.plant": model("typo", "z + xx", spare), "kink.plant": model("kink", "z + abs(x)"),
+               "mended.plant": model("mended", STABLE)}
+    repo, env = base_and_change(tmp_path, base, changed)
+    run = plantlint(repo, env, "check", "--since", "base", "--format", "json", "--no-cache", "plants")
+    files = {f["path"].removeprefix("plants/"): rules_by_state(f) for f in run.json()["files"]}
+    assert files["typo.plant"] == [("unknown-name", "introduced")]
+    assert files["kink.plant"] == [("non-smooth", "introduced"), ("unused-name", "fixed")]
+    assert files["mended.plant"] == [("unused-name", "fixed"), ("zero-dynamics-unstable", "fixed")]
+    assert run.code == 1

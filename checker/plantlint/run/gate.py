@@ -7,7 +7,8 @@ moving lines does not make old findings look new:
 
 - *known*: present at REF and now;
 - *introduced*: present now, not at REF (only these can fail the run);
-- *fixed*: present at REF, gone now.
+- *fixed*: present at REF, gone now, and looked for (a model stopped by its own errors is
+  checked only as far as it got: see :func:`checked_now`).
 
 The structural summary (relative degrees, envelope verdict, verdicts per point)
 is compared too, so a change such as minimum phase -> critical is reported even
@@ -202,11 +203,12 @@ def compare(report: FileReport, old_raw: RawResult | None, config: Config, defau
         else:
             marked.append(replace(f, baseline="introduced"))
     now = Counter(f.fingerprint(report.plant) for f in report.findings)
+    checked = checked_now(report)
     for f in old.sorted_findings():
         key = f.fingerprint(old.plant)
         if now[key] > 0:
             now[key] -= 1
-        else:
+        elif checked(f):
             marked.append(replace(f, baseline="fixed", span=None))
     report.findings = marked
     report.structure_changes = structure_changes(old_raw.analysis, report.analysis)
@@ -217,6 +219,30 @@ def compare(report: FileReport, old_raw: RawResult | None, config: Config, defau
         report.stop = blocked([f for f in marked if f.baseline != "fixed"],
                               f"known at {ref}: what changed since was not checked")
     return report
+
+
+def checked_now(report: FileReport) -> Any:
+    """Could this run have found a finding again? (A predicate on findings.)
+
+    A model that its own errors stop is checked only as far as it got, and a finding at
+    the baseline of a later step is not fixed, only not looked at: a file that does not
+    parse is checked for syntax alone; one whose names do not resolve for its names (the
+    stopping problems of :mod:`plantlint.language.names`); one read as a model but not
+    analysed for the model and its units. Such findings are left out of the comparison
+    (the run fails on the errors that stop it, or, when those were known at the baseline,
+    is not decided: what changed was not checked)."""
+    if report.analysis is not None or report.stop is not None:
+        return lambda f: True  # analysed, or stopped on the way (the stop says what is not decided)
+    from plantlint.core.catalogue import load_catalogue
+    from plantlint.language.names import STOPPING
+
+    rules = {f.rule for f in report.findings}
+    if rules <= {"syntax"}:
+        return lambda f: f.rule == "syntax"
+    if rules <= STOPPING:
+        return lambda f: f.rule in STOPPING
+    catalogue = load_catalogue()
+    return lambda f: f.rule in catalogue and catalogue.get(f.rule).family in ("model", "units")
 
 
 #: Zero-dynamics verdicts in the words the reports use (the analysis' own identifiers stay internal).

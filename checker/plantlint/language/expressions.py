@@ -16,12 +16,8 @@ from typing import Callable, TypeVar, Union
 import sympy as sp
 from lark import Token, Tree
 
-from plantlint.core import anchors
-from plantlint.core.catalogue import finding
-from plantlint.core.limits import MAX_NAME
-from plantlint.core.findings import Finding, Span
-from plantlint.language.source import (FUNCTIONS, SMOOTH_FUNCTIONS, Built, ParseProblem, check_power, near_miss,
-                                       number, operands_first, shorten, span_of, syntax_problem)
+from plantlint.core.findings import Span
+from plantlint.language.source import SMOOTH_FUNCTIONS, Built, check_power, number, operands_first, span_of
 
 
 def build_value(root: Tree | Token) -> Built:
@@ -60,27 +56,22 @@ class _ExpressionBuilder:
     recursion (deep input cannot overflow the stack here; parentheses and runs of signs
     are limited to MAX_DEPTH on the text, before parsing).
 
-    It visits the nodes in the order of the walk that read the expression's names
-    (:func:`plantlint.language.syntax.mentions`, where that order is explained), which
-    has already refused every problem it can find without values; the checks here that
-    repeat its checks are kept so that the builder refuses what it cannot build on its own.
-    What only a value shows (a power of numbers reached through a function) is refused
-    here, as a :class:`ParseProblem` the model build reports.
+    It builds only trees that the walk which read the expression's names
+    (:func:`plantlint.language.syntax.mentions`) accepted, in that walk's order: every
+    function is known and has its arguments, every name and number is within its
+    limits. What only a value shows (a power of numbers reached through a function) is
+    refused here, as a :class:`ParseProblem` the model build reports.
     """
 
     def __init__(self) -> None:
         self.values: dict[int, _Value] = {}  # by id(): tokens compare equal by their text
-        self.unknown: list[Finding] = []  # unknown functions: every one is reported, in order
         self.singular: list[sp.Expr] = []  # singular parts as built (see Built.hidden)
         self.kinks: list[tuple[Span, sp.Expr, sp.Expr]] = []
         self.undefined_calls: list[tuple[Span, sp.Expr]] = []
 
     def build(self, root: Tree | Token) -> Built:
         for node in operands_first(root):
-            self.values[id(node)] = self._token(node) if isinstance(node, Token) else self._node(node)
-        if self.unknown:
-            first, *rest = sorted(self.unknown, key=lambda f: (f.span.line, f.span.column) if f.span else (0, 0))
-            raise ParseProblem(first, *rest)
+            self.values[id(node)] = _number(node) if isinstance(node, Token) else self._RULES[node.data](self, node)
         value = _done(self.values[id(root)])
         hidden: tuple[sp.Expr, ...] = ()
         if self.singular:
@@ -98,17 +89,6 @@ class _ExpressionBuilder:
         if value.has(*_KINKED) and not any(a.has(*_KINKED) for a in args):
             self.kinks.append((span, written(), value))
 
-    def _token(self, tok: Token) -> sp.Expr:
-        if tok.type == "NUMBER":
-            return _number(tok)
-        raise ParseProblem(syntax_problem(f"unexpected '{shorten(str(tok))}'", span_of(tok)))
-
-    def _node(self, node: Tree) -> _Value:
-        rule = self._RULES.get(node.data)
-        if rule is None:
-            raise ParseProblem(syntax_problem(f"cannot read {node.data}", span_of(node)))
-        return rule(self, node)
-
     def _built(self, node: Tree | Token) -> sp.Expr:
         """The value of an operand (visited already), a collected sum or product built."""
         return _done(self.values[id(node)])
@@ -118,11 +98,7 @@ class _ExpressionBuilder:
         return self.values[id(node.children[0])]
 
     def _name(self, node: Tree) -> sp.Expr:
-        tok = node.children[0]
-        name = str(tok)
-        if len(name) > MAX_NAME:
-            raise ParseProblem(syntax_problem(f"name of {len(name)} characters; names are limited to {MAX_NAME}",
-                                       span_of(tok), anchor=anchors.problem("long name")))
+        name = str(node.children[0])
         if name == "pi":
             return sp.pi
         return symbol(name)
@@ -132,20 +108,7 @@ class _ExpressionBuilder:
         fname = str(fname_tok)
         args = [self._built(a) for a in arg_nodes if a is not None]
         span = span_of(node)
-        entry = FUNCTIONS.get(fname)
-        if entry is None:
-            # recorded, and the walk goes on (with a stand-in value) so that every unknown
-            # function of the expression is named, not only one
-            close = near_miss(fname, FUNCTIONS)
-            self.unknown.append(finding(
-                "unknown-name", f"unknown function '{fname}'", span_of(fname_tok),
-                hint=f"did you mean `{close}`?" if close else "functions: " + ", ".join(sorted(FUNCTIONS)),
-                anchor=anchors.problem(f"function {fname}")))
-            return sp.Integer(0)
-        arity, fn = entry, VALUES[fname]
-        if len(args) != arity:
-            raise ParseProblem(syntax_problem(f"{fname} takes {arity} argument{'s' if arity > 1 else ''}, got {len(args)}", span))
-        value = fn(*args)
+        value = VALUES[fname](*args)
         as_written = ((lambda: sp.Pow(args[0], sp.Rational(1, 2), evaluate=False)) if fname == "sqrt"
                       else (lambda: getattr(sp, fname)(*args, evaluate=False)))
         if fname in _SINGULAR_FUNCTIONS:

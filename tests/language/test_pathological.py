@@ -74,6 +74,16 @@ CASES: dict[str, tuple[Callable[[], bytes], str | None, int | None]] = {
     "tower_in_a_point": (lambda: b"plant p\nparam a = 12 in 6 .. 48\nparam b = 24\nstate x in -1 .. 1\n"
                                  b"input u in -1 .. 1\nrate x = -x + u\noutput y = x\n"
                                  b"point rest: x = 48^2^(a*b)\n", "syntax", 8),
+    # thousands of misspelt names among thousands of declared ones: hints within a budget
+    "many_misspelt_names": (lambda: ("plant p\n" + "".join(f"const kq{i:04d}x = {i}\n" for i in range(2000))
+                                     + "state x in -1 .. 1\ninput u in -1 .. 1\nrate x = u + "
+                                     + " + ".join(f"kq{i:04d}y" for i in range(2000)) + "\noutput y = x\n").encode(),
+                            "unknown-name", 2004),
+    # thousands of waivers naming points that are not declared, among thousands that are
+    "many_unknown_points": (lambda: ("plant p\nstate x in -1 .. 1\ninput u in -1 .. 1\nrate x = -x + u\noutput y = x\n"
+                                     + "".join(f"point p{i:04d}: x = 0\n" for i in range(1000))
+                                     + "".join(f'waive zero-dynamics-critical at q{i:04d} "r"\n' for i in range(1000))
+                                     ).encode(), "unknown-reference", 1006),
     "tower_below_limit": (lambda: b"plant p\nconst k = 10\nstate x in -1 .. 1\ninput u in -1 .. 1\n"
                                   b"rate x = -x + u/2^2^k\noutput y = x\n", None, None),
     "signs_below_limit": (lambda: _wrap("-" * 150 + "x + u"), None, None),
@@ -288,3 +298,17 @@ def test_shared_definitions_are_read_once_per_distinct_part() -> None:
     assert _not_real(a) is None
     small = (x + u) ** 2 * u + x
     assert _input_degree(small, frozenset({u})) == sp.Poly(small.expand(), u).degree() == 3
+
+
+def test_hints_stop_at_their_budget() -> None:
+    """Each "did you mean" compares a misspelt name with every declared name; a file of
+    2,000 misspelt names among 2,000 constants gets hints until the file's budget of
+    comparisons is spent, and the rest of its problems without one (each still reported)."""
+    from plantlint.language.names import HINT_COMPARISONS
+
+    raw = analyse_bytes(CASES["many_misspelt_names"][0](), Config())
+    unknown = [f for f in raw.findings if f.rule == "unknown-name"]
+    assert len(unknown) == 2000
+    hinted = [f for f in unknown if f.hint]
+    assert 0 < len(hinted) <= HINT_COMPARISONS // 2000
+    assert all(f.hint is not None and f.hint.startswith("did you mean `kq") for f in hinted)

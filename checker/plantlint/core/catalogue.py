@@ -192,7 +192,13 @@ def _load(folder: Path) -> Catalogue:
 
 def load_catalogue(folder: Path | None = None) -> Catalogue:
     """The catalogue shipped with plantlint (cached), or one read from ``folder``."""
-    return _load(folder if folder is not None else data_path("rules"))
+    return _load(folder) if folder is not None else _shipped()
+
+
+@cache
+def _shipped() -> Catalogue:
+    """The shipped catalogue, found once (every finding asks for it)."""
+    return _load(data_path("rules"))
 
 
 def finding(rule: str, message: str, span: Span | None = None, *, point: str | None = None,

@@ -842,7 +842,7 @@ def _claim(scope: _Scope, st: Statement, outputs: list[str], point_names: set[st
     at = st.at_point
     if at is not None and at.name not in point_names:
         scope.add("unknown-reference", f"expect names point '{at.name}', which is not declared", at.span,
-                  anchors.claim_reference("point", at.name), hint=_suggest(at.name, point_names) or _choices("points", point_names))
+                  anchors.claim_reference("point", at.name), hint=_suggest(scope, at.name, point_names) or _choices("points", point_names))
         ok = False
     if not ok:
         return None
@@ -857,7 +857,7 @@ def _claimed_degree(scope: _Scope, claim: Claim, outputs: list[str]) -> tuple[bo
     if claim.output.name not in outputs:
         scope.add("unknown-reference", f"expect names '{claim.output.name}', which is not an output",
                   claim.output.span, anchors.claim_reference("output", claim.output.name),
-                  hint=_suggest(claim.output.name, outputs) or (("outputs: " + ", ".join(outputs)) if outputs
+                  hint=_suggest(scope, claim.output.name, outputs) or (("outputs: " + ", ".join(outputs)) if outputs
                                                                 else "the model declares no output"))
         ok = False
     v = claim.value.value if claim.value else None
@@ -882,7 +882,7 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
         at = st.at_point
         if rule.name not in catalogue:
             scope.add("unknown-reference", f"waiver names unknown rule '{rule.name}'", rule.span, anchors.waive_reference(rule.name),
-                      hint=_suggest(rule.name, catalogue.ids()) or "`plantlint rules` lists the rule ids")
+                      hint=_suggest(scope, rule.name, catalogue.ids()) or "`plantlint rules` lists the rule ids")
         elif not catalogue.get(rule.name).waivable:
             why = ("they judge the waivers themselves" if rule.name in ("unused-waiver", "waiver-refused") else
                    "they mean the file was not read as a model, so nothing about it was checked")
@@ -890,7 +890,7 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
                       anchors.waive_reference(rule.name), hint="remove this waiver and fix what the rule reports")
         elif at is not None and at.name not in point_names:
             scope.add("unknown-reference", f"waiver names point '{at.name}', which is not declared", at.span,
-                      anchors.about("waive", "point", at.name), hint=_suggest(at.name, point_names) or _choices("points", point_names))
+                      anchors.about("waive", "point", at.name), hint=_suggest(scope, at.name, point_names) or _choices("points", point_names))
         elif not (st.doc or "").strip():
             scope.names.waiver_without_reason(st)
         elif (first := seen.get((rule.name, at.name if at else None))) is not None:
@@ -905,13 +905,21 @@ def _waivers(scope: _Scope, stmts: list[Statement], points: list[OperatingPoint]
     return waivers
 
 
-def _suggest(name: str, candidates: "list[str] | set[str] | tuple[str, ...]") -> str | None:
-    close = near_miss(name, set(candidates))
+def _suggest(scope: _Scope, name: str, candidates: "list[str] | set[str] | tuple[str, ...]") -> str | None:
+    close = scope.names.near(name, candidates)
     return f"did you mean `{close}`?" if close else None
 
 
+#: How many names a hint lists ("points: a, b, ...") before it says how many there are in all.
+LISTED_CHOICES = 12
+
+
 def _choices(what: str, names: set[str]) -> str:
-    return f"{what}: " + ", ".join(sorted(names)) if names else f"the model declares no {what}"
+    if not names:
+        return f"the model declares no {what}"
+    shown = sorted(names)
+    more = f", ... ({len(shown)} in all)" if len(shown) > LISTED_CHOICES else ""
+    return f"{what}: " + ", ".join(shown[:LISTED_CHOICES]) + more
 
 
 def _unused(scope: _Scope) -> None:

@@ -29,6 +29,12 @@ CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
 QUANTITY_KINDS = ("const", "param", "state", "input", "let", "output")
 #: The rules of the problems that stop a model before its analysis; this pass reports those.
 STOPPING = frozenset({"syntax", "unknown-name", "duplicate-name", "missing-rate", "orphan-rate"})
+#: How many candidate names the "did you mean" hints of one file may compare in all. difflib
+#: compares two similar names in about 10 microseconds, so a hostile file with thousands of
+#: misspelt names among thousands of declared ones would otherwise spend minutes on hints
+#: (2,000 of each: over 20 s; with the bound, about 0.2 s). Past it, problems are reported
+#: without a hint; a real model's few misspellings among its few dozen names stay far below.
+HINT_COMPARISONS = 20_000
 
 
 class Add(Protocol):
@@ -42,6 +48,7 @@ class Names:
     def __init__(self, add: Add, declared: dict[str, Statement] | None = None):
         self.add = add
         self.declared: dict[str, Statement] = {} if declared is None else declared
+        self.compared = 0  # candidate names compared for hints so far (HINT_COMPARISONS)
 
     def owns(self, st: Statement) -> bool:
         """Is ``st`` the declaration its name resolves to (not a duplicate)?"""
@@ -218,10 +225,18 @@ class Names:
         self.add("syntax", "a waiver needs a reason", st.span, anchors.about("waive", st.rule_id.name, "reason"))
 
     # hints --------------------------------------------------------------------------
+    def near(self, name: str, candidates: "set[str] | list[str] | tuple[str, ...]") -> str | None:
+        """The candidate a misspelt ``name`` most likely means (:func:`near_miss`), within
+        the file's budget of comparisons (None once it is spent)."""
+        self.compared += len(candidates)
+        return near_miss(name, set(candidates)) if self.compared <= HINT_COMPARISONS else None
+
     def did_you_mean(self, name: str, kinds: tuple[str, ...]) -> str | None:
         """``did you mean `z` (the state)?`` for a near-miss of a declared name of these kinds."""
+        if self.compared > HINT_COMPARISONS:
+            return None  # the budget is spent: not even the pool is gathered
         pool = {n: st.kind for n, st in self.declared.items() if st.kind in kinds}
-        close = near_miss(name, set(pool))
+        close = self.near(name, set(pool))
         if close is None:
             return None
         kind = {"const": "constant", "param": "parameter", "let": "definition"}.get(pool[close], pool[close])

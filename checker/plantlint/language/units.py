@@ -47,8 +47,6 @@ from plantlint.core.limits import (MAX_LITERAL_DIGITS, MAX_LITERAL_EXP10, MAX_UN
 if TYPE_CHECKING:
     from plantlint.language.syntax import Statement
 
-#: Part of the cache key: raise it when the unit checks change their results.
-UNITS_VERSION = 1
 
 TEXT_WIDTH = 60
 

@@ -36,7 +36,7 @@ from pathlib import Path
 from typing import Any, Callable
 
 from plantlint import __version__
-from plantlint.language.units import UNITS_VERSION  # light: pint is imported only to check units
+from plantlint.language import UNITS_VERSION  # the unit checker itself is not imported for the key
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import FileReport, Finding, Severity, Span

@@ -118,7 +118,8 @@ def test_stop_keeps_completed_stages_decides_what_they_settle_and_fails(lift: Pa
     assert file["stop"]["kind"] == "time" and file["stop"]["stage"] == "envelope"
     assert file["stop"]["completed"] == ["structure"]
     by_message = {f["message"]: f for f in file["findings"]}
-    wrong = by_message["`expect relative_degree(y) = 1` does not hold: the relative degree of 'y' is 2"]
+    wrong = by_message["`expect relative_degree(y) = 1` does not hold: the relative degree of 'y' is 2: the input 'F' "
+                       "first enters its 2nd derivative, through L_g L_f y = 1"]
     assert wrong["decided"] is True  # settled by the structure stage although a later one stopped
     stopped = "the analysis stopped at its 3 s budget in stage envelope"
     for claim in ("expect regular", "expect minimum_phase"):
@@ -326,8 +327,9 @@ def test_a_failure_found_on_an_unproven_zero_is_not_decided_either() -> None:
     raw = analyse_bytes(text.encode())
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed" and "relative_degree" in f.message]
     assert claim.undecided
-    assert claim.message.startswith("`expect relative_degree(y) = 1` not decided: the relative degree of 'y' is 2, "
-                                    "if an expression that is zero at every sampled point is zero identically")
+    assert claim.message.startswith("`expect relative_degree(y) = 1` not decided: the relative degree of 'y' is 2: the "
+                                    "input 'u' first enters its 2nd derivative, through L_g L_f y")
+    assert ", if an expression that is zero at every sampled point is zero identically" in claim.message
     # the input reaches x2 only through the unproven zero, and y = x1 sees x2 one step later
     unreached = (text.replace("rate x1 = x2 + u*", "rate x1 = x2\nlet z = ")
                  .replace("rate x2 = -x1 + u", "rate x2 = -x1 + u*z"))
@@ -348,7 +350,8 @@ def test_slow_normal_form_reproducer_fails_both_claims(tmp_path: Path) -> None:
     assert claims == [
         "`expect minimum_phase` does not hold: at point 'p0' the linearised zero dynamics have eigenvalues on the "
         "imaginary axis (0); linearisation cannot show asymptotic stability",
-        "`expect relative_degree(y) = 1` does not hold: the relative degree of 'y' is 2",
+        "`expect relative_degree(y) = 1` does not hold: the relative degree of 'y' is 2: the input 'u' first enters "
+        "its 2nd derivative, through L_g L_f y",
     ]
     assert all(f["decided"] for f in file["findings"])
     nf = file["analysis"]["points"]["p0"]["normal_form"]

@@ -47,6 +47,7 @@ from plantlint.analysis.structure import (
     certify_envelope,
     lie_name,
     rates_and_outputs,
+    row_terms,
     structure_at_point,
 )
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
@@ -439,7 +440,8 @@ def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, 
                       and (pa.structure is None or pa.structure.relative_degree.get(c.output or "") is None)]
             origin = (f"; {c.value} is the relative degree of the linearisation at point '{linear[0]}', where the "
                       "nonlinear relative degree is not defined" if linear else "")
-            return [(None, f"the relative degree of '{c.output}' is {_degree(generic)}{origin}")]
+            return [(None, f"the relative degree of '{c.output}' is {_degree(generic)}{_entered(a, c.output or '')}"
+                           f"{origin}")]
         # it reads the envelope only for its shortcut (regular over the whole box)
         key = ("degree over parameters", c.output, generic, a.envelope is not None and a.envelope.regular is True)
         if key not in a.claim_memo:
@@ -542,6 +544,30 @@ def _linear_degree(a: Analysis, pa: PointAnalysis, output: str | None) -> int | 
 
 def _degree(r: int | None) -> str:
     return str(r) if r is not None else "undefined (the inputs never reach it)"
+
+
+def _entered(a: Analysis, output: str) -> str:
+    """Where the inputs first reach an output of relative degree r (", through L_g L_f^2 y
+    = 75/(8*m)"): what a changed relative degree comes from. Written once per analysis (the
+    claims are checked after every stage)."""
+    key = ("entered", output)
+    if key not in a.claim_memo:
+        found = next((o for o in a.structure.outputs if o.name == output), None)
+        text = ""
+        if found is not None and found.relative_degree is not None and found.row:
+            i = a.kernel.plant.outputs.index(output)
+            shown, _ = row_terms(a.kernel, found.row, i, found.relative_degree)
+            plant = a.kernel.plant
+            who = f"the input '{plant.inputs[0]}' first enters" if plant.m == 1 else "the inputs first enter"
+            text = f": {who} its {_ordinal(found.relative_degree)} derivative, through {shown}"
+        a.claim_memo[key] = text
+    return a.claim_memo[key]
+
+
+def _ordinal(n: int) -> str:
+    """1st, 2nd, 3rd, 4th, ..., 11th, 12th, 13th, 21st."""
+    suffix = "th" if 10 <= n % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(n % 10, "th")
+    return f"{n}{suffix}"
 
 
 def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:

@@ -129,7 +129,7 @@ def readable(expr: sp.Expr) -> str:
 SHOWN_TERM_CHARS = 60
 
 
-def _entries(kernel: Kernel, row: tuple[sp.Expr, ...], output: int, r: int) -> tuple[str, bool]:
+def row_terms(kernel: Kernel, row: tuple[sp.Expr, ...], output: int, r: int) -> tuple[str, bool]:
     """The terms L_gj L_f^(r-1) h_i of a row for a message, with their expressions when
     every one is short; else by name only (a long expression, cut, says less than its
     name). Also whether they were left out."""
@@ -380,7 +380,7 @@ def structure_at_point(kernel: Kernel, structure: Structure, name: str, values: 
         all_defined = False
         undefined = [not s.taken_zero for s in states]
         state = "undefined" if all(undefined) else ("zero or undefined" if any(undefined) else "zero")
-        shown, long = _entries(kernel, out.row, i, r)
+        shown, long = row_terms(kernel, out.row, i, r)
         verb = "is" if len(out.row) == 1 else "are both" if len(out.row) == 2 else "are all"
         findings.append(finding(
             "relative-degree-ill-defined",

@@ -190,6 +190,11 @@ def _load(folder: Path) -> Catalogue:
     return read_catalogue(folder)
 
 
+#: Rules of the problems found before any value is built (syntax and names): a model with
+#: one of them is not read as a model (:mod:`plantlint.language.names` reports them alone).
+STOPPING_RULES = frozenset({"syntax", "unknown-name", "duplicate-name", "missing-rate", "orphan-rate"})
+
+
 def load_catalogue(folder: Path | None = None) -> Catalogue:
     """The catalogue shipped with plantlint (cached), or one read from ``folder``."""
     return _load(folder) if folder is not None else _shipped()

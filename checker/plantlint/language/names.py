@@ -20,6 +20,7 @@ from __future__ import annotations
 from typing import Callable, Protocol
 
 from plantlint.core import anchors
+from plantlint.core.catalogue import STOPPING_RULES as STOPPING
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
 from plantlint.language.source import near_miss
@@ -27,8 +28,6 @@ from plantlint.language.syntax import Claim, Expression, Parsed, Statement
 
 CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
 QUANTITY_KINDS = ("const", "param", "state", "input", "let", "output")
-#: The rules of the problems that stop a model before its analysis; this pass reports those.
-STOPPING = frozenset({"syntax", "unknown-name", "duplicate-name", "missing-rate", "orphan-rate"})
 #: How many candidate names the "did you mean" hints of one file may compare in all. difflib
 #: compares two similar names in about 10 microseconds, so a hostile file with thousands of
 #: misspelt names among thousands of declared ones would otherwise spend minutes on hints

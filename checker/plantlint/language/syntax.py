@@ -296,16 +296,9 @@ def _nesting_problem(text: str) -> Finding | None:
 
 # -- parsing --------------------------------------------------------------------
 
-def parses(text: str) -> bool:
-    """Does the text get past the size checks and the parser? (No statement is built, so
-    nothing is imported for the expressions: a cheap look before deciding to load the
-    analysis.) The tree is kept for :func:`parse_text` of the same text: a worker forked
-    after this look does not parse the file again."""
-    return _tree(text)[0] is not None
-
-
-#: The last texts parsed and their trees, oldest first (see :func:`parses`; two, so that
-#: the runner's warm-up model read after the look does not push the file out).
+#: The last texts parsed and their trees, oldest first: a worker forked after the runner's
+#: look at a file (does it get past its names?) does not parse it again; two, so that the
+#: runner's warm-up model read after the look does not push the file out.
 _recent: dict[str, Tree] = {}
 
 

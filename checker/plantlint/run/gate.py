@@ -22,11 +22,12 @@ import subprocess
 from collections import Counter
 from dataclasses import replace
 from pathlib import Path
-from typing import Any
+from typing import Any, Callable
 
 from plantlint import __version__
 from plantlint.analysis.serialise import structural_facts
 from plantlint.core import anchors
+from plantlint.core.catalogue import STOPPING_RULES, load_catalogue
 from plantlint.core.findings import FileReport, Finding, Report, Severity
 from plantlint.run.config import Config
 from plantlint.run.pipeline import RawResult, blocked, fails_the_run, finish
@@ -221,7 +222,7 @@ def compare(report: FileReport, old_raw: RawResult | None, config: Config, defau
     return report
 
 
-def checked_now(report: FileReport) -> Any:
+def checked_now(report: FileReport) -> Callable[[Finding], bool]:
     """Could this run have found a finding again? (A predicate on findings.)
 
     A model that its own errors stop is checked only as far as it got, and a finding at
@@ -233,14 +234,11 @@ def checked_now(report: FileReport) -> Any:
     is not decided: what changed was not checked)."""
     if report.analysis is not None or report.stop is not None:
         return lambda f: True  # analysed, or stopped on the way (the stop says what is not decided)
-    from plantlint.core.catalogue import load_catalogue
-    from plantlint.language.names import STOPPING
-
     rules = {f.rule for f in report.findings}
     if rules <= {"syntax"}:
         return lambda f: f.rule == "syntax"
-    if rules <= STOPPING:
-        return lambda f: f.rule in STOPPING
+    if rules <= STOPPING_RULES:
+        return lambda f: f.rule in STOPPING_RULES
     catalogue = load_catalogue()
     return lambda f: f.rule in catalogue and catalogue.get(f.rule).family in ("model", "units")
 

@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 from typing import Any, Callable
 
 from plantlint.core import anchors, deadline
-from plantlint.core.catalogue import finding
+from plantlint.core.catalogue import STOPPING_RULES, finding
 from plantlint.core.findings import (
     FileReport,
     Finding,
@@ -31,9 +31,9 @@ from plantlint.core.limits import MAX_BYTES
 from plantlint.core.settings import AnalysisSettings
 from plantlint.run.config import Config
 
-#: Model findings after which the plant cannot be analysed meaningfully.
-BLOCKING = frozenset({"syntax", "unknown-name", "duplicate-name", "missing-rate", "orphan-rate",
-                      "not-input-affine", "non-smooth"})
+#: Model findings after which the plant cannot be analysed meaningfully: those that stop it
+#: before its values, and two that its values show.
+BLOCKING = STOPPING_RULES | {"not-input-affine", "non-smooth"}
 
 
 @dataclass
@@ -91,8 +91,12 @@ def read_model(data: bytes, path: str = "") -> tuple[Any, list[Finding]]:
     return model, findings
 
 
-def _read(data: bytes, path: str = "") -> tuple[Any, list[Finding], str | None]:
-    """:func:`read_model`, with the plant's name (also of a model stopped by its names)."""
+def read_names(data: bytes) -> tuple[Any, list[Finding], str | None]:
+    """Bytes to statements whose names resolve, without sympy: (the parsed file, [], None),
+    or (None, the problems that stop it, the plant's name when its header was read). Like
+    a file that does not parse, one whose names do not resolve is not read as a model: its
+    units and values are looked at once its names resolve (a waiver of a unit rule needs
+    the model)."""
     from plantlint.language.syntax import decode, parse_text
 
     text, problem = decode(data)
@@ -105,10 +109,16 @@ def _read(data: bytes, path: str = "") -> tuple[Any, list[Finding], str | None]:
 
     stopping = name_problems(parsed)
     if stopping:
-        # like a file that does not parse, it is not read as a model: its units and values
-        # are looked at once its names resolve (a waiver of a unit rule needs the model)
         header = parsed.statements[0] if parsed.statements and parsed.statements[0].kind == "plant" else None
         return None, stopping, header.name if header is not None else None
+    return parsed, [], None
+
+
+def _read(data: bytes, path: str = "") -> tuple[Any, list[Finding], str | None]:
+    """:func:`read_model`, with the plant's name (also of a model stopped by its names)."""
+    parsed, stopping, plant = read_names(data)
+    if parsed is None:
+        return None, stopping, plant
     from plantlint.language.model import build_model
 
     model, findings = build_model(parsed, path)

@@ -420,14 +420,9 @@ _WARM_UP = (b"plant warm\nconst k = 2 [1/s]\nconst L = 1 [m]\nconst v = 1 [m/s]\
 def _reaches_values(data: bytes) -> bool:
     """Will the model get as far as building values (decoded, parsed, its names resolved;
     a few milliseconds a model)? One that does not is answered without sympy."""
-    from plantlint.language.names import name_problems
-    from plantlint.language.syntax import decode, parse_text, parses
+    from plantlint.run.pipeline import read_names
 
-    text, problem = decode(data)
-    if problem is not None or text is None or not parses(text):
-        return False
-    parsed = parse_text(text)
-    return not parsed.findings and not name_problems(parsed)
+    return read_names(data)[0] is not None
 
 
 def _preload(datas: list[bytes]) -> None:

@@ -444,9 +444,7 @@ def _relative_degree_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, 
                            f"{origin}")]
         # it reads the envelope only for its shortcut (regular over the whole box)
         key = ("degree over parameters", c.output, generic, a.envelope is not None and a.envelope.regular is True)
-        if key not in a.claim_memo:
-            a.claim_memo[key] = _degree_over_parameters(a, c.output or "", generic)
-        return list(a.claim_memo[key])
+        return list(_once(a, key, lambda: _degree_over_parameters(a, c.output or "", generic)))
     out = []
     for pa in _points_for(a, c):
         at = pa.structure.relative_degree.get(c.output or "") if pa.structure else None
@@ -546,22 +544,26 @@ def _degree(r: int | None) -> str:
     return str(r) if r is not None else "undefined (the inputs never reach it)"
 
 
+def _once(a: Analysis, key: tuple[Any, ...], compute: Callable[[], Any]) -> Any:
+    """``compute()`` once per analysis for ``key`` (the claims are checked after every stage)."""
+    if key not in a.claim_memo:
+        a.claim_memo[key] = compute()
+    return a.claim_memo[key]
+
+
 def _entered(a: Analysis, output: str) -> str:
     """Where the inputs first reach an output of relative degree r (", through L_g L_f^2 y
-    = 75/(8*m)"): what a changed relative degree comes from. Written once per analysis (the
-    claims are checked after every stage)."""
-    key = ("entered", output)
-    if key not in a.claim_memo:
+    = 75/(8*m)"): what a changed relative degree comes from."""
+    def text() -> str:
         found = next((o for o in a.structure.outputs if o.name == output), None)
-        text = ""
-        if found is not None and found.relative_degree is not None and found.row:
-            i = a.kernel.plant.outputs.index(output)
-            shown, _ = row_terms(a.kernel, found.row, i, found.relative_degree)
-            plant = a.kernel.plant
-            who = f"the input '{plant.inputs[0]}' first enters" if plant.m == 1 else "the inputs first enter"
-            text = f": {who} its {_ordinal(found.relative_degree)} derivative, through {shown}"
-        a.claim_memo[key] = text
-    return a.claim_memo[key]
+        if found is None or found.relative_degree is None or not found.row:
+            return ""
+        plant = a.kernel.plant
+        shown, _ = row_terms(a.kernel, found.row, plant.outputs.index(output), found.relative_degree)
+        who = f"the input '{plant.inputs[0]}' first enters" if plant.m == 1 else "the inputs first enter"
+        return f": {who} its {_ordinal(found.relative_degree)} derivative, through {shown}"
+
+    return _once(a, ("entered", output), text)
 
 
 def _ordinal(n: int) -> str:
@@ -583,8 +585,8 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
             out.append((None, Undecided("regularity over the envelope could not be proven within its budget "
                                         "(see the envelope-unproven finding)")))
         elif env.regular is False and _singular_everywhere(a):
-            out.append((None, f"the decoupling matrix is singular everywhere (generic rank {a.structure.generic_rank} for "
-                              f"{a.kernel.plant.p} outputs; see the decoupling-singular finding)"))
+            out.append((None, f"the decoupling matrix is singular everywhere ({_rank_for(a)}; see the "
+                              "decoupling-singular finding)"))
             return out  # every point fails for that one reason: said once, not once more per point
         elif env.regular is False:
             where = show_point(env.witness or {})
@@ -618,6 +620,11 @@ def _singular_everywhere(a: Analysis) -> bool:
     return bool(st is not None and st.rank_certain and st.generic_rank is not None and st.generic_rank < a.kernel.plant.p)
 
 
+def _rank_for(a: Analysis) -> str:
+    """'generic rank 1 for 2 outputs': why a decoupling matrix is singular everywhere."""
+    return f"generic rank {a.structure.generic_rank} for {a.kernel.plant.p} outputs"
+
+
 def _why_not_regular(a: Analysis, pa: PointAnalysis) -> str:
     """Which of the two a point fails: an output's relative degree, or the decoupling matrix."""
     st = pa.structure
@@ -648,9 +655,8 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
     if c.point is None and (unreached := _never_reached(a)):
         return [(None, _unreached_text(unreached) + ", and the zero dynamics are not defined at any point")]
     if c.point is None and _singular_everywhere(a):
-        return [(None, f"the decoupling matrix is singular everywhere (generic rank {a.structure.generic_rank} for "
-                       f"{a.kernel.plant.p} outputs), so the zero dynamics are not defined at any point (see the "
-                       "decoupling-singular finding)")]
+        return [(None, f"the decoupling matrix is singular everywhere ({_rank_for(a)}), so the zero dynamics are "
+                       "not defined at any point (see the decoupling-singular finding)")]
     out: list[tuple[str | None, str]] = []
     for pa in points:
         zd = pa.zero_dynamics

@@ -572,3 +572,38 @@ point p: x1 = pi, x2 = 0, x3 = 0, u = 0
     for z in zeros:
         assert min(abs(z - r) / abs(r) for r in ref) < 1e-12
         assert abs(z.real + 0.5) < 1e-6
+
+
+def test_formal_route_gives_the_symbolic_jacobians_numbers() -> None:
+    # The example repository's two-link arm at q2 = pi/2 and at q1 = pi/3, q2 = -pi/3, holding
+    # its weight (u0 != 0, solved): A, B, C from dual numbers over formal numbers (no Jacobian
+    # formed) against sympy done another way: Matrix.jacobian of the rates with u0 put in,
+    # evaluated at the point, the difference simplified to 0 entry by entry.
+    from plantlint.analysis.linearisation import _formal_matrices
+
+    model, _ = read_model((REPO / "example_repo/models/handling/palletizer_arm.plant").read_bytes(), "arm.plant")
+    assert model is not None
+    P = model.plant()
+    kernel = Kernel(P)
+    xs = sp.Matrix(P.states)
+    checked = irrational = 0
+    for point in model.points:
+        if all(v.is_Rational for v in point.values.values()):
+            continue
+        eq = solve_point(P, point.name, {model.symbol(k): v for k, v in point.values.items()}, kernel)
+        assert eq.equilibrium
+        at = {**P.param_nominal, **{s: v for s, v in eq.values.items() if s in P.states}}
+        u0 = [eq.values[u] for u in P.inputs]
+        formal = _formal_matrices(kernel, at, u0)
+        assert formal is not None
+        A, B, C = formal
+        field = sp.Matrix([fi + sum(P.g[j][i] * u0[j] for j in range(P.m)) for i, fi in enumerate(P.f)])
+        reference = (field.jacobian(xs).subs(at), sp.Matrix(P.n, P.m, lambda i, j: P.g[j][i]).subs(at),
+                     sp.Matrix(P.h).jacobian(xs).subs(at))
+        for mine, theirs in zip((A, B, C), reference):
+            assert mine.shape == theirs.shape
+            for a, b in zip(mine, theirs):
+                assert sp.simplify(a - b) == 0
+        irrational += any(not e.is_Rational for e in A)
+        checked += 1
+    assert checked == 3 and irrational >= 1  # at pi/2 the arm's A is rational after all; at pi/3 it is not

@@ -121,7 +121,7 @@ def linearise_at(kernel: Kernel, eq: Equilibrium, zero_dynamics: ZeroDynamics | 
     def at(e: sp.Expr) -> sp.Expr:
         return _tidy(e.xreplace(point)) if e != 0 else sp.Integer(0)
 
-    rational = _rational_matrices(kernel, point, u0)
+    rational = _rational_matrices(kernel, point, u0) or _formal_matrices(kernel, point, u0)
     if rational is not None:
         A, B, C = rational
     else:
@@ -170,6 +170,52 @@ def _rational_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequ
                                                             if u0[j] != 0), sp.Integer(0)))
     B = sp.Matrix(n, m, lambda i, j: first.g[j][i])
     C = sp.Matrix(first.Dh) if plant.p else sp.zeros(0, n)
+    return A, B, C
+
+
+def _formal_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequence[sp.Expr]
+                     ) -> tuple[sp.Matrix, sp.Matrix, sp.Matrix] | None:
+    """A, B, C at a point whose values are exact but not rational (q = pi/3), from dual
+    numbers over formal numbers (:mod:`plantlint.kernel.formal`): the numbers of the symbolic
+    Jacobians there, exact, without forming the Jacobians (on a two-link arm those cost more
+    than the rest of the linearisation). None when a value on the way is unsettled or
+    undefined, or the point is not read: the symbolic route then decides, as before."""
+    from plantlint.kernel.formal import PREC, FormalField
+    from plantlint.kernel.lie import FirstOrder
+    from plantlint.kernel.taylor import Inexact, Undefined
+
+    towers = kernel.towers() if kernel.route == "numeric" else None
+    if towers is None:
+        return None
+    plant = kernel.plant
+    n, m = plant.n, plant.m
+    full: dict[sp.Symbol, sp.Expr] = dict(plant.param_nominal)
+    full.update(point)
+    field = FormalField()
+    old = flint.ctx.prec
+    flint.ctx.prec = PREC
+    try:
+        vector = [field.number(full[s]) for s in kernel.free_symbols()]
+        inputs = [field.number(u) for u in u0]
+        values, gradients = towers.first_order(vector, field)
+        first = FirstOrder.of(n, m, values, gradients)  # type: ignore[arg-type]
+        a_entries = []
+        for i in range(n):
+            for a in range(n):
+                entry = first.Df[i][a]
+                for j in range(m):
+                    if u0[j] != 0:
+                        entry = entry + inputs[j] * first.Dg[j][i][a]
+                a_entries.append(entry.to_sympy())  # type: ignore[attr-defined]
+        b_entries = [first.g[j][i].to_sympy() for i in range(n) for j in range(m)]  # type: ignore[attr-defined]
+        c_entries = [d.to_sympy() for row in first.Dh for d in row]  # type: ignore[attr-defined]
+    except (Inexact, Undefined, ArithmeticError, ValueError, TypeError, KeyError):
+        return None  # Unsettled is an Inexact
+    finally:
+        flint.ctx.prec = old
+    A = sp.Matrix(n, n, a_entries)
+    B = sp.Matrix(n, m, b_entries)
+    C = sp.Matrix(plant.p, n, c_entries) if plant.p else sp.zeros(0, n)
     return A, B, C
 
 

@@ -3,7 +3,8 @@ expression trees.
 
 ``cancel_rational(e)`` is ``sp.cancel(sp.together(e))`` computed by field arithmetic
 (no gcd_terms / factor_terms rewriting of expressions), with the same resulting
-expression. ``vanishes_identically(c)`` proves an exact constant zero when it is zero
+expression; function values of the symbols (cos(q2), exp(-x)) are generators, as in
+sympy's polys. ``vanishes_identically(c)`` proves an exact constant zero when it is zero
 as a rational function of its transcendental parts (exp(-160/7), sqrt(2), pi taken as
 independent unknowns); it never proves a non-zero.
 """
@@ -16,6 +17,7 @@ import sympy as sp
 from flint import fmpq, fmpq_mpoly_ctx
 from sympy.polys.domains import QQ
 from sympy.polys.rings import ring as sp_ring
+from sympy.core.exprtools import decompose_power
 from sympy.polys.polyutils import _sort_gens
 
 
@@ -75,21 +77,28 @@ class _FlintField:
 MAX_TERMS = 200_000
 
 
-def _in_field(e: sp.Expr, field: type = _SympyField) -> tuple[Any, Any] | None:
+def _in_field(e: sp.Expr, field: type = _SympyField, atoms: bool = False) -> tuple[Any, Any] | None:
     """e as a fraction (numerator, denominator) of polynomials over QQ in its symbols, not
     necessarily reduced, in the ring of ``field`` (sympy's, generators sorted as sympy's
     polys sort them, or flint's); None when e is not built from symbols and rational
-    numbers by +, * and integer powers, or a denominator vanishes identically."""
-    F = field(e.free_symbols)
+    numbers by +, * and integer powers, or a denominator vanishes identically.
+
+    With ``atoms``, function values of the symbols (cos(q2), exp(x)) are generators too,
+    as sympy's polys take them (:func:`_generators`)."""
+    generators = _generators(e) if atoms else {s: (s, 1) for s in e.free_symbols}
+    if generators is None:
+        return None
+    F = field({g for g, _ in generators.values()})
     one = F.one
-    by_symbol = {s: (g, one) for s, g in F.gens.items()}
+    by_symbol = {node: (F.gens[g] ** k, one) if k > 0 else (one, F.gens[g] ** -k)
+                 for node, (g, k) in generators.items()}
     memo: dict[sp.Expr, tuple[Any, Any]] = {}
 
     def build(node: sp.Expr) -> tuple[Any, Any]:
         done = memo.get(node)
         if done is not None:
             return done
-        if node.is_Symbol:
+        if node in by_symbol:
             out = by_symbol[node]
         elif node.is_Rational:
             out = (F.const(int(node.p), int(node.q)), one)
@@ -125,6 +134,38 @@ def _in_field(e: sp.Expr, field: type = _SympyField) -> tuple[Any, Any] | None:
     return (n, d) if d else None
 
 
+def _generators(e: sp.Expr) -> dict[sp.Expr, tuple[sp.Expr, int]] | None:
+    """Each symbol and each function value of the symbols in e, as a generator and its
+    degree the way sympy's polys read them (``decompose_power``: exp(2*x) is exp(x)^2);
+    None when e holds something else that is not a rational number (sqrt(x), sin(1), pi),
+    or a function whose arguments sympy's ``cancel`` would rewrite first (its
+    ``factor_terms`` takes cos(2*a + 2*b) to cos(2*(a + b))): then sympy's route decides."""
+    out: dict[sp.Expr, tuple[sp.Expr, int]] = {}
+    stack = [e]
+    seen: set[sp.Expr] = set()
+    while stack:
+        node = stack.pop()
+        if node in seen:
+            continue
+        seen.add(node)
+        if node.is_Symbol:
+            out[node] = (node, 1)
+        elif node.is_Rational:
+            continue
+        elif node.is_Add or node.is_Mul:
+            stack.extend(node.args)
+        elif node.is_Pow and node.exp.is_Integer:
+            stack.append(node.base)
+        elif node.is_Function and node.free_symbols and not node.is_Piecewise:
+            if sp.factor_terms(node, radical=True) != node:
+                return None
+            base, degree = decompose_power(node)
+            out[node] = (base, int(degree))
+        else:
+            return None
+    return out
+
+
 def rational_zero(e: sp.Expr) -> bool | None:
     """True / False: e, a rational function of its symbols with rational coefficients,
     is / is not identically zero (proved: its numerator over a non-zero denominator is
@@ -141,18 +182,23 @@ def _degree(p: Any) -> int:
 
 
 def cancel_rational(e: sp.Expr) -> sp.Expr | None:
-    """``sp.cancel(sp.together(e))`` for a rational function e of its symbols with
-    rational coefficients; None otherwise (the caller takes sympy's route).
+    """``sp.cancel(sp.together(e))`` for a rational function e of its symbols and of
+    function values of them (cos(q2)), with rational coefficients; None otherwise (the
+    caller takes sympy's route).
 
     The result is the same expression: sympy's cancel ends in ``P/Q`` with (P, Q) the
     coprime pair from ``PolyElement.cancel`` over ZZ or QQ (integer coefficients,
     contents coprime, positive leading coefficient of Q in lex order of the sorted
     generators), which depends only on the rational function, not on how it is written;
-    generators that cancel out do not change the lex leading term.
+    generators that cancel out do not change the lex leading term. Function values are
+    generators as sympy's polys read them (:func:`_generators`), ordered by sympy's own
+    ``_sort_gens``; a function whose arguments sympy would rewrite first is left to sympy.
+    Held equal (srepr) against sympy on random expressions in tests/kernel/test_rational.py
+    and, when added, on every expression the project's models and 150 mutants cancel.
     """
     if not e.free_symbols:
         return None
-    f = _in_field(e)
+    f = _in_field(e, atoms=True)
     if f is None:
         return None
     P, Q = f[0].cancel(f[1])

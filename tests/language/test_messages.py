@@ -237,6 +237,32 @@ def test_input_affinity_by_form_and_by_second_derivative(rate: str, affine: bool
     assert ("not-input-affine" not in rules) == affine, rules
 
 
+@pytest.mark.parametrize("rate, affine", [
+    ("sat(6*u, -3, 3) - x", True),     # piecewise affine in u: its kinks are the non-smooth finding
+    ("abs(u) - x", True),
+    ("abs(u)*x", True),
+    ("u^2 + abs(u) - x", False),       # nonlinear between the kinks as well
+])
+def test_input_affinity_between_kinks(rate: str, affine: bool) -> None:
+    """A rate whose second derivative in u is DiracDelta terms only is affine between its
+    kinks; the kinks are reported as non-smooth, not as a non-affine input. Reference:
+    numpy's second differences of the rate in u, away from the kinks (common practice)."""
+    import numpy as np
+
+    text = f"plant p\nstate x in -1 .. 1\ninput u in -1 .. 1\nrate x = {rate}\noutput y = x\n"
+    rules = [f.rule for f in findings(text)]
+    assert "non-smooth" in rules
+    assert ("not-input-affine" not in rules) == affine, rules
+    functions = {
+        "sat(6*u, -3, 3) - x": lambda u: np.clip(6 * u, -3, 3), "abs(u) - x": np.abs,
+        "u^2 + abs(u) - x": lambda u: u**2 + np.abs(u), "abs(u)*x": lambda u: 0.3 * np.abs(u),  # at x = 0.3
+    }
+    u = np.array([-0.9, -0.7, -0.3, 0.2, 0.35, 0.8])  # away from the kinks at 0 and +-0.5 (sat)
+    h = 1e-3
+    second = (functions[rate](u + h) - 2 * functions[rate](u) + functions[rate](u - h)) / h**2
+    assert np.allclose(second, 0, atol=1e-6) == affine
+
+
 def test_a_definition_that_uses_itself_says_so() -> None:
     (f,) = [f for f in findings(GOOD.replace("let e = -k*z", "let e = -k*z + e")) if f.rule == "unknown-name"]
     assert f.message == "'e' is used in its own definition; a definition cannot use itself"

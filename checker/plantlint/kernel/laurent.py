@@ -20,11 +20,15 @@ expressions, with flint's arithmetic instead of sympy's tree rewriting.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from functools import cmp_to_key
 
 import sympy as sp
 from flint import fmpq, fmpq_mpoly_ctx
 
 from plantlint.kernel.rational import sympy_rational
+
+#: sympy's canonical order of the arguments of a sum or a product (``_args_sortkey``).
+_SORT_KEY = cmp_to_key(sp.Basic.compare)
 
 #: Bound on the terms of an intermediate numerator (beyond it: not decided here).
 MAX_TERMS = 200_000
@@ -235,6 +239,7 @@ class FieldRing:
         self.order = list(atoms)
         self.reader = _Reader(self.ctx, atoms)
         self.zero_exp = (0,) * self.n
+        self._powers: dict[tuple[int, int], sp.Expr] = {}  # atom ** k, built once
         self.states = [atoms[x] for x in states]
         #: for state k: [(atom index, d atom / d x_k as a Laurent polynomial)]
         self.chain: list[list[tuple[int, Laurent]]] = []
@@ -329,10 +334,37 @@ class FieldRing:
         return out
 
     def expr(self, p: Laurent) -> sp.Expr:
-        """The sum of monomials, as sympy builds it (the form ``expand`` returns)."""
+        """The sum of monomials, as sympy builds it (the form ``expand`` returns).
+
+        Put together in sympy's canonical order (numbers first, then ``Basic.compare``, as
+        ``Mul.flatten`` and ``Add.flatten`` sort) without their flattening, which would find
+        nothing to combine: a monomial's factors are powers of distinct atoms, and the terms
+        of a polynomial are distinct monomials. The same expression, a fraction of the time
+        (held srepr for srepr against sympy's own construction in tests/kernel/test_laurent.py)."""
         num, den = p
-        terms = []
+        powers = self._powers
+        numbers: list[sp.Expr] = []
+        terms: list[sp.Expr] = []
         for exps, coeff in num.terms():  # type: ignore[attr-defined]
-            factors = [self.order[i] ** (k - d) for i, (k, d) in enumerate(zip(exps, den)) if k != d]
-            terms.append(sp.Mul(sympy_rational(coeff), *factors))
-        return sp.Add(*terms)
+            factors = []
+            for i, (k, d) in enumerate(zip(exps, den)):
+                if k != d:
+                    key = (i, k - d)
+                    power = powers.get(key)
+                    if power is None:
+                        power = powers[key] = self.order[i] ** (k - d)
+                    factors.append(power)
+            c = sympy_rational(coeff)
+            if not factors:
+                numbers.append(c)
+                continue
+            factors.sort(key=_SORT_KEY)
+            if c == 1:
+                terms.append(factors[0] if len(factors) == 1 else sp.Mul._from_args(factors, True))
+            else:
+                terms.append(sp.Mul._from_args([c, *factors], True))
+        terms.sort(key=_SORT_KEY)
+        args = numbers + terms
+        if not args:
+            return sp.Integer(0)
+        return args[0] if len(args) == 1 else sp.Add._from_args(args, True)

@@ -126,6 +126,7 @@ class Row:
     ratio: float | None  # naive / plantlint; a lower bound when naive_capped
     naive_agrees: bool | None  # same relative degrees as plantlint
     analysis_s: float | None = None  # in-process analysis of the model, imports excluded
+    naive_recorded: bool = False  # the naive figure comes from results/naive.json, not this run
 
 
 def _findings(report: dict[str, Any]) -> tuple[dict[str, int], bool, dict[str, Any]]:
@@ -167,17 +168,41 @@ def naive_only(suite: list[tuple[ModelSpec, Path]], cap: float) -> None:
         print(spec.name, done[spec.name]["seconds"], "capped" if nv.capped else "", flush=True)
 
 
-def _naive(spec: ModelSpec, cap: float, recorded: dict[str, Any] | None) -> Measured:
-    """The naive run of ``spec``: from ``recorded`` (a ``--naive-only`` file) when it has the
-    model at a cap at least ``cap``, measured now otherwise."""
+def _naive(spec: ModelSpec, cap: float, recorded: dict[str, Any] | None) -> tuple[Measured, bool]:
+    """The naive run of ``spec`` and whether it is a recorded one: from ``recorded`` (a
+    ``--naive-only`` file) when it has the model at a cap at least ``cap``, measured now
+    otherwise."""
     entry = (recorded or {}).get(spec.name)
     if entry and entry["cap"] >= cap:
         return Measured(entry["seconds"], entry["peak_mb"], None if entry["capped"] else entry["exit_code"],
-                        entry["stdout"], "")
+                        entry["stdout"], ""), True
     run = measure([sys.executable, str(HERE / "naive.py"), spec.name], cap)
     if run.capped:
         run.seconds = cap
-    return run
+    return run, False
+
+
+#: With recorded naive figures, the smallest recorded model whose naive run took at least
+#: this long (not capped) is run again now, to measure how the host's speed has drifted.
+CALIBRATION_SECONDS = 2.0
+
+
+def host_drift(recorded: dict[str, Any], names: set[str], cap: float) -> dict[str, Any] | None:
+    """How much slower (factor > 1) or faster this host runs the naive analysis now than when
+    ``recorded`` was measured: one recorded model run again. A ratio of plantlint timed now to
+    a naive run timed on another day compares two host speeds; this says by how much. None
+    when no recorded model serves (none long enough, or the run now fails or hits the cap)."""
+    candidates = sorted((e["seconds"], name) for name, e in recorded.items()
+                        if name in names and not e["capped"] and e["exit_code"] == 0
+                        and e["seconds"] >= CALIBRATION_SECONDS)
+    if not candidates:
+        return None
+    then, name = candidates[0]
+    now = measure([sys.executable, str(HERE / "naive.py"), name], cap)
+    if now.capped or now.exit_code != 0:
+        return None
+    return {"model": name, "recorded_s": then, "recorded_date": recorded[name]["date"],
+            "now_s": round(now.seconds, 3), "factor": round(now.seconds / then, 3)}
 
 
 def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, repeat: int = 3,
@@ -192,7 +217,7 @@ def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, 
                                      "--format", "json", str(path)]
     runs = sorted((measure(command, timeout + 60) for _ in range(max(repeat, 1))), key=lambda m: m.seconds)
     pl = runs[len(runs) // 2]
-    nv = _naive(spec, cap, recorded) if spec else None
+    nv, from_file = _naive(spec, cap, recorded) if spec else (None, False)
     try:
         report = json.loads(pl.stdout)
     except ValueError:
@@ -220,6 +245,7 @@ def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, 
         naive_s=round(naive_s, 3) if naive_s is not None else None,
         naive_peak_mb=round(naive_mb, 1) if naive_mb is not None else None, naive_capped=capped,
         ratio=round(ratio, 3) if ratio is not None else None, naive_agrees=agrees, analysis_s=analysis_s,
+        naive_recorded=from_file,
     )
 
 
@@ -352,9 +378,14 @@ def _complete(r: Row) -> bool:
     return not r.budget_hit and r.stages == ["all"] and r.plantlint_exit in (0, 1)
 
 
-def targets(rows: list[Row], fits: dict[str, Any], version: dict[str, float]) -> dict[str, Any]:
+def targets(rows: list[Row], fits: dict[str, Any], version: dict[str, float],
+            drift: dict[str, Any] | None = None) -> dict[str, Any]:
     slow = [r for r in rows if r.naive_s is not None and r.naive_s > 10]
     ratio_ok = all((r.ratio or 0) >= TARGET_RATIO for r in slow)
+    # a recorded naive time scaled by the host's drift: what it would take on this host now
+    # (an estimate from one calibration run, shown beside the ratio, never instead of it)
+    factor = drift["factor"] if drift else 1.0
+    adjusted = {r.model: round((r.ratio or 0) * (factor if r.naive_recorded else 1.0), 3) for r in slow}
     big = [r for r in rows if r.states == 12 and r.inputs == 4]
     families = {k: v for k, v in fits.items() if isinstance(v, dict) and k != "all generated"}
     stopped = sorted(r.model for r in rows if r.source == "generated" and r.budget_hit)
@@ -386,7 +417,11 @@ def targets(rows: list[Row], fits: dict[str, Any], version: dict[str, float]) ->
             "models": {r.model: r.plantlint_s for r in two}},
         "ratio_100x_where_naive_over_10s": {"met": ratio_ok if slow else None,
                                             "models": {r.model: r.ratio for r in slow},
-                                            "naive_capped": {r.model: r.naive_capped for r in slow}},
+                                            "naive_capped": {r.model: r.naive_capped for r in slow},
+                                            **({"host_drift": drift, "ratios_at_this_host_speed": adjusted,
+                                                "met_at_this_host_speed": all(v >= TARGET_RATIO
+                                                                              for v in adjusted.values())}
+                                               if drift and slow else {})},
         "12_state_4_input_under_10s": {"met": bool(big) and all(r.plantlint_s < TARGET_12x4_SECONDS and not r.budget_hit
                                                                  for r in big),
                                        "models": {r.model: r.plantlint_s for r in big}},
@@ -432,7 +467,7 @@ def markdown(rows: list[Row], fits: dict[str, Any], goals: dict[str, Any], meta:
         f"`{meta['command']}`; naive cap {meta['cap']:g} s, plantlint budget {meta['timeout']:g} s."
         + (" Naive figures of the generated models from `results/naive.json` (measured alone, "
            + "; ".join(f"{date} at a cap of {cap:g} s" for date, cap in meta["naive_from"]) + ")."
-           if meta.get("naive_from") else ""), "",
+           if meta.get("naive_from") else "") + _drift_text(meta.get("naive_host_drift")), "",
         "| model | n | m | p | plantlint s | analysis s | peak MB | naive s | ratio | stages | findings |",
         "|---|---:|---:|---:|---:|---:|---:|---:|---:|---|---|",
     ]
@@ -478,14 +513,25 @@ def markdown(rows: list[Row], fits: dict[str, Any], goals: dict[str, Any], meta:
                          f"{ex['residual']}; better fit: {off['better_fit']}")
     lines += ["", "## Targets", "", "| target | verdict | measured |", "|---|---|---|"]
     for name, goal in goals.items():
-        met = {True: "met", False: "NOT met", None: "not applicable"}[goal["met"]]
+        verdict = "**" + {True: "met", False: "NOT met", None: "not applicable"}[goal["met"]] + "**"
+        if goal["met"] is False and goal.get("met_at_this_host_speed"):
+            verdict += " (met with the recorded naive times scaled to this host's speed)"
         detail = {k: v for k, v in goal.items() if k != "met"}
-        lines.append(f"| {name} | **{met}** | `{json.dumps(detail)}` |")
+        lines.append(f"| {name} | {verdict} | `{json.dumps(detail)}` |")
     if meta.get("imports"):
         lines += ["", "## Start-up: slowest imports of `check` on a 2-state model (python -X importtime)", "",
                   "| module | cumulative s |", "|---|---:|"]
         lines += [f"| {name} | {seconds:.3f} |" for name, seconds in meta["imports"]]
     return "\n".join(lines) + "\n"
+
+
+def _drift_text(drift: dict[str, Any] | None) -> str:
+    if not drift:
+        return ""
+    return (f" Host drift: the naive run of {drift['model']} took {drift['now_s']:.2f} s in this run against "
+            f"{drift['recorded_s']:.2f} s on {drift['recorded_date']} (x{drift['factor']:.2f}), so ratios to the "
+            "recorded naive figures compare two host speeds; the ratio target also shows them scaled to this "
+            "host's speed. Absolute times move with the host as well.")
 
 
 def plot(rows: list[Row], path: Path) -> bool:
@@ -567,7 +613,8 @@ def report_only() -> None:
     data = json.loads((RESULTS / "results.json").read_text(encoding="utf-8"))
     rows = [Row(**r) for r in data["rows"]]
     fits = growth(rows, data["growth"]["startup_floor_s"])
-    goals = targets(rows, fits, {k: v for k, v in data["targets"]["version_under_0.3s"].items() if k != "met"})
+    goals = targets(rows, fits, {k: v for k, v in data["targets"]["version_under_0.3s"].items() if k != "met"},
+                    data["meta"].get("naive_host_drift"))
     data.update(growth=fits, targets=goals)
     write(data, rows)
 
@@ -631,7 +678,8 @@ def main() -> None:
     floor = trivial_floor(models, args.timeout)
     fits = growth(rows, floor)
     version = version_time()
-    goals = targets(rows, fits, version)
+    drift = host_drift(recorded, {spec.name for spec, _ in suite}, args.cap) if recorded else None
+    goals = targets(rows, fits, version, drift)
     from plantlint import __version__
 
     meta = {"date": time.strftime("%Y-%m-%d"), "machine": f"{platform.machine()}, {os.cpu_count()} CPUs",
@@ -641,6 +689,7 @@ def main() -> None:
             + (f" --timeout {args.timeout:g}" if args.timeout != 120 else "")
             + (f" --repeat {args.repeat}" if args.repeat != 3 else "") + (" --naive-from" if recorded else ""),
             "naive_from": (sorted({(e["date"], e["cap"]) for e in recorded.values()}) if recorded else None),
+            "naive_host_drift": drift,
             "cap": args.cap, "timeout": args.timeout, "repeat": args.repeat, "bytecode": "cached (one unmeasured run first)",
             "imports": check_import_profile(models / "spring_chain_1.plant")}
     data = {"meta": meta, "rows": [asdict(r) for r in rows], "growth": fits, "targets": goals}

@@ -289,12 +289,20 @@ class FieldRing:
         return p[0] * self.reader.monomial(tuple(a - b for a, b in zip(den, p[1])))  # type: ignore[operator]
 
     def add(self, p: Laurent, q: Laurent, sign: int = 1) -> Laurent:
+        # most terms of a bracket are zero (a partial along a state the entry lacks): no
+        # common denominator for them (the value, and so the sum written by expr, is the same)
+        if q[0].is_zero():  # type: ignore[attr-defined]
+            return p
+        if p[0].is_zero():  # type: ignore[attr-defined]
+            return q if sign == 1 else (-q[0], q[1])  # type: ignore[operator]
         den = tuple(map(max, p[1], q[1]))
         num = self._shift(p, den) + sign * self._shift(q, den)  # type: ignore[operator]
         _Reader._check(num)
         return num, den
 
     def mul(self, p: Laurent, q: Laurent) -> Laurent:
+        if p[0].is_zero() or q[0].is_zero():  # type: ignore[attr-defined]
+            return self.ctx.constant(0), self.zero_exp  # type: ignore[attr-defined]
         num = p[0] * q[0]  # type: ignore[operator]
         _Reader._check(num)
         return num, tuple(a + b for a, b in zip(p[1], q[1]))

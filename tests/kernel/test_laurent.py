@@ -134,6 +134,7 @@ def test_ring_brackets_are_expanded_tree_brackets(seed: int) -> None:
     g = [sp.Integer(0), entry(), sp.Integer(1)]
     kernel = Kernel(Plant.from_matrices("p", states, [u], f, [g], [x]))
     assert kernel.field_ring() is not None
+
     def same(ours: tuple[sp.Expr, ...] | None, theirs: list[sp.Expr]) -> bool:
         # srepr: the very expression sympy builds (the ring writes its sums and products in
         # sympy's canonical order without sympy's flattening)

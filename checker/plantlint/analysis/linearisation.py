@@ -32,7 +32,7 @@ import math
 from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from math import gcd, lcm
-from typing import Sequence
+from typing import Any, Callable, Sequence
 
 import flint
 import mpmath
@@ -46,7 +46,7 @@ from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import ball_elimination, has_undefined
-from plantlint.kernel.lie import Kernel
+from plantlint.kernel.lie import FirstOrder, Kernel
 from plantlint.kernel.rational import polynomial_text
 from plantlint.language.printer import show_number
 
@@ -159,18 +159,12 @@ def _rational_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequ
     """A, B, C at a rational point from the kernel's exact first-order values
     (:meth:`Kernel.first_order_at`); None when they are not rational there: the symbolic
     route then decides (and shows what is not rational)."""
-    plant = kernel.plant
     if not all(u.is_Rational for u in u0):
         return None
     first = kernel.first_order_at(point)
     if first is None:
         return None
-    n, m = plant.n, plant.m
-    A = sp.Matrix(n, n, lambda i, a: first.Df[i][a] + sum((u0[j] * first.Dg[j][i][a] for j in range(m)
-                                                            if u0[j] != 0), sp.Integer(0)))
-    B = sp.Matrix(n, m, lambda i, j: first.g[j][i])
-    C = sp.Matrix(first.Dh) if plant.p else sp.zeros(0, n)
-    return A, B, C
+    return _state_space(first, u0, u0, lambda e: e)
 
 
 def _formal_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequence[sp.Expr]
@@ -181,14 +175,12 @@ def _formal_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequen
     than the rest of the linearisation). None when a value on the way is unsettled or
     undefined, or the point is not read: the symbolic route then decides, as before."""
     from plantlint.kernel.formal import PREC, FormalField
-    from plantlint.kernel.lie import FirstOrder
     from plantlint.kernel.taylor import Inexact, Undefined
 
     towers = kernel.towers() if kernel.route == "numeric" else None
     if towers is None:
         return None
     plant = kernel.plant
-    n, m = plant.n, plant.m
     full: dict[sp.Symbol, sp.Expr] = dict(plant.param_nominal)
     full.update(point)
     field = FormalField()
@@ -198,24 +190,31 @@ def _formal_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequen
         vector = [field.number(full[s]) for s in kernel.free_symbols()]
         inputs = [field.number(u) for u in u0]
         values, gradients = towers.first_order(vector, field)
-        first = FirstOrder.of(n, m, values, gradients)  # type: ignore[arg-type]
-        a_entries = []
-        for i in range(n):
-            for a in range(n):
-                entry = first.Df[i][a]
-                for j in range(m):
-                    if u0[j] != 0:
-                        entry = entry + inputs[j] * first.Dg[j][i][a]
-                a_entries.append(entry.to_sympy())  # type: ignore[attr-defined]
-        b_entries = [first.g[j][i].to_sympy() for i in range(n) for j in range(m)]  # type: ignore[attr-defined]
-        c_entries = [d.to_sympy() for row in first.Dh for d in row]  # type: ignore[attr-defined]
+        first = FirstOrder.of(plant.n, plant.m, values, gradients)  # type: ignore[arg-type]
+        return _state_space(first, u0, inputs, lambda e: e.to_sympy())
     except (Inexact, Undefined, ArithmeticError, ValueError, TypeError, KeyError):
         return None  # Unsettled is an Inexact
     finally:
         flint.ctx.prec = old
-    A = sp.Matrix(n, n, a_entries)
-    B = sp.Matrix(n, m, b_entries)
-    C = sp.Matrix(plant.p, n, c_entries) if plant.p else sp.zeros(0, n)
+
+
+def _state_space(first: FirstOrder, u0: Sequence[sp.Expr], weights: Sequence[Any],
+                 exact: Callable[[Any], sp.Expr]) -> tuple[sp.Matrix, sp.Matrix, sp.Matrix]:
+    """A = Df + sum_j u0_j Dg_j, B = g, C = Dh from the values and gradients at a point
+    (``first``), computed in their own numbers (``weights``: u0 in those numbers; an input
+    at 0 adds nothing), each entry then written as an exact sympy number by ``exact``."""
+    n, m, p = len(first.f), len(first.g), len(first.h)
+
+    def a_entry(i: int, a: int) -> sp.Expr:
+        entry = first.Df[i][a]
+        for j in range(m):
+            if u0[j] != 0:
+                entry = entry + weights[j] * first.Dg[j][i][a]
+        return exact(entry)
+
+    A = sp.Matrix(n, n, a_entry)
+    B = sp.Matrix(n, m, lambda i, j: exact(first.g[j][i]))
+    C = sp.Matrix(p, n, lambda i, a: exact(first.Dh[i][a])) if p else sp.zeros(0, n)
     return A, B, C
 
 

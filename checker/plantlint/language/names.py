@@ -23,7 +23,7 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import STOPPING_RULES as STOPPING
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
-from plantlint.language.source import near_miss
+from plantlint.language.source import NameRef, near_miss
 from plantlint.language.syntax import Claim, Expression, Parsed, Statement
 
 CLAIMS = ("relative_degree", "regular", "minimum_phase", "state_linearizable")
@@ -168,7 +168,7 @@ class Names:
         self.add("duplicate-name", f"point '{name}' is already declared on line {first.span.line}",
                  st.name_span, anchors.point(name, "twice"))
 
-    def point_target(self, point: str, target: "NameRefLike") -> bool:
+    def point_target(self, point: str, target: NameRef) -> bool:
         """Is what a point sets a state or an input? (reported when not)"""
         decl = self.declared.get(target.name)
         if decl is not None and decl.kind in ("state", "input"):
@@ -179,7 +179,7 @@ class Names:
                  hint=self.did_you_mean(target.name, ("state", "input")))
         return False
 
-    def set_twice(self, point: str, target: "NameRefLike") -> None:
+    def set_twice(self, point: str, target: NameRef) -> None:
         self.add("duplicate-name", f"point '{point}' sets '{target.name}' twice", target.span,
                  anchors.point(point, "sets", target.name, "twice"), point=point)
 
@@ -240,11 +240,6 @@ class Names:
             return None
         kind = {"const": "constant", "param": "parameter", "let": "definition"}.get(pool[close], pool[close])
         return f"did you mean `{close}` (the {kind})?"
-
-
-class NameRefLike(Protocol):
-    name: str
-    span: Span
 
 
 def name_problems(parsed: Parsed) -> list[Finding]:

@@ -111,7 +111,6 @@ class Expression:
         return f"Expression(span={self.span!r}, names={self.names!r}, calls={self.calls!r})"
 
 
-
 @dataclass(frozen=True)
 class Claim:
     kind: str  # relative_degree | regular | minimum_phase | state_linearizable | other text

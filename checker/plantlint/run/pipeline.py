@@ -156,7 +156,6 @@ def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None,
     result = RawResult(plant=plant, findings=list(findings))
     if model is None:
         return result
-    result.plant = model.name
     result.waivers = list(model.waivers)
     if any(f.rule in BLOCKING for f in findings) or not model.defined:
         result.findings = [locate(f, model.spans) for f in result.findings]

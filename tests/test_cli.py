@@ -20,6 +20,7 @@ import sys
 import sysconfig
 import zipfile
 from collections.abc import Callable
+from typing import Any
 from pathlib import Path
 
 import pytest
@@ -413,6 +414,59 @@ def test_version_from_the_module_and_the_console_script(tmp_path: Path) -> None:
         pytest.skip("the plantlint console script is not on PATH (package not installed)")
     installed = subprocess.run([script, "--version"], cwd=tmp_path, capture_output=True, text=True, timeout=120)
     assert (installed.returncode, installed.stdout.strip()) == (0, f"plantlint {__version__}")
+
+
+# -- the program's way out -----------------------------------------------------------------
+# The `plantlint` program (cli.run) ends the process with os._exit once its output is flushed,
+# skipping the interpreter's teardown. These tests run the real program, so that what it
+# writes is seen as a reader of its output sees it.
+
+
+def _program(cwd: Path, *args: str, stdout: Any = subprocess.PIPE) -> subprocess.Popen[str]:
+    """The program, its output buffered as it is by default (PYTHONUNBUFFERED would hide a
+    report left in the buffer)."""
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONUNBUFFERED"}
+    return subprocess.Popen([sys.executable, "-m", "plantlint", *args], cwd=cwd, stdout=stdout,
+                            stderr=subprocess.PIPE, text=True, env=env)
+
+
+def test_the_program_writes_its_whole_report_and_keeps_the_exit_code(tmp_path: Path) -> None:
+    """The JSON of the example repository (larger than a pipe's buffer) arrives whole, and
+    the exit code is main()'s: 1, for the demo's findings (its configuration leaves the
+    archive out)."""
+    models = [m for m in (PROJECT / "example_repo" / "models").rglob("*.plant") if m.parent.name != "archive"]
+    proc = _program(PROJECT / "example_repo", "check", "--format", "json", "--cache-dir", str(tmp_path), ".")
+    out, err = proc.communicate(timeout=600)
+    assert proc.returncode == 1, err
+    report = json.loads(out)
+    assert sorted(Path(f["path"]).name for f in report["files"]) == sorted(m.name for m in models)
+    assert report["summary"]["files"] == len(models)
+    assert "Traceback" not in err
+
+
+@pytest.mark.parametrize("args", [["check", "--no-cache", str(CLEAN)], ["rules"], ["explain", str(CLEAN)]])
+def test_output_that_cannot_be_written_exits_2(tmp_path: Path, args: list[str]) -> None:
+    """A full disk under the output: a short text report fails only when it is flushed,
+    the rules table as rich writes it. Either way one line and exit 2, never a pass, a
+    traceback or Python's "Exception ignored" with exit 120."""
+    if not os.path.exists("/dev/full"):
+        pytest.skip("no /dev/full on this system")
+    with open("/dev/full", "w") as full:
+        proc = _program(tmp_path, *args, stdout=full)
+        _, err = proc.communicate(timeout=300)
+    assert proc.returncode == 2
+    assert err.strip() == "plantlint: error: standard output: cannot write: No space left on device"
+
+
+def test_a_reader_that_goes_away_ends_the_run_quietly(tmp_path: Path) -> None:
+    """`plantlint check ... | head -1`: the reader closes the pipe before the report is
+    written. No traceback and no "Exception ignored" on the way out."""
+    proc = _program(tmp_path, "check", "--no-cache", "--format", "json", str(UNSTABLE))
+    assert proc.stdout is not None
+    proc.stdout.close()
+    _, err = proc.communicate(timeout=300)
+    assert proc.returncode == 0
+    assert err == ""
 
 
 @pytest.mark.parametrize("args", [["--help"], ["check", "--help"]])

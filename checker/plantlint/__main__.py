@@ -1,7 +1,5 @@
 """``python -m plantlint`` runs the plantlint command line."""
 
-import sys
+from plantlint.cli import run
 
-from plantlint.cli import main
-
-sys.exit(main())
+run()

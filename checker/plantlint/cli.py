@@ -7,13 +7,14 @@ sympy is loaded only when a model actually has to be analysed.
 from __future__ import annotations
 
 import argparse
+import errno
 import math
 import os
 import signal
 import stat
 import sys
 from pathlib import Path
-from typing import TYPE_CHECKING, Callable, Sequence, TextIO
+from typing import TYPE_CHECKING, Callable, NoReturn, Sequence, TextIO
 
 from plantlint import __version__
 
@@ -154,6 +155,11 @@ def build_parser() -> argparse.ArgumentParser:
     return top
 
 
+#: What a write to a stream that cannot take more says (a full disk or quota, a file too
+#: large, a failing device); the error names no file, unlike a model that cannot be read.
+_OUTPUT_FULL = frozenset({errno.ENOSPC, errno.EDQUOT, errno.EFBIG, errno.EIO})
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     for stream in (sys.stdout, sys.stderr):
         try:  # a model's non-ASCII text must not crash a non-UTF-8 console
@@ -184,6 +190,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_SIGTERM
     except BrokenPipeError:
         return EXIT_OK
+    except OSError as exc:  # a write to standard output failed (a full disk under a redirect)
+        if exc.filename is not None or exc.errno not in _OUTPUT_FULL:
+            raise
+        return _fail(f"standard output: cannot write: {exc.strerror or exc}")
     finally:
         if previous is not None:
             signal.signal(signal.SIGTERM, previous)  # type: ignore[arg-type]
@@ -395,6 +405,7 @@ def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> in
             _write_atomically(output, lambda fh: formatter.render(report, fh, color=False))
         else:
             formatter.render(report, sys.stdout, color=fmt == "text" and _use_color(color_choice, sys.stdout))
+            sys.stdout.flush()  # a full disk shows here, as "cannot write", not at exit
     except BrokenPipeError:
         raise
     except OSError as exc:
@@ -658,5 +669,28 @@ def _plot(args: argparse.Namespace) -> int:
     return status
 
 
+def run() -> NoReturn:
+    """The ``plantlint`` program: :func:`main`, then the process ends at once.
+
+    Once the report is flushed nothing is left to do: every file the run writes (a report,
+    the cache, a picture) is closed by then, and the workers are reaped. The interpreter's
+    own teardown would spend about 0.2 s (a third of the start-up of a small check)
+    freeing sympy's objects one by one, so it is skipped with ``os._exit``. ``main``
+    itself returns as usual, for callers in the same process (the tests)."""
+    code = main()
+    try:
+        sys.stdout.flush()
+    except BrokenPipeError:  # the reader went away (`| head`): as main() answers it
+        pass
+    except (OSError, ValueError) as exc:  # a full disk, a closed stdout: the output is incomplete
+        if code != EXIT_USAGE:  # (a report that could not be written has said so already)
+            code = _fail(f"standard output: cannot write: {getattr(exc, 'strerror', None) or exc}")
+    try:
+        sys.stderr.flush()
+    except (OSError, ValueError):
+        pass
+    os._exit(code)
+
+
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    run()

@@ -340,11 +340,11 @@ def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr
     minors = [m for m in every if decide(m[2].xreplace(params.nominal)).proven_nonzero]
     if not minors:
         raise NotCovered("the inputs left out could not be solved as functions of the parameters")
-    chosen: tuple[list[int], sp.Matrix] | None = None
+    chosen: tuple[list[int], sp.Matrix, sp.Expr] | None = None
     for rows, G, det in minors[:MAX_ROW_CHOICES]:
         v = params.clock.spent(certify_nonzero(params.tidy(det), params.box, params.clock.budget()))
         if v.regular:
-            chosen = rows, G
+            chosen = rows, G, det
             break
     if chosen is None:
         # no single choice of rows serves the whole box: the inputs are undetermined only
@@ -360,11 +360,22 @@ def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr
                else "they could not be shown to be determined over the whole box within the budget")
         return [], BoxVerdict("undecided", f"the input(s) {names} at the point are not solved as functions of the "
                               f"parameters: {why}")
-    rows, G = chosen
-    sol = G.LUsolve(sp.Matrix([-c[i] for i in rows]))
+    rows, G, det = chosen
+    rhs = [-c[i] for i in rows]
     for a, j in enumerate(unknown):
-        values[plant.inputs[j]] = params.tidy(sol[a])
+        values[plant.inputs[j]] = params.tidy(_cramer(G, rhs, a, det))
     return rows, None
+
+
+def _cramer(G: sp.Matrix, rhs: list[sp.Expr], a: int, det: sp.Expr) -> sp.Expr:
+    """The a-th unknown of G u = rhs by Cramer's rule, det = det G proven non-zero over the
+    box. (sympy's LU solve asks the assumptions system whether each symbolic pivot is
+    zero, which was most of the time of a point's equilibrium over a parameter box.)"""
+    if G.rows == 1:
+        return rhs[0] / G[0, 0]
+    column = G.copy()
+    column[:, a] = sp.Matrix(rhs)
+    return laplace_det(column) / det
 
 
 def _nonzero_at(params: ParameterBox, e: sp.Expr) -> dict[sp.Symbol, sp.Expr] | None:

@@ -280,3 +280,49 @@ def test_display_values_of_large_constant_expressions_come_from_balls() -> None:
         ref = mpmath.sqrt(3) * (mpmath.mpf(42) / 25 + 32 * a_ref / 5) / (1 + a_ref**2) - mpmath.mpf(1) / 7
     assert _display_float(e) == float(ref)
     assert _display_float(sp.sin(sp.pi) + sp.cos(sp.pi / 2)) == 0.0  # an exact zero, quickly
+
+
+# A level sensor read through asin (a mutant of the quadruple tank had `kc*asin(h2)` with h2
+# around 27 cm at its point): asin is real only on [-1, 1] (any calculus text; sympy agrees,
+# below), so at h = 27 the output and its derivative 1/sqrt(1 - h^2) have no real value. The
+# zero dynamics crashed on sympy's imaginary number ("cannot create mpf from ...*I"), the
+# relative degree was called well defined, and the input fields, which do not involve the
+# output at all, were reported with rank 0 at the point.
+ASIN_SENSOR = b"""plant level_sensor
+state h in 0.5 .. 40
+state z in 0.5 .. 40
+input q in 0 .. 50
+rate h = -h + q
+rate z = -z + h
+output y = asin(h)
+point op: h = 27, z = 27, q = 27
+expect minimum_phase at op
+"""
+
+
+def test_sympy_says_asin_and_its_derivative_are_not_real_beyond_1() -> None:
+    h = sp.Symbol("h", real=True)
+    assert sp.asin(27).is_extended_real is False
+    assert sp.diff(sp.asin(h), h).subs(h, 27).is_extended_real is False
+
+
+def test_an_output_that_is_not_real_at_the_point_is_undefined_there() -> None:
+    raw = analyse_bytes(ASIN_SENSOR)
+    assert raw.stop is None  # completed: no internal error
+    op = raw.analysis["points"]["op"]
+    assert op["relative_degree"] == {"y": None} and op["well_defined"] is False
+    (ill,) = [f for f in raw.findings if f.rule == "relative-degree-ill-defined"]
+    assert "L_g y = 1/sqrt(1 - h^2) is undefined there" in ill.message
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert "zero dynamics are not defined" in claim.message
+
+
+def test_the_input_fields_at_a_point_do_not_depend_on_the_outputs() -> None:
+    """f and g are linear here: A = [[-1, 0], [1, -1]], B = [1, 0]^T everywhere, Kalman rank 2
+    (numpy below). The output being undefined at the point changes none of that."""
+    import numpy as np
+
+    A, B = np.array([[-1.0, 0.0], [1.0, -1.0]]), np.array([[1.0], [0.0]])
+    assert np.linalg.matrix_rank(np.hstack([B, A @ B])) == 2
+    op = analyse_bytes(ASIN_SENSOR).analysis["points"]["op"]
+    assert op["controllability_rank"] == 2 and op["rank_drops"] == [] and op["state_linearizable"] is True

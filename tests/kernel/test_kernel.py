@@ -125,3 +125,15 @@ def test_the_simplification_that_confirms_a_zero_is_bounded(monkeypatch) -> None
     # zero by sin^2 + cos^2 = 1, which neither expand nor cancel sees
     decision = lie.confirm_zero(sp.sin(x) ** 2 + sp.cos(x) ** 2 - 1)
     assert decision.outcome is Outcome.ZERO_UNCONFIRMED
+
+
+def test_values_without_a_real_value_are_undefined() -> None:
+    """sympy writes a real function outside its domain as a non-real number (sqrt(-3) is
+    sqrt(3)*I, log(-2) is log(2) + I*pi) or leaves it unevaluated where it knows it is not
+    real (asin(27), acos(3/2)); the model's functions are real, so each has no value there.
+    Finite real numbers, exact or not, have one."""
+    from plantlint.kernel.exact import has_undefined
+
+    for value in (sp.sqrt(-3), sp.log(-2), sp.asin(27), sp.acos(sp.Rational(3, 2)), sp.zoo, sp.nan):
+        assert has_undefined([sp.Integer(1), value]), value
+    assert not has_undefined([sp.Rational(1, 3), sp.pi / 6, sp.asin(sp.Rational(1, 2)), sp.sqrt(2), sp.exp(40)])

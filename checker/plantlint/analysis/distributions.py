@@ -999,7 +999,7 @@ def _kalman_columns(
     """[B, AB, ..., A^(n-1) B] at the point, or None when the point is not an
     equilibrium of the drift (then the identity with the brackets does not hold)."""
     plant = kernel.plant
-    first = kernel.first_order_at(values)  # exact numbers at a rational point, no symbolic Jacobian
+    first = kernel.first_order_at(values, outputs=False)  # exact numbers at a rational point, no symbolic Jacobian
     f0 = first.f if first is not None else list(matrix_at(kernel, [plant.f], values))
     if any(decide(e).proven_nonzero for e in f0):
         return None

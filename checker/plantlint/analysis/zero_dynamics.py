@@ -149,14 +149,14 @@ def _taylor_point_data(kernel: Kernel, degrees: Sequence[int], point: dict[sp.Sy
     try:
         values, grads = towers.gradients(vector, top, field)
         decoupling = towers.decoupling_gradients(vector, top - 1, field)
-        f0, G0, _ = towers.values(vector, field)
+        f0, G0, _ = towers.values(vector, field, outputs=False)
     except (Inexact, Undefined, ZeroDivisionError):
         return None
 
     A0 = sp.Matrix([[sympy_rational(decoupling[j][i][degrees[i] - 1][0]) for j in range(m)] for i in range(p)])
     dA = [sp.Matrix([[sympy_rational(decoupling[j][i][degrees[i] - 1][1][k]) for j in range(m)] for i in range(p)])
           for k in range(n)]
-    first = kernel.first_order_at(point)  # Df(x0), Dg_j(x0) by dual numbers, exactly
+    first = kernel.first_order_at(point, outputs=False)  # Df(x0), Dg_j(x0) by dual numbers, exactly
     if first is None:
         return None
     Df0 = sp.Matrix(first.Df)

@@ -36,8 +36,18 @@ def number_decider(kernel: "object") -> ZeroDecider:
 
 def has_undefined(values: Any) -> bool:
     """True when a value at a point is infinite or undefined (``zoo``, ``oo``, ``nan``): a
-    rate, or a derivative, that does not exist there (d sqrt(w)/dw at w = 0)."""
-    return any(as_expr(v).has(sp.zoo, sp.nan, sp.oo, -sp.oo) for v in values)
+    rate, or a derivative, that does not exist there (d sqrt(w)/dw at w = 0); or when a
+    number there is not real (d asin(h)/dh = 1/sqrt(1 - h^2) at h = 27 is imaginary; asin(27)
+    stays unevaluated, and sympy knows it is not real): the model's functions are real."""
+    return any(_undefined(as_expr(v)) for v in values)
+
+
+def _undefined(v: sp.Expr) -> bool:
+    if v.is_Rational:
+        return False
+    if v.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
+        return True
+    return not v.free_symbols and v.is_extended_real is False
 
 
 def magnitude(value: sp.Expr) -> float:

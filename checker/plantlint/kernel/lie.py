@@ -109,7 +109,7 @@ class Kernel:
         self._derivatives: dict[tuple[sp.Expr, sp.Symbol], sp.Expr] = {}
         self._free: dict[sp.Expr, frozenset[sp.Symbol]] = {}
         self._cancelled: dict[sp.Expr, sp.Expr] = {}
-        self._first_order: dict[tuple[Fraction, ...], "tuple[list[sp.Rational], list[list[sp.Rational]]] | None"] = {}
+        self._first_order: dict[tuple[object, ...], "FirstOrder | None"] = {}  # (point..., outputs)
         self._poly: "_PolynomialTowers | None | bool" = False
         self._ring: "FieldRing | None | bool" = False
         self._expanded_ad: dict[tuple[int, int], tuple[object, ...]] = {}
@@ -142,22 +142,24 @@ class Kernel:
                 self._towers = None
         return self._towers  # type: ignore[return-value]
 
-    def first_order_at(self, point: dict[sp.Symbol, object]) -> "FirstOrder | None":
+    def first_order_at(self, point: dict[sp.Symbol, object], outputs: bool = True) -> "FirstOrder | None":
         """f, the g_j columns and h at an exact rational point and their state gradients, as
         sympy Rationals: dual numbers through the straight-line program in exact fmpq (the
         numbers of the symbolic Jacobians at the point, without forming them); memoised per
-        point. None when a value on the way is not rational, a function is met where it is
-        not smooth, or the program cannot hold the plant."""
+        point. Without ``outputs`` h is left out (h and Dh empty), so that an output that is
+        not rational or not defined there does not take f and g with it. None when a value
+        on the way is not rational, a function is met where it is not smooth, or the program
+        cannot hold the plant."""
         from plantlint.kernel.taylor import QField
 
         compiled = self._compiled_at(point)
         if compiled is None:
             return None
         towers, vector = compiled
-        key = tuple(vector)
+        key = (*vector, outputs)
         if key not in self._first_order:
             try:
-                values, gradients = towers.first_order(vector, QField())
+                values, gradients = towers.first_order(vector, QField(), outputs=outputs)
                 out = FirstOrder.of(self.plant.n, self.plant.m, [sympy_rational(v) for v in values],
                                     [[sympy_rational(d) for d in g] for g in gradients])
             except (ArithmeticError, TypeError):  # not rational, undefined, a division by zero
@@ -483,6 +485,8 @@ class Kernel:
         if exact.free_symbols:
             raise UnsupportedExpression(f"value needs {sorted(map(str, exact.free_symbols))}")
         if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
+            return PointValue(arb("nan"), zd.UNDEFINED)
+        if exact.has(sp.I):  # sympy's value of a real function outside its domain (sqrt(-728)): none
             return PointValue(arb("nan"), zd.UNDEFINED)
         finite = False
         for prec in (128, 1024):

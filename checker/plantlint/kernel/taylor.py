@@ -609,13 +609,25 @@ class Towers:
         outputs = list(f) + [e for col in g for e in col] + list(h)
         self.program = graph.compile(outputs)
         self.f_nodes, self.g_nodes, self.h_nodes = list(f), [list(c) for c in g], list(h)
+        self._fields: Program | None = None
+
+    @property
+    def fields(self) -> Program:
+        """The program of f and the g columns alone: what the flow and the brackets need.
+        An output that is undefined or not rational at a point (asin(h) at h = 27, sin(1/2))
+        must not make f and g so there."""
+        if self._fields is None:
+            self._fields = self.graph.compile(list(self.f_nodes) + [e for col in self.g_nodes for e in col])
+        return self._fields
 
     # -- one flow ------------------------------------------------------------------------
     def flow(self, point: Sequence[Any], order: int, field: Any, directions: Sequence[Sequence[Any]] | None = None,
-             start: Sequence[Any] | None = None) -> list[list[Any]]:
+             start: Sequence[Any] | None = None, outputs: bool = True) -> list[list[Any]]:
         """Series (coefficients 0..order) of every program output along the flow of f
         from ``point`` (states then parameters), optionally moved by e * direction;
-        ``start`` gives the starting numbers (jets of any kind) directly."""
+        ``start`` gives the starting numbers (jets of any kind) directly. Without
+        ``outputs`` only f and g are run (:attr:`fields`), and the series end after g."""
+        program = self.program if outputs else self.fields
         old = flint.ctx.prec
         if isinstance(field, ArbField):
             flint.ctx.prec = field.prec
@@ -634,16 +646,16 @@ class Towers:
                     start = [Jet(v, [field.number(directions[a][i]) if i < self.n else zero for a in range(q)])
                              for i, v in enumerate(start)]
             coeff: list[list[Any]] = [[v] for v in start]
-            runner = _Runner(self.program, field)
+            runner = _Runner(program, field)
             n, zero = self.n, field.const(Fraction(0))
             for k in range(order + 1):
                 runner.step(k, coeff)
                 if k < order:
                     for i in range(n):
-                        coeff[i].append(runner.series[self.program.outputs[i]][k] / (k + 1))
+                        coeff[i].append(runner.series[program.outputs[i]][k] / (k + 1))
                     for i in range(n, len(coeff)):
                         coeff[i].append(zero)
-            return [runner.series[o] for o in self.program.outputs]
+            return [runner.series[o] for o in program.outputs]
         finally:
             flint.ctx.prec = old
 
@@ -656,19 +668,22 @@ class Towers:
         return series[n + m * n + i]
 
     # -- questions -------------------------------------------------------------------------
-    def values(self, point: Sequence[Any], field: Any) -> tuple[list[Any], list[list[Any]], list[Any]]:
-        """f(x0), g_j(x0) (columns), h(x0)."""
-        s = self.flow(point, 0, field)
+    def values(self, point: Sequence[Any], field: Any, outputs: bool = True
+               ) -> tuple[list[Any], list[list[Any]], list[Any]]:
+        """f(x0), g_j(x0) (columns), h(x0) (empty without ``outputs``)."""
+        s = self.flow(point, 0, field, outputs=outputs)
         n, m = self.n, self.m
         return ([s[i][0] for i in range(n)], [[s[n + j * n + i][0] for i in range(n)] for j in range(m)],
-                [s[n + m * n + i][0] for i in range(self.p)])
+                [s[n + m * n + i][0] for i in range(self.p)] if outputs else [])
 
-    def first_order(self, point: Sequence[Any], field: Any) -> tuple[list[Any], list[tuple[Any, ...]]]:
+    def first_order(self, point: Sequence[Any], field: Any, outputs: bool = True
+                    ) -> tuple[list[Any], list[tuple[Any, ...]]]:
         """The value and the gradient (along the states) of every program output at
-        ``point``: f_i, then g_j columns, then h_i, in :meth:`_out` order (dual numbers,
-        one direction per state). Df(x0), Dg_j(x0), Dh(x0) without symbolic Jacobians."""
+        ``point``: f_i, then g_j columns, then h_i (without ``outputs``: not h), in
+        :meth:`_out` order (dual numbers, one direction per state). Df(x0), Dg_j(x0), Dh(x0)
+        without symbolic Jacobians."""
         unit = [[1 if a == b else 0 for b in range(self.n)] for a in range(self.n)]
-        s = self.flow(point, 0, field, unit)
+        s = self.flow(point, 0, field, unit, outputs=outputs)
         return [_head(out[0]) for out in s], [_tangent(out[0], self.n, field) for out in s]
 
     def lie_values(self, point: Sequence[Any], order: int, field: Any) -> list[list[Any]]:
@@ -690,7 +705,7 @@ class Towers:
 
     def lglf(self, point: Sequence[Any], order: int, field: Any) -> list[list[list[Any]]]:
         """[i][k][j] = L_gj L_f^k h_i(x0) for k <= order."""
-        _, G, _ = self.values(point, field)
+        _, G, _ = self.values(point, field, outputs=False)
         _, tangents = self.directional(point, order, field, G)
         return tangents
 
@@ -708,7 +723,7 @@ class Towers:
         without a symbolic tower (the zero-dynamics Jacobian needs it)."""
         n = self.n
         unit = [[1 if a == b else 0 for b in range(n)] for a in range(n)]
-        at_jets = self.flow(point, 0, field, unit)  # g_j(x0 + e.a) as jets
+        at_jets = self.flow(point, 0, field, unit, outputs=False)  # g_j(x0 + e.a) as jets
         out = []
         for j in range(self.m):
             start: list[Any] = []
@@ -740,7 +755,7 @@ class Towers:
         """[j][k] = ad_f^k g_j(x0) (n-vectors) for k <= order, from w(t) = M(t)^-1 g(x(t))."""
         n = self.n
         unit = [[1 if a == b else 0 for b in range(n)] for a in range(n)]
-        s = self.flow(point, order, field, unit)
+        s = self.flow(point, order, field, unit, outputs=False)
         zero, one = field.const(Fraction(0)), field.const(Fraction(1))
         # M_k[i][a] = tangent a of coefficient k of x_i = [t^k] f-series shifted: x_k = f_(k-1)/k
         M = [[[one if i == a else zero for a in range(n)] for i in range(n)]]

@@ -38,6 +38,12 @@ def test_undefined_derivatives_are_reported_as_such_at_the_point() -> None:
     rules = [f.rule for f in raw.findings]
     # no rank deficit, and no direction with an infinity in it, drawn from undefined brackets
     assert "not-controllable" not in rules and "distribution-rank-drop" not in rules
+    # nor in the JSON: no rank is given there, only why (before: controllability rank 0 and
+    # every distribution listed as dropping rank, lower bounds read as ranks)
+    fields = rest
+    assert fields["controllability_rank"] is None and fields["constant_rank"] is None
+    assert fields["rank_drops"] == [] and fields["state_linearizable"] is False
+    assert "does not exist at the point" in fields["undefined"]
     assert not any("zoo" in f.message for f in raw.findings)
     claims = {f.message.split("`")[1]: f for f in raw.findings if f.rule == "expectation-failed"}
     linearizable = claims["expect state_linearizable at rest"]
@@ -326,3 +332,22 @@ def test_the_input_fields_at_a_point_do_not_depend_on_the_outputs() -> None:
     assert np.linalg.matrix_rank(np.hstack([B, A @ B])) == 2
     op = analyse_bytes(ASIN_SENSOR).analysis["points"]["op"]
     assert op["controllability_rank"] == 2 and op["rank_drops"] == [] and op["state_linearizable"] is True
+
+
+def test_a_report_with_undefined_fields_at_a_point_is_valid_against_the_schema(tmp_path) -> None:
+    """The JSON report of that model is valid against the project's own schema (common
+    practice: validate what you emit against its schema; jsonschema's Draft 2020-12)."""
+    import json
+
+    import jsonschema
+
+    from plantlint.cli import main
+    from plantlint.report.formats.json_report import report_schema
+
+    model = tmp_path / "root.plant"
+    model.write_text(ROOT, encoding="utf-8")
+    out = tmp_path / "report.json"
+    main(["check", "--no-cache", "--format", "json", "--output", str(out), str(model)])
+    report = json.loads(out.read_text(encoding="utf-8"))
+    assert report["files"][0]["analysis"]["points"]["rest"]["controllability_rank"] is None
+    jsonschema.Draft202012Validator(report_schema()).validate(report)

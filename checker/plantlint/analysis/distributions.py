@@ -663,17 +663,19 @@ def distributions_at(
     n, m = structure.n, structure.m
     decide = _PointDecider(kernel)
     ranks, basis, kalman = _ranks_at(kernel, structure, values, decide)
-    singular = tuple(k for k in range(min(len(structure.ranks), len(ranks))) if ranks[k] < structure.ranks[k])
     control_rank = ranks[-1] if len(ranks) == n else 0
     if len(ranks) < n and kalman is not None:
         control_rank, basis = _kalman_rank(kalman, n, decide)
     notes: list[str] = list(structure.uncertain)
     undefined = bool(decide.undefined)
+    # where fields are undefined the ranks are only lower bounds: no rank drop is read off them
+    singular = () if undefined else tuple(k for k in range(min(len(structure.ranks), len(ranks)))
+                                          if ranks[k] < structure.ranks[k])
     vectors = _missing_vectors(kernel, basis, notes) if control_rank < n and not undefined else []
     missing = tuple(_direction_text(v, kernel.plant.states) for v in vectors)
     if undefined:
-        notes.append("some fields are undefined at the point (division by zero): ranks there are lower bounds, "
-                     "so no rank deficit is reported")
+        notes.append("some fields are undefined at the point (a derivative of the rates does not exist there): "
+                     "ranks there are lower bounds, so no rank deficit is reported")
     for k in singular:
         notes.append(
             f"{structure.name(k)} has rank {ranks[k]} at {name} but {structure.ranks[k]} around it: "

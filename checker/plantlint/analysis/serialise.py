@@ -68,6 +68,11 @@ def zero_dynamics_json(zd: ZeroDynamics) -> dict[str, object]:
     }
 
 
+#: Why a point's distribution ranks are not given (JSON ``undefined``, explain).
+UNDEFINED_FIELDS = ("a derivative of the rates does not exist at the point, so some input fields or their "
+                    "brackets have no value there")
+
+
 def distributions_json(pd: PointDistributions) -> dict[str, object]:
     """The per-point distribution summary of the JSON report."""
     from plantlint.analysis.distributions import distribution_name
@@ -80,6 +85,8 @@ def distributions_json(pd: PointDistributions) -> dict[str, object]:
         "rank_drops": [distribution_name(pd.m, k) for k in pd.singular_orders if k <= len(pd.ranks) - 2],
         "state_linearizable": pd.state_linearizable,
     }
+    if pd.undefined:  # the ranks at the point are lower bounds only: none is reported as a rank
+        out.update(controllability_rank=None, constant_rank=None, undefined=UNDEFINED_FIELDS)
     if not pd.involutive:
         out["involutivity_witness"] = pd.witness
     if pd.output_searched:
@@ -474,7 +481,8 @@ def _point(pa: PointAnalysis) -> dict[str, Any]:
         out["linearisation"] = _linearisation(pa.linearisation)
     pd = pa.distributions
     if pd is not None:
-        out["distributions"] = {"ranks": list(pd.ranks), "controllability_rank": pd.controllability_rank,
+        out["distributions"] = {"ranks": None if pd.undefined else list(pd.ranks),
+                                "controllability_rank": None if pd.undefined else pd.controllability_rank,
                                 "missing_directions": list(pd.missing_directions), "involutive": pd.involutive,
                                 "state_linearizable": pd.state_linearizable,
                                 "failing_bracket": pd.failure.pair if pd.failure else None,

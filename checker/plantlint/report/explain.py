@@ -256,7 +256,9 @@ def _render_zero_dynamics(console: Any, zd: dict[str, Any]) -> None:
 
 
 def _render_point_distributions(console: Any, pd: dict[str, Any]) -> None:
-    console.print(f"  distributions here: ranks {pd['ranks']}; controllability rank {pd['controllability_rank']}; "
+    ranks = ("ranks undefined" if pd["ranks"] is None else
+             f"ranks {pd['ranks']}; controllability rank {pd['controllability_rank']}")
+    console.print(f"  distributions here: {ranks}; "
                   f"{'involutive' if pd['involutive'] else 'not involutive'}; "
                   f"state linearizable: {'yes' if pd['state_linearizable'] else 'no'}")
     if pd["linearizing_output"]:

@@ -13,7 +13,9 @@ or kernel:
   (A, B, C) by scipy's generalised eigenvalues of the Rosenbrock pencil (conftest). The
   linearisation of the zero dynamics is the zero dynamics of the linearisation where the
   relative degree is defined at an equilibrium (Isidori, Nonlinear Control Systems, 3rd ed.,
-  section 4.3, recalled from memory).
+  section 4.3, recalled from memory);
+- the rank of the controllability distribution at that equilibrium as the Kalman rank of
+  (A, B) (numpy), since ad_f^k g(x0) = (-A)^k g(x0) where f(x0) = 0.
 """
 
 from __future__ import annotations
@@ -24,7 +26,7 @@ import numpy as np
 import pytest
 import sympy as sp
 
-from conftest import rosenbrock_zeros
+from conftest import kalman, rosenbrock_zeros
 from plantlint.run.pipeline import analyse_bytes
 
 PLANTS = 24
@@ -134,16 +136,24 @@ def test_a_random_plant_matches_sympy_done_directly(index: int, rng: random.Rand
     zd = at["zero_dynamics"]
     if at["well_defined"] and zd is not None and zd["dimension"] > 0:
         assert _close([complex(*e) for e in zd["eigenvalues"]], rosenbrock_zeros(A, B, C)), text
+    # at an equilibrium ad_f^k g(x0) = (-A)^k g(x0) (every other term of the bracket carries
+    # f(x0) = 0), so the rank of span{ad_f^k g, k < n} there is the Kalman rank of (A, B)
+    assert at["controllability_rank"] == np.linalg.matrix_rank(kalman(A, B)), text
 
 
 def test_the_random_set_covers_what_it_checks() -> None:
     """The seeded set is not vacuous: it holds points where the relative degree is defined
-    and where it is not, MIMO plants, and equilibria with zero dynamics of dimension > 0."""
-    seen = {"defined": 0, "ill-defined": 0, "mimo": 0, "zero dynamics": 0, "linearised": 0}
+    and where it is not, MIMO plants, equilibria with zero dynamics of dimension > 0, and
+    linearisations with and without a controllability rank deficit."""
+    seen = {"defined": 0, "ill-defined": 0, "mimo": 0, "zero dynamics": 0, "linearised": 0, "rank deficit": 0}
     for _, rng in _cases():
         X, f, G, h, point, rest = _plant(rng)
         seen["mimo"] += len(h) > 1
-        seen["linearised"] += rest and len(h) == 1 and any(e.subs(point) != 0 for row in G for e in row)
+        B = np.array(sp.Matrix(G).subs(point), dtype=float)
+        if rest and len(h) == 1 and B.any():
+            seen["linearised"] += 1
+            A = np.array(sp.Matrix(f).jacobian(X).subs(point), dtype=float)
+            seen["rank deficit"] += np.linalg.matrix_rank(kalman(A, B)) < len(X)
         for output in h:
             generic, defined = _reference_degree(X, f, G, output, point)
             seen["defined" if defined else "ill-defined"] += generic is not None

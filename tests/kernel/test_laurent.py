@@ -151,3 +151,44 @@ def test_ring_declines_what_it_cannot_read() -> None:
     for f1 in (1 / (x + 1), sp.exp(x), sp.sqrt(x), sp.Float(0.5) * x, sp.atan(x)):
         kernel = Kernel(Plant.from_matrices("p", [x, y], [u], [y, f1], [[sp.Integer(0), sp.Integer(1)]], [x]))
         assert kernel.field_ring() is None and kernel.expanded_ad(0, 1) is None
+
+
+def test_a_rate_the_ring_cannot_read_leaves_the_higher_brackets_to_sympy() -> None:
+    """Two masses on springs with v2^200 in the second rate (a mutant, seed 9511, wrote
+    `-c*v2 ^ k*(...)` with k = 200): the ring reads g but not that rate, so ad_f g is not
+    formed there. The distributions stage used to stop with an internal error
+    ("'NoneType' object is not subscriptable"); it now takes the brackets from sympy. At the
+    rest point, an equilibrium, the controllability rank is the Kalman rank of the
+    linearisation (sympy's Jacobian, numpy's rank)."""
+    import numpy as np
+
+    from plantlint.run.pipeline import analyse_bytes
+
+    text = """plant two_masses
+const k = 200
+const eps = 50
+const c = 2
+const mass = 1.5
+state p1 in -1/5 .. 1/5
+state p2 in -1/5 .. 1/5
+state v1 in -2 .. 2
+state v2 in -2 .. 2
+input F1 in -100 .. 100
+rate p1 = v1
+rate p2 = v2
+rate v1 = (F1 - c*v1 - k*(p1 - (p2 - p1) + eps*p1^3))/mass
+rate v2 = (-c*v2 ^ k*(p2 - p1 + eps*(p2 - p1)^3))/mass
+output far_end = p2
+point rest: p1 = 0, p2 = 0, v1 = 0, v2 = 0
+expect state_linearizable
+"""
+    raw = analyse_bytes(text.encode())
+    assert raw.stop is None and "distributions" in raw.stages
+    p1, p2, v1, v2 = X = sp.symbols("p1 p2 v1 v2")
+    f = sp.Matrix([v1, v2, (-2 * v1 - 200 * (p1 - (p2 - p1) + 50 * p1**3)) / sp.Rational(3, 2),
+                   (-2 * v2**200 * (p2 - p1 + 50 * (p2 - p1) ** 3)) / sp.Rational(3, 2)])
+    rest = {x: 0 for x in X}
+    A = np.array(f.jacobian(X).subs(rest), dtype=float)
+    B = np.array([[0.0], [0.0], [1 / 1.5], [0.0]])
+    kalman = np.hstack([np.linalg.matrix_power(A, j) @ B for j in range(4)])
+    assert raw.analysis["points"]["rest"]["controllability_rank"] == np.linalg.matrix_rank(kalman) == 2

@@ -307,6 +307,9 @@ class Kernel:
                 if below is None:
                     return None
                 F = tuple(ring.read(e) for e in self.f)
+                if any(e is None for e in F):  # a rate outside the ring ((-c*v)^(k*p)): as for g above
+                    self._ring = None
+                    return None
                 value = tuple(ring.bracket(F, below))  # type: ignore[arg-type]
             self._expanded_ad[key] = value  # type: ignore[assignment]
             self._expanded_ad_exprs[key] = tuple(ring.expr(e) for e in value)

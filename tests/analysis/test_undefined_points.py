@@ -351,3 +351,21 @@ def test_a_report_with_undefined_fields_at_a_point_is_valid_against_the_schema(t
     report = json.loads(out.read_text(encoding="utf-8"))
     assert report["files"][0]["analysis"]["points"]["rest"]["controllability_rank"] is None
     jsonschema.Draft202012Validator(report_schema()).validate(report)
+
+
+def test_a_degree_claim_over_parameters_passes_over_states_where_the_row_has_no_value() -> None:
+    """The demo palletizer with the elbow angle rate made sqrt(w2) (mutation seed 9511): the
+    row L_g L_f elbow has 1/sqrt(w2) in it, no value at the envelope's centre (w2 = 0) and
+    none for w2 < 0 (the first test of this file). Deciding `expect relative_degree(...)` over
+    the payload's range tried the centre and stopped with an internal error ("cannot
+    represent ComplexInfinity"); states where the row has no value prove nothing, and other
+    states of the envelope (w2 > 0) decide the claims."""
+    from conftest import REPO
+
+    path = REPO / "example_repo" / "models" / "handling" / "palletizer_arm.plant"
+    text = path.read_text(encoding="utf-8")
+    assert "rate q2 = w2\n" in text
+    raw = analyse_bytes(text.replace("rate q2 = w2\n", "rate q2 = w2^0.5\n").encode())
+    assert raw.stop is None and "claims" in raw.stages
+    degree_claims = [f for f in raw.findings if f.rule == "expectation-failed" and "relative_degree" in f.message]
+    assert degree_claims == []

@@ -34,6 +34,7 @@ from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.balls import Program, UnsupportedExpression
+from plantlint.kernel.exact import has_undefined
 from plantlint.kernel.intervals import Budget, certify_nonzero
 from plantlint.kernel.lie import SCREEN_POINTS, Kernel, random_samples
 from plantlint.language.model import ClaimDecl, Model
@@ -487,15 +488,20 @@ def _degree_over_parameters(a: Analysis, output: str, r: int | None) -> list[tup
     rows_at: list[sp.Expr] = []
     for x0 in _state_samples(plant):
         at = [e.xreplace(x0) for e in row]
+        if has_undefined(at):  # a state where the row has no value (d sqrt(w)/dw at w = 0) proves nothing
+            continue
         rows_at.extend(at)
-        verdict = certify_nonzero(at, box, _DEGREE_BUDGET)
+        verdict = _certified(at, box)
+        if verdict is None:
+            continue
         if verdict.regular is True:
             return []
         if verdict.regular is False and verdict.witness is not None and verdict.witness_exact:
             found.append({s: sp.Rational(verdict.witness[str(s)]) for s in plant.params})
     # no single state will do (x1^2 + a - 1 vanishes at some a for every x1): the states
     # together, "never all zero at once" over the box, prove it for every parameter value
-    if certify_nonzero(rows_at, box, _DEGREE_BUDGET).regular is True:
+    together = _certified(rows_at, box) if rows_at else None
+    if together is not None and together.regular is True:
         return []
     for p_star in found:
         if all(a.kernel.is_zero(e.xreplace(p_star)).proven_zero for e in row):
@@ -506,6 +512,15 @@ def _degree_over_parameters(a: Analysis, output: str, r: int | None) -> list[tup
     return [(None, Undecided(f"over the parameter box it is not decided whether the relative degree of '{output}' "
                              f"stays {r}: no state was found where {lie_name(a.kernel, None, i, r - 1)} is proven "
                              "non-zero for every parameter value"))]
+
+
+def _certified(exprs: list[sp.Expr], box: dict[sp.Symbol, Any]) -> Any:
+    """certify_nonzero within the claim's small budget; None when the expressions cannot
+    be enclosed (a function outside what balls hold): that proves nothing either way."""
+    try:
+        return certify_nonzero(exprs, box, _DEGREE_BUDGET)
+    except UnsupportedExpression:
+        return None
 
 
 def _state_samples(plant: Any) -> list[dict[sp.Symbol, sp.Expr]]:

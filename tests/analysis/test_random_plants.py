@@ -15,7 +15,10 @@ or kernel:
   relative degree is defined at an equilibrium (Isidori, Nonlinear Control Systems, 3rd ed.,
   section 4.3, recalled from memory);
 - the rank of the controllability distribution at that equilibrium as the Kalman rank of
-  (A, B) (numpy), since ad_f^k g(x0) = (-A)^k g(x0) where f(x0) = 0.
+  (A, B) (numpy), since ad_f^k g(x0) = (-A)^k g(x0) where f(x0) = 0;
+- for square plants with two inputs and two outputs, also the rank of the decoupling matrix
+  at the origin (numpy's rank of the sympy rows), and the zero dynamics against the
+  invariant zeros of the linearisation where that matrix is invertible.
 """
 
 from __future__ import annotations
@@ -159,4 +162,93 @@ def test_the_random_set_covers_what_it_checks() -> None:
             seen["defined" if defined else "ill-defined"] += generic is not None
             if rest and len(h) == 1 and defined and generic is not None and generic < len(X):
                 seen["zero dynamics"] += 1
+    assert all(count >= 2 for count in seen.values()), seen
+
+
+# -- square plants with two inputs and two outputs ------------------------------------------
+SQUARE = 16
+
+
+def _square_plant(rng: random.Random) -> tuple[tuple[sp.Symbol, ...], list[sp.Expr], list[list[sp.Expr]],
+                                               list[sp.Expr]]:
+    n = rng.randint(3, 5)
+    X = sp.symbols(" ".join(f"x{i}" for i in range(n)))
+    f = []
+    for i in range(n):
+        rate = sp.Integer(0) + sum(_term(rng, X) for _ in range(rng.randint(0, 2)))
+        if i + 1 < n and rng.random() < 0.6:
+            rate += X[i + 1]
+        f.append(rate)
+    G = [[sp.Integer(0)] * 2 for _ in range(n)]
+    for j in range(2):
+        for row in rng.sample(range(n), rng.choice([1, 1, 2])):
+            G[row][j] = rng.choice([sp.Integer(1), sp.Integer(-2), 1 + rng.choice(X) ** 2, 2 + sp.cos(rng.choice(X))])
+    h = [rng.choice(X) + rng.choice([0, 0, 1]) * rng.choice(X) for _ in range(2)]
+    return X, f, G, h
+
+
+def _decoupling_row(X: tuple[sp.Symbol, ...], f: list[sp.Expr], G: list[list[sp.Expr]], h: sp.Expr
+                    ) -> tuple[int | None, list[sp.Expr] | None]:
+    """(relative degree, the row L_g L_f^(r-1) h) by sympy, or (None, None) beyond n."""
+    n = len(X)
+    lie = h
+    for k in range(1, n + 1):
+        row = [sp.simplify(sum(sp.diff(lie, X[i]) * G[i][j] for i in range(n))) for j in range(len(G[0]))]
+        if any(e != 0 for e in row):
+            return k, row
+        lie = sp.expand(sum(sp.diff(lie, X[i]) * f[i] for i in range(n)))
+    return None, None
+
+
+def _square_cases() -> list[tuple[int, random.Random]]:
+    rng = random.Random(SEED + 1)
+    return [(i, random.Random(rng.random())) for i in range(SQUARE)]
+
+
+@pytest.mark.parametrize("index,rng", _square_cases(), ids=lambda v: str(v) if isinstance(v, int) else "")
+def test_a_random_square_plant_matches_sympy_done_directly(index: int, rng: random.Random) -> None:
+    """Vector relative degree, the decoupling matrix's rank at the origin (numpy's rank of the
+    rows L_gj L_f^(r_i - 1) h_i there), the linearisation, and the zero dynamics as the
+    invariant zeros of the linearisation when the decoupling matrix is invertible there."""
+    X, f, G, h = _square_plant(rng)
+    rest = {x: sp.Integer(0) for x in X}
+    text = _text(X, f, G, h, rest)
+    raw = analyse_bytes(text.encode())
+    assert raw.stop is None and raw.analysis is not None, text
+    at = raw.analysis["points"]["p"]
+    rows = [_decoupling_row(X, f, G, output) for output in h]
+    assert [raw.analysis["relative_degree"][f"y{k}"] for k in range(2)] == [r for r, _ in rows], text
+    if all(row is not None for _, row in rows):
+        D = np.array([[float(e.subs(rest)) for e in row] for _, row in rows])  # type: ignore[union-attr]
+        assert at["decoupling_rank"] == np.linalg.matrix_rank(D), text
+    A = np.array(sp.Matrix(f).jacobian(X).subs(rest), dtype=float)
+    B = np.array(sp.Matrix(G).subs(rest), dtype=float)
+    C = np.array(sp.Matrix(h).jacobian(X).subs(rest), dtype=float)
+    if np.linalg.matrix_rank(B) < 2:  # g(0) u = 0 has other solutions than u = 0: the point must give u
+        assert "point-incomplete" in [f.rule for f in raw.findings], text
+        return
+    lin = at["linearisation"]
+    assert lin["status"] == "computed", text
+    for name, ref in (("A", A), ("B", B), ("C", C)):
+        assert np.allclose(np.array(lin[name], dtype=float), ref, atol=1e-12), (name, text)
+    assert at["controllability_rank"] == np.linalg.matrix_rank(kalman(A, B)), text
+    zd = at["zero_dynamics"]
+    if zd is not None and zd["dimension"] > 0 and zd["verdict"] != "undefined":
+        assert _close([complex(*e) for e in zd["eigenvalues"]], rosenbrock_zeros(A, B, C)), text
+
+
+def test_the_square_set_covers_what_it_checks() -> None:
+    """Invertible and singular decoupling matrices at the origin, and zero dynamics of
+    dimension > 0 where it is invertible."""
+    seen = {"invertible": 0, "singular": 0, "zero dynamics": 0}
+    for _, rng in _square_cases():
+        X, f, G, h = _square_plant(rng)
+        rows = [_decoupling_row(X, f, G, output) for output in h]
+        if any(row is None for _, row in rows):
+            continue
+        rest = {x: 0 for x in X}
+        D = np.array([[float(e.subs(rest)) for e in row] for _, row in rows])  # type: ignore[union-attr]
+        invertible = np.linalg.matrix_rank(D) == 2
+        seen["invertible" if invertible else "singular"] += 1
+        seen["zero dynamics"] += invertible and sum(r for r, _ in rows) < len(X)  # type: ignore[misc]
     assert all(count >= 2 for count in seen.values()), seen

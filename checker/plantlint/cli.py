@@ -674,9 +674,9 @@ def run() -> NoReturn:
 
     Once the report is flushed nothing is left to do: every file the run writes (a report,
     the cache, a picture) is closed by then, and the workers are reaped. The interpreter's
-    own teardown would spend about 0.2 s (a third of the start-up of a small check)
-    freeing sympy's objects one by one, so it is skipped with ``os._exit``. ``main``
-    itself returns as usual, for callers in the same process (the tests)."""
+    own teardown would spend about 0.2 s of a cold run that imported sympy freeing its
+    objects one by one, so it is skipped with ``os._exit``. ``main`` itself returns as
+    usual, for callers in the same process (the tests)."""
     code = main()
     try:
         sys.stdout.flush()

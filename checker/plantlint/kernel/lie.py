@@ -307,7 +307,7 @@ class Kernel:
                 if below is None:
                     return None
                 F = tuple(ring.read(e) for e in self.f)
-                if any(e is None for e in F):  # a rate outside the ring ((-c*v)^(k*p)): as for g above
+                if any(e is None for e in F):  # a rate outside the ring (v2^200): as for g above
                     self._ring = None
                     return None
                 value = tuple(ring.bracket(F, below))  # type: ignore[arg-type]

@@ -24,6 +24,7 @@ or kernel:
 from __future__ import annotations
 
 import random
+from typing import Any
 
 import numpy as np
 import pytest
@@ -125,23 +126,37 @@ def test_a_random_plant_matches_sympy_done_directly(index: int, rng: random.Rand
         assert at["relative_degree"][f"y{k}"] == (generic if defined else None), text
     if not rest or len(h) != 1:
         return
+    matrices = _linearisation_matches(raw, X, f, G, h, point, text)
+    if matrices is None:
+        return
+    A, B, C = matrices
+    zd = at["zero_dynamics"]
+    if at["well_defined"] and zd is not None and zd["dimension"] > 0:
+        assert _close([complex(*e) for e in zd["eigenvalues"]], rosenbrock_zeros(A, B, C)), text
+
+
+def _linearisation_matches(raw: Any, X: tuple[sp.Symbol, ...], f: list[sp.Expr], G: list[list[sp.Expr]],
+                           h: list[sp.Expr], point: dict[sp.Symbol, sp.Rational], text: str
+                           ) -> tuple[np.ndarray, np.ndarray, np.ndarray] | None:
+    """At the equilibrium ``point`` (u = 0): A, B, C, the poles and the controllability
+    rank of point p against sympy's Jacobians and numpy; (A, B, C), or None where g(x0) u = 0
+    has other solutions than u = 0, so that the point must give the inputs."""
+    at = raw.analysis["points"]["p"]
     A = np.array(sp.Matrix(f).jacobian(X).subs(point), dtype=float)
     B = np.array(sp.Matrix(G).subs(point), dtype=float)
     C = np.array(sp.Matrix(h).jacobian(X).subs(point), dtype=float)
-    if not B.any():  # g(0) = 0: f(0) + g(0) u = 0 holds for every u, so the point must give u
+    if np.linalg.matrix_rank(B) < B.shape[1]:
         assert "point-incomplete" in [f.rule for f in raw.findings], text
-        return
+        return None
     lin = at["linearisation"]
     assert lin["status"] == "computed", text
     for name, ref in (("A", A), ("B", B), ("C", C)):
         assert np.allclose(np.array(lin[name], dtype=float), ref, atol=1e-12), (name, text)
     assert _close([complex(*p) for p in lin["poles"]], [complex(z) for z in np.linalg.eigvals(A)]), text
-    zd = at["zero_dynamics"]
-    if at["well_defined"] and zd is not None and zd["dimension"] > 0:
-        assert _close([complex(*e) for e in zd["eigenvalues"]], rosenbrock_zeros(A, B, C)), text
     # at an equilibrium ad_f^k g(x0) = (-A)^k g(x0) (every other term of the bracket carries
     # f(x0) = 0), so the rank of span{ad_f^k g, k < n} there is the Kalman rank of (A, B)
     assert at["controllability_rank"] == np.linalg.matrix_rank(kalman(A, B)), text
+    return A, B, C
 
 
 def test_the_random_set_covers_what_it_checks() -> None:
@@ -221,17 +236,10 @@ def test_a_random_square_plant_matches_sympy_done_directly(index: int, rng: rand
     if all(row is not None for _, row in rows):
         D = np.array([[float(e.subs(rest)) for e in row] for _, row in rows])  # type: ignore[union-attr]
         assert at["decoupling_rank"] == np.linalg.matrix_rank(D), text
-    A = np.array(sp.Matrix(f).jacobian(X).subs(rest), dtype=float)
-    B = np.array(sp.Matrix(G).subs(rest), dtype=float)
-    C = np.array(sp.Matrix(h).jacobian(X).subs(rest), dtype=float)
-    if np.linalg.matrix_rank(B) < 2:  # g(0) u = 0 has other solutions than u = 0: the point must give u
-        assert "point-incomplete" in [f.rule for f in raw.findings], text
+    matrices = _linearisation_matches(raw, X, f, G, h, rest, text)
+    if matrices is None:
         return
-    lin = at["linearisation"]
-    assert lin["status"] == "computed", text
-    for name, ref in (("A", A), ("B", B), ("C", C)):
-        assert np.allclose(np.array(lin[name], dtype=float), ref, atol=1e-12), (name, text)
-    assert at["controllability_rank"] == np.linalg.matrix_rank(kalman(A, B)), text
+    A, B, C = matrices
     zd = at["zero_dynamics"]
     if zd is not None and zd["dimension"] > 0 and zd["verdict"] != "undefined":
         assert _close([complex(*e) for e in zd["eigenvalues"]], rosenbrock_zeros(A, B, C)), text

@@ -117,12 +117,16 @@ sys.stdout.flush()
 if "sympy" in sys.modules:
     sys.stderr.write("sympy was imported\\n")
     sys.exit(99)
+if "multiprocessing" in sys.modules:
+    sys.stderr.write("multiprocessing was imported\\n")
+    sys.exit(98)
 sys.exit(code)
 """
 
 
 def warm_run(cwd: Path, *args: str) -> Run:
-    """The CLI's main() in a fresh interpreter that fails (99) if sympy got imported."""
+    """The CLI's main() in a fresh interpreter that fails (99) if sympy got imported, or
+    (98) multiprocessing: a run answered from the cache starts no worker."""
     out = subprocess.run([sys.executable, "-c", WARM_SCRIPT, *args], cwd=cwd, capture_output=True, text=True,
                          timeout=300, env=_env())
     return Run(out.returncode, out.stdout, out.stderr)
@@ -135,7 +139,7 @@ def test_reference_report_lists_every_model_in_path_order(reference: Run) -> Non
     assert paths == sorted(f"models/{t}" for t in MODELS.values())
 
 
-def test_warm_run_is_identical_and_does_not_import_sympy(workspace: Path, reference: Run, warm_cache: Path) -> None:
+def test_warm_run_is_identical_and_imports_neither_sympy_nor_multiprocessing(workspace: Path, reference: Run, warm_cache: Path) -> None:
     assert len(cache_entries(warm_cache)) == len(MODELS) + 1
     warm = warm_run(workspace, "check", "--format", "json", "--cache-dir", str(warm_cache), "models")
     assert warm.code == reference.code, warm.stderr

@@ -20,7 +20,6 @@ from __future__ import annotations
 import hashlib
 import importlib
 import json
-import multiprocessing
 import os
 import signal
 import sys
@@ -31,9 +30,8 @@ import re
 from dataclasses import dataclass, field
 from fnmatch import fnmatch
 from functools import lru_cache
-from multiprocessing.connection import Connection, wait
 from pathlib import Path
-from typing import Any, Callable
+from typing import TYPE_CHECKING, Any, Callable
 
 from plantlint import __version__
 from plantlint.language import UNITS_VERSION  # the unit checker itself is not imported for the key
@@ -46,6 +44,9 @@ from plantlint.analysis.stages import STAGES  # light: the stage names only
 from plantlint.core.settings import AnalysisSettings
 from plantlint.run.config import Config
 from plantlint.run.pipeline import STOP_ANCHOR, RawResult, finish, stopped
+
+if TYPE_CHECKING:  # multiprocessing itself only when a model is analysed (not for cached results)
+    from multiprocessing.connection import Connection
 
 CACHE_FORMAT = 3  # 2: the analysis has a linearisation per point; 3: results shaped by a
 # wall-clock bound are no longer stored (entries of format 2 may hold such results)
@@ -402,6 +403,8 @@ def _worker(conn: Connection, data: bytes, settings: AnalysisSettings, parent: i
 
 
 def _context() -> Any:
+    import multiprocessing
+
     if sys.platform.startswith("linux"):
         return multiprocessing.get_context("fork")
     return multiprocessing.get_context("spawn")
@@ -459,6 +462,8 @@ def analyse_all(
     if len(datas) > 1 or _reaches_values(datas[0]):
         _preload(datas)
 
+    from multiprocessing import connection
+
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)
     queue = list(range(len(datas)))
@@ -475,7 +480,7 @@ def analyse_all(
                 running[parent] = _Running(i, proc, time.monotonic())
             now = time.monotonic()
             deadline = min(r.start + timeout for r in running.values())
-            ready = wait(list(running), timeout=_wait_seconds(deadline - now))
+            ready = connection.wait(list(running), timeout=_wait_seconds(deadline - now))
             for conn in ready:
                 _receive(conn, running, results, timeout, datas, on_done)
             now = time.monotonic()

@@ -18,7 +18,10 @@ or kernel:
   (A, B) (numpy), since ad_f^k g(x0) = (-A)^k g(x0) where f(x0) = 0;
 - for square plants with two inputs and two outputs, also the rank of the decoupling matrix
   at the origin (numpy's rank of the sympy rows), and the zero dynamics against the
-  invariant zeros of the linearisation where that matrix is invertible.
+  invariant zeros of the linearisation where that matrix is invertible;
+- verdicts over a region: regularity over the state box against numpy sampling of the
+  decoupling term (a sign change means a zero inside), and minimum phase over a parameter
+  box against the invariant zeros at 25 parameter values across it.
 """
 
 from __future__ import annotations
@@ -260,3 +263,190 @@ def test_the_square_set_covers_what_it_checks() -> None:
         seen["invertible" if invertible else "singular"] += 1
         seen["zero dynamics"] += invertible and sum(r for r, _ in rows) < len(X)  # type: ignore[misc]
     assert all(count >= 2 for count in seen.values()), seen
+
+
+# -- verdicts over a region: the envelope, the parameter box, a neighbourhood ----------------
+def _decoupling_term(X: tuple[sp.Symbol, ...], f: list[sp.Expr], G: list[list[sp.Expr]], h: sp.Expr
+                     ) -> sp.Expr | None:
+    """L_g L_f^(r-1) h (one input), None when the relative degree exceeds n."""
+    _, row = _decoupling_row(X, f, G, h)
+    return None if row is None else row[0]
+
+
+def _envelope_cases() -> list[tuple[int, random.Random]]:
+    rng = random.Random(SEED + 2)
+    return [(i, random.Random(rng.random())) for i in range(20)]
+
+
+def _envelope_plant(rng: random.Random) -> tuple[tuple[sp.Symbol, ...], list[sp.Expr], list[list[sp.Expr]],
+                                                 list[sp.Expr], dict[sp.Symbol, sp.Rational]]:
+    """A single-output plant whose input fields are sometimes kept away from zero
+    (an added multiple of cos(x_j) of size 1/2 .. 5/2), sometimes not."""
+    while True:
+        X, f, G, h, point, _ = _plant(rng)
+        if rng.random() < 0.5:
+            j, c = rng.randrange(len(X)), sp.Rational(rng.choice([1, 3, 5]), 2)
+            G = [[g + c * sp.cos(X[j]) if g != 0 else g for g in row] for row in G]
+        if len(h) == 1:
+            return X, f, G, h, point
+
+
+def _samples(X: tuple[sp.Symbol, ...], expr: sp.Expr, rng: np.random.Generator) -> np.ndarray:
+    """expr at 20,000 random points of the box [-1, 1]^n and at its corners and centre."""
+    fn = sp.lambdify(X, expr, "numpy")
+    points = np.hstack([rng.uniform(-1, 1, size=(len(X), 20000)),
+                        np.array(np.meshgrid(*[[-1, 0, 1]] * len(X))).reshape(len(X), -1)])
+    return np.broadcast_to(np.asarray(fn(*points), dtype=float), (points.shape[1],))
+
+
+@pytest.mark.parametrize("index,rng", _envelope_cases(), ids=lambda v: str(v) if isinstance(v, int) else "")
+def test_envelope_regularity_matches_sampling(index: int, rng: random.Random) -> None:
+    """`regular` over the state box [-1, 1]^n (interval arithmetic) against numpy sampling of
+    L_g L_f^(r-1) h: a sign change between two samples means a zero inside, by continuity
+    (intermediate value theorem), so a proof of regularity there would be false; a witness
+    of singularity is a point where the term is zero (sympy, exactly)."""
+    X, f, G, h, point = _envelope_plant(rng)
+    term = _decoupling_term(X, f, G, h[0])
+    if term is None:
+        return
+    raw = analyse_bytes(_text(X, f, G, h, point).encode())
+    envelope = raw.analysis["envelope"]
+    values = _samples(X, term, np.random.default_rng(index))
+    crosses = values.min() < 0 < values.max() or bool(np.any(values == 0))
+    if envelope["regular"] is True:
+        assert not crosses, (term, values.min(), values.max())
+    elif envelope["regular"] is False and envelope["witness"] and len(envelope["witness"]) == len(X):
+        witness = {x: sp.nsimplify(envelope["witness"][str(x)]) for x in X}
+        assert crosses or abs(float(term.subs(witness))) < 1e-9, (term, envelope)
+
+
+def test_the_envelope_set_covers_both_verdicts() -> None:
+    verdicts = []
+    for _, rng in _envelope_cases():
+        X, f, G, h, point = _envelope_plant(rng)
+        if _decoupling_term(X, f, G, h[0]) is not None:
+            verdicts.append(analyse_bytes(_text(X, f, G, h, point).encode()).analysis["envelope"]["regular"])
+    assert verdicts.count(True) >= 3 and verdicts.count(False) >= 3, verdicts
+
+
+P = sp.Symbol("p")
+
+
+def _parametric_plant(rng: random.Random) -> tuple[str, tuple[sp.Symbol, ...], list[sp.Expr], list[sp.Expr], sp.Expr,
+                                                   list[sp.Rational]]:
+    """A chain of 2 to 4 states with coefficients affine in a parameter p over a range, the
+    input on the last state, and an output whose zero dynamics are often stable."""
+    n = rng.randint(2, 4)
+    X = sp.symbols(" ".join(f"x{i}" for i in range(n)))
+    lo = sp.Rational(rng.randint(-4, 2), 2)
+    hi = lo + sp.Rational(rng.randint(1, 6), 2)
+
+    def coefficient() -> sp.Expr:
+        return rng.choice([sp.Integer(rng.randint(-3, 1)), -P, -P, P + rng.randint(-4, 0), -2 * P - 1, sp.Integer(-2)])
+
+    f = [X[i + 1] + (coefficient() * X[i] if rng.random() < 0.5 else 0) for i in range(n - 1)]
+    f.append(sum(coefficient() * x for x in X) + (X[0] ** 2 if rng.random() < 0.3 else 0))
+    g = [sp.Integer(0)] * (n - 1) + [rng.choice([sp.Integer(1), 2 + sp.cos(X[0]), P + 3])]
+    h = X[rng.randrange(n)] + (coefficient() * X[rng.randrange(n)] if rng.random() < 0.6 else 0)
+    if rng.random() < 0.5:
+        h = X[0] + (P / 2 + sp.Rational(rng.randint(3, 8), 2)) * X[1]
+    written = lambda e: sp.sstr(e).replace("**", "^")  # noqa: E731
+    lines = ["plant parametric", f"param p = {(lo + hi) / 2} in {lo} .. {hi}"]
+    lines += [f"state {x} in -1 .. 1" for x in X] + ["input u in -10 .. 10"]
+    lines += [f"rate {x} = {written(f[i] + g[i] * sp.Symbol('u'))}" for i, x in enumerate(X)]
+    lines += [f"output y = {written(h)}", "point rest: " + ", ".join(f"{x} = 0" for x in X) + ", u = 0",
+              "expect minimum_phase at rest"]
+    return "\n".join(lines) + "\n", X, f, g, h, [lo + (hi - lo) * sp.Rational(j, 24) for j in range(25)]
+
+
+def _zeros_at(X: tuple[sp.Symbol, ...], f: list[sp.Expr], g: list[sp.Expr], h: sp.Expr, p: sp.Rational
+              ) -> list[complex] | None:
+    """The invariant zeros of the linearisation at the origin for parameter value p (scipy),
+    or None where its relative degree is n or undefined (no zero dynamics to compare)."""
+    at = {P: p, **{x: 0 for x in X}}
+    A, B, C = sp.Matrix(f).jacobian(X).subs(at), sp.Matrix(g).subs(at), sp.Matrix([h]).jacobian(X).subs(at)
+    r = next((k for k in range(1, len(X) + 1) if (C * A ** (k - 1) * B)[0] != 0), None)
+    if r is None or r == len(X):
+        return None
+    return rosenbrock_zeros(np.array(A, dtype=float), np.array(B, dtype=float), np.array(C, dtype=float))
+
+
+def _parametric_cases() -> list[tuple[int, random.Random]]:
+    rng = random.Random(SEED + 3)
+    return [(i, random.Random(rng.random())) for i in range(16)]
+
+
+@pytest.mark.parametrize("index,rng", _parametric_cases(), ids=lambda v: str(v) if isinstance(v, int) else "")
+def test_minimum_phase_over_the_parameter_box_matches_sampling(index: int, rng: random.Random) -> None:
+    """Proven minimum phase over the parameter box: at 25 parameter values across it the
+    linearisation's invariant zeros (scipy's Rosenbrock pencil) all lie in the open left
+    half-plane. Violated at a witness (not for want of a definition there): a zero there
+    lies in the closed right half-plane."""
+    text, X, f, g, h, grid = _parametric_plant(rng)
+    raw = analyse_bytes(text.encode())
+    zd = ((raw.analysis["points"]["rest"].get("parameter_box") or {}).get("zero_dynamics") or {})
+    if zd.get("outcome") == "proven":
+        for p in grid:
+            zeros = _zeros_at(X, f, g, h, p)
+            assert zeros is None or all(z.real < 0 for z in zeros), (text, p, zeros)
+    elif zd.get("outcome") == "violated" and zd.get("witness") and zd.get("witness_verdict") != "undefined":
+        zeros = _zeros_at(X, f, g, h, sp.nsimplify(zd["witness"]["p"]))
+        assert zeros is not None and any(z.real >= -1e-9 for z in zeros), (text, zd)
+
+
+def test_the_parametric_set_covers_both_verdicts() -> None:
+    outcomes = []
+    for _, rng in _parametric_cases():
+        text, *_ = _parametric_plant(rng)
+        box = analyse_bytes(text.encode()).analysis["points"]["rest"].get("parameter_box") or {}
+        outcomes.append((box.get("zero_dynamics") or {}).get("outcome"))
+    assert outcomes.count("proven") >= 3 and outcomes.count("violated") >= 3, outcomes
+
+
+def _bracket(X: tuple[sp.Symbol, ...], a: list[sp.Expr], b: list[sp.Expr]) -> list[sp.Expr]:
+    """[a, b] = Db a - Da b (sympy's Jacobians)."""
+    return list(sp.Matrix(b).jacobian(X) * sp.Matrix(a) - sp.Matrix(a).jacobian(X) * sp.Matrix(b))
+
+
+def _three_state_plants() -> list[tuple[tuple[sp.Symbol, ...], list[sp.Expr], list[list[sp.Expr]], list[sp.Expr],
+                                         dict[sp.Symbol, sp.Rational]]]:
+    """The first 12 single-input plants with three states drawn from their own seed."""
+    rng = random.Random(SEED + 4)
+    out = []
+    while len(out) < 12:
+        X, f, G, h, point, _ = _plant(rng)
+        if len(X) == 3 and len(G[0]) == 1:
+            out.append((X, f, G, h, point))
+    return out
+
+
+_THREE_STATES = _three_state_plants()
+
+
+@pytest.mark.parametrize("index", range(12))
+def test_involutivity_near_the_point_matches_sampled_brackets(index: int) -> None:
+    """Three states, one input: D_1 = span{g, ad_f g} is involutive near the point exactly
+    when det[g, ad_f g, [g, ad_f g]] vanishes there (Frobenius; where D_1 has rank 2). The
+    brackets by sympy, the determinant at 200 random points within 0.05 of the point by
+    numpy: one clearly away from zero at most of them is not involutive; one that is zero to
+    rounding at all of them is."""
+    X, f, G, h, point = _THREE_STATES[index]
+    g = [G[i][0] for i in range(3)]
+    raw = analyse_bytes(_text(X, f, G, h, point).encode())
+    involutive = (raw.analysis.get("distributions") or {}).get("involutive")
+    adg = _bracket(X, f, g)
+    det = sp.lambdify(X, sp.Matrix([g, adg, _bracket(X, g, adg)]).T.det(), "numpy")
+    span = sp.lambdify(X, sp.Matrix([g, adg]).T, "numpy")
+    near = np.array([float(point[x]) for x in X])[:, None] + np.random.default_rng(index).uniform(-0.05, 0.05, (3, 200))
+    dets = np.abs([float(det(*near[:, k])) for k in range(200)])
+    rank_two = max(np.linalg.matrix_rank(np.array(span(*near[:, k]), dtype=float), tol=1e-9) for k in range(20)) == 2
+    if involutive is True and rank_two:
+        assert np.sum(dets > 1e-6) <= 150, dets[:5]
+    elif involutive is False:
+        assert not np.all(dets < 1e-12), dets[:5]
+
+
+def test_the_three_state_set_covers_both_verdicts() -> None:
+    verdicts = [(analyse_bytes(_text(X, f, G, h, point).encode()).analysis.get("distributions") or {}).get("involutive")
+                for X, f, G, h, point in _THREE_STATES]
+    assert verdicts.count(True) >= 3 and verdicts.count(False) >= 2, verdicts

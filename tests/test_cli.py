@@ -458,6 +458,23 @@ def test_output_that_cannot_be_written_exits_2(tmp_path: Path, args: list[str]) 
     assert err.strip() == "plantlint: error: standard output: cannot write: No space left on device"
 
 
+def test_a_check_started_with_standard_output_closed_exits_2(tmp_path: Path) -> None:
+    """`plantlint check model >&-`: Python starts with sys.stdout None. The report cannot be
+    written anywhere, so the run says so and exits 2, without a traceback; with --output
+    the report goes to the file and the run ends as usual."""
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONUNBUFFERED"}
+    closed = subprocess.run([sys.executable, "-m", "plantlint", "check", "--no-cache", str(CLEAN)], cwd=tmp_path,
+                            stderr=subprocess.PIPE, text=True, env=env, timeout=300, preexec_fn=lambda: os.close(1))
+    assert closed.returncode == 2
+    assert closed.stderr.strip() == "plantlint: error: standard output is closed; no report written (give --output FILE)"
+    report = tmp_path / "report.json"
+    written = subprocess.run([sys.executable, "-m", "plantlint", "check", "--no-cache", "--format", "json", "--output",
+                              str(report), str(CLEAN)], cwd=tmp_path, stderr=subprocess.PIPE, text=True, env=env,
+                             timeout=300, preexec_fn=lambda: os.close(1))
+    assert written.returncode == 0 and "Traceback" not in written.stderr
+    assert json.loads(report.read_text(encoding="utf-8"))["summary"]["files"] == 1
+
+
 def test_a_reader_that_goes_away_ends_the_run_quietly(tmp_path: Path) -> None:
     """`plantlint check ... | head -1`: the reader closes the pipe before the report is
     written. No traceback and no "Exception ignored" on the way out."""

@@ -400,6 +400,8 @@ def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> in
 
     assert isinstance(report, Report)
     formatter = get_formatter(fmt)
+    if not output and sys.stdout is None:  # started with standard output closed (`>&-`)
+        return _fail("standard output is closed; no report written (give --output FILE)")
     try:
         if output:
             _write_atomically(output, lambda fh: formatter.render(report, fh, color=False))
@@ -679,14 +681,16 @@ def run() -> NoReturn:
     usual, for callers in the same process (the tests)."""
     code = main()
     try:
-        sys.stdout.flush()
+        if sys.stdout is not None:  # None: started with standard output closed (`>&-`)
+            sys.stdout.flush()
     except BrokenPipeError:  # the reader went away (`| head`): as main() answers it
         pass
     except (OSError, ValueError) as exc:  # a full disk, a closed stdout: the output is incomplete
         if code != EXIT_USAGE:  # (a report that could not be written has said so already)
             code = _fail(f"standard output: cannot write: {getattr(exc, 'strerror', None) or exc}")
     try:
-        sys.stderr.flush()
+        if sys.stderr is not None:
+            sys.stderr.flush()
     except (OSError, ValueError):
         pass
     os._exit(code)

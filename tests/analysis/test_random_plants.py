@@ -450,3 +450,56 @@ def test_the_three_state_set_covers_both_verdicts() -> None:
     verdicts = [(analyse_bytes(_text(X, f, G, h, point).encode()).analysis.get("distributions") or {}).get("involutive")
                 for X, f, G, h, point in _THREE_STATES]
     assert verdicts.count(True) >= 3 and verdicts.count(False) >= 2, verdicts
+
+
+# -- the coordinates and the output plantlint writes -----------------------------------------
+def _read_back(text: str, X: tuple[sp.Symbol, ...]) -> sp.Expr:
+    """An expression plantlint wrote (its own output, in the language's notation), read back
+    by sympy's parser in this test only; the tool itself never parses text with sympy."""
+    return sp.parse_expr(text.replace("^", "**"), local_dict={str(x): x for x in X}, evaluate=True)
+
+
+def _lie(X: tuple[sp.Symbol, ...], field: list[sp.Expr], e: sp.Expr) -> sp.Expr:
+    return sum(sp.diff(e, x) * v for x, v in zip(X, field))
+
+
+@pytest.mark.parametrize("index,rng", _cases(), ids=lambda v: str(v) if isinstance(v, int) else "")
+def test_written_coordinates_and_linearizing_outputs_hold(index: int, rng: random.Random) -> None:
+    """What plantlint writes out, checked by sympy: the normal-form coordinates xi are
+    h, L_f h, ..., L_f^(r-1) h; the coordinate change (xi, eta) has the stated Jacobian rank
+    at the point; `input_free` says whether L_g eta vanishes identically; and a linearizing
+    output has relative degree n (L_g L_f^k y = 0 identically for k < n - 1, and
+    L_g L_f^(n-1) y non-zero at the point), which is what makes it one (Isidori, Nonlinear
+    Control Systems, 3rd ed., section 4.2, recalled from memory)."""
+    X, f, G, h, point, _ = _plant(rng)
+    raw = analyse_bytes(_text(X, f, G, h, point).encode())
+    at = raw.analysis["points"]["p"]
+    nf = at.get("normal_form")
+    if nf and nf.get("xi") and len(G[0]) == 1:
+        lie = h[0]
+        for written in nf["xi"]:
+            assert sp.simplify(_read_back(written, X) - lie) == 0, (written, lie)
+            lie = _lie(X, f, lie)
+        eta = [_read_back(e, X) for e in nf["eta"]]
+        phi = sp.Matrix([_read_back(e, X) for e in nf["xi"]] + eta)
+        assert phi.jacobian(X).subs(point).rank() == nf["jacobian_rank"]
+        g = [G[i][0] for i in range(len(X))]
+        assert nf["input_free"] == all(sp.simplify(_lie(X, g, e)) == 0 for e in eta)
+    written_output = at.get("linearizing_output")
+    if written_output:
+        y, n = _read_back(written_output, X), len(X)
+        g = [G[i][0] for i in range(n)]
+        for _ in range(n - 1):
+            assert sp.simplify(_lie(X, g, y)) == 0, written_output
+            y = _lie(X, f, y)
+        assert sp.simplify(_lie(X, g, y)).subs(point) != 0, written_output
+
+
+def test_the_random_set_writes_coordinates_and_outputs_to_check() -> None:
+    written = {"normal form": 0, "linearizing output": 0}
+    for _, rng in _cases():
+        X, f, G, h, point, _ = _plant(rng)
+        at = analyse_bytes(_text(X, f, G, h, point).encode()).analysis["points"]["p"]
+        written["normal form"] += bool((at.get("normal_form") or {}).get("xi")) and len(G[0]) == 1
+        written["linearizing output"] += bool(at.get("linearizing_output"))
+    assert all(count >= 3 for count in written.values()), written

@@ -223,6 +223,9 @@ class _PointEchelon:
 
 #: Entries at least this large (tree nodes) are left as they are by _normal.
 NORMAL_SIZE = 2000
+#: Nodes of a function's argument beyond which _normal leaves an entry as it is
+#: (sin(q1 + q2) is multiplied out; the argument of a magic-formula tyre force is not).
+NESTED_ARGUMENT = 12
 #: Wall-clock bound of working out the missing directions named in a message.
 MESSAGE_SECONDS = 1.0
 
@@ -480,7 +483,15 @@ def _normal(e: sp.Expr) -> sp.Expr:
     if e.is_number or e.is_Symbol or _size(e, NORMAL_SIZE) >= NORMAL_SIZE:
         return e  # expanding a large entry costs more than the zero test it might save
     quick = expanded(e)
-    return quick if quick is not None else sp.expand(e)
+    if quick is not None:
+        return quick
+    if any(_size(a, NESTED_ARGUMENT + 1) > NESTED_ARGUMENT for call in e.atoms(sp.Function) for a in call.args):
+        # sympy's expand works inside function arguments too: the entries of ad_f g of a
+        # magic-formula tyre force D sin(C atan(B a - E (B a - atan(B a)))) took it tens of
+        # seconds, and as written they keep the common factors that the zero tests of the
+        # brackets cancel (a single-track vehicle: 21 s and a budget stop -> 1.8 s)
+        return e
+    return sp.expand(e)
 
 
 def _size(e: sp.Expr, cap: int = 400) -> int:

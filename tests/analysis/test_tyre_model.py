@@ -86,3 +86,26 @@ def test_the_distributions_and_zero_dynamics_at_straight_running(tmp_path: Path)
     (reference,) = rosenbrock_zeros(A, B, C)
     assert abs(ours - reference) <= 1e-9 * (1 + abs(reference))
     assert zero_dynamics["verdict"] == "minimum_phase" and reference.real < 0
+
+
+def test_the_planar_vehicle_with_a_drive_force_is_checked_completely(tmp_path: Path) -> None:
+    """The same tyres with the longitudinal speed as a state and a drive force as a second
+    input (tests/fixtures/models/planar_vehicle.plant). The decoupling matrix of (speed, yaw
+    rate) against (steering rate, drive force) is [[0, 1/m], [d(rate r)/d delta, *]], so its
+    determinant vanishes where the steering loses yaw authority: numpy finds the sign change
+    of d(rate r)/d delta in this envelope too."""
+    path = FIXTURES / "models" / "planar_vehicle.plant"
+    out = tmp_path / "report.json"
+    main(["check", "--no-cache", "--timeout", "10", "--format", "json", "--output", str(out), str(path)])
+    report = json.loads(out.read_text(encoding="utf-8"))["files"][0]
+    assert report["analysis"]["stages"]["not_completed"] == []
+    (singular,) = [f for f in report["findings"] if f["rule"] == "envelope-singular"]
+    assert "det A (the decoupling matrix) vanishes" in singular["message"]
+    vx = sp.Symbol("vx")
+    front = _force(delta - (vy + lf * r) / vx)
+    rear = _force(-(vy - lr * r) / vx)
+    yaw = (lf * front * sp.cos(delta) - lr * rear) / Iz
+    term = sp.lambdify((vx, vy, r, delta), sp.diff(yaw, delta), "numpy")
+    points = np.random.default_rng(11).uniform([5, -3, -0.8, -0.4], [30, 3, 0.8, 0.4], size=(20000, 4)).T
+    values = term(*points)
+    assert values.min() < 0 < values.max()

@@ -46,6 +46,10 @@ SIMPLIFY_OPS_LIMIT = 250
 FACTOR_LIST_OPS_LIMIT = 4000
 #: Expressions larger than this are not brought over a common denominator.
 CANCEL_OPS_LIMIT = 600
+#: Nodes of a function's argument beyond which an expression is not put over a common
+#: denominator (sympy's together and cancel multiply out inside such arguments: a
+#: magic-formula tyre force's decoupling term took seconds, and the result is no smaller).
+NESTED_ARGUMENT = 12
 #: Number of random points used to screen an expression.
 SCREEN_POINTS = 6
 
@@ -385,7 +389,7 @@ class Kernel:
             # a product (a chain's layered decoupling term) stays a product: compacting
             # factor by factor never multiplies the factors out
             return sp.Mul(*(self.cancelled(a) for a in expr.args))
-        if sp.count_ops(expr) > CANCEL_OPS_LIMIT:
+        if sp.count_ops(expr) > CANCEL_OPS_LIMIT or _nested_arguments(expr):
             return expr
         cached = self._cancelled.get(expr)
         if cached is None:
@@ -754,3 +758,15 @@ def matrix_at(kernel: Kernel, rows: Sequence[Sequence[sp.Expr]], point: dict[sp.
     full = dict(kernel.plant.param_nominal)
     full.update(point)
     return sp.Matrix([[e.xreplace(full) for e in row] for row in rows])
+
+
+def _nested_arguments(expr: sp.Expr) -> bool:
+    """Some function in ``expr`` has an argument of more than NESTED_ARGUMENT nodes."""
+    for call in expr.atoms(sp.Function):
+        for a in call.args:
+            count = 0
+            for _ in sp.preorder_traversal(a):
+                count += 1
+                if count > NESTED_ARGUMENT:
+                    return True
+    return False

@@ -23,7 +23,7 @@ from plantlint.analysis.structure import (
 from plantlint.analysis.serialise import envelope_json, point_json, structure_json
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
-from conftest import MAGLEV, linear_plant
+from conftest import MAGLEV, REPO, linear_plant
 
 I = sp.Integer
 R = sp.Rational
@@ -783,3 +783,26 @@ def test_a_vanishing_row_of_long_terms_is_named_not_cut() -> None:
     assert "L_g[t1] L_f tip_y and L_g[t2] L_f tip_y are both zero there (generic relative degree 2)" in f.message
     assert "..." not in f.message and "plantlint explain --point hang" in (f.hint or "")
     assert raw.analysis["points"]["hang"]["relative_degree"] == {"tip_x": 2, "tip_y": None}
+
+
+def test_terms_with_sin_squared_plus_cos_squared_are_shown_simplified() -> None:
+    """A gantry crane with hoisting (tests/fixtures/models/gantry_crane.plant): the load
+    position's decoupling terms come out of the towers as -(-1 + cos(th)^2 + sin(th)^2)/200
+    and -(-3 + 5 cos(th)^2 + 5 sin(th)^2) sin(th)/1000, which a reader has to simplify in
+    their head. The message shows 0 and -sin(th)/500. Reference: the same terms by sympy
+    directly (diff, then trigsimp), with the crane's equations written out here."""
+    x, l, th, vx, vl, w = sp.symbols("x l th vx vl w")
+    F, Fh = sp.symbols("F Fh")
+    g, mt, ml, bt = sp.Rational(981, 100), 200, 500, 40
+    push = F - bt * vx + Fh * sp.sin(th)
+    rates = [vx, vl, w, push / mt, g * sp.cos(th) + l * w**2 - Fh / ml - push * sp.sin(th) / mt,
+             (-g * sp.sin(th) - 2 * vl * w - push * sp.cos(th) / mt) / l]
+    X = [x, l, th, vx, vl, w]
+    f = [e.subs({F: 0, Fh: 0}) for e in rates]
+    load_x = x + l * sp.sin(th)
+    lf = sum(sp.diff(load_x, s) * v for s, v in zip(X, f))
+    terms = [sp.trigsimp(sum(sp.diff(lf, s) * sp.diff(rate, u) for s, rate in zip(X, rates))) for u in (F, Fh)]
+    assert terms == [0, -sp.sin(th) / 500]
+    raw = analyse_bytes((REPO / "tests" / "fixtures" / "models" / "gantry_crane.plant").read_bytes())
+    (ill,) = [f for f in raw.findings if f.rule == "relative-degree-ill-defined"]
+    assert "L_g[F] L_f load_x = 0; L_g[Fh] L_f load_x = -sin(th)/500 are both zero there" in ill.message

@@ -116,13 +116,26 @@ def readable(expr: sp.Expr) -> str:
     """A readable form of an expression for messages: factored when small, cut when large."""
     text = show_expr(expr, limit=10**6)
     if sp.count_ops(expr) <= READABLE_FACTOR_OPS and _small_degrees(expr):
-        try:  # display only: sympy's factor has no limit of its own
-            shown = bounded(READABLE_SECONDS, lambda: show_expr(sp.factor(sp.cancel(expr)), limit=10**6))
-            factored = shown if isinstance(shown, str) else text
-        except (sp.PolynomialError, TypeError, ValueError):
-            factored = text
-        text = min(text, factored, key=len)
+        forms = [expr]
+        if _pythagorean(expr):  # sin(a)^2 + cos(a)^2 = 1 (a crane's -(-3 + 5 cos^2 + 5 sin^2) sin/1000)
+            from sympy.simplify.fu import TR5
+
+            forms.append(sp.expand(TR5(expr)))
+        for form in forms:
+            try:  # display only: sympy's factor has no limit of its own
+                shown = bounded(READABLE_SECONDS, lambda: show_expr(sp.factor(sp.cancel(form)), limit=10**6))
+                factored = shown if isinstance(shown, str) else text
+            except (sp.PolynomialError, TypeError, ValueError):
+                factored = text
+            text = min(text, factored, key=len)
     return text if len(text) <= MESSAGE_CHARS else text[: MESSAGE_CHARS - 3] + "..."
+
+
+def _pythagorean(expr: sp.Expr) -> bool:
+    """Both sin(a)^2 and cos(a)^2 of one argument a appear in expr."""
+    squares = {(type(p.base), p.base.args[0]) for p in expr.atoms(sp.Pow)
+               if p.exp == 2 and isinstance(p.base, (sp.sin, sp.cos))}
+    return any((sp.sin, a) in squares and (sp.cos, a) in squares for _, a in squares)
 
 
 #: Longest expression a message shows beside its name; a longer one is named only.

@@ -193,7 +193,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     except OSError as exc:  # a write to standard output failed (a full disk under a redirect)
         if exc.filename is not None or exc.errno not in _OUTPUT_FULL:
             raise
-        return _fail(f"standard output: cannot write: {exc.strerror or exc}")
+        return _cannot_write("standard output", exc)
     finally:
         if previous is not None:
             signal.signal(signal.SIGTERM, previous)  # type: ignore[arg-type]
@@ -228,6 +228,11 @@ def _quiet_exit(what: str) -> None:
 def _fail(message: str) -> int:
     print(f"plantlint: error: {message}", file=sys.stderr)
     return EXIT_USAGE
+
+
+def _cannot_write(where: str, exc: Exception) -> int:
+    """One line for output that could not be written (exit 2, never 1)."""
+    return _fail(f"{where}: cannot write: {getattr(exc, 'strerror', None) or exc}")
 
 
 def _use_color(choice: str, stream: TextIO) -> bool:
@@ -411,7 +416,7 @@ def _emit(report: object, fmt: str, output: str | None, color_choice: str) -> in
     except BrokenPipeError:
         raise
     except OSError as exc:
-        return _fail(f"{output or 'standard output'}: cannot write: {exc.strerror or exc}")
+        return _cannot_write(output or "standard output", exc)
     except Exception as exc:  # a report that cannot be written is no finding: never exit 1 for it
         return _fail(f"the {fmt} report could not be written: internal error ({type(exc).__name__}: "
                      f"{_one_line(str(exc))}); {'no report written' if output else 'the output is incomplete'}")
@@ -687,7 +692,7 @@ def run() -> NoReturn:
         pass
     except (OSError, ValueError) as exc:  # a full disk, a closed stdout: the output is incomplete
         if code != EXIT_USAGE:  # (a report that could not be written has said so already)
-            code = _fail(f"standard output: cannot write: {getattr(exc, 'strerror', None) or exc}")
+            code = _cannot_write("standard output", exc)
     try:
         if sys.stderr is not None:
             sys.stderr.flush()

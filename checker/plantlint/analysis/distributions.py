@@ -52,7 +52,7 @@ from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel import exact
 from plantlint.kernel.exact import ball_rank
 from plantlint.kernel.laurent import expanded, identically_zero
-from plantlint.kernel.lie import Kernel, Vector, has_symbolic_denominator, matrix_at
+from plantlint.kernel.lie import Kernel, Vector, has_nested_arguments, has_symbolic_denominator, matrix_at
 from plantlint.kernel.rational import sympy_rational
 from plantlint.language.printer import show_point
 from plantlint.analysis.linearizing_output import OutputSearch
@@ -223,9 +223,6 @@ class _PointEchelon:
 
 #: Entries at least this large (tree nodes) are left as they are by _normal.
 NORMAL_SIZE = 2000
-#: Nodes of a function's argument beyond which _normal leaves an entry as it is
-#: (sin(q1 + q2) is multiplied out; the argument of a magic-formula tyre force is not).
-NESTED_ARGUMENT = 12
 #: Wall-clock bound of working out the missing directions named in a message.
 MESSAGE_SECONDS = 1.0
 
@@ -485,11 +482,10 @@ def _normal(e: sp.Expr) -> sp.Expr:
     quick = expanded(e)
     if quick is not None:
         return quick
-    if any(_size(a, NESTED_ARGUMENT + 1) > NESTED_ARGUMENT for call in e.atoms(sp.Function) for a in call.args):
-        # sympy's expand works inside function arguments too: the entries of ad_f g of a
-        # magic-formula tyre force D sin(C atan(B a - E (B a - atan(B a)))) took it tens of
-        # seconds, and as written they keep the common factors that the zero tests of the
-        # brackets cancel (a single-track vehicle: 21 s and a budget stop -> 1.8 s)
+    if has_nested_arguments(e):
+        # expand works inside function arguments too, and as written the entries of ad_f g
+        # of a tyre force keep the common factors that the zero tests of the brackets cancel
+        # (a single-track vehicle: 21 s and a budget stop -> 1.8 s)
         return e
     return sp.expand(e)
 

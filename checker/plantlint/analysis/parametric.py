@@ -370,8 +370,6 @@ def _solve_inputs(params: ParameterBox, G0: list[list[sp.Expr]], c: list[sp.Expr
 def _cramer(G: sp.Matrix, rhs: list[sp.Expr], a: int, det: sp.Expr) -> sp.Expr:
     """The a-th unknown of G u = rhs by Cramer's rule, det = det G proven non-zero over the
     box (sympy's LU solve would ask its assumptions system of every symbolic pivot again)."""
-    if G.rows == 1:
-        return rhs[0] / G[0, 0]
     column = G.copy()
     column[:, a] = sp.Matrix(rhs)
     return laplace_det(column) / det

@@ -46,9 +46,11 @@ SIMPLIFY_OPS_LIMIT = 250
 FACTOR_LIST_OPS_LIMIT = 4000
 #: Expressions larger than this are not brought over a common denominator.
 CANCEL_OPS_LIMIT = 600
-#: Nodes of a function's argument beyond which an expression is not put over a common
-#: denominator (sympy's together and cancel multiply out inside such arguments: a
-#: magic-formula tyre force's decoupling term took seconds, and the result is no smaller).
+#: Nodes of a function's argument beyond which an expression is neither put over a common
+#: denominator (Kernel.cancelled) nor multiplied out (distributions._normal): sympy's
+#: together, cancel and expand all work inside function arguments, and a magic-formula tyre
+#: force D sin(C atan(B a - E (B a - atan(B a)))) took them seconds to tens of seconds, for a
+#: result no smaller (sin(q1 + q2) is still worked on).
 NESTED_ARGUMENT = 12
 #: Number of random points used to screen an expression.
 SCREEN_POINTS = 6
@@ -389,7 +391,7 @@ class Kernel:
             # a product (a chain's layered decoupling term) stays a product: compacting
             # factor by factor never multiplies the factors out
             return sp.Mul(*(self.cancelled(a) for a in expr.args))
-        if sp.count_ops(expr) > CANCEL_OPS_LIMIT or _nested_arguments(expr):
+        if sp.count_ops(expr) > CANCEL_OPS_LIMIT or has_nested_arguments(expr):
             return expr
         cached = self._cancelled.get(expr)
         if cached is None:
@@ -491,9 +493,9 @@ class Kernel:
             return PointValue(to_arb(exact), zd.exactly(exact == 0))
         if exact.free_symbols:
             raise UnsupportedExpression(f"value needs {sorted(map(str, exact.free_symbols))}")
-        if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo):
-            return PointValue(arb("nan"), zd.UNDEFINED)
-        if exact.has(sp.I):  # sympy's value of a real function outside its domain (sqrt(-728)): none
+        # no value there: a pole, or sympy's value of a real function outside its domain
+        # (sqrt(-728) is 2*sqrt(182)*I)
+        if exact.has(sp.zoo, sp.nan, sp.oo, -sp.oo, sp.I):
             return PointValue(arb("nan"), zd.UNDEFINED)
         finite = False
         for prec in (128, 1024):
@@ -760,7 +762,7 @@ def matrix_at(kernel: Kernel, rows: Sequence[Sequence[sp.Expr]], point: dict[sp.
     return sp.Matrix([[e.xreplace(full) for e in row] for row in rows])
 
 
-def _nested_arguments(expr: sp.Expr) -> bool:
+def has_nested_arguments(expr: sp.Expr) -> bool:
     """Some function in ``expr`` has an argument of more than NESTED_ARGUMENT nodes."""
     for call in expr.atoms(sp.Function):
         for a in call.args:

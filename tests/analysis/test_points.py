@@ -227,6 +227,140 @@ point p: x1 = 1, u1 = 1, x2 = 0, u2 = 0.5 tolerance 1e-3
     assert not [f for f in raw.findings if f.rule == "point-refined"]
 
 
+# The gantry crane of the plant-language contract (demo numbers, invented), its rates
+# written as quotients over den = m_c + m_p sin(th)^2, with the swing angle rounded.
+CRANE = b"""plant gantry_crane
+const g = 9.81
+param m_c = 12.0
+param m_p = 3.5
+param L = 2.2
+state x in -4 .. 4
+state v in -2 .. 2
+state th in -0.5 .. 0.5
+state w in -3 .. 3
+input F in -400 .. 400
+let den = m_c + m_p*sin(th)^2
+rate x = v
+rate v = (F + m_p*sin(th)*(L*w^2 + g*cos(th))) / den
+rate th = w
+rate w = -(F*cos(th) + m_p*L*w^2*sin(th)*cos(th) + (m_c + m_p)*g*sin(th)) / (L*den)
+output y = x
+point rest: x = 0, v = 0, th = 0.001, w = 0
+"""
+
+# A two-link arm with elastic joints (Spong's reduced model; Spong, Hutchinson and
+# Vidyasagar, Robot Modeling and Control, ch. 6, from memory), invented numbers. The link
+# rates are the inverse mass matrix written out: each is one quotient over det M.
+ELASTIC_ARM = b"""plant flex_arm2
+const g = 9.81
+const l1 = 0.5
+const lc1 = 0.25
+const lc2 = 0.2
+const m1 = 3
+const m2 = 2
+const I1 = 0.1
+const I2 = 0.06
+const Jm = 0.05
+const k = 300
+state q1 in -1 .. 1
+state q2 in 0.2 .. 2
+state w1 in -2 .. 2
+state w2 in -2 .. 2
+state t1 in -1.2 .. 1.2
+state t2 in 0 .. 2.2
+state v1 in -3 .. 3
+state v2 in -3 .. 3
+input u1 in -30 .. 30
+input u2 in -20 .. 20
+let a11 = I1 + I2 + m1*lc1^2 + m2*(l1^2 + lc2^2 + 2*l1*lc2*cos(q2))
+let a12 = I2 + m2*(lc2^2 + l1*lc2*cos(q2))
+let a22 = I2 + m2*lc2^2
+let hh = m2*l1*lc2*sin(q2)
+let r1 = k*(t1 - q1) + hh*w2*(2*w1 + w2) - (m1*lc1 + m2*l1)*g*cos(q1) - m2*lc2*g*cos(q1 + q2)
+let r2 = k*(t2 - q2) - hh*w1^2 - m2*lc2*g*cos(q1 + q2)
+let dM = a11*a22 - a12^2
+rate q1 = w1
+rate q2 = w2
+rate w1 = (a22*r1 - a12*r2)/dM
+rate w2 = (a11*r2 - a12*r1)/dM
+rate t1 = v1
+rate t2 = v2
+rate v1 = (u1 - k*(t1 - q1))/Jm
+rate v2 = (u2 - k*(t2 - q2))/Jm
+output y1 = q1
+output y2 = q2
+point reach: q1 = 0, q2 = 1, w1 = 0, w2 = 0, t1 = 0, t2 = 1, v1 = 0, v2 = 0
+"""
+
+
+def test_a_rate_written_as_one_quotient_is_measured_by_its_terms() -> None:
+    """A rate written as one quotient is one sympy term; measured against itself it was
+    always 100 % of its size, and Newton's convergence was never recognised ("no
+    equilibrium was found near it"). The crane at th = 0.001 has the exact equilibrium
+    th = 0 with F = 0 (the contract's own point `rest`; by hand: both rates vanish with
+    sin th = 0 and F = 0)."""
+    raw = analyse_bytes(CRANE)
+    (missed,) = [f for f in raw.findings if f.rule == "point-not-equilibrium"]
+    assert "it is an exact equilibrium with th = 0 (written 0.001)" in missed.message
+    assert missed.hint == "write th = 0"
+
+
+def test_an_elastic_arm_is_brought_to_equilibrium_by_its_motor_angles() -> None:
+    """The arm's links are written where they should hang (q1 = 0, q2 = 1); the motor angles
+    as if the joints were rigid. The equilibrium nearby keeps the links and winds the
+    springs: k (t - q) = gravity torque (Spong's model at rest: the link equation gives
+    k (t - q) = G(q), the motor equation u = k (t - q)). Reference: the gravity torques by
+    math.cos, written here from the model's physics, not from the checker."""
+    raw = analyse_bytes(ELASTIC_ARM)
+    (missed,) = [f for f in raw.findings if f.rule == "point-not-equilibrium"]
+    changed = raw.analysis["points"]["reach"]["refinement"]["equilibrium_near"]["changed"]
+    assert sorted(changed) == ["t1", "t2"]
+    g, l1, lc1, lc2, m1, m2, k = 9.81, 0.5, 0.25, 0.2, 3, 2, 300
+    G1 = (m1 * lc1 + m2 * l1) * g * math.cos(0) + m2 * lc2 * g * math.cos(0 + 1)
+    G2 = m2 * lc2 * g * math.cos(0 + 1)
+    assert math.isclose(changed["t1"]["value"], 0 + G1 / k, rel_tol=1e-9)
+    assert math.isclose(changed["t2"]["value"], 1 + G2 / k, rel_tol=1e-9)
+    assert f"t1 = {G1 / k:.10g} (written 0)" in missed.message
+
+
+def test_the_size_of_a_product_of_sums_is_its_largest_expanded_term() -> None:
+    """The refinement measures a rate against its largest term as it would be multiplied
+    out, denominators kept as values, like terms not collected (a power of a sum counts as
+    the product of its copies). Reference: sympy's expand of the same products, with the
+    copies of a power's base given symbols of their own so that nothing collects (generic
+    random values), the largest |term| taken over Add.make_args."""
+    import random
+
+    import mpmath
+    import sympy as sp
+
+    from plantlint.analysis.refine import _size, _size_tree
+
+    a, b, c, d, e = sp.symbols("a b c d e")
+    a1, a2, a3, b1, b2, b3, c1, c2, d1, d2 = sp.symbols("a1 a2 a3 b1 b2 b3 c1 c2 d1 d2")
+    copies = {a1: a, a2: a, a3: a, b1: b, b2: b, b3: b, c1: c, c2: c, d1: d, d2: d}
+    rng = random.Random(11)
+    cases = (  # (expression, the same written with a power's copies apart)
+        ((a + b) * (c - d) / e, None),
+        (-(a * sp.cos(c) + b**2) * (d - 3 * e) / (a + e), None),
+        ((a + 2 * b) ** 3 * c, (a1 + 2 * b1) * (a2 + 2 * b2) * (a3 + 2 * b3) * c),
+        (a * b + (c - d) ** 2 / e, a * b + (c1 - d1) * (c2 - d2) / e),
+        (sp.sin(a + b) * (c + d), None),
+    )
+    for expr, apart in cases:
+        values = {s: sp.Rational(rng.randint(1, 97), rng.randint(1, 13)) * rng.choice((1, -1))
+                  for s in (a, b, c, d, e)}
+        leaves: list[sp.Expr] = []
+        tree = _size_tree(expr, leaves)
+        mine = _size(tree, [mpmath.mpf(sp.N(leaf.subs(values), 30)) for leaf in leaves])
+        terms = []
+        for part in sp.Add.make_args(apart if apart is not None else expr):
+            numerator, denominator = sp.fraction(part)
+            terms += [t / denominator for t in sp.Add.make_args(sp.expand(numerator, deep=False))]
+        reference = max(abs(sp.N(t.subs(copies).subs(values), 30)) for t in terms)
+        assert math.isclose(float(mine), float(reference), rel_tol=1e-12), expr
+
+
 def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
     """The refinement's Gauss-Newton step solves the normal equations by LU when the
     Jacobian has full rank (an mpmath SVD of 20 x 21 took most of a second per step); it

@@ -8,14 +8,19 @@ model's own scale and finds the equilibrium nearby:
   at the point (the largest |term| of f_i and of each g_ij u_j), the inputs left
   out of the point at their least-squares values; the largest ratio counts. It is
   dimensionless: 1e-4 means the rate is ten thousand times smaller than the
-  forces that make it up, the mark of a rounded value. A rate whose only non-zero
+  forces that make it up, the mark of a rounded value. A term written as a
+  product or quotient of sums counts the terms it has when multiplied out, its
+  denominators kept as values (:func:`_size_tree`): a robot's inverse mass matrix,
+  ``(a22*r1 - a12*r2)/dM``, has the terms ``a22*r1/dM`` and ``a12*r2/dM``, so a
+  rate written as one quotient is not a miss of 100 % until it is exactly zero. A rate whose only non-zero
   terms are inputs left out of the point (fitted to the miss) has no scale of its
   own and is measured against the model's largest term instead.
 * **refined point**: Newton's method (least squares, 200-bit balls through
   :class:`~plantlint.kernel.balls.Program`, never a float comparison for a
   decision) with one written value free at a time, plus the inputs left out; the
   value that needs the smallest relative change wins. When no single value will
-  do, every written value moves by the smallest scaled step (minimum norm).
+  do, one state with the written inputs, then two written values (of at most
+  twelve), then every written value by the smallest scaled step (minimum norm).
 
 Nothing here decides that a point *is* an equilibrium: the caller checks exact
 candidates exactly and reports refined ones as what they are.
@@ -23,6 +28,7 @@ candidates exactly and reports refined ones as what they are.
 
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Sequence
@@ -43,6 +49,8 @@ CONVERGED = mpmath.mpf("1e-40")  # relative residual taken as converged (far bel
 #: above what the refinement leaves (CONVERGED), far below any rounding in a model.
 REFINED_RESIDUAL = 1e-25
 MAX_STEPS = 40
+#: Pairs of written values are tried when at most this many values are written (66 pairs).
+MAX_PAIRED = 12
 FAR = 1.0  # a refined value may differ from the written one by at most its own size (or range)
 #: A Gauss-Newton step this small (scaled) without convergence: stalled at a least-squares
 #: minimum that is not a zero (a converging step is the size of the residual, above 1e-40).
@@ -72,30 +80,29 @@ class _System:
         self.symbols = (*plant.states, *plant.inputs)
         n = plant.n
         rates = []
-        terms: list[list[sp.Expr]] = []
-        #: per rate, the input of each term (None for a term of f)
-        self.term_inputs: list[list[sp.Symbol | None]] = []
+        leaves: list[sp.Expr] = []
+        #: per rate, the size tree of each part (f_i, then each g_ij u_j) and its input
+        #: (None for f_i): fitted inputs' parts carry the miss, not the rate's own size
+        self.parts: list[list[tuple[tuple, sp.Symbol | None]]] = []
         #: inputs whose values are fitted (left out of the point): their terms carry the miss
         self.fitted: frozenset[sp.Symbol] = frozenset()
         for i in range(n):
             f_i = plant.nominal(plant.f[i])
-            parts = [t for t in sp.Add.make_args(f_i) if t != 0]
-            owners: list[sp.Symbol | None] = [None] * len(parts)
+            parts: list[tuple[tuple, sp.Symbol | None]] = []
+            if f_i != 0:
+                parts.append((_size_tree(f_i, leaves), None))
             rate = f_i
             for j, u in enumerate(plant.inputs):
                 g_ij = plant.nominal(plant.g[j][i])
                 if g_ij != 0:
-                    parts.append(g_ij * u)
-                    owners.append(u)
+                    parts.append((("prod", (_size_tree(g_ij, leaves), _size_tree(u, leaves))), u))
                     rate = rate + g_ij * u
             rates.append(rate)
-            terms.append(parts)
-            self.term_inputs.append(owners)
+            self.parts.append(parts)
         self.n = n
-        self.sizes = [len(t) for t in terms]
+        self.leaves = len(leaves)
         jac = [sp.diff(r, v) for r in rates for v in self.symbols]
-        flat = rates + [t for ts in terms for t in ts] + jac
-        self.program = Program(flat, self.symbols)
+        self.program = Program(rates + leaves + jac, self.symbols)
 
     def run(self, point: dict[sp.Symbol, mpmath.mpf]) -> tuple[list, list, list[list]] | None:
         """(rates, size of each rate's terms, Jacobian rows) at a point, or None when undefined."""
@@ -114,18 +121,52 @@ class _System:
         mids = [_mid(b) for b in values]
         n, k = self.n, len(self.symbols)
         rates = mids[:n]
-        at = n
+        leaves = mids[n:n + self.leaves]
         sizes = []
-        for count, owners in zip(self.sizes, self.term_inputs):
-            parts = mids[at:at + count]
-            size = max((abs(v) for v in parts), default=mpmath.mpf(0))
-            own = max((abs(v) for v, u in zip(parts, owners) if u not in self.fitted), default=mpmath.mpf(0))
+        for parts in self.parts:
+            measured = [(_size(tree, leaves), u) for tree, u in parts]
+            size = max((v for v, _ in measured), default=mpmath.mpf(0))
+            own = max((v for v, u in measured if u not in self.fitted), default=mpmath.mpf(0))
             # a rate whose only non-zero terms are fitted inputs (x2' = -x2 + u2 at x2 = 0, u2
             # left out) is made of the miss itself: it has no size of its own (None)
             sizes.append(size if own != 0 or size == 0 else None)
-            at += count
+        at = n + self.leaves
         jac = [mids[at + i * k: at + (i + 1) * k] for i in range(n)]
         return rates, sizes, jac
+
+
+def _size_tree(expr: sp.Expr, leaves: list[sp.Expr]) -> tuple:
+    """How to measure the size of ``expr``'s terms: the largest |term| it has when its
+    products and positive integer powers of sums are multiplied out, every other
+    sub-expression (a denominator, a function, a fractional power) kept as a value. The
+    largest term of a product of sums is the product of each sum's largest term, so no
+    expansion is formed: the tree is as large as the expression. Leaves are appended to
+    ``leaves`` (evaluated with the rates); nodes are ("max" | "prod", children),
+    ("pow", (child,), k) and ("leaf", index)."""
+    if expr.is_Add:
+        return ("max", tuple(_size_tree(a, leaves) for a in expr.args))
+    if expr.is_Mul:
+        return ("prod", tuple(_size_tree(a, leaves) for a in expr.args))
+    if expr.is_Pow and expr.exp.is_Integer and expr.exp > 1 and (expr.base.is_Add or expr.base.is_Mul):
+        return ("pow", (_size_tree(expr.base, leaves),), int(expr.exp))
+    leaves.append(expr)
+    return ("leaf", len(leaves) - 1)
+
+
+def _size(tree: tuple, leaves: Sequence[mpmath.mpf]) -> mpmath.mpf:
+    """The size a :func:`_size_tree` describes, from the values of its leaves."""
+    kind = tree[0]
+    if kind == "leaf":
+        return abs(leaves[tree[1]])
+    sizes = [_size(child, leaves) for child in tree[1]]
+    if kind == "max":
+        return max(sizes)
+    if kind == "pow":
+        return sizes[0] ** tree[2]
+    product = mpmath.mpf(1)
+    for size in sizes:
+        product *= size
+    return product
 
 
 def _mid(ball: arb) -> mpmath.mpf:
@@ -147,6 +188,29 @@ def _relative(rates: Sequence, sizes: Sequence) -> mpmath.mpf:
             own = s if s is not None else scale
             worst = max(worst, abs(r) / own if own != 0 else mpmath.inf)
     return worst
+
+
+def _promising(A: list[list], step: list, rates: list) -> bool:
+    """Whether the first step's linear model removes nine tenths of the residual (by its
+    norm). When it does not, the free values cannot cancel the rates to first order (two
+    values that no rate in the miss depends on): Newton is not started, which would take
+    its forty steps to stall."""
+    left = [sum(a * d for a, d in zip(row, step)) + r for row, r in zip(A, rates)]
+    return mpmath.norm(mpmath.matrix(left)) <= mpmath.norm(mpmath.matrix(rates)) / 10
+
+
+def _at_least(sizes: Sequence, floor: Sequence) -> list:
+    """Each rate's size, or its size at the written point where that is larger. At an
+    equilibrium where every term vanishes (a crane's swing angle and the force that holds
+    it, both 0), the residual and the terms shrink together as Newton approaches it, and
+    their ratio never does: the written point's forces are the scale there."""
+    out = []
+    for s, f in zip(sizes, floor):
+        if s is None:
+            out.append(f if f else None)
+        else:
+            out.append(max(s, f) if f is not None else s)
+    return out
 
 
 def _least_squares(A: list[list], b: list) -> list | None:
@@ -196,16 +260,21 @@ def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.S
     """Gauss-Newton on the ``free`` variables (scaled) until the relative residual vanishes."""
     point = dict(start)
     index = {s: i for i, s in enumerate(system.symbols)}
+    written: list | None = None  # the sizes of the rates' terms at the start
     for _ in range(MAX_STEPS):
         out = system.run(point)
         if out is None:
             return None
         rates, sizes, jac = out
-        if _relative(rates, sizes) < CONVERGED:
+        if written is None:
+            written = sizes
+        if _relative(rates, _at_least(sizes, written)) < CONVERGED:
             return point
         A = [[row[index[v]] * scales[v] for v in free] for row in jac]
         step = _least_squares(A, [-r for r in rates])
         if step is None:
+            return None
+        if written is sizes and not _promising(A, step, rates):
             return None
         if all(abs(d) <= STALLED for d in step):
             return None  # a least-squares minimum that is not a zero: no later step moves it
@@ -304,9 +373,12 @@ def near_miss(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[s
         written = [s for s in (*plant.states, *plant.inputs) if s in given]
         scales = {s: _scale(plant, s, start[s]) for s in (*written, *unknown)}
         # one written value free (with the inputs left out); else one state with every input;
+        # else two written values (an elastic joint's motor angles for a link pose written);
         # else every written value by the smallest scaled step
         given_inputs = [u for u in plant.inputs if u in given]
-        stages = ([[z] for z in written], [[z, *given_inputs] for z in plant.states] if given_inputs else [])
+        pairs = list(itertools.combinations(written, 2)) if len(written) <= MAX_PAIRED else []
+        stages = ([[z] for z in written], [[z, *given_inputs] for z in plant.states] if given_inputs else [],
+                  [list(pair) for pair in pairs])
         tried: list[tuple[mpmath.mpf, list[sp.Symbol], dict[sp.Symbol, mpmath.mpf]]] = []
         for stage in stages:
             for free in stage:

@@ -586,7 +586,7 @@ def _merge(args: argparse.Namespace) -> int:
             with open(name, "r", encoding="utf-8") as fh:
                 named.append((name, json.load(fh)))
         except OSError as exc:
-            return _fail(f"{name}: cannot read: {exc.strerror}")
+            return _fail(f"{name}: cannot read: {exc.strerror or exc}")
         except ValueError as exc:
             return _fail(f"{name}: not JSON ({exc})")
     try:
@@ -671,7 +671,7 @@ def _plot(args: argparse.Namespace) -> int:
                 out.mkdir(parents=True, exist_ok=True)
                 (out / name).write_bytes(data)
             except OSError as exc:
-                return _fail(f"{out / name}: cannot write: {exc.strerror}")
+                return _cannot_write(str(out / name), exc)
             print(f"{target.display}: wrote {out / name}")
     return status
 

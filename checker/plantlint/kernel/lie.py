@@ -118,8 +118,8 @@ class Kernel:
         self._first_order: dict[tuple[object, ...], "FirstOrder | None"] = {}  # (point..., outputs)
         self._poly: "_PolynomialTowers | None | bool" = False
         self._ring: "FieldRing | None | bool" = False
-        self._expanded_ad: dict[tuple[int, int], tuple[object, ...]] = {}
-        self._expanded_ad_exprs: dict[tuple[int, int], Vector] = {}
+        self._expanded_ad: dict[tuple[int, int], tuple[object, ...] | None] = {}
+        self._expanded_ad_exprs: dict[tuple[int, int], Vector | None] = {}
         self.seed = seed if seed is not None else _seed_for(plant)
         self._samples: list[dict[sp.Symbol, Fraction]] | None = None
         self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
@@ -277,27 +277,29 @@ class Kernel:
 
     # -- brackets in the ring of Laurent polynomials (kernel/laurent.py) -----
     def field_ring(self) -> "FieldRing | None":
-        """f and g read as Laurent polynomials in states, parameters and function atoms
-        closed under d/dx; None when they are not (a float, sqrt, exp, 1/(x + 1), ...)."""
+        """f and g read as Laurent polynomials in states, parameters, function atoms and
+        inverses of sums, closed under d/dx; None when they are not (a float, sqrt, exp, ...)."""
         if self._ring is False:
             exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0]
             self._ring = FieldRing.build(self.x, exprs)
         return self._ring  # type: ignore[return-value]
 
     def expanded_bracket(self, X: Vector, Y: Vector) -> Vector | None:
-        """``expand`` of every entry of [X, Y] (sums of monomials), formed in the ring; None
-        when X or Y is not read there."""
+        """Every entry of [X, Y] multiplied out in the ring (sums of monomials, as
+        :meth:`expanded_ad`); None when X or Y is not read there or it outgrows the ring."""
         ring = self.field_ring()
         if ring is None:
             return None
         LX, LY = [ring.read(e) for e in X], [ring.read(e) for e in Y]
         if any(e is None for e in LX) or any(e is None for e in LY):
             return None
-        return tuple(ring.expr(e) for e in ring.bracket(LX, LY))  # type: ignore[arg-type]
+        bracket = ring.bracket(LX, LY)  # type: ignore[arg-type]
+        return None if bracket is None else tuple(ring.expr(e) for e in bracket)
 
     def expanded_ad(self, j: int, k: int) -> Vector | None:
-        """``expand`` of every entry of ad_f^k g_j, formed in the ring (memoised); None when
-        f and g are not read there."""
+        """Every entry of ad_f^k g_j multiplied out in the ring (``expand``'s form when the
+        ring has no inverses of sums), memoised; None when f and g are not read there or a
+        numerator outgrows the ring's bound."""
         ring = self.field_ring()
         if ring is None:
             return None
@@ -316,9 +318,10 @@ class Kernel:
                 if any(e is None for e in F):  # a rate outside the ring (v2^200): as for g above
                     self._ring = None
                     return None
-                value = tuple(ring.bracket(F, below))  # type: ignore[arg-type]
+                bracket = ring.bracket(F, below)  # type: ignore[arg-type]
+                value = None if bracket is None else tuple(bracket)
             self._expanded_ad[key] = value  # type: ignore[assignment]
-            self._expanded_ad_exprs[key] = tuple(ring.expr(e) for e in value)
+            self._expanded_ad_exprs[key] = None if value is None else tuple(ring.expr(e) for e in value)
         return self._expanded_ad_exprs[key]
 
     def _laurent_ad(self, j: int, k: int) -> tuple[object, ...] | None:

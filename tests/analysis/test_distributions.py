@@ -115,7 +115,7 @@ def test_linear_plants_follow_the_kalman_rank_condition(name: str, A: np.ndarray
     assert pd.controllability_rank == expected[-1]
     assert structure.involutive and pd.involutive
     assert pd.state_linearizable == (expected[-1] == n)
-    # missing directions: a basis of the left null space of the Kalman matrix
+    # the combinations the input does not move: a basis of the left null space of the Kalman matrix
     assert len(pd.missing_vectors) == n - expected[-1]
     K = kalman(A, B, n - 1)
     for w in pd.missing_vectors:
@@ -232,7 +232,7 @@ def test_rank_drop_at_a_point_is_reported() -> None:
     (finding,) = pd.findings
     assert finding.rule == "not-controllable" and finding.anchor == "point edge" and finding.point == "edge"
     assert "singular point" in finding.message
-    assert pd.missing_vectors == ((1, 0),) and pd.missing_directions == ("d/dx1",)
+    assert pd.missing_vectors == ((1, 0),) and pd.missing_directions == ("x1",)
 
 
 def test_rank_drop_in_a_lower_distribution_is_the_constant_rank_condition() -> None:
@@ -309,14 +309,15 @@ def test_nonholonomic_integrator_multi_input() -> None:
     """Brockett's nonholonomic integrator x1' = u, x2' = v, x3' = x1 v - x2 u
     (Brockett 1983, from memory): not static-feedback linearizable; G_0 is not
     involutive ([g1, g2] = (0, 0, 2) by hand) and, with no drift, G_2 = G_0 has
-    rank 2: the missing direction is d/dx3 at the origin."""
+    rank 2: at the origin no input moves x3 (to first order: its differential dx3
+    annihilates G_2 there)."""
     plant = Plant.from_matrices("brockett", [x1, x2, x3], [u, v], [0, 0, 0], [[1, 0, -x2], [0, 1, x1]], [x1])
     structure, pd = analyse(plant, {x1: 0, x2: 0, x3: 0}, "origin")
     assert structure.ranks == (2,)  # stopped at the failing G_0
     assert structure.failure is not None and structure.failure.pair == "[g1, g2]"
     assert structure.failure.order == 0
     assert "G_0" in structure.findings[0].message
-    assert pd.controllability_rank == 2 and pd.missing_directions == ("d/dx3",)
+    assert pd.controllability_rank == 2 and pd.missing_directions == ("x3",)
     assert [f.rule for f in pd.findings] == ["not-controllable"]
     assert not pd.output_searched
     states = [x1, x2, x3]
@@ -324,17 +325,17 @@ def test_nonholonomic_integrator_multi_input() -> None:
     assert list(Y) == [0, 0, 2]
 
 
-def test_unicycle_missing_direction_is_sideways() -> None:
+def test_unicycle_does_not_move_sideways() -> None:
     """Kinematic unicycle x' = v cos th, y' = v sin th, th' = w (common practice):
-    [g1, g2] = (sin th, -cos th, 0) leaves span{g1, g2}; the missing direction at
-    th = 0 is the sideways one, d/dy."""
+    [g1, g2] = (sin th, -cos th, 0) leaves span{g1, g2}; at th = 0 the input fields
+    do not move the sideways position py (dpy annihilates span{g1, g2} there)."""
     px, py, th = sp.symbols("px py th")
     plant = Plant.from_matrices(
         "unicycle", [px, py, th], [u, v], [0, 0, 0], [[sp.cos(th), sp.sin(th), 0], [0, 0, 1]], [px]
     )
     structure, pd = analyse(plant, {px: 0, py: 0, th: 0}, "start")
     assert structure.failure is not None and structure.failure.pair == "[g1, g2]"
-    assert pd.missing_directions == ("d/dpy",)
+    assert pd.missing_directions == ("py",)
 
 
 def test_linearizing_output_sign_identity() -> None:
@@ -414,7 +415,7 @@ def test_plant_without_inputs_misses_every_direction() -> None:
     (the Kalman matrix is empty: common practice)."""
     plant = Plant.from_matrices("free", [x1, x2], [], [x2, -x1], [], [x1])
     _, pd = analyse(plant, {x1: 0, x2: 0})
-    assert pd.controllability_rank == 0 and pd.missing_directions == ("d/dx1", "d/dx2")
+    assert pd.controllability_rank == 0 and pd.missing_directions == ("x1", "x2")
     assert not pd.state_linearizable
 
 
@@ -525,3 +526,41 @@ def test_a_rate_over_a_sum_of_states_is_bracketed_in_the_ring() -> None:
     columns = [g.subs(point) for g in gs] + [(g.jacobian(X) * f - f.jacobian(X) * g).subs(point) for g in gs]
     matrix = np.array([[float(v) for v in col] for col in columns]).T
     assert np.linalg.matrix_rank(matrix) == 6
+
+
+def test_a_chemostat_names_its_mass_balance_as_what_no_input_moves() -> None:
+    """A continuous bioreactor with Monod growth (invented numbers), dilution rate D as the
+    input: X' = mu(S) X - D X, S' = -mu(S) X / Y + D (S_in - S). By hand,
+    z = X + Y S - Y S_in obeys z' = -D z (the reaction invariant of the mass balance;
+    common practice in bioprocess control), so at an equilibrium on z = 0 the linearisation
+    cannot move X + Y S = X + 2/5 S, i.e. 5 X + 2 S: the left null vector of the Kalman
+    matrix (numpy's SVD below) is (5, 2) up to scale. Around the point (z != 0) D moves z,
+    so the rank drop is at a singular point of the distribution."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    model = b"""plant chemostat
+param mu_max = 0.5
+param K_s = 0.2
+param Y = 0.4
+param S_in = 10
+state X in 0.01 .. 5
+state S in 0 .. 10
+input D in 0 .. 0.45
+let mu = mu_max*S/(K_s + S)
+rate X = mu*X - D*X
+rate S = -mu*X/Y + D*(S_in - S)
+output biomass = X
+point design: X = 3.92, S = 0.2, D = 0.25
+"""
+    raw = analyse_bytes(model)
+    (note,) = [f for f in raw.findings if f.rule == "not-controllable"]
+    assert "has rank 1 < 2; no input moves 5*X + 2*S there, to first order" in note.message
+    assert "design is a singular point of the distribution" in note.message
+    # the linearisation at the point by hand: mu = D = 1/4, mu'(S) = mu_max K_s / (K_s + S)^2
+    mu, dmu, X, S, Y, S_in, D = 0.25, 0.5 * 0.2 / 0.4**2, 3.92, 0.2, 0.4, 10.0, 0.25
+    A = np.array([[mu - D, dmu * X], [-mu / Y, -dmu * X / Y - D]])
+    B = np.array([[-X], [S_in - S]])
+    _, singular, vt = np.linalg.svd(np.hstack([B, A @ B]).T)
+    assert singular[-1] < 1e-12 * singular[0]
+    left = vt[-1] / vt[-1][0]
+    assert np.allclose(left, [1.0, 2 / 5])

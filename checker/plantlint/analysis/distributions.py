@@ -54,7 +54,7 @@ from plantlint.kernel.exact import ball_rank
 from plantlint.kernel.laurent import expanded, identically_zero
 from plantlint.kernel.lie import Kernel, Vector, has_nested_arguments, has_symbolic_denominator, matrix_at
 from plantlint.kernel.rational import sympy_rational
-from plantlint.language.printer import show_point
+from plantlint.language.printer import show_expr, show_point
 from plantlint.analysis.linearizing_output import OutputSearch
 
 
@@ -131,8 +131,10 @@ class PointDistributions:
     generic_ranks: tuple[int, ...]
     singular_orders: tuple[int, ...]  # k where the rank drops at the point only
     controllability_rank: int
-    missing_directions: tuple[str, ...]  # basis of the orthogonal complement of D_(n-1)
-    missing_vectors: tuple[tuple[sp.Expr, ...], ...]  # the same, as vectors
+    #: the combinations of the states no input moves at the point, as text (``5*X + 2*S``):
+    #: covectors annihilating D_(n-1) there (a basis of the left null space of its columns)
+    missing_directions: tuple[str, ...]
+    missing_vectors: tuple[tuple[sp.Expr, ...], ...]  # their coefficients
     involutive: bool
     state_linearizable: bool
     failure: BracketFailure | None
@@ -223,7 +225,7 @@ class _PointEchelon:
 
 #: Entries at least this large (tree nodes) are left as they are by _normal.
 NORMAL_SIZE = 2000
-#: Wall-clock bound of working out the missing directions named in a message.
+#: Wall-clock bound of working out the combinations the input does not move, named in a message.
 MESSAGE_SECONDS = 1.0
 
 
@@ -753,7 +755,7 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
         # not rational at the point (sin(1/4)): balls prove lower bounds of the ranks, and a
         # point's rank never exceeds the generic one (n from where the generic analysis
         # reached it), so bounds equal to the generic ranks are the ranks (and the span is
-        # full: no basis is needed for missing directions)
+        # full: no basis is needed for the combinations it misses)
         generic = list(structure.ranks) + [n] * (n - known)
         if _ball_ranks(kernel, values, n, m) == generic:
             return generic, [], None
@@ -912,7 +914,7 @@ def _missing_vectors(kernel: Kernel, basis: list[list[sp.Expr]], notes: list[str
     wrong in a message, so they are bounded in time (a note when cut short)."""
     vectors = bounded(MESSAGE_SECONDS, lambda: _orthogonal_complement(kernel, basis))
     if vectors is LATE:
-        notes.append(f"the missing directions were not worked out: it took longer than {MESSAGE_SECONDS:g} s "
+        notes.append(f"the combinations the input does not move were not worked out: it took longer than {MESSAGE_SECONDS:g} s "
                      "(they only name the problem; the rank does not depend on them)")
         return []
     return vectors
@@ -1038,7 +1040,8 @@ def _point_findings(
     if n and control_rank < n:
         message = (
             f"at {name} the controllability distribution {structure.spanners(top)} has rank "
-            f"{control_rank} < {n}; missing directions: {'; '.join(missing) or 'undetermined'}"
+            f"{control_rank} < {n}; " + (f"no input moves {_listed(missing)} there, to first order" if missing
+                                         else "the combinations of states it misses were not worked out")
         )
         if top in singular:
             message += (
@@ -1051,8 +1054,9 @@ def _point_findings(
                 message,
                 point=name,
                 anchor=anchors.point(name),
-                hint="the input cannot steer these directions to first order by state feedback "
-                "through the drift brackets" + (
+                hint="to first order such a combination moves as the drift makes it, whatever the input "
+                "(often a conserved quantity, such as a mass balance or a quaternion's norm, or a mode no "
+                "actuator reaches)" + (
                     " (brackets of the input fields with each other, such as [g1, g2], are not part of "
                     "this distribution: the plant may still be steered there by nonlinear input sequences, "
                     "but it cannot be feedback linearized around the point)" if structure.m > 1 else ""),
@@ -1112,18 +1116,17 @@ def _scaled(v: list[sp.Expr]) -> list[sp.Expr]:
 
 
 def _direction_text(v: Sequence[sp.Expr], states: Sequence[sp.Symbol]) -> str:
+    """The combination of the states with coefficients ``v``, in the model's syntax
+    (``5*X + 2*S``, ``x1``, ``-x1 + 3/2*x2``): what a covector of the annihilator measures."""
     parts: list[str] = []
     for coefficient, state in zip(v, states):
         if coefficient == 0:
             continue
-        term = f"d/d{state}"
-        if coefficient == 1:
-            text = term
-        elif coefficient == -1:
-            text = f"-{term}"
+        if coefficient in (1, -1):
+            text = f"-{state}" if coefficient == -1 else str(state)
         else:
-            c = str(coefficient)
-            text = f"{c} {term}" if coefficient.is_Atom else f"({c}) {term}"
+            c = show_expr(coefficient)
+            text = f"{c}*{state}" if coefficient.is_Atom else f"({c})*{state}"
         if parts and text.startswith("-"):
             parts.append(f"- {text[1:]}")
         elif parts:
@@ -1131,3 +1134,8 @@ def _direction_text(v: Sequence[sp.Expr], states: Sequence[sp.Symbol]) -> str:
         else:
             parts.append(text)
     return " ".join(parts)
+
+
+def _listed(items: Sequence[str]) -> str:
+    """``a``, ``a or b``, ``a, b or c``."""
+    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " or " + items[-1]

@@ -1057,9 +1057,9 @@ def _point_findings(
                 hint="to first order such a combination moves as the drift makes it, whatever the input "
                 "(often a conserved quantity, such as a mass balance or a quaternion's norm, or a mode no "
                 "actuator reaches)" + (
-                    " (brackets of the input fields with each other, such as [g1, g2], are not part of "
+                    "; brackets of the input fields with each other, such as [g1, g2], are not part of "
                     "this distribution: the plant may still be steered there by nonlinear input sequences, "
-                    "but it cannot be feedback linearized around the point)" if structure.m > 1 else ""),
+                    "but it cannot be feedback linearized around the point" if structure.m > 1 else ""),
             )
         )
     low = [k for k in singular if k <= n - 2]

@@ -405,23 +405,55 @@ def test_workers_get_the_analysis_settings_and_the_cache_key_follows_them() -> N
     assert Config().analysis_key() == "env=5.0/20000 tol=0.0"  # the key text of earlier versions: old entries stay valid
 
 
-def test_the_cache_key_follows_the_installed_code() -> None:
+def test_the_cache_key_follows_the_installed_code(tmp_path: Path) -> None:
     """An edited module, grammar or rule file (an upgrade, or a developer's source tree
-    under the same version number) never reuses results of the code before it."""
+    under the same version number) never reuses results of the code before it; the same
+    code checked out or installed again (new file times: every CI run) does, so a cache
+    kept between CI runs is used."""
     from plantlint.core.resources import data_path
     from plantlint.run import runner
 
+    files = runner.code_files()
+    for needed in (data_path("rules") / "model.toml", data_path("grammar") / "plant.lark", Path(runner.__file__)):
+        assert needed.resolve() in {f.resolve() for f in files}, needed.name
+    copies = []
+    for i, original in enumerate(files[:3]):
+        copy = tmp_path / f"{i}_{original.name}"
+        copy.write_bytes(original.read_bytes())
+        copies.append(copy)
+    before = runner.fingerprint(copies)
+    st = copies[0].stat()
+    os.utime(copies[0], ns=(st.st_atime_ns, st.st_mtime_ns + 10**9))  # checked out again
+    assert runner.fingerprint(copies) == before
+    copies[0].write_bytes(copies[0].read_bytes() + b"\n# edited\n")  # the same size would do too
+    assert runner.fingerprint(copies) != before
+    copies[0].write_bytes(files[0].read_bytes())
+    assert runner.fingerprint(copies) == before
+
+
+def test_the_cache_key_follows_the_libraries_and_python(monkeypatch: pytest.MonkeyPatch, tmp_path: Path) -> None:
+    """Results computed by one sympy (or flint, mpmath, numpy, ...) are not reused under
+    another: the versions come from the installed distributions' folder names. Reference:
+    importlib.metadata, the standard library's reading of the same installation."""
+    from importlib.metadata import version
+
+    from plantlint.run import runner
+
+    runner.library_versions.cache_clear()
+    text = runner.library_versions()
+    assert f"sympy={version('sympy')}" in text and f"python_flint={version('python-flint')}" in text
+    assert f"mpmath={version('mpmath')}" in text and f"lark={version('lark')}" in text
+    assert text.startswith(f"python={sys.version_info[0]}.{sys.version_info[1]}.")
     model = b"plant p\nstate x in -1 .. 1\ninput u\nrate x = -x + u\noutput y = x\n"
-    runner.code_fingerprint.cache_clear()
     before = runner.Cache(None, "s").key(model)
-    assert runner.Cache(None, "s").key(model) == before  # stable while nothing changes
-    for changed in (data_path("rules") / "model.toml", Path(runner.__file__)):
-        st = changed.stat()
-        try:
-            os.utime(changed, ns=(st.st_atime_ns, st.st_mtime_ns + 1_000_000_000))
-            runner.code_fingerprint.cache_clear()
-            assert runner.Cache(None, "s").key(model) != before, changed.name
-        finally:
-            os.utime(changed, ns=(st.st_atime_ns, st.st_mtime_ns))
-            runner.code_fingerprint.cache_clear()
+    # another sympy first on the path: a different key
+    (tmp_path / "sympy-0.0.1.dist-info").mkdir()
+    monkeypatch.setattr(sys, "path", [str(tmp_path), *sys.path])
+    runner.library_versions.cache_clear()
+    try:
+        assert "sympy=0.0.1" in runner.library_versions()
+        assert runner.Cache(None, "s").key(model) != before
+    finally:
+        monkeypatch.undo()
+        runner.library_versions.cache_clear()
     assert runner.Cache(None, "s").key(model) == before

@@ -365,8 +365,9 @@ def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
     """The refinement's Gauss-Newton step solves the normal equations by LU when the
     Jacobian has full rank (an mpmath SVD of 20 x 21 took most of a second per step); it
     must be the minimum-norm least-squares solution, as numpy.linalg.lstsq computes it,
-    for wide and square matrices, and leave tall, singular and badly scaled ones (values of
-    1e300 next to 1: the normal equations square the condition number) to the SVD."""
+    for wide, square and tall matrices (tall: more rates than free values, the pairs of
+    written values), and leave singular and badly scaled ones (values of 1e300 next to 1:
+    the normal equations square the condition number) to the SVD."""
     import numpy as np
     import mpmath
 
@@ -379,8 +380,8 @@ def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
             b = rng.normal(size=rows)
             rows_mp, b_mp = [[mpmath.mpf(v) for v in r] for r in A], [mpmath.mpf(v) for v in b]
             fast = _full_rank_least_squares(rows_mp, b_mp)
-            assert (fast is None) == (rows > cols)
             reference = np.linalg.lstsq(A, b, rcond=None)[0]
+            assert fast is not None and np.allclose([float(v) for v in fast], reference, rtol=1e-9, atol=1e-12)
             assert np.allclose([float(v) for v in _least_squares(rows_mp, b_mp)], reference, rtol=1e-9, atol=1e-12)
         scaled = [[mpmath.mpf("1e300"), mpmath.mpf(1)], [mpmath.mpf(1), mpmath.mpf("1e-300")]]
         x = _full_rank_least_squares(scaled, [mpmath.mpf(1), mpmath.mpf(1)])
@@ -391,6 +392,12 @@ def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
         x = _least_squares(singular, [mpmath.mpf(1), mpmath.mpf(2)])  # the SVD's pseudo-inverse
         reference = np.linalg.lstsq(np.array([[1.0, 2.0], [2.0, 4.0]]), np.array([1.0, 2.0]), rcond=None)[0]
         assert np.allclose([float(v) for v in x], reference)
+        tall = [[mpmath.mpf(1), mpmath.mpf(2)], [mpmath.mpf(2), mpmath.mpf(4)], [mpmath.mpf(3), mpmath.mpf(6)]]
+        rhs = [mpmath.mpf(1), mpmath.mpf(0), mpmath.mpf(2)]
+        assert _full_rank_least_squares(tall, rhs) is None  # rank 1: A^T A is singular
+        reference = np.linalg.lstsq(np.array([[1.0, 2.0], [2.0, 4.0], [3.0, 6.0]]), np.array([1.0, 0.0, 2.0]),
+                                    rcond=None)[0]
+        assert np.allclose([float(v) for v in _least_squares(tall, rhs)], reference)
 
 
 def test_minimum_phase_without_an_equilibrium_says_where_the_zero_dynamics_live() -> None:

@@ -237,20 +237,23 @@ def _least_squares(A: list[list], b: list) -> list | None:
 
 
 def _full_rank_least_squares(A: list[list], b: list) -> list | None:
-    """The same x for a wide or square A of full row rank, by LU on the normal equations
-    (A A^T y = b, x = A^T y: the minimum-norm solution of A x = b). An SVD of 20 x 21 entries
-    at 50 digits takes most of a second in mpmath, this a few hundredths. None for a tall A
-    (its SVD is small), when the LU finds A A^T singular, or when x does not solve A x = b
-    to 30 digits (a badly scaled A squares its condition number): the SVD decides then."""
+    """The same x for an A of full rank, by LU on the normal equations. Wide or square (full
+    row rank): A A^T y = b, x = A^T y, the minimum-norm solution of A x = b. Tall (full
+    column rank: more rates than free values, the pairs of written values): A^T A x = A^T b,
+    the unique least-squares solution. An SVD of 20 x 21 entries at 50 digits takes most of
+    a second in mpmath, of 8 x 4 a hundredth, this a few thousandths. None when the LU finds
+    the product singular, or when x does not satisfy its equations to 30 digits (a badly
+    scaled A squares its condition number): the SVD decides then."""
     M = mpmath.matrix(A)
-    if M.rows > M.cols:
-        return None
     B = mpmath.matrix(b)
+    tall = M.rows > M.cols
     try:
-        x = M.T * mpmath.lu_solve(M * M.T, B)
+        x = mpmath.lu_solve(M.T * M, M.T * B) if tall else M.T * mpmath.lu_solve(M * M.T, B)
     except (ZeroDivisionError, ValueError):
         return None
-    if mpmath.norm(M * x - B) > mpmath.mpf("1e-30") * (mpmath.norm(B) + mpmath.mpf("1e-300")):
+    # tall: the normal equations' residual A^T (A x - b), against the size of A^T b
+    left, right = (M.T * (M * x - B), M.T * B) if tall else (M * x - B, B)
+    if mpmath.norm(left) > mpmath.mpf("1e-30") * (mpmath.norm(right) + mpmath.mpf("1e-300")):
         return None
     return [x[j] for j in range(M.cols)]
 

@@ -264,6 +264,27 @@ def integer_system(rng: np.random.Generator, n: int, m: int, p: int,
     return A, B, C
 
 
+# The gantry crane of the plant-language contract (demo numbers, invented): rates written
+# as quotients over den = m_c + m_p sin(th)^2; tests add their own points and claims.
+CRANE_RATES = b"""plant gantry_crane
+const g   = 9.81
+param m_c = 12.0
+param m_p = 3.5
+param L   = 2.2
+state x   in -4 .. 4
+state v   in -2 .. 2
+state th  in -0.5 .. 0.5
+state w   in -3 .. 3
+input F   in -400 .. 400
+let den = m_c + m_p*sin(th)^2
+rate x  = v
+rate v  = (F + m_p*sin(th)*(L*w^2 + g*cos(th))) / den
+rate th = w
+rate w  = -(F*cos(th) + m_p*L*w^2*sin(th)*cos(th) + (m_c + m_p)*g*sin(th)) / (L*den)
+output y = x
+"""
+
+
 #: A reviewer's four-state plant (invented numbers) with a rounded point: x2' = -x2 + x4^2 + u2
 #: has every term zero at the equilibrium; changing x1 alone to (13/10 - e^(1/10))/2 makes
 #: the point exact. Used by the refinement and the zero-dynamics tests.

@@ -10,26 +10,9 @@ import sympy as sp
 
 from plantlint.run.config import Config
 from plantlint.run.pipeline import analyse_bytes
+from conftest import CRANE_RATES
 
-CRANE = b"""plant gantry_crane
-const g   = 9.81
-param m_c = 12.0
-param m_p = 3.5
-param L   = 2.2
-state x   in -4 .. 4
-state v   in -2 .. 2
-state th  in -0.5 .. 0.5
-state w   in -3 .. 3
-input F   in -400 .. 400
-let den = m_c + m_p*sin(th)^2
-rate x  = v
-rate v  = (F + m_p*sin(th)*(L*w^2 + g*cos(th))) / den
-rate th = w
-rate w  = -(F*cos(th) + m_p*L*w^2*sin(th)*cos(th) + (m_c + m_p)*g*sin(th)) / (L*den)
-output y = x
-point upright: x = 0, v = 0, th = 0, w = 0
-expect state_linearizable
-"""
+CRANE = CRANE_RATES + b"point upright: x = 0, v = 0, th = 0, w = 0\nexpect state_linearizable\n"
 
 VANISH = b"""plant gain_through_x
 state x1 in -1 .. 1

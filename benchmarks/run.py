@@ -644,6 +644,8 @@ def main() -> None:
     ap.add_argument("--naive-from", action="store_true",
                     help="take the naive figures from results/naive.json where it holds the model at a "
                          "cap at least --cap")
+    ap.add_argument("--models", metavar="NAMES",
+                    help="comma-separated generated models to keep (e.g. a longer --naive-only cap for one)")
     ap.add_argument("--report-only", action="store_true",
                     help="recompute fits, targets and the table from results/results.json (no measuring)")
     args = ap.parse_args()
@@ -662,6 +664,12 @@ def main() -> None:
         suite = write_suite(models, specs=chosen)
     else:
         suite = write_suite(models, args.quick)
+    if args.models:
+        keep = set(args.models.split(","))
+        unknown = keep - {spec.name for spec, _ in suite}
+        if unknown:
+            ap.error(f"--models: no generated model {', '.join(sorted(unknown))}")
+        suite = [(spec, path) for spec, path in suite if spec.name in keep]
     if args.naive_only:
         naive_only(sorted(suite, key=lambda sp: len(sp[0].resolved()[0])), args.cap)  # smallest first
         return
@@ -687,7 +695,8 @@ def main() -> None:
             "command": "python benchmarks/run.py" + (" --quick" if args.quick else "")
             + (" --scaling" if args.scaling else "") + (f" --cap {args.cap:g}" if args.cap != 120 else "")
             + (f" --timeout {args.timeout:g}" if args.timeout != 120 else "")
-            + (f" --repeat {args.repeat}" if args.repeat != 3 else "") + (" --naive-from" if recorded else ""),
+            + (f" --repeat {args.repeat}" if args.repeat != 3 else "") + (" --naive-from" if recorded else "")
+            + (f" --models {args.models}" if args.models else ""),
             "naive_from": (sorted({(e["date"], e["cap"]) for e in recorded.values()}) if recorded else None),
             "naive_host_drift": drift,
             "cap": args.cap, "timeout": args.timeout, "repeat": args.repeat, "bytecode": "cached (one unmeasured run first)",

@@ -380,6 +380,11 @@ def test_the_fast_least_squares_step_is_numpys_minimum_norm_solution() -> None:
         reference = np.linalg.lstsq(np.array([[1.0, 2.0], [2.0, 4.0], [3.0, 6.0]]), np.array([1.0, 0.0, 2.0]),
                                     rcond=None)[0]
         assert np.allclose([float(v) for v in _least_squares(tall, rhs)], reference)
+        # columns 1e400 apart (beyond numpy's doubles): x = (1, 1e-400) by hand; unscaled,
+        # the SVD dropped the small column's singular value as rounding and gave (0, 1e-400)
+        badly = [[mpmath.mpf(1), mpmath.mpf(0)], [mpmath.mpf(0), mpmath.mpf("2e400")]]
+        x = _least_squares(badly, [mpmath.mpf(1), mpmath.mpf(2)])
+        assert abs(x[0] - 1) < mpmath.mpf("1e-40") and abs(x[1] / mpmath.mpf("1e-400") - 1) < mpmath.mpf("1e-40")
 
 
 def test_minimum_phase_without_an_equilibrium_says_where_the_zero_dynamics_live() -> None:

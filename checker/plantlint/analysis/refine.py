@@ -213,11 +213,30 @@ def _at_least(sizes: Sequence, floor: Sequence) -> list:
     return out
 
 
+#: Columns whose norms differ by more than this factor are equilibrated before solving.
+BADLY_SCALED = mpmath.mpf(10) ** 20
+
+
 def _least_squares(A: list[list], b: list) -> list | None:
-    """The minimum-norm x minimising |A x - b| (pseudo-inverse by the SVD: any shape or rank)."""
+    """The minimum-norm x minimising |A x - b| (pseudo-inverse by the SVD: any shape or rank).
+
+    Columns whose norms differ by more than BADLY_SCALED (a rate of 1e400 u next to one of
+    v, with u scaled by its range) are divided by their norms first and the solution scaled
+    back: unscaled, the LU calls the product singular and the SVD drops the small column's
+    singular value as rounding, so the step never moves that value (minimum norm is then
+    taken in the equilibrated variables)."""
     rows, cols = len(A), len(A[0]) if A else 0
     if cols == 0 or rows == 0:
         return [mpmath.mpf(0)] * cols
+    norms = [mpmath.sqrt(sum(row[j] ** 2 for row in A)) for j in range(cols)]
+    present = [c for c in norms if c != 0]
+    if present and max(present) > BADLY_SCALED * min(present):
+        scaled = _solve([[a / c if c != 0 else a for a, c in zip(row, norms)] for row in A], b, rows, cols)
+        return None if scaled is None else [y / c if c != 0 else y for y, c in zip(scaled, norms)]
+    return _solve(A, b, rows, cols)
+
+
+def _solve(A: list[list], b: list, rows: int, cols: int) -> list | None:
     fast = _full_rank_least_squares(A, b)
     if fast is not None:
         return fast

@@ -488,39 +488,51 @@ expect state_linearizable
     assert point["state_linearizable"] is True and point["linearizing_output"] == "x1 - x2^2"
 
 
-def test_a_rate_over_a_sum_of_states_is_bracketed_in_the_ring() -> None:
-    """The spacecraft fixture (quaternion kinematics, Euler's equations, three torques;
-    invented inertias) with one rate divided by (w1 - 1e-9), as a mutant of the robustness
-    campaign (seed 9517) wrote it. Its brackets were formed by tree differentiation, which
-    swelled with each order: the distributions stage stopped at a 60 s budget. The inverse
-    of the sum is now an atom of the kernel's ring.
+SPACECRAFT_MUTANTS = [  # (the rate as written, as a mutant wrote it; the mutant's seed)
+    ("rate w2 = ((J3 - J1)*w3*w1 + T2)/J2\n", "rate w2 = ((J3 - J1)*w3*w1 + T2)/J2/(w1 - 1e-9)\n"),  # 9517
+    ("rate q3 = (q0*w3 + q1*w2 - q2*w1)/2\n", "rate q3 = (q0*w3 + q1*w2 - q2*w1)/2^(1/3)\n"),  # 9521
+]
 
-    References: by hand, f keeps |q|^2 constant (d/dt (q0^2 + ... + q3^2) = 0 for every w)
-    and g does not move q, so every D_k annihilates d|q|^2 and has rank at most 6; D_0 is
-    span{d/dw1, d/dw2, d/dw3} (involutive), and D_1, annihilated by an exact differential
-    and of constant rank 6, is involutive by Frobenius. numpy's matrix_rank of [g, ad_f g]
-    at a random point, with ad_f g = Dg f - Df g from sympy's Jacobians, gives the 6."""
+
+@pytest.mark.parametrize("written, mutated", SPACECRAFT_MUTANTS)
+def test_a_rational_or_irrational_spacecraft_is_bracketed_in_the_ring(written: str, mutated: str) -> None:
+    """The spacecraft fixture (quaternion kinematics, Euler's equations, three torques;
+    invented inertias) as two mutants of the robustness campaign wrote it: one rate divided
+    by (w1 - 1e-9), or the q3 rate over 2^(1/3) instead of 2. Their brackets were formed by
+    tree differentiation, which swelled with each order: the distributions stage stopped at
+    its budget. The inverse of the sum and the irrational constant are now atoms of the
+    kernel's ring.
+
+    References: by hand, f keeps a weighted |q|^2 constant (q0^2 + q1^2 + q2^2 + (a/2) q3^2
+    with a = 2 as written, a = 2^(1/3) in the second mutant: its derivative cancels term by
+    term for every w), and g does not move q, so every D_k annihilates its differential and
+    has rank at most 6; D_0 is span{d/dw1, d/dw2, d/dw3} (involutive), and D_1, annihilated
+    by an exact differential and of constant rank 6, is involutive by Frobenius. numpy's
+    matrix_rank of [g, ad_f g] at a random point, with ad_f g = Dg f - Df g from sympy's
+    Jacobians, gives the 6."""
     from pathlib import Path
 
     from plantlint.run.pipeline import analyse_bytes
 
     text = (Path(REPO) / "tests" / "fixtures" / "models" / "satellite.plant").read_text(encoding="utf-8")
-    written = "rate w2 = ((J3 - J1)*w3*w1 + T2)/J2\n"
     assert written in text
-    raw = analyse_bytes(text.replace(written, "rate w2 = ((J3 - J1)*w3*w1 + T2)/J2/(w1 - 1e-9)\n").encode())
+    raw = analyse_bytes(text.replace(written, mutated).encode())
     analysis = raw.analysis
     assert analysis is not None and analysis["stages"]["not_completed"] == []
     assert analysis["distributions"]["ranks"] == [3] + [6] * 6 and analysis["distributions"]["involutive"]
 
     q0, q1, q2, q3, w1, w2, w3 = X = sp.symbols("q0 q1 q2 q3 w1 w2 w3")
-    J1, J2, J3, c = 12, 15, 9, sp.Rational(1, 10**9)
+    J1, J2, J3 = 12, 15, 9
+    over = 1 / (w1 - sp.Rational(1, 10**9)) if "w1 - 1e-9" in mutated else 1
+    a = sp.cbrt(2) if "2^(1/3)" in mutated else 2
     f = sp.Matrix([-(q1 * w1 + q2 * w2 + q3 * w3) / 2, (q0 * w1 + q2 * w3 - q3 * w2) / 2,
-                   (q0 * w2 + q3 * w1 - q1 * w3) / 2, (q0 * w3 + q1 * w2 - q2 * w1) / 2,
-                   sp.Rational(J2 - J3, J1) * w2 * w3, sp.Rational(J3 - J1, J2) * w3 * w1 / (w1 - c),
+                   (q0 * w2 + q3 * w1 - q1 * w3) / 2, (q0 * w3 + q1 * w2 - q2 * w1) / a,
+                   sp.Rational(J2 - J3, J1) * w2 * w3, sp.Rational(J3 - J1, J2) * w3 * w1 * over,
                    sp.Rational(J1 - J2, J3) * w1 * w2])
-    gs = [sp.Matrix([0, 0, 0, 0, sp.Rational(1, J1), 0, 0]), sp.Matrix([0, 0, 0, 0, 0, 1 / (J2 * (w1 - c)), 0]),
+    gs = [sp.Matrix([0, 0, 0, 0, sp.Rational(1, J1), 0, 0]), sp.Matrix([0, 0, 0, 0, 0, over / J2, 0]),
           sp.Matrix([0, 0, 0, 0, 0, 0, sp.Rational(1, J3)])]
-    assert sp.expand(sum(2 * q * f[i] for i, q in enumerate(X[:4]))) == 0  # |q|^2 is kept
+    weights = [2, 2, 2, a]  # d/dt (q0^2 + q1^2 + q2^2 + (a/2) q3^2), times 1
+    assert sp.expand(sum(w * q * f[i] for i, (w, q) in enumerate(zip(weights, X[:4])))) == 0
     rng = np.random.default_rng(5)
     point = dict(zip(X, [sp.Rational(int(v), 1000) for v in rng.integers(-400, 400, size=7)]))
     columns = [g.subs(point) for g in gs] + [(g.jacobian(X) * f - f.jacobian(X) * g).subs(point) for g in gs]

@@ -160,8 +160,8 @@ def test_ring_declines_what_it_cannot_read() -> None:
 @pytest.mark.parametrize("seed", range(4))
 def test_ring_brackets_of_rational_fields_are_the_tree_brackets(seed: int) -> None:
     """Fields with inverses of sums (a mass matrix's determinant, a gantry crane's
-    m_c + m_p sin(th)^2, a rate over (w - c)) are read in the ring with the sums' inverses as
-    atoms. The brackets formed there are the brackets by tree differentiation as
+    m_c + m_p sin(th)^2, a rate over (w - c)) and irrational constants are read in the ring
+    with the sums' inverses and the constants as atoms. The brackets formed there are the brackets by tree differentiation as
     functions (reference: sympy's diff; the numerator of together(difference) multiplies out
     to 0 for ad_f g, and ad_f^2 g has the same values to 35 digits at random rational points,
     by sympy's evalf at 50)."""
@@ -170,6 +170,8 @@ def test_ring_brackets_of_rational_fields_are_the_tree_brackets(seed: int) -> No
     u = sp.Symbol("u")
     dets = [m + sp.sin(t) ** 2, x - sp.Rational(1, 10**9), 2 + sp.cos(x - y) * y]
     atoms = [x, y, m, sp.sin(t), sp.cos(t), *(1 / e for e in dets)]
+    if seed % 2:  # irrational constants (sqrt(3)/2 of three-phase models, 2^(1/3), pi)
+        atoms += [sp.sqrt(3), sp.cbrt(2), sp.pi]
 
     def entry() -> sp.Expr:
         return _random_expr(rng, atoms, 2) if rng.random() < 0.8 else sp.Integer(0)

@@ -225,6 +225,13 @@ def _plain_atom(a: sp.Expr) -> bool:
                            and sp.expand(a) == a)
 
 
+def _constant_atom(a: sp.Expr) -> bool:
+    """An irrational constant (2^(1/3), sqrt(3)/2's sqrt(3), pi, sin(1/3)): its derivatives
+    are 0; its powers may evaluate (sqrt(3)^2 is 3), so monomials with it are built by
+    sympy's own constructors (:meth:`FieldRing.expr`)."""
+    return a.is_number and not a.is_Rational and a.is_extended_real is True
+
+
 def _inverse_of_sum(a: sp.Expr) -> bool:
     """An atom (D)^-1 of a sum D (a mass matrix's determinant, ``m_c + m_p*sin(th)^2``)."""
     return a.is_Pow and a.exp == -1 and a.base.is_Add
@@ -252,6 +259,9 @@ class FieldRing:
         self.reader = _Reader(self.ctx, atoms)
         self.zero_exp = (0,) * self.n
         self._powers: dict[tuple[int, int], sp.Expr] = {}  # atom ** k, built once
+        #: atoms whose powers or products sympy may evaluate (sqrt(3)^2 = 3): their
+        #: monomials are built by sympy's constructors
+        self.constants = frozenset(i for a, i in atoms.items() if _constant_atom(a))
         self.states = [atoms[x] for x in states]
         #: for state k: [(atom index, d atom / d x_k as a Laurent polynomial)]
         self.chain: list[list[tuple[int, Laurent]]] = []
@@ -283,7 +293,7 @@ class FieldRing:
                             _collect(sp.diff(a, x), atoms, seen)
                 if len(atoms) > MAX_ATOMS:
                     return None
-            if not all(_plain_atom(a) or _inverse_of_sum(a) for a in atoms):
+            if not all(_plain_atom(a) or _inverse_of_sum(a) or _constant_atom(a) for a in atoms):
                 return None
             return cls(states, atoms)
         except (_Outside, RecursionError):
@@ -366,6 +376,8 @@ class FieldRing:
         of a polynomial are distinct monomials. The same expression, a fraction of the time
         (held srepr for srepr against sympy's own construction in tests/kernel/test_laurent.py)."""
         num, den = p
+        if self.constants:
+            return self._evaluated(p)
         powers = self._powers
         numbers: list[sp.Expr] = []
         terms: list[sp.Expr] = []
@@ -392,3 +404,13 @@ class FieldRing:
         if not args:
             return sp.Integer(0)
         return args[0] if len(args) == 1 else sp.Add._from_args(args, True)
+
+    def _evaluated(self, p: Laurent) -> sp.Expr:
+        """The sum of monomials built by sympy's constructors, which evaluate what the ring
+        keeps apart (sqrt(3)^2 = 3, 2^(1/3) 2^(2/3) = 2): a ring with constant atoms."""
+        num, den = p
+        terms = []
+        for exps, coeff in num.terms():  # type: ignore[attr-defined]
+            factors = [self.order[i] ** (k - d) for i, (k, d) in enumerate(zip(exps, den)) if k != d]
+            terms.append(sp.Mul(sympy_rational(coeff), *factors))
+        return sp.Add(*terms)

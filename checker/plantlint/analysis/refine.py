@@ -12,9 +12,10 @@ model's own scale and finds the equilibrium nearby:
   product or quotient of sums counts the terms it has when multiplied out, its
   denominators kept as values (:func:`_size_tree`): a robot's inverse mass matrix,
   ``(a22*r1 - a12*r2)/dM``, has the terms ``a22*r1/dM`` and ``a12*r2/dM``, so a
-  rate written as one quotient is not a miss of 100 % until it is exactly zero. A rate whose only non-zero
-  terms are inputs left out of the point (fitted to the miss) has no scale of its
-  own and is measured against the model's largest term instead.
+  rate written as one quotient is not a miss of 100 % until it is exactly zero. A
+  rate whose only non-zero terms are inputs left out of the point (fitted to the
+  miss) has no scale of its own and is measured against the model's largest term
+  instead.
 * **refined point**: Newton's method (least squares, 200-bit balls through
   :class:`~plantlint.kernel.balls.Program`, never a float comparison for a
   decision) with one written value free at a time, plus the inputs left out; the
@@ -282,13 +283,13 @@ def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.S
     """Gauss-Newton on the ``free`` variables (scaled) until the relative residual vanishes."""
     point = dict(start)
     index = {s: i for i, s in enumerate(system.symbols)}
-    written: list | None = None  # the sizes of the rates' terms at the start
-    for _ in range(MAX_STEPS):
+    written: list = []  # the sizes of the rates' terms at the start
+    for count in range(MAX_STEPS):
         out = system.run(point)
         if out is None:
             return None
         rates, sizes, jac = out
-        if written is None:
+        if count == 0:
             written = sizes
         if _relative(rates, _at_least(sizes, written)) < CONVERGED:
             return point
@@ -296,7 +297,7 @@ def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.S
         step = _least_squares(A, [-r for r in rates])
         if step is None:
             return None
-        if written is sizes and not _promising(A, step, rates):
+        if count == 0 and not _promising(A, step, rates):
             return None
         if all(abs(d) <= STALLED for d in step):
             return None  # a least-squares minimum that is not a zero: no later step moves it

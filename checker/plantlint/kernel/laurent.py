@@ -88,7 +88,12 @@ def expanded(expr: sp.Expr) -> sp.Expr | None:
         numerator, den = _Reader(ctx, atoms).read(expr)
     except (_Outside, RecursionError):
         return None
-    order = list(atoms)
+    return _monomial_sum(numerator, den, list(atoms))
+
+
+def _monomial_sum(numerator: object, den: tuple[int, ...], order: Sequence[sp.Expr]) -> sp.Expr:
+    """N / D as the sum of its monomials, built by sympy's constructors (which evaluate what
+    the ring keeps apart: sqrt(3)^2 = 3); ``order`` lists the atoms by index."""
     terms = []
     for exps, coeff in numerator.terms():  # type: ignore[attr-defined]
         factors = [order[i] ** (k - d) for i, (k, d) in enumerate(zip(exps, den)) if k != d]
@@ -376,8 +381,8 @@ class FieldRing:
         of a polynomial are distinct monomials. The same expression, a fraction of the time
         (held srepr for srepr against sympy's own construction in tests/kernel/test_laurent.py)."""
         num, den = p
-        if self.constants:
-            return self._evaluated(p)
+        if self.constants:  # sympy may evaluate their powers: its own constructors build them
+            return _monomial_sum(num, den, self.order)
         powers = self._powers
         numbers: list[sp.Expr] = []
         terms: list[sp.Expr] = []
@@ -404,13 +409,3 @@ class FieldRing:
         if not args:
             return sp.Integer(0)
         return args[0] if len(args) == 1 else sp.Add._from_args(args, True)
-
-    def _evaluated(self, p: Laurent) -> sp.Expr:
-        """The sum of monomials built by sympy's constructors, which evaluate what the ring
-        keeps apart (sqrt(3)^2 = 3, 2^(1/3) 2^(2/3) = 2): a ring with constant atoms."""
-        num, den = p
-        terms = []
-        for exps, coeff in num.terms():  # type: ignore[attr-defined]
-            factors = [self.order[i] ** (k - d) for i, (k, d) in enumerate(zip(exps, den)) if k != d]
-            terms.append(sp.Mul(sympy_rational(coeff), *factors))
-        return sp.Add(*terms)

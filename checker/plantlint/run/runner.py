@@ -315,9 +315,8 @@ def fingerprint(files: list[Path]) -> str:
     return h.hexdigest()[:16]
 
 
-#: The libraries whose results a cached analysis holds (import name: distribution name).
-LIBRARIES = {"sympy": "sympy", "flint": "python_flint", "mpmath": "mpmath", "lark": "lark",
-             "numpy": "numpy", "scipy": "scipy", "pint": "pint"}
+#: The distributions whose results a cached analysis holds (python-flint is imported as flint).
+LIBRARIES = ("sympy", "python_flint", "mpmath", "lark", "numpy", "scipy", "pint")
 
 
 @lru_cache(maxsize=1)
@@ -326,7 +325,7 @@ def library_versions() -> str:
     read from the names of their ``*.dist-info`` folders on ``sys.path`` (a listing of each
     folder: importing them, or importlib.metadata, would cost a tenth of a second): a
     cache kept across an upgrade of sympy, say, is not reused for results sympy computed."""
-    wanted = {_normalised(d): d for d in LIBRARIES.values()}
+    wanted = {_normalised(d): d for d in LIBRARIES}
     found: dict[str, str] = {}
     for folder in sys.path:
         try:

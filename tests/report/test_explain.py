@@ -7,6 +7,7 @@ import json
 import math
 import subprocess
 import sys
+import time
 from pathlib import Path
 
 from plantlint.cli import explain_file
@@ -180,6 +181,13 @@ def test_a_derivation_too_long_to_write_out_is_left_out_with_a_note(tmp_path: Pa
     of a millisecond stands in for a chain whose tower is too long to print."""
     import plantlint.analysis.serialise as serialise
 
+    real = serialise._symbolic_derivation
+
+    def slow_derivation(a: object) -> object:  # the bound runs out whatever the host's speed
+        time.sleep(2.0)
+        return real(a)
+
+    monkeypatch.setattr(serialise, "_symbolic_derivation", slow_derivation)
     monkeypatch.setattr(serialise, "DERIVATION_SECONDS", 0.001)
     model = REPO / "benchmarks" / "results" / "models" / "pendulum_chain_4.plant"
     out = io.StringIO()

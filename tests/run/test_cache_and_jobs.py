@@ -13,6 +13,7 @@ import os
 import shutil
 import subprocess
 import sys
+import time
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -336,12 +337,19 @@ def test_a_result_shaped_by_a_bounded_step_is_not_cached(tmp_path: Path, monkeyp
                                                          capsys: pytest.CaptureFixture[str]) -> None:
     """The search for the equilibrium near a point (core.deadline.bounded, REFINE_SECONDS)
     runs out of its time: the finding says so, and that result is not cached."""
-    from plantlint.analysis import equilibria
+    from plantlint.analysis import equilibria, refine
 
     monkeypatch.chdir(tmp_path)
     Path("maglev.plant").write_bytes(MAGLEV)
     cache = tmp_path / "cache"
-    monkeypatch.setattr(equilibria, "REFINE_SECONDS", 1e-9)
+    real = refine.near_miss
+
+    def slow_search(*args: object) -> object:  # a machine too slow for the search: the bound
+        time.sleep(2.0)                          # runs out whatever the host's speed (a bound of
+        return real(*args)                       # 1e-9 s alone raced a fast host's search)
+
+    monkeypatch.setattr(refine, "near_miss", slow_search)
+    monkeypatch.setattr(equilibria, "REFINE_SECONDS", 0.05)
     slow = _check_in_process(capsys, cache)
     (miss,) = [f["message"] for f in slow["findings"] if f["rule"] == "point-not-equilibrium"]
     assert "was not worked out within" in miss, miss

@@ -414,10 +414,18 @@ def _alive(pid: int) -> bool:
     return stat[stat.rindex(")") + 2:].split()[0] != "Z"
 
 
+def _interruptible() -> None:
+    """In the child before it starts: Ctrl-C as in a terminal. A test run started in the
+    background of a shell without job control inherits SIGINT ignored (POSIX), and Python
+    then leaves it ignored, so the run under test would never see the signal."""
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
 def _start_slow_run(folder: Path) -> tuple[subprocess.Popen[str], list[int]]:
     proc = subprocess.Popen([sys.executable, "-c", SLOW_ENVELOPE, "check", "--no-cache", "--jobs", "2",
                              "--timeout", "600", "lift.plant", "lift_wrong.plant"], cwd=folder, env=_env(),
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, start_new_session=True)
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, start_new_session=True,
+                            preexec_fn=_interruptible)
     deadline = time.monotonic() + 120
     workers: list[int] = []
     while time.monotonic() < deadline and len(workers) < 2:

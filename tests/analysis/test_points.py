@@ -305,6 +305,48 @@ def test_an_elastic_arm_is_brought_to_equilibrium_by_its_motor_angles() -> None:
     assert f"t1 = {G1 / k:.10g} (written 0)" in missed.message
 
 
+def test_rounded_motor_angles_are_refined_rather_than_a_link_written_as_zero() -> None:
+    """The same arm with the motor angles written as an engineer rounds them (0.0643 and
+    1.0071 for G(q)/k and q2 + G2/k). The smallest relative change alone moved the link
+    angle written 0 (by 8e-6 of its range) with t2; the motor angles move within the
+    rounding of their written digits, which explains the miss. Reference: the gravity
+    torques by math.cos, as in the test above."""
+    rounded = ELASTIC_ARM.replace(b"t1 = 0, t2 = 1,", b"t1 = 0.0643, t2 = 1.0071,")
+    raw = analyse_bytes(rounded)
+    (missed,) = [f for f in raw.findings if f.rule == "point-not-equilibrium"]
+    changed = raw.analysis["points"]["reach"]["refinement"]["equilibrium_near"]["changed"]
+    assert sorted(changed) == ["t1", "t2"], missed.message
+    g, l1, lc1, lc2, m1, m2, k = 9.81, 0.5, 0.25, 0.2, 3, 2, 300
+    G1 = (m1 * lc1 + m2 * l1) * g * math.cos(0) + m2 * lc2 * g * math.cos(0 + 1)
+    G2 = m2 * lc2 * g * math.cos(0 + 1)
+    assert math.isclose(changed["t1"]["value"], G1 / k, rel_tol=1e-9)
+    assert math.isclose(changed["t2"]["value"], 1 + G2 / k, rel_tol=1e-9)
+    assert abs(G1 / k - 0.0643) <= 0.00005 and abs(1 + G2 / k - 1.0071) <= 0.00005  # the premise: rounding
+
+
+def test_the_places_and_digits_of_a_written_decimal() -> None:
+    """The places after the point (a unit in the last place is the rounding a written
+    decimal allows) and the significant digits, read off its exact rational. Reference: the
+    standard library's decimal module (the exponent and digits of the normalised written
+    text); integers, fractions that are no decimal and irrational values read as chosen
+    (None)."""
+    from decimal import Decimal
+    from fractions import Fraction
+
+    import sympy as sp
+
+    from plantlint.analysis.refine import _decimal
+
+    for text in ("0.0643", "1.0071", "2.5", "0.50", "-0.125", "1e-3", "12.34567", "-7.2e-5", "0.0974146"):
+        written = Decimal(text).normalize().as_tuple()
+        value = Fraction(text)
+        rational = sp.Rational(value.numerator, value.denominator)
+        assert _decimal(rational) == (-written.exponent, len(written.digits)), text  # places, significant digits
+    for value in (sp.Integer(0), sp.Integer(3), sp.Integer(-40), sp.Rational(1, 3), sp.Rational(5, 7), sp.pi / 2,
+                  sp.sqrt(2)):
+        assert _decimal(value) is None, value
+
+
 def test_the_size_of_a_product_of_sums_is_its_largest_expanded_term() -> None:
     """The refinement measures a rate against its largest term as it would be multiplied
     out, denominators kept as values, like terms not collected (a power of a sum counts as

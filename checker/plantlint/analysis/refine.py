@@ -18,8 +18,11 @@ model's own scale and finds the equilibrium nearby:
   instead.
 * **refined point**: Newton's method (least squares, 200-bit balls through
   :class:`~plantlint.kernel.balls.Program`, never a float comparison for a
-  decision) with one written value free at a time, plus the inputs left out; the
-  value that needs the smallest relative change wins. When no single value will
+  decision) with one written value free at a time, plus the inputs left out. A
+  change within a unit in the last written place wins (0.0643 may move by 0.0001;
+  an integer, 1/3 or pi/2 reads as chosen), values written with more digits first
+  (0.0974146 was computed and rounded, 0.1 was chosen); then the smallest relative
+  change. When no single value will
   do, one state with the written inputs, then two written values (of at most
   twelve), then every written value by the smallest scaled step (minimum norm).
 
@@ -306,6 +309,46 @@ def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.S
     return None
 
 
+def _decimal(written: sp.Expr) -> tuple[int, int] | None:
+    """(places after the point, significant digits) of a value written as a decimal with
+    digits after the point (0.0643: 4 places, 3 digits), read off its exact rational (a
+    terminating decimal has a denominator 2^a 5^b, and max(a, b) places); None for a value
+    that reads as chosen, not rounded: an integer (0 for a rest position), a fraction that
+    is no decimal (1/3), an irrational constant (pi/2). Trailing zeros are not seen (0.50
+    reads as 0.5)."""
+    if not (isinstance(written, sp.Rational) and not written.is_Integer):
+        return None
+    q, places = int(written.q), 0
+    for prime in (2, 5):
+        count = 0
+        while q % prime == 0:
+            q //= prime
+            count += 1
+        places = max(places, count)
+    if q != 1:
+        return None
+    digits = abs(int(written.p)) * 10**places // int(written.q)
+    return places, len(str(digits))
+
+
+def _rounding(given: dict[sp.Symbol, sp.Expr], start: dict[sp.Symbol, mpmath.mpf], found: dict[sp.Symbol, mpmath.mpf],
+              scales: dict[sp.Symbol, mpmath.mpf], free: Sequence[sp.Symbol]) -> int | None:
+    """Is the miss explained as rounding: does every value this candidate moves stay within
+    a unit in its last written place (two half units: a value cut off rather than rounded)?
+    The fewest significant digits among them if so (a value written with many digits was
+    computed and rounded; one written 0.1 was chosen), else None."""
+    fewest = None
+    for z in free:
+        change = abs(found[z] - start[z])
+        if change <= mpmath.mpf("1e-30") * scales[z]:
+            continue  # not moved
+        decimal = _decimal(given[z])
+        if decimal is None or change > mpmath.mpf(10) ** -decimal[0]:
+            return None
+        fewest = decimal[1] if fewest is None else min(fewest, decimal[1])
+    return fewest
+
+
 def _scale(plant: Plant, s: sp.Symbol, value: mpmath.mpf) -> mpmath.mpf:
     if value != 0:
         return abs(value)
@@ -414,7 +457,14 @@ def near_miss(plant: Plant, given: dict[sp.Symbol, sp.Expr], unknown: Sequence[s
             if tried:
                 break
         if tried:
-            _, free, found = min(tried, key=lambda t: (t[0], [str(s) for s in t[1]]))
+            # a change within the rounding of the written digits explains the miss best (motor
+            # angles written 0.0643 and 1.0071 rather than a link angle written 0), the values
+            # written with more digits first; then the smallest relative change
+            def preference(t: tuple[mpmath.mpf, list[sp.Symbol], dict[sp.Symbol, mpmath.mpf]]) -> tuple:
+                digits = _rounding(given, start, t[2], scales, t[1])
+                return (digits is None, -(digits or 0), t[0], [str(s) for s in t[1]])
+
+            _, free, found = min(tried, key=preference)
             moved = [z for z in free if abs(found[z] - start[z]) > mpmath.mpf("1e-30") * scales[z]]
         else:
             found = _newton(system, start, [*written, *unknown], scales)

@@ -456,12 +456,12 @@ def certify_nonzero(
             if all(v.is_finite() and v.contains(0) for v in vals) and search.exact_checks < MAX_EXACT_CHECKS:
                 search.exact_checks += 1
                 if ev.exactly_zero(p, range(len(exprs))):
-                    return "violated", (p, True)
+                    return "violated", (_plainer(ev, p, range(len(exprs)), inside, search), True)
         if max(search.relative_widths(b), default=0.0) < 1e-6 and search.exact_checks < MAX_EXACT_CHECKS:
             search.exact_checks += 1
             exact, face = _exact_zero_in(ev, b, range(len(exprs)), inside, search.root)
             if exact is not None:
-                return "violated", (exact, True)
+                return "violated", (_plainer(ev, exact, range(len(exprs)), inside, search), True)
             if face is not None and single and _sign_change_to_face(ev, b, face, inside):
                 # the value at the exact bound has the other sign than inside: the zero lies
                 # between them, in the box (a bound just past pi/2, with no float beyond pi/2)
@@ -477,7 +477,7 @@ def certify_nonzero(
                         # q2 = -1.6e-38 next to a zero that is exactly at q2 = 0: say the exact one
                         search.exact_checks += 1
                         if ev.exactly_zero(snapped, [0]):
-                            return "violated", (tuple(float(v) for v in snapped), True)
+                            return "violated", (_plainer(ev, tuple(float(v) for v in snapped), [0], inside, search), True)
                     return "violated", (found, False)
         return "split", None
 
@@ -583,6 +583,38 @@ def _simple_point(point: Sequence[float], box: FloatBox | None = None) -> list[s
             return None
         out.append(sp.Rational(q.numerator, q.denominator))
     return out
+
+
+#: The longest straight-line program (instructions) whose exact witness is made plainer.
+PLAIN_WITNESS_SIZE = 500
+
+
+def _plainer(ev: _Evaluator, point: Sequence[float], indices: Sequence[int], inside: _Inside,
+             search: _Search) -> tuple[float, ...]:
+    """An exact witness with its coordinates as plain as the zero allows, for the reader: each
+    in turn set to 0, to the nearest integer or to one decimal, kept where the expressions
+    are still exactly zero and the point inside the box. A two-link arm's det A vanishes
+    at the stretched elbow, q2 = 0, for every q1: bisection finds q1 = -1.16667, and
+    q1 = 0 says the same more plainly. Display only: the witness stays an exact zero. Not
+    for long expressions (more than :data:`PLAIN_WITNESS_SIZE` instructions), whose exact
+    checks cost more than the plainer text is worth."""
+    plain = list(point)
+    if len(ev.program) > PLAIN_WITNESS_SIZE:
+        return tuple(plain)
+    for k, x in enumerate(point):
+        for v in (0.0, float(round(x)), round(x, 1)):
+            if v == plain[k]:
+                break
+            trial = plain[:k] + [v] + plain[k + 1:]
+            if search.exact_checks >= MAX_EXACT_CHECKS:
+                return tuple(plain)
+            if not inside.contains(trial):
+                continue
+            search.exact_checks += 1
+            if ev.exactly_zero(trial, indices):
+                plain = trial
+                break
+    return tuple(plain)
 
 
 def _bracket_zero(ev: _Evaluator, positive: tuple[float, ...], negative: tuple[float, ...]) -> tuple[float, ...] | None:

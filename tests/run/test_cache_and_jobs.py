@@ -465,3 +465,17 @@ def test_the_cache_key_follows_the_libraries_and_python(monkeypatch: pytest.Monk
         monkeypatch.undo()
         runner.library_versions.cache_clear()
     assert runner.Cache(None, "s").key(model) == before
+
+
+def test_the_small_model_is_read_before_forking_only_for_several_workers(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Reading one small model in the parent loads the parser tables and sympy's first-use
+    imports once for every worker; a run of one model has one worker, which loads what its
+    own model uses (the warm-up would be paid on top)."""
+    from plantlint.run import pipeline, runner
+
+    read: list[bytes] = []
+    monkeypatch.setattr(pipeline, "read_model", lambda data, path="": read.append(data) or (None, []))
+    runner._preload([MAGLEV])
+    assert read == []
+    runner._preload([MAGLEV, MAGLEV])
+    assert read == [runner._WARM_UP]

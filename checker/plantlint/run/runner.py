@@ -479,12 +479,14 @@ def _preload(datas: list[bytes]) -> None:
     names do not resolve: it is reported without sympy."""
     for module in _PRELOAD:
         importlib.import_module(module)
-    from plantlint.run.pipeline import read_model
+    if len(datas) > 1:
+        # Read one small model before forking: the parser tables, the unit table and what
+        # sympy imports only on first use (its tensor module on the first sum, ~50 ms) are
+        # then loaded once, in the parent, not again in every worker. One model's worker
+        # loads only what that model uses (a pre-commit hook on one file: ~40 ms saved).
+        from plantlint.run.pipeline import read_model
 
-    # Read one small model before forking: the parser tables, the unit table and what sympy
-    # imports only on first use (its tensor module on the first sum, ~50 ms) are then
-    # loaded once, in the parent, not again in every worker.
-    read_model(_WARM_UP)
+        read_model(_WARM_UP)
     from plantlint.language import units
 
     if any(units.needs_pint(d) for d in datas):

@@ -632,7 +632,8 @@ def main() -> None:
     ap.add_argument("--quick", action="store_true", help="a smaller set of models")
     ap.add_argument("--cap", type=float, default=120.0, help="time cap of the naive analysis (s)")
     ap.add_argument("--timeout", type=float, default=120.0, help="plantlint's per-model budget (s)")
-    ap.add_argument("--profile", metavar="MODEL", help="profile one model in-process and stop")
+    ap.add_argument("--profile", metavar="MODEL", help="profile one model in-process and stop (a path, or the "
+                    "name of a generated model such as pendulum_chain_6)")
     ap.add_argument("--profile-seconds", type=float, default=120.0, help="stop the profile after this long")
     ap.add_argument("--scaling", action="store_true",
                     help="only the scaling families (pendulum chain to n = 20, dense chain to 16 states), "
@@ -653,7 +654,13 @@ def main() -> None:
         report_only()
         return
     if args.profile:
-        profile(Path(args.profile), args.profile_seconds)
+        model = Path(args.profile)
+        if not model.is_file():  # a generated model's name: its file in results/models
+            model = RESULTS / "models" / f"{args.profile}.plant"
+        if not model.is_file():
+            ap.error(f"--profile: no model file {args.profile!r} (a path, or the name of a generated model "
+                     f"in {RESULTS / 'models'})")
+        profile(model, args.profile_seconds)
         return
     models = RESULTS / "models"
     RESULTS.mkdir(parents=True, exist_ok=True)

@@ -491,17 +491,19 @@ expect state_linearizable
 SPACECRAFT_MUTANTS = [  # (the rate as written, as a mutant wrote it; the mutant's seed)
     ("rate w2 = ((J3 - J1)*w3*w1 + T2)/J2\n", "rate w2 = ((J3 - J1)*w3*w1 + T2)/J2/(w1 - 1e-9)\n"),  # 9517
     ("rate q3 = (q0*w3 + q1*w2 - q2*w1)/2\n", "rate q3 = (q0*w3 + q1*w2 - q2*w1)/2^(1/3)\n"),  # 9521
+    ("rate w3 = ((J1 - J2)*w1*w2 + T3)/J3\n", "rate w3 = ((J1 - J2)*w1*sqrt(w2) + T3)/J3\n"),  # 9525
 ]
 
 
 @pytest.mark.parametrize("written, mutated", SPACECRAFT_MUTANTS)
 def test_a_rational_or_irrational_spacecraft_is_bracketed_in_the_ring(written: str, mutated: str) -> None:
     """The spacecraft fixture (quaternion kinematics, Euler's equations, three torques;
-    invented inertias) as two mutants of the robustness campaign wrote it: one rate divided
-    by (w1 - 1e-9), or the q3 rate over 2^(1/3) instead of 2. Their brackets were formed by
-    tree differentiation, which swelled with each order: the distributions stage stopped at
-    its budget. The inverse of the sum and the irrational constant are now atoms of the
-    kernel's ring.
+    invented inertias) as three mutants of the robustness campaign wrote it: one rate
+    divided by (w1 - 1e-9), the q3 rate over 2^(1/3) instead of 2, or sqrt(w2) for w2 in
+    the w3 rate. Their brackets were formed by tree differentiation, which swelled with each
+    order: the distributions stage stopped at its budget (the sqrt mutant: 55 s). The
+    inverse of the sum, the irrational constant and the root are now atoms of the kernel's
+    ring.
 
     References: by hand, f keeps a weighted |q|^2 constant (q0^2 + q1^2 + q2^2 + (a/2) q3^2
     with a = 2 as written, a = 2^(1/3) in the second mutant: its derivative cancels term by
@@ -514,8 +516,13 @@ def test_a_rational_or_irrational_spacecraft_is_bracketed_in_the_ring(written: s
 
     from plantlint.run.pipeline import analyse_bytes
 
+    from plantlint.kernel.lie import Kernel
+    from plantlint.run.pipeline import read_model
+
     text = (Path(REPO) / "tests" / "fixtures" / "models" / "satellite.plant").read_text(encoding="utf-8")
     assert written in text
+    model, _ = read_model(text.replace(written, mutated).encode())
+    assert model is not None and Kernel(model.plant()).field_ring() is not None  # the ring's route
     raw = analyse_bytes(text.replace(written, mutated).encode())
     analysis = raw.analysis
     assert analysis is not None and analysis["stages"]["not_completed"] == []
@@ -525,16 +532,18 @@ def test_a_rational_or_irrational_spacecraft_is_bracketed_in_the_ring(written: s
     J1, J2, J3 = 12, 15, 9
     over = 1 / (w1 - sp.Rational(1, 10**9)) if "w1 - 1e-9" in mutated else 1
     a = sp.cbrt(2) if "2^(1/3)" in mutated else 2
+    w2_in_w3 = sp.sqrt(w2) if "sqrt(w2)" in mutated else w2
     f = sp.Matrix([-(q1 * w1 + q2 * w2 + q3 * w3) / 2, (q0 * w1 + q2 * w3 - q3 * w2) / 2,
                    (q0 * w2 + q3 * w1 - q1 * w3) / 2, (q0 * w3 + q1 * w2 - q2 * w1) / a,
                    sp.Rational(J2 - J3, J1) * w2 * w3, sp.Rational(J3 - J1, J2) * w3 * w1 * over,
-                   sp.Rational(J1 - J2, J3) * w1 * w2])
+                   sp.Rational(J1 - J2, J3) * w1 * w2_in_w3])
     gs = [sp.Matrix([0, 0, 0, 0, sp.Rational(1, J1), 0, 0]), sp.Matrix([0, 0, 0, 0, 0, over / J2, 0]),
           sp.Matrix([0, 0, 0, 0, 0, 0, sp.Rational(1, J3)])]
     weights = [2, 2, 2, a]  # d/dt (q0^2 + q1^2 + q2^2 + (a/2) q3^2), times 1
     assert sp.expand(sum(w * q * f[i] for i, (w, q) in enumerate(zip(weights, X[:4])))) == 0
     rng = np.random.default_rng(5)
     point = dict(zip(X, [sp.Rational(int(v), 1000) for v in rng.integers(-400, 400, size=7)]))
+    point[w2] = abs(point[w2]) + sp.Rational(1, 10)  # where sqrt(w2) is real
     columns = [g.subs(point) for g in gs] + [(g.jacobian(X) * f - f.jacobian(X) * g).subs(point) for g in gs]
     matrix = np.array([[float(v) for v in col] for col in columns]).T
     assert np.linalg.matrix_rank(matrix) == 6

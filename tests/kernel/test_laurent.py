@@ -148,21 +148,27 @@ def test_ring_brackets_are_expanded_tree_brackets(seed: int) -> None:
 
 def test_ring_declines_what_it_cannot_read() -> None:
     u = sp.Symbol("u")
-    for f1 in (sp.exp(x), sp.sqrt(x), sp.Float(0.5) * x, 1 / (x + 1) ** sp.Rational(1, 2)):
+    for f1 in (sp.exp(x), sp.Float(0.5) * x, sp.exp(x) ** sp.Rational(1, 2)):
         kernel = Kernel(Plant.from_matrices("p", [x, y], [u], [y, f1], [[sp.Integer(0), sp.Integer(1)]], [x]))
         assert kernel.field_ring() is None and kernel.expanded_ad(0, 1) is None
+    # a root of a state or of a sum is read as an atom B^(1/q): its powers and inverse are
+    # powers of it, and its derivative (1/q) B^(1/q) B' / B stays in the ring
+    for f1 in (sp.sqrt(x), 1 / (x + 1) ** sp.Rational(1, 2), x ** sp.Rational(3, 2) - y * sp.cbrt(x)):
+        kernel = Kernel(Plant.from_matrices("p", [x, y], [u], [y, f1], [[sp.Integer(0), sp.Integer(1)]], [x]))
+        assert kernel.field_ring() is not None and kernel.expanded_ad(0, 1) is not None
     # atan's derivative 1/(x^2 + 1) is the inverse of a sum: read (d/dx atan x by sympy's diff)
     kernel = Kernel(Plant.from_matrices("p", [x, y], [u], [y, sp.atan(x)], [[sp.Integer(0), sp.Integer(1)]], [x]))
     ring = kernel.field_ring()
     assert ring is not None and sp.diff(sp.atan(x), x) in ring.atoms
 
 
-@pytest.mark.parametrize("seed", range(4))
+@pytest.mark.parametrize("seed", range(6))
 def test_ring_brackets_of_rational_fields_are_the_tree_brackets(seed: int) -> None:
     """Fields with inverses of sums (a mass matrix's determinant, a gantry crane's
-    m_c + m_p sin(th)^2, a rate over (w - c)) and irrational constants are read in the ring
-    with the sums' inverses and the constants as atoms. The brackets formed there are the brackets by tree differentiation as
-    functions (reference: sympy's diff; the numerator of together(difference) multiplies out
+    m_c + m_p sin(th)^2, a rate over (w - c)), irrational constants and roots of states and
+    of sums (a tank's Torricelli outflow sqrt(h)) are read in the ring with the sums'
+    inverses, the constants and the roots as atoms. The brackets formed there are the
+    brackets by tree differentiation as functions (reference: sympy's diff; the numerator of together(difference) multiplies out
     to 0 for ad_f g, and ad_f^2 g has the same values to 35 digits at random rational points,
     by sympy's evalf at 50)."""
     rng = random.Random(700 + seed)
@@ -172,14 +178,21 @@ def test_ring_brackets_of_rational_fields_are_the_tree_brackets(seed: int) -> No
     atoms = [x, y, m, sp.sin(t), sp.cos(t), *(1 / e for e in dets)]
     if seed % 2:  # irrational constants (sqrt(3)/2 of three-phase models, 2^(1/3), pi)
         atoms += [sp.sqrt(3), sp.cbrt(2), sp.pi]
+    if seed >= 4:  # roots of states and sums (x > 0 at the points below)
+        atoms += [sp.sqrt(x), sp.cbrt(x), sp.sqrt(1 + y**2), 1 / sp.sqrt(x + 3)]
 
     def entry() -> sp.Expr:
         return _random_expr(rng, atoms, 2) if rng.random() < 0.8 else sp.Integer(0)
 
     f = [y, entry(), entry()]
+    if seed >= 4:  # a root in f whatever the draw (a Torricelli outflow, a cube-root law)
+        f[1], f[2] = f[1] + sp.sqrt(1 + y**2) * x, f[2] - sp.cbrt(x)
     g = [sp.Integer(0), entry(), 1 / dets[rng.randrange(3)]]
     kernel = Kernel(Plant.from_matrices("p", states, [u], f, [g], [x]))
-    assert kernel.field_ring() is not None
+    ring = kernel.field_ring()
+    assert ring is not None
+    if seed >= 4:
+        assert any(a.is_Pow and not a.exp.is_Integer and not a.base.is_number for a in ring.atoms)
     tree = [g]
     for _ in range(2):  # ad_f g, ad_f^2 g by sympy's diff: [f, Y] = DY f - Df Y
         Y = tree[-1]

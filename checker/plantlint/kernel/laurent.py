@@ -3,8 +3,9 @@
 An expression built with +, *, integer powers and rational constants from *atoms* is
 read as N / D: N a polynomial with rational coefficients in the atoms, D a monomial of
 them (a negative power of an atom, 1/m or 1/cos(theta), adds to D). Every other sub-
-expression is an atom: a symbol, a function application (sin(x), tan(x), ...), a
-non-integer power, pi, the inverse of a sum (1/(x + 1) is the atom (x + 1)^-1).
+expression is an atom: a symbol, a function application (sin(x), tan(x), ...), a root
+(h^(3/2) is the atom h^(1/2) cubed), a number's non-integer power, pi, the inverse of a
+sum (1/(x + 1) is the atom (x + 1)^-1).
 
 * N = 0 as a polynomial proves the expression identically zero, whatever the atoms stand
   for: it is an identity of the polynomial ring, true after substituting any values.
@@ -122,6 +123,10 @@ def _collect(e: sp.Expr, atoms: dict[sp.Expr, int], seen: set[sp.Expr]) -> None:
         inverse = _inverse_atom(e.base)
         atoms.setdefault(inverse, len(atoms))
         return
+    root = _root_of(e)
+    if root is not None:
+        atoms.setdefault(root[0], len(atoms))
+        return
     atom = _atom_of(e)
     if atom is not None:
         atoms.setdefault(atom, len(atoms))
@@ -137,6 +142,24 @@ def _inverse_atom(base: sp.Expr) -> sp.Expr | None:
     if base.is_Add:
         return sp.Pow(base, -1, evaluate=False)
     return None
+
+
+def _root_of(e: sp.Expr) -> tuple[sp.Expr, int] | None:
+    """B^(p/q) (p/q not an integer, B not a number) as (the atom B^(1/q), p): sqrt(h) and
+    h^(3/2) are powers of the one atom h^(1/2), 1/sqrt(1 + x^2) its inverse. The ring does
+    not know that (h^(1/2))^2 = h: a numerator that is the zero polynomial is still zero
+    (an identity whatever the atom stands for), and derivatives are exact (d B^(1/q) =
+    (1/q) B^(1/q) B' / B). A number's root (2^(1/3)) is a constant atom instead."""
+    if not (e.is_Pow and e.exp.is_Rational and not e.exp.is_Integer) or e.base.is_number:
+        return None
+    return sp.Pow(e.base, sp.Rational(1, int(e.exp.q))), int(e.exp.p)
+
+
+def _root_atom(a: sp.Expr) -> bool:
+    """An atom B^(1/q) of :func:`_root_of`: its powers evaluate (sqrt(h)^2 is h), so monomials
+    with it are built by sympy's own constructors (:meth:`FieldRing.expr`)."""
+    return (a.is_Pow and a.exp.is_Rational and not a.exp.is_Integer and int(a.exp.p) == 1
+            and not a.base.is_number)
 
 
 class _Reader:
@@ -209,6 +232,14 @@ class _Reader:
             # 1 / (c * a^p / a^d) = (1/c) * a^d / a^p, all to the power -k
             inv = self.ctx.from_dict({tuple(den): 1 / coeff})  # type: ignore[attr-defined]
             return inv ** (-k), tuple(-k * x for x in exps)
+        root = _root_of(e)
+        if root is not None and root[0] in self.atoms:
+            index, k = self.atoms[root[0]], root[1]
+            if abs(k) > MAX_POWER:
+                raise _Outside("power")
+            if k > 0:
+                return self.generator(index, k)
+            return self.one, tuple(-k if i == index else 0 for i in range(self.n))
         raise _Outside(type(e).__name__)
 
     @staticmethod
@@ -244,8 +275,9 @@ def _inverse_of_sum(a: sp.Expr) -> bool:
 
 class FieldRing:
     """Vector fields of one plant read as Laurent polynomials in its states, parameters and
-    function atoms (sin(x), cos(x - y), tan(theta), ...) and inverses of sums (1/(w1 - c),
-    1/(m_c + m_p*sin(th)^2): a mass matrix's determinant), closed under d/dx: brackets are
+    function atoms (sin(x), cos(x - y), tan(theta), ...), roots (a tank's sqrt(h)) and
+    inverses of sums (1/(w1 - c), 1/(m_c + m_p*sin(th)^2): a mass matrix's determinant),
+    closed under d/dx: brackets are
     formed by formal differentiation in flint's ring (the chain rule through each atom's
     own sympy derivative) and rebuilt as sums of monomials. Without inverses of sums that
     is ``sympy.expand`` of the bracket tree differentiation gives, term for term
@@ -264,9 +296,9 @@ class FieldRing:
         self.reader = _Reader(self.ctx, atoms)
         self.zero_exp = (0,) * self.n
         self._powers: dict[tuple[int, int], sp.Expr] = {}  # atom ** k, built once
-        #: atoms whose powers or products sympy may evaluate (sqrt(3)^2 = 3): their
-        #: monomials are built by sympy's constructors
-        self.constants = frozenset(i for a, i in atoms.items() if _constant_atom(a))
+        #: atoms whose powers or products sympy may evaluate (sqrt(3)^2 = 3, sqrt(h)^2 = h):
+        #: their monomials are built by sympy's constructors
+        self.constants = frozenset(i for a, i in atoms.items() if _constant_atom(a) or _root_atom(a))
         self.states = [atoms[x] for x in states]
         #: for state k: [(atom index, d atom / d x_k as a Laurent polynomial)]
         self.chain: list[list[tuple[int, Laurent]]] = []
@@ -298,7 +330,7 @@ class FieldRing:
                             _collect(sp.diff(a, x), atoms, seen)
                 if len(atoms) > MAX_ATOMS:
                     return None
-            if not all(_plain_atom(a) or _inverse_of_sum(a) or _constant_atom(a) for a in atoms):
+            if not all(_plain_atom(a) or _inverse_of_sum(a) or _constant_atom(a) or _root_atom(a) for a in atoms):
                 return None
             return cls(states, atoms)
         except (_Outside, RecursionError):

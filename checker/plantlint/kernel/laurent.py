@@ -298,7 +298,7 @@ class FieldRing:
         self._powers: dict[tuple[int, int], sp.Expr] = {}  # atom ** k, built once
         #: atoms whose powers or products sympy may evaluate (sqrt(3)^2 = 3, sqrt(h)^2 = h):
         #: their monomials are built by sympy's constructors
-        self.constants = frozenset(i for a, i in atoms.items() if _constant_atom(a) or _root_atom(a))
+        self.evaluated = frozenset(i for a, i in atoms.items() if _constant_atom(a) or _root_atom(a))
         self.states = [atoms[x] for x in states]
         #: for state k: [(atom index, d atom / d x_k as a Laurent polynomial)]
         self.chain: list[list[tuple[int, Laurent]]] = []
@@ -413,7 +413,7 @@ class FieldRing:
         of a polynomial are distinct monomials. The same expression, a fraction of the time
         (held srepr for srepr against sympy's own construction in tests/kernel/test_laurent.py)."""
         num, den = p
-        if self.constants:  # sympy may evaluate their powers: its own constructors build them
+        if self.evaluated:  # sympy may evaluate their powers: its own constructors build them
             return _monomial_sum(num, den, self.order)
         powers = self._powers
         numbers: list[sp.Expr] = []

@@ -474,9 +474,9 @@ def _reaches_values(data: bytes) -> bool:
 
 def _preload(datas: list[bytes]) -> None:
     """Import before forking what every worker would import, so that workers start warm
-    (the engine and what it loads on first use) and a model's time budget is spent on its
-    analysis, not on imports. Skipped for a single file that does not parse or whose
-    names do not resolve: it is reported without sympy."""
+    (the engine, and for several models what it loads on first use) and a model's time
+    budget is spent on its analysis, not on imports. Skipped for a single file that does
+    not parse or whose names do not resolve: it is reported without sympy."""
     for module in _PRELOAD:
         importlib.import_module(module)
     if len(datas) > 1:

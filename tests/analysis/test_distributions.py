@@ -585,3 +585,56 @@ point design: X = 3.92, S = 0.2, D = 0.25
     assert singular[-1] < 1e-12 * singular[0]
     left = vt[-1] / vt[-1][0]
     assert np.allclose(left, [1.0, 2 / 5])
+
+
+REACTOR = b"""plant reactor "A -> B -> C with a heated jacket (invented numbers)"
+const k10 = 7.2e10
+const k20 = 5.2e9
+const E1 = 8750
+const E2 = 9750
+state CA in 0.01 .. 2
+state CB in 0 .. 2
+state T in 300 .. 420
+state Tj in 280 .. 400
+input qj in 0 .. 0.5
+input heat in -5 .. 5
+let r1 = k10*exp(-E1/T)*CA
+let r2 = k20*exp(-E2/T)*CB
+rate CA = 0.1*(2 - CA) - r1
+rate CB = -0.1*CB + r1 - r2
+rate T = 0.1*(350 - T) + 50*r1 + 30*r2 - 0.5*(T - Tj) + heat
+rate Tj = 5*qj*(290 - Tj) + 2.5*(T - Tj)
+output temp = T
+expect state_linearizable
+"""
+
+
+def test_a_state_linearizable_claim_names_the_first_failing_distribution() -> None:
+    """A reactor with two consecutive Arrhenius reactions, heated directly and through its
+    jacket. G_1 = span{g1, g2, ad_f g1, ad_f g2} is not involutive: with g2 = d/dT,
+    [g2, ad_f g2] = -d^2 f/dT^2, whose (CA, CB) part is parallel to that of d f/dT only
+    when r1_T r2_TT = r1_TT r2_T, i.e. E1 E2 (E2 - E1) = 0 (by hand, r = k0 exp(-E/T)).
+    The analysis stops there, so the claim must say so; it said "the controllability
+    distribution has generic rank 3 < 4", G_1's rank, though G_3 has rank 4. Reference for
+    that: a 4 x 4 minor of [g, ad_f g, ..., ad_f^3 g] at a rational point, by sympy's diff
+    and evalf at 50 digits, is far from zero."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    raw = analyse_bytes(REACTOR)
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert claim.message == ("`expect state_linearizable` does not hold: G_1 is not involutive "
+                             "([g2, ad_f g2] leaves it)")
+    CA, CB, T, Tj = X = sp.symbols("CA CB T Tj")
+    r1 = sp.Rational(72 * 10**9) * sp.exp(-sp.Integer(8750) / T) * CA
+    r2 = sp.Rational(52 * 10**8) * sp.exp(-sp.Integer(9750) / T) * CB
+    f = sp.Matrix([sp.Rational(1, 10) * (2 - CA) - r1, -CB / 10 + r1 - r2,
+                   (350 - T) / 10 + 50 * r1 + 30 * r2 - (T - Tj) / 2, sp.Rational(5, 2) * (T - Tj)])
+    g1, g2 = sp.Matrix([0, 0, 0, 5 * (290 - Tj)]), sp.Matrix([0, 0, 1, 0])
+
+    def ad(v: sp.Matrix) -> sp.Matrix:
+        return v.jacobian(X) * f - f.jacobian(X) * v
+
+    columns = [ad(g1), ad(ad(g1)), ad(ad(ad(g1))), ad(ad(ad(g2)))]
+    point = {CA: sp.Rational(1, 2), CB: sp.Rational(3, 10), T: 360, Tj: 320}
+    minor = sp.Matrix([[sp.N(e.subs(point), 50) for e in col] for col in columns]).det()
+    assert abs(minor) > 1

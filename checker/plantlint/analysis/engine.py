@@ -718,10 +718,12 @@ def _state_linearizable_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | Non
     out: list[tuple[str | None, str]] = []
     if not points:
         n = a.model.plant().n if a.model.plant() else 0
-        if not ds.ranks or ds.ranks[-1] < n:
-            out.append((None, f"the controllability distribution has generic rank {ds.ranks[-1] if ds.ranks else 0} < {n}"))
-        elif not ds.involutive and ds.failure is not None:
+        if not ds.involutive and ds.failure is not None:
+            # the distributions above the failing one were not formed (ds.ranks stops there),
+            # so nothing is said of the controllability distribution's rank
             out.append((None, f"{ds.name(ds.failure.order)} is not involutive ({ds.failure.pair} leaves it)"))
+        elif not ds.ranks or ds.ranks[-1] < n:
+            out.append((None, f"the controllability distribution has generic rank {ds.ranks[-1] if ds.ranks else 0} < {n}"))
         return out
     for pa in points:
         pd = pa.distributions

@@ -522,6 +522,8 @@ expect minimum_phase at rest
 """
     (claim,) = [f for f in analyse_bytes(text).findings if f.rule == "expectation-failed"]
     assert claim.undecided and "computed for square plants" in claim.message
+    # a CI maintainer reads "not decided" as "give it more time": the hint says it will not help
+    assert claim.hint is not None and claim.hint.startswith("no budget decides this")
 
 
 def test_a_barely_unstable_mode_at_a_refined_point_is_not_called_critical() -> None:

@@ -333,7 +333,15 @@ def _feedback_shifted(kernel: Kernel, structure: DistributionStructure, eq: Equi
 # -- claims -------------------------------------------------------------------------
 
 class Undecided(str):
-    """A claim checker's message for "could not be decided" (as opposed to "fails")."""
+    """A claim checker's message for "could not be decided" (as opposed to "fails"), with
+    the finding's hint when there is more to say than what a larger budget would do."""
+
+    hint: str | None
+
+    def __new__(cls, text: str, hint: str | None = None) -> "Undecided":
+        self = super().__new__(cls, text)
+        self.hint = hint
+        return self
 
 
 def claim_stage(claim: ClaimDecl, ranged: bool = False) -> str:
@@ -382,7 +390,7 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
         for point, message in failures:
             if isinstance(message, Undecided):
                 out.append(finding("expectation-failed", f"`{text}` not decided: {message}",
-                                   point=point, anchor=claim.anchor, undecided=True))
+                                   point=point, anchor=claim.anchor, undecided=True, hint=message.hint))
             else:
                 out.append(finding("expectation-failed", f"`{text}` does not hold: {message}",
                                    point=point, anchor=claim.anchor))
@@ -680,7 +688,11 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
                 out.append((pa.name, f"'{pa.name}' is not an equilibrium, so the zero dynamics are not defined there"))
             continue
         if zd is not None and zd.beyond_scope:
-            out.append((pa.name, Undecided(f"at point '{pa.name}' the zero dynamics were not computed: {zd.reason}")))
+            out.append((pa.name, Undecided(
+                f"at point '{pa.name}' the zero dynamics were not computed: {zd.reason}",
+                hint="no budget decides this: the zero dynamics of this plant's shape are beyond what plantlint "
+                     "computes; check the claim by other means and waive it with the reason, or declare the "
+                     "outputs the controller holds, one per input")))
         elif zd is None or zd.verdict == "undefined":
             reason = zd.reason if zd is not None and zd.reason else "the relative degree is not well defined there"
             out.append((pa.name, f"at point '{pa.name}' the zero dynamics are not defined: {reason}"))

@@ -568,8 +568,7 @@ def certify_envelope(
         findings.append(finding(
             "envelope-singular",
             f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
-            f"at {show_point(verdict.witness)}"
-            + (" (exactly)" if verdict.witness_exact else " (a zero proven by a sign change next to it)")
+            f"at {_witness_text(verdict.witness, exprs, verdict.witness_exact)}"
             + _factor_phrase(culprit, exprs),
             _range_to_narrow(kernel, culprit, box, spans),
             anchor=anchors.ENVELOPE, hint="narrow the envelope, move it off the singular set, or choose other outputs",
@@ -661,6 +660,19 @@ def _also_zero(kernel: Kernel, parts: list[tuple[sp.Expr, int]], found: sp.Expr,
             except (ArithmeticError, ValueError, TypeError):
                 continue
     return out
+
+
+def _witness_text(witness: dict[str, float], exprs: list[sp.Expr], exact: bool) -> str:
+    """``q1 = 0, q2 = 0 (exactly, whatever w1 and w2)``: the quantities the vanishing terms
+    do not contain are not values of the witness (they stood at the box's centre), and the
+    terms vanish for every value of them."""
+    named = {str(s) for e in exprs for s in e.free_symbols}
+    shown = {k: v for k, v in witness.items() if k in named} or witness
+    free = [k for k in witness if k not in shown]
+    how = "exactly" if exact else "a zero proven by a sign change next to it"
+    if free:
+        how += ", whatever " + (free[0] if len(free) == 1 else ", ".join(free[:-1]) + " and " + free[-1])
+    return f"{show_point(shown)} ({how})"
 
 
 def _factor_phrase(culprit: list[sp.Expr], exprs: list[sp.Expr]) -> str:

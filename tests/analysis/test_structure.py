@@ -665,6 +665,9 @@ def test_an_exact_witness_is_as_plain_as_the_zero_allows() -> None:
 
     (f,) = [f for f in analyse_bytes(ARM.encode()).findings if f.rule == "envelope-singular"]
     assert "vanishes at q1 = 0, q2 = 0 (exactly, whatever w1 and w2)" in f.message, f.message
+    (claim,) = [f for f in analyse_bytes((ARM + "expect regular\n").encode()).findings
+                if f.rule == "expectation-failed"]  # a failed claim quotes the same place
+    assert claim.message.endswith("(singular at q1 = 0, q2 = 0, whatever w1 and w2)"), claim.message
     l1, l2, q1, q2 = 0.5, 0.4, 0.0, 0.0
     J = np.array([[-l1 * np.sin(q1) - l2 * np.sin(q1 + q2), -l2 * np.sin(q1 + q2)],
                   [l1 * np.cos(q1) + l2 * np.cos(q1 + q2), l2 * np.cos(q1 + q2)]])

@@ -612,7 +612,7 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
                               "decoupling-singular finding)"))
             return out  # every point fails for that one reason: said once, not once more per point
         elif env.regular is False:
-            where = show_point(env.witness or {})
+            where = env.where or show_point(env.witness or {})
             out.append((None, "the relative degree is not well defined everywhere in the envelope"
                               + (f" (singular at {where})" if where else "")))
     for pa in _points_for(a, c):

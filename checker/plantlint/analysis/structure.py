@@ -101,6 +101,8 @@ class Envelope:
     certified: str = ""  # what was certified, in words
     #: why regularity could not be decided when no budget was involved (no box to certify on)
     undecidable: str = ""
+    #: where it is singular, in words (``th = 0, whatever w``); "" when not singular there
+    where: str = ""
 
 
 # -- naming and message helpers ------------------------------------------------------------
@@ -565,15 +567,17 @@ def certify_envelope(
     verdict, culprit = _certify_by_factors(kernel, exprs, box, clock)
     if verdict.regular is False:
         assert verdict.witness is not None
+        shown, whatever = _witness_parts(verdict.witness, exprs)
+        how = "exactly" if verdict.witness_exact else "a zero proven by a sign change next to it"
         findings.append(finding(
             "envelope-singular",
             f"the relative degree is not well defined on the whole envelope: {certified} vanishes "
-            f"at {_witness_text(verdict.witness, exprs, verdict.witness_exact)}"
-            + _factor_phrase(culprit, exprs),
+            f"at {shown} ({how}{whatever})" + _factor_phrase(culprit, exprs),
             _range_to_narrow(kernel, culprit, box, spans),
             anchor=anchors.ENVELOPE, hint="narrow the envelope, move it off the singular set, or choose other outputs",
         ))
-        return Envelope(False, None, verdict.witness, tuple(findings), clock.boxes, clock.seconds, certified)
+        return Envelope(False, None, verdict.witness, tuple(findings), clock.boxes, clock.seconds, certified,
+                        where=shown + whatever)
     if verdict.regular is None:
         shown = "; ".join(
             ", ".join(f"{k} in [{show_number(lo)}, {show_number(hi)}]" for k, (lo, hi) in b.items()) for b in verdict.undecided[:2]
@@ -662,17 +666,16 @@ def _also_zero(kernel: Kernel, parts: list[tuple[sp.Expr, int]], found: sp.Expr,
     return out
 
 
-def _witness_text(witness: dict[str, float], exprs: list[sp.Expr], exact: bool) -> str:
-    """``q1 = 0, q2 = 0 (exactly, whatever w1 and w2)``: the quantities the vanishing terms
-    do not contain are not values of the witness (they stood at the box's centre), and the
+def _witness_parts(witness: dict[str, float], exprs: list[sp.Expr]) -> tuple[str, str]:
+    """(``q1 = 0, q2 = 0``, ``, whatever w1 and w2``): the quantities the vanishing terms do
+    not contain are not values of the witness (they stood at the box's centre), and the
     terms vanish for every value of them."""
     named = {str(s) for e in exprs for s in e.free_symbols}
     shown = {k: v for k, v in witness.items() if k in named} or witness
     free = [k for k in witness if k not in shown]
-    how = "exactly" if exact else "a zero proven by a sign change next to it"
-    if free:
-        how += ", whatever " + (free[0] if len(free) == 1 else ", ".join(free[:-1]) + " and " + free[-1])
-    return f"{show_point(shown)} ({how})"
+    whatever = (", whatever " + (free[0] if len(free) == 1 else ", ".join(free[:-1]) + " and " + free[-1])
+                if free else "")
+    return show_point(shown), whatever
 
 
 def _factor_phrase(culprit: list[sp.Expr], exprs: list[sp.Expr]) -> str:

@@ -286,3 +286,45 @@ def test_explain_says_singular_everywhere_rather_than_at_a_point(tmp_path: Path)
     assert "singular everywhere: the decoupling matrix is singular for every state" in text
     assert "generic structure vanishes" not in text
 
+
+
+def test_explain_says_which_null_vectors_are_quantities_and_which_are_directions() -> None:
+    """An invented linear plant: two integrators driven by u1, u2 and a decaying x3 that no
+    input reaches, seen through y = x1 + x2. The quantity x3 cannot be changed by the inputs
+    (a left null vector of [B, AB, A^2 B]); the state can move along x1 - x2 or x3 unseen
+    (null vectors of [C; CA; CA^2]). The two are written alike, so the labels say which is
+    which. Reference: numpy's null spaces of the same matrices."""
+    import tempfile
+
+    import numpy as np
+
+    text = b"""plant pair
+state x1 in -1 .. 1
+state x2 in -1 .. 1
+state x3 in -1 .. 1
+input u1
+input u2
+rate x1 = u1
+rate x2 = u2
+rate x3 = -x3
+output y = x1 + x2
+point rest: x1 = 0, x2 = 0, x3 = 0
+"""
+    A = np.diag([0.0, 0.0, -1.0])
+    B = np.array([[1.0, 0.0], [0.0, 1.0], [0.0, 0.0]])
+    C = np.array([[1.0, 1.0, 0.0]])
+    kalman = np.hstack([B, A @ B, A @ A @ B])
+    observability = np.vstack([C, C @ A, C @ A @ A])
+    assert np.allclose(np.array([0.0, 0.0, 1.0]) @ kalman, 0)  # x3: a quantity no input changes
+    for v in ([1.0, -1.0, 0.0], [0.0, 0.0, 1.0]):  # directions the output cannot see
+        assert np.allclose(observability @ np.array(v), 0)
+    out = io.StringIO()
+    with tempfile.TemporaryDirectory() as folder:
+        model = Path(folder) / "pair.plant"
+        model.write_bytes(text)
+        explain_file(model, None, "text", out, color=False)
+    shown = out.getvalue()
+    assert "uncontrollable (quantities the inputs cannot change): x3" in shown
+    unseen = [ln.split("cannot see): ")[1].split("  (")[0] for ln in shown.splitlines()
+              if "unobservable (state directions the outputs cannot see)" in ln]
+    assert sorted(unseen) == ["x1 - x2", "x3"], shown  # one line per mode (s = 0, s = -1)

@@ -329,9 +329,14 @@ def _render_matrices(console: Any, lin: dict[str, Any]) -> None:
 
 
 def _render_ranks(console: Any, lin: dict[str, Any], n: int) -> None:
+    # uncontrollable: quantities w.x (left null vectors); unobservable: directions v of
+    # state space, x0 + t v (null vectors): the same notation, so the label says which
+    inputs = "inputs" if lin["B"] and len(lin["B"][0]) > 1 else "input"
     for kind, rank, groups, what in (
-        ("controllability", lin["controllability_rank"], lin["uncontrollable"], "uncontrollable (the input cannot change)"),
-        ("observability", lin["observability_rank"], lin["unobservable"], "unobservable (the outputs cannot see)"),
+        ("controllability", lin["controllability_rank"], lin["uncontrollable"],
+         f"uncontrollable (quantities the {inputs} cannot change)"),
+        ("observability", lin["observability_rank"], lin["unobservable"],
+         "unobservable (state directions the outputs cannot see)"),
     ):
         if rank is None:
             continue

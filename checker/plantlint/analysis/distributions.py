@@ -54,7 +54,7 @@ from plantlint.kernel.exact import ball_rank
 from plantlint.kernel.laurent import expanded, identically_zero
 from plantlint.kernel.lie import Kernel, Vector, has_nested_arguments, has_symbolic_denominator, matrix_at
 from plantlint.kernel.rational import sympy_rational
-from plantlint.language.printer import show_expr, show_point
+from plantlint.language.printer import listed, show_expr, show_point
 from plantlint.analysis.linearizing_output import OutputSearch
 
 
@@ -1040,7 +1040,7 @@ def _point_findings(
     if n and control_rank < n:
         message = (
             f"at {name} the controllability distribution {structure.spanners(top)} has rank "
-            f"{control_rank} < {n}; " + (f"no input moves {_listed(missing)} there, to first order" if missing
+            f"{control_rank} < {n}; " + (f"no input moves {listed(missing, 'or')} there, to first order" if missing
                                          else "the combinations of states it misses were not worked out")
         )
         if top in singular:
@@ -1135,7 +1135,3 @@ def _direction_text(v: Sequence[sp.Expr], states: Sequence[sp.Symbol]) -> str:
             parts.append(text)
     return " ".join(parts)
 
-
-def _listed(items: Sequence[str]) -> str:
-    """``a``, ``a or b``, ``a, b or c``."""
-    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " or " + items[-1]

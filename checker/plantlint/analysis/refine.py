@@ -44,6 +44,7 @@ from flint import arb
 
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.plant import Plant
+from plantlint.language.printer import decimal_places
 
 PREC = 200  # bits for every evaluation (about 60 digits)
 DIGITS = 50  # mpmath working digits
@@ -311,21 +312,15 @@ def _newton(system: _System, start: dict[sp.Symbol, mpmath.mpf], free: list[sp.S
 
 def _decimal(written: sp.Expr) -> tuple[int, int] | None:
     """(places after the point, significant digits) of a value written as a decimal with
-    digits after the point (0.0643: 4 places, 3 digits), read off its exact rational (a
-    terminating decimal has a denominator 2^a 5^b, and max(a, b) places); None for a value
+    digits after the point (0.0643: 4 places, 3 digits), read off its exact rational
+    (:func:`~plantlint.language.printer.decimal_places`); None for a value
     that reads as chosen, not rounded: an integer (0 for a rest position), a fraction that
     is no decimal (1/3), an irrational constant (pi/2). Trailing zeros are not seen (0.50
     reads as 0.5)."""
     if not (isinstance(written, sp.Rational) and not written.is_Integer):
         return None
-    q, places = int(written.q), 0
-    for prime in (2, 5):
-        count = 0
-        while q % prime == 0:
-            q //= prime
-            count += 1
-        places = max(places, count)
-    if q != 1:
+    places = decimal_places(written)
+    if places is None:
         return None
     digits = abs(int(written.p)) * 10**places // int(written.q)
     return places, len(str(digits))

@@ -30,7 +30,7 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_nonzero, certify_sign
-from plantlint.language.printer import show_expr, show_number, show_point
+from plantlint.language.printer import listed, show_expr, show_number, show_point
 from plantlint.kernel import decision as zd, exact
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.lie import Kernel, matrix_at
@@ -152,7 +152,7 @@ def row_terms(kernel: Kernel, row: tuple[sp.Expr, ...], output: int, r: int) -> 
     texts = [readable(e) for e in row]
     if all(len(t) <= SHOWN_TERM_CHARS for t in texts):
         return "; ".join(f"{n} = {t}" for n, t in zip(names, texts)), False
-    return (", ".join(names[:-1]) + " and " + names[-1]) if len(names) > 1 else names[0], True
+    return listed(names), True
 
 
 def _small_degrees(expr: sp.Expr) -> bool:
@@ -673,9 +673,7 @@ def _witness_parts(witness: dict[str, float], exprs: list[sp.Expr]) -> tuple[str
     named = {str(s) for e in exprs for s in e.free_symbols}
     shown = {k: v for k, v in witness.items() if k in named} or witness
     free = [k for k in witness if k not in shown]
-    whatever = (", whatever " + (free[0] if len(free) == 1 else ", ".join(free[:-1]) + " and " + free[-1])
-                if free else "")
-    return show_point(shown), whatever
+    return show_point(shown), (", whatever " + listed(free) if free else "")
 
 
 def _factor_phrase(culprit: list[sp.Expr], exprs: list[sp.Expr]) -> str:
@@ -689,7 +687,7 @@ def _factor_phrase(culprit: list[sp.Expr], exprs: list[sp.Expr]) -> str:
         return ""
     if len(texts) == 1:
         return f": its factor {texts[0]} is zero there"
-    return f": its factors {', '.join(texts[:-1])} and {texts[-1]} are zero there"
+    return f": its factors {listed(texts)} are zero there"
 
 
 def _range_to_narrow(kernel: Kernel, culprit: list[sp.Expr], box: dict[sp.Symbol, Any],

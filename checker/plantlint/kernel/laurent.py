@@ -158,8 +158,7 @@ def _root_of(e: sp.Expr) -> tuple[sp.Expr, int] | None:
 def _root_atom(a: sp.Expr) -> bool:
     """An atom B^(1/q) of :func:`_root_of`: its powers evaluate (sqrt(h)^2 is h), so monomials
     with it are built by sympy's own constructors (:meth:`FieldRing.expr`)."""
-    return (a.is_Pow and a.exp.is_Rational and not a.exp.is_Integer and int(a.exp.p) == 1
-            and not a.base.is_number)
+    return _root_of(a) == (a, 1)
 
 
 class _Reader:

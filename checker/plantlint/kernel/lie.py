@@ -277,8 +277,8 @@ class Kernel:
 
     # -- brackets in the ring of Laurent polynomials (kernel/laurent.py) -----
     def field_ring(self) -> "FieldRing | None":
-        """f and g read as Laurent polynomials in states, parameters, function atoms and
-        inverses of sums, closed under d/dx; None when they are not (a float, sqrt, exp, ...)."""
+        """f and g read as Laurent polynomials in states, parameters, function atoms, roots
+        and inverses of sums, closed under d/dx; None when they are not (a float, exp, ...)."""
         if self._ring is False:
             exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0]
             self._ring = FieldRing.build(self.x, exprs)

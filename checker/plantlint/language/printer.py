@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 from decimal import Context, Decimal
 from fractions import Fraction
+from typing import Sequence
 
 import sympy as sp
 from sympy.printing.str import StrPrinter
@@ -135,8 +136,14 @@ def show_point(values: dict[str, float] | dict[str, sp.Expr], digits: int = 6) -
     return ", ".join(f"{k} = {show_number(v, digits)}" for k, v in values.items())
 
 
-def _decimal(r: sp.Rational) -> str | None:
-    """1/4 -> 0.25 when the decimal expansion is finite and short."""
+def listed(items: Sequence[str], conjunction: str = "and") -> str:
+    """``a``, ``a and b``, ``a, b and c`` (or with ``or``)."""
+    return items[0] if len(items) == 1 else f"{', '.join(items[:-1])} {conjunction} {items[-1]}"
+
+
+def decimal_places(r: sp.Rational) -> int | None:
+    """How many places after the point the decimal expansion of ``r`` has (1/4: 2, 3: 0);
+    None when it does not end (1/3): a denominator 2^a 5^b has max(a, b) places."""
     q = int(r.q)
     twos = fives = 0
     while q % 2 == 0:
@@ -145,10 +152,13 @@ def _decimal(r: sp.Rational) -> str | None:
     while q % 5 == 0:
         q //= 5
         fives += 1
-    if q != 1:
-        return None
-    places = max(twos, fives)
-    if places > 9:
+    return max(twos, fives) if q == 1 else None
+
+
+def _decimal(r: sp.Rational) -> str | None:
+    """1/4 -> 0.25 when the decimal expansion is finite and short."""
+    places = decimal_places(r)
+    if places is None or places > 9:
         return None
     scaled = abs(int(r.p)) * 10**places // int(r.q)
     text = str(scaled).rjust(places + 1, "0")

@@ -93,7 +93,9 @@ class DistributionStructure:
     n: int
     m: int
     fields: tuple[SpanningField, ...]
-    ranks: tuple[int, ...]  # generic rank of D_k, k = 0 .. n-1
+    #: generic rank of D_k, k = 0 .. n-1, or up to the first D_k that is not involutive
+    #: (the analysis stops there: then the last entry is not the controllability rank)
+    ranks: tuple[int, ...]
     bases: tuple[tuple[int, ...], ...]  # indices into ``fields`` of a basis of D_k
     involutive_by_order: tuple[bool, ...]  # D_k involutive, k = 0 .. n-2
     failures: tuple[BracketFailure, ...]  # first failing pair of each non-involutive D_k

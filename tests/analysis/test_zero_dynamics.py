@@ -252,13 +252,36 @@ def test_transcendental_point_against_hand_derivative() -> None:
     assert abs(zd.eigenvalues[0].real - ref) < 1e-14 and zd.eigenvalues[0].imag == 0
 
 
-def test_numerically_zero_eigenvalue_is_critical_with_tolerance() -> None:
-    # the coefficient sin(1/3)^2 + cos(1/3)^2 - 1 is exactly 0 but not written so
+def test_an_eigenvalue_exactly_zero_but_not_written_so_is_proven_on_the_axis() -> None:
+    # the coefficient sin(1/3)^2 + cos(1/3)^2 - 1 is exactly 0 but not written so (the
+    # Pythagorean identity; sympy's simplify below). Its ball holds 0 without excluding it;
+    # the exact polynomial p(s) = s is odd, so the root is its own mirror image: Re = 0.
     s, co = sp.sin(sp.Rational(1, 3)), sp.cos(sp.Rational(1, 3))
+    assert sp.simplify(s**2 + co**2 - 1) == 0
     P = Plant.from_matrices("crit", [x1, x2], [u], [(s**2 + co**2 - 1) * x1 + s * x2, 0], [[0, 1]], [x2])
     zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "p")
-    assert zd.verdict == "critical" and not zd.exact and zd.tolerance is not None
-    assert "within" in zd.findings[0].message
+    assert zd.verdict == "critical" and zd.exact and zd.tolerance is None and zd.eigenvalues == (0j,)
+    assert "exactly on the imaginary axis (the characteristic polynomial of the zero dynamics is odd in s" \
+        in zd.findings[0].message
+
+
+def test_eigenvalues_near_the_axis_without_an_exact_reason_are_critical_within_a_bound() -> None:
+    """Invented: with xi held at 0, z' = M z, M = diag([[sqrt 2, 1], [-3, -sqrt 2]], -1),
+    whose characteristic polynomial is (s^2 + 1)(s + 1) = s^3 + s^2 + s + 1 (sympy below):
+    every coefficient non-zero and of both parities, so neither Stodola's condition nor the
+    mirror argument applies. The balls bound the real parts of +-i; the verdict says so."""
+    sq = sp.sqrt(2)
+    z1, z2, z3, xi = sp.symbols("z1 z2 z3 xi", real=True)
+    s = sp.Symbol("s")
+    M = sp.Matrix([[sq, 1, 0], [-3, -sq, 0], [0, 0, -1]])
+    assert sp.expand(M.charpoly(s).as_expr()) == s**3 + s**2 + s + 1
+    f = [sq * z1 + z2 + xi, -3 * z1 - sq * z2, -z3 + xi, 0]
+    P = Plant.from_matrices("near", [z1, z2, z3, xi], [u], f, [[0, 0, 0, 1]], [xi])
+    zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "p")
+    assert zd.verdict == "critical" and not zd.exact and zd.tolerance is not None and zd.tolerance < 1e-30
+    assert zd.not_hurwitz is None
+    assert_same_set(list(zd.eigenvalues), [-1, 1j, -1j], tol=1e-12)
+    assert f"within {zd.tolerance:.3g} of the imaginary axis" in zd.findings[0].message
 
 
 def test_not_a_rest_point_is_undefined() -> None:
@@ -382,9 +405,9 @@ def test_eigenvalues_near_the_axis_fail_the_claim_only_when_an_exact_coefficient
     """With the motor angle held, the link obeys q1'' = -(MgL sin q1 + ks (q1 - q2) + c q1')/Il,
     whose linearisation has the characteristic polynomial s^2 + (c/Il) s + (MgL cos q1 + ks)/Il
     (by hand; sympy and numpy below). At the irrational point q1 = pi/6 the numeric route
-    finds the eigenvalues within its tolerance of the axis. Without link damping (c = 0) the
-    s coefficient is exactly zero, so the polynomial is not Hurwitz (Stodola's necessary
-    condition) and the claim fails, decided. With c = 1e-12 the eigenvalues are stable but
+    bounds the eigenvalues' real parts without signing them. Without link damping (c = 0)
+    the s coefficient is exactly zero: the polynomial is even, so its roots mirror across
+    the axis and, each alone near its mirror image, lie on it; the claim fails, decided. With c = 1e-12 the eigenvalues are stable but
     stable by 1.7e-11 only: their balls prove it, and the claim holds."""
     from plantlint.run.pipeline import analyse_bytes
 
@@ -399,7 +422,7 @@ def test_eigenvalues_near_the_axis_fail_the_claim_only_when_an_exact_coefficient
     ours = sorted((complex(re, im) for re, im in zd["eigenvalues"]), key=lambda z: z.imag)
     assert np.allclose(ours, ref, atol=1e-9)
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
-    assert not claim.undecided and "has no s term (its coefficient is exactly zero), so it is not Hurwitz" in claim.message
+    assert not claim.undecided and "have eigenvalues on the imaginary axis" in claim.message
     damped = FLEX.replace("rate w1 = -(MgL*sin(q1) + ks*(q1 - q2))/Il", "rate w1 = -(MgL*sin(q1) + ks*(q1 - q2) + 1e-12*w1)/Il")
     assert damped != FLEX
     raw = analyse_bytes(damped.encode())
@@ -455,8 +478,10 @@ expect minimum_phase at o
 def test_irrational_zero_dynamics_on_the_axis_and_the_pencil_zeros_there() -> None:
     """Invented: with xi held at 0, (z1, z2) obey [[sqrt 2, 1], [-3, -sqrt 2]], whose
     characteristic polynomial is s^2 + 1 (sympy below): eigenvalues +-i, on the axis with
-    irrational entries. The balls cannot sign a real part that is 0; they bound it, and the
-    exactly-zero s coefficient (Stodola) fails the claim. The linearisation's transmission
+    irrational entries. The balls cannot sign a real part that is 0; they bound it. The
+    exact polynomial is even (its s coefficient is exactly zero), so each root's mirror
+    image across the axis is a root too, and a root alone near its mirror image is on the
+    axis: the claim fails, decided. The linearisation's transmission
     zeros are +-i too (the z block is unobservable); they are computed on a circle off the
     roots of unity, where a ball determinant at a zero of the pencil would lose every digit
     (reference: the Rosenbrock pencil, scipy)."""
@@ -471,7 +496,8 @@ def test_irrational_zero_dynamics_on_the_axis_and_the_pencil_zeros_there() -> No
     assert zd["verdict"] == "critical"
     assert_same_set([complex(a, b) for a, b in zd["eigenvalues"]], [1j, -1j], tol=1e-12)
     (critical,) = [f for f in raw.findings if f.rule == "zero-dynamics-critical"]
-    assert "of the imaginary axis" in critical.message and "is not Hurwitz" in critical.message
+    assert "exactly on the imaginary axis (the characteristic polynomial of the zero dynamics is even in s" \
+        in critical.message
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert not claim.undecided
     assert not [f for f in raw.findings if f.rule == "internal-inconsistency"]
@@ -553,3 +579,42 @@ point p: x1 = 1.2599, x2 = 0, x3 = 0, u = 0 tolerance 1e-3
     zd = raw.analysis["points"]["p"]["zero_dynamics"]
     assert zd["verdict"] == "non_minimum_phase"
     assert all(abs(re - 5e-13) < 1e-18 for re, _ in zd["eigenvalues"])
+
+
+def test_a_repeated_root_near_the_axis_fails_the_claim_by_a_missing_coefficient() -> None:
+    """Invented: with xi held at 0, z1' = z2, z2' = 0, z3' = -sqrt(2) z3, whose characteristic
+    polynomial is s^2 (s + sqrt 2) = s^3 + sqrt(2) s^2 (sympy below). The double root at 0
+    cannot be isolated by balls, so the mpmath route bounds it, and p is not mirrored (its
+    s^2 coefficient is not zero). Its s coefficient is exactly zero, so p is not Hurwitz
+    (Stodola's necessary condition, e.g. Ogata, Modern Control Engineering): the claim
+    fails, decided, and the finding says why."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    sq = sp.sqrt(2)
+    z1, z2, z3, xi = sp.symbols("z1 z2 z3 xi", real=True)
+    s = sp.Symbol("s")
+    M = sp.Matrix([[0, 1, 0], [0, 0, 0], [0, 0, -sq]])
+    assert sp.expand(M.charpoly(s).as_expr()) == s**3 + sq * s**2
+    f = [z2 + xi, xi, -sq * z3 + xi, 0]
+    P = Plant.from_matrices("double", [z1, z2, z3, xi], [u], f, [[0, 0, 0, 1]], [xi])
+    zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "p")
+    assert zd.verdict == "critical" and not zd.exact and zd.tolerance is not None
+    assert zd.not_hurwitz is not None and "has no s term (its coefficient is exactly zero)" in zd.not_hurwitz
+    assert_same_set(list(zd.eigenvalues), [0, 0, -float(sq)], tol=1e-6)
+    assert "of the imaginary axis" in zd.findings[0].message and "so it is not Hurwitz" in zd.findings[0].message
+    raw = analyse_bytes(b"""plant double
+state z1 in -1 .. 1
+state z2 in -1 .. 1
+state z3 in -1 .. 1
+state xi in -1 .. 1
+input u
+rate z1 = z2 + xi
+rate z2 = xi
+rate z3 = -sqrt(2)*z3 + xi
+rate xi = u
+output y = xi
+point o: z1 = 0, z2 = 0, z3 = 0, xi = 0
+expect minimum_phase at o
+""")
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert not claim.undecided and "has no s term" in claim.message and "within" in claim.message

@@ -337,7 +337,8 @@ def _numeric_route(
         return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics")
     # at a refined equilibrium ker dXi is invariant under Df* only to the refinement's
     # accuracy: the compression onto it (mpmath, with its tolerance) is the honest route
-    result = None if approximate else _ball_route(name, n, r, data)
+    balls = None if approximate else _ball_route(name, n, r, data)
+    result, roots = balls if balls is not None else (None, None)
     for digits in _NUMERIC_DIGITS if result is None else ():
         with mpmath.workdps(digits):
             result = _numeric_once(name, n, r, data, digits)
@@ -345,11 +346,15 @@ def _numeric_route(
             break
     assert result is not None
     if result.verdict == "critical" and n <= STODOLA_STATES:
-        why = bounded(STODOLA_SECONDS, lambda: _missing_coefficient(data, n, r, decide))
-        if isinstance(why, str):
-            findings = tuple(replace(f, message=f"{f.message}; {why}") if f.rule == "zero-dynamics-critical" else f
-                             for f in result.findings)
-            return replace(result, not_hurwitz=why, findings=findings)
+        look = bounded(STODOLA_SECONDS, lambda: _exact_look(data, n, r, decide))
+        if isinstance(look, _ExactLook):
+            if look.mirrored and roots is not None:
+                result = _on_axis(name, n - r, roots, result, look.mirrored)
+            if look.missing is not None:  # said already when the roots are shown on the axis
+                findings = tuple(replace(f, message=f"{f.message}; {look.missing}")
+                                 if f.rule == "zero-dynamics-critical" and not result.exact else f
+                                 for f in result.findings)
+                return replace(result, not_hurwitz=look.missing, findings=findings)
     return result
 
 
@@ -365,13 +370,14 @@ def _rests_within(f0: sp.Matrix, drive: sp.Matrix) -> bool:
     return True
 
 
-def _ball_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics | None:
+def _ball_route(name: str, n: int, r: int, data: _PointData) -> tuple[ZeroDynamics, list[acb]] | None:
     """The zero dynamics from rigorous balls of the exact numbers at the point: det(sI - J)
     = s^r p(s) in ball arithmetic (arb), the roots of p isolated in complex balls (acb), and
     the sign of each real part read off its ball: a ball that excludes 0 is a proof. A real
     part whose ball holds 0 at the highest precision tried is reported with its bound (not
     on the axis, not off it). None when the roots cannot be isolated (a repeated root) or
-    the numbers do not fit s^r p(s): the mpmath route then decides with its tolerance."""
+    the numbers do not fit s^r p(s): the mpmath route then decides with its tolerance.
+    The roots' balls come with the verdict, for :func:`_on_axis`."""
     old = flint.ctx.prec
     try:
         for bits in _BALL_BITS:
@@ -397,7 +403,8 @@ def _ball_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics | N
                           key=lambda e: (e[0].real, e[0].imag))
             near = [abs(z.real).upper() for z, sg in zip(roots, signs) if sg is None]
             bound = float(max(near)) if near else None
-            return _verdict(name, n - r, eigs, exact=bound is None, tolerance=bound, consistent=True, polynomial=None)
+            return (_verdict(name, n - r, eigs, exact=bound is None, tolerance=bound, consistent=True, polynomial=None),
+                    list(roots))
     finally:
         flint.ctx.prec = old
     return None
@@ -417,12 +424,24 @@ STODOLA_STATES = 8
 STODOLA_SECONDS = 3.0
 
 
-def _missing_coefficient(data: _PointData, n: int, r: int, decide: "object") -> str | None:
+@dataclass(frozen=True)
+class _ExactLook:
+    """What the exact characteristic polynomial p of the zero dynamics shows when the
+    numeric routes leave eigenvalues near the imaginary axis."""
+
+    missing: str | None  # why p is not Hurwitz: a coefficient that is exactly zero
+    mirrored: str | None  # "even" or "odd": p(-s) = +-p(s) exactly, its roots mirror across the axis
+
+
+def _exact_look(data: _PointData, n: int, r: int, decide: "object") -> _ExactLook | None:
     """det(sI - Df*(x0)) = s^r p(s), p the zero dynamics' characteristic polynomial, from
     the exact constants at the point. A Hurwitz polynomial has every coefficient non-zero
     and of one sign (Stodola's necessary condition; any control text, e.g. Ogata, Modern
     Control Engineering, Routh's criterion): a coefficient of p proven exactly zero proves
-    that the zero dynamics are not asymptotically stable in their linearisation."""
+    that the zero dynamics are not asymptotically stable in their linearisation. When
+    every other coefficient is exactly zero (p has powers of one parity only), p(-s) =
+    +-p(s), which :func:`_on_axis` uses to place roots on the axis. None when s^r is not
+    shown to divide the determinant exactly."""
     J, _, _ = _assemble(data, lambda M: sp.Matrix(M), lambda A: A.inv(), None)
     s = sp.Symbol("s")
     coeffs = [sp.expand(c) for c in J.charpoly(s).all_coeffs()]  # highest power first
@@ -430,13 +449,35 @@ def _missing_coefficient(data: _PointData, n: int, r: int, decide: "object") -> 
     if not all(decide(c).proven_zero for c in lowest):  # type: ignore[operator]
         return None  # s^r does not divide it exactly (as far as can be shown): say nothing
     degree = len(p) - 1
-    for k, c in enumerate(p):
-        if k and decide(c).proven_zero:  # type: ignore[operator]
-            power = degree - k
-            term = "constant term" if power == 0 else ("s term" if power == 1 else f"s^{power} term")
-            return (f"the characteristic polynomial of the zero dynamics has no {term} (its coefficient is "
-                    "exactly zero), so it is not Hurwitz")
-    return None
+    zero = [bool(k) and decide(c).proven_zero for k, c in enumerate(p)]  # type: ignore[operator]
+    missing = None
+    if any(zero):
+        power = degree - zero.index(True)
+        term = "constant term" if power == 0 else ("s term" if power == 1 else f"s^{power} term")
+        missing = (f"the characteristic polynomial of the zero dynamics has no {term} (its coefficient is "
+                   "exactly zero), so it is not Hurwitz")
+    mirrored = degree >= 1 and all(zero[k] for k in range(1, degree + 1, 2))
+    return _ExactLook(missing, ("even" if degree % 2 == 0 else "odd") if mirrored else None)
+
+
+def _on_axis(name: str, d: int, roots: list[acb], result: ZeroDynamics, parity: str) -> ZeroDynamics:
+    """The ball route's verdict with the real parts it could not sign proven zero, when p
+    is exactly even or odd. Then -conj(z) is a root whenever z is one (p has real
+    coefficients), and it lies in the mirror image of z's ball. The balls are disjoint and
+    each holds exactly one root (flint's validated isolation), so a mirror image that meets
+    no other ball holds z's own root: -conj(z) = z, Re z = 0. The verdict is unchanged
+    when any such root's mirror meets another ball."""
+    unsigned = [k for k, z in enumerate(roots) if not (z.real > 0 or z.real < 0)]
+    for k in unsigned:
+        mirror = acb(-roots[k].real, roots[k].imag)
+        if any(mirror.overlaps(w) for j, w in enumerate(roots) if j != k):
+            return result
+    eigs = sorted(((complex(float(z.real.mid()) if k not in unsigned else 0.0, float(z.imag.mid())),
+                    0 if k in unsigned else (1 if z.real > 0 else -1)) for k, z in enumerate(roots)),
+                  key=lambda e: (e[0].real, e[0].imag))
+    why = (f"the characteristic polynomial of the zero dynamics is {parity} in s, so its roots mirror across "
+           "the axis, and each of these is the only root near its mirror image")
+    return _verdict(name, d, eigs, exact=True, tolerance=None, consistent=True, polynomial=None, proof=why)
 
 
 def _to_mp(M: sp.Matrix) -> mpmath.matrix:
@@ -511,6 +552,7 @@ def _verdict(
     tolerance: float | None,
     consistent: bool,
     polynomial: str | None,
+    proof: str | None = None,
 ) -> ZeroDynamics:
     anchor = anchors.point(name)
     values = tuple(z for z, _ in eigs)
@@ -529,7 +571,7 @@ def _verdict(
         ))
     elif on_axis or undecided:
         verdict = "critical"
-        how = "exactly on the imaginary axis" if exact else (
+        how = ("exactly on the imaginary axis" + (f" ({proof})" if proof else "")) if exact else (
             f"within {tolerance:.3g} of the imaginary axis" if tolerance is not None else "not separated from the imaginary axis")
         shown = show_eigenvalues(on_axis + undecided)
         findings.append(finding(

@@ -12,8 +12,8 @@ from flint import arb
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from plantlint.kernel.balls import int_power
-from plantlint.kernel.intervals import Budget, certify_nonzero, certify_sign, outward_box
+from plantlint.kernel.balls import int_power, product
+from plantlint.kernel.intervals import BOX_PREC, Budget, certify_nonzero, certify_sign, outward_box
 
 x1, x2, k = sp.symbols("x1 x2 k")
 R = sp.Rational
@@ -208,3 +208,55 @@ def test_a_zero_between_the_last_float_and_an_exact_bound_is_found() -> None:
     v = certify_nonzero(sp.cos(x), {x: (Fraction(-1), bound)})
     assert v.regular is False and not v.witness_exact
     assert abs(v.witness["x"] - math.pi / 2) < 1e-15
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.fractions(min_value=-1000, max_value=1000), st.fractions(min_value=0, max_value=1000),
+       st.fractions(min_value=-1000, max_value=1000), st.fractions(min_value=0, max_value=1000))
+def test_a_product_of_balls_contains_the_interval_product_and_keeps_its_sign(a, wa, b, wb) -> None:
+    """Moore's interval product (R. E. Moore, Interval Analysis, 1966: the hull of the four
+    endpoint products), computed here in exact fractions, lies inside the enclosure; and
+    when the interval product stays away from 0 (its nearest end above 1e-6 of its
+    farthest: a ball keeps 30 bits of its radius), so does the enclosure, at the envelope
+    search's precision. A ball product of two wide positive factors once held 0."""
+    import flint
+
+    lo_a, hi_a, lo_b, hi_b = a, a + wa, b, b + wb
+    ends = [lo_a * lo_b, lo_a * hi_b, hi_a * lo_b, hi_a * hi_b]
+    exact_lo, exact_hi = min(ends), max(ends)
+    old = flint.ctx.prec
+    flint.ctx.prec = BOX_PREC
+    try:
+        def ball(lo, hi):  # an enclosure of [lo, hi], the ends as exact binary fractions
+            p, q = lo.as_integer_ratio()
+            r, t = hi.as_integer_ratio()
+            return (arb(p) / q).union(arb(r) / t)
+
+        got = product(ball(lo_a, hi_a), ball(lo_b, hi_b))
+        for end in (exact_lo, exact_hi):  # each exact end is in it (up to its own rounding)
+            p, q = end.as_integer_ratio()
+            assert got.overlaps(arb(p) / q)
+        near, far = sorted((abs(exact_lo), abs(exact_hi)))
+        if (exact_lo > 0 or exact_hi < 0) and near > far * 1e-6:
+            assert not got.contains(0)
+    finally:
+        flint.ctx.prec = old
+
+
+def test_positive_wide_factors_are_proven_in_one_box() -> None:
+    """Invented, from a spring chain with a position range of hundreds of metres: the
+    decoupling term (40000 (p2 - p1)^2 + 800/3)(20000 (p3 - p2)^2 + 400/3) is a product of
+    factors that are each at least their constant. Over p1 in [234, 478] the first factor
+    spans [2.2e9, 9.2e9] and the second [133, 2.5e3]; their ball product held 0 and the
+    search split the box 166 times. The interval product proves it in the first box, with
+    the true minimum as margin: 40000 (234 - 1/5)^2 + 800/3 times 400/3 (by hand, exact
+    fractions below)."""
+    p1, p2, p3 = sp.symbols("p1 p2 p3", real=True)
+    e = (40000 * (p2 - p1) ** 2 + R(800, 3)) * (20000 * (p3 - p2) ** 2 + R(400, 3))
+    box = {p1: (234, 478), p2: (R(-1, 5), R(1, 5)), p3: (R(-1, 5), R(1, 5))}
+    v = certify_nonzero([e], box, Budget())
+    from fractions import Fraction as F
+    minimum = (40000 * (F(234) - F(1, 5)) ** 2 + F(800, 3)) * F(400, 3)
+    assert v.regular is True and v.boxes_examined == 1
+    # a lower bound, within the 30 bits that arb keeps of a radius
+    assert v.margin is not None and float(minimum) * (1 - 1e-6) <= v.margin <= float(minimum)

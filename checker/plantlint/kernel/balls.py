@@ -209,9 +209,27 @@ def fold(name: str, args: Sequence[int]) -> Step:
     def mul(regs: list[arb], values: Sequence[arb]) -> arb:
         acc = regs[args[0]]
         for a in args[1:]:
-            acc = acc * regs[a]
+            acc = product(acc, regs[a])
         return acc
     return mul
+
+
+def product(a: arb, b: arb) -> arb:
+    """a * b, with the sign of the product kept when the factors have one each.
+
+    A ball product is not the interval product: (m1 +- r1)(m2 +- r2) has radius
+    |m1| r2 + |m2| r1 + r1 r2, so its lower end is 2 r1 r2 below the interval's. Two
+    wide positive factors ([2.2e9, 9.1e9] times [133, 2547]) then give a ball that
+    holds 0, and an envelope proof of a product of positive factors stalls. When
+    the ball product holds 0 but neither factor does, the product is formed from the
+    endpoints instead (the interval product: the hull of the four endpoint products,
+    R. E. Moore, Interval Analysis, 1966), which excludes 0. Otherwise the ball
+    product stands: it is cheaper by a factor of about 20, and tight enough."""
+    c = a * b
+    if c.contains(0) and not a.contains(0) and not b.contains(0) and a.is_finite() and b.is_finite():
+        lo_a, hi_a, lo_b, hi_b = a.lower(), a.upper(), b.lower(), b.upper()
+        return (lo_a * lo_b).union(lo_a * hi_b).union(hi_a * lo_b).union(hi_a * hi_b)
+    return c
 
 
 def _step(name: str, args: tuple[int, ...], data: object) -> Step:

@@ -30,7 +30,7 @@ from typing import Any, Callable, Iterable, Sequence
 
 from flint import arb
 
-from plantlint.kernel.balls import UnsupportedExpression, fold, int_power, run_steps, unary
+from plantlint.kernel.balls import UnsupportedExpression, fold, int_power, product, run_steps, unary
 from plantlint.kernel.dag import Program, UnsupportedNode, graph_of
 
 #: A value with its sparse gradient: (ball, derivatives in the order of the register's variables).
@@ -200,7 +200,7 @@ class ForwardProgram:
                 vs = [regs[a][0] for a in args]
                 prefix = [vs[0]]
                 for v in vs[1:]:
-                    prefix.append(prefix[-1] * v)
+                    prefix.append(product(prefix[-1], v))
                 suffix = [arb(1)] * n  # suffix[i] = product of vs[i+1:]
                 for i in range(n - 2, -1, -1):
                     suffix[i] = suffix[i + 1] * vs[i + 1]

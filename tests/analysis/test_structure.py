@@ -826,3 +826,37 @@ def test_terms_with_sin_squared_plus_cos_squared_are_shown_simplified() -> None:
     raw = analyse_bytes((REPO / "tests" / "fixtures" / "models" / "gantry_crane.plant").read_bytes())
     (ill,) = [f for f in raw.findings if f.rule == "relative-degree-ill-defined"]
     assert "L_g[F] L_f load_x = 0; L_g[Fh] L_f load_x = -sin(th)/500 are both zero there" in ill.message
+
+
+def test_factors_are_certified_in_the_form_the_term_holds_them() -> None:
+    """Invented (a campaign mutant of benchmarks' spring_chain_3, first mass allowed
+    hundreds of metres away): the decoupling term is (k^2 / mass^3) (1 + 3 eps (p2 - p1)^2)
+    (1 + 3 eps (p3 - p2)^2), each factor at least 1 (by hand; sympy's Lie derivatives,
+    written with Matrix.jacobian, below). sympy's factor_list expands a factor to
+    150 p1^2 - 300 p1 p2 + 150 p2^2 + 1, whose enclosure over p1 in [-10, 1e6] holds 0 for
+    tens of thousands of boxes; the held square encloses as at least 1. Regular, proven."""
+    text = (REPO / "benchmarks" / "results" / "models" / "spring_chain_3.plant").read_text()
+    text = text.replace("state p1 [m] in -1/5 .. 1/5", "state p1 [m] in -10 .. 1e6")
+    assert "-10 .. 1e6" in text
+    raw = analyse_bytes(text.encode())
+    assert raw.analysis["envelope"]["regular"] is True
+    assert not [f for f in raw.findings if f.rule in ("envelope-unproven", "expectation-failed")]
+    # the margin is a lower bound of |term|, whose minimum k^2 / mass^3 = 320000/27 is reached
+    # where p1 = p2 = p3 (by hand); the held factors' constants are taken out of the product
+    assert 0 < raw.analysis["envelope"]["margin"] <= 320000 / 27
+    narrow = analyse_bytes((REPO / "benchmarks" / "results" / "models" / "spring_chain_3.plant").read_bytes())
+    assert 0.999 * 320000 / 27 <= narrow.analysis["envelope"]["margin"] <= 320000 / 27
+    # reference: L_g L_f^5 p3 by sympy's jacobian, and its factors by hand
+    p1, p2, p3, v1, v2, v3 = xs = sp.symbols("p1 p2 p3 v1 v2 v3")
+    k, eps, c, m = 200, 50, 2, R(3, 2)
+    spring = lambda d: k * (d + eps * d**3)  # noqa: E731
+    f = sp.Matrix([v1, v2, v3, (spring(p2 - p1) - c * v1 - spring(p1)) / m,
+                   (spring(p3 - p2) - c * v2 - spring(p2 - p1)) / m, (-c * v3 - spring(p3 - p2)) / m])
+    g = sp.Matrix([0, 0, 0, 1 / m, 0, 0])
+    X = sp.Matrix(xs)
+    h = sp.Matrix([p3])
+    for _ in range(5):
+        h = h.jacobian(X) * f
+    term = sp.expand((h.jacobian(X) * g)[0])
+    by_hand = sp.expand(k**2 / m**3 * (1 + 3 * eps * (p2 - p1) ** 2) * (1 + 3 * eps * (p3 - p2) ** 2))
+    assert term == by_hand

@@ -617,6 +617,8 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
     is certified on its own (the margin is the product of the factors' margins).
     Also returns what a witness of singularity makes vanish: the factor, else ``exprs``."""
     factors = kernel.factors(exprs[0]) if len(exprs) == 1 else []
+    if len(factors) >= 2:
+        factors = _as_held(factors, exprs[0])
     if len(factors) < 2 and len(exprs) == 1:
         factors = product_factors(exprs[0])
     if len(factors) < 2:
@@ -642,6 +644,32 @@ def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbo
                                sum(v.undecided_count for v in undecided),
                                too_narrow=all(v.too_narrow for v in undecided)), exprs
     return EnvelopeVerdict(True, margin, None, [], boxes), exprs
+
+
+def _as_held(factors: list[tuple[sp.Expr, int]], expr: sp.Expr) -> list[tuple[sp.Expr, int]]:
+    """The factorisation [(constant, 1), (factor, multiplicity), ...] with each factor in
+    the form the term itself holds it, when one of the term's own factors is a constant
+    multiple c of it (same zeros; the constant is divided by c^multiplicity, so that the
+    product, and the margin read off it, stay the same). sympy's factor_list expands:
+    40000 (p2 - p1)^2 + 800/3 becomes 150 p1^2 - 300 p1 p2 + 150 p2^2 + 1, whose enclosure
+    over a wide box holds 0 (the dependency problem: p1 appears three times), while the
+    square in the held form encloses as at least 800/3 on any box."""
+    held = product_factors(expr)[1:]
+    if not held:
+        return factors
+    (constant, _), parts = factors[0], factors[1:]
+    out = []
+    for part, multiplicity in parts:
+        twin = None
+        for h, m in held:
+            if m == multiplicity and h.free_symbols == part.free_symbols:
+                ratio = sp.cancel(h / part)
+                if ratio.is_number and ratio != 0:
+                    twin = h
+                    constant = constant / ratio**multiplicity
+                    break
+        out.append((part if twin is None else twin, multiplicity))
+    return [(constant, 1), *out]
 
 
 #: A vanishing factor is named in the message when it is at most this long.

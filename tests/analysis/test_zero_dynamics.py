@@ -261,28 +261,85 @@ def test_an_eigenvalue_exactly_zero_but_not_written_so_is_proven_on_the_axis() -
     P = Plant.from_matrices("crit", [x1, x2], [u], [(s**2 + co**2 - 1) * x1 + s * x2, 0], [[0, 1]], [x2])
     zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "p")
     assert zd.verdict == "critical" and zd.exact and zd.tolerance is None and zd.eigenvalues == (0j,)
-    assert "exactly on the imaginary axis (the characteristic polynomial of the zero dynamics is odd in s" \
+    assert "exactly on the imaginary axis: the characteristic polynomial of the zero dynamics is odd in s" \
         in zd.findings[0].message
 
 
-def test_eigenvalues_near_the_axis_without_an_exact_reason_are_critical_within_a_bound() -> None:
+def test_roots_shared_by_p_of_s_and_p_of_minus_s_are_proven_on_the_axis() -> None:
     """Invented: with xi held at 0, z' = M z, M = diag([[sqrt 2, 1], [-3, -sqrt 2]], -1),
     whose characteristic polynomial is (s^2 + 1)(s + 1) = s^3 + s^2 + s + 1 (sympy below):
-    every coefficient non-zero and of both parities, so neither Stodola's condition nor the
-    mirror argument applies. The balls bound the real parts of +-i; the verdict says so."""
+    no coefficient is zero and p is neither even nor odd. The balls bound the real parts
+    of +-i without signing them. gcd(p(s), p(-s)) = s^2 + 1 (sympy's gcd, checked by exact
+    division), so each root of it has its mirror image among the roots: +-i are on the
+    axis, and the claim fails, decided."""
+    from plantlint.run.pipeline import analyse_bytes
+
     sq = sp.sqrt(2)
     z1, z2, z3, xi = sp.symbols("z1 z2 z3 xi", real=True)
     s = sp.Symbol("s")
     M = sp.Matrix([[sq, 1, 0], [-3, -sq, 0], [0, 0, -1]])
-    assert sp.expand(M.charpoly(s).as_expr()) == s**3 + s**2 + s + 1
+    p = sp.expand(M.charpoly(s).as_expr())
+    assert p == s**3 + s**2 + s + 1 and sp.gcd(p, p.subs(s, -s)) == s**2 + 1
     f = [sq * z1 + z2 + xi, -3 * z1 - sq * z2, -z3 + xi, 0]
     P = Plant.from_matrices("near", [z1, z2, z3, xi], [u], f, [[0, 0, 0, 1]], [xi])
     zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "p")
-    assert zd.verdict == "critical" and not zd.exact and zd.tolerance is not None and zd.tolerance < 1e-30
-    assert zd.not_hurwitz is None
+    assert zd.verdict == "critical" and zd.exact and zd.tolerance is None
     assert_same_set(list(zd.eigenvalues), [-1, 1j, -1j], tol=1e-12)
-    assert f"within {zd.tolerance:.3g} of the imaginary axis" in zd.findings[0].message
+    assert "exactly on the imaginary axis: they are roots of both p(s) and p(-s)" in zd.findings[0].message
+    assert "common factor s^2 + 1, exact" in zd.findings[0].message
+    raw = analyse_bytes(b"""plant near
+state z1 in -1 .. 1
+state z2 in -1 .. 1
+state z3 in -1 .. 1
+state xi in -1 .. 1
+input u
+rate z1 = sqrt(2)*z1 + z2 + xi
+rate z2 = -3*z1 - sqrt(2)*z2
+rate z3 = -z3 + xi
+rate xi = u
+output y = xi
+point o: z1 = 0, z2 = 0, z3 = 0, xi = 0
+expect minimum_phase at o
+""")
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert not claim.undecided and "have eigenvalues on the imaginary axis (±1i)" in claim.message
 
+
+def test_eigenvalues_off_the_axis_by_less_than_the_balls_see_are_critical_within_a_bound() -> None:
+    """Invented: with xi held at 0, z' = [[e, 1], [-1, e]] z with e = sqrt(2)/10^300, whose
+    eigenvalues are e +- i (by hand; sympy below): unstable, by less than the balls can
+    resolve at 512 bits (about 1e-154). p(s) = s^2 - 2 e s + e^2 + 1 shares no factor with p(-s), so
+    nothing proves them on the axis either: critical within the stated bound, and the
+    claim is not decided (not passed)."""
+    from plantlint.run.pipeline import analyse_bytes
+
+    e = sp.sqrt(2) / sp.Integer(10) ** 300
+    z1, z2, xi = sp.symbols("z1 z2 xi", real=True)
+    s = sp.Symbol("s")
+    M = sp.Matrix([[e, 1], [-1, e]])
+    p = sp.expand(M.charpoly(s).as_expr())
+    assert sp.expand(p.subs(s, e + sp.I)) == 0 and sp.expand(p.subs(s, e - sp.I)) == 0
+    assert sp.gcd(p, p.subs(s, -s)) == 1
+    f = [e * z1 + z2 + xi, -z1 + e * z2, 0]
+    P = Plant.from_matrices("near", [z1, z2, xi], [u], f, [[0, 0, 1]], [xi])
+    zd = zero_dynamics_at(Kernel(P), [1], at_origin(P), "p")
+    assert zd.verdict == "critical" and not zd.exact and zd.tolerance is not None and zd.tolerance < 1e-70
+    assert zd.not_hurwitz is None
+    assert f"within {zd.tolerance:.3g} of the imaginary axis" in zd.findings[0].message
+    raw = analyse_bytes(b"""plant tiny
+state z1 in -1 .. 1
+state z2 in -1 .. 1
+state xi in -1 .. 1
+input u
+rate z1 = sqrt(2)/10^300*z1 + z2 + xi
+rate z2 = -z1 + sqrt(2)/10^300*z2
+rate xi = u
+output y = xi
+point o: z1 = 0, z2 = 0, xi = 0
+expect minimum_phase at o
+""")
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert claim.undecided
 
 def test_not_a_rest_point_is_undefined() -> None:
     P = Plant.from_matrices("k", [x1, x2], [u], [-x1, 0], [[0, 1]], [x2])
@@ -496,7 +553,7 @@ def test_irrational_zero_dynamics_on_the_axis_and_the_pencil_zeros_there() -> No
     assert zd["verdict"] == "critical"
     assert_same_set([complex(a, b) for a, b in zd["eigenvalues"]], [1j, -1j], tol=1e-12)
     (critical,) = [f for f in raw.findings if f.rule == "zero-dynamics-critical"]
-    assert "exactly on the imaginary axis (the characteristic polynomial of the zero dynamics is even in s" \
+    assert "exactly on the imaginary axis: the characteristic polynomial of the zero dynamics is even in s" \
         in critical.message
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert not claim.undecided

@@ -700,8 +700,10 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
             out.append((pa.name, f"at point '{pa.name}' the zero dynamics are unstable: eigenvalues "
                                  f"{show_eigenvalues(zd.eigenvalues)}"))
         elif zd.verdict == "critical" and (zd.exact or zd.tolerance is None):
+            # an exact verdict stores the real part of an eigenvalue on the axis as exactly 0
+            on_axis = [z for z in zd.eigenvalues if z.real == 0] or list(zd.eigenvalues)
             out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues on the "
-                                 f"imaginary axis ({show_eigenvalues(zd.eigenvalues)}); linearisation cannot show "
+                                 f"imaginary axis ({show_eigenvalues(on_axis)}); linearisation cannot show "
                                  "asymptotic stability"))
         elif zd.verdict == "critical" and zd.not_hurwitz:
             out.append((pa.name, f"at point '{pa.name}' the linearised zero dynamics have eigenvalues within "

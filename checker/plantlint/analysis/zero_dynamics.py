@@ -33,7 +33,7 @@ from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding
 from plantlint.analysis.refine import REFINED_RESIDUAL
-from plantlint.kernel.balls import to_arb
+from plantlint.kernel.balls import UnsupportedExpression, to_arb
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.rational import polynomial_text, sympy_rational
 from plantlint.language.printer import show_number
@@ -349,7 +349,16 @@ def _numeric_route(
         look = bounded(STODOLA_SECONDS, lambda: _exact_look(data, n, r, decide))
         if isinstance(look, _ExactLook):
             if look.mirrored and roots is not None:
-                result = _on_axis(name, n - r, roots, result, look.mirrored)
+                why = (f"the characteristic polynomial of the zero dynamics is {look.mirrored} in s, so its roots "
+                       "mirror across the axis, and each of these is the only root near its mirror image")
+                result = _on_axis(name, n - r, roots, None, result, why)
+            elif roots is not None:
+                common = bounded(STODOLA_SECONDS, lambda: _mirrored_factor(look.p, decide))
+                if isinstance(common, list):
+                    why = ("they are roots of both p(s) and p(-s), where p is the characteristic polynomial of the "
+                           f"zero dynamics (common factor {_factor_text(common)}, exact), so their mirror images "
+                           "across the axis are roots too, and each is the only root near its mirror image")
+                    result = _on_axis(name, n - r, roots, common, result, why)
             if look.missing is not None:  # said already when the roots are shown on the axis
                 findings = tuple(replace(f, message=f"{f.message}; {look.missing}")
                                  if f.rule == "zero-dynamics-critical" and not result.exact else f
@@ -431,6 +440,7 @@ class _ExactLook:
 
     missing: str | None  # why p is not Hurwitz: a coefficient that is exactly zero
     mirrored: str | None  # "even" or "odd": p(-s) = +-p(s) exactly, its roots mirror across the axis
+    p: list[sp.Expr]  # the exact coefficients of p, highest power first
 
 
 def _exact_look(data: _PointData, n: int, r: int, decide: "object") -> _ExactLook | None:
@@ -457,27 +467,90 @@ def _exact_look(data: _PointData, n: int, r: int, decide: "object") -> _ExactLoo
         missing = (f"the characteristic polynomial of the zero dynamics has no {term} (its coefficient is "
                    "exactly zero), so it is not Hurwitz")
     mirrored = degree >= 1 and all(zero[k] for k in range(1, degree + 1, 2))
-    return _ExactLook(missing, ("even" if degree % 2 == 0 else "odd") if mirrored else None)
+    return _ExactLook(missing, ("even" if degree % 2 == 0 else "odd") if mirrored else None, p)
 
 
-def _on_axis(name: str, d: int, roots: list[acb], result: ZeroDynamics, parity: str) -> ZeroDynamics:
-    """The ball route's verdict with the real parts it could not sign proven zero, when p
-    is exactly even or odd. Then -conj(z) is a root whenever z is one (p has real
-    coefficients), and it lies in the mirror image of z's ball. The balls are disjoint and
-    each holds exactly one root (flint's validated isolation), so a mirror image that meets
-    no other ball holds z's own root: -conj(z) = z, Re z = 0. The verdict is unchanged
-    when any such root's mirror meets another ball."""
+def _mirrored_factor(p: list[sp.Expr], decide: "object") -> list[sp.Expr] | None:
+    """The exact coefficients (highest power first) of a common factor of p(s) and p(-s) of
+    degree >= 1, or None. sympy's gcd over its expression domain finds a candidate; it is
+    kept only when it divides both with every remainder coefficient proven zero (the
+    kernel's zero test), so a wrong candidate costs the proof, never its soundness."""
+    s = sp.Symbol("s")
+    try:
+        P = sp.Poly(p, s)
+        Q = sp.Poly(P.as_expr().subs(s, -s), s)
+        G = sp.gcd(P, Q)
+        if G.degree() < 1:
+            return None
+        for F in (P, Q):
+            remainder = F.rem(G)
+            if not all(decide(sp.expand(c)).proven_zero for c in remainder.all_coeffs()):  # type: ignore[operator]
+                return None
+        lead = G.LC()
+        coeffs = [sp.expand(c / lead) for c in G.all_coeffs()]
+    except (sp.PolynomialError, ValueError, TypeError, ZeroDivisionError, ArithmeticError):
+        return None
+    return coeffs
+
+
+def _factor_text(coeffs: list[sp.Expr]) -> str:
+    """``s^2 + sqrt(3)/2`` (powers of s first, as sympy writes a polynomial), or its degree
+    when it would be long."""
+    text = str(sp.Poly(coeffs, sp.Symbol("s")).as_expr()).replace("**", "^")
+    return text if len(text) <= FACTOR_TEXT else f"of degree {len(coeffs) - 1}"
+
+
+#: A common factor is written out in a message when it is at most this long.
+FACTOR_TEXT = 60
+
+
+def _on_axis(name: str, d: int, roots: list[acb], common: list[sp.Expr] | None, result: ZeroDynamics,
+             why: str) -> ZeroDynamics:
+    """The ball route's verdict with the real parts it could not sign proven zero.
+
+    ``common`` is an exact common factor G of p(s) and p(-s) (None: G = p, which is even or
+    odd). A root z of G has -z, hence -conj(z) (p has real coefficients), among the roots of
+    p. The balls of p's roots are disjoint and each holds exactly one root (flint's
+    validated isolation); so do G's. A ball B of p whose root is shown to be a root of G
+    (a ball of G meets B and no other ball of p) and whose mirror image meets no other
+    ball of p holds -conj(z) as well as z: -conj(z) = z, Re z = 0. The verdict is unchanged
+    unless every root the balls left unsigned is shown so."""
     unsigned = [k for k, z in enumerate(roots) if not (z.real > 0 or z.real < 0)]
+    shared = _roots_of(common, roots) if common is not None else [True] * len(roots)
+    if shared is None:
+        return result
     for k in unsigned:
         mirror = acb(-roots[k].real, roots[k].imag)
-        if any(mirror.overlaps(w) for j, w in enumerate(roots) if j != k):
+        if not shared[k] or any(mirror.overlaps(w) for j, w in enumerate(roots) if j != k):
             return result
     eigs = sorted(((complex(float(z.real.mid()) if k not in unsigned else 0.0, float(z.imag.mid())),
                     0 if k in unsigned else (1 if z.real > 0 else -1)) for k, z in enumerate(roots)),
                   key=lambda e: (e[0].real, e[0].imag))
-    why = (f"the characteristic polynomial of the zero dynamics is {parity} in s, so its roots mirror across "
-           "the axis, and each of these is the only root near its mirror image")
     return _verdict(name, d, eigs, exact=True, tolerance=None, consistent=True, polynomial=None, proof=why)
+
+
+def _roots_of(common: list[sp.Expr], roots: list[acb]) -> list[bool] | None:
+    """For each of p's root balls, whether its root is shown to be a root of the factor
+    G (coefficients highest power first): one of G's isolated root balls meets it and no
+    other ball of p. None when G's roots cannot be isolated (a repeated root) or a
+    coefficient has no ball."""
+    old = flint.ctx.prec
+    try:
+        for bits in _BALL_BITS:
+            flint.ctx.prec = bits
+            try:
+                g_roots = acb_poly([to_arb(c) for c in reversed(common)]).roots(tol=arb(2) ** (-bits // 2))
+            except (ValueError, TypeError, UnsupportedExpression):
+                continue
+            shared = [False] * len(roots)
+            for c in g_roots:
+                met = [k for k, z in enumerate(roots) if c.overlaps(z)]
+                if len(met) == 1:
+                    shared[met[0]] = True
+            return shared
+    finally:
+        flint.ctx.prec = old
+    return None
 
 
 def _to_mp(M: sp.Matrix) -> mpmath.matrix:
@@ -571,7 +644,7 @@ def _verdict(
         ))
     elif on_axis or undecided:
         verdict = "critical"
-        how = ("exactly on the imaginary axis" + (f" ({proof})" if proof else "")) if exact else (
+        how = ("exactly on the imaginary axis" + (f": {proof}" if proof else "")) if exact else (
             f"within {tolerance:.3g} of the imaginary axis" if tolerance is not None else "not separated from the imaginary axis")
         shown = show_eigenvalues(on_axis + undecided)
         findings.append(finding(

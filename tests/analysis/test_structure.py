@@ -860,3 +860,36 @@ def test_factors_are_certified_in_the_form_the_term_holds_them() -> None:
     term = sp.expand((h.jacobian(X) * g)[0])
     by_hand = sp.expand(k**2 / m**3 * (1 + 3 * eps * (p2 - p1) ** 2) * (1 + 3 * eps * (p3 - p2) ** 2))
     assert term == by_hand
+
+
+def test_a_vanishing_factor_gives_the_place_of_its_own_quantities_only() -> None:
+    """Invented maglev with a voltage-driven coil: L_g L_f^2 z = -2 kf i / (m L0 z^2) (by
+    hand; sympy's jacobian below), whose factor i vanishes at zero current, for every gap
+    and speed. The witness's value of z (a box centre) says nothing, so it is not given."""
+    text = b"""plant coil
+const m = 0.05
+const g0 = 9.81
+const kf = 0.0002
+const R = 4
+const L0 = 0.1
+state z in 0.005 .. 0.03
+state vz in -1 .. 1
+state i in 0 .. 3
+input V in 0 .. 24
+rate z = vz
+rate vz = g0 - kf*i^2/(m*z^2)
+rate i = (V - R*i)/L0
+output gap = z
+"""
+    z, vz, i = xs = sp.symbols("z vz i")
+    m, kf, L0 = R(1, 20), R(1, 5000), R(1, 10)
+    f = sp.Matrix([vz, R(981, 100) - kf * i**2 / (m * z**2), -4 * i / L0])
+    g = sp.Matrix([0, 0, 1 / L0])
+    h = sp.Matrix([z])
+    X = sp.Matrix(xs)
+    for _ in range(2):
+        h = h.jacobian(X) * f
+    assert sp.simplify((h.jacobian(X) * g)[0] + 2 * kf * i / (m * L0 * z**2)) == 0
+    raw = analyse_bytes(text)
+    (singular,) = [f for f in raw.findings if f.rule == "envelope-singular"]
+    assert "vanishes at i = 0 (exactly, whatever z and vz): its factor i is zero there" in singular.message

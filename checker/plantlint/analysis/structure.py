@@ -567,7 +567,7 @@ def certify_envelope(
     verdict, culprit = _certify_by_factors(kernel, exprs, box, clock)
     if verdict.regular is False:
         assert verdict.witness is not None
-        shown, whatever = _witness_parts(verdict.witness, exprs)
+        shown, whatever = _witness_parts(verdict.witness, culprit or exprs)
         how = "exactly" if verdict.witness_exact else "a zero proven by a sign change next to it"
         findings.append(finding(
             "envelope-singular",

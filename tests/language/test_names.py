@@ -184,6 +184,32 @@ def test_a_power_that_only_a_value_shows_is_still_refused() -> None:
         ("syntax", "this power of a number is too large to compute exactly", 2, 11)]
 
 
+def test_an_exponent_that_only_a_value_shows_is_held_to_the_written_limit() -> None:
+    """x^(l^2) with l = 1e-9 is x^(1/10^18) once l is replaced: beyond the limit on a
+    written exponent (docs/language.md, Limits: |p|, |q| <= 1,000), refused the same way.
+    Before, a point's value of it asked for a 10^18-th root and the check stopped at its
+    budget. An exponent within the limit (l = 1/10, x^(1/100)) is kept."""
+    from plantlint.run.pipeline import read_model
+
+    tiny = MODEL.replace("const k = 2\n", "const k = 2\nconst l = 1e-9\n").replace("-k*x", "-k*(x + 2)^(l^2)")
+    _, findings = read_model(tiny.encode())
+    assert [(f.rule, f.span.line) for f in findings if f.span is not None] == [("syntax", 10)]
+    assert "an exponent is beyond the supported range once the names in it are replaced" in findings[0].message
+    fine = tiny.replace("const l = 1e-9", "const l = 1/10")
+    model, findings = read_model(fine.encode())
+    assert model is not None and not [f for f in findings if f.rule == "syntax"]
+
+
+def test_an_integer_root_that_cannot_exist_is_not_searched_for() -> None:
+    """14 has no integer 10^18-th root: 2^(10^18) > 14 (Python integers), and the search
+    answers at once instead of forming 2^(10^18); real roots are still found."""
+    from plantlint.kernel.taylor import _iroot_exact
+
+    assert _iroot_exact(14, 10**18) is None
+    assert _iroot_exact(1, 10**18) == 1 and _iroot_exact(0, 7) == 0
+    assert _iroot_exact(3**40, 20) == 9 and _iroot_exact(3**40 + 1, 20) is None
+
+
 def _imported(stderr: str) -> set[str]:
     return {line.rsplit("|", 1)[1].strip().split(".")[0] for line in stderr.splitlines()
             if line.startswith("import time:") and line.count("|") == 2}

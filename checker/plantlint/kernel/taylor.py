@@ -167,6 +167,11 @@ def _isqrt_exact(n: int) -> int | None:
 
 
 def _iroot_exact(n: int, k: int) -> int | None:
+    """The integer k-th root of n >= 0 when n is a k-th power, else None."""
+    if n <= 1:
+        return n
+    if k > n.bit_length():  # 2^k > n: no root other than 0 and 1 (2**k itself would not finish)
+        return None
     r = round(n ** (1.0 / k)) if n < 2**1000 else None
     if r is None:
         return None

@@ -18,7 +18,7 @@ import sympy as sp
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
 from plantlint.core.findings import Finding, Span, Waiver
-from plantlint.core.limits import MAX_POWER_BITS
+from plantlint.core.limits import MAX_EXPONENT, MAX_POWER_BITS
 from plantlint.kernel.exact import sign
 from plantlint.kernel.lie import random_samples, screen_then_confirm
 from plantlint.kernel.plant import Plant
@@ -185,10 +185,17 @@ def build_model(parsed: Parsed, path: str) -> tuple[Model | None, list[Finding]]
     try:
         return _build(scope, parsed, path)
     except _PowerTooLarge as too_large:
-        scope.findings.append(finding(
-            "syntax", "this power of a number is too large to compute exactly (once the names in it are "
-            "replaced by their values)", too_large.span, anchor=anchors.problem("power size"),
-            hint=f"a power of numbers is limited to {MAX_POWER_BITS:,} bits; check the exponent"))
+        if too_large.exponent:
+            scope.findings.append(finding(
+                "syntax", "an exponent is beyond the supported range once the names in it are replaced by their "
+                f"values (p/q with |p|, |q| <= {MAX_EXPONENT:,})", too_large.span,
+                anchor=anchors.problem("exponent range"),
+                hint="check the constants in the exponent (a tiny one such as 1e-9 squared gives 1/10^18)"))
+        else:
+            scope.findings.append(finding(
+                "syntax", "this power of a number is too large to compute exactly (once the names in it are "
+                "replaced by their values)", too_large.span, anchor=anchors.problem("power size"),
+                hint=f"a power of numbers is limited to {MAX_POWER_BITS:,} bits; check the exponent"))
         return None, scope.findings
 
 
@@ -461,32 +468,45 @@ def _constant_value(scope: _Scope, st: Statement, expr: Expression | None) -> sp
 
 
 class _PowerTooLarge(Exception):
-    """A power of numbers that only becomes one once names are replaced by their values,
-    too large to compute exactly (``48^2^(R*v)`` with R = 12, v = 24): sympy would try, and
-    never finish."""
+    """A power that only becomes a power of numbers, or gets a number as exponent, once
+    names are replaced by their values, beyond the limits the parser applies to what is
+    written in numbers: a result too large to compute exactly (``48^2^(R*v)`` with R = 12,
+    v = 24: sympy would try, and never finish), or (``exponent``) an exponent p/q with |p|
+    or |q| above MAX_EXPONENT in a power of a quantity (``x^(l^2)`` with l = 1e-9 is
+    x^(1/10^18): its value at a point would be a 10^18-th root)."""
 
-    def __init__(self, span: Span | None):
-        super().__init__("power too large")
+    def __init__(self, span: Span | None, exponent: bool = False):
+        super().__init__("exponent out of range" if exponent else "power too large")
         self.span = span
+        self.exponent = exponent
 
 
 def _substituted(value: sp.Expr, span: Span | None, *mappings: Mapping[sp.Symbol, sp.Expr]) -> sp.Expr:
-    """``value.xreplace(m1).xreplace(m2)...``, refusing first (:class:`_PowerTooLarge`) any
-    power whose base and exponent become exact numbers with more than MAX_POWER_BITS bits
-    of result, the limit the parser applies to powers written in numbers."""
+    """``value.xreplace(m1).xreplace(m2)...``, refusing first (:class:`_PowerTooLarge`) a
+    power beyond the limits the parser applies to powers written in numbers."""
     for mapping in mappings:
-        if mapping and _huge_power(value, mapping):
-            raise _PowerTooLarge(span)
+        if mapping:
+            problem = _power_problem(value, mapping)
+            if problem is not None:
+                raise _PowerTooLarge(span, exponent=problem == "exponent")
         value = value.xreplace(mapping)
     return value
 
 
-def _huge_power(expr: sp.Expr, mapping: Mapping[sp.Symbol, sp.Expr]) -> bool:
+def _power_problem(expr: sp.Expr, mapping: Mapping[sp.Symbol, sp.Expr]) -> str | None:
+    """"exponent" for a power of a quantity (its base keeps a state, input or ranged
+    parameter) whose exponent becomes a rational p/q with |p| or |q| above MAX_EXPONENT;
+    "size" for a power of numbers above MAX_POWER_BITS bits (a power of numbers is limited
+    by its size alone: 2^2^k with k = 10 is 2^1024, exact and small); else None."""
     keys = set(mapping)
     for node in sp.postorder_traversal(expr):  # inner powers first: an outer one is sized only once they pass
         if not node.is_Pow:
             continue
         base, exponent = node.args
+        if exponent.free_symbols and exponent.free_symbols <= keys and not base.free_symbols <= keys:
+            e = exponent.xreplace(mapping)
+            if e.is_Rational and max(abs(int(e.p)), int(e.q)) > MAX_EXPONENT:
+                return "exponent"
         names = base.free_symbols | exponent.free_symbols
         if not names or not names <= keys:
             continue
@@ -494,8 +514,8 @@ def _huge_power(expr: sp.Expr, mapping: Mapping[sp.Symbol, sp.Expr]) -> bool:
         if b.is_Rational and e.is_Rational and b != 0:
             bits = max(abs(int(b.p)), abs(int(b.q)), 1).bit_length()
             if bits > 1 and bits * abs(int(e.p)) > MAX_POWER_BITS * int(e.q):
-                return True
-    return False
+                return "size"
+    return None
 
 
 def _nominals(scope: _Scope) -> dict[sp.Symbol, sp.Expr]:

@@ -276,6 +276,34 @@ def test_a_model_whose_errors_are_re_graded_is_not_a_pass(tmp_path: Path) -> Non
     assert file["stop"] is None and file["outcome"] == "defect" and [f["rule"] for f in file["findings"]] == ["syntax"]
 
 
+def test_a_claim_about_an_output_with_feedthrough_is_not_decided_even_when_waived(tmp_path: Path) -> None:
+    """An output that uses an input is read with the input at zero (output-uses-input says
+    so). With that error waived, a relative-degree claim about it once passed, held
+    against y = x instead of y = x + u/10 (whose relative degree is 0: the input reaches it
+    without integration). Claims about such an output are not decided; state
+    linearizability, a property of f and g alone, is still decided. Invented lag."""
+    (tmp_path / "feed.plant").write_text("""plant feed "invented: a lag whose sensor also sees the drive"
+state x in -1 .. 1
+input u in -1 .. 1
+rate x = -2*x + u
+output y = x + 0.1*u
+point rest: x = 0
+expect relative_degree(y) = 1
+expect regular
+expect state_linearizable
+waive output-uses-input "sensor sees the drive; the observer handles it (test)"
+""", encoding="utf-8")
+    run = cli(tmp_path, "check", "--no-cache", "--format", "json", "feed.plant")
+    assert run.code == 1, run.stdout
+    (file,) = run.json()["files"]
+    assert file["outcome"] == "not-decided"
+    claims = {f["message"].split("`")[1]: f for f in file["findings"] if f["rule"] == "expectation-failed"}
+    assert sorted(claims) == ["expect regular", "expect relative_degree(y) = 1"]
+    assert all(c["decided"] is False and "output 'y' uses an input (feedthrough" in c["message"]
+               for c in claims.values())
+    jsonschema.validate(run.json(), report_schema())
+
+
 def _unproven_zero_model() -> str:
     """Invented: the input enters the first rate through sin(2 x2) - 2 sin(x2) cos(x2), a
     zero written so that the symbolic proof exceeds its size bound (a 64-term factor over

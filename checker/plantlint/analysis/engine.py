@@ -370,8 +370,17 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
     ranged = bool(a.kernel.plant.params)
     for claim in a.model.claims:
         text = claim_text(claim)
-        if claim.kind in ("regular", "minimum_phase") and not a.model.outputs:
-            failures: list[tuple[str | None, str]] = [
+        read_without = _read_without_inputs(a, claim)
+        if read_without:
+            failures: list[tuple[str | None, str | Undecided]] = [(claim.point, Undecided(
+                f"output{'s' if len(read_without) > 1 else ''} {', '.join(repr(o) for o in read_without)} "
+                f"{'use' if len(read_without) > 1 else 'uses'} an input (feedthrough, relative degree 0), which the "
+                "analyses do not cover: they read the output with its input terms dropped, so what they found is "
+                "about another output",
+                hint="a claim about an output with feedthrough is not checked; measure a quantity the input "
+                     "drives through the states, or model the sensor's own dynamics"))]
+        elif claim.kind in ("regular", "minimum_phase") and not a.model.outputs:
+            failures = [
                 (claim.point, "the model declares no output, so there is no relative degree or zero dynamics to check")]
         elif claim_stage(claim, ranged) in a.completed:
             failures = _CLAIM_CHECKS[claim.kind](a, claim)
@@ -395,6 +404,18 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
                 out.append(finding("expectation-failed", f"`{text}` does not hold: {message}",
                                    point=point, anchor=claim.anchor))
     return out, pending
+
+
+def _read_without_inputs(a: Analysis, claim: ClaimDecl) -> list[str]:
+    """The outputs with feedthrough a claim is about: its own output for a relative degree,
+    every output for regularity and zero dynamics; none for state linearizability, which
+    is a property of f and g alone."""
+    through = a.model.feedthrough
+    if not through or claim.kind == "state_linearizable":
+        return []
+    if claim.kind == "relative_degree":
+        return [claim.output] if claim.output in through else []
+    return list(through)
 
 
 def _unproven_zeros(a: Analysis) -> Undecided:

@@ -96,6 +96,9 @@ class Model:
     defined: bool = True
     #: singular parts as written that the values no longer show, per rate and output anchor
     hidden: Mapping[str, tuple[sp.Expr, ...]] = field(default_factory=lambda: MappingProxyType({}))
+    #: outputs that use an input (feedthrough): the analysis reads them with the inputs at
+    #: zero, so a claim about them is not decided (output-uses-input says why)
+    feedthrough: tuple[str, ...] = ()
 
     def symbol(self, name: str) -> sp.Symbol:
         return symbol(name)
@@ -227,7 +230,7 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
     dynamic = set(states) | set(inputs) | set(ranged)
     _definitions(scope, by_kind.get("let", []), dynamic)
     rates, rate_stmts = _rates(scope, by_kind, dynamic)
-    outputs, output_exprs = _outputs(scope, by_kind.get("output", []), dynamic, inputs)
+    outputs, output_exprs, feedthrough = _outputs(scope, by_kind.get("output", []), dynamic, inputs)
 
     smooth = _check_smooth(scope, statements)
     input_affine = _check_affine(scope, rates, rate_stmts, states, inputs, ranged)
@@ -255,6 +258,7 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
         input_affine=input_affine,
         smooth=smooth,
         hidden=MappingProxyType(scope.hidden),
+        feedthrough=tuple(feedthrough),
         defined=not any(w in scope.undefined for w in [*(anchors.rate(s) for s in rates),
                                                               *(anchors.output(o) for o in outputs)]),
     )
@@ -409,11 +413,12 @@ def _orphan_rate(scope: _Scope, st: Statement, target: Statement | None, dynamic
 
 
 def _outputs(scope: _Scope, stmts: list[Statement], dynamic: set[str], inputs: tuple[str, ...]
-             ) -> tuple[list[str], dict[str, sp.Expr]]:
-    """y = h(x) per output, resolved; an output that uses an input is reported and taken
-    with the inputs at zero."""
+             ) -> tuple[list[str], dict[str, sp.Expr], list[str]]:
+    """y = h(x) per output, resolved, and the outputs that use an input: those are reported
+    and taken with the inputs at zero."""
     output_exprs: dict[str, sp.Expr] = {}
     outputs = []
+    feedthrough = []
     input_syms = {symbol(u) for u in inputs}
     for st in stmts:
         name = st.name or ""
@@ -429,9 +434,10 @@ def _outputs(scope: _Scope, stmts: list[Statement], dynamic: set[str], inputs: t
                       ref.span if ref else st.expr.span, anchors.output(name),
                       hint="feedthrough gives relative degree 0, which the analyses do not cover")
             value = value.xreplace({s: sp.Integer(0) for s in input_syms})
+            feedthrough.append(name)
         output_exprs[name] = value
         outputs.append(name)
-    return outputs, output_exprs
+    return outputs, output_exprs, feedthrough
 
 
 # -- helpers ----------------------------------------------------------------------

@@ -260,3 +260,20 @@ def test_positive_wide_factors_are_proven_in_one_box() -> None:
     assert v.regular is True and v.boxes_examined == 1
     # a lower bound, within the 30 bits that arb keeps of a radius
     assert v.margin is not None and float(minimum) * (1 - 1e-6) <= v.margin <= float(minimum)
+
+
+def test_sin_and_tan_of_ends_beyond_a_float_are_enclosed_not_a_crash() -> None:
+    """exp(exp(x)) over x in [-10, 10] reaches e^(e^10), about 10^9565: counting the periods
+    of sin inside it once turned its ends into an infinite float and crashed the structure
+    stage. sin and cos of such a ball are [-1, 1] (|sin| <= 1, math), tan has no enclosure;
+    2 + sin(exp(exp(x))) is then proven non-zero over the box (at least 1, by hand)."""
+    from plantlint.kernel.balls import tight_periodic, tight_tan
+
+    x = sp.Symbol("x")
+    huge = (arb(-10).exp().exp()).union(arb(10).exp().exp())
+    for name in ("sin", "cos"):
+        out = tight_periodic(name, huge)
+        assert out.contains(arb(1)) and out.contains(arb(-1)) and not out.contains(arb(2))
+    assert not tight_tan(huge).is_finite()
+    v = certify_nonzero([2 + sp.sin(sp.exp(sp.exp(x)))], {x: (-10, 10)}, Budget())
+    assert v.regular is True and v.margin is not None and 0 < v.margin <= 1

@@ -65,8 +65,10 @@ def tight_periodic(name: str, x: arb) -> arb:
     position cannot be separated from an end is included: never too narrow).
     """
     lo, hi = _endpoints(x)
-    values = [getattr(lo, name)(), getattr(hi, name)()]
     pi = arb.pi()
+    if not (hi - lo < 4 * pi) or not _within_floats(lo, hi):
+        return arb(0, 1)  # at least a whole period, or ends beyond a float (exp(exp(x))): [-1, 1]
+    values = [getattr(lo, name)(), getattr(hi, name)()]
     shift = arb(0) if name == "cos" else pi / 2
     # extremum positions c_k = shift + k pi with lo <= c_k <= hi
     k_lo = int(math.floor(float(((lo - shift) / pi).lower().mid()))) - 1
@@ -82,6 +84,15 @@ def tight_periodic(name: str, x: arb) -> arb:
     return out.intersection(arb(0, 1)) if out.is_finite() else arb(0, 1)
 
 
+#: Ends of a ball beyond this are not turned into floats to count periods (a float of
+#: them would be infinite).
+_FLOAT_RANGE = arb(2) ** 1000
+
+
+def _within_floats(lo: arb, hi: arb) -> bool:
+    return bool(lo > -_FLOAT_RANGE and hi < _FLOAT_RANGE)
+
+
 def tight_monotone(name: str, x: arb) -> arb:
     """exp, log, sqrt, atan, tanh, sinh, asinh-like increasing functions: the ends."""
     lo, hi = _endpoints(x)
@@ -92,6 +103,8 @@ def tight_tan(x: arb) -> arb:
     """tan over a ball that stays inside one branch (between two poles): the ends."""
     lo, hi = _endpoints(x)
     pi = arb.pi()
+    if not _within_floats(lo, hi):
+        return _nan()  # no branch can be told apart that far out
     k = int(math.floor(float(((lo + pi / 2) / pi).mid())))
     left, right = -pi / 2 + k * pi, pi / 2 + k * pi
     if lo > left and hi < right:

@@ -571,3 +571,30 @@ def test_a_stop_after_the_last_stage_says_so() -> None:
     (incomplete,) = [f for f in raw.findings if f.rule == "analysis-incomplete"]
     assert "stopped at its 0.3 s budget after its last stage, while its results were put together" in incomplete.message
     assert "not completed: none" in incomplete.message and raw.stop is not None
+
+
+def test_claims_at_a_point_that_misses_a_state_say_so_even_when_it_is_waived(tmp_path: Path) -> None:
+    """Invented: a point without the speed, its point-incomplete error waived. The claims at
+    it still fail (nothing is known there), and they say why instead of calling the point
+    'not an equilibrium' or its structure 'not computed'."""
+    (tmp_path / "inc.plant").write_text("""plant inc "invented: a point missing a state"
+state x in -1 .. 1
+state v in -1 .. 1
+input u in -1 .. 1
+rate x = v
+rate v = -x + u*(1 + v^2)
+output y = x
+point rest: x = 0
+expect regular at rest
+expect minimum_phase at rest
+waive point-incomplete "testing the claims' wording (invented)"
+""", encoding="utf-8")
+    run = cli(tmp_path, "check", "--no-cache", "--format", "json", "inc.plant")
+    assert run.code == 1, run.stdout
+    (file,) = run.json()["files"]
+    claims = [f["message"] for f in file["findings"] if f["rule"] == "expectation-failed"]
+    assert claims == [
+        "`expect regular at rest` does not hold: at point 'rest' not every state is given (see the point-incomplete "
+        "finding)",
+        "`expect minimum_phase at rest` does not hold: 'rest' does not give every state, so the zero dynamics are "
+        "not defined there (see the point-incomplete finding)"]

@@ -672,6 +672,8 @@ def _rank_for(a: Analysis) -> str:
 def _why_not_regular(a: Analysis, pa: PointAnalysis) -> str:
     """Which of the two a point fails: an output's relative degree, or the decoupling matrix."""
     st = pa.structure
+    if st is None and pa.equilibrium.status == "missing_states":
+        return "not every state is given (see the point-incomplete finding)"
     if st is None:
         return "the structure could not be computed"
     undefined = [o for o, r in st.relative_degree.items() if r is None]
@@ -705,7 +707,10 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
     for pa in points:
         zd = pa.zero_dynamics
         if pa.structure is None or not pa.equilibrium.equilibrium:
-            if c.point is not None:
+            if c.point is not None and pa.equilibrium.status == "missing_states":
+                out.append((pa.name, f"'{pa.name}' does not give every state, so the zero dynamics are not defined "
+                                     "there (see the point-incomplete finding)"))
+            elif c.point is not None:
                 out.append((pa.name, f"'{pa.name}' is not an equilibrium, so the zero dynamics are not defined there"))
             continue
         if zd is not None and zd.beyond_scope:

@@ -38,7 +38,7 @@ from plantlint.kernel.exact import has_undefined
 from plantlint.kernel.intervals import Budget, certify_nonzero
 from plantlint.kernel.lie import SCREEN_POINTS, Kernel, random_samples
 from plantlint.language.model import ClaimDecl, Model
-from plantlint.language.printer import show_expr, show_number, show_point
+from plantlint.language.printer import listed, show_expr, show_number, show_point
 from plantlint.analysis.normal_form import NormalForm, normal_form_at, xi_name
 from plantlint.analysis.structure import (
     Envelope,
@@ -373,7 +373,7 @@ def claims_so_far(a: Analysis) -> tuple[list[Finding], list[Finding]]:
         read_without = _read_without_inputs(a, claim)
         if read_without:
             failures: list[tuple[str | None, str | Undecided]] = [(claim.point, Undecided(
-                f"output{'s' if len(read_without) > 1 else ''} {', '.join(repr(o) for o in read_without)} "
+                f"output{'s' if len(read_without) > 1 else ''} {listed([repr(o) for o in read_without])} "
                 f"{'use' if len(read_without) > 1 else 'uses'} an input (feedthrough, relative degree 0), which the "
                 "analyses do not cover: they read the output with its input terms dropped, so what they found is "
                 "about another output",

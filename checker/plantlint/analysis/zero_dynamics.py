@@ -35,7 +35,7 @@ from plantlint.core.findings import Finding
 from plantlint.analysis.refine import REFINED_RESIDUAL
 from plantlint.kernel.balls import UnsupportedExpression, to_arb
 from plantlint.kernel.lie import Kernel
-from plantlint.kernel.rational import polynomial_text, sympy_rational
+from plantlint.kernel.rational import coefficients_text, polynomial_text, sympy_rational
 from plantlint.language.printer import show_number
 
 VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
@@ -496,7 +496,7 @@ def _mirrored_factor(p: list[sp.Expr], decide: "object") -> list[sp.Expr] | None
 def _factor_text(coeffs: list[sp.Expr]) -> str:
     """``s^2 + sqrt(3)/2`` (powers of s first, as sympy writes a polynomial), or its degree
     when it would be long."""
-    text = str(sp.Poly(coeffs, sp.Symbol("s")).as_expr()).replace("**", "^")
+    text = coefficients_text(coeffs)
     return text if len(text) <= FACTOR_TEXT else f"of degree {len(coeffs) - 1}"
 
 

@@ -11,7 +11,7 @@ independent unknowns); it never proves a non-zero.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import Any, Sequence
 
 import sympy as sp
 from flint import fmpq, fmpq_mpoly_ctx
@@ -215,9 +215,13 @@ def polynomial_text(poly: Any, variable: str = "s") -> str:
     """A flint ``fmpq_poly`` written as sympy writes it, powers with ``^``
     (``s^2 + 3*s/4 - 1``); the zero polynomial is ``0``."""
     coeffs = [sympy_rational(c) for c in reversed(poly.coeffs())]
-    if not coeffs:
-        return "0"
-    return str(sp.Poly(coeffs, sp.Symbol(variable)).as_expr()).replace("**", "^")
+    return coefficients_text(coeffs, variable) if coeffs else "0"
+
+
+def coefficients_text(coeffs: Sequence[sp.Expr], variable: str = "s") -> str:
+    """The polynomial with these exact coefficients (highest power first) as sympy writes
+    it, powers with ``^`` (``s^2 + sqrt(3)/2``)."""
+    return str(sp.Poly(list(coeffs), sp.Symbol(variable)).as_expr()).replace("**", "^")
 
 
 def cancel_together(e: sp.Expr) -> sp.Expr:

@@ -227,6 +227,59 @@ def test_rates_defined_only_apart_are_reported_on_the_plant() -> None:
     assert only.span.line == 3  # the plant line
 
 
+def test_a_value_too_large_for_the_balls_is_not_called_undefined() -> None:
+    """cosh(1e300*x) is a real number for every real x, only a huge one: the model is
+    defined, and calling it "undefined throughout the envelope" (an error the model does not
+    have) was wrong. The balls cannot hold it, so nothing can be analysed, and the run says
+    so as not decided: no error, every claim not decided, the stop named. Reference: mpmath
+    (arbitrary exponent range) evaluates cosh(1e300 * 0.5) as a finite number."""
+    import mpmath
+
+    with mpmath.workdps(30):
+        value = mpmath.cosh(mpmath.mpf(10) ** 300 / 2)
+        assert mpmath.isfinite(value) and value > mpmath.mpf(10) ** (10**299)
+    text = NOWHERE.replace("u*log(x - 5)", "u*cosh(1e300*x)")
+    raw = analyse_bytes(text.encode())
+    assert raw.analysis is None and raw.stop is not None and raw.stop.kind == "values"
+    assert not [f for f in raw.findings if f.rule == "singular-model"]
+    stop = [f for f in raw.findings if f.rule == "analysis-incomplete"]
+    assert len(stop) == 1 and stop[0].undecided and "rate v has no finite value" in stop[0].message
+    assert "too large for them" in stop[0].message
+    claims = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert len(claims) == 1 and claims[0].undecided and claims[0].span.line == 11
+
+
+def test_the_balls_prove_a_value_undefined_only_outside_the_domain() -> None:
+    """What counts as proven undefined at a point (Python's math library, the reference,
+    raises ValueError on the same arguments): log(-2), sqrt(-3), asin(2), 1/0 and a
+    fractional power of -2 have no real value; exp(10^300) has one (math only overflows)."""
+    import math
+
+    from fractions import Fraction
+
+    from plantlint.kernel.balls import Program
+
+    x = sp.Symbol("x", real=True)
+    point = {x: Fraction(-2)}
+    for expr, call in ((sp.log(x), lambda: math.log(-2)), (sp.sqrt(x - 1), lambda: math.sqrt(-3)),
+                       (sp.asin(x + 4), lambda: math.asin(2)), (1 / (x + 2), lambda: 1 / (-2 + 2)),
+                       (x ** sp.Rational(1, 3), lambda: math.pow(-2, 1 / 3))):
+        try:
+            call()
+        except (ValueError, ZeroDivisionError):
+            pass
+        else:
+            raise AssertionError(f"math accepted the argument of {expr}")
+        assert Program([expr], [x]).proven_undefined(point) is True, expr
+    try:
+        math.exp(1e300)
+    except OverflowError:
+        pass
+    huge = Program([sp.exp(sp.Integer(10) ** 300 * x ** 2)], [x])
+    assert huge.proven_undefined(point) is False  # not finite in balls, not undefined
+    assert Program([sp.exp(x)], [x]).proven_undefined(point) is None  # finite: defined
+
+
 def test_a_polynomial_of_huge_degree_is_not_multiplied_out() -> None:
     """a_(i+1) = a_i^2 + a_i, twelve times: degree 2^11 in x + v. The relative degree is 2 = n,
     so nothing needs the polynomial multiplied out; the analysis used to spend its whole

@@ -242,6 +242,32 @@ def test_internal_error_is_not_decided_not_a_pass(tmp_path: Path) -> None:
     assert claim["message"].startswith("`expect regular` not decided: the analysis stopped by an internal error")
 
 
+def test_values_too_large_for_the_balls_are_not_decided_in_every_format(tmp_path: Path) -> None:
+    """cosh(1e300*v) is defined for every v (a huge real number), so the model has no
+    error; the balls cannot hold its values, so nothing can be analysed: the run is not
+    decided, in the JSON (a stop of kind "values", valid against the schema) and in SARIF."""
+    (tmp_path / "big.plant").write_text(
+        "plant big\nstate v in -1 .. 1\ninput u in -1 .. 1\nrate v = -v + u*cosh(1e300*v)\noutput y = v\n"
+        "expect relative_degree(y) = 1\n", encoding="utf-8")
+    run = cli(tmp_path, "check", "--no-cache", "--format", "json", "big.plant")
+    assert run.code == 1 and "Traceback" not in run.stderr
+    report = run.json()
+    jsonschema.validate(report, report_schema())
+    (file,) = report["files"]
+    assert file["outcome"] == "not-decided" and file["stop"]["kind"] == "values"
+    assert [f["rule"] for f in file["findings"]] == ["analysis-incomplete", "expectation-failed"]
+    assert all(f["decided"] is False for f in file["findings"])
+    assert "the balls cannot tell whether it is undefined there" in file["findings"][0]["message"]
+    sarif = cli(tmp_path, "check", "--no-cache", "--format", "sarif", "big.plant")
+    assert sarif.code == 1
+    data = sarif.json()
+    jsonschema.validate(data, json.loads(SARIF_SCHEMA.read_text(encoding="utf-8")))
+    (run_,) = data["runs"]
+    # OASIS SARIF 2.1.0: 3.20.14 executionSuccessful, 3.27.9 kind "open" with level "none"
+    assert run_["invocations"][0]["executionSuccessful"] is False
+    assert all((r["kind"], r["level"]) == ("open", "none") for r in run_["results"])
+
+
 @pytest.mark.parametrize("settings", [("--only", "unused-name"), ("--skip", "syntax"), ("--skip", "syntax,unknown-name")])
 def test_a_model_whose_errors_are_left_out_of_the_report_is_not_a_pass(tmp_path: Path, settings: tuple[str, ...]) -> None:
     """A syntax error keeps the analysis from running: a selection that leaves the error

@@ -36,7 +36,7 @@ from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import has_undefined
 from plantlint.kernel.intervals import Budget, certify_nonzero
-from plantlint.kernel.lie import SCREEN_POINTS, Kernel, random_samples
+from plantlint.kernel.lie import SCREEN_POINTS, Kernel, candidate_points, random_samples
 from plantlint.language.model import ClaimDecl, Model
 from plantlint.language.printer import listed, show_expr, show_number, show_point
 from plantlint.analysis.normal_form import NormalForm, normal_form_at, xi_name
@@ -90,10 +90,23 @@ class Analysis:
             stage(name, self)
 
 
-def nowhere_defined(kernel: Kernel) -> list[Finding]:
+@dataclass(frozen=True)
+class Unevaluable:
+    """No point drawn from the envelope gave every rate and output a finite value, and the
+    balls could not prove a value undefined at every one of them: the values may be defined
+    but too large for the balls (cosh(1e300*x)), or lie at the edge of a domain. Nothing
+    can be analysed, and nothing is known to be wrong: the model is not decided."""
+
+    detail: str  # in words, continues "the analysis could not start: ..."
+
+
+def nowhere_defined(kernel: Kernel) -> list[Finding] | Unevaluable:
     """``singular-model`` findings when no point drawn from the envelope has every rate and
     output defined. The zero tests screen at such points; without one, "zero at every sampled
-    point" would hold of every expression vacuously, so there is nothing to analyse."""
+    point" would hold of every expression vacuously, so there is nothing to analyse. A value
+    that is not finite at a point is called undefined there only when the balls prove it
+    (a division by an exact zero, the log of a negative number); when they cannot at some
+    point, the answer is :class:`Unevaluable`, not an error the model may not have."""
     if kernel.samples():
         return []
     plant = kernel.plant
@@ -101,26 +114,57 @@ def nowhere_defined(kernel: Kernel) -> list[Finding]:
     boxes = {**plant.state_box, **plant.param_box}
     drawn = 20 * SCREEN_POINTS
     first = {str(k): float(v) for k, v in random_samples(symbols, boxes, kernel.seed, count=1)[0].items()} if symbols else {}
+
+    def unsettled(guard: Program) -> dict[str, float] | None:
+        """The first point drawn where ``guard``'s values are not finite but not proven undefined."""
+        for point in candidate_points(symbols, boxes, kernel.seed):
+            if guard.proven_undefined(point) is False:
+                return {str(k): float(v) for k, v in point.items()}
+        return None
+
     out = []
+    unknown: list[tuple[str, dict[str, float]]] = []
+    everything: list[sp.Expr] = []
     for anchor, label, exprs in rates_and_outputs(plant):
         exprs = [e for e in exprs if e != 0]
         try:
             guard = Program(exprs, symbols) if exprs else None
         except UnsupportedExpression:
             continue
-        if guard is not None and not random_samples(symbols, boxes, kernel.seed, guard=guard):
-            out.append(finding(
-                "singular-model",
-                f"{label} is undefined throughout the envelope: at each of the {drawn} points drawn from the "
-                f"ranges (-2 .. 2 where none is given) it divides by zero or leaves a function's domain (the first: {show_point(first)}); "
-                "nothing can be analysed on it", anchor=anchor, hint=_ENVELOPE_DOMAIN_HINT))
-    if not out:
+        everything += exprs
+        if guard is None or random_samples(symbols, boxes, kernel.seed, guard=guard):
+            continue
+        at = unsettled(guard)
+        if at is not None:
+            unknown.append((label, at))
+            continue
         out.append(finding(
             "singular-model",
-            f"the rates and outputs are never all defined at once at the {drawn} points drawn from the ranges "
-            f"(the first: {show_point(first)}): each is defined somewhere, but not together; nothing can be "
-            "analysed", anchor=anchors.PLANT, hint=_ENVELOPE_DOMAIN_HINT))
-    return out
+            f"{label} is undefined throughout the envelope: at each of the {drawn} points drawn from the "
+            f"ranges (-2 .. 2 where none is given) it divides by zero or leaves a function's domain (the first: {show_point(first)}); "
+            "nothing can be analysed on it", anchor=anchor, hint=_ENVELOPE_DOMAIN_HINT))
+    if out:
+        return out
+    if unknown:
+        label, at = unknown[0]
+        return Unevaluable(
+            f"{listed([lb for lb, _ in unknown])} {'has' if len(unknown) == 1 else 'have'} no finite value at any of the "
+            f"{drawn} points drawn from the ranges, and at {show_point(at)} the balls cannot tell whether it is "
+            "undefined there, too large for them (exp, cosh or sinh of a huge argument) or on the edge of a domain")
+    try:
+        together = Program(everything, symbols) if everything else None
+    except UnsupportedExpression:
+        together = None
+    at = unsettled(together) if together is not None else None
+    if at is not None:
+        return Unevaluable(
+            f"the rates and outputs never have finite values all at once at the {drawn} points drawn from the ranges, "
+            f"and at {show_point(at)} the balls cannot tell whether that is because one is undefined there")
+    return [finding(
+        "singular-model",
+        f"the rates and outputs are never all defined at once at the {drawn} points drawn from the ranges "
+        f"(the first: {show_point(first)}): each is defined somewhere, but not together; nothing can be "
+        "analysed", anchor=anchors.PLANT, hint=_ENVELOPE_DOMAIN_HINT)]
 
 
 #: What to check when a rate is undefined all over the envelope.

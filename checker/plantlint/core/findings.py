@@ -144,7 +144,8 @@ class FileReport:
 class Stop:
     """Why a model's analysis did not complete.
 
-    ``kind`` is ``time`` or ``memory`` (cut short by a budget), ``internal-error``, or
+    ``kind`` is ``time`` or ``memory`` (cut short by a budget), ``internal-error``,
+    ``values`` (no point of the envelope gave finite values, and none was proven undefined), or
     ``blocked`` (the model's own errors kept the analysis from running, and this run does
     not fail on them: they are left out by --only/--skip, re-graded, or known under --since);
     ``stage`` is the stage that was running, ``completed`` the stages that finished.

@@ -341,6 +341,53 @@ class Program:
         ``prec`` bits around it."""
         return self.run([rational_ball(point[s], prec) for s in self.symbols], prec)
 
+    def proven_undefined(self, point: Mapping[sp.Symbol, Fraction], prec: int = 128) -> bool | None:
+        """Is some output undefined at ``point`` *provably*? None when every output is a
+        finite ball (defined); True when some step leaves its function's domain for
+        certain (a division by an exact zero, the log of a number below zero, asin of a
+        number above 1, ...); False when a value is not finite for another reason: it is
+        too large for the balls (cosh of 10^298 is a real number, but arb's exp gives up
+        beyond about 2^64) or its ball straddles the edge of a domain. Only True
+        justifies saying that a model is undefined there."""
+        steps = self._steps
+        if steps is None:
+            steps = self._steps = [_step(name, args, data) for name, args, data in self._code]
+        regs = run_steps(steps, [rational_ball(point[s], prec) for s in self.symbols], prec)
+        if all(regs[o].is_finite() for o in self.outputs):
+            return None
+        for (name, args, data), value in zip(self._code, regs):
+            if value.is_finite() or not all(regs[a].is_finite() for a in args):
+                continue
+            if _leaves_domain(name, [regs[a] for a in args], data):
+                return True
+        return False
+
+
+def _leaves_domain(name: str, args: list[arb], data: object) -> bool:
+    """Whether one step's finite arguments lie outside its function's real domain for
+    certain (the balls prove it). Fractional powers and powers with a variable exponent
+    need a positive base, as everywhere in the project."""
+    def exact_zero(x: arb) -> bool:
+        return bool(x.is_exact() and x.is_zero())
+
+    if name == "pow":
+        exponent = sp.Rational(data)  # type: ignore[arg-type]
+        base = args[0]
+        if exponent < 0 and exact_zero(base):
+            return True
+        return exponent.q != 1 and bool(base < 0)
+    if name == "powx":
+        return bool(args[0] < 0)
+    if name == "atan2":
+        return exact_zero(args[0]) and exact_zero(args[1])
+    if name in ("asin", "acos"):
+        return bool(args[0] > 1) or bool(args[0] < -1)
+    if name == "log":
+        return bool(args[0] < 0) or exact_zero(args[0])
+    if name == "sqrt":
+        return bool(args[0] < 0)
+    return False
+
 
 def run_steps(steps: Sequence[Callable[[list[Any], Sequence[arb]], Any]], values: Sequence[arb],
               prec: int) -> list[Any]:

@@ -21,7 +21,7 @@ import math
 import random
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import TYPE_CHECKING, Sequence
+from typing import TYPE_CHECKING, Iterator, Sequence
 
 import sympy as sp
 from flint import arb
@@ -710,11 +710,24 @@ def random_samples(
 ) -> list[dict[sp.Symbol, Fraction]]:
     """Reproducible random rational points inside ``boxes`` (or [-2, 2] where a
     symbol has no box), skipping points where ``guard`` is undefined."""
-    rng = random.Random(seed)
     out: list[dict[sp.Symbol, Fraction]] = []
-    tries = 0
-    while len(out) < count and tries < 20 * count:
-        tries += 1
+    for point in candidate_points(symbols, boxes, seed, count):
+        if len(out) == count:
+            break
+        if guard is not None:
+            vals = guard.at(point)
+            if not all(v.is_finite() for v in vals):
+                continue
+        out.append(point)
+    return out
+
+
+def candidate_points(symbols: Sequence[sp.Symbol], boxes: dict[sp.Symbol, tuple[sp.Expr, sp.Expr]], seed: int,
+                     count: int = SCREEN_POINTS) -> Iterator[dict[sp.Symbol, Fraction]]:
+    """The points :func:`random_samples` draws, in its order (20 * ``count`` of them),
+    before its guard skips any."""
+    rng = random.Random(seed)
+    for _ in range(20 * count):
         point: dict[sp.Symbol, Fraction] = {}
         for s in symbols:
             lo, hi = _float_range(boxes.get(s))
@@ -722,12 +735,7 @@ def random_samples(
             value = lo + (hi - lo) * frac
             # keep the denominator small and the value off trivial points
             point[s] = value.limit_denominator(4093) + Fraction(1, 7919)
-        if guard is not None:
-            vals = guard.at(point)
-            if not all(v.is_finite() for v in vals):
-                continue
-        out.append(point)
-    return out
+        yield point
 
 
 def _safe_ball(e: sp.Expr) -> arb:

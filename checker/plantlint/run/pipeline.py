@@ -160,7 +160,7 @@ def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None,
     if any(f.rule in BLOCKING for f in findings) or not model.defined:
         result.findings = [locate(f, model.spans) for f in result.findings]
         return result
-    from plantlint.analysis.engine import Analysis, claims_so_far, nowhere_defined, run_analysis
+    from plantlint.analysis.engine import Analysis, Unevaluable, claims_so_far, nowhere_defined, run_analysis
     from plantlint.kernel.lie import Kernel
     from plantlint.analysis.serialise import analysis_json, explain_json
 
@@ -188,6 +188,13 @@ def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None,
     assert plant is not None, "analysis needs an input-affine model"
     kernel = Kernel(plant)
     undefined = nowhere_defined(kernel)
+    if isinstance(undefined, Unevaluable):  # no finite value anywhere, and nothing proven wrong
+        start = RawResult(plant=model.name, findings=[locate(f, model.spans) for f in findings],
+                          waivers=list(model.waivers),
+                          pending=[locate(f, model.spans) for f in _claims_before_analysis(model)])
+        from plantlint.analysis.stages import STAGES
+
+        return stopped(start, "values", [], STAGES, 0.0, undefined.detail)
     if undefined:  # like a rate that divides by zero for every state: nothing to analyse
         result.findings = [locate(f, model.spans) for f in [*findings, *undefined]]
         return result
@@ -283,6 +290,9 @@ _STOP_HINTS = {
             "--profile ci) or simplify the model",
     "memory": "simplify the model (shorter definitions, fewer nested functions) or split it",
     "internal-error": "please report it with the model; meanwhile simplify the model around the stage named",
+    "values": "check the model's scale (a constant like 1e300 inside exp, cosh or sinh) and its ranges against "
+              "the functions' domains (asin and acos need -1 .. 1, sqrt, log and fractional powers a positive "
+              "argument)",
 }
 
 
@@ -315,7 +325,9 @@ def stopped(snapshot: RawResult | None, kind: str, stages: list[str], all_stages
     stages, their findings and the claims they settle), every other claim not decided, and
     an ``analysis-incomplete`` finding at the plant header saying why.
 
-    ``kind`` is ``time``, ``memory`` or ``internal-error``; ``detail`` the error text.
+    ``kind`` is ``time``, ``memory``, ``internal-error`` (``detail`` the error text) or
+    ``values`` (no point of the envelope gave finite values, and none was proven undefined:
+    ``detail`` says so in words).
     """
     base = snapshot or RawResult(plant=header[1], pending=claims_in_text(text))
     done = [s for s in all_stages if s in stages]
@@ -326,6 +338,8 @@ def stopped(snapshot: RawResult | None, kind: str, stages: list[str], all_stages
     where = f" in stage {running}" if running else " after its last stage, while its results were put together"
     if kind == "time":
         what = f"stopped at its {seconds:g} s budget{where}"
+    elif kind == "values":
+        what = f"could not start: {detail}"
     elif kind == "memory":
         what = f"ran out of its memory budget{where}"
     else:

@@ -174,6 +174,30 @@ expect minimum_phase
     assert "decoupling-singular" in [f.rule for f in raw.findings]
 
 
+def test_a_claim_at_a_point_names_the_singular_decoupling_matrix() -> None:
+    """The same two-sensor tank, with `expect minimum_phase at low`: the claim at the point
+    says why the zero dynamics are not defined there, the decoupling matrix (rank 1 for 2
+    outputs, 1 input, as numpy's matrix_rank in the test above), not an ill-defined
+    relative degree: each output's own relative degree is well defined (2 and 1)."""
+    text = b"""plant tank2
+state h1 in 0.1 .. 2
+state h2 in 0.1 .. 2
+input q in 0 .. 1
+rate h1 = q - h1
+rate h2 = h1 - h2
+output level2 = h2
+output level1 = h1
+point low: h1 = 0.5, h2 = 0.5, q = 0.5
+expect minimum_phase at low
+"""
+    raw = analyse_bytes(text)
+    (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
+    assert not claim.undecided
+    assert claim.message.endswith("the zero dynamics are not defined: the decoupling matrix is singular "
+                                  "(rank 1 for 2 outputs, 1 input) there")
+    assert raw.analysis["relative_degree"] == {"level2": 2, "level1": 1}
+
+
 def test_an_output_the_inputs_never_reach_fails_each_claim_once() -> None:
     """y = x1 of two decoupled first-order lags, the input on the second: the transfer
     function from u to y is zero (scipy.signal.ss2tf, below), so the output has no relative

@@ -764,7 +764,7 @@ def _minimum_phase_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, st
                      "computes; check the claim by other means and waive it with the reason, or declare the "
                      "outputs the controller holds, one per input")))
         elif zd is None or zd.verdict == "undefined":
-            reason = zd.reason if zd is not None and zd.reason else "the relative degree is not well defined there"
+            reason = zd.reason if zd is not None and zd.reason else f"{_why_not_regular(a, pa)} there"
             out.append((pa.name, f"at point '{pa.name}' the zero dynamics are not defined: {reason}"))
         elif zd.verdict == "non_minimum_phase":
             out.append((pa.name, f"at point '{pa.name}' the zero dynamics are unstable: eigenvalues "

@@ -801,7 +801,7 @@ def _state_linearizable_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | Non
     points = _points_for(a, c)
     out: list[tuple[str | None, str]] = []
     if not points:
-        n = a.model.plant().n if a.model.plant() else 0
+        n = a.kernel.plant.n
         if not ds.involutive and ds.failure is not None:
             # the distributions above the failing one were not formed (ds.ranks stops there),
             # so nothing is said of the controllability distribution's rank

@@ -142,8 +142,13 @@ class Kernel:
             from plantlint.kernel.dag import UnsupportedNode
             from plantlint.kernel.taylor import Towers
 
+            written = self.plant.as_written()
             try:
-                self._towers = Towers(self.x, self.plant.params, self.f, self.g, self.h)
+                if written is not None:  # the graph read from the parse tree: no sympy tree walked
+                    self._towers = Towers(self.x, self.plant.params, written.f, written.g, written.h,
+                                          graph=written.graph)
+                else:
+                    self._towers = Towers(self.x, self.plant.params, self.f, self.g, self.h)
             except UnsupportedNode:
                 self._towers = None
         return self._towers  # type: ignore[return-value]

@@ -10,6 +10,7 @@ already replaced by their nominal values, parameters with a range stay symbolic
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 import sympy as sp
 
@@ -31,6 +32,20 @@ class Plant:
     #: (rate or output anchor, part): singular parts as written that f, g and h no longer show
     #: (x^(-1)*x is 1, exp(log(x)) is x); the domain checks take them as well
     hidden: tuple[tuple[str, sp.Expr], ...] = ()
+    #: f, g and h as written, read from the parse tree without sympy
+    #: (:class:`plantlint.language.written.WrittenPlant`), and the (f, g, h) above it was read
+    #: beside: a plant made from this one with another f (``dataclasses.replace``) no longer
+    #: pairs with it (see :meth:`as_written`)
+    written: Any = field(default=None, compare=False, repr=False)
+    written_for: tuple[Any, ...] = field(default=(), compare=False, repr=False)
+
+    def as_written(self) -> Any:
+        """The plant as written when it is this plant's (the same f, g and h objects it was
+        read beside); None otherwise."""
+        if self.written is None or len(self.written_for) != 3:
+            return None
+        f, g, h = self.written_for
+        return self.written if (f is self.f and g is self.g and h is self.h) else None
 
     @property
     def n(self) -> int:

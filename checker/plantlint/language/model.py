@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
 from types import MappingProxyType
-from typing import Mapping
+from typing import Any, Mapping
 
 import sympy as sp
 
@@ -99,6 +99,8 @@ class Model:
     #: outputs that use an input (feedthrough): the analysis reads them with the inputs at
     #: zero, so a claim about them is not decided (output-uses-input says why)
     feedthrough: tuple[str, ...] = ()
+    #: the parsed statements, for the plant as written (:mod:`plantlint.language.written`)
+    statements: tuple[Statement, ...] = field(default=(), compare=False, repr=False)
 
     def symbol(self, name: str) -> sp.Symbol:
         return symbol(name)
@@ -124,6 +126,7 @@ class Model:
         f = tuple(self.rates[s].xreplace(zero_inputs) for s in self.states)
         g = tuple(tuple(sp.diff(self.rates[s], u) for s in self.states) for u in us)
         params = tuple(symbol(p) for p in self.ranged_params)
+        h = tuple(self.output_exprs[o] for o in self.outputs)
         return Plant(
             name=self.name or "plant",
             states=xs,
@@ -131,7 +134,7 @@ class Model:
             f=f,
             g=g,
             outputs=self.outputs,
-            h=tuple(self.output_exprs[o] for o in self.outputs),
+            h=h,
             params=params,
             param_nominal={symbol(p): self.quantities[p].value for p in self.ranged_params},  # type: ignore[misc]
             param_box=self.box(self.ranged_params),
@@ -140,7 +143,24 @@ class Model:
             hidden=tuple((anchor, part) for anchor in [*(anchors.rate(s) for s in self.states),
                                                        *(anchors.output(o) for o in self.outputs)]
                          for part in self.hidden.get(anchor, ()) if not part.free_symbols & set(us)),
+            written=self._written(),
+            written_for=(f, g, h),
         )
+
+    def _written(self) -> Any:
+        """f, g and h as written (a graph read from the parse tree), when the reader takes
+        the model and reads the same states, parameters, inputs and outputs; else None."""
+        if not self.statements:
+            return None
+        from plantlint.language.written import Refused, read_plant
+
+        try:
+            written = read_plant(self.statements)
+        except Refused:
+            return None
+        same = (written.states == self.states and written.params == self.ranged_params
+                and written.inputs == self.inputs and written.outputs == self.outputs)
+        return written if same else None
 
 
 @dataclass
@@ -259,6 +279,7 @@ def _build(scope: "_Scope", parsed: Parsed, path: str) -> tuple[Model | None, li
         smooth=smooth,
         hidden=MappingProxyType(scope.hidden),
         feedthrough=tuple(feedthrough),
+        statements=tuple(statements),
         defined=not any(w in scope.undefined for w in [*(anchors.rate(s) for s in rates),
                                                               *(anchors.output(o) for o in outputs)]),
     )

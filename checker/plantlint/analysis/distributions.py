@@ -54,6 +54,7 @@ from plantlint.kernel.exact import ball_rank
 from plantlint.kernel.laurent import expanded, identically_zero
 from plantlint.kernel.lie import Kernel, Vector, has_nested_arguments, has_symbolic_denominator, matrix_at
 from plantlint.kernel.rational import sympy_rational
+from plantlint.kernel.precision import precision
 from plantlint.language.printer import listed, show_expr, show_point
 from plantlint.analysis.linearizing_output import OutputSearch
 
@@ -434,14 +435,8 @@ def _float_solve(M: list[list[float]], b: list[float]) -> list[float]:
 def _ball_det_nonzero(M: list[list[arb]]) -> bool:
     """Is the determinant of a square ball matrix certainly non-zero? Full proven rank
     of the ball elimination (kernel/exact.py) at the stage's precision."""
-    import flint
-
-    old = flint.ctx.prec
-    flint.ctx.prec = BALL_PREC
-    try:
+    with precision(BALL_PREC):
         return ball_rank(M)[0] == len(M)
-    finally:
-        flint.ctx.prec = old
 
 
 def _decide_generic(kernel: Kernel, e: sp.Expr) -> ZeroDecision:
@@ -814,8 +809,6 @@ def _formal_ranks(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], n: int, m: i
     pivot proven non-zero by a ball, every entry left out proven zero formally. None when
     something is unsettled (the symbolic fields decide then); "undefined" as in
     :func:`_taylor_brackets`."""
-    import flint
-
     from plantlint.kernel.formal import PREC, Formal, FormalField, Unsettled
     from plantlint.kernel.taylor import Inexact, Undefined
 
@@ -831,9 +824,7 @@ def _formal_ranks(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], n: int, m: i
             raise Unsettled("an entry neither formally zero nor away from 0 in its ball")
         return d
 
-    old = flint.ctx.prec
-    flint.ctx.prec = PREC
-    try:
+    with precision(PREC):
         if at is not None:
             vector = at[1]
         else:  # irrational values at the point (q = pi/4): formal numbers read from their sympy form
@@ -851,8 +842,6 @@ def _formal_ranks(kernel: Kernel, values: dict[sp.Symbol, sp.Expr], n: int, m: i
             return "undefined"
         except Inexact:  # Unsettled among them
             return None
-    finally:
-        flint.ctx.prec = old
     return ranks or [0] * n, [[e.to_sympy() for e in row] for row in basis]
 
 

@@ -48,6 +48,7 @@ from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import ball_elimination, has_undefined
 from plantlint.kernel.lie import FirstOrder, Kernel
 from plantlint.kernel.rational import polynomial_text
+from plantlint.kernel.precision import precision
 from plantlint.language.printer import show_number
 
 #: Working precision (decimal digits) for the roots of a ball polynomial with multiple roots.
@@ -184,18 +185,15 @@ def _formal_matrices(kernel: Kernel, point: dict[sp.Symbol, sp.Expr], u0: Sequen
     full: dict[sp.Symbol, sp.Expr] = dict(plant.param_nominal)
     full.update(point)
     field = FormalField()
-    old = flint.ctx.prec
-    flint.ctx.prec = PREC
-    try:
-        vector = [field.number(full[s]) for s in kernel.free_symbols()]
-        inputs = [field.number(u) for u in u0]
-        values, gradients = towers.first_order(vector, field)
-        first = FirstOrder.of(plant.n, plant.m, values, gradients)  # type: ignore[arg-type]
-        return _state_space(first, u0, inputs, lambda e: e.to_sympy())
-    except (Inexact, Undefined, ArithmeticError, ValueError, TypeError, KeyError):
-        return None  # Unsettled is an Inexact
-    finally:
-        flint.ctx.prec = old
+    with precision(PREC):
+        try:
+            vector = [field.number(full[s]) for s in kernel.free_symbols()]
+            inputs = [field.number(u) for u in u0]
+            values, gradients = towers.first_order(vector, field)
+            first = FirstOrder.of(plant.n, plant.m, values, gradients)  # type: ignore[arg-type]
+            return _state_space(first, u0, inputs, lambda e: e.to_sympy())
+        except (Inexact, Undefined, ArithmeticError, ValueError, TypeError, KeyError):
+            return None  # Unsettled is an Inexact
 
 
 def _state_space(first: FirstOrder, u0: Sequence[sp.Expr], weights: Sequence[Any],
@@ -413,9 +411,7 @@ def _rosenbrock_polynomial(A: fmpq_mat, B: fmpq_mat, C: fmpq_mat) -> fmpq_poly:
 def _roots(poly: fmpq_poly) -> tuple[complex, ...]:
     """Roots with multiplicity (rational ones exact), sorted by real then imaginary part."""
     out: list[complex] = []
-    old = flint.ctx.prec
-    flint.ctx.prec = _ROOT_BITS
-    try:
+    with precision(_ROOT_BITS):
         for q, mult in _factor(poly):
             coeffs = q.coeffs()
             if q.degree() == 1:
@@ -425,8 +421,6 @@ def _roots(poly: fmpq_poly) -> tuple[complex, ...]:
                 re = 0.0 if c.real.is_zero() else float(c.real.mid())
                 im = 0.0 if c.imag.is_zero() else float(c.imag.mid())
                 out.extend([complex(re, im)] * (k * mult))
-    finally:
-        flint.ctx.prec = old
     return tuple(sorted(out, key=lambda z: (z.real, z.imag)))
 
 
@@ -483,22 +477,16 @@ def _numeric(name: str, A: sp.Matrix, B: sp.Matrix, C: sp.Matrix, states: Sequen
         Ab = [balls[i * n:(i + 1) * n] for i in range(n)]
         Bb = [balls[n * n + i * m: n * n + (i + 1) * m] for i in range(n)]
         Cb = [balls[n * n + n * m + i * n: n * n + n * m + (i + 1) * n] for i in range(p)]
-        old = flint.ctx.prec
-        flint.ctx.prec = bits
-        try:
+        with precision(bits):
             if m:
                 K = _ball_krylov(Ab, Bb, n)  # n x nm
                 ctrl = _ball_subspace([list(col) for col in zip(*K)], Ab, left=True)  # w K = 0
             if p:
                 O = _ball_krylov([list(col) for col in zip(*Ab)], [list(col) for col in zip(*Cb)], n)  # O^T
                 obs = _ball_subspace([list(col) for col in zip(*O)], Ab, left=False)  # O v = 0
-        finally:
-            flint.ctx.prec = old
         if (ctrl is None or ctrl[1]) and (obs is None or obs[1]):
             break
-    old = flint.ctx.prec
-    flint.ctx.prec = bits
-    try:
+    with precision(bits):
         poles = _ball_eigenvalues(Ab)
         zeros: tuple[complex, ...] | None = None
         note, tol = "", None
@@ -512,8 +500,6 @@ def _numeric(name: str, A: sp.Matrix, B: sp.Matrix, C: sp.Matrix, states: Sequen
                 zeros = tuple(sorted(_ball_roots(coeffs), key=lambda z: (z.real, z.imag)))
         elif p != m:
             note = f"not square ({p} output(s), {m} input(s)): transmission zeros are computed for square plants"
-    finally:
-        flint.ctx.prec = old
     undecided = [what for what, r in (("controllability", ctrl), ("observability", obs)) if r is not None and not r[1]]
     if undecided:
         reason = (f"the {' and '.join(undecided)} rank{'s are' if len(undecided) > 1 else ' is'} a proven lower bound: "

@@ -37,13 +37,13 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Sequence
 
-import flint
 import mpmath
 import sympy as sp
 from flint import arb
 
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.plant import Plant
+from plantlint.kernel.precision import precision
 from plantlint.language.printer import decimal_places
 
 PREC = 200  # bits for every evaluation (about 60 digits)
@@ -111,16 +111,13 @@ class _System:
 
     def run(self, point: dict[sp.Symbol, mpmath.mpf]) -> tuple[list, list, list[list]] | None:
         """(rates, size of each rate's terms, Jacobian rows) at a point, or None when undefined."""
-        old = flint.ctx.prec
-        flint.ctx.prec = PREC  # the decimal inputs are read at full precision too
-        try:
-            inputs = [arb(mpmath.nstr(point[s], DIGITS + 10, min_fixed=-mpmath.inf, max_fixed=mpmath.inf))
-                      for s in self.symbols]
-            values = self.program.run(inputs, PREC)
-        except (UnsupportedExpression, ValueError, ZeroDivisionError):
-            return None
-        finally:
-            flint.ctx.prec = old
+        with precision(PREC):  # the decimal inputs are read at full precision too
+            try:
+                inputs = [arb(mpmath.nstr(point[s], DIGITS + 10, min_fixed=-mpmath.inf, max_fixed=mpmath.inf))
+                          for s in self.symbols]
+                values = self.program.run(inputs, PREC)
+            except (UnsupportedExpression, ValueError, ZeroDivisionError):
+                return None
         if not all(b.is_finite() for b in values):
             return None
         mids = [_mid(b) for b in values]

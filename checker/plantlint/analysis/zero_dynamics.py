@@ -35,6 +35,7 @@ from plantlint.core.findings import Finding
 from plantlint.analysis.refine import REFINED_RESIDUAL
 from plantlint.kernel.balls import UnsupportedExpression, to_arb
 from plantlint.kernel.lie import Kernel
+from plantlint.kernel.precision import precision
 from plantlint.kernel.rational import coefficients_text, polynomial_text, sympy_rational
 from plantlint.language.printer import show_number
 
@@ -272,8 +273,7 @@ def _exact_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics:
 def _classify_roots(P: fmpz_poly) -> list[tuple[complex, int | None, int]]:
     """Roots of P with the exact sign of each real part (None if undecided)."""
     axis = _axis_polynomial(P)
-    old = flint.ctx.prec
-    try:
+    with precision():  # each precision tried is set below; the caller's comes back
         for bits in _ISOLATION_BITS:
             flint.ctx.prec = bits
             balls = P.complex_roots()
@@ -281,8 +281,6 @@ def _classify_roots(P: fmpz_poly) -> list[tuple[complex, int | None, int]]:
             signs = _signs(balls, omegas)
             if all(s is not None for s in signs) or bits == _ISOLATION_BITS[-1]:
                 return [(_complex(c, s), s, mult) for (c, mult), s in zip(balls, signs)]
-    finally:
-        flint.ctx.prec = old
     return []
 
 
@@ -387,8 +385,7 @@ def _ball_route(name: str, n: int, r: int, data: _PointData) -> tuple[ZeroDynami
     on the axis, not off it). None when the roots cannot be isolated (a repeated root) or
     the numbers do not fit s^r p(s): the mpmath route then decides with its tolerance.
     The roots' balls come with the verdict, for :func:`_on_axis`."""
-    old = flint.ctx.prec
-    try:
+    with precision():  # each precision tried is set below; the caller's comes back
         for bits in _BALL_BITS:
             flint.ctx.prec = bits
             try:
@@ -414,8 +411,6 @@ def _ball_route(name: str, n: int, r: int, data: _PointData) -> tuple[ZeroDynami
             bound = float(max(near)) if near else None
             return (_verdict(name, n - r, eigs, exact=bound is None, tolerance=bound, consistent=True, polynomial=None),
                     list(roots))
-    finally:
-        flint.ctx.prec = old
     return None
 
 
@@ -534,8 +529,7 @@ def _roots_of(common: list[sp.Expr], roots: list[acb]) -> list[bool] | None:
     G (coefficients highest power first): one of G's isolated root balls meets it and no
     other ball of p. None when G's roots cannot be isolated (a repeated root) or a
     coefficient has no ball."""
-    old = flint.ctx.prec
-    try:
+    with precision():  # each precision tried is set below; the caller's comes back
         for bits in _BALL_BITS:
             flint.ctx.prec = bits
             try:
@@ -548,8 +542,6 @@ def _roots_of(common: list[sp.Expr], roots: list[acb]) -> list[bool] | None:
                 if len(met) == 1:
                     shared[met[0]] = True
             return shared
-    finally:
-        flint.ctx.prec = old
     return None
 
 

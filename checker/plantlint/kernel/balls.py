@@ -20,6 +20,8 @@ import flint
 import sympy as sp
 from flint import arb
 
+from plantlint.kernel.precision import precision
+
 
 _UNARY: dict[type, str] = {
     sp.sin: "sin",
@@ -393,40 +395,28 @@ def run_steps(steps: Sequence[Callable[[list[Any], Sequence[arb]], Any]], values
               prec: int) -> list[Any]:
     """Every register of a straight-line program (a list of steps, each reading the
     registers before it and the input balls), run at ``prec`` bits."""
-    old = flint.ctx.prec
-    flint.ctx.prec = prec
-    try:
+    with precision(prec):
         regs: list[Any] = []
         append = regs.append
         for step in steps:
             append(step(regs, values))
         return regs
-    finally:
-        flint.ctx.prec = old
 
 
 def ball(lo: sp.Expr | float | int, hi: sp.Expr | float | int | None = None, prec: int = 128) -> arb:
     """A ball that certainly contains the real interval [lo, hi] (or the point lo)."""
-    old = flint.ctx.prec
-    flint.ctx.prec = prec
-    try:
+    with precision(prec):
         a = to_arb(lo)
         if hi is None:
             return a
         b = to_arb(hi)
         return a.union(b)
-    finally:
-        flint.ctx.prec = old
 
 
 def rational_ball(value: Fraction, prec: int) -> arb:
     """A rigorous ball around a rational, computed at ``prec`` bits."""
-    old = flint.ctx.prec
-    flint.ctx.prec = prec
-    try:
+    with precision(prec):
         return arb(value.numerator) / value.denominator
-    finally:
-        flint.ctx.prec = old
 
 
 def to_arb(value: object) -> arb:

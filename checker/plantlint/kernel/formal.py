@@ -32,11 +32,11 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Any, Callable
 
-import flint
 import sympy as sp
 from flint import arb, fmpq, fmpq_mpoly_ctx
 
 from plantlint.kernel import decision as zd
+from plantlint.kernel.precision import precision
 from plantlint.kernel.rational import sympy_rational
 from plantlint.kernel.taylor import ArbField, Inexact, QField, Undefined
 
@@ -379,16 +379,13 @@ class FormalField:
                 raise
             except Inexact:
                 pass
-        old = flint.ctx.prec
-        flint.ctx.prec = PREC
-        try:
-            value = ball()
-        except Undefined:
-            if constant:
-                raise
-            raise Unsettled(f"{name} of a value near its domain's edge") from None
-        finally:
-            flint.ctx.prec = old
+        with precision(PREC):
+            try:
+                value = ball()
+            except Undefined:
+                if constant:
+                    raise
+                raise Unsettled(f"{name} of a value near its domain's edge") from None
         key = (name, *(a.key() for a in args))
         return self.space.unknown(key, value, (name, args))
 

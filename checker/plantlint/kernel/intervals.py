@@ -30,7 +30,6 @@ from collections import deque
 from dataclasses import dataclass
 from typing import Callable, Sequence
 
-import flint
 import sympy as sp
 from flint import arb
 
@@ -38,6 +37,7 @@ from plantlint.core import deadline
 from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import UnsupportedExpression, to_arb
 from plantlint.kernel.forward import ForwardProgram
+from plantlint.kernel.precision import precision
 
 Interval = tuple[float, float]
 FloatBox = tuple[Interval, ...]
@@ -138,12 +138,8 @@ class _Inside:
 
     def faces(self, root: FloatBox) -> Faces:
         """The outer faces of the float box with the exact bounds they stand for."""
-        old = flint.ctx.prec
-        flint.ctx.prec = BOX_PREC
-        try:
+        with precision(BOX_PREC):
             ball = [(_ball_of(lo), _ball_of(hi)) for lo, hi in self.bounds]
-        finally:
-            flint.ctx.prec = old
         return [(lo, a, hi, b) for (lo, hi), (a, b) in zip(root, ball)]
 
     def on_face(self, b: FloatBox, root: FloatBox) -> list[sp.Expr] | None:
@@ -229,15 +225,11 @@ def _float_at_most(bound: Fraction | arb) -> float:
 def _cover(box: FloatBox, faces: Faces | None = None) -> list[arb]:
     """Balls covering a float box; with ``faces``, a side on an outer face of the search's
     box reaches the exact bound, not the float rounded outward from it (see :class:`_Inside`)."""
-    old = flint.ctx.prec
-    flint.ctx.prec = BOX_PREC
-    try:
+    with precision(BOX_PREC):
         if faces is None:
             return [arb(lo).union(arb(hi)) if lo != hi else arb(lo) for lo, hi in box]
         return [(exact_lo if lo == outer_lo else arb(lo)).union(exact_hi if hi == outer_hi else arb(hi))
                 for (lo, hi), (outer_lo, exact_lo, outer_hi, exact_hi) in zip(box, faces)]
-    finally:
-        flint.ctx.prec = old
 
 
 def _centre(box: FloatBox) -> tuple[float, ...]:
@@ -287,9 +279,7 @@ class _Evaluator:
         c = _centre(box)
         at_c = self.program.values([arb(v) for v in c], BOX_PREC)
         duals = self.program.with_gradients(cover, BOX_PREC)
-        old = flint.ctx.prec
-        flint.ctx.prec = BOX_PREC
-        try:
+        with precision(BOX_PREC):
             offsets = [x - arb(v) for x, v in zip(cover, c)]
             out = []
             for (nat, grad), mv in zip(duals, at_c):
@@ -297,8 +287,6 @@ class _Evaluator:
                     mv = mv + g * off
                 out.append(_tighter(nat, mv))
             return out
-        finally:
-            flint.ctx.prec = old
 
     def at(self, point: Sequence[float]) -> list[arb]:
         return self.program.values([arb(v) for v in point], POINT_PREC)
@@ -545,14 +533,11 @@ def _sign_change_to_face(ev: _Evaluator, b: FloatBox, face: Sequence[sp.Expr], i
     centre = inside.clamp(_centre(b))
     if centre is None:
         return False
-    old = flint.ctx.prec
-    flint.ctx.prec = POINT_PREC
-    try:
-        at_face = ev.program.values([to_arb(v) for v in face], POINT_PREC)[0]
-    except (UnsupportedExpression, ValueError, ZeroDivisionError):
-        return False
-    finally:
-        flint.ctx.prec = old
+    with precision(POINT_PREC):
+        try:
+            at_face = ev.program.values([to_arb(v) for v in face], POINT_PREC)[0]
+        except (UnsupportedExpression, ValueError, ZeroDivisionError):
+            return False
     at_centre = ev.at(centre)[0]
     if not (at_face.is_finite() and at_centre.is_finite()):
         return False

@@ -24,7 +24,6 @@ import time
 from dataclasses import dataclass
 from fractions import Fraction
 
-import flint
 import sympy as sp
 from flint import arb
 
@@ -34,6 +33,7 @@ from plantlint.kernel.exact import laplace_det
 from plantlint.kernel.intervals import Budget, EnvelopeVerdict, certify_sign
 from plantlint.kernel.lie import Kernel, random_samples
 from plantlint.kernel.plant import as_expr
+from plantlint.kernel.precision import precision
 from plantlint.kernel.rational import cancel_together, rational_value
 
 #: Expressions larger than this (operations) are not brought over a common denominator.
@@ -336,9 +336,7 @@ def independent_sets(params: ParameterBox, holders: Holders, columns: list[sp.Ma
     """Up to ``most`` sets of n Kalman columns (from the first 2n) whose determinant is
     certainly non-zero at the nominal values; over the box at least one of them must
     stay non-zero at every parameter value."""
-    old = flint.ctx.prec
-    flint.ctx.prec = 256
-    try:
+    with precision(256):
         pool = columns[: 2 * n]
         nominal = [[params.ball(holders.restore(e), params.nominal, 256) for e in col] for col in pool]
         out: list[tuple[int, ...]] = []
@@ -349,8 +347,6 @@ def independent_sets(params: ParameterBox, holders: Holders, columns: list[sp.Ma
                 if len(out) == most:
                     break
         return out
-    finally:
-        flint.ctx.prec = old
 
 
 def _short(e: sp.Expr, limit: int = 60) -> str:

@@ -25,11 +25,11 @@ from fractions import Fraction
 from math import factorial
 from typing import Any, Sequence
 
-import flint
 from flint import arb, fmpq
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.dag import Graph, Instruction, Program
+from plantlint.kernel.precision import precision
 
 
 class Inexact(ArithmeticError):
@@ -633,10 +633,7 @@ class Towers:
         ``start`` gives the starting numbers (jets of any kind) directly. Without
         ``outputs`` only f and g are run (:attr:`fields`), and the series end after g."""
         program = self.program if outputs else self.fields
-        old = flint.ctx.prec
-        if isinstance(field, ArbField):
-            flint.ctx.prec = field.prec
-        try:
+        with precision(field.prec if isinstance(field, ArbField) else None):
             if start is None:
                 start = [field.number(v) for v in point]
             else:
@@ -661,8 +658,6 @@ class Towers:
                     for i in range(n, len(coeff)):
                         coeff[i].append(zero)
             return [runner.series[o] for o in program.outputs]
-        finally:
-            flint.ctx.prec = old
 
     def _out(self, series: list[list[Any]], kind: str, i: int, j: int = 0) -> list[Any]:
         n, m = self.n, self.m

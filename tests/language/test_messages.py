@@ -337,3 +337,22 @@ def test_a_waiver_without_its_reason_says_so(tail: str) -> None:
     assert problem.span is not None and problem.span.line == 7
     written = "waive envelope-singular at rest" if tail.startswith(" at rest") else "waive envelope-singular"
     assert problem.hint == f'{written} "why it is accepted"'
+
+
+def test_a_negative_multiple_of_a_sum_is_written_with_the_sign_inside() -> None:
+    """-(-176 + 225*cos(q)^2)/100 reads (176 - 225*cos(q)^2)/100: the printer takes the sign
+    into the sum when that writes no more minus signs, and the value stays the same (sympy,
+    the reference, simplifies the difference to 0)."""
+    import sympy as sp
+
+    from plantlint.language.printer import _sign_inside, show_expr
+
+    q, x = sp.symbols("q x", real=True)
+    cases = {
+        sp.Mul(sp.Rational(-1, 100), sp.Add(-176, 225 * sp.cos(q) ** 2), evaluate=False): "(176 - 225*cos(q)^2)/100",
+        sp.Mul(-2, x - 1, evaluate=False): "2*(1 - x)",
+        sp.Mul(-1, x + 3, evaluate=False): "-(3 + x)",  # flipping would write two minus signs
+    }
+    for expr, text in cases.items():
+        assert show_expr(expr) == text
+        assert sp.simplify(_sign_inside(expr) - expr) == 0

@@ -41,11 +41,27 @@ def show_expr(expr: sp.Expr, limit: int = 120) -> str:
             return decimal
     if expr.is_Rational and len(str(expr)) > LONG_NUMBER:
         return show_number(expr)
-    text = _PRINTER.doprint(expr).replace("**", "^")
+    text = _PRINTER.doprint(_sign_inside(expr)).replace("**", "^")
     if len(text) > limit:
         ops = sp.count_ops(expr)
         text = text[: limit - 20].rstrip() + f" ... ({ops} operations)"
     return text
+
+
+def _sign_inside(expr: sp.Expr) -> sp.Expr:
+    """A negative multiple of a sum with the sign taken into the sum when that writes no more
+    minus signs: -(-176 + 225*cos(q)^2)/100 reads (176 - 225*cos(q)^2)/100, -2*(x - 1) reads
+    2*(1 - x); -(3 + x) stays. The value is the same (printed unevaluated)."""
+    if not expr.is_Mul:
+        return expr
+    c, rest = expr.as_coeff_Mul()
+    if not (c.is_negative and rest.is_Add):
+        return expr
+    terms = rest.args
+    flipped = [-t for t in terms]
+    if sum(t.could_extract_minus_sign() for t in flipped) > sum(t.could_extract_minus_sign() for t in terms):
+        return expr
+    return sp.Mul(-c, sp.Add(*flipped), evaluate=False) if c != -1 else sp.Add(*flipped)
 
 
 def show_number(value: sp.Expr | float, digits: int = 6, mark_inexact: bool = False) -> str:

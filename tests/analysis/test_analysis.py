@@ -198,6 +198,40 @@ expect minimum_phase at low
     assert raw.analysis["relative_degree"] == {"level2": 2, "level1": 1}
 
 
+def test_a_failed_regular_claim_says_whether_the_model_or_the_decoupling_matrix_is_singular() -> None:
+    """Two tanks with an uncertain flow split: det A = (g1 + g2 - 1)/(a1 a2) (by hand, and
+    sympy's det below), zero on the line g1 + g2 = 1 inside the parameter box, so the vector
+    relative degree is not defined there. A rate whose denominator vanishes in the envelope
+    is another failure: the model itself is undefined there. Invented demo data."""
+    tanks = b"""plant tanks
+param g1 = 0.7 in 0.3 .. 0.9
+param g2 = 0.6 in 0.2 .. 0.8
+state h1 in 0.1 .. 1
+state h2 in 0.1 .. 1
+input q1 in 0 .. 1
+input q2 in 0 .. 1
+rate h1 = -sqrt(h1) + g1*q1 + (1 - g2)*q2
+rate h2 = -sqrt(h2) + g2*q2 + (1 - g1)*q1
+output y1 = h1
+output y2 = h2
+expect regular
+"""
+    g1, g2 = sp.symbols("g1 g2")
+    assert sp.factor(sp.Matrix([[g1, 1 - g2], [1 - g1, g2]]).det()) == g1 + g2 - 1
+    (claim,) = [f for f in analyse_bytes(tanks).findings if f.rule == "expectation-failed"]
+    assert "the vector relative degree is not well defined everywhere in the envelope" in claim.message
+    broken = b"""plant broken
+state x in -1 .. 1
+input u in -1 .. 1
+rate x = -x + u + 1/x
+output y = x
+expect regular
+"""
+    (claim,) = [f for f in analyse_bytes(broken).findings if f.rule == "expectation-failed"]
+    assert "the model itself is undefined somewhere in the envelope" in claim.message
+    assert claim.message.endswith("see the singular-model finding)")
+
+
 def test_an_output_the_inputs_never_reach_fails_each_claim_once() -> None:
     """y = x1 of two decoupled first-order lags, the input on the second: the transfer
     function from u to y is zero (scipy.signal.ss2tf, below), so the output has no relative

@@ -676,9 +676,14 @@ def _regular_claim(a: Analysis, c: ClaimDecl) -> list[tuple[str | None, str]]:
             out.append((None, f"the decoupling matrix is singular everywhere ({_rank_for(a)}; see the "
                               "decoupling-singular finding)"))
             return out  # every point fails for that one reason: said once, not once more per point
+        elif env.regular is False and env.certified == "model domain":
+            where = show_point(env.witness or {})
+            out.append((None, "the model itself is undefined somewhere in the envelope ("
+                              + (f"at {where}; " if where else "") + "see the singular-model finding)"))
         elif env.regular is False:
             where = env.where or show_point(env.witness or {})
-            out.append((None, "the relative degree is not well defined everywhere in the envelope"
+            vector = "vector " if a.kernel.plant.p > 1 else ""
+            out.append((None, f"the {vector}relative degree is not well defined everywhere in the envelope"
                               + (f" (singular at {where})" if where else "")))
     for pa in _points_for(a, c):
         if pa.structure is None or not pa.structure.well_defined:

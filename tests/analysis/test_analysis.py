@@ -140,13 +140,8 @@ def _claims_failed_once(text: bytes) -> tuple[object, list]:
     return raw, failed
 
 
-def test_a_decoupling_matrix_singular_everywhere_fails_each_claim_once() -> None:
-    """Two outputs of a plant with one input (a second sensor added to a SISO loop): the
-    decoupling matrix is 2 x 1, so its rank is at most 1 < 2 for every state (numpy's
-    matrix_rank of A = [[L_g L_f y1], [L_g y2]] at the points, below, is 1). Every point
-    fails `expect regular` and `expect minimum_phase` for that one reason: each claim is
-    reported once, without a copy per point. The tank is invented demo data."""
-    text = b"""plant tank2
+#: Two sensors on a one-pump tank pair (invented demo data).
+TWO_SENSOR_TANK = b"""plant tank2
 state h1 in 0.1 .. 2
 state h2 in 0.1 .. 2
 input q in 0 .. 1
@@ -155,7 +150,16 @@ rate h2 = h1 - h2
 output level2 = h2
 output level1 = h1
 point low: h1 = 0.5, h2 = 0.5, q = 0.5
-point high: h1 = 1, h2 = 1, q = 1
+"""
+
+
+def test_a_decoupling_matrix_singular_everywhere_fails_each_claim_once() -> None:
+    """Two outputs of a plant with one input (a second sensor added to a SISO loop): the
+    decoupling matrix is 2 x 1, so its rank is at most 1 < 2 for every state (numpy's
+    matrix_rank of A = [[L_g L_f y1], [L_g y2]] at the points, below, is 1). Every point
+    fails `expect regular` and `expect minimum_phase` for that one reason: each claim is
+    reported once, without a copy per point. The tank is invented demo data."""
+    text = TWO_SENSOR_TANK + b"""point high: h1 = 1, h2 = 1, q = 1
 expect regular
 expect minimum_phase
 """
@@ -179,17 +183,7 @@ def test_a_claim_at_a_point_names_the_singular_decoupling_matrix() -> None:
     says why the zero dynamics are not defined there, the decoupling matrix (rank 1 for 2
     outputs, 1 input, as numpy's matrix_rank in the test above), not an ill-defined
     relative degree: each output's own relative degree is well defined (2 and 1)."""
-    text = b"""plant tank2
-state h1 in 0.1 .. 2
-state h2 in 0.1 .. 2
-input q in 0 .. 1
-rate h1 = q - h1
-rate h2 = h1 - h2
-output level2 = h2
-output level1 = h1
-point low: h1 = 0.5, h2 = 0.5, q = 0.5
-expect minimum_phase at low
-"""
+    text = TWO_SENSOR_TANK + b"expect minimum_phase at low\n"
     raw = analyse_bytes(text)
     (claim,) = [f for f in raw.findings if f.rule == "expectation-failed"]
     assert not claim.undecided

@@ -27,7 +27,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Sequence
+from typing import Any, Callable, Sequence
 
 from lark import Token, Tree
 
@@ -176,31 +176,25 @@ class _ExpressionReader:
     def _pos(self, node: Tree) -> int:
         return self._done(node.children[0])
 
+    # a chain a + b - c (or a * b / c) is one sum (product): its left operand is one already
     def _add(self, node: Tree) -> "_Terms":
-        terms, right = self._chain(node, _Terms)
-        terms.append(right)
-        return terms
+        return self._extend(node, _Terms, lambda right: right)
 
     def _sub(self, node: Tree) -> "_Terms":
-        terms, right = self._chain(node, _Terms)
-        terms.append(_product(self.graph, [self.graph.const(-1), right]))
-        return terms
+        return self._extend(node, _Terms, lambda right: _product(self.graph, [self.graph.const(-1), right]))
 
     def _mul(self, node: Tree) -> "_Factors":
-        factors, right = self._chain(node, _Factors)
-        factors.append(right)
-        return factors
+        return self._extend(node, _Factors, lambda right: right)
 
     def _div(self, node: Tree) -> "_Factors":
-        factors, right = self._chain(node, _Factors)
-        factors.append(_inverse(self.graph, right))
-        return factors
+        return self._extend(node, _Factors, lambda right: _inverse(self.graph, right))
 
-    def _chain(self, node: Tree, kind: type) -> tuple:
+    def _extend(self, node: Tree, kind: type, part: Callable[[int], int]) -> list[int]:
         left, right = node.children
         value = self.values[id(left)]
         chain = value if isinstance(value, kind) else kind([self._done(left)])
-        return chain, self._done(right)
+        chain.append(part(self._done(right)))
+        return chain
 
     def _pow(self, node: Tree) -> int:
         base, exponent = (self._done(c) for c in node.children)
@@ -289,30 +283,24 @@ class _Split:
         self.memo: dict[int, dict[int | None, int]] = {}
 
     def parts(self, root: int) -> dict[int | None, int]:
-        stack = [root]
-        while stack:
-            node = stack[-1]
-            if node in self.memo:
-                stack.pop()
-                continue
-            op, args, data = self.graph.nodes[node]
-            if not self.graph.variables_of(node) & self.inputs:
-                self.memo[node] = {None: node}
-                stack.pop()
-                continue
-            if op == "var":
-                self.memo[node] = {data: self.graph.const(1)}
-                stack.pop()
-                continue
-            if op not in ("add", "mul"):
-                raise Refused("a rate is not affine in the inputs as written")
-            pending = [a for a in args if a not in self.memo]
-            if pending:
-                stack.extend(pending)
-                continue
-            stack.pop()
-            self.memo[node] = self._add(args) if op == "add" else self._mul(args)
-        return self.memo[root]
+        return _bottom_up(self.graph, root, self.memo, self._leaf, self._build)
+
+    def _leaf(self, node: int) -> bool:
+        """Settle a node without its arguments when it can be: free of the inputs, or an input."""
+        op, _, data = self.graph.nodes[node]
+        if not self.graph.variables_of(node) & self.inputs:
+            self.memo[node] = {None: node}
+        elif op == "var":
+            self.memo[node] = {data: self.graph.const(1)}
+        elif op not in ("add", "mul"):
+            raise Refused("a rate is not affine in the inputs as written")
+        else:
+            return False
+        return True
+
+    def _build(self, node: int) -> dict[int | None, int]:
+        op, args, _ = self.graph.nodes[node]
+        return self._add(args) if op == "add" else self._mul(args)
 
     def _add(self, args: tuple[int, ...]) -> dict[int | None, int]:
         collected: dict[int | None, list[int]] = {}
@@ -337,25 +325,34 @@ class _Copy:
         self.memo: dict[int, int] = {}
 
     def node(self, root: int) -> int:
-        stack = [root]
-        while stack:
-            node = stack[-1]
-            if node in self.memo:
-                stack.pop()
-                continue
-            op, args, data = self.source.nodes[node]
-            pending = [a for a in args if a not in self.memo]
-            if pending:
-                stack.extend(pending)
-                continue
+        return _bottom_up(self.source, root, self.memo, lambda node: False, self._build)
+
+    def _build(self, node: int) -> int:
+        op, args, data = self.source.nodes[node]
+        if op == "var":
+            if data >= len(self.target.variables):
+                raise Refused("an input where none may be")
+            return self.target.var_ids[data]
+        return self.target.node(op, tuple(self.memo[a] for a in args), data)
+
+
+def _bottom_up(graph: Graph, root: int, memo: dict, leaf: Callable[[int], bool], build: Callable[[int], object]) -> Any:
+    """``memo[root]``, every node after its arguments and once, without recursion (deep
+    graphs cannot exhaust the stack): ``leaf(node)`` may settle a node (filling ``memo``)
+    without visiting its arguments; otherwise ``build(node)`` makes it from theirs."""
+    stack = [root]
+    while stack:
+        node = stack[-1]
+        if node in memo or leaf(node):
             stack.pop()
-            if op == "var":
-                if data >= len(self.target.variables):
-                    raise Refused("an input where none may be")
-                self.memo[node] = self.target.var_ids[data]
-            else:
-                self.memo[node] = self.target.node(op, tuple(self.memo[a] for a in args), data)
-        return self.memo[root]
+            continue
+        pending = [a for a in graph.nodes[node][1] if a not in memo]
+        if pending:
+            stack.extend(pending)
+            continue
+        stack.pop()
+        memo[node] = build(node)
+    return memo[root]
 
 
 __all__ = ["Refused", "WrittenPlant", "read_plant"]

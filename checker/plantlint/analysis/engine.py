@@ -124,14 +124,12 @@ def nowhere_defined(kernel: Kernel) -> list[Finding] | Unevaluable:
 
     out = []
     unknown: list[tuple[str, dict[str, float]]] = []
-    everything: list[sp.Expr] = []
     for anchor, label, exprs in rates_and_outputs(plant):
         exprs = [e for e in exprs if e != 0]
         try:
             guard = Program(exprs, symbols) if exprs else None
         except UnsupportedExpression:
             continue
-        everything += exprs
         if guard is None or random_samples(symbols, boxes, kernel.seed, guard=guard):
             continue
         at = unsettled(guard)
@@ -151,10 +149,7 @@ def nowhere_defined(kernel: Kernel) -> list[Finding] | Unevaluable:
             f"{listed([lb for lb, _ in unknown])} {'has' if len(unknown) == 1 else 'have'} no finite value at any of the "
             f"{drawn} points drawn from the ranges, and at {show_point(at)} the balls cannot tell whether it is "
             "undefined there, too large for them (exp, cosh or sinh of a huge argument) or on the edge of a domain")
-    try:
-        together = Program(everything, symbols) if everything else None
-    except UnsupportedExpression:
-        together = None
+    together = kernel.guard()  # what the samples are screened by
     at = unsettled(together) if together is not None else None
     if at is not None:
         return Unevaluable(

@@ -332,11 +332,15 @@ class Program:
         Constants are computed at ``prec`` on every run, so one program serves
         any precision.
         """
+        regs = self._registers(values, prec)
+        return [regs[o] for o in self.outputs]
+
+    def _registers(self, values: Sequence[arb], prec: int) -> list[arb]:
+        """Every register of the program (the outputs among them), compiled to steps once."""
         steps = self._steps
         if steps is None:
             steps = self._steps = [_step(name, args, data) for name, args, data in self._code]
-        regs = run_steps(steps, values, prec)
-        return [regs[o] for o in self.outputs]
+        return run_steps(steps, values, prec)
 
     def at(self, point: Mapping[sp.Symbol, Fraction], prec: int = 128) -> list[arb]:
         """Every output at an exact rational point (a value per symbol), as balls of
@@ -348,13 +352,10 @@ class Program:
         finite ball (defined); True when some step leaves its function's domain for
         certain (a division by an exact zero, the log of a number below zero, asin of a
         number above 1, ...); False when a value is not finite for another reason: it is
-        too large for the balls (cosh of 10^298 is a real number, but arb's exp gives up
-        beyond about 2^64) or its ball straddles the edge of a domain. Only True
-        justifies saying that a model is undefined there."""
-        steps = self._steps
-        if steps is None:
-            steps = self._steps = [_step(name, args, data) for name, args, data in self._code]
-        regs = run_steps(steps, [rational_ball(point[s], prec) for s in self.symbols], prec)
+        too large for the balls (cosh of 10^298 is a real number, but at 128 bits arb's exp
+        gives up on arguments between 2^200 and 2^256, as measured) or its ball straddles the
+        edge of a domain. Only True justifies saying that a model is undefined there."""
+        regs = self._registers([rational_ball(point[s], prec) for s in self.symbols], prec)
         if all(regs[o].is_finite() for o in self.outputs):
             return None
         for (name, args, data), value in zip(self._code, regs):
@@ -368,7 +369,7 @@ class Program:
 def _leaves_domain(name: str, args: list[arb], data: object) -> bool:
     """Whether one step's finite arguments lie outside its function's real domain for
     certain (the balls prove it). Fractional powers and powers with a variable exponent
-    need a positive base, as everywhere in the project."""
+    need a positive base, as everywhere in the project (a square root is a power 1/2 here)."""
     def exact_zero(x: arb) -> bool:
         return bool(x.is_exact() and x.is_zero())
 
@@ -386,8 +387,6 @@ def _leaves_domain(name: str, args: list[arb], data: object) -> bool:
         return bool(args[0] > 1) or bool(args[0] < -1)
     if name == "log":
         return bool(args[0] < 0) or exact_zero(args[0])
-    if name == "sqrt":
-        return bool(args[0] < 0)
     return False
 
 

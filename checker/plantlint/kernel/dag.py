@@ -79,6 +79,21 @@ class Graph:
             return self.const(1)
         return factors[0] if len(factors) == 1 else self.node("mul", tuple(factors))
 
+    def power(self, base: int, q: Fraction) -> int:
+        """base**q for a rational q: 1, base, an integer power, a square root's power, or
+        ``powq``; a negative exponent as the inverse of the positive power."""
+        if q == 0:
+            return self.const(1)
+        k = q.numerator
+        if q.denominator == 1:
+            pos = base if abs(k) == 1 else self.node("powi", (base,), abs(k))
+        elif q.denominator == 2:
+            root = self.node("sqrt", (base,))
+            pos = root if abs(k) == 1 else self.node("powi", (root,), abs(k))
+        else:
+            return self.node("powq", (base,), q)
+        return pos if k > 0 else self.node("inv", (pos,))
+
     def from_sympy(self, expr: Any) -> int:
         """The node of a sympy expression over ``self.variables`` (symbols by name)."""
         cached = self._from_sympy.get(expr)
@@ -116,20 +131,8 @@ class Graph:
         if e.is_Pow:
             b, x = e.args
             base = self.from_sympy(b)
-            if x.is_Integer:
-                k = int(x)
-                if k == 0:
-                    return self.const(1)
-                pos = base if abs(k) == 1 else self.node("powi", (base,), abs(k))
-                return pos if k > 0 else self.node("inv", (pos,))
             if x.is_Rational:
-                q = Fraction(int(x.p), int(x.q))
-                if q.denominator == 2:
-                    root = self.node("sqrt", (base,))
-                    k = q.numerator
-                    pos = root if abs(k) == 1 else self.node("powi", (root,), abs(k))
-                    return pos if k > 0 else self.node("inv", (pos,))
-                return self.node("powq", (base,), q)
+                return self.power(base, Fraction(int(x.p), int(x.q)))
             return self.node("powx", (base, self.from_sympy(x)))
         name = type(e).__name__
         if name in UNARY:

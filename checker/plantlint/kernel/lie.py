@@ -125,6 +125,7 @@ class Kernel:
         self.uncertain: list[sp.Expr] = []  # expressions taken as zero without proof
         self._structural: "StructuralPlant | None" = None
         self._towers: "Towers | None | bool" = False
+        self._guard: "Program | None | bool" = False
 
     # -- the numeric route: dependency graph and Taylor-mode towers ----------
     def structural(self) -> "StructuralPlant":
@@ -437,15 +438,20 @@ class Kernel:
         if self._samples is not None:
             return self._samples
         boxes = {**self.plant.state_box, **self.plant.param_box}
-        guard_exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0] + list(self.h)
-        guard: Program | None
-        try:
-            guard = Program(guard_exprs, self.free_symbols())
-        except UnsupportedExpression:
-            guard = None
-        out = random_samples(self.free_symbols(), boxes, self.seed, guard=guard)
+        out = random_samples(self.free_symbols(), boxes, self.seed, guard=self.guard())
         self._samples = out
         return out
+
+    def guard(self) -> Program | None:
+        """f, g and h in one ball program: the samples skip points where it is not finite
+        (None when the balls cannot hold an expression)."""
+        if self._guard is False:
+            exprs = [e for e in self.f if e != 0] + [e for col in self.g for e in col if e != 0] + list(self.h)
+            try:
+                self._guard = Program(exprs, self.free_symbols())
+            except UnsupportedExpression:
+                self._guard = None
+        return self._guard  # type: ignore[return-value]
 
     # -- zero tests -------------------------------------------------------------
     def is_zero(self, expr: sp.Expr) -> ZeroDecision:

@@ -258,19 +258,7 @@ def _power(graph: Graph, base: int, exponent: int) -> int:
         if bits > 1 and bits * abs(q.numerator) > MAX_POWER_BITS:
             raise Refused("a power of a number too large to compute exactly")
         return graph.const(b ** q.numerator)
-    if q == 0:
-        return graph.const(1)
-    if q == 1:
-        return base
-    k = q.numerator
-    if q.denominator == 1:
-        pos = base if abs(k) == 1 else graph.node("powi", (base,), abs(k))
-    elif q.denominator == 2:
-        root = graph.node("sqrt", (base,))
-        pos = root if abs(k) == 1 else graph.node("powi", (root,), abs(k))
-    else:
-        return graph.node("powq", (base,), q)
-    return pos if k > 0 else graph.node("inv", (pos,))
+    return graph.power(base, q)
 
 
 # -- the split f + g u ----------------------------------------------------------------------

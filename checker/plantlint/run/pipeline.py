@@ -169,10 +169,14 @@ def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None,
     def derivation(analysis: Analysis) -> dict[str, Any] | None:
         return _plain(explain_json(analysis, memo)) if explain else None
 
+    def read_only() -> RawResult:
+        """The model read, no stage completed: every claim still to be decided."""
+        return RawResult(plant=model.name, findings=[locate(f, model.spans) for f in findings],
+                         waivers=list(model.waivers),
+                         pending=[locate(f, model.spans) for f in _claims_before_analysis(model)])
+
     if progress is not None:
-        progress("model", RawResult(plant=model.name, findings=[locate(f, model.spans) for f in findings],
-                                    waivers=list(model.waivers),
-                                    pending=[locate(f, model.spans) for f in _claims_before_analysis(model)]))
+        progress("model", read_only())
 
     def stage(name: str, analysis: Analysis) -> None:
         if progress is None:
@@ -189,12 +193,9 @@ def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None,
     kernel = Kernel(plant)
     undefined = nowhere_defined(kernel)
     if isinstance(undefined, Unevaluable):  # no finite value anywhere, and nothing proven wrong
-        start = RawResult(plant=model.name, findings=[locate(f, model.spans) for f in findings],
-                          waivers=list(model.waivers),
-                          pending=[locate(f, model.spans) for f in _claims_before_analysis(model)])
         from plantlint.analysis.stages import STAGES
 
-        return stopped(start, "values", [], STAGES, 0.0, undefined.detail)
+        return stopped(read_only(), "values", [], STAGES, 0.0, undefined.detail)
     if undefined:  # like a rate that divides by zero for every state: nothing to analyse
         result.findings = [locate(f, model.spans) for f in [*findings, *undefined]]
         return result

@@ -44,6 +44,11 @@ BUDGETS = (
     "overrides both, `timeout-interactive` and `timeout-ci` change them."
 )
 
+#: Report formats that show findings only, never the analysis: a model the light route
+#: proves clean is answered in them without sympy (the json report shows the analysis, so
+#: it always runs it; see DEVELOPERS.md, "The light route").
+LIGHT_FORMATS = frozenset({"text", "lines", "markdown", "sarif"})
+
 
 def _paragraphs(*texts: str) -> str:
     """Help text kept in paragraphs (argparse would run them together)."""
@@ -301,7 +306,8 @@ def _check(args: argparse.Namespace) -> int:
             if shard is not None:
                 targets = shard.pick(targets)
             files = check_targets(targets, config, defaults, jobs=effective_jobs(config), use_cache=use_cache,
-                                  cache_dir=cache_dir, show_progress=sys.stderr.isatty())
+                                  cache_dir=cache_dir, show_progress=sys.stderr.isatty(),
+                                  light=args.format in LIGHT_FORMATS)
             report = Report(files=files, tool_version=__version__, fail_on=config.fail_on)
     except UsageError as exc:
         return _fail(str(exc))

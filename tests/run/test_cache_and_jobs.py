@@ -156,16 +156,18 @@ def _imported(stderr: str) -> set[str]:
 
 def test_a_file_that_does_not_parse_is_reported_without_sympy(tmp_path: Path) -> None:
     """Nothing of it needs a symbolic step: a typo in a pre-commit run is answered without
-    sympy's import (about half a second). The same run on a model that parses does import
-    it, in its worker, which shows that the probe sees the workers' imports."""
+    sympy's import (about half a second). The same model fixed, in a report that shows its
+    analysis (json), does import it, in its worker, which shows that the probe sees the
+    workers' imports (in the lines format the light route passes it without sympy:
+    tests/analysis/test_light.py)."""
     bad = tmp_path / "typo.plant"
     bad.write_text("plant typo\nstate x in -1 .. 1\ninput u\nrate x = x +* u\n")
     good = tmp_path / "good.plant"
     good.write_text("plant good\nstate x in -1 .. 1\ninput u\nrate x = -x + u\noutput y = x\n")
     runs = {}
-    for model in (bad, good):
+    for model, form in ((bad, "lines"), (good, "json")):
         out = subprocess.run([sys.executable, "-X", "importtime", "-m", "plantlint", "check", "--no-cache",
-                              "--format", "lines", str(model)], cwd=tmp_path, capture_output=True, text=True,
+                              "--format", form, str(model)], cwd=tmp_path, capture_output=True, text=True,
                              timeout=300, env=_env())
         runs[model.stem] = out
     typo, fine = runs["typo"], runs["good"]

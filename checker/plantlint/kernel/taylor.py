@@ -668,10 +668,11 @@ class Towers:
         return series[n + m * n + i]
 
     # -- questions -------------------------------------------------------------------------
-    def values(self, point: Sequence[Any], field: Any, outputs: bool = True
+    def values(self, point: Sequence[Any], field: Any, outputs: bool = True, start: Sequence[Any] | None = None
                ) -> tuple[list[Any], list[list[Any]], list[Any]]:
-        """f(x0), g_j(x0) (columns), h(x0) (empty without ``outputs``)."""
-        s = self.flow(point, 0, field, outputs=outputs)
+        """f(x0), g_j(x0) (columns), h(x0) (empty without ``outputs``); ``start`` gives the
+        starting numbers directly (balls over a box: enclosures over the box)."""
+        s = self.flow(point, 0, field, outputs=outputs, start=start)
         n, m = self.n, self.m
         return ([s[i][0] for i in range(n)], [[s[n + j * n + i][0] for i in range(n)] for j in range(m)],
                 [s[n + m * n + i][0] for i in range(self.p)] if outputs else [])
@@ -691,10 +692,10 @@ class Towers:
         s = self.flow(point, order, field)
         return [[c * factorial(k) for k, c in enumerate(self._out(s, "h", i))] for i in range(self.p)]
 
-    def directional(self, point: Sequence[Any], order: int, field: Any, directions: Sequence[Sequence[Any]]
-                    ) -> tuple[list[list[Any]], list[list[list[Any]]]]:
+    def directional(self, point: Sequence[Any], order: int, field: Any, directions: Sequence[Sequence[Any]],
+                    start: Sequence[Any] | None = None) -> tuple[list[list[Any]], list[list[list[Any]]]]:
         """(L_f^k h_i(x0), [dL_f^k h_i(x0) . v_a for every direction a]) for k <= order."""
-        s = self.flow(point, order, field, directions)
+        s = self.flow(point, order, field, directions, start=start)
         values, tangents = [], []
         for i in range(self.p):
             ser = self._out(s, "h", i)
@@ -703,10 +704,12 @@ class Towers:
                              for k, c in enumerate(ser)])
         return values, tangents
 
-    def lglf(self, point: Sequence[Any], order: int, field: Any) -> list[list[list[Any]]]:
-        """[i][k][j] = L_gj L_f^k h_i(x0) for k <= order."""
-        _, G, _ = self.values(point, field, outputs=False)
-        _, tangents = self.directional(point, order, field, G)
+    def lglf(self, point: Sequence[Any], order: int, field: Any, start: Sequence[Any] | None = None
+             ) -> list[list[list[Any]]]:
+        """[i][k][j] = L_gj L_f^k h_i(x0) for k <= order. With ``start`` (balls over a box)
+        each is an enclosure over the box: the directions g_j are balls over it too."""
+        _, G, _ = self.values(point, field, outputs=False, start=start)
+        _, tangents = self.directional(point, order, field, G, start=start)
         return tangents
 
     def gradients(self, point: Sequence[Any], order: int, field: Any
@@ -731,7 +734,11 @@ class Towers:
                 if i < n:
                     x = Jet(field.number(v), [field.number(unit[a][i]) for a in range(n)])
                     gj = at_jets[n + j * n + i][0]
-                    start.append(Dual(x, gj if isinstance(gj, Jet) else Jet(gj, [field.const(Fraction(0))] * n)))
+                    if isinstance(gj, Dual):  # one state: the flow used dual numbers, not jets
+                        gj = Jet(gj.v, [gj.d])
+                    elif not isinstance(gj, Jet):
+                        gj = Jet(gj, [field.const(Fraction(0))] * n)
+                    start.append(Dual(x, gj))
                 else:
                     start.append(field.number(v))
             s = self.flow(point, order, field, start=start)

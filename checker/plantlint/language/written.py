@@ -61,6 +61,20 @@ def read_plant(statements: Sequence[Statement]) -> WrittenPlant:
     return _Reader(statements).plant()
 
 
+def read_with_values(statements: Sequence[Statement]
+                     ) -> tuple[WrittenPlant, Callable[[Expression], Fraction | None]]:
+    """:func:`read_plant`, and a reader of other expressions of the same model (a point's
+    values, a range's bounds, a claim's number) with the constants and definitions put in:
+    their exact rational value, or None when it is not one (a state, pi, sin(1/3) in it)."""
+    reader = _Reader(statements)
+    plant = reader.plant()
+
+    def value(expr: Expression) -> Fraction | None:
+        return _rational(reader.graph, reader._value(expr))
+
+    return plant, value
+
+
 class _Reader:
     def __init__(self, statements: Sequence[Statement]):
         self.by_kind: dict[str, list[Statement]] = {}
@@ -343,4 +357,4 @@ def _bottom_up(graph: Graph, root: int, memo: dict, leaf: Callable[[int], bool],
     return memo[root]
 
 
-__all__ = ["Refused", "WrittenPlant", "read_plant"]
+__all__ = ["Refused", "WrittenPlant", "read_plant", "read_with_values"]

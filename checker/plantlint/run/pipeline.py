@@ -53,6 +53,9 @@ class RawResult:
     #: a step of the analysis stopped at its own wall-clock bound (an envelope proof's
     #: seconds, a ``bounded`` step): the result depends on the machine, so it is not cached
     timed_out_step: bool = False
+    #: ``full``: the analysis ran (``analysis`` holds it when the model reached it);
+    #: ``light``: the light route proved the model clean without it (no ``analysis`` to show)
+    route: str = "full"
 
     def to_data(self) -> dict[str, Any]:
         return {
@@ -65,6 +68,7 @@ class RawResult:
             "stop": self.stop.to_data() if self.stop is not None else None,
             "explain": self.explain,
             "timed_out_step": self.timed_out_step,
+            "route": self.route,
         }
 
     @classmethod
@@ -79,6 +83,7 @@ class RawResult:
             stop=Stop.from_data(d["stop"]) if d.get("stop") else None,
             explain=d.get("explain"),
             timed_out_step=bool(d.get("timed_out_step", False)),
+            route=str(d.get("route", "full")),
         )
 
 
@@ -207,6 +212,21 @@ def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None,
     return result
 
 
+def light_result(data: bytes, settings: AnalysisSettings | Config = AnalysisSettings()) -> RawResult | None:
+    """The result of a model that the light route proves clean (no findings, every claim
+    holding, every stage's question settled), or None: then :func:`analyse_bytes` must
+    answer. It imports no sympy (:mod:`plantlint.analysis.light`)."""
+    if isinstance(settings, Config):
+        settings = settings.analysis
+    from plantlint.analysis.light import light_check
+    from plantlint.analysis.stages import STAGES
+
+    passed = light_check(data, settings)
+    if passed is None:
+        return None
+    return RawResult(plant=passed.plant, stages=list(STAGES), route="light")
+
+
 def _plain(data: dict[str, Any]) -> dict[str, Any]:
     """JSON-ready data (anything else shown as text), as the cache and the reports hold it."""
     return json.loads(json.dumps(data, default=str))
@@ -245,7 +265,7 @@ def _judged(raw: RawResult) -> Callable[[str], bool]:
 
     catalogue = load_catalogue()
     rules = {f.rule for f in raw.findings}
-    complete = (raw.analysis is not None and getattr(raw, "stop", None) is None
+    complete = ((raw.analysis is not None or raw.route == "light") and getattr(raw, "stop", None) is None
                 and not rules & (BLOCKING | {"analysis-budget", "analysis-incomplete"}))
     return lambda rule: complete and rule in catalogue
 
@@ -265,7 +285,7 @@ def finish(path: str, raw: RawResult, source: str | None, config: Config, defaul
 
 def not_analysed(raw: RawResult) -> bool:
     """The model's errors kept the analysis from running (not a budget or crash stop)."""
-    return raw.analysis is None and raw.stop is None
+    return raw.analysis is None and raw.stop is None and raw.route != "light"
 
 
 def fails_the_run(f: Finding, fail_on: Severity) -> bool:

@@ -664,11 +664,12 @@ def check_targets(
     use_cache: bool,
     cache_dir: Path | None,
     show_progress: bool,
+    light: bool = False,
 ) -> list[FileReport]:
-    """Reports for every target, in the order given."""
+    """Reports for every target, in the order given (``light``: see :func:`raw_results`)."""
     sources = [read_source(t) for t in targets]
     raws = raw_results(sources, config, jobs=jobs, use_cache=use_cache, cache_dir=cache_dir,
-                       show_progress=show_progress)
+                       show_progress=show_progress, light=light)
     return [finish(src.display, raw, source_text(src.data), config, defaults) for src, raw in zip(sources, raws)]
 
 
@@ -681,10 +682,17 @@ def raw_results(
     cache_dir: Path | None,
     show_progress: bool,
     explain: bool = False,
+    light: bool = False,
 ) -> list[RawResult]:
     """Raw results (before policy) for every source, from the cache where possible
-    (results with the explain derivation are cached apart from those without)."""
+    (results with the explain derivation are cached apart from those without).
+
+    With ``light`` (a report that shows no analysis: the text, lines, markdown and SARIF
+    formats of ``check``) a model the light route proves clean is answered without the
+    analysis and without sympy; its result is cached apart, so a report that shows the
+    analysis never gets it."""
     cache = Cache(cache_dir if use_cache else None, config.analysis_key() + (" explain" if explain else ""))
+    light_cache = Cache(cache_dir if use_cache and light else None, config.analysis_key() + " light")
     raws: list[RawResult | None] = []
     keys: list[str | None] = []
     for src in sources:
@@ -694,7 +702,13 @@ def raw_results(
             continue
         key = cache.key(src.data)
         keys.append(key)
-        raws.append(cache.get(key))
+        raws.append(cache.get(key) or (light_cache.get(light_cache.key(src.data)) if light else None))
+    if light:
+        for i, raw in enumerate(raws):
+            if raw is None and sources[i].data is not None:
+                raws[i] = _light(sources[i].data or b"", config)
+                if raws[i] is not None:
+                    light_cache.put(light_cache.key(sources[i].data or b""), raws[i])  # type: ignore[arg-type]
     todo = [i for i, r in enumerate(raws) if r is None]
     if todo:
         progress = _Progress(len(todo)) if show_progress and len(todo) > 3 else None
@@ -709,6 +723,22 @@ def raw_results(
             if keys[i] is not None and cacheable(raw):
                 cache.put(keys[i] or "", raw)
     return [r or RawResult() for r in raws]
+
+
+#: Wall-clock bound of the light route on one model, in the parent process. The route
+#: bounds its own envelope proof (``analysis.light.MAX_SECONDS``); this outer bound only keeps
+#: one pathological evaluation from holding the run up: the full analysis, in a worker with
+#: the model's budget, then answers the model.
+LIGHT_SECONDS = 2.0
+
+
+def _light(data: bytes, config: Config) -> RawResult | None:
+    """The light route's answer for one model, or None (the worker's analysis answers)."""
+    from plantlint.core import deadline
+    from plantlint.run.pipeline import light_result
+
+    raw = deadline.bounded(LIGHT_SECONDS, lambda: light_result(data, config.analysis))
+    return None if raw is deadline.LATE else raw  # type: ignore[return-value]
 
 
 def cacheable(raw: RawResult) -> bool:

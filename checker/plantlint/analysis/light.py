@@ -1,0 +1,429 @@
+"""The light route: a clean model passed without sympy, or handed to the full analysis.
+
+A pre-commit hook mostly sees models that are fine, and a check of one of them paid the
+import of sympy (0.2-0.4 s on the 2-core host) for an answer of one line. This route
+answers such a model from the parse tree, the expression graph
+(:mod:`plantlint.language.written`) and the Taylor-mode towers (:mod:`plantlint.kernel.taylor`)
+alone, and only when it *proves* that the full analysis would find nothing: every rule
+silent and every claim holding. Anything else (a finding, a step it cannot prove, a model
+outside the class below) returns ``None``, and the caller runs the full analysis, which
+then decides and prints. So the light route can only ever say "no findings"; every
+message, and every report that shows the analysis (JSON, ``explain``, ``--since``), comes
+from the full route.
+
+The class it answers (each condition is checked; none is assumed):
+
+- the file parses, its names resolve, its units agree, and the graph reader takes it
+  (smooth functions, input-affine as written, outputs free of the inputs);
+- no waivers, no parameter with a range, no point tolerance, only the claims
+  ``relative_degree``, ``regular`` and ``state_linearizable``; every constant and parameter
+  an exact rational number; every state ranged by rational bounds lo < hi; every constant,
+  parameter, definition and input mentioned by a rate, an output, a definition or a value;
+- as many outputs as inputs, with a vector relative degree summing to n (the outputs are
+  linearizing: no zero dynamics, the distributions follow without brackets, Isidori,
+  Nonlinear Control Systems, 3rd ed., sec. 5.2);
+- every point gives every state (and any inputs) as rational numbers, inside the ranges,
+  and is an exact equilibrium, its missing inputs solved exactly and uniquely, inside
+  theirs;
+- at every point the decoupling matrix is proven nonsingular (exact rationals, or balls
+  that exclude 0), with the rows below each relative degree zero by the dependency graph
+  (L_g L_f^k h = 0 identically while no state the output's k-th derivative can read is
+  driven by an input), which also proves the generic relative degrees;
+- over the whole state box the rates, the input columns and the outputs are defined and the
+  decoupling matrix is nonsingular: the towers run in ball arithmetic over sub-boxes
+  (branch and bound, a fixed number of boxes), each box proven or the model handed over.
+
+The equality of this route's answer with the full analysis is held in
+``tests/analysis/test_light.py`` over every model of the repository and a set of mutants.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Any, Sequence
+
+from plantlint.core.settings import AnalysisSettings
+from plantlint.kernel.taylor import Inexact, Towers, Undefined
+
+#: Largest model the light route tries (states): the envelope proof splits boxes in every
+#: state, and larger models are left to the full route with its budget and snapshots.
+MAX_STATES = 16
+#: Sub-boxes and seconds the envelope proof may spend before it hands the model over: the
+#: route is for the quick answer; a model that needs a longer proof goes to the full
+#: analysis, which has the budget, the factorisations and the messages for it. The box
+#: bound is low on purpose: a regularity that takes the mean-value form many boxes to prove
+#: can be one that the full analysis's own proof leaves unproven within its budget (seen
+#: once in 1500 mutants: a range 10^9 wide, proven here in about 300 boxes, "not decided"
+#: there), and a pass in one format must not be "not decided" in another.
+MAX_BOXES = 64
+MAX_SECONDS = 0.3
+#: Claims the light route can show to hold.
+CLAIMS = ("relative_degree", "regular", "state_linearizable")
+
+
+class HandOver(Exception):
+    """The light route does not answer this model; the message says why (for tests and
+    ``tools``; the user never sees it: the full analysis answers instead)."""
+
+
+@dataclass(frozen=True)
+class LightPass:
+    """What the light route proved of a model: its name and relative degrees."""
+
+    plant: str
+    degrees: tuple[int, ...]
+
+
+def light_check(data: bytes, settings: AnalysisSettings = AnalysisSettings()) -> LightPass | None:
+    """A model proven clean without sympy, or None (the full analysis must answer)."""
+    try:
+        return prove_clean(data, settings)
+    except HandOver:
+        return None
+    except (Exception, RecursionError):  # noqa: BLE001 - see below
+        # A value the route cannot take (an overflow, a node the programs do not hold) or a
+        # defect of the route: it runs in the parent process, where an error would end the
+        # whole run, so the model goes to the full analysis, which reports whatever it is
+        # (in its worker, with the crash handling of every analysis). The tests and the
+        # campaigns call prove_clean, which lets such an error through.
+        return None
+
+
+def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings()) -> LightPass:
+    """:func:`light_check`, raising :class:`HandOver` with the reason instead of None."""
+    if settings.point_tolerance != 0:
+        raise HandOver("a point tolerance is configured")
+    statements = _read(data)
+    model = _Model(statements)
+    plant = model.written
+    towers = Towers(plant.states, (), plant.f, plant.g, plant.h, graph=plant.graph)
+    degrees = _structural_degrees(plant)
+    points = [_equilibrium(model, towers, st) for st in model.by_kind.get("point", [])]
+    for name, vector in points:
+        if not _nonsingular(_decoupling(towers, vector, degrees)):
+            raise HandOver(f"the decoupling matrix is not proven nonsingular at point {name}")
+    _envelope(model, towers, degrees)
+    _claims(model, degrees)
+    return LightPass(model.name, tuple(d + 1 for d in degrees))
+
+
+# -- reading ---------------------------------------------------------------------------
+
+def _read(data: bytes) -> list[Any]:
+    """The statements of a file that parses, whose names resolve and whose units agree."""
+    from plantlint.language.names import name_problems
+    from plantlint.language.syntax import decode, parse_text
+    from plantlint.language.units import check_units
+
+    text, problem = decode(data)
+    if problem is not None or text is None:
+        raise HandOver("the file is not read")
+    parsed = parse_text(text)
+    if parsed.findings or name_problems(parsed):
+        raise HandOver("the file does not parse or its names do not resolve")
+    if check_units(parsed.statements):
+        raise HandOver("a unit finding")
+    return list(parsed.statements)
+
+
+class _Model:
+    """The statements sorted by kind, checked against the class the route answers, and the
+    plant read from them into the graph."""
+
+    def __init__(self, statements: list[Any]):
+        from plantlint.language.written import Refused, read_with_values
+
+        self.statements = statements
+        self.name = statements[0].name if statements and statements[0].kind == "plant" else None
+        if self.name is None:
+            raise HandOver("no plant header")
+        self.by_kind: dict[str, list[Any]] = {}
+        for st in statements[1:]:
+            self.by_kind.setdefault(st.kind, []).append(st)
+        unknown = set(self.by_kind) - {"const", "param", "state", "input", "let", "rate", "output", "point", "expect"}
+        if unknown:
+            raise HandOver(f"statements the route does not take: {', '.join(sorted(unknown))}")
+        if any(st.low is not None for st in self.by_kind.get("param", [])):
+            raise HandOver("a parameter with a range")
+        if any(st.tolerance is not None for st in self.by_kind.get("point", [])):
+            raise HandOver("a point with a tolerance")
+        try:
+            self.written, self._value = read_with_values(statements)
+        except Refused as why:
+            raise HandOver(f"the graph reader refused the model: {why}") from None
+        plant = self.written
+        if not 1 <= len(plant.states) <= MAX_STATES:
+            raise HandOver("no states, or more than the route tries")
+        if not plant.outputs or len(plant.outputs) != len(plant.inputs):
+            raise HandOver("not as many outputs as inputs")
+        self._constants_rational()
+        self.boxes = {st.name: self._range(st) for st in self.by_kind["state"]}
+        self.input_boxes = {st.name: self._range(st) for st in self.by_kind.get("input", []) if st.low is not None}
+        if any(b is None for b in self.boxes.values()):
+            raise HandOver("a state without a range")
+        self._all_used()
+
+    def value(self, expr: Any) -> Fraction:
+        """An expression's exact rational value (constants put in), or hand over."""
+        from plantlint.language.written import Refused
+
+        try:
+            number = self._value(expr)
+        except Refused as why:
+            raise HandOver(str(why)) from None
+        if number is None:
+            raise HandOver("a value that is not an exact rational number")
+        return number
+
+    def _constants_rational(self) -> None:
+        for st in [*self.by_kind.get("const", []), *self.by_kind.get("param", [])]:
+            self.value(st.expr)
+
+    def _range(self, st: Any) -> tuple[Fraction, Fraction] | None:
+        if st.low is None or st.high is None:
+            return None
+        lo, hi = self.value(st.low), self.value(st.high)
+        if not lo < hi:
+            raise HandOver(f"the range of {st.name} is not lo < hi")
+        return lo, hi
+
+    def _all_used(self) -> None:
+        """Every constant, parameter, definition and input is mentioned by an expression
+        the model build also marks as used (so its unused-name rule stays silent)."""
+        mentioned: set[str] = set()
+        for st in self.statements:
+            if st.kind in ("const", "param", "let", "rate", "output"):
+                mentioned.update(ref.name for ref in (st.expr.names if st.expr is not None else ()))
+        for kind in ("const", "param", "let", "input"):
+            for st in self.by_kind.get(kind, []):
+                if st.name not in mentioned:
+                    raise HandOver(f"'{st.name}' may be unused")
+
+
+# -- structure -------------------------------------------------------------------------
+
+def _structural_degrees(plant: Any) -> list[int]:
+    """For each output the first k at which a state its k-th Lie derivative along f can read
+    is driven by an input: L_g L_f^j h = 0 identically for j < k, by the dependency graph
+    alone (deps(L_f phi) lies in deps(phi) and the states the rates of deps(phi) read). The
+    row at k is then shown not to vanish at a point (``_decoupling``), which makes k + 1 the
+    relative degree: the rows below it vanish identically, that one does not."""
+    graph, n = plant.graph, len(plant.states)
+    state_of = {graph.var_ids[i]: i for i in range(n)}
+
+    def states(node: int) -> set[int]:
+        return {state_of[v] for v in (graph.var_ids[k] for k in graph.variables_of(node)) if v in state_of}
+
+    reads = [states(node) for node in plant.f]
+    driven = {i for i in range(n) if any(not _zero(graph, col[i]) for col in plant.g)}
+    if not driven:
+        raise HandOver("no input enters a rate")
+    degrees = []
+    for node in plant.h:
+        seen, k = states(node), 0
+        while not seen & driven:
+            grown = seen.union(*(reads[i] for i in seen))
+            if grown == seen or k >= n:
+                raise HandOver("an output the inputs never reach")
+            seen, k = grown, k + 1
+        degrees.append(k)
+    if sum(d + 1 for d in degrees) != n:
+        raise HandOver("the relative degrees (structural) do not sum to n")
+    return degrees
+
+
+def _zero(graph: Any, node: int) -> bool:
+    op, _, value = graph.nodes[node]
+    return op == "const" and value == 0
+
+
+def _decoupling(towers: Any, vector: Sequence[Any], degrees: list[int], field: Any = None,
+                start: Sequence[Any] | None = None) -> list[list[Any]]:
+    """A[i][j] = L_gj L_f^(r_i - 1) h_i at the point (``vector``, exact when it can be) or
+    enclosed over a box (``start``, balls)."""
+    from plantlint.kernel.taylor import ArbField, QField
+
+    order = max(degrees)
+    if field is None:
+        try:
+            rows = towers.lglf(vector, order, QField())
+        except Inexact:
+            rows = towers.lglf(vector, order, ArbField(256))
+    else:
+        rows = towers.lglf(vector, order, field, start=start)
+    return [rows[i][d] for i, d in enumerate(degrees)]
+
+
+def _nonsingular(matrix: list[list[Any]]) -> bool:
+    """The determinant proven non-zero: exactly, or by a ball that excludes 0."""
+    from flint import arb, arb_mat, fmpq, fmpq_mat
+
+    if all(isinstance(x, fmpq) for row in matrix for x in row):
+        return fmpq_mat(matrix).det() != 0
+    balls = [[x if isinstance(x, arb) else arb(x) for x in row] for row in matrix]
+    if not all(x.is_finite() for row in balls for x in row):
+        return False
+    det = arb_mat(balls).det()
+    return det.is_finite() and not det.contains(0)
+
+
+# -- points ----------------------------------------------------------------------------
+
+def _equilibrium(model: _Model, towers: Any, st: Any) -> tuple[str, list[Any]]:
+    """The point's state vector, once it is proven an exact equilibrium inside the ranges
+    (its missing inputs solved uniquely, inside theirs)."""
+    from plantlint.kernel.taylor import QField
+
+    plant = model.written
+    given: dict[str, Fraction] = {}
+    for target, expr in st.assignments:
+        if target.name in given or target.name not in (*plant.states, *plant.inputs):
+            raise HandOver(f"point {st.name} assigns {target.name} twice or assigns no state or input")
+        given[target.name] = model.value(expr)
+    if any(s not in given for s in plant.states):
+        raise HandOver(f"point {st.name} leaves out a state")
+    vector = [given[s] for s in plant.states]
+    for s in plant.states:
+        _inside(given[s], model.boxes[s], st.name)
+    try:
+        f0, G0, _ = towers.values(vector, QField())
+    except (Inexact, Undefined):
+        raise HandOver(f"the rates are not exact rationals at point {st.name}") from None
+    f = [Fraction(int(v.p), int(v.q)) for v in f0]
+    G = [[Fraction(int(v.p), int(v.q)) for v in col] for col in G0]
+    known = [j for j, u in enumerate(plant.inputs) if u in given]
+    unknown = [j for j, u in enumerate(plant.inputs) if u not in given]
+    c = [f[i] + sum((G[j][i] * given[plant.inputs[j]] for j in known), Fraction(0)) for i in range(len(f))]
+    solved = _solve([[G[j][i] for j in unknown] for i in range(len(f))], [-x for x in c])
+    for j, u in zip(unknown, solved):
+        given[plant.inputs[j]] = u
+    for name, box in model.input_boxes.items():
+        _inside(given[name], box, st.name)
+    return st.name, vector
+
+
+def _inside(value: Fraction, box: tuple[Fraction, Fraction], point: str) -> None:
+    if not box[0] <= value <= box[1]:
+        raise HandOver(f"a value of point {point} lies outside its range")
+
+
+def _solve(rows: list[list[Fraction]], rhs: list[Fraction]) -> list[Fraction]:
+    """The unique exact solution of rows . u = rhs (n equations, k unknowns), or hand over
+    (no solution: not an equilibrium; several: an input not determined)."""
+    k = len(rows[0]) if rows else 0
+    aug = [list(r) + [b] for r, b in zip(rows, rhs)]
+    pivot_row = 0
+    for col in range(k):
+        found = next((r for r in range(pivot_row, len(aug)) if aug[r][col] != 0), None)
+        if found is None:
+            raise HandOver("the point does not determine its inputs")
+        aug[pivot_row], aug[found] = aug[found], aug[pivot_row]
+        p = aug[pivot_row][col]
+        aug[pivot_row] = [x / p for x in aug[pivot_row]]
+        for r in range(len(aug)):
+            if r != pivot_row and aug[r][col] != 0:
+                factor = aug[r][col]
+                aug[r] = [a - factor * b for a, b in zip(aug[r], aug[pivot_row])]
+        pivot_row += 1
+    if any(row[k] != 0 for row in aug[pivot_row:]):
+        raise HandOver("the point is not an equilibrium")
+    return [aug[i][k] for i in range(k)]
+
+
+# -- the envelope ----------------------------------------------------------------------
+
+def _envelope(model: _Model, towers: Any, degrees: list[int]) -> None:
+    """Over the state box the model is defined and the decoupling matrix is nonsingular,
+    proven box by box in ball arithmetic: the rates, columns and outputs enclosed over the
+    box, the decoupling matrix in its mean-value form A(c) + sum_a dA/dx_a(box) (x_a - c_a)
+    (Moore, Kearfott and Cloud, Introduction to Interval Analysis, SIAM 2009, sec. 6.4),
+    an undecided box split across the side that moves A the most (|dA/dx_a| times width)."""
+    from plantlint.kernel.taylor import ArbField
+
+    field = ArbField(64)
+    plant = model.written
+    todo = [[model.boxes[s] for s in plant.states]]
+    examined, until = 0, time.perf_counter() + MAX_SECONDS
+    while todo:
+        box = todo.pop()
+        examined += 1
+        if examined > MAX_BOXES or time.perf_counter() > until:
+            raise HandOver("the envelope proof did not finish within its boxes and seconds")
+        try:
+            f, G, h = towers.values(None, field, start=[_ball(lo, hi) for lo, hi in box])
+            if not all(x.is_finite() for x in [*f, *(x for col in G for x in col), *h]):
+                raise Undefined("a value that is not finite over the box")
+            matrix, spread = _mean_value_matrix(towers, box, degrees, field)
+            if _nonsingular(matrix):
+                continue
+            widest = max(range(len(box)), key=lambda a: spread[a])
+        except Undefined:
+            widest = max(range(len(box)), key=lambda a: box[a][1] - box[a][0])
+        lo, hi = box[widest]
+        middle = (lo + hi) / 2
+        todo.append([*box[:widest], (lo, middle), *box[widest + 1:]])
+        todo.append([*box[:widest], (middle, hi), *box[widest + 1:]])
+
+
+def _ball(lo: Fraction, hi: Fraction) -> Any:
+    """A ball that holds [lo, hi]."""
+    from flint import arb, fmpq
+
+    return arb(fmpq(lo.numerator, lo.denominator)).union(arb(fmpq(hi.numerator, hi.denominator)))
+
+
+def _mean_value_matrix(towers: Any, box: list[tuple[Fraction, Fraction]], degrees: list[int], field: Any
+                       ) -> tuple[list[list[Any]], list[float]]:
+    """The decoupling matrix enclosed over ``box`` in mean-value form, and per side of the
+    box how far the gradients can move it across that side (the side to split)."""
+    from flint import arb, fmpq
+
+    balls = [_ball(lo, hi) for lo, hi in box]
+    centre = [arb(fmpq(((lo + hi) / 2).numerator, ((lo + hi) / 2).denominator)) for lo, hi in box]
+    order = max(degrees)
+    at_centre = towers.lglf(None, order, field, start=centre)
+    gradients = towers.decoupling_gradients(balls, order, field)
+    n = len(box)
+    spread = [0.0] * n
+    matrix = []
+    for i, d in enumerate(degrees):
+        row = []
+        for j in range(len(gradients)):
+            _, grad = gradients[j][i][d]
+            entry = at_centre[i][d][j]
+            for a in range(n):
+                term = grad[a] * (balls[a] - centre[a])
+                entry += term
+                width = float(abs(term).upper()) if term.is_finite() else float("inf")
+                spread[a] = max(spread[a], width)
+            row.append(entry)
+        matrix.append(row)
+    return matrix, spread
+
+
+# -- claims ----------------------------------------------------------------------------
+
+def _claims(model: _Model, degrees: list[int]) -> None:
+    """Every claim is one the route shows to hold, written once, naming what exists."""
+    plant = model.written
+    points = {st.name for st in model.by_kind.get("point", [])}
+    seen: set[tuple[str, str | None, str | None]] = set()
+    for st in model.by_kind.get("expect", []):
+        claim = st.claim
+        output = claim.output.name if claim.output is not None else None
+        point = st.at_point.name if st.at_point is not None else None
+        key = (claim.kind, output, point)
+        if claim.kind not in CLAIMS or key in seen or (point is not None and point not in points):
+            raise HandOver("a claim the route does not show")
+        seen.add(key)
+        if claim.kind == "relative_degree":
+            if output not in plant.outputs or claim.value is None:
+                raise HandOver("a relative degree claim the route does not show")
+            if model.value(claim.value) != degrees[plant.outputs.index(output)] + 1:
+                raise HandOver("a relative degree claim that does not hold")
+        elif output is not None or claim.value is not None:
+            raise HandOver("a claim in a form the route does not show")
+
+__all__ = ["CLAIMS", "HandOver", "LightPass", "MAX_BOXES", "MAX_SECONDS", "MAX_STATES", "light_check", "prove_clean"]

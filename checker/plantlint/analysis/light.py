@@ -39,25 +39,25 @@ The equality of this route's answer with the full analysis is held in
 
 from __future__ import annotations
 
-import time
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any, Sequence
 
 from plantlint.core.settings import AnalysisSettings
+from plantlint.kernel.regularity import MAX_STATES as REGULARITY_STATES
+from plantlint.kernel.regularity import SECOND_TRY_BOXES, determinant, lower_bound, prove_regular
 from plantlint.kernel.taylor import Inexact, Towers, Undefined
 
 #: Largest model the light route tries (states): the envelope proof splits boxes in every
 #: state, and larger models are left to the full route with its budget and snapshots.
-MAX_STATES = 16
+MAX_STATES = REGULARITY_STATES
 #: Sub-boxes and seconds the envelope proof may spend before it hands the model over: the
 #: route is for the quick answer; a model that needs a longer proof goes to the full
-#: analysis, which has the budget, the factorisations and the messages for it. The box
-#: bound is low on purpose: a regularity that takes the mean-value form many boxes to prove
-#: can be one that the full analysis's own proof leaves unproven within its budget (seen
-#: once in 1500 mutants: a range 10^9 wide, proven here in about 300 boxes, "not decided"
-#: there), and a pass in one format must not be "not decided" in another.
-MAX_BOXES = 64
+#: analysis. The boxes are at most those of the full analysis's second try with the same
+#: prover (``kernel.regularity.SECOND_TRY_BOXES``), so a light pass is never "not decided"
+#: in the full analysis (before that second try existed, a campaign found one: a range 10^9
+#: wide that the mean-value form proved and the proof by factors left open).
+MAX_BOXES = SECOND_TRY_BOXES
 MAX_SECONDS = 0.3
 #: Claims the light route can show to hold.
 CLAIMS = ("relative_degree", "regular", "state_linearizable")
@@ -258,15 +258,7 @@ def _decoupling(towers: Any, vector: Sequence[Any], degrees: list[int], field: A
 
 def _nonsingular(matrix: list[list[Any]]) -> bool:
     """The determinant proven non-zero: exactly, or by a ball that excludes 0."""
-    from flint import arb, arb_mat, fmpq, fmpq_mat
-
-    if all(isinstance(x, fmpq) for row in matrix for x in row):
-        return fmpq_mat(matrix).det() != 0
-    balls = [[x if isinstance(x, arb) else arb(x) for x in row] for row in matrix]
-    if not all(x.is_finite() for row in balls for x in row):
-        return False
-    det = arb_mat(balls).det()
-    return det.is_finite() and not det.contains(0)
+    return lower_bound(determinant(matrix)) > 0
 
 
 # -- points ----------------------------------------------------------------------------
@@ -335,72 +327,12 @@ def _solve(rows: list[list[Fraction]], rhs: list[Fraction]) -> list[Fraction]:
 # -- the envelope ----------------------------------------------------------------------
 
 def _envelope(model: _Model, towers: Any, degrees: list[int]) -> None:
-    """Over the state box the model is defined and the decoupling matrix is nonsingular,
-    proven box by box in ball arithmetic: the rates, columns and outputs enclosed over the
-    box, the decoupling matrix in its mean-value form A(c) + sum_a dA/dx_a(box) (x_a - c_a)
-    (Moore, Kearfott and Cloud, Introduction to Interval Analysis, SIAM 2009, sec. 6.4),
-    an undecided box split across the side that moves A the most (|dA/dx_a| times width)."""
-    from plantlint.kernel.taylor import ArbField
-
-    field = ArbField(64)
+    """Over the state box the model is defined and the decoupling matrix is nonsingular
+    (:func:`plantlint.kernel.regularity.prove_regular`), within few boxes and seconds."""
     plant = model.written
-    todo = [[model.boxes[s] for s in plant.states]]
-    examined, until = 0, time.perf_counter() + MAX_SECONDS
-    while todo:
-        box = todo.pop()
-        examined += 1
-        if examined > MAX_BOXES or time.perf_counter() > until:
-            raise HandOver("the envelope proof did not finish within its boxes and seconds")
-        try:
-            f, G, h = towers.values(None, field, start=[_ball(lo, hi) for lo, hi in box])
-            if not all(x.is_finite() for x in [*f, *(x for col in G for x in col), *h]):
-                raise Undefined("a value that is not finite over the box")
-            matrix, spread = _mean_value_matrix(towers, box, degrees, field)
-            if _nonsingular(matrix):
-                continue
-            widest = max(range(len(box)), key=lambda a: spread[a])
-        except Undefined:
-            widest = max(range(len(box)), key=lambda a: box[a][1] - box[a][0])
-        lo, hi = box[widest]
-        middle = (lo + hi) / 2
-        todo.append([*box[:widest], (lo, middle), *box[widest + 1:]])
-        todo.append([*box[:widest], (middle, hi), *box[widest + 1:]])
-
-
-def _ball(lo: Fraction, hi: Fraction) -> Any:
-    """A ball that holds [lo, hi]."""
-    from flint import arb, fmpq
-
-    return arb(fmpq(lo.numerator, lo.denominator)).union(arb(fmpq(hi.numerator, hi.denominator)))
-
-
-def _mean_value_matrix(towers: Any, box: list[tuple[Fraction, Fraction]], degrees: list[int], field: Any
-                       ) -> tuple[list[list[Any]], list[float]]:
-    """The decoupling matrix enclosed over ``box`` in mean-value form, and per side of the
-    box how far the gradients can move it across that side (the side to split)."""
-    from flint import arb, fmpq
-
-    balls = [_ball(lo, hi) for lo, hi in box]
-    centre = [arb(fmpq(((lo + hi) / 2).numerator, ((lo + hi) / 2).denominator)) for lo, hi in box]
-    order = max(degrees)
-    at_centre = towers.lglf(None, order, field, start=centre)
-    gradients = towers.decoupling_gradients(balls, order, field)
-    n = len(box)
-    spread = [0.0] * n
-    matrix = []
-    for i, d in enumerate(degrees):
-        row = []
-        for j in range(len(gradients)):
-            _, grad = gradients[j][i][d]
-            entry = at_centre[i][d][j]
-            for a in range(n):
-                term = grad[a] * (balls[a] - centre[a])
-                entry += term
-                width = float(abs(term).upper()) if term.is_finite() else float("inf")
-                spread[a] = max(spread[a], width)
-            row.append(entry)
-        matrix.append(row)
-    return matrix, spread
+    proof = prove_regular(towers, [model.boxes[s] for s in plant.states], degrees, MAX_BOXES, MAX_SECONDS)
+    if not proof.proven:
+        raise HandOver(f"the envelope proof did not finish within its {proof.stopped}")
 
 
 # -- claims ----------------------------------------------------------------------------

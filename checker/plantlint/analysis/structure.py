@@ -18,7 +18,8 @@ Three questions, from cheap to expensive:
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from fractions import Fraction
 from itertools import combinations
 from typing import Any, Mapping, Sequence
 
@@ -35,6 +36,8 @@ from plantlint.kernel import decision as zd, exact
 from plantlint.kernel.decision import ZeroDecision
 from plantlint.kernel.lie import Kernel, matrix_at
 from plantlint.kernel.plant import Plant
+from plantlint.kernel.regularity import MAX_STATES as REGULARITY_STATES
+from plantlint.kernel.regularity import SECOND_TRY_BOXES, RegularityProof, prove_regular
 
 #: Expressions up to this size are factored for messages; larger ones are cut.
 READABLE_FACTOR_OPS = 40
@@ -565,6 +568,12 @@ def certify_envelope(
         return Envelope(False, None, centre, tuple(findings), clock.boxes, clock.seconds, "generic structure")
     exprs, certified = _regularity_expressions(kernel, structure)
     verdict, culprit = _certify_by_factors(kernel, exprs, box, clock)
+    if verdict.regular is None or (verdict.regular and undecided_model):
+        second = _mean_value_try(kernel, structure)
+        if second is not None and second.proven:  # the model defined and A nonsingular on every box
+            verdict = replace(verdict, regular=True, margin=second.margin, undecided=[], undecided_count=0,
+                              too_narrow=False, boxes_examined=verdict.boxes_examined + second.boxes)
+            undecided_model = []
     if verdict.regular is False:
         assert verdict.witness is not None
         shown, whatever = _witness_parts(verdict.witness, culprit or exprs)
@@ -608,6 +617,28 @@ def certify_envelope(
               "precision" if verdict.regular is None and verdict.too_narrow and not undecided_model else "")
     return Envelope(regular, margin, None, tuple(findings), clock.boxes, clock.seconds, certified,
                     undecidable=narrow)
+
+
+def _mean_value_try(kernel: Kernel, structure: Structure) -> RegularityProof | None:
+    """A second proof, when the proof by factors leaves the envelope open: the mean-value
+    form on the towers (:func:`plantlint.kernel.regularity.prove_regular`), with the boxes
+    that the light route may use at most, so that a model it passes is never left open
+    here. Only for square plants of at most ``MAX_STATES`` states without ranged
+    parameters, whose ranges are rational and whose towers compile; else None."""
+    plant = kernel.plant
+    towers = kernel.towers()
+    if towers is None or plant.param_box or plant.p != plant.m or plant.n > REGULARITY_STATES:
+        return None
+    box = []
+    for s in plant.states:
+        lo, hi = plant.state_box[s]
+        if not (isinstance(lo, sp.Rational) and isinstance(hi, sp.Rational)):
+            return None
+        box.append((Fraction(int(lo.p), int(lo.q)), Fraction(int(hi.p), int(hi.q))))
+    orders = [int(r) - 1 for r in structure.vector_relative_degree if r is not None]
+    if len(orders) != plant.p:
+        return None
+    return prove_regular(towers, box, orders, SECOND_TRY_BOXES)
 
 
 def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbol, Any],

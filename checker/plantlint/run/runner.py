@@ -704,8 +704,11 @@ def raw_results(
         keys.append(key)
         raws.append(cache.get(key) or (light_cache.get(light_cache.key(src.data)) if light else None))
     if light:
+        # the light route runs here, one model after another: bounded in all, so that a
+        # repository of models it hands over late does not lose the workers' parallelism
+        until = time.monotonic() + LIGHT_TOTAL_SECONDS
         for i, raw in enumerate(raws):
-            if raw is None and sources[i].data is not None:
+            if raw is None and sources[i].data is not None and time.monotonic() < until:
                 raws[i] = _light(sources[i].data or b"", config)
                 if raws[i] is not None:
                     light_cache.put(light_cache.key(sources[i].data or b""), raws[i])  # type: ignore[arg-type]
@@ -730,6 +733,9 @@ def raw_results(
 #: one pathological evaluation from holding the run up: the full analysis, in a worker with
 #: the model's budget, then answers the model.
 LIGHT_SECONDS = 2.0
+#: Wall-clock seconds the light route may take over all models of one run (the rest go to
+#: the workers' full analysis directly).
+LIGHT_TOTAL_SECONDS = 3.0
 
 
 def _light(data: bytes, config: Config) -> RawResult | None:

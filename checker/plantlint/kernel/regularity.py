@@ -1,0 +1,136 @@
+"""Regularity over a box by branch and bound on the Taylor-mode towers, without sympy.
+
+The decoupling matrix A(x) (rows L_gj L_f^(r_i - 1) h_i) is enclosed over a box in its
+mean-value form A(c) + sum_a dA/dx_a(box) (x_a - c_a) (Moore, Kearfott and Cloud,
+Introduction to Interval Analysis, SIAM 2009, sec. 6.4): the values at the centre and the
+gradients over the box come from :meth:`Towers.lglf` and :meth:`Towers.decoupling_gradients`
+run on arb balls. A box is proven when f, the g columns and h are finite over it (no
+division by a ball holding 0, no function at or past its domain's edge) and det A excludes 0;
+an undecided box is split across the side that moves A the most (|dA/dx_a| times width).
+The order of the boxes is fixed (depth first), so a proof within a number of boxes is the
+same proof on every machine.
+
+Two callers: the light route (:mod:`plantlint.analysis.light`), which answers a model only
+when this proves its envelope within a few boxes, and the full analysis's envelope stage
+(:func:`plantlint.analysis.structure.certify_envelope`), which tries it when its own proof
+by factors leaves the envelope undecided, with at least as many boxes, so that the light
+route never proves what the full analysis leaves open.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Any, Sequence
+
+from flint import arb, arb_mat, fmpq, fmpq_mat
+
+from plantlint.kernel.taylor import ArbField, Undefined
+
+#: Boxes the full analysis's second try may examine; the light route uses no more (a proof
+#: it finds within them is found by the full analysis too).
+SECOND_TRY_BOXES = 256
+#: Largest model (states) either caller tries it on.
+MAX_STATES = 16
+
+
+@dataclass(frozen=True)
+class RegularityProof:
+    """``proven``: every box was proven; ``margin``: a lower bound of |det A| over the box
+    (when proven); ``boxes``: how many were examined; ``stopped``: why not proven
+    ("boxes", "seconds"), "" when proven."""
+
+    proven: bool
+    margin: float | None
+    boxes: int
+    stopped: str = ""
+
+
+def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders: Sequence[int],
+                  max_boxes: int = SECOND_TRY_BOXES, seconds: float | None = None) -> RegularityProof:
+    """Is the model defined and the decoupling matrix (rows at ``orders``, r_i - 1)
+    nonsingular on the whole ``box`` (one rational interval per state)?"""
+    field = ArbField(64)
+    todo = [list(box)]
+    examined = 0
+    margin = float("inf")
+    until = None if seconds is None else time.perf_counter() + seconds
+    while todo:
+        if examined >= max_boxes:
+            return RegularityProof(False, None, examined, "boxes")
+        if until is not None and time.perf_counter() > until:
+            return RegularityProof(False, None, examined, "seconds")
+        here = todo.pop()
+        examined += 1
+        try:
+            f, G, h = towers.values(None, field, start=[ball(lo, hi) for lo, hi in here])
+            if not all(x.is_finite() for x in [*f, *(x for col in G for x in col), *h]):
+                raise Undefined("a value that is not finite over the box")
+            matrix, spread = _mean_value_matrix(towers, here, orders, field)
+            bound = lower_bound(determinant(matrix))
+            if bound > 0:
+                margin = min(margin, bound)
+                continue
+            side = max(range(len(here)), key=lambda a: spread[a])
+        except Undefined:
+            side = max(range(len(here)), key=lambda a: here[a][1] - here[a][0])
+        lo, hi = here[side]
+        middle = (lo + hi) / 2
+        todo.append([*here[:side], (lo, middle), *here[side + 1:]])
+        todo.append([*here[:side], (middle, hi), *here[side + 1:]])
+    return RegularityProof(True, margin, examined)
+
+
+def ball(lo: Fraction, hi: Fraction) -> arb:
+    """A ball that holds [lo, hi]."""
+    return arb(fmpq(lo.numerator, lo.denominator)).union(arb(fmpq(hi.numerator, hi.denominator)))
+
+
+def determinant(matrix: Sequence[Sequence[Any]]) -> Any:
+    """det of exact rationals (fmpq) exactly, else of balls (an arb; not finite when an
+    entry is not)."""
+    if all(isinstance(x, fmpq) for row in matrix for x in row):
+        return fmpq_mat([list(row) for row in matrix]).det()
+    balls = [[x if isinstance(x, arb) else arb(x) for x in row] for row in matrix]
+    if not all(x.is_finite() for row in balls for x in row):
+        return arb("nan")
+    return arb_mat(balls).det()
+
+
+def lower_bound(det: Any) -> float:
+    """A lower bound of |det| (0 when it may be zero or is not finite)."""
+    if isinstance(det, fmpq):
+        return float(abs(det))
+    if not det.is_finite() or det.contains(0):
+        return 0.0
+    return float(abs(det).lower())
+
+
+def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders: Sequence[int], field: Any
+                       ) -> tuple[list[list[Any]], list[float]]:
+    """The decoupling matrix enclosed over ``box`` in mean-value form, and per side of the
+    box how far the gradients can move it across that side (the side to split)."""
+    balls = [ball(lo, hi) for lo, hi in box]
+    centre = [arb(fmpq(((lo + hi) / 2).numerator, ((lo + hi) / 2).denominator)) for lo, hi in box]
+    top = max(orders)
+    at_centre = towers.lglf(None, top, field, start=centre)
+    gradients = towers.decoupling_gradients(balls, top, field)
+    spread = [0.0] * len(box)
+    matrix = []
+    for i, d in enumerate(orders):
+        row = []
+        for j in range(len(gradients)):
+            _, grad = gradients[j][i][d]
+            entry = at_centre[i][d][j]
+            for a in range(len(box)):
+                term = grad[a] * (balls[a] - centre[a])
+                entry += term
+                spread[a] = max(spread[a], float(abs(term).upper()) if term.is_finite() else float("inf"))
+            row.append(entry)
+        matrix.append(row)
+    return matrix, spread
+
+
+__all__ = ["MAX_STATES", "SECOND_TRY_BOXES", "RegularityProof", "ball", "determinant", "lower_bound",
+           "prove_regular"]

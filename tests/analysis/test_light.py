@@ -227,3 +227,14 @@ def test_the_runner_asks_the_light_route_only_within_its_total_seconds(monkeypat
     raws = runner.raw_results(sources, Config(), jobs=1, use_cache=False, cache_dir=None, show_progress=False,
                               light=True)
     assert [r.route for r in raws] == ["full", "full"] and all(r.analysis is not None for r in raws)
+
+
+def test_a_decoupling_term_beyond_the_floats_is_proven_exactly() -> None:
+    """A mutant (campaign seed 11): the inertia 1e-300 makes L_g L_f^3 tip about 1e600 at
+    the point, an exact rational beyond the floats; its lower bound overflowed a float
+    conversion. Both routes pass the model (1/J^2 times positive factors, by hand)."""
+    text = (BENCHMARKS / "pendulum_chain_2.plant").read_text(encoding="utf-8")
+    assert "const J = " in text
+    text = "\n".join("const J = 1e-300 [kg*m^2]" if line.startswith("const J = ") else line
+                     for line in text.splitlines()) + "\n"
+    assert _agrees(text.encode("utf-8")) is True

@@ -45,7 +45,7 @@ from typing import Any, Sequence
 
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.regularity import MAX_STATES as REGULARITY_STATES
-from plantlint.kernel.regularity import SECOND_TRY_BOXES, determinant, lower_bound, prove_regular
+from plantlint.kernel.regularity import SECOND_TRY_BOXES, nonsingular, prove_regular
 from plantlint.kernel.taylor import Inexact, Towers, Undefined
 
 #: Largest model the light route tries (states): the envelope proof splits boxes in every
@@ -102,7 +102,7 @@ def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings()) ->
     degrees = _structural_degrees(plant)
     points = [_equilibrium(model, towers, st) for st in model.by_kind.get("point", [])]
     for name, vector in points:
-        if not _nonsingular(_decoupling(towers, vector, degrees)):
+        if not nonsingular(_decoupling(towers, vector, degrees)):
             raise HandOver(f"the decoupling matrix is not proven nonsingular at point {name}")
     _envelope(model, towers, degrees)
     _claims(model, degrees)
@@ -254,11 +254,6 @@ def _decoupling(towers: Any, vector: Sequence[Any], degrees: list[int], field: A
     else:
         rows = towers.lglf(vector, order, field, start=start)
     return [rows[i][d] for i, d in enumerate(degrees)]
-
-
-def _nonsingular(matrix: list[list[Any]]) -> bool:
-    """The determinant proven non-zero: exactly, or by a ball that excludes 0."""
-    return lower_bound(determinant(matrix)) > 0
 
 
 # -- points ----------------------------------------------------------------------------

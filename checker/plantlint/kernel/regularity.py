@@ -19,6 +19,7 @@ route never proves what the full analysis leaves open.
 
 from __future__ import annotations
 
+import sys
 import time
 from dataclasses import dataclass
 from fractions import Fraction
@@ -68,9 +69,8 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
             if not all(x.is_finite() for x in [*f, *(x for col in G for x in col), *h]):
                 raise Undefined("a value that is not finite over the box")
             matrix, spread = _mean_value_matrix(towers, here, orders, field)
-            bound = lower_bound(determinant(matrix))
-            if bound > 0:
-                margin = min(margin, bound)
+            if nonsingular(matrix):
+                margin = min(margin, lower_bound(determinant(matrix)))
                 continue
             side = max(range(len(here)), key=lambda a: spread[a])
         except Undefined:
@@ -99,12 +99,26 @@ def determinant(matrix: Sequence[Sequence[Any]]) -> Any:
 
 
 def lower_bound(det: Any) -> float:
-    """A lower bound of |det| (0 when it may be zero or is not finite)."""
+    """A lower bound of |det| as a float (0 when it may be zero or is not finite; the
+    largest float when |det| is beyond it, a value below 2^-1074 rounds to 0)."""
     if isinstance(det, fmpq):
-        return float(abs(det))
-    if not det.is_finite() or det.contains(0):
+        bound = abs(det)
+    elif not det.is_finite() or det.contains(0):
         return 0.0
-    return float(abs(det).lower())
+    else:
+        bound = abs(det).lower()
+    try:
+        return min(float(bound), sys.float_info.max)
+    except OverflowError:  # an exact rational beyond the floats
+        return sys.float_info.max
+
+
+def nonsingular(matrix: Sequence[Sequence[Any]]) -> bool:
+    """det proven non-zero: exactly (fmpq), or by a finite ball that excludes 0."""
+    det = determinant(matrix)
+    if isinstance(det, fmpq):
+        return det != 0
+    return det.is_finite() and not det.contains(0)
 
 
 def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders: Sequence[int], field: Any
@@ -133,4 +147,4 @@ def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], or
 
 
 __all__ = ["MAX_STATES", "SECOND_TRY_BOXES", "RegularityProof", "ball", "determinant", "lower_bound",
-           "prove_regular"]
+           "nonsingular", "prove_regular"]

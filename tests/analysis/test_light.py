@@ -77,6 +77,15 @@ def test_the_light_route_answers_the_small_clean_models(name: str) -> None:
     assert _agrees((BENCHMARKS / f"{name}.plant").read_bytes()) is True
 
 
+@pytest.mark.parametrize("path", sorted((REPO / "tests" / "fixtures" / "light").glob("*.plant")), ids=lambda p: p.stem)
+def test_the_light_route_answers_the_models_written_for_it(path: Path) -> None:
+    """Invented plants of its class (tests/fixtures/light): a gimbal (2 x 2, a rest point at
+    pitch 1/2 whose input columns hold cos(1/2)), a voltage-driven maglev (1/x^2 over a gap
+    range of 5 to 20 mm), a fully actuated two-link arm (the inverse of its mass matrix), a
+    servo with tanh friction and a chain with a rational damping term."""
+    assert _agrees(path.read_bytes()) is True
+
+
 def test_mutants_of_light_passed_models() -> None:
     """Mutants (tools/mutate_models.py: numbers swapped for 0, 1e-300, 1e300, ..., names
     wrapped in functions, lines deleted or repeated, operators swapped, ranges widened

@@ -274,21 +274,55 @@ def _equilibrium(model: _Model, towers: Any, st: Any) -> tuple[str, list[Any]]:
     vector = [given[s] for s in plant.states]
     for s in plant.states:
         _inside(given[s], model.boxes[s], st.name)
-    try:
-        f0, G0, _ = towers.values(vector, QField())
-    except (Inexact, Undefined):
-        raise HandOver(f"the rates are not exact rationals at point {st.name}") from None
-    f = [Fraction(int(v.p), int(v.q)) for v in f0]
-    G = [[Fraction(int(v.p), int(v.q)) for v in col] for col in G0]
     known = [j for j, u in enumerate(plant.inputs) if u in given]
     unknown = [j for j, u in enumerate(plant.inputs) if u not in given]
-    c = [f[i] + sum((G[j][i] * given[plant.inputs[j]] for j in known), Fraction(0)) for i in range(len(f))]
-    solved = _solve([[G[j][i] for j in unknown] for i in range(len(f))], [-x for x in c])
+    try:
+        f0, G0, _ = towers.values(vector, QField())
+    except Undefined:
+        raise HandOver(f"the rates are not defined at point {st.name}") from None
+    except Inexact:  # an input column is not rational there (cos(1/2)): a rest point may still be shown
+        solved = _at_rest(model, towers, vector, given, known, unknown, st.name)
+    else:
+        f = [_fraction(v) for v in f0]
+        G = [[_fraction(v) for v in col] for col in G0]
+        c = [f[i] + sum((G[j][i] * given[plant.inputs[j]] for j in known), Fraction(0)) for i in range(len(f))]
+        solved = _solve([[G[j][i] for j in unknown] for i in range(len(f))], [-x for x in c])
     for j, u in zip(unknown, solved):
         given[plant.inputs[j]] = u
     for name, box in model.input_boxes.items():
         _inside(given[name], box, st.name)
     return st.name, vector
+
+
+def _fraction(v: Any) -> Fraction:
+    return Fraction(int(v.p), int(v.q))
+
+
+def _at_rest(model: _Model, towers: Any, vector: list[Fraction], given: dict[str, Fraction], known: list[int],
+             unknown: list[int], point: str) -> list[Fraction]:
+    """The missing inputs of a point whose input columns are not rational there: when the
+    drift is exactly 0 and the given inputs are 0, the point is an equilibrium with the
+    missing inputs 0, uniquely when their columns have full rank (det of the Gram matrix
+    G^T G proven non-zero by balls). Anything else is handed over."""
+    from plantlint.kernel.taylor import ArbField, QField
+
+    plant = model.written
+    if any(given[plant.inputs[j]] != 0 for j in known):
+        raise HandOver(f"the rates at point {point} are not exact rationals")
+    drift = Towers(plant.states, (), plant.f, (), (), graph=plant.graph)
+    try:
+        f0, _, _ = drift.values(vector, QField())
+    except (Inexact, Undefined):
+        raise HandOver(f"the drift is not an exact rational at point {point}") from None
+    if any(v != 0 for v in f0):
+        raise HandOver(f"the drift does not vanish at point {point}, whose input columns are not rational")
+    if unknown:
+        _, G, _ = towers.values(vector, ArbField(256))
+        columns = [G[j] for j in unknown]
+        gram = [[sum((a * b for a, b in zip(ci, cj)), G[0][0] * 0) for cj in columns] for ci in columns]
+        if not nonsingular(gram):
+            raise HandOver(f"the point {point} does not determine its inputs (not proven)")
+    return [Fraction(0) for _ in unknown]
 
 
 def _inside(value: Fraction, box: tuple[Fraction, Fraction], point: str) -> None:

@@ -2,11 +2,13 @@
 
 The decoupling matrix A(x) (rows L_gj L_f^(r_i - 1) h_i) is enclosed over a box in its
 mean-value form A(c) + sum_a dA/dx_a(box) (x_a - c_a) (Moore, Kearfott and Cloud,
-Introduction to Interval Analysis, SIAM 2009, sec. 6.4): the values at the centre and the
-gradients over the box come from :meth:`Towers.lglf` and :meth:`Towers.decoupling_gradients`
-run on arb balls. A box is proven when f, the g columns and h are finite over it (no
+Introduction to Interval Analysis, SIAM 2009, sec. 6.4), intersected with its direct
+enclosure over the box: the values at the centre, over the box and the gradients over the
+box come from :meth:`Towers.lglf` and :meth:`Towers.decoupling_gradients` run on arb balls. A box is proven when f, the g columns and h are finite over it (no
 division by a ball holding 0, no function at or past its domain's edge) and det A excludes 0;
-an undecided box is split across the side that moves A the most (|dA/dx_a| times width).
+an undecided box is split across the side that moves A the most (|dA/dx_a| times width),
+or, when a value is not defined over it (a ball of x*x that holds 0), across the sides in
+turn.
 The order of the boxes is fixed (depth first), so a proof within a number of boxes is the
 same proof on every machine.
 
@@ -53,7 +55,7 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
     """Is the model defined and the decoupling matrix (rows at ``orders``, r_i - 1)
     nonsingular on the whole ``box`` (one rational interval per state)?"""
     field = ArbField(64)
-    todo = [list(box)]
+    todo: list[tuple[list[tuple[Fraction, Fraction]], int]] = [(list(box), 0)]  # a box and its depth
     examined = 0
     margin = float("inf")
     until = None if seconds is None else time.perf_counter() + seconds
@@ -62,24 +64,46 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
             return RegularityProof(False, None, examined, "boxes")
         if until is not None and time.perf_counter() > until:
             return RegularityProof(False, None, examined, "seconds")
-        here = todo.pop()
+        here, depth = todo.pop()
         examined += 1
         try:
-            f, G, h = towers.values(None, field, start=[ball(lo, hi) for lo, hi in here])
-            if not all(x.is_finite() for x in [*f, *(x for col in G for x in col), *h]):
-                raise Undefined("a value that is not finite over the box")
+            _defined(towers, [ball(lo, hi) for lo, hi in here], field)
             matrix, spread = _mean_value_matrix(towers, here, orders, field)
             if nonsingular(matrix):
                 margin = min(margin, lower_bound(determinant(matrix)))
                 continue
             side = max(range(len(here)), key=lambda a: spread[a])
         except Undefined:
-            side = max(range(len(here)), key=lambda a: here[a][1] - here[a][0])
+            # no gradient to go by: the first side whose midpoint makes the values defined
+            # (the air gap under c I^2 / x^2), else the sides in turn (widths in different
+            # units say nothing: an air gap of 1.5 cm next to a speed range of 2 m/s)
+            side = _culprit(towers, here, field)
+            side = depth % len(here) if side is None else side
         lo, hi = here[side]
         middle = (lo + hi) / 2
-        todo.append([*here[:side], (lo, middle), *here[side + 1:]])
-        todo.append([*here[:side], (middle, hi), *here[side + 1:]])
+        todo.append(([*here[:side], (lo, middle), *here[side + 1:]], depth + 1))
+        todo.append(([*here[:side], (middle, hi), *here[side + 1:]], depth + 1))
     return RegularityProof(True, margin, examined)
+
+
+def _defined(towers: Any, balls: Sequence[arb], field: Any) -> None:
+    """f, the g columns and h finite over the balls, else :class:`Undefined`."""
+    f, G, h = towers.values(None, field, start=balls)
+    if not all(x.is_finite() for x in [*f, *(x for col in G for x in col), *h]):
+        raise Undefined("a value that is not finite over the box")
+
+
+def _culprit(towers: Any, box: Sequence[tuple[Fraction, Fraction]], field: Any) -> int | None:
+    """A side that, held at its midpoint, makes the values defined over the rest of the box."""
+    balls = [ball(lo, hi) for lo, hi in box]
+    for side in sorted(range(len(box)), key=lambda a: box[a][0] - box[a][1]):  # widest first
+        middle = (box[side][0] + box[side][1]) / 2
+        try:
+            _defined(towers, [*balls[:side], ball(middle, middle), *balls[side + 1:]], field)
+        except Undefined:
+            continue
+        return side
+    return None
 
 
 def ball(lo: Fraction, hi: Fraction) -> arb:
@@ -121,6 +145,15 @@ def nonsingular(matrix: Sequence[Sequence[Any]]) -> bool:
     return det.is_finite() and not det.contains(0)
 
 
+def _tighter(a: Any, b: Any) -> Any:
+    """The intersection of two enclosures of one value (the finite one when only one is)."""
+    if not b.is_finite():
+        return a
+    if not a.is_finite():
+        return b
+    return a.intersection(b) if a.overlaps(b) else a  # disjoint enclosures of one value: never
+
+
 def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders: Sequence[int], field: Any
                        ) -> tuple[list[list[Any]], list[float]]:
     """The decoupling matrix enclosed over ``box`` in mean-value form, and per side of the
@@ -135,13 +168,15 @@ def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], or
     for i, d in enumerate(orders):
         row = []
         for j in range(len(gradients)):
-            _, grad = gradients[j][i][d]
+            direct, grad = gradients[j][i][d]
             entry = at_centre[i][d][j]
             for a in range(len(box)):
                 term = grad[a] * (balls[a] - centre[a])
                 entry += term
                 spread[a] = max(spread[a], float(abs(term).upper()) if term.is_finite() else float("inf"))
-            row.append(entry)
+            # both enclose the entry over the box: the mean-value form wins on small boxes, the
+            # direct one where a factor's sign settles it (c I / x^2 with I, x away from 0)
+            row.append(_tighter(entry, direct))
         matrix.append(row)
     return matrix, spread
 

@@ -57,6 +57,10 @@ def endless(*args, **kwargs):
         pass
 
 engine.certify_envelope = endless
+# every model goes to the analysis (and its runaway stage): the light route, which would
+# pass the clean ones without it, is switched off
+import plantlint.analysis.light as light
+light.light_check = lambda *args, **kwargs: None
 from plantlint.cli import main
 sys.exit(main(sys.argv[1:]))
 """

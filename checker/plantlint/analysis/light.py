@@ -16,7 +16,8 @@ The class it answers (each condition is checked; none is assumed):
 - the file parses, its names resolve, its units agree, and the graph reader takes it
   (smooth functions, input-affine as written, outputs free of the inputs);
 - no waivers, no parameter with a range, no point tolerance, only the claims
-  ``relative_degree``, ``regular`` and ``state_linearizable``; every constant and parameter
+  ``relative_degree``, ``regular``, ``state_linearizable`` and ``minimum_phase`` (with no
+  zero dynamics it holds at every point, as in the full analysis, which needs a point); every constant and parameter
   an exact rational number; every state ranged by rational bounds lo < hi; every constant,
   parameter, definition and input mentioned by a rate, an output, a definition or a value;
 - as many outputs as inputs, with a vector relative degree summing to n (the outputs are
@@ -60,7 +61,7 @@ MAX_STATES = REGULARITY_STATES
 MAX_BOXES = SECOND_TRY_BOXES
 MAX_SECONDS = 0.3
 #: Claims the light route can show to hold.
-CLAIMS = ("relative_degree", "regular", "state_linearizable")
+CLAIMS = ("relative_degree", "regular", "state_linearizable", "minimum_phase")
 
 
 class HandOver(Exception):
@@ -386,5 +387,7 @@ def _claims(model: _Model, degrees: list[int]) -> None:
                 raise HandOver("a relative degree claim that does not hold")
         elif output is not None or claim.value is not None:
             raise HandOver("a claim in a form the route does not show")
+        elif claim.kind == "minimum_phase" and not points:
+            raise HandOver("minimum phase claimed without an operating point to hold it at")
 
 __all__ = ["CLAIMS", "HandOver", "LightPass", "MAX_BOXES", "MAX_SECONDS", "MAX_STATES", "light_check", "prove_clean"]

@@ -27,10 +27,10 @@ from plantlint.run.pipeline import analyse_bytes
 
 BENCHMARKS = REPO / "benchmarks" / "results" / "models"
 #: Generated models small enough for a unit test (their full analysis under a second or so).
-SMALL = ("spring_chain_1", "spring_chain_2", "spring_chain_3", "pendulum_chain_2", "pendulum_chain_3",
+SMALL = ("spring_chain_1", "pendulum_arm_1", "pendulum_arm_2", "spring_chain_2", "spring_chain_3", "pendulum_chain_2", "pendulum_chain_3",
          "pendulum_chain_4", "pendulum_bank_4", "dense_chain_2", "dense_chain_4", "hovercraft", "quadrotor")
 #: Models the light route is meant to answer (so that the comparison is not vacuous).
-ANSWERED = ("spring_chain_1", "pendulum_chain_2", "pendulum_chain_3", "pendulum_bank_4",
+ANSWERED = ("spring_chain_1", "pendulum_arm_1", "pendulum_arm_2", "pendulum_chain_2", "pendulum_chain_3", "pendulum_bank_4",
             "dense_chain_2")
 
 _SPEC = importlib.util.spec_from_file_location("mutate_models", REPO / "tools" / "mutate_models.py")
@@ -252,3 +252,17 @@ def test_a_decoupling_term_beyond_the_floats_is_proven_exactly() -> None:
     text = "\n".join("const J = 1e-300 [kg*m^2]" if line.startswith("const J = ") else line
                      for line in text.splitlines()) + "\n"
     assert _agrees(text.encode("utf-8")) is True
+
+
+def test_a_holding_torque_outside_its_range_is_handed_over() -> None:
+    """pendulum_arm_1 at q1 = 1/4 needs tau1 = g lc1 m1 sin(1/4) = 13.59 N m (by hand), an
+    irrational number the light route solves in balls. With the torque limited to 10 N m the
+    point needs an input outside its range: the route hands over, and the full analysis
+    reports it."""
+    text = (BENCHMARKS / "pendulum_arm_1.plant").read_text(encoding="utf-8")
+    assert "input tau1 [N*m] in -400 .. 400" in text
+    limited = text.replace("input tau1 [N*m] in -400 .. 400", "input tau1 [N*m] in -10 .. 10").encode("utf-8")
+    with pytest.raises(HandOver, match="range"):
+        prove_clean(limited)
+    found = [f for f in analyse_bytes(limited).findings if f.rule == "point-outside-envelope"]
+    assert found and "13.59" in found[0].message, [f.message for f in found]

@@ -281,13 +281,13 @@ def _equilibrium(model: _Model, towers: Any, st: Any) -> tuple[str, list[Any]]:
         f0, G0, _ = towers.values(vector, QField())
     except Undefined:
         raise HandOver(f"the rates are not defined at point {st.name}") from None
-    except Inexact:  # an input column is not rational there (cos(1/2)): a rest point may still be shown
-        solved = _at_rest(model, towers, vector, given, known, unknown, st.name)
-    else:
-        f = [_fraction(v) for v in f0]
-        G = [[_fraction(v) for v in col] for col in G0]
-        c = [f[i] + sum((G[j][i] * given[plant.inputs[j]] for j in known), Fraction(0)) for i in range(len(f))]
-        solved = _solve([[G[j][i] for j in unknown] for i in range(len(f))], [-x for x in c])
+    except Inexact:  # a value is not rational there (sin(1/4)): the inputs are solved in balls
+        _solved_in_balls(model, towers, vector, given, known, unknown, st.name)
+        return st.name, vector
+    f = [_fraction(v) for v in f0]
+    G = [[_fraction(v) for v in col] for col in G0]
+    c = [f[i] + sum((G[j][i] * given[plant.inputs[j]] for j in known), Fraction(0)) for i in range(len(f))]
+    solved = _solve([[G[j][i] for j in unknown] for i in range(len(f))], [-x for x in c])
     for j, u in zip(unknown, solved):
         given[plant.inputs[j]] = u
     for name, box in model.input_boxes.items():
@@ -299,31 +299,58 @@ def _fraction(v: Any) -> Fraction:
     return Fraction(int(v.p), int(v.q))
 
 
-def _at_rest(model: _Model, towers: Any, vector: list[Fraction], given: dict[str, Fraction], known: list[int],
-             unknown: list[int], point: str) -> list[Fraction]:
-    """The missing inputs of a point whose input columns are not rational there: when the
-    drift is exactly 0 and the given inputs are 0, the point is an equilibrium with the
-    missing inputs 0, uniquely when their columns have full rank (det of the Gram matrix
-    G^T G proven non-zero by balls). Anything else is handed over."""
+def _solved_in_balls(model: _Model, towers: Any, vector: list[Fraction], given: dict[str, Fraction],
+                     known: list[int], unknown: list[int], point: str) -> None:
+    """A point whose rates are not rational there (a holding torque g l m sin(1/4)): an
+    equilibrium when every rate that no input enters is exactly 0 (its program run in exact
+    rationals) and the others, one per missing input, determine those inputs uniquely
+    (their columns' determinant non-zero by balls), each inside its range by balls. The
+    inputs are then irrational numbers known to 256 bits; the full analysis solves them
+    exactly. Anything else is handed over."""
+    from flint import arb, arb_mat
+
     from plantlint.kernel.taylor import ArbField, QField
 
     plant = model.written
-    if any(given[plant.inputs[j]] != 0 for j in known):
-        raise HandOver(f"the rates at point {point} are not exact rationals")
-    drift = Towers(plant.states, (), plant.f, (), (), graph=plant.graph)
-    try:
-        f0, _, _ = drift.values(vector, QField())
-    except (Inexact, Undefined):
-        raise HandOver(f"the drift is not an exact rational at point {point}") from None
-    if any(v != 0 for v in f0):
-        raise HandOver(f"the drift does not vanish at point {point}, whose input columns are not rational")
-    if unknown:
-        _, G, _ = towers.values(vector, ArbField(256))
-        columns = [G[j] for j in unknown]
-        gram = [[sum((a * b for a, b in zip(ci, cj)), G[0][0] * 0) for cj in columns] for ci in columns]
-        if not nonsingular(gram):
-            raise HandOver(f"the point {point} does not determine its inputs (not proven)")
-    return [Fraction(0) for _ in unknown]
+    graph, n = plant.graph, len(plant.states)
+    driven = [i for i in range(n) if any(not _zero(graph, col[i]) for col in plant.g)]
+    for i in range(n):
+        if i in driven:
+            continue
+        zero = graph.const(0)
+        row = Towers(plant.states, (), [plant.f[i] if k == i else zero for k in range(n)], (), (), graph=graph)
+        try:
+            value = row.values(vector, QField())[0][i]
+        except (Inexact, Undefined):
+            raise HandOver(f"the rate of {plant.states[i]} is not an exact rational at point {point}") from None
+        if value != 0:
+            raise HandOver(f"the rate of {plant.states[i]}, which no input enters, is not 0 at point {point}")
+    if len(driven) != len(unknown):
+        raise HandOver(f"the inputs of point {point} are not one per driven rate")
+    if not unknown:
+        return
+    field = ArbField(256)
+    f0, G0, _ = towers.values(vector, field)
+    rows = [[G0[j][i] for j in unknown] for i in driven]
+    rhs = [-(f0[i] + sum((G0[j][i] * field.const(given[plant.inputs[j]]) for j in known), arb(0)))
+           for i in driven]
+    if not nonsingular(rows):
+        raise HandOver(f"the point {point} does not determine its inputs (not proven)")
+    solved = arb_mat(rows).solve(arb_mat([[x] for x in rhs]))
+    for k, j in enumerate(unknown):
+        box = model.input_boxes.get(plant.inputs[j])
+        u = solved[k, 0]
+        if not u.is_finite() or (box is not None and not (u > _arb(box[0]) and u < _arb(box[1]))):
+            raise HandOver(f"an input of point {point} is not proven inside its range")
+    for name in given:
+        if name in model.input_boxes:
+            _inside(given[name], model.input_boxes[name], point)
+
+
+def _arb(q: Fraction) -> Any:
+    from flint import arb, fmpq
+
+    return arb(fmpq(q.numerator, q.denominator))
 
 
 def _inside(value: Fraction, box: tuple[Fraction, Fraction], point: str) -> None:

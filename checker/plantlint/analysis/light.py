@@ -101,10 +101,13 @@ def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings()) ->
     plant = model.written
     towers = Towers(plant.states, (), plant.f, plant.g, plant.h, graph=plant.graph)
     degrees = _structural_degrees(plant)
-    points = [_equilibrium(model, towers, st) for st in model.by_kind.get("point", [])]
-    for name, vector in points:
-        if not nonsingular(_decoupling(towers, vector, degrees)):
-            raise HandOver(f"the decoupling matrix is not proven nonsingular at point {name}")
+    try:
+        points = [_equilibrium(model, towers, st) for st in model.by_kind.get("point", [])]
+        for name, vector in points:
+            if not nonsingular(_decoupling(towers, vector, degrees)):
+                raise HandOver(f"the decoupling matrix is not proven nonsingular at point {name}")
+    except (Undefined, Inexact) as why:  # a value at a point that does not exist or is not held
+        raise HandOver(f"a value at a point: {why}") from None
     _envelope(model, towers, degrees)
     _claims(model, degrees)
     return LightPass(model.name, tuple(d + 1 for d in degrees))

@@ -215,10 +215,9 @@ def _structural_degrees(plant: Any) -> list[int]:
     row at k is then shown not to vanish at a point (``_decoupling``), which makes k + 1 the
     relative degree: the rows below it vanish identically, that one does not."""
     graph, n = plant.graph, len(plant.states)
-    state_of = {graph.var_ids[i]: i for i in range(n)}
 
-    def states(node: int) -> set[int]:
-        return {state_of[v] for v in (graph.var_ids[k] for k in graph.variables_of(node)) if v in state_of}
+    def states(node: int) -> set[int]:  # the graph's variables are the states (no ranged parameters here)
+        return set(graph.variables_of(node))
 
     reads = [states(node) for node in plant.f]
     driven = {i for i in range(n) if any(not _zero(graph, col[i]) for col in plant.g)}
@@ -243,20 +242,15 @@ def _zero(graph: Any, node: int) -> bool:
     return op == "const" and value == 0
 
 
-def _decoupling(towers: Any, vector: Sequence[Any], degrees: list[int], field: Any = None,
-                start: Sequence[Any] | None = None) -> list[list[Any]]:
-    """A[i][j] = L_gj L_f^(r_i - 1) h_i at the point (``vector``, exact when it can be) or
-    enclosed over a box (``start``, balls)."""
+def _decoupling(towers: Any, vector: Sequence[Fraction], degrees: list[int]) -> list[list[Any]]:
+    """A[i][j] = L_gj L_f^(r_i - 1) h_i at the point: exact rationals when they are, else
+    balls at 256 bits."""
     from plantlint.kernel.taylor import ArbField, QField
 
-    order = max(degrees)
-    if field is None:
-        try:
-            rows = towers.lglf(vector, order, QField())
-        except Inexact:
-            rows = towers.lglf(vector, order, ArbField(256))
-    else:
-        rows = towers.lglf(vector, order, field, start=start)
+    try:
+        rows = towers.lglf(vector, max(degrees), QField())
+    except Inexact:
+        rows = towers.lglf(vector, max(degrees), ArbField(256))
     return [rows[i][d] for i, d in enumerate(degrees)]
 
 

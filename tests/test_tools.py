@@ -35,3 +35,10 @@ def test_mutants_are_never_written_into_the_repository() -> None:
                           "--out", str(REPO / "mutants")], capture_output=True, text=True)
     assert run.returncode == 2 and "outside the repository" in run.stderr
     assert not (REPO / "mutants").exists()
+
+
+def test_the_light_campaign_holds_light_passes_against_the_full_analysis(tmp_path) -> None:
+    run = subprocess.run([sys.executable, str(REPO / "tools" / "mutate_models.py"), "--light", "--count", "6",
+                          "--seed", "1", "--out", str(tmp_path)], capture_output=True, text=True, timeout=600)
+    assert run.returncode == 0, run.stdout + run.stderr
+    assert re.search(r"6 mutants of \d+ light-passed models: \d+ passed by the light route, 0 defects", run.stdout)

@@ -1,7 +1,7 @@
 """Robustness campaign: check randomly mutated copies of the project's own models.
 
     python tools/mutate_models.py --count 1000 --seed 5 --out /tmp/mutants [--strip-units]
-                                  [--max-mutations 3] [--timeout 10] [--jobs 2]
+                                  [--max-mutations 3] [--timeout 10] [--jobs 2] [--light]
 
 Writes ``--count`` mutated models into ``--out`` (numbers replaced by 0, 1e-300, 1e300,
 ...; names wrapped in functions; lines deleted, duplicated or cut; operators swapped;
@@ -11,6 +11,11 @@ folder with a short budget and prints what a developer must look at:
 * internal errors (``stop.kind == "internal-error"``): a defect, always;
 * models stopped by the budget: usually a slow path worth a look (a mutant is small);
 * messages with raw infinities, NaN or tracebacks in them.
+
+With ``--light`` the campaign is about the light route (README, "Two routes to a pass"):
+it mutates the models that route passes and, in this process, holds every light pass
+against the full analysis; a light pass of a model with a finding, or a light route that
+raises, is printed with its mutant (written to ``--out``) and fails the run.
 
 The mutants are written outside the repository and are not kept: the campaign is a way
 to find problems, each found problem gets a test of its own. Every model it starts from is
@@ -93,6 +98,50 @@ def mutate(text: str, rng: random.Random, strip_units: bool, most: int) -> str:
     return "\n".join(lines)
 
 
+#: Models the light route passes, whose mutants are where a wrong light pass would hide.
+LIGHT_SOURCES = ("tests/fixtures/light/*.plant", "benchmarks/results/models/spring_chain_[12].plant",
+                 "benchmarks/results/models/pendulum_arm_*.plant", "benchmarks/results/models/pendulum_bank_4.plant",
+                 "benchmarks/results/models/pendulum_chain_[23].plant", "tests/fixtures/rules/envelope-singular.plant")
+
+
+def light_campaign(out: Path, rng: random.Random, count: int, strip_units: bool, most: int) -> int:
+    """Mutants of light-passed models: each one the light route passes must be passed by the
+    full analysis (no findings, every stage, the same relative degrees). The light route's
+    seconds bound is lifted, so what it answers does not depend on the host."""
+    import plantlint.analysis.light as light
+    from plantlint.analysis.stages import STAGES
+    from plantlint.run.pipeline import analyse_bytes
+
+    light.MAX_SECONDS = 60.0
+    models = sorted(p for pattern in LIGHT_SOURCES for p in REPO.glob(pattern))
+    passed = bad = 0
+    for n in range(count):
+        source = rng.choice(models)
+        text = mutate(source.read_text(encoding="utf-8"), rng, strip_units, most)
+        data = text.encode("utf-8")
+        try:
+            answer = light.prove_clean(data)
+        except light.HandOver:
+            continue
+        except Exception as exc:  # noqa: BLE001 - a defect to report, with its mutant
+            bad += 1
+            path = out / f"m{n:05d}_{source.stem}.plant"
+            path.write_text(text, encoding="utf-8")
+            print(f"LIGHT ROUTE RAISED  {path}: {type(exc).__name__}: {exc}")
+            continue
+        passed += 1
+        raw = analyse_bytes(data)
+        degrees = tuple((raw.analysis or {}).get("relative_degree", {}).values())
+        if raw.findings or raw.stop is not None or raw.stages != list(STAGES) or degrees != answer.degrees:
+            bad += 1
+            path = out / f"m{n:05d}_{source.stem}.plant"
+            path.write_text(text, encoding="utf-8")
+            print(f"LIGHT PASS THE FULL ANALYSIS DOES NOT GIVE  {path}: "
+                  + "; ".join(f"{f.rule}: {f.message[:120]}" for f in raw.findings))
+    print(f"{count} mutants of {len(models)} light-passed models: {passed} passed by the light route, {bad} defects")
+    return 1 if bad else 0
+
+
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     ap.add_argument("--count", type=int, default=500)
@@ -102,11 +151,17 @@ def main() -> int:
     ap.add_argument("--max-mutations", type=int, default=3)
     ap.add_argument("--timeout", type=float, default=10.0)
     ap.add_argument("--jobs", type=int, default=2)
+    ap.add_argument("--light", action="store_true",
+                    help="mutate the models the light route passes and hold every light pass against the full "
+                         "analysis in this process (a light pass with a finding, or a light route that raises, "
+                         "is a defect)")
     args = ap.parse_args()
     if args.out.resolve().is_relative_to(REPO):
         ap.error("--out must be outside the repository")
     rng = random.Random(args.seed)
     args.out.mkdir(parents=True, exist_ok=True)
+    if args.light:
+        return light_campaign(args.out, rng, args.count, args.strip_units, args.max_mutations)
     models = sources()
     for n in range(args.count):
         source = rng.choice(models)

@@ -77,10 +77,12 @@ class LightPass:
     degrees: tuple[int, ...]
 
 
-def light_check(data: bytes, settings: AnalysisSettings = AnalysisSettings()) -> LightPass | None:
-    """A model proven clean without sympy, or None (the full analysis must answer)."""
+def light_check(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
+                seconds: float | None = None) -> LightPass | None:
+    """A model proven clean without sympy, or None (the full analysis must answer).
+    ``seconds`` bounds the envelope proof (default ``MAX_SECONDS``)."""
     try:
-        return prove_clean(data, settings)
+        return prove_clean(data, settings, seconds)
     except HandOver:
         return None
     except (Exception, RecursionError):  # noqa: BLE001 - see below
@@ -92,7 +94,8 @@ def light_check(data: bytes, settings: AnalysisSettings = AnalysisSettings()) ->
         return None
 
 
-def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings()) -> LightPass:
+def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
+                seconds: float | None = None) -> LightPass:
     """:func:`light_check`, raising :class:`HandOver` with the reason instead of None."""
     if settings.point_tolerance != 0:
         raise HandOver("a point tolerance is configured")
@@ -108,7 +111,7 @@ def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings()) ->
                 raise HandOver(f"the decoupling matrix is not proven nonsingular at point {name}")
     except (Undefined, Inexact) as why:  # a value at a point that does not exist or is not held
         raise HandOver(f"a value at a point: {why}") from None
-    _envelope(model, towers, degrees)
+    _envelope(model, towers, degrees, MAX_SECONDS if seconds is None else seconds)
     _claims(model, degrees)
     return LightPass(model.name, tuple(d + 1 for d in degrees))
 
@@ -380,11 +383,11 @@ def _solve(rows: list[list[Fraction]], rhs: list[Fraction]) -> list[Fraction]:
 
 # -- the envelope ----------------------------------------------------------------------
 
-def _envelope(model: _Model, towers: Any, degrees: list[int]) -> None:
+def _envelope(model: _Model, towers: Any, degrees: list[int], seconds: float) -> None:
     """Over the state box the model is defined and the decoupling matrix is nonsingular
     (:func:`plantlint.kernel.regularity.prove_regular`), within few boxes and seconds."""
     plant = model.written
-    proof = prove_regular(towers, [model.boxes[s] for s in plant.states], degrees, MAX_BOXES, MAX_SECONDS)
+    proof = prove_regular(towers, [model.boxes[s] for s in plant.states], degrees, MAX_BOXES, seconds)
     if not proof.proven:
         raise HandOver(f"the envelope proof did not finish within its {proof.stopped}")
 

@@ -500,12 +500,18 @@ def analyse_all(
     timeout: float,
     on_done: Callable[[int], None] | None = None,
     explain: bool = False,
+    early: Callable[[int], RawResult | None] | None = None,
 ) -> list[RawResult]:
     """Analyse every model in worker processes, at most ``jobs`` at a time (with
-    ``explain``, each result also carries the derivation that explain shows)."""
+    ``explain``, each result also carries the derivation that explain shows).
+
+    ``early(i)``, when given, is asked in this process for each model while its worker
+    runs (the light route): a result it returns is the model's, and its worker is stopped.
+    A single model is then not preloaded here, so that its worker imports the analysis
+    while this process asks ``early``; with several, the import is shared as before."""
     if not datas:
         return []
-    if len(datas) > 1 or _reaches_values(datas[0]):
+    if (len(datas) > 1 or _reaches_values(datas[0])) and not (early is not None and len(datas) == 1):
         _preload(datas)
 
     from multiprocessing import connection
@@ -524,6 +530,22 @@ def analyse_all(
                 proc.start()
                 child.close()
                 running[parent] = _Running(i, proc, time.monotonic())
+            if early is not None:
+                for conn, r in list(running.items()):
+                    if r.asked:
+                        continue
+                    r.asked = True
+                    answer = early(r.index)
+                    if answer is not None:  # answered here: the worker's analysis is not needed
+                        r.proc.kill()
+                        r.proc.join()
+                        del running[conn]
+                        conn.close()
+                        results[r.index] = answer
+                        if on_done:
+                            on_done(r.index)
+                if not running:
+                    continue
             now = time.monotonic()
             deadline = min(r.start + timeout for r in running.values())
             ready = connection.wait(list(running), timeout=_wait_seconds(deadline - now))
@@ -558,6 +580,7 @@ class _Running:
     proc: Any
     start: float
     stages: list[str] = field(default_factory=list)
+    asked: bool = False  # ``early`` was asked for this model
     snapshot: dict[str, Any] | None = None  # the last stage's snapshot (RawResult data)
 
 
@@ -703,47 +726,75 @@ def raw_results(
         key = cache.key(src.data)
         keys.append(key)
         raws.append(cache.get(key) or (light_cache.get(light_cache.key(src.data)) if light else None))
-    if light:
-        # the light route runs here, one model after another: bounded in all, so that a
-        # repository of models it hands over late does not lose the workers' parallelism
-        until = time.monotonic() + LIGHT_TOTAL_SECONDS
-        for i, raw in enumerate(raws):
-            if raw is None and sources[i].data is not None and time.monotonic() < until:
-                raws[i] = _light(sources[i].data or b"", config)
-                if raws[i] is not None:
-                    light_cache.put(light_cache.key(sources[i].data or b""), raws[i])  # type: ignore[arg-type]
     todo = [i for i, r in enumerate(raws) if r is None]
+    until = time.monotonic() + LIGHT_TOTAL_SECONDS
+    if light and len(todo) > 1:
+        # Several models: the light route first, one after another, for a short while. Clean
+        # small models are answered in milliseconds each, and if it answers them all, no
+        # worker starts and nothing imports sympy. (Workers forked afterwards share the
+        # parent's import of the analysis, see _preload.)
+        # The envelope proof gets a short time here; a model it runs out on is asked again,
+        # with the full time, while its worker runs.
+        serial_until = min(time.monotonic() + LIGHT_SERIAL_SECONDS, until)
+        for i in todo:
+            if time.monotonic() >= serial_until:
+                break
+            raws[i] = _light(sources[i].data or b"", config, LIGHT_SERIAL_MODEL_SECONDS)
+            if raws[i] is not None:
+                light_cache.put(light_cache.key(sources[i].data or b""), raws[i])  # type: ignore[arg-type]
+        todo = [i for i in todo if raws[i] is None]
+
+    def ask_light(k: int) -> RawResult | None:
+        # One model: the light route here while its worker starts on the full analysis (and
+        # imports it: the single model is not preloaded). A pass it proves stops the worker;
+        # a model it hands over has lost no time where a second core runs the worker. (With
+        # several, asking here would hold up collecting the others' results.)
+        if time.monotonic() >= until:
+            return None
+        return _light(sources[todo[k]].data or b"", config)
+
     if todo:
         progress = _Progress(len(todo)) if show_progress and len(todo) > 3 else None
         try:
             fresh = analyse_all([sources[i].data or b"" for i in todo], config.analysis, jobs, config.seconds,
-                                on_done=(lambda _i: progress.advance()) if progress else None, explain=explain)
+                                on_done=(lambda _i: progress.advance()) if progress else None, explain=explain,
+                                early=ask_light if light and len(todo) == 1 else None)
         finally:
             if progress:
                 progress.close()
         for i, raw in zip(todo, fresh):
             raws[i] = raw
-            if keys[i] is not None and cacheable(raw):
+            if raw.route == "light":
+                light_cache.put(light_cache.key(sources[i].data or b""), raw)
+            elif keys[i] is not None and cacheable(raw):
                 cache.put(keys[i] or "", raw)
     return [r or RawResult() for r in raws]
 
 
-#: Wall-clock bound of the light route on one model, in the parent process. The route
-#: bounds its own envelope proof (``analysis.light.MAX_SECONDS``); this outer bound only keeps
-#: one pathological evaluation from holding the run up: the full analysis, in a worker with
-#: the model's budget, then answers the model.
+#: Wall-clock bound of the light route on one model, in the parent process, while the
+#: model's worker runs. The route bounds its own envelope proof (``analysis.light.MAX_SECONDS``);
+#: this outer bound only keeps one pathological evaluation from holding the parent up: the
+#: worker's full analysis then answers the model.
 LIGHT_SECONDS = 2.0
-#: Wall-clock seconds the light route may take over all models of one run (the rest go to
-#: the workers' full analysis directly).
+#: Wall-clock seconds the light route may take over all models of one run (the parent also
+#: collects the workers' results and enforces their budgets; after these seconds the rest
+#: are left to the workers).
 LIGHT_TOTAL_SECONDS = 3.0
+#: Of those, the seconds it may take before any worker starts, when a run has several
+#: models to analyse (a single model's worker starts at once).
+LIGHT_SERIAL_SECONDS = 0.3
+#: The envelope proof's seconds in that first round (a model that needs more is asked again
+#: while its worker runs).
+LIGHT_SERIAL_MODEL_SECONDS = 0.05
 
 
-def _light(data: bytes, config: Config) -> RawResult | None:
-    """The light route's answer for one model, or None (the worker's analysis answers)."""
+def _light(data: bytes, config: Config, seconds: float | None = None) -> RawResult | None:
+    """The light route's answer for one model, or None (the worker's analysis answers);
+    ``seconds`` bounds its envelope proof (default: the route's own)."""
     from plantlint.core import deadline
     from plantlint.run.pipeline import light_result
 
-    raw = deadline.bounded(LIGHT_SECONDS, lambda: light_result(data, config.analysis))
+    raw = deadline.bounded(LIGHT_SECONDS, lambda: light_result(data, config.analysis, seconds))
     return None if raw is deadline.LATE else raw  # type: ignore[return-value]
 
 

@@ -282,3 +282,27 @@ def test_a_value_undefined_at_a_point_is_handed_over_not_raised() -> None:
     assert "^ f2*w2" in text and "[" not in text
     with pytest.raises(HandOver, match="log"):
         prove_clean(text.encode("utf-8"))
+
+
+_WITHOUT_LIGHT = """
+import sys
+import plantlint.analysis.light as light
+light.light_check = lambda *args, **kwargs: None
+from plantlint.cli import main
+sys.exit(main(sys.argv[1:]))
+"""
+
+
+@pytest.mark.parametrize("form", ["text", "lines", "markdown", "sarif"])
+def test_a_light_report_is_the_full_analysis_report_byte_for_byte(tmp_path: Path, form: str) -> None:
+    """What a user or a CI log sees does not tell the routes apart: the same bytes, the same
+    exit code, with the light route and with it switched off."""
+    (tmp_path / "spring.plant").write_text(CLEAN, encoding="utf-8")
+    args = ["check", "--no-cache", "--format", form, "spring.plant"]
+    light_run = subprocess.run([sys.executable, "-m", "plantlint", *args], cwd=tmp_path, capture_output=True,
+                               text=True, timeout=300)
+    full_run = subprocess.run([sys.executable, "-c", _WITHOUT_LIGHT, *args], cwd=tmp_path, capture_output=True,
+                              text=True, timeout=300)
+    assert light_run.returncode == full_run.returncode == 0
+    assert light_run.stdout == full_run.stdout
+    assert light_run.stdout or form == "lines"  # one line per finding: none here

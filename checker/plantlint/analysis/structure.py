@@ -25,7 +25,7 @@ from typing import Any, Mapping, Sequence
 
 import sympy as sp
 
-from plantlint.core.deadline import bounded
+from plantlint.core.deadline import bounded, ran_out
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.core import anchors
 from plantlint.core.catalogue import finding
@@ -569,7 +569,7 @@ def certify_envelope(
     exprs, certified = _regularity_expressions(kernel, structure)
     verdict, culprit = _certify_by_factors(kernel, exprs, box, clock)
     if verdict.regular is None or (verdict.regular and undecided_model):
-        second = _mean_value_try(kernel, structure)
+        second = _mean_value_try(kernel, structure, budget_seconds)
         if second is not None and second.proven:  # the model defined and A nonsingular on every box
             verdict = replace(verdict, regular=True, margin=second.margin, undecided=[], undecided_count=0,
                               too_narrow=False, boxes_examined=verdict.boxes_examined + second.boxes)
@@ -619,12 +619,14 @@ def certify_envelope(
                     undecidable=narrow)
 
 
-def _mean_value_try(kernel: Kernel, structure: Structure) -> RegularityProof | None:
+def _mean_value_try(kernel: Kernel, structure: Structure, seconds: float) -> RegularityProof | None:
     """A second proof, when the proof by factors leaves the envelope open: the mean-value
     form on the towers (:func:`plantlint.kernel.regularity.prove_regular`), with the boxes
     that the light route may use at most, so that a model it passes is never left open
-    here. Only for square plants of at most ``MAX_STATES`` states without ranged
-    parameters, whose ranges are rational and whose towers compile; else None."""
+    here, and the envelope's seconds (the light route has 0.3 s for the same proof; one
+    that runs out here is recorded, so the result is not cached). Only for square plants
+    of at most ``MAX_STATES`` states without ranged parameters, whose ranges are rational
+    and whose towers compile; else None."""
     plant = kernel.plant
     towers = kernel.towers()
     if towers is None or plant.param_box or plant.p != plant.m or plant.n > REGULARITY_STATES:
@@ -638,7 +640,10 @@ def _mean_value_try(kernel: Kernel, structure: Structure) -> RegularityProof | N
     orders = [int(r) - 1 for r in structure.vector_relative_degree if r is not None]
     if len(orders) != plant.p:
         return None
-    return prove_regular(towers, box, orders, SECOND_TRY_BOXES)
+    proof = prove_regular(towers, box, orders, SECOND_TRY_BOXES, seconds)
+    if proof.stopped == "seconds":
+        ran_out()
+    return proof
 
 
 def _certify_by_factors(kernel: Kernel, exprs: list[sp.Expr], box: dict[sp.Symbol, Any],

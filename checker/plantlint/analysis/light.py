@@ -46,7 +46,7 @@ from typing import Any, Sequence
 
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.regularity import MAX_STATES as REGULARITY_STATES
-from plantlint.kernel.regularity import SECOND_TRY_BOXES, nonsingular, prove_regular
+from plantlint.kernel.regularity import SECOND_TRY_BOXES, nonsingular, prove_regular, rational_ball
 from plantlint.kernel.taylor import Inexact, Towers, Undefined
 
 #: Largest model the light route tries (states): the envelope proof splits boxes in every
@@ -340,17 +340,11 @@ def _solved_in_balls(model: _Model, towers: Any, vector: list[Fraction], given: 
     for k, j in enumerate(unknown):
         box = model.input_boxes.get(plant.inputs[j])
         u = solved[k, 0]
-        if not u.is_finite() or (box is not None and not (u > _arb(box[0]) and u < _arb(box[1]))):
+        if not u.is_finite() or (box is not None and not (u > rational_ball(box[0]) and u < rational_ball(box[1]))):
             raise HandOver(f"an input of point {point} is not proven inside its range")
     for name in given:
         if name in model.input_boxes:
             _inside(given[name], model.input_boxes[name], point)
-
-
-def _arb(q: Fraction) -> Any:
-    from flint import arb, fmpq
-
-    return arb(fmpq(q.numerator, q.denominator))
 
 
 def _inside(value: Fraction, box: tuple[Fraction, Fraction], point: str) -> None:
@@ -360,25 +354,23 @@ def _inside(value: Fraction, box: tuple[Fraction, Fraction], point: str) -> None
 
 def _solve(rows: list[list[Fraction]], rhs: list[Fraction]) -> list[Fraction]:
     """The unique exact solution of rows . u = rhs (n equations, k unknowns), or hand over
-    (no solution: not an equilibrium; several: an input not determined)."""
+    (no solution: not an equilibrium; several: an input not determined). python-flint's
+    reduced row echelon form of [rows | rhs]: a unique solution has rank k on both sides,
+    and then the first k rows read I | u."""
+    from flint import fmpq, fmpq_mat
+
     k = len(rows[0]) if rows else 0
-    aug = [list(r) + [b] for r, b in zip(rows, rhs)]
-    pivot_row = 0
-    for col in range(k):
-        found = next((r for r in range(pivot_row, len(aug)) if aug[r][col] != 0), None)
-        if found is None:
-            raise HandOver("the point does not determine its inputs")
-        aug[pivot_row], aug[found] = aug[found], aug[pivot_row]
-        p = aug[pivot_row][col]
-        aug[pivot_row] = [x / p for x in aug[pivot_row]]
-        for r in range(len(aug)):
-            if r != pivot_row and aug[r][col] != 0:
-                factor = aug[r][col]
-                aug[r] = [a - factor * b for a, b in zip(aug[r], aug[pivot_row])]
-        pivot_row += 1
-    if any(row[k] != 0 for row in aug[pivot_row:]):
+    if k == 0:
+        if any(b != 0 for b in rhs):
+            raise HandOver("the point is not an equilibrium")
+        return []
+    exact = [[fmpq(x.numerator, x.denominator) for x in [*r, b]] for r, b in zip(rows, rhs)]
+    if fmpq_mat([r[:k] for r in exact]).rank() < k:
+        raise HandOver("the point does not determine its inputs")
+    reduced, rank = fmpq_mat(exact).rref()
+    if rank > k:
         raise HandOver("the point is not an equilibrium")
-    return [aug[i][k] for i in range(k)]
+    return [_fraction(reduced[i, k]) for i in range(k)]
 
 
 # -- the envelope ----------------------------------------------------------------------

@@ -4,13 +4,13 @@ The decoupling matrix A(x) (rows L_gj L_f^(r_i - 1) h_i) is enclosed over a box 
 mean-value form A(c) + sum_a dA/dx_a(box) (x_a - c_a) (Moore, Kearfott and Cloud,
 Introduction to Interval Analysis, SIAM 2009, sec. 6.4), intersected with its direct
 enclosure over the box: the values at the centre, over the box and the gradients over the
-box come from :meth:`Towers.lglf` and :meth:`Towers.decoupling_gradients` run on arb balls. A box is proven when f, the g columns and h are finite over it (no
-division by a ball holding 0, no function at or past its domain's edge) and det A excludes 0;
-an undecided box is split across the side that moves A the most (|dA/dx_a| times width),
-or, when a value is not defined over it (a ball of x*x that holds 0), across the sides in
-turn.
-The order of the boxes is fixed (depth first), so a proof within a number of boxes is the
-same proof on every machine.
+box come from :meth:`Towers.lglf` and :meth:`Towers.decoupling_gradients` run on arb balls.
+A box is proven when f, the g columns and h are finite over it (no division by a ball
+holding 0, no function at or past its domain's edge) and det A excludes 0. An undecided box
+is split across the side that moves A the most (|dA/dx_a| times width); where a value is not
+defined over it (a ball of x*x that holds 0), across the side whose midpoint makes it
+defined, else across the sides in turn. The order of the boxes is fixed (depth first), so a
+proof within a number of boxes is the same proof on every machine.
 
 Two callers: the light route (:mod:`plantlint.analysis.light`), which answers a model only
 when this proves its envelope within a few boxes, and the full analysis's envelope stage
@@ -29,6 +29,7 @@ from typing import Any, Sequence
 
 from flint import arb, arb_mat, fmpq, fmpq_mat
 
+from plantlint.kernel import decision as zd
 from plantlint.kernel.taylor import ArbField, Undefined
 
 #: Boxes the full analysis's second try may examine; the light route uses no more (a proof
@@ -66,18 +67,20 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
             return RegularityProof(False, None, examined, "seconds")
         here, depth = todo.pop()
         examined += 1
+        balls = [ball(lo, hi) for lo, hi in here]
         try:
-            _defined(towers, [ball(lo, hi) for lo, hi in here], field)
-            matrix, spread = _mean_value_matrix(towers, here, orders, field)
-            if nonsingular(matrix):
-                margin = min(margin, lower_bound(determinant(matrix)))
+            _defined(towers, balls, field)
+            matrix, spread = _mean_value_matrix(towers, here, balls, orders, field)
+            det = determinant(matrix)
+            if nonzero(det):
+                margin = min(margin, lower_bound(det))
                 continue
             side = max(range(len(here)), key=lambda a: spread[a])
         except Undefined:
             # no gradient to go by: the first side whose midpoint makes the values defined
             # (the air gap under c I^2 / x^2), else the sides in turn (widths in different
             # units say nothing: an air gap of 1.5 cm next to a speed range of 2 m/s)
-            side = _culprit(towers, here, field)
+            side = _culprit(towers, here, balls, field)
             side = depth % len(here) if side is None else side
         lo, hi = here[side]
         middle = (lo + hi) / 2
@@ -93,9 +96,9 @@ def _defined(towers: Any, balls: Sequence[arb], field: Any) -> None:
         raise Undefined("a value that is not finite over the box")
 
 
-def _culprit(towers: Any, box: Sequence[tuple[Fraction, Fraction]], field: Any) -> int | None:
+def _culprit(towers: Any, box: Sequence[tuple[Fraction, Fraction]], balls: Sequence[arb], field: Any
+             ) -> int | None:
     """A side that, held at its midpoint, makes the values defined over the rest of the box."""
-    balls = [ball(lo, hi) for lo, hi in box]
     for side in sorted(range(len(box)), key=lambda a: box[a][0] - box[a][1]):  # widest first
         middle = (box[side][0] + box[side][1]) / 2
         try:
@@ -106,9 +109,14 @@ def _culprit(towers: Any, box: Sequence[tuple[Fraction, Fraction]], field: Any) 
     return None
 
 
+def rational_ball(q: Fraction) -> arb:
+    """The ball of one rational number (exact when it is a binary fraction at the precision)."""
+    return arb(fmpq(q.numerator, q.denominator))
+
+
 def ball(lo: Fraction, hi: Fraction) -> arb:
     """A ball that holds [lo, hi]."""
-    return arb(fmpq(lo.numerator, lo.denominator)).union(arb(fmpq(hi.numerator, hi.denominator)))
+    return rational_ball(lo).union(rational_ball(hi))
 
 
 def determinant(matrix: Sequence[Sequence[Any]]) -> Any:
@@ -137,12 +145,14 @@ def lower_bound(det: Any) -> float:
         return sys.float_info.max
 
 
+def nonzero(det: Any) -> bool:
+    """A determinant proven non-zero: exactly (fmpq), or by a finite ball that excludes 0."""
+    return (zd.exactly(det == 0) if isinstance(det, fmpq) else zd.of_ball(det)).proven_nonzero
+
+
 def nonsingular(matrix: Sequence[Sequence[Any]]) -> bool:
-    """det proven non-zero: exactly (fmpq), or by a finite ball that excludes 0."""
-    det = determinant(matrix)
-    if isinstance(det, fmpq):
-        return det != 0
-    return det.is_finite() and not det.contains(0)
+    """:func:`nonzero` of the matrix's determinant."""
+    return nonzero(determinant(matrix))
 
 
 def _tighter(a: Any, b: Any) -> Any:
@@ -154,12 +164,12 @@ def _tighter(a: Any, b: Any) -> Any:
     return a.intersection(b) if a.overlaps(b) else a  # disjoint enclosures of one value: never
 
 
-def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders: Sequence[int], field: Any
-                       ) -> tuple[list[list[Any]], list[float]]:
-    """The decoupling matrix enclosed over ``box`` in mean-value form, and per side of the
-    box how far the gradients can move it across that side (the side to split)."""
-    balls = [ball(lo, hi) for lo, hi in box]
-    centre = [arb(fmpq(((lo + hi) / 2).numerator, ((lo + hi) / 2).denominator)) for lo, hi in box]
+def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], balls: Sequence[arb],
+                       orders: Sequence[int], field: Any) -> tuple[list[list[Any]], list[float]]:
+    """The decoupling matrix enclosed over ``box`` (held by ``balls``) in mean-value form,
+    and per side of the box how far the gradients can move it across that side (the side
+    to split)."""
+    centre = [rational_ball((lo + hi) / 2) for lo, hi in box]
     top = max(orders)
     at_centre = towers.lglf(None, top, field, start=centre)
     gradients = towers.decoupling_gradients(balls, top, field)
@@ -182,4 +192,4 @@ def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], or
 
 
 __all__ = ["MAX_STATES", "SECOND_TRY_BOXES", "RegularityProof", "ball", "determinant", "lower_bound",
-           "nonsingular", "prove_regular"]
+           "nonsingular", "nonzero", "prove_regular", "rational_ball"]

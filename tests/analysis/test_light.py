@@ -229,9 +229,9 @@ def test_a_regularity_only_the_mean_value_form_proves_passes_in_both_routes() ->
     assert _agrees(text.encode("utf-8")) is True
 
 
-def test_the_runner_asks_the_light_route_only_within_its_total_seconds(monkeypatch: pytest.MonkeyPatch) -> None:
+def test_the_runner_asks_the_light_route_only_within_its_first_round(monkeypatch: pytest.MonkeyPatch) -> None:
     """A repository of models the route hands over late must not lose the workers'
-    parallelism: after LIGHT_TOTAL_SECONDS the rest go to the full analysis directly."""
+    parallelism: after LIGHT_SERIAL_SECONDS the rest go to the full analysis directly."""
     from plantlint.run import runner
     from plantlint.run.config import Config
 
@@ -239,7 +239,7 @@ def test_the_runner_asks_the_light_route_only_within_its_total_seconds(monkeypat
     routes = [r.route for r in runner.raw_results(sources, Config(), jobs=1, use_cache=False, cache_dir=None,
                                                   show_progress=False, light=True)]
     assert routes == ["light", "light"]
-    monkeypatch.setattr(runner, "LIGHT_TOTAL_SECONDS", 0.0)
+    monkeypatch.setattr(runner, "LIGHT_SERIAL_SECONDS", 0.0)
     raws = runner.raw_results(sources, Config(), jobs=1, use_cache=False, cache_dir=None, show_progress=False,
                               light=True)
     assert [r.route for r in raws] == ["full", "full"] and all(r.analysis is not None for r in raws)

@@ -727,38 +727,32 @@ def raw_results(
         keys.append(key)
         raws.append(cache.get(key) or (light_cache.get(light_cache.key(src.data)) if light else None))
     todo = [i for i, r in enumerate(raws) if r is None]
-    until = time.monotonic() + LIGHT_TOTAL_SECONDS
+    # One model: the light route is asked in this process while the model's worker starts on
+    # the full analysis (and imports it: a single model is not preloaded). A pass it proves
+    # stops the worker; a model it hands over has lost no time where a second core runs the
+    # worker. (With several, asking while workers run would hold up collecting the others'
+    # results.)
+    beside = (lambda _k: _light(sources[todo[0]].data or b"", config)) if light and len(todo) == 1 else None
     if light and len(todo) > 1:
-        # Several models: the light route first, one after another, for a short while. Clean
-        # small models are answered in milliseconds each, and if it answers them all, no
-        # worker starts and nothing imports sympy. (Workers forked afterwards share the
-        # parent's import of the analysis, see _preload.)
-        # The envelope proof gets a short time here; a model it runs out on is asked again,
-        # with the full time, while its worker runs.
-        serial_until = min(time.monotonic() + LIGHT_SERIAL_SECONDS, until)
+        # Several models: the light route first, one after another, for a short while, with
+        # a short envelope proof each. Clean small models are answered in milliseconds each,
+        # and if it answers them all, no worker starts and nothing imports sympy; the rest go
+        # to the workers (forked afterwards, they share the parent's import, see _preload).
+        until = time.monotonic() + LIGHT_SERIAL_SECONDS
         for i in todo:
-            if time.monotonic() >= serial_until:
+            if time.monotonic() >= until:
                 break
             raws[i] = _light(sources[i].data or b"", config, LIGHT_SERIAL_MODEL_SECONDS)
             if raws[i] is not None:
                 light_cache.put(light_cache.key(sources[i].data or b""), raws[i])  # type: ignore[arg-type]
         todo = [i for i in todo if raws[i] is None]
 
-    def ask_light(k: int) -> RawResult | None:
-        # One model: the light route here while its worker starts on the full analysis (and
-        # imports it: the single model is not preloaded). A pass it proves stops the worker;
-        # a model it hands over has lost no time where a second core runs the worker. (With
-        # several, asking here would hold up collecting the others' results.)
-        if time.monotonic() >= until:
-            return None
-        return _light(sources[todo[k]].data or b"", config)
-
     if todo:
         progress = _Progress(len(todo)) if show_progress and len(todo) > 3 else None
         try:
             fresh = analyse_all([sources[i].data or b"" for i in todo], config.analysis, jobs, config.seconds,
                                 on_done=(lambda _i: progress.advance()) if progress else None, explain=explain,
-                                early=ask_light if light and len(todo) == 1 else None)
+                                early=beside)
         finally:
             if progress:
                 progress.close()
@@ -776,15 +770,10 @@ def raw_results(
 #: this outer bound only keeps one pathological evaluation from holding the parent up: the
 #: worker's full analysis then answers the model.
 LIGHT_SECONDS = 2.0
-#: Wall-clock seconds the light route may take over all models of one run (the parent also
-#: collects the workers' results and enforces their budgets; after these seconds the rest
-#: are left to the workers).
-LIGHT_TOTAL_SECONDS = 3.0
-#: Of those, the seconds it may take before any worker starts, when a run has several
-#: models to analyse (a single model's worker starts at once).
+#: The seconds the light route may take before any worker starts, when a run has several
+#: models to analyse (a single model's worker starts at once, beside it).
 LIGHT_SERIAL_SECONDS = 0.3
-#: The envelope proof's seconds in that first round (a model that needs more is asked again
-#: while its worker runs).
+#: The envelope proof's seconds in that round (a model that needs more goes to its worker).
 LIGHT_SERIAL_MODEL_SECONDS = 0.05
 
 

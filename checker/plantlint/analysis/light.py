@@ -104,6 +104,7 @@ def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
     plant = model.written
     towers = Towers(plant.states, (), plant.f, plant.g, plant.h, graph=plant.graph)
     degrees = _structural_degrees(plant)
+    _claims(model, degrees)  # cheap: before the points and the envelope, which are not
     try:
         points = [_equilibrium(model, towers, st) for st in model.by_kind.get("point", [])]
         for name, vector in points:
@@ -112,7 +113,6 @@ def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
     except (Undefined, Inexact) as why:  # a value at a point that does not exist or is not held
         raise HandOver(f"a value at a point: {why}") from None
     _envelope(model, towers, degrees, MAX_SECONDS if seconds is None else seconds)
-    _claims(model, degrees)
     return LightPass(model.name, tuple(d + 1 for d in degrees))
 
 
@@ -314,10 +314,10 @@ def _solved_in_balls(model: _Model, towers: Any, vector: list[Fraction], given: 
     plant = model.written
     graph, n = plant.graph, len(plant.states)
     driven = [i for i in range(n) if any(not _zero(graph, col[i]) for col in plant.g)]
+    zero = graph.const(0)
     for i in range(n):
         if i in driven:
             continue
-        zero = graph.const(0)
         row = Towers(plant.states, (), [plant.f[i] if k == i else zero for k in range(n)], (), (), graph=graph)
         try:
             value = row.values(vector, QField())[0][i]
@@ -408,5 +408,6 @@ def _claims(model: _Model, degrees: list[int]) -> None:
             raise HandOver("a claim in a form the route does not show")
         elif claim.kind == "minimum_phase" and not points:
             raise HandOver("minimum phase claimed without an operating point to hold it at")
+
 
 __all__ = ["CLAIMS", "HandOver", "LightPass", "MAX_BOXES", "MAX_SECONDS", "MAX_STATES", "light_check", "prove_clean"]

@@ -219,8 +219,7 @@ def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, 
     see :func:`naive_only`)."""
     command = plantlint_command() + ["check", "--no-cache", "--jobs", "1", "--timeout", f"{timeout:g}",
                                      "--format", "json", str(path)]
-    runs = sorted((measure(command, timeout + 60) for _ in range(max(repeat, 1))), key=lambda m: m.seconds)
-    pl = runs[len(runs) // 2]
+    pl = _median_run(command, timeout + 60, repeat)
     nv, from_file = _naive(spec, cap, recorded) if spec else (None, False)
     try:
         report = json.loads(pl.stdout)
@@ -239,8 +238,7 @@ def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, 
             naive = json.loads(nv.stdout.strip().splitlines()[-1])
             agrees = naive["relative_degree"] == analysis.get("relative_degree")
     analysis_s = analysis_time(path, timeout)
-    text_command = [c for c in command if c not in ("--format", "json")]
-    text_runs = sorted((measure(text_command, timeout + 60) for _ in range(max(repeat, 1))), key=lambda m: m.seconds)
+    text_run = _median_run([c for c in command if c not in ("--format", "json")], timeout + 60, repeat)
     from plantlint.analysis.light import light_check
 
     route = "light" if light_check(path.read_bytes()) is not None else "full"
@@ -254,8 +252,14 @@ def bench_model(path: Path, spec: ModelSpec | None, cap: float, timeout: float, 
         naive_s=round(naive_s, 3) if naive_s is not None else None,
         naive_peak_mb=round(naive_mb, 1) if naive_mb is not None else None, naive_capped=capped,
         ratio=round(ratio, 3) if ratio is not None else None, naive_agrees=agrees, analysis_s=analysis_s,
-        naive_recorded=from_file, text_s=round(text_runs[len(text_runs) // 2].seconds, 3), route=route,
+        naive_recorded=from_file, text_s=round(text_run.seconds, 3), route=route,
     )
+
+
+def _median_run(command: list[str], cap: float, repeat: int) -> Measured:
+    """The run of median wall time of ``repeat`` runs (at least one)."""
+    runs = sorted((measure(command, cap) for _ in range(max(repeat, 1))), key=lambda m: m.seconds)
+    return runs[len(runs) // 2]
 
 
 _ANALYSIS_TIMER = """

@@ -301,3 +301,29 @@ def test_a_light_report_is_the_full_analysis_report_byte_for_byte(tmp_path: Path
     assert light_run.returncode == full_run.returncode == 0
     assert light_run.stdout == full_run.stdout
     assert light_run.stdout or form == "lines"  # one line per finding: none here
+
+
+_SLOW_LIGHT = """
+import sys, time
+import plantlint.analysis.light as light
+
+def slow(*args, **kwargs):
+    time.sleep(3)  # a light route slower than the model's budget, handing over at the end
+    return None
+
+light.light_check = slow
+from plantlint.cli import main
+sys.exit(main(sys.argv[1:]))
+"""
+
+
+def test_the_light_route_beside_a_worker_does_not_stretch_the_budget(tmp_path: Path) -> None:
+    """While the parent asks the light route, the model's worker runs on its budget. The
+    question is bounded by what is left of that budget, so the budget stops the worker on
+    time: a worker that finishes after it is not decided, as without the light route,
+    never passed because the parent was busy (it was, for 3 s, before the bound)."""
+    (tmp_path / "spring.plant").write_text(CLEAN, encoding="utf-8")
+    run = subprocess.run([sys.executable, "-c", _SLOW_LIGHT, "check", "--no-cache", "--timeout", "0.05",
+                          "spring.plant"], cwd=tmp_path, capture_output=True, text=True, timeout=300)
+    assert run.returncode == 1, run.stdout + run.stderr
+    assert "NOT DECIDED" in run.stdout and "budget 0.05 s per model" in run.stdout

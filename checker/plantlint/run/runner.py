@@ -500,13 +500,15 @@ def analyse_all(
     timeout: float,
     on_done: Callable[[int], None] | None = None,
     explain: bool = False,
-    early: Callable[[int], RawResult | None] | None = None,
+    early: Callable[[int, float], RawResult | None] | None = None,
 ) -> list[RawResult]:
     """Analyse every model in worker processes, at most ``jobs`` at a time (with
     ``explain``, each result also carries the derivation that explain shows).
 
-    ``early(i)``, when given, is asked in this process for each model while its worker
-    runs (the light route): a result it returns is the model's, and its worker is stopped.
+    ``early(i, seconds)``, when given, is asked in this process for each model while its
+    worker runs (the light route), within the seconds left of the model's budget, so that
+    the budget is enforced on time: a result it returns is the model's, and its worker is
+    stopped.
     A single model is then not preloaded here, so that its worker imports the analysis
     while this process asks ``early``; with several, the import is shared as before."""
     if not datas:
@@ -535,7 +537,8 @@ def analyse_all(
                     if r.asked:
                         continue
                     r.asked = True
-                    answer = early(r.index)
+                    left = r.start + timeout - time.monotonic()
+                    answer = early(r.index, left) if left > 0 else None
                     if answer is not None:  # answered here: the worker's analysis is not needed
                         r.proc.kill()
                         r.proc.join()
@@ -732,7 +735,8 @@ def raw_results(
     # stops the worker; a model it hands over has lost no time where a second core runs the
     # worker. (With several, asking while workers run would hold up collecting the others'
     # results.)
-    beside = (lambda _k: _light(sources[todo[0]].data or b"", config)) if light and len(todo) == 1 else None
+    beside = ((lambda _k, left: _light(sources[todo[0]].data or b"", config, within=left))
+              if light and len(todo) == 1 else None)
     if light and len(todo) > 1:
         # Several models: the light route first, one after another, for a short while, with
         # a short envelope proof each. Clean small models are answered in milliseconds each,
@@ -777,13 +781,17 @@ LIGHT_SERIAL_SECONDS = 0.3
 LIGHT_SERIAL_MODEL_SECONDS = 0.05
 
 
-def _light(data: bytes, config: Config, seconds: float | None = None) -> RawResult | None:
+def _light(data: bytes, config: Config, seconds: float | None = None, within: float | None = None
+           ) -> RawResult | None:
     """The light route's answer for one model, or None (the worker's analysis answers);
-    ``seconds`` bounds its envelope proof (default: the route's own)."""
+    ``seconds`` bounds its envelope proof (default: the route's own), and the whole call
+    takes at most ``LIGHT_SECONDS`` and ``within`` (default: the model's budget), so that
+    no answer comes later than the budget allows."""
     from plantlint.core import deadline
     from plantlint.run.pipeline import light_result
 
-    raw = deadline.bounded(LIGHT_SECONDS, lambda: light_result(data, config.analysis, seconds))
+    bound = min(LIGHT_SECONDS, config.seconds if within is None else within)
+    raw = deadline.bounded(bound, lambda: light_result(data, config.analysis, seconds))
     return None if raw is deadline.LATE else raw  # type: ignore[return-value]
 
 

@@ -513,7 +513,7 @@ def analyse_all(
     while this process asks ``early``; with several, the import is shared as before."""
     if not datas:
         return []
-    if (len(datas) > 1 or _reaches_values(datas[0])) and not (early is not None and len(datas) == 1):
+    if not (early is not None and len(datas) == 1) and (len(datas) > 1 or _reaches_values(datas[0])):
         _preload(datas)
 
     from multiprocessing import connection

@@ -102,7 +102,8 @@ def mutate(text: str, rng: random.Random, strip_units: bool, most: int) -> str:
 #: Models the light route passes, whose mutants are where a wrong light pass would hide.
 LIGHT_SOURCES = ("tests/fixtures/light/*.plant", "benchmarks/results/models/spring_chain_[12].plant",
                  "benchmarks/results/models/pendulum_arm_*.plant", "benchmarks/results/models/pendulum_bank_4.plant",
-                 "benchmarks/results/models/pendulum_chain_[23].plant", "tests/fixtures/rules/envelope-singular.plant")
+                 "benchmarks/results/models/pendulum_chain_[23].plant", "tests/fixtures/rules/envelope-singular.plant",
+                 "example_repo/models/handling/labeller_joint.plant", "example_repo/models/handling/palletizer_arm.plant")
 
 
 def compare_light(data: bytes) -> tuple[Any, str]:

@@ -23,9 +23,12 @@ The class it answers (each condition is checked; none is assumed):
 - as many outputs as inputs, with a vector relative degree summing to n (the outputs are
   linearizing: no zero dynamics, the distributions follow without brackets, Isidori,
   Nonlinear Control Systems, 3rd ed., sec. 5.2);
-- every point gives every state (and any inputs) as rational numbers, inside the ranges,
-  and is an exact equilibrium, its missing inputs solved exactly and uniquely, inside
-  theirs;
+- every point gives every state (and any inputs) as exact numbers, inside the ranges, and
+  is an exact equilibrium, its missing inputs solved exactly and uniquely, inside theirs:
+  rational numbers in exact arithmetic; anything else (a value pi/4, a rate sin(1/4)) in
+  formal numbers (:mod:`plantlint.kernel.formal`: pi, the sines, the square roots are the
+  unknowns of a polynomial ring, so a rate is proven 0 by an identity, and each number
+  carries a ball that shows it inside a range or a pivot non-zero);
 - at every point the decoupling matrix is proven nonsingular (exact rationals, or balls
   that exclude 0), with the rows below each relative degree zero by the dependency graph
   (L_g L_f^k h = 0 identically while no state the output's k-th derivative can read is
@@ -46,7 +49,7 @@ from typing import Any, Sequence
 
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.regularity import MAX_STATES as REGULARITY_STATES
-from plantlint.kernel.regularity import SECOND_TRY_BOXES, nonsingular, prove_regular, rational_ball
+from plantlint.kernel.regularity import SECOND_TRY_BOXES, ball, nonsingular, prove_regular, rational_ball
 from plantlint.kernel.taylor import Inexact, Towers, Undefined
 
 #: Largest model the light route tries (states): the envelope proof splits boxes in every
@@ -102,13 +105,13 @@ def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
     statements = _read(data)
     model = _Model(statements)
     plant = model.written
-    towers = Towers(plant.states, (), plant.f, plant.g, plant.h, graph=plant.graph)
+    towers = Towers(plant.states, plant.params, plant.f, plant.g, plant.h, graph=plant.graph)
     degrees = _structural_degrees(plant)
     _claims(model, degrees)  # cheap: before the points and the envelope, which are not
     try:
         points = [_equilibrium(model, towers, st) for st in model.by_kind.get("point", [])]
-        for name, vector in points:
-            if not nonsingular(_decoupling(towers, vector, degrees)):
+        for name, vector, formal in points:
+            if not _nonsingular_at(towers, vector, degrees, formal):
                 raise HandOver(f"the decoupling matrix is not proven nonsingular at point {name}")
     except (Undefined, Inexact) as why:  # a value at a point that does not exist or is not held
         raise HandOver(f"a value at a point: {why}") from None
@@ -152,12 +155,10 @@ class _Model:
         unknown = set(self.by_kind) - {"const", "param", "state", "input", "let", "rate", "output", "point", "expect"}
         if unknown:
             raise HandOver(f"statements the route does not take: {', '.join(sorted(unknown))}")
-        if any(st.low is not None for st in self.by_kind.get("param", [])):
-            raise HandOver("a parameter with a range")
         if any(st.tolerance is not None for st in self.by_kind.get("point", [])):
             raise HandOver("a point with a tolerance")
         try:
-            self.written, self._value = read_with_values(statements)
+            self.written, self._values = read_with_values(statements)
         except Refused as why:
             raise HandOver(f"the graph reader refused the model: {why}") from None
         plant = self.written
@@ -167,6 +168,12 @@ class _Model:
             raise HandOver("not as many outputs as inputs")
         self._constants_rational()
         self.boxes = {st.name: self._range(st) for st in self.by_kind["state"]}
+        #: the ranged parameters' intervals, in the order of the graph's variables after the states
+        ranged = {st.name: (self._range(st), self.value(st.expr))
+                  for st in self.by_kind.get("param", []) if st.low is not None}
+        if any(box is None or not box[0] <= nominal <= box[1] for box, nominal in ranged.values()):
+            raise HandOver("a parameter's nominal value outside its range")  # the bad-range rule
+        self.param_boxes = [ranged[name][0] for name in plant.params]
         self.input_boxes = {st.name: self._range(st) for st in self.by_kind.get("input", []) if st.low is not None}
         if any(b is None for b in self.boxes.values()):
             raise HandOver("a state without a range")
@@ -177,12 +184,42 @@ class _Model:
         from plantlint.language.written import Refused
 
         try:
-            number = self._value(expr)
+            number = self._values.rational(expr)
         except Refused as why:
             raise HandOver(str(why)) from None
         if number is None:
             raise HandOver("a value that is not an exact rational number")
         return number
+
+    def point_value(self, expr: Any, formal: Any) -> Any:
+        """A point's value: an exact rational, or else (pi/4, m g l sin(pi/4) / k) a formal
+        number of ``formal`` (:class:`~plantlint.kernel.formal.FormalField`): its pi, sines
+        and square roots are unknowns shared with the rates evaluated at the point."""
+        from plantlint.language.written import Refused
+
+        try:
+            node = self._values.node(expr)
+        except Refused as why:
+            raise HandOver(str(why)) from None
+        graph = self._values.graph
+        op, _, data = graph.nodes[node]
+        if op == "const":
+            return data
+        names = graph.variables
+        if any(names[v] not in self.written.params for v in graph.variables_of(node)):
+            raise HandOver("a point value that depends on a state or an input")
+        zero = formal.const(Fraction(0))
+        point = [self.parameter(name, formal) if name in self.written.params else zero for name in names]
+        try:
+            return Towers((), names, (), (), (node,), graph=graph).values(point, formal)[2][0]
+        except (Undefined, Inexact) as why:
+            raise HandOver(f"a point value that is not read exactly: {why}") from None
+
+    def parameter(self, name: str, formal: Any) -> Any:
+        """A ranged parameter as a formal unknown whose ball holds its whole interval: an
+        identity in it holds for every value, and a ball over it bounds every value."""
+        lo, hi = self.param_boxes[self.written.params.index(name)]
+        return formal.parameter(name, ball(lo, hi))
 
     def _constants_rational(self) -> None:
         for st in [*self.by_kind.get("const", []), *self.by_kind.get("param", [])]:
@@ -219,8 +256,8 @@ def _structural_degrees(plant: Any) -> list[int]:
     relative degree: the rows below it vanish identically, that one does not."""
     graph, n = plant.graph, len(plant.states)
 
-    def states(node: int) -> set[int]:  # the graph's variables are the states (no ranged parameters here)
-        return set(graph.variables_of(node))
+    def states(node: int) -> set[int]:  # the graph's variables: the states, then the ranged parameters
+        return {v for v in graph.variables_of(node) if v < n}
 
     reads = [states(node) for node in plant.f]
     driven = {i for i in range(n) if any(not _zero(graph, col[i]) for col in plant.g)}
@@ -245,6 +282,22 @@ def _zero(graph: Any, node: int) -> bool:
     return op == "const" and value == 0
 
 
+def _nonsingular_at(towers: Any, vector: Sequence[Any], degrees: list[int], formal: Any) -> bool:
+    """The decoupling matrix proven nonsingular at a point: of rational states, exactly or
+    by balls (:func:`_decoupling`); of formal numbers (pi/4, a ranged parameter), in them:
+    elimination on pivots proven non-zero (balls tightened over the parameters' intervals),
+    so det A = +-(the pivots' product) is non-zero for every parameter value."""
+    if formal is None:
+        return nonsingular(_decoupling(towers, vector, degrees))
+    rows = towers.lglf(vector, max(degrees), formal)
+    matrix = [rows[i][d] for i, d in enumerate(degrees)]
+    try:
+        _eliminated([[*row, formal.const(Fraction(0))] for row in matrix], len(matrix), formal)
+    except HandOver:
+        return False
+    return True
+
+
 def _decoupling(towers: Any, vector: Sequence[Fraction], degrees: list[int]) -> list[list[Any]]:
     """A[i][j] = L_gj L_f^(r_i - 1) h_i at the point: exact rationals when they are, else
     balls at 256 bits."""
@@ -259,31 +312,37 @@ def _decoupling(towers: Any, vector: Sequence[Fraction], degrees: list[int]) -> 
 
 # -- points ----------------------------------------------------------------------------
 
-def _equilibrium(model: _Model, towers: Any, st: Any) -> tuple[str, list[Any]]:
-    """The point's state vector, once it is proven an exact equilibrium inside the ranges
-    (its missing inputs solved uniquely, inside theirs)."""
+def _equilibrium(model: _Model, towers: Any, st: Any) -> tuple[str, list[Any], Any]:
+    """The point's vector (states, then ranged parameters), once it is proven an exact
+    equilibrium inside the ranges (its missing inputs solved uniquely, inside theirs), and
+    the formal field its numbers belong to (None: rational states, no ranged parameter)."""
+    from plantlint.kernel.formal import FormalField
     from plantlint.kernel.taylor import QField
 
     plant = model.written
-    given: dict[str, Fraction] = {}
+    formal = FormalField()  # one per point: its values and its rates share the unknowns (pi, sin(pi/4))
+    given: dict[str, Any] = {}
     for target, expr in st.assignments:
         if target.name in given or target.name not in (*plant.states, *plant.inputs):
             raise HandOver(f"point {st.name} assigns {target.name} twice or assigns no state or input")
-        given[target.name] = model.value(expr)
+        given[target.name] = model.point_value(expr, formal)
     if any(s not in given for s in plant.states):
         raise HandOver(f"point {st.name} leaves out a state")
-    vector = [given[s] for s in plant.states]
+    vector = [given[s] for s in plant.states] + [model.parameter(p, formal) for p in plant.params]
     for s in plant.states:
         _inside(given[s], model.boxes[s], st.name)
     known = [j for j, u in enumerate(plant.inputs) if u in given]
     unknown = [j for j, u in enumerate(plant.inputs) if u not in given]
+    if any(not isinstance(v, Fraction) for v in [*given.values(), *vector]):
+        _solved_formally(model, towers, vector, given, known, unknown, st.name, formal)
+        return st.name, [v if not isinstance(v, Fraction) else formal.const(v) for v in vector], formal
     try:
         f0, G0, _ = towers.values(vector, QField())
     except Undefined:
         raise HandOver(f"the rates are not defined at point {st.name}") from None
-    except Inexact:  # a value is not rational there (sin(1/4)): the inputs are solved in balls
-        _solved_in_balls(model, towers, vector, given, known, unknown, st.name)
-        return st.name, vector
+    except Inexact:  # a value is not rational there (sin(1/4)): solved with formal numbers
+        _solved_formally(model, towers, vector, given, known, unknown, st.name, formal)
+        return st.name, vector, None
     f = [_fraction(v) for v in f0]
     G = [[_fraction(v) for v in col] for col in G0]
     c = [f[i] + sum((G[j][i] * given[plant.inputs[j]] for j in known), Fraction(0)) for i in range(len(f))]
@@ -292,62 +351,84 @@ def _equilibrium(model: _Model, towers: Any, st: Any) -> tuple[str, list[Any]]:
         given[plant.inputs[j]] = u
     for name, box in model.input_boxes.items():
         _inside(given[name], box, st.name)
-    return st.name, vector
+    return st.name, vector, None
 
 
 def _fraction(v: Any) -> Fraction:
     return Fraction(int(v.p), int(v.q))
 
 
-def _solved_in_balls(model: _Model, towers: Any, vector: list[Fraction], given: dict[str, Fraction],
-                     known: list[int], unknown: list[int], point: str) -> None:
-    """A point whose rates are not rational there (a holding torque g l m sin(1/4)): an
-    equilibrium when every rate that no input enters is exactly 0 (its program run in exact
-    rationals) and the others, one per missing input, determine those inputs uniquely
-    (their columns' determinant non-zero by balls), each inside its range by balls. The
-    inputs are then irrational numbers known to 256 bits; the full analysis solves them
-    exactly. Anything else is handed over."""
-    from flint import arb, arb_mat
-
-    from plantlint.kernel.taylor import ArbField, QField
-
+def _solved_formally(model: _Model, towers: Any, vector: list[Any], given: dict[str, Any], known: list[int],
+                     unknown: list[int], point: str, formal: Any) -> None:
+    """A point whose values or rates are not rational (a link at pi/4, a holding torque
+    g l m sin(1/4)), computed with formal numbers (:mod:`plantlint.kernel.formal`: pi, the
+    sines, the square roots are unknowns of a polynomial ring, each number carries a
+    rigorous ball). An equilibrium when every rate that no input enters is formally 0 (an
+    identity, whatever the unknowns stand for) and the others, one per missing input,
+    determine those inputs uniquely (elimination on pivots whose balls exclude 0); the
+    inputs are then exact numbers, each shown inside its range by its ball. Anything the
+    formal numbers do not settle (an identity such as sin^2 + cos^2 = 1) is handed over:
+    the full analysis decides it with sympy."""
     plant = model.written
     graph, n = plant.graph, len(plant.states)
     driven = [i for i in range(n) if any(not _zero(graph, col[i]) for col in plant.g)]
-    zero = graph.const(0)
-    for i in range(n):
-        if i in driven:
-            continue
-        row = Towers(plant.states, (), [plant.f[i] if k == i else zero for k in range(n)], (), (), graph=graph)
-        try:
-            value = row.values(vector, QField())[0][i]
-        except (Inexact, Undefined):
-            raise HandOver(f"the rate of {plant.states[i]} is not an exact rational at point {point}") from None
-        if value != 0:
-            raise HandOver(f"the rate of {plant.states[i]}, which no input enters, is not 0 at point {point}")
-    if len(driven) != len(unknown):
-        raise HandOver(f"the inputs of point {point} are not one per driven rate")
-    if not unknown:
-        return
-    field = ArbField(256)
-    f0, G0, _ = towers.values(vector, field)
-    rows = [[G0[j][i] for j in unknown] for i in driven]
-    rhs = [-(f0[i] + sum((G0[j][i] * field.const(given[plant.inputs[j]]) for j in known), arb(0)))
-           for i in driven]
-    if not nonsingular(rows):
-        raise HandOver(f"the point {point} does not determine its inputs (not proven)")
-    solved = arb_mat(rows).solve(arb_mat([[x] for x in rhs]))
-    for k, j in enumerate(unknown):
-        box = model.input_boxes.get(plant.inputs[j])
-        u = solved[k, 0]
-        if not u.is_finite() or (box is not None and not (u > rational_ball(box[0]) and u < rational_ball(box[1]))):
-            raise HandOver(f"an input of point {point} is not proven inside its range")
+    try:
+        f0, G0, _ = towers.values(vector, formal)
+        c = [f0[i] + sum((G0[j][i] * given[plant.inputs[j]] for j in known), formal.const(Fraction(0)))
+             for i in range(n)]
+        for i in range(n):
+            if i not in driven and not formal.is_zero(c[i]).proven_zero:
+                raise HandOver(f"the rate of {plant.states[i]}, which no input enters, is not proven 0 "
+                               f"at point {point}")
+        solved = _eliminated([[G0[j][i] for j in unknown] + [-c[i]] for i in driven], len(unknown), formal)
+        for j, u in zip(unknown, solved):
+            given[plant.inputs[j]] = u
+    except Undefined:
+        raise HandOver(f"the rates are not defined at point {point}") from None
+    except Inexact as why:  # the formal numbers did not settle a step (kernel.formal.Unsettled)
+        raise HandOver(f"a value at point {point}: {why}") from None
     for name in given:
         if name in model.input_boxes:
             _inside(given[name], model.input_boxes[name], point)
 
 
-def _inside(value: Fraction, box: tuple[Fraction, Fraction], point: str) -> None:
+def _eliminated(rows: list[list[Any]], k: int, formal: Any) -> list[Any]:
+    """The unique solution u of A u = b, [A | b] given as rows of formal numbers with k
+    unknowns (at least k rows): Gauss-Jordan elimination, each pivot the first entry of
+    its column proven non-zero (its ball excludes 0), and every row left over proven
+    formally 0 (the equations agree). Hand over when a column has no such pivot (the
+    inputs not determined, or not proven so) or a row left over is not proven 0."""
+    rows = [list(r) for r in rows]
+    if len(rows) < k:
+        raise HandOver("the point does not determine its inputs")
+    for col in range(k):
+        pivot = next((r for r in range(col, len(rows)) if formal.is_zero(rows[r][col]).proven_nonzero), None)
+        if pivot is None:
+            raise HandOver("the point does not determine its inputs (not proven)")
+        rows[col], rows[pivot] = rows[pivot], rows[col]
+        inverse = rows[col][col].inverse()
+        rows[col] = [x * inverse for x in rows[col]]
+        for r in range(len(rows)):
+            if r != col and not formal.is_zero(rows[r][col]).proven_zero:
+                factor = rows[r][col]
+                rows[r] = [a - factor * b for a, b in zip(rows[r], rows[col])]
+    if any(not formal.is_zero(x).proven_zero for r in rows[k:] for x in r):
+        raise HandOver("the point is not proven an equilibrium (equations left over)")
+    return [r[k] for r in rows[:k]]
+
+
+def _inside(value: Any, box: tuple[Fraction, Fraction], point: str) -> None:
+    """An exact rational inside the closed range; a formal number strictly inside it by its
+    ball (or exactly, when it is a rational constant)."""
+    if not isinstance(value, Fraction):
+        if value.is_constant():
+            r = value.rational()
+            value = Fraction(int(r.p), int(r.q))
+        elif any(b.is_finite() and b > rational_ball(box[0]) and b < rational_ball(box[1])
+                 for b in (value.ball, value.refined())):
+            return
+        else:
+            raise HandOver(f"a value of point {point} is not proven inside its range")
     if not box[0] <= value <= box[1]:
         raise HandOver(f"a value of point {point} lies outside its range")
 
@@ -379,7 +460,8 @@ def _envelope(model: _Model, towers: Any, degrees: list[int], seconds: float) ->
     """Over the state box the model is defined and the decoupling matrix is nonsingular
     (:func:`plantlint.kernel.regularity.prove_regular`), within few boxes and seconds."""
     plant = model.written
-    proof = prove_regular(towers, [model.boxes[s] for s in plant.states], degrees, MAX_BOXES, seconds)
+    box = [model.boxes[s] for s in plant.states] + model.param_boxes
+    proof = prove_regular(towers, box, degrees, MAX_BOXES, seconds)
     if not proof.proven:
         raise HandOver(f"the envelope proof did not finish within its {proof.stopped}")
 

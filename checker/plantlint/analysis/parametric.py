@@ -91,6 +91,7 @@ class ParametricPoint:
     zero_dynamics: BoxVerdict | None = None
     controllability: BoxVerdict | None = None
     rows: dict[str, BoxVerdict] = field(default_factory=dict)  # per output: its relative degree at the point
+    ranges: BoxVerdict | None = None  # the point's values inside their ranges over the box
     findings: list[Finding] = field(default_factory=list)
     params: "ParameterBox | None" = field(default=None, repr=False, compare=False)
     solved: tuple[sp.Symbol, ...] = ()  # inputs solved as functions of the parameters
@@ -142,6 +143,9 @@ def box_point(
     out.values = values or {}
     out.solved = tuple(u for u in eq.solved_inputs if u in out.values)
     _report_equilibrium(out, params, name)
+    if out.equilibrium.outcome == "proven" and values:
+        out.ranges = _bounded(params, lambda: _ranges(params, values, out.solved, eq.values))
+        _report_ranges(out, params, name)
     ints = [int(d) for d in degrees if d is not None]
     if decoupling is not None and decoupling_defined and len(ints) == plant.p:
         # the relative degree at the point needs the states x0(p), not an equilibrium
@@ -304,6 +308,47 @@ def _equilibrium(params: ParameterBox, eq: Equilibrium, written: dict[sp.Symbol,
                           "value tried but could not be confirmed zero over the box symbolically"), values
     how = "inputs solved as functions of the parameters" if unknown else "residuals vanish identically"
     return BoxVerdict("proven", f"an equilibrium for every parameter value in the box ({how})"), values
+
+
+def _ranges(params: ParameterBox, values: dict[sp.Symbol, sp.Expr], solved: tuple[sp.Symbol, ...],
+            nominal: dict[sp.Symbol, sp.Expr]) -> BoxVerdict:
+    """The point's states and inputs inside their declared ranges for every parameter value
+    in the box (at the nominal values the points stage has checked them): lo <= v(p) <= hi
+    certified over the box (kernel.intervals.certify_sign), or a parameter value where a
+    value is certainly outside. Only values that depend on the parameters and ranges with
+    constant bounds are looked at."""
+    plant = params.kernel.plant
+    boxes = {**plant.state_box, **plant.input_box}
+    ranged = set(params.symbols)
+    undecided: list[str] = []
+    for sym, value in values.items():
+        bounds = boxes.get(sym)
+        if bounds is None or not (value.free_symbols & ranged):
+            continue
+        if any(b.free_symbols for b in bounds):
+            continue
+        at_nominal = nominal.get(sym)
+        kind = "state" if sym in plant.states else ("input needed" if sym in solved else "input")
+        lo, hi = bounds
+        for side, gap in (("below", value - lo), ("above", hi - value)):
+            if at_nominal is not None and at_nominal.is_Rational and (at_nominal < lo or at_nominal > hi):
+                continue  # outside at the nominal values: the points stage reports it
+            v = params.clock.spent(certify_sign(params.tidy(gap), params.box, False, params.clock.budget()))
+            if v.regular:
+                continue
+            if v.regular is False and v.witness is not None:
+                w = exact_point(params, v.witness)
+                shown = params.ball(value, w)
+                return BoxVerdict(
+                    "violated",
+                    f"the {kind} {sym} reaches {show_number(float(shown.mid()), mark_inexact=True)} at "
+                    f"{show_values(params.named(w))}, {side} its range {show_number(lo)} .. {show_number(hi)}",
+                    params.named(w), "outside")
+            undecided.append(f"{sym} {side} {show_number(lo if side == 'below' else hi)}")
+    if undecided:
+        return BoxVerdict("undecided", "whether " + ", ".join(undecided) + " could not be certified over the box "
+                          "within the budget")
+    return BoxVerdict("proven", "every value of the point inside its range over the whole parameter box")
 
 
 def _within_refinement(params: ParameterBox, r: sp.Expr, rate: sp.Expr) -> bool:
@@ -598,6 +643,20 @@ def _report_equilibrium(out: ParametricPoint, params: ParameterBox, name: str) -
                       "so that it follows them")
     else:
         _not_covered(out, params, "the equilibrium", v)
+
+
+def _report_ranges(out: ParametricPoint, params: ParameterBox, name: str) -> None:
+    v = out.ranges
+    if v is None or v.outcome == "proven":
+        return
+    if v.outcome == "violated":
+        _finding(out, "point-outside-envelope",
+                 f"point {name} lies inside the ranges at the nominal parameter values but not over the whole "
+                 f"parameter box: {v.detail}",
+                 hint="widen the range (an actuator sized for the whole parameter range), narrow the parameter "
+                      "range, or move the point")
+    else:
+        _not_covered(out, params, "the ranges", v)
 
 
 def _report_decoupling(out: ParametricPoint, params: ParameterBox, name: str) -> None:

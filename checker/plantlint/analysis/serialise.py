@@ -263,6 +263,7 @@ def parametric_json(pp: ParametricPoint) -> dict[str, Any]:
         "box": {k: [json_number(lo), json_number(hi)] for k, (lo, hi) in pp.box.items()},
         "solved_inputs": solved,
         "equilibrium": verdict_json(pp.equilibrium),
+        "ranges": verdict_json(pp.ranges),
         "decoupling": verdict_json(pp.decoupling),
         "zero_dynamics": verdict_json(pp.zero_dynamics),
         "controllability": verdict_json(pp.controllability),

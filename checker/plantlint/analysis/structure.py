@@ -625,15 +625,16 @@ def _mean_value_try(kernel: Kernel, structure: Structure, seconds: float) -> Reg
     that the light route may use at most, so that a model it passes is never left open
     here, and the envelope's seconds (the light route has 0.3 s for the same proof; one
     that runs out here is recorded, so the result is not cached). Only for square plants
-    of at most ``MAX_STATES`` states without ranged parameters, whose ranges are rational
-    and whose towers compile; else None."""
+    of at most ``MAX_STATES`` states whose ranges (of the states, and of the ranged
+    parameters, which are sides of the box like the states) are rational and whose towers
+    compile; else None."""
     plant = kernel.plant
     towers = kernel.towers()
-    if towers is None or plant.param_box or plant.p != plant.m or plant.n > REGULARITY_STATES:
+    if towers is None or plant.p != plant.m or plant.n > REGULARITY_STATES:
         return None
     box = []
-    for s in plant.states:
-        lo, hi = plant.state_box[s]
+    for s in (*plant.states, *plant.params):
+        lo, hi = plant.state_box[s] if s in plant.state_box else plant.param_box[s]
         if not (isinstance(lo, sp.Rational) and isinstance(hi, sp.Rational)):
             return None
         box.append((Fraction(int(lo.p), int(lo.q)), Fraction(int(hi.p), int(hi.q))))

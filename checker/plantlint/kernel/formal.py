@@ -30,15 +30,16 @@ them the computation is unsettled, never slow.
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Any, Callable
+from typing import TYPE_CHECKING, Any, Callable
 
-import sympy as sp
 from flint import arb, fmpq, fmpq_mpoly_ctx
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.precision import precision
-from plantlint.kernel.rational import sympy_rational
 from plantlint.kernel.taylor import ArbField, Inexact, QField, Undefined
+
+if TYPE_CHECKING:  # sympy only where a sympy number is read or written (the light route has none)
+    import sympy as sp
 
 #: Formal unknowns one computation may introduce.
 MAX_UNKNOWNS = 64
@@ -46,6 +47,9 @@ MAX_UNKNOWNS = 64
 MAX_TERMS = 4000
 #: Ball precision (bits) of the values beside the formal numbers.
 PREC = 256
+#: Pieces, in all, that the intervals of the parameters in a number are cut into when its
+#: ball must be tightened (:meth:`Formal.refined`).
+REFINE_PIECES = 64
 
 
 class Unsettled(Inexact):
@@ -147,9 +151,38 @@ class Formal:
     def inverse(self) -> "Formal":
         if self.num.is_zero():
             raise Undefined("division by zero")
-        if self.ball.contains(0):
+        bound = self.ball if not self.ball.contains(0) else self.refined()
+        if bound.contains(0):
             raise Unsettled("division by a value not proven non-zero")
-        return Formal(self.space, self.den, self.num, 1 / self.ball)
+        return Formal(self.space, self.den, self.num, 1 / bound)
+
+    def refined(self) -> arb:
+        """The ball of the value, tightened where parameters (unknowns that stand for a
+        whole interval, :meth:`FormalField.parameter`) occur: N / D evaluated term by term
+        on pieces of their intervals (the overestimate shrinks with a piece's width; even
+        powers of a piece are taken from its ends, so x^2 stays >= 0), the pieces' balls
+        united and intersected with the ball carried along. That ball itself when no
+        parameter occurs, or when D is not proven non-zero on a piece."""
+        space = self.space
+        degrees = [max(a, b) for a, b in zip(self.num.degrees(), self.den.degrees())]
+        params = [i for i, d in enumerate(degrees) if d and space.meanings[i][0] == "param"]
+        if not params:
+            return self.ball
+        cuts = max(int(REFINE_PIECES ** (1 / len(params))), 1)
+        with precision(PREC):
+            pieces = {i: _pieces(space.balls[i], cuts) for i in params}
+            total: arb | None = None
+            for choice in _product([pieces[i] for i in params]):
+                values = list(space.balls)
+                for i, piece in zip(params, choice):
+                    values[i] = piece
+                num, den = _evaluate(self.num, values), _evaluate(self.den, values)
+                if not den.is_finite() or den.contains(0) or not num.is_finite():
+                    return self.ball
+                part = num / den
+                total = part if total is None else total.union(part)
+        assert total is not None
+        return _tighter(total, self.ball)
 
     # exact comparisons with 0 only where they are proofs (formal zero is zero)
     def __eq__(self, other: object) -> bool:
@@ -182,20 +215,27 @@ class Formal:
     def decision(self) -> zd.ZeroDecision:
         if self.num.is_zero():
             return zd.proven_zero("formal")
-        if self.ball.is_finite() and not self.ball.contains(0):
-            return zd.proven_nonzero("ball")
+        for bound in (self.ball, self.refined()):
+            if bound.is_finite() and not bound.contains(0):
+                return zd.proven_nonzero("ball")
         return zd.UNDECIDED
 
-    def to_sympy(self) -> sp.Expr:
+    def to_sympy(self) -> "sp.Expr":
         """The exact sympy number this stands for (each unknown as the function value it is)."""
+        import sympy as sp
+
+        from plantlint.kernel.rational import sympy_rational
+
         cache: dict[int, sp.Expr] = {}
 
         def unknown(i: int) -> sp.Expr:
             if i not in cache:
                 name, args = self.space.meanings[i]
-                built = tuple(a.to_sympy() if isinstance(a, Formal) else sympy_rational(a) for a in args)
-                cache[i] = (sp.pi if name == "pi" else built[0] ** sp.Rational(name.split()[1])
-                            if name.startswith("pow ") else getattr(sp, name)(*built))
+                built = () if name == "param" else tuple(
+                    a.to_sympy() if isinstance(a, Formal) else sympy_rational(a) for a in args)
+                cache[i] = (sp.pi if name == "pi" else sp.Symbol(args[0]) if name == "param"
+                            else built[0] ** sp.Rational(name.split()[1]) if name.startswith("pow ")
+                            else getattr(sp, name)(*built))
             return cache[i]
 
         def poly(p: Any) -> sp.Expr:
@@ -209,6 +249,53 @@ class Formal:
             return total
 
         return poly(self.num) / poly(self.den)
+
+
+def _pieces(interval: arb, cuts: int) -> list[arb]:
+    """``interval`` cut into ``cuts`` pieces whose union holds it."""
+    lo, hi = arb(interval.lower()), arb(interval.upper())
+    step = (hi - lo) / cuts
+    ends = [lo + step * k for k in range(cuts)] + [hi]
+    return [a.union(b) for a, b in zip(ends, ends[1:])]
+
+
+def _product(lists: list[list[arb]]) -> list[tuple[arb, ...]]:
+    out: list[tuple[arb, ...]] = [()]
+    for items in lists:
+        out = [(*head, x) for head in out for x in items]
+    return out
+
+
+def _power(x: arb, e: int) -> arb:
+    """x^e over the ball x, from its ends (an even power of a ball around 0 is >= 0)."""
+    if e == 1:
+        return x
+    lo, hi = arb(x.lower()), arb(x.upper())
+    ends = (lo ** e).union(hi ** e)
+    if e % 2 == 0 and x.contains(0):
+        return arb(0).union(ends)
+    return ends
+
+
+def _evaluate(p: Any, values: list[arb]) -> arb:
+    """The polynomial ``p`` over the balls ``values`` (one per unknown), term by term."""
+    total = arb(0)
+    for exps, coeff in p.terms():
+        term = arb(coeff)
+        for i, e in enumerate(exps):
+            if e:
+                term *= _power(values[i], e)
+        total += term
+    return total
+
+
+def _tighter(a: arb, b: arb) -> arb:
+    """The intersection of two enclosures of one value (the finite one when only one is)."""
+    if not b.is_finite():
+        return a
+    if not a.is_finite():
+        return b
+    return a.intersection(b) if a.overlaps(b) else a
 
 
 def _squares_reduced(space: _Space, p: Any) -> Any:
@@ -263,15 +350,16 @@ class FormalField:
         (pi/4, sqrt(2), exp(-160/7)) read from its tree; ValueError for what it does not take."""
         if isinstance(value, Formal):
             return value
-        if isinstance(value, sp.Basic):
+        if type(value).__module__.startswith("sympy."):  # checked by name: sympy is not imported for the rest
             return self._from_sympy(value)
         return self.space.constant(self._q.number(value))
 
-    #: sympy's functions that a point value may hold (those Taylor mode knows).
-    _FUNCTIONS = {sp.sin: "sin", sp.cos: "cos", sp.tan: "tan", sp.exp: "exp", sp.log: "log", sp.atan: "atan",
-                  sp.asin: "asin", sp.acos: "acos", sp.sinh: "sinh", sp.cosh: "cosh", sp.tanh: "tanh"}
+    #: sympy's functions that a point value may hold (those Taylor mode knows), by name.
+    _FUNCTIONS = ("sin", "cos", "tan", "exp", "log", "atan", "asin", "acos", "sinh", "cosh", "tanh")
 
-    def _from_sympy(self, value: sp.Basic) -> Formal:
+    def _from_sympy(self, value: "sp.Basic") -> Formal:
+        import sympy as sp
+
         if value.free_symbols:
             raise ValueError("not an exact number")
         if value.is_Rational:
@@ -298,13 +386,19 @@ class FormalField:
             if exp.is_Rational:
                 return self.powq(self._from_sympy(base), Fraction(int(exp.p), int(exp.q)))
             raise ValueError("power")
-        name = self._FUNCTIONS.get(type(value))
-        if name is not None and len(value.args) == 1:
+        name = type(value).__name__
+        if name in self._FUNCTIONS and type(value) is getattr(sp, name) and len(value.args) == 1:
             return self.base(name, self._from_sympy(value.args[0]))
         raise ValueError(f"{type(value).__name__} in a point value")
 
     def pi(self) -> Formal:
         return self.space.unknown(("pi",), arb.pi(), ("pi", ()))
+
+    def parameter(self, name: str, interval: arb) -> Formal:
+        """A parameter that takes every value of ``interval``, as an unknown whose ball is
+        that interval: an identity in it holds for every value, and every ball computed
+        from it holds the number's values over the whole interval."""
+        return self.space.unknown(("param", name), interval, ("param", (name,)))
 
     def base(self, name: str, a: Formal) -> Formal:
         if name == "inv":

@@ -54,7 +54,8 @@ class RegularityProof:
 def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders: Sequence[int],
                   max_boxes: int = SECOND_TRY_BOXES, seconds: float | None = None) -> RegularityProof:
     """Is the model defined and the decoupling matrix (rows at ``orders``, r_i - 1)
-    nonsingular on the whole ``box`` (one rational interval per state)?"""
+    nonsingular on the whole ``box`` (one rational interval per variable of the towers:
+    the states, then the ranged parameters)?"""
     field = ArbField(64)
     todo: list[tuple[list[tuple[Fraction, Fraction]], int]] = [(list(box), 0)]  # a box and its depth
     examined = 0
@@ -168,11 +169,12 @@ def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], ba
                        orders: Sequence[int], field: Any) -> tuple[list[list[Any]], list[float]]:
     """The decoupling matrix enclosed over ``box`` (held by ``balls``) in mean-value form,
     and per side of the box how far the gradients can move it across that side (the side
-    to split)."""
+    to split). The ranged parameters are sides like the states: the gradient is taken
+    along them too (they are constant along the flow)."""
     centre = [rational_ball((lo + hi) / 2) for lo, hi in box]
     top = max(orders)
     at_centre = towers.lglf(None, top, field, start=centre)
-    gradients = towers.decoupling_gradients(balls, top, field)
+    gradients = towers.decoupling_gradients(balls, top, field, params=len(box) > towers.n)
     spread = [0.0] * len(box)
     matrix = []
     for i, d in enumerate(orders):

@@ -627,11 +627,13 @@ class Towers:
 
     # -- one flow ------------------------------------------------------------------------
     def flow(self, point: Sequence[Any], order: int, field: Any, directions: Sequence[Sequence[Any]] | None = None,
-             start: Sequence[Any] | None = None, outputs: bool = True) -> list[list[Any]]:
+             start: Sequence[Any] | None = None, outputs: bool = True, moves_params: bool = False
+             ) -> list[list[Any]]:
         """Series (coefficients 0..order) of every program output along the flow of f
-        from ``point`` (states then parameters), optionally moved by e * direction;
-        ``start`` gives the starting numbers (jets of any kind) directly. Without
-        ``outputs`` only f and g are run (:attr:`fields`), and the series end after g."""
+        from ``point`` (states then parameters), optionally moved by e * direction (in the
+        states only, unless ``moves_params``); ``start`` gives the starting numbers (jets
+        of any kind) directly. Without ``outputs`` only f and g are run (:attr:`fields`),
+        and the series end after g."""
         program = self.program if outputs else self.fields
         with precision(field.prec if isinstance(field, ArbField) else None):
             if start is None:
@@ -641,11 +643,12 @@ class Towers:
             if directions is not None:
                 zero = field.const(Fraction(0))
                 q = len(directions)
+                moved = len(start) if moves_params else self.n
                 if q == 1:
-                    start = [Dual(v, field.number(directions[0][i]) if i < self.n else zero)
+                    start = [Dual(v, field.number(directions[0][i]) if i < moved else zero)
                              for i, v in enumerate(start)]
                 else:
-                    start = [Jet(v, [field.number(directions[a][i]) if i < self.n else zero for a in range(q)])
+                    start = [Jet(v, [field.number(directions[a][i]) if i < moved else zero for a in range(q)])
                              for i, v in enumerate(start)]
             coeff: list[list[Any]] = [[v] for v in start]
             runner = _Runner(program, field)
@@ -718,26 +721,33 @@ class Towers:
         unit = [[1 if a == b else 0 for b in range(self.n)] for a in range(self.n)]
         return self.directional(point, order, field, unit)
 
-    def decoupling_gradients(self, point: Sequence[Any], order: int, field: Any
+    def decoupling_gradients(self, point: Sequence[Any], order: int, field: Any, params: bool = False
                              ) -> list[list[list[tuple[Any, list[Any]]]]]:
         """[j][i][k] = (L_gj L_f^k h_i(x0), its gradient) for k <= order, by nested
         dual numbers: the flow from x0 + e.a + d g_j(x0 + e.a) (d^2 = e_a e_b = 0)
         carries d(dL_f^k h . g_j)/dx_a in its d e_a parts. Second-order information
-        without a symbolic tower (the zero-dynamics Jacobian needs it)."""
+        without a symbolic tower (the zero-dynamics Jacobian needs it). With ``params``
+        the gradient is also taken along the ranged parameters (after the states): they
+        move with e like the states and stay constant along the flow."""
         n = self.n
-        unit = [[1 if a == b else 0 for b in range(n)] for a in range(n)]
-        at_jets = self.flow(point, 0, field, unit, outputs=False)  # g_j(x0 + e.a) as jets
+        q = n + (self.n_params if params else 0)  # directions: the states, then the parameters if asked
+        unit = [[1 if a == b else 0 for b in range(len(point))] for a in range(q)]
+        at_jets = self.flow(point, 0, field, unit, outputs=False, moves_params=params)  # g_j(x0 + e.a) as jets
+        zero = field.const(Fraction(0))
         out = []
         for j in range(self.m):
             start: list[Any] = []
             for i, v in enumerate(point):
-                if i < n:
-                    x = Jet(field.number(v), [field.number(unit[a][i]) for a in range(n)])
+                if i < q:
+                    x = Jet(field.number(v), [field.number(unit[a][i]) for a in range(q)])
+                    if i >= n:  # a parameter: no g component
+                        start.append(Dual(x, Jet(zero, [zero] * q)))
+                        continue
                     gj = at_jets[n + j * n + i][0]
-                    if isinstance(gj, Dual):  # one state: the flow used dual numbers, not jets
+                    if isinstance(gj, Dual):  # one direction: the flow used dual numbers, not jets
                         gj = Jet(gj.v, [gj.d])
                     elif not isinstance(gj, Jet):
-                        gj = Jet(gj, [field.const(Fraction(0))] * n)
+                        gj = Jet(gj, [zero] * q)
                     start.append(Dual(x, gj))
                 else:
                     start.append(field.number(v))
@@ -751,9 +761,8 @@ class Towers:
                     if isinstance(d, Jet):
                         entries.append((d.v * factorial(k), [t * factorial(k) for t in d.d]))
                     else:
-                        zero = field.const(Fraction(0))
                         value = d * factorial(k) if d is not None else zero
-                        entries.append((value, [zero] * n))
+                        entries.append((value, [zero] * q))
                 rows.append(entries)
             out.append(rows)
         return out

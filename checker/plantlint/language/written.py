@@ -61,18 +61,28 @@ def read_plant(statements: Sequence[Statement]) -> WrittenPlant:
     return _Reader(statements).plant()
 
 
-def read_with_values(statements: Sequence[Statement]
-                     ) -> tuple[WrittenPlant, Callable[[Expression], Fraction | None]]:
-    """:func:`read_plant`, and a reader of other expressions of the same model (a point's
-    values, a range's bounds, a claim's number) with the constants and definitions put in:
-    their exact rational value, or None when it is not one (a state, pi, sin(1/3) in it)."""
+class Values:
+    """A reader of other expressions of a model (a point's values, a range's bounds, a
+    claim's number), with the constants and definitions put in."""
+
+    def __init__(self, reader: "_Reader"):
+        self._reader = reader
+        #: the graph their nodes are in (its variables: states, ranged parameters, inputs)
+        self.graph = reader.graph
+
+    def node(self, expr: Expression) -> int:
+        """The expression as a node of :attr:`graph` (:class:`Refused` if it cannot be read)."""
+        return self._reader._value(expr)
+
+    def rational(self, expr: Expression) -> Fraction | None:
+        """Its exact rational value, or None when it is not one (a state, pi, sin(1/3) in it)."""
+        return _rational(self.graph, self.node(expr))
+
+
+def read_with_values(statements: Sequence[Statement]) -> tuple[WrittenPlant, Values]:
+    """:func:`read_plant`, and a reader of the model's other expressions (:class:`Values`)."""
     reader = _Reader(statements)
-    plant = reader.plant()
-
-    def value(expr: Expression) -> Fraction | None:
-        return _rational(reader.graph, reader._value(expr))
-
-    return plant, value
+    return reader.plant(), Values(reader)
 
 
 class _Reader:
@@ -357,4 +367,4 @@ def _bottom_up(graph: Graph, root: int, memo: dict, leaf: Callable[[int], bool],
     return memo[root]
 
 
-__all__ = ["Refused", "WrittenPlant", "read_plant", "read_with_values"]
+__all__ = ["Refused", "Values", "WrittenPlant", "read_plant", "read_with_values"]

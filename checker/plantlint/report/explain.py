@@ -274,7 +274,7 @@ def _render_parameter_box(console: Any, box: dict[str, Any]) -> None:
     if box["solved_inputs"]:
         console.print("    inputs solved in the parameters: "
                       + ", ".join(f"{k} = {v}" for k, v in box["solved_inputs"].items()))
-    for key, label in (("equilibrium", "equilibrium"), ("decoupling", "decoupling matrix"),
+    for key, label in (("equilibrium", "equilibrium"), ("ranges", "inside the ranges"), ("decoupling", "decoupling matrix"),
                        ("zero_dynamics", "minimum phase"), ("controllability", "controllability rank")):
         v = box.get(key)
         if v is not None:

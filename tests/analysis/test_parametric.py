@@ -488,17 +488,17 @@ HOIST = (FIXTURES / "light" / "hoist.plant").read_text(encoding="utf-8")
 def test_a_point_inside_its_ranges_at_nominal_values_is_checked_over_the_parameter_box() -> None:
     """The sprung hoist (tests/fixtures/light/hoist.plant) with a payload range to 1200 kg:
     held at z = 1/2, the force needed is F = k/2 + m g = 2500 + 9.81 m N (by hand), inside
-    -5000 .. 5000 at the nominal 60 kg (3088.6 N) but 8484.1 N at m = 610; the sag
-    z = -m g / k is -1.19682 m there, below -0.5 (by hand). Both are reported with the
-    parameter value; with the payload range of the file (20 .. 120 kg, at most 3677.2 N and
-    -0.235 m) both are proven inside."""
+    -5000 .. 5000 at the nominal 60 kg (3088.6 N) but 14272 N at the heavy end m = 1200;
+    the sag z = -m g / k is -2.3544 m there, below -0.5 (by hand). Both are reported at the
+    parameter value farthest out; with the payload range of the file (20 .. 120 kg, at most
+    3677.2 N and -0.235 m) both are proven inside."""
     wide = HOIST.replace("in 20 .. 120 [kg]", "in 20 .. 1200 [kg]")
     analysis, findings = _check(wide)
     outside = {f.point: f.message for f in findings if f.rule == "point-outside-envelope"}
     assert set(outside) == {"held", "sag"}
-    m = 610  # the witness the search reports (a parameter value where the value is outside)
-    assert f"m = {m}" in outside["held"] and f"{2500 + 9.81 * m:.1f}" in outside["held"] and "above" in outside["held"]
-    assert f"m = {m}" in outside["sag"] and f"{-m * 9.81 / 5000:.5f}" in outside["sag"] and "below" in outside["sag"]
+    m = 1200  # the heavy end of the payload range: farthest out for both
+    assert f"m = {m}" in outside["held"] and "14272" in outside["held"] and "above" in outside["held"]
+    assert f"m = {m}" in outside["sag"] and "-2.3544" in outside["sag"] and "below" in outside["sag"]
     assert analysis["points"]["held"]["parameter_box"]["ranges"]["outcome"] == "violated"
     analysis, findings = _check(HOIST)
     assert not findings

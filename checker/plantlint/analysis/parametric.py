@@ -32,7 +32,7 @@ from __future__ import annotations
 import itertools
 import time
 from dataclasses import dataclass, field
-from typing import Callable, Sequence
+from typing import Any, Callable, Sequence
 
 import sympy as sp
 
@@ -337,8 +337,8 @@ def _ranges(params: ParameterBox, values: dict[sp.Symbol, sp.Expr], solved: tupl
             if v.regular:
                 continue
             if v.regular is False and v.witness is not None:
-                w = exact_point(params, v.witness)
-                shown = params.ball(value, w)
+                w, shown = _farthest(params, value, lo if side == "below" else hi, side,
+                                     exact_point(params, v.witness))
                 return BoxVerdict(
                     "violated",
                     f"the {kind} {sym} reaches {show_number(float(shown.mid()), mark_inexact=True)} at "
@@ -349,6 +349,27 @@ def _ranges(params: ParameterBox, values: dict[sp.Symbol, sp.Expr], solved: tupl
         return BoxVerdict("undecided", "whether " + ", ".join(undecided) + " could not be certified over the box "
                           "within the budget")
     return BoxVerdict("proven", "every value of the point inside its range over the whole parameter box")
+
+
+def _farthest(params: ParameterBox, value: sp.Expr, bound: sp.Expr, side: str, witness: dict[sp.Symbol, sp.Expr]
+              ) -> tuple[dict[sp.Symbol, sp.Expr], Any]:
+    """Of the search's witness and the box's corners, centre and sample values, the
+    parameter value where ``value`` is farthest past ``bound`` (certainly past it: its
+    ball beyond the bound), with the value's ball there: the heaviest payload, not the
+    first box the search happened to split down to."""
+    limit = params.ball(bound, {})
+    best, best_ball, best_gap = witness, params.ball(value, witness), None
+    for candidate in [witness, *params.candidates()]:
+        try:
+            b = params.ball(value, candidate)
+        except (ArithmeticError, ValueError):
+            continue
+        if not b.is_finite() or not (b < limit if side == "below" else b > limit):
+            continue
+        gap = float((limit - b).mid()) if side == "below" else float((b - limit).mid())
+        if best_gap is None or gap > best_gap:
+            best, best_ball, best_gap = candidate, b, gap
+    return best, best_ball
 
 
 def _within_refinement(params: ParameterBox, r: sp.Expr, rate: sp.Expr) -> bool:

@@ -331,45 +331,57 @@ def _ranges(params: ParameterBox, values: dict[sp.Symbol, sp.Expr], solved: tupl
         kind = "state" if sym in plant.states else ("input needed" if sym in solved else "input")
         lo, hi = bounds
         for side, gap in (("below", value - lo), ("above", hi - value)):
-            if at_nominal is not None and at_nominal.is_Rational and (at_nominal < lo or at_nominal > hi):
+            if at_nominal is not None and _past(params, at_nominal, lo, hi):
                 continue  # outside at the nominal values: the points stage reports it
             v = params.clock.spent(certify_sign(params.tidy(gap), params.box, False, params.clock.budget()))
             if v.regular:
                 continue
-            if v.regular is False and v.witness is not None:
-                w, shown = _farthest(params, value, lo if side == "below" else hi, side,
-                                     exact_point(params, v.witness))
+            far = (_farthest(params, value, lo if side == "below" else hi, side, exact_point(params, v.witness))
+                   if v.regular is False and v.witness is not None else None)
+            if far is not None:
+                w, shown = far
                 return BoxVerdict(
                     "violated",
                     f"the {kind} {sym} reaches {show_number(float(shown.mid()), mark_inexact=True)} at "
                     f"{show_values(params.named(w))}, {side} its range {show_number(lo)} .. {show_number(hi)}",
                     params.named(w), "outside")
-            undecided.append(f"{sym} {side} {show_number(lo if side == 'below' else hi)}")
+            undecided.append(f"{sym} >= {show_number(lo)}" if side == "below" else f"{sym} <= {show_number(hi)}")
     if undecided:
-        return BoxVerdict("undecided", "whether " + ", ".join(undecided) + " could not be certified over the box "
-                          "within the budget")
+        return BoxVerdict("undecided", ", ".join(undecided) + " could not be certified over the box within the budget")
     return BoxVerdict("proven", "every value of the point inside its range over the whole parameter box")
 
 
+def _past(params: ParameterBox, value: sp.Expr, lo: sp.Expr, hi: sp.Expr) -> bool:
+    """A value (of the nominal point) certainly outside lo .. hi."""
+    try:
+        b = params.ball(value, {})
+    except (ArithmeticError, ValueError, TypeError):
+        return False
+    return bool(b.is_finite() and (b < params.ball(lo, {}) or b > params.ball(hi, {})))
+
+
 def _farthest(params: ParameterBox, value: sp.Expr, bound: sp.Expr, side: str, witness: dict[sp.Symbol, sp.Expr]
-              ) -> tuple[dict[sp.Symbol, sp.Expr], Any]:
+              ) -> tuple[dict[sp.Symbol, sp.Expr], Any] | None:
     """Of the search's witness and the box's corners, centre and sample values, the
     parameter value where ``value`` is farthest past ``bound`` (certainly past it: its
-    ball beyond the bound), with the value's ball there: the heaviest payload, not the
-    first box the search happened to split down to."""
+    ball beyond the bound, at exact parameter values), with the value's ball there: the
+    heaviest payload, not the first box the search happened to split down to. None when
+    none is certainly past it (the search's floating-point witness, made exact, may not
+    be): the range is then not decided."""
     limit = params.ball(bound, {})
-    best, best_ball, best_gap = witness, params.ball(value, witness), None
+    best: dict[sp.Symbol, sp.Expr] | None = None
+    best_ball, best_gap = None, None
     for candidate in [witness, *params.candidates()]:
         try:
             b = params.ball(value, candidate)
-        except (ArithmeticError, ValueError):
+        except (ArithmeticError, ValueError, TypeError):
             continue
         if not b.is_finite() or not (b < limit if side == "below" else b > limit):
             continue
         gap = float((limit - b).mid()) if side == "below" else float((b - limit).mid())
         if best_gap is None or gap > best_gap:
             best, best_ball, best_gap = candidate, b, gap
-    return best, best_ball
+    return None if best is None else (best, best_ball)
 
 
 def _within_refinement(params: ParameterBox, r: sp.Expr, rate: sp.Expr) -> bool:

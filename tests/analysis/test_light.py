@@ -75,7 +75,9 @@ def test_the_light_route_answers_the_small_clean_models(name: str) -> None:
 @pytest.mark.parametrize("path", sorted((REPO / "tests" / "fixtures" / "light").glob("*.plant")), ids=lambda p: p.stem)
 def test_the_light_route_answers_the_models_written_for_it(path: Path) -> None:
     """Invented plants of its class (tests/fixtures/light): a gimbal (2 x 2, a rest point at
-    pitch 1/2 whose input columns hold cos(1/2)), a voltage-driven maglev (1/x^2 over a gap
+    pitch 1/2 whose input columns hold cos(1/2)), the same gimbal with its pitch inertia and
+    cable coupling ranged (two outputs: the relative degrees hold for every value because the
+    decoupling matrix is nonsingular over states and parameters), a voltage-driven maglev (1/x^2 over a gap
     range of 5 to 20 mm), a fully actuated two-link arm (the inverse of its mass matrix), a
     two-link boom under gravity whose points are written in fractions of pi (holding
     torques in sqrt(3)/2 and sqrt(2)/2, one given), a sprung hoist with a payload range

@@ -357,6 +357,23 @@ def test_the_runner_asks_the_light_route_only_within_its_first_round(monkeypatch
     assert [r.route for r in raws] == ["full", "full"] and all(r.analysis is not None for r in raws)
 
 
+def test_the_first_round_bounds_each_model_by_what_is_left_of_it(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Each model of the first round is asked within what is left of the round, so a model
+    whose points are slow to settle (formal numbers over a ranged parameter) cannot stretch
+    the round past LIGHT_SERIAL_SECONDS."""
+    from plantlint.run import runner
+    from plantlint.run.config import Config
+    from plantlint.run.pipeline import RawResult
+
+    asked: list[float | None] = []
+    monkeypatch.setattr(runner, "_light", lambda data, config, seconds=None, within=None: asked.append(within))
+    monkeypatch.setattr(runner, "analyse_all", lambda datas, *args, **kwargs: [RawResult() for _ in datas])
+    sources = [runner.Source(f"m{i}.plant", CLEAN.encode("utf-8")) for i in range(3)]
+    runner.raw_results(sources, Config(), jobs=1, use_cache=False, cache_dir=None, show_progress=False, light=True)
+    assert len(asked) == 3
+    assert all(w is not None and 0 < w <= runner.LIGHT_SERIAL_SECONDS for w in asked), asked
+
+
 def test_a_decoupling_term_beyond_the_floats_is_proven_exactly() -> None:
     """A mutant (campaign seed 11): the inertia 1e-300 makes L_g L_f^3 tip about 1e600 at
     the point, an exact rational beyond the floats; its lower bound overflowed a float

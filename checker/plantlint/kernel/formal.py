@@ -36,6 +36,7 @@ from flint import arb, fmpq, fmpq_mpoly_ctx
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.precision import precision
+from plantlint.kernel.regularity import tighter
 from plantlint.kernel.taylor import ArbField, Inexact, QField, Undefined
 
 if TYPE_CHECKING:  # sympy only where a sympy number is read or written (the light route has none)
@@ -182,7 +183,7 @@ class Formal:
                 part = num / den
                 total = part if total is None else total.union(part)
         assert total is not None
-        return _tighter(total, self.ball)
+        return tighter(total, self.ball)
 
     # exact comparisons with 0 only where they are proofs (formal zero is zero)
     def __eq__(self, other: object) -> bool:
@@ -287,15 +288,6 @@ def _evaluate(p: Any, values: list[arb]) -> arb:
                 term *= _power(values[i], e)
         total += term
     return total
-
-
-def _tighter(a: arb, b: arb) -> arb:
-    """The intersection of two enclosures of one value (the finite one when only one is)."""
-    if not b.is_finite():
-        return a
-    if not a.is_finite():
-        return b
-    return a.intersection(b) if a.overlaps(b) else a
 
 
 def _squares_reduced(space: _Space, p: Any) -> Any:

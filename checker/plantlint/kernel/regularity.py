@@ -156,7 +156,7 @@ def nonsingular(matrix: Sequence[Sequence[Any]]) -> bool:
     return nonzero(determinant(matrix))
 
 
-def _tighter(a: Any, b: Any) -> Any:
+def tighter(a: Any, b: Any) -> Any:
     """The intersection of two enclosures of one value (the finite one when only one is)."""
     if not b.is_finite():
         return a
@@ -188,10 +188,10 @@ def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], ba
                 spread[a] = max(spread[a], float(abs(term).upper()) if term.is_finite() else float("inf"))
             # both enclose the entry over the box: the mean-value form wins on small boxes, the
             # direct one where a factor's sign settles it (c I / x^2 with I, x away from 0)
-            row.append(_tighter(entry, direct))
+            row.append(tighter(entry, direct))
         matrix.append(row)
     return matrix, spread
 
 
 __all__ = ["MAX_STATES", "SECOND_TRY_BOXES", "RegularityProof", "ball", "determinant", "lower_bound",
-           "nonsingular", "nonzero", "prove_regular", "rational_ball"]
+           "nonsingular", "nonzero", "prove_regular", "rational_ball", "tighter"]

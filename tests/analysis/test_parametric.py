@@ -504,3 +504,17 @@ def test_a_point_inside_its_ranges_at_nominal_values_is_checked_over_the_paramet
     assert not findings
     assert analysis["points"]["held"]["parameter_box"]["ranges"]["outcome"] == "proven"
     assert analysis["points"]["sag"]["parameter_box"]["ranges"]["outcome"] == "proven"
+
+
+def test_a_value_that_touches_its_range_at_a_corner_of_the_box_is_not_decided() -> None:
+    """The hoist's holding force reaches 2500 + 9.81 * 120 = 3677.2 N exactly at the heavy
+    end of the payload range (by hand): with the force range ending there, the value stays
+    inside the closed range, but interval bounds that touch it at the corner cannot show
+    it. The range over the box is then not decided (an analysis-budget finding that says
+    which bound), never passed silently and never reported as outside."""
+    touching = HOIST.replace("input F [N] in -5000 .. 5000", "input F [N] in -5000 .. 3677.2")
+    analysis, findings = _check(touching)
+    assert analysis["points"]["held"]["parameter_box"]["ranges"]["outcome"] == "undecided"
+    budget = [f for f in findings if f.rule == "analysis-budget" and f.point == "held"]
+    assert budget and "F <= 3677.2" in budget[0].message, [f.message for f in findings]
+    assert not [f for f in findings if f.rule == "point-outside-envelope"]

@@ -689,7 +689,7 @@ def _report_ranges(out: ParametricPoint, params: ParameterBox, name: str) -> Non
                  hint="widen the range (an actuator sized for the whole parameter range), narrow the parameter "
                       "range, or move the point")
     else:
-        _not_covered(out, params, "the ranges", v)
+        _not_covered(out, params, "every value inside its range", v)
 
 
 def _report_decoupling(out: ParametricPoint, params: ParameterBox, name: str) -> None:

@@ -316,6 +316,40 @@ def test_decoupling_gradients_of_a_one_state_plant() -> None:
     assert grad[0].overlaps(grad[0].__class__(str(sp.N(reference, 40)))) and abs(float(grad[0]) - float(reference)) < 1e-12
 
 
+def test_decoupling_gradients_along_the_ranged_parameters() -> None:
+    """With ``params=True`` the gradient of A is also taken along the ranged parameters (the
+    envelope proof's boxes have them as sides). Held against sympy's diff of the hoist-like
+    L_g L_f z = 1/m (by hand: z' = v, v' = (F - k z)/m - g) and of a two-state plant whose
+    input gain is c x^2 + sin(c) (L_g h = c x^2 + sin(c), h = x, in both x and c)."""
+    import sympy as sp
+    from flint import arb, fmpq
+
+    from plantlint.kernel.taylor import ArbField, Towers
+    from plantlint.language.syntax import parse_text
+    from plantlint.language.written import read_plant
+
+    for text, order, symbols, gain in (
+        ("plant h\nparam m = 60 in 20 .. 120\nstate z in -1 .. 1\nstate v in -1 .. 1\ninput F\n"
+         "rate z = v\nrate v = (F - 5000*z)/m - 10\noutput y = z\n", 1, ("z", "v", "m"), lambda s: 1 / s["m"]),
+        ("plant g\nparam c = 2 in 1 .. 3\nstate x in -1 .. 1\ninput u\n"
+         "rate x = -x + (c*x^2 + sin(c))*u\noutput y = x\n", 0, ("x", "c"), lambda s: s["c"] * s["x"] ** 2 + sp.sin(s["c"])),
+    ):
+        plant = read_plant(parse_text(text).statements)
+        towers = Towers(plant.states, plant.params, plant.f, plant.g, plant.h, graph=plant.graph)
+        point = [fmpq(1, 3)] * len(plant.states) + [fmpq(5, 2)]
+        ((value, grad),), = [[e[order]] for e in towers.decoupling_gradients(point, order, ArbField(128),
+                                                                               params=True)[0]]
+        names = [*plant.states, *plant.params]
+        assert names == list(symbols)
+        sym = {n: sp.Symbol(n) for n in names}
+        at = {sym[n]: sp.Rational(int(p.p), int(p.q)) for n, p in zip(names, point)}
+        reference = gain(sym)
+        assert value.overlaps(arb(str(sp.N(reference.subs(at), 40))))
+        for a, n in enumerate(names):
+            expected = sp.N(sp.diff(reference, sym[n]).subs(at), 40)
+            assert grad[a].overlaps(arb(str(expected))) and abs(float(grad[a]) - float(expected)) < 1e-12, (n, grad)
+
+
 def test_a_regularity_only_the_mean_value_form_proves_passes_in_both_routes() -> None:
     """A mutant (campaign seed 7) with a range 10^9 wide: L_g L_f^3 far_end =
     k (1 + 3 eps (p2 - p1)^2) / mass^2 > 0 everywhere (by hand). The mean-value form proves it

@@ -397,6 +397,35 @@ def test_the_first_round_bounds_each_model_by_what_is_left_of_it(monkeypatch: py
     assert all(w is not None and 0 < w <= runner.LIGHT_SERIAL_SECONDS for w in asked), asked
 
 
+def test_on_one_core_the_light_route_goes_before_a_single_model_s_worker(monkeypatch: pytest.MonkeyPatch) -> None:
+    """With one processor a worker beside the light route takes the core from it: a single
+    model is asked first (as several are), and only a model it hands over goes to a worker,
+    without the light route beside it. With two, the worker starts at once, beside it."""
+    from plantlint.run import runner
+    from plantlint.run.config import Config
+    from plantlint.run.pipeline import RawResult
+
+    calls: list[tuple[int, bool]] = []
+
+    def analyse_all(datas, *args, early=None, **kwargs):  # type: ignore[no-untyped-def]
+        calls.append((len(datas), early is not None))
+        return [RawResult() for _ in datas]
+
+    monkeypatch.setattr(runner, "analyse_all", analyse_all)
+    clean = [runner.Source("clean.plant", CLEAN.encode("utf-8"))]
+    defect = [runner.Source("defect.plant", CLEAN.replace("point rest: p1 = 0, v1 = 0",
+                                                          "point rest: p1 = 0, v1 = 1/2").encode("utf-8"))]
+    run = dict(jobs=1, use_cache=False, cache_dir=None, show_progress=False, light=True)
+    monkeypatch.setattr(runner, "_cores", lambda: 1)
+    assert [r.route for r in runner.raw_results(clean, Config(), **run)] == ["light"] and calls == []
+    runner.raw_results(defect, Config(), **run)
+    assert calls == [(1, False)]
+    monkeypatch.setattr(runner, "_cores", lambda: 2)
+    calls.clear()
+    runner.raw_results(clean, Config(), **run)
+    assert calls == [(1, True)]
+
+
 def test_a_decoupling_term_beyond_the_floats_is_proven_exactly() -> None:
     """A mutant (campaign seed 11): the inertia 1e-300 makes L_g L_f^3 tip about 1e600 at
     the point, an exact rational beyond the floats; its lower bound overflowed a float

@@ -395,6 +395,10 @@ def test_the_first_round_bounds_each_model_by_what_is_left_of_it(monkeypatch: py
     runner.raw_results(sources, Config(), jobs=1, use_cache=False, cache_dir=None, show_progress=False, light=True)
     assert len(asked) == 3
     assert all(w is not None and 0 < w <= runner.LIGHT_SERIAL_SECONDS for w in asked), asked
+    asked.clear()  # and by the model's budget when that is shorter
+    runner.raw_results(sources, Config(timeout=0.05), jobs=1, use_cache=False, cache_dir=None, show_progress=False,
+                       light=True)
+    assert asked and all(w is not None and 0 < w <= 0.05 for w in asked), asked
 
 
 def test_on_one_core_the_light_route_goes_before_a_single_model_s_worker(monkeypatch: pytest.MonkeyPatch) -> None:

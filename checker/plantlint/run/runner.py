@@ -762,7 +762,7 @@ def raw_results(
             # bounded by what is left of the round, so the round keeps to its 0.3 s even when a
             # model's points are slow to settle (formal numbers over a ranged parameter)
             raws[i] = _light(sources[i].data or b"", config, LIGHT_SERIAL_MODEL_SECONDS if len(todo) > 1 else None,
-                             within=max(until - time.monotonic(), 0.001))
+                             within=max(min(until - time.monotonic(), config.seconds), 0.001))
             if raws[i] is not None:
                 light_cache.put(light_cache.key(sources[i].data or b""), raws[i])  # type: ignore[arg-type]
         todo = [i for i in todo if raws[i] is None]

@@ -523,7 +523,7 @@ def analyse_all(
     # round) go to the collector's permanent generation while workers are forked: a
     # worker's collections then do not write to the pages it shares with this process, so
     # they are not copied one by one (Python's gc.freeze, documented for fork without exec).
-    # With 200 models after the light route's first round: 10.2-10.6 s against 10.7-12.1 s.
+    # 205 models in SARIF, after the light route's first round: 9.9 s against 11.4 s.
     ctx = _context()
     results: list[RawResult | None] = [None] * len(datas)
     queue = list(range(len(datas)))
@@ -749,8 +749,8 @@ def raw_results(
     if light and (len(todo) > 1 or one_core):
         # (On one core a worker beside the light route would take the core from it, and a
         # model handed over late would pay for both: there the light route goes first for a
-        # single model too. Measured pinned to one core: a clean model 0.22 s against 0.45 s,
-        # a ranged arm handed over late 0.99 s against 0.61 s for the analysis alone.)
+        # single model too. Measured pinned to one core: a clean hoist 0.12 s against 0.23 s
+        # beside a worker, a ranged arm handed over late 0.79 s against 0.99 s.)
         # Several models: the light route first, one after another, for a short while, with
         # a short envelope proof each. Clean small models are answered in milliseconds each,
         # and if it answers them all, no worker starts and nothing imports sympy; the rest go

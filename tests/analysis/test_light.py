@@ -388,8 +388,15 @@ def test_the_first_round_bounds_each_model_by_what_is_left_of_it(monkeypatch: py
     from plantlint.run.config import Config
     from plantlint.run.pipeline import RawResult
 
-    asked: list[float | None] = []
-    monkeypatch.setattr(runner, "_light", lambda data, config, seconds=None, within=None: asked.append(within))
+    from plantlint.core import deadline
+
+    asked: list[float | None] = []  # the wall-clock bound each model's light question ran under
+
+    def bounded(seconds, step):  # type: ignore[no-untyped-def]
+        asked.append(seconds)
+        return deadline.LATE
+
+    monkeypatch.setattr(deadline, "bounded", bounded)
     monkeypatch.setattr(runner, "analyse_all", lambda datas, *args, **kwargs: [RawResult() for _ in datas])
     sources = [runner.Source(f"m{i}.plant", CLEAN.encode("utf-8")) for i in range(3)]
     runner.raw_results(sources, Config(), jobs=1, use_cache=False, cache_dir=None, show_progress=False, light=True)

@@ -12,7 +12,8 @@ from flint import arb
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from plantlint.kernel.balls import int_power, product
+from plantlint.kernel.balls import product
+from plantlint.kernel.enclosures import int_power
 from plantlint.kernel.intervals import BOX_PREC, Budget, certify_nonzero, certify_sign, outward_box
 
 x1, x2, k = sp.symbols("x1 x2 k")

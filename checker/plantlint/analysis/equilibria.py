@@ -225,8 +225,8 @@ def _envelope_findings(
         if bounds is None:
             continue
         lo, hi = (plant.nominal(b) for b in bounds)
-        below = _certainly_negative(value - lo, decide)
-        above = _certainly_negative(hi - value, decide)
+        below = certainly_negative(value - lo, decide)
+        above = certainly_negative(hi - value, decide)
         if not (below or above):
             continue
         kind = "state" if sym in plant.states else ("input needed" if sym in solved else "input")
@@ -242,7 +242,8 @@ def _envelope_findings(
     return out
 
 
-def _certainly_negative(value: sp.Expr, decide: ZeroDecider) -> bool:
+def certainly_negative(value: sp.Expr, decide: ZeroDecider) -> bool:
+    """``value`` < 0, proven (exactly, or by a ball once it is proven non-zero)."""
     if value.is_Rational:
         return bool(value < 0)
     if not decide(value).proven_nonzero:

@@ -166,12 +166,12 @@ class _Model:
             raise HandOver("no states, or more than the route tries")
         if not plant.outputs or len(plant.outputs) != len(plant.inputs):
             raise HandOver("not as many outputs as inputs")
-        self._constants_rational()
+        nominal = self._constants_rational()
         self.boxes = {st.name: self._range(st) for st in self.by_kind["state"]}
         #: the ranged parameters' intervals, in the order of the graph's variables after the states
-        ranged = {st.name: (self._range(st), self.value(st.expr))
+        ranged = {st.name: (self._range(st), nominal[st.name])
                   for st in self.by_kind.get("param", []) if st.low is not None}
-        if any(box is None or not box[0] <= nominal <= box[1] for box, nominal in ranged.values()):
+        if any(box is None or not box[0] <= value <= box[1] for box, value in ranged.values()):
             raise HandOver("a parameter's nominal value outside its range")  # the bad-range rule
         self.param_boxes = [ranged[name][0] for name in plant.params]
         self.input_boxes = {st.name: self._range(st) for st in self.by_kind.get("input", []) if st.low is not None}
@@ -221,9 +221,9 @@ class _Model:
         lo, hi = self.param_boxes[self.written.params.index(name)]
         return formal.parameter(name, ball(lo, hi))
 
-    def _constants_rational(self) -> None:
-        for st in [*self.by_kind.get("const", []), *self.by_kind.get("param", [])]:
-            self.value(st.expr)
+    def _constants_rational(self) -> dict[str, Fraction]:
+        """Every constant's and parameter's (nominal) value, each an exact rational."""
+        return {st.name: self.value(st.expr) for st in [*self.by_kind.get("const", []), *self.by_kind.get("param", [])]}
 
     def _range(self, st: Any) -> tuple[Fraction, Fraction] | None:
         if st.low is None or st.high is None:
@@ -424,13 +424,16 @@ def _inside(value: Any, box: tuple[Fraction, Fraction], point: str) -> None:
         if value.is_constant():
             r = value.rational()
             value = Fraction(int(r.p), int(r.q))
-        elif any(b.is_finite() and b > rational_ball(box[0]) and b < rational_ball(box[1])
-                 for b in (value.ball, value.refined())):
+        elif _strictly_inside(value.ball, box) or _strictly_inside(value.refined(), box):  # tightened only when needed
             return
         else:
             raise HandOver(f"a value of point {point} is not proven inside its range")
     if not box[0] <= value <= box[1]:
         raise HandOver(f"a value of point {point} lies outside its range")
+
+
+def _strictly_inside(ball: Any, box: tuple[Fraction, Fraction]) -> bool:
+    return bool(ball.is_finite() and ball > rational_ball(box[0]) and ball < rational_ball(box[1]))
 
 
 def _solve(rows: list[list[Fraction]], rhs: list[Fraction]) -> list[Fraction]:

@@ -36,7 +36,7 @@ from typing import Any, Callable, Sequence
 
 import sympy as sp
 
-from plantlint.analysis.equilibria import Equilibrium
+from plantlint.analysis.equilibria import Equilibrium, certainly_negative
 from plantlint.analysis.refine import REFINED_RESIDUAL
 from plantlint.analysis.zero_dynamics import ZeroDynamics, show_eigenvalues, zero_dynamics_at
 from plantlint.core import anchors
@@ -320,6 +320,7 @@ def _ranges(params: ParameterBox, values: dict[sp.Symbol, sp.Expr], solved: tupl
     plant = params.kernel.plant
     boxes = {**plant.state_box, **plant.input_box}
     ranged = set(params.symbols)
+    decide = number_decider(params.kernel)
     undecided: list[str] = []
     for sym, value in values.items():
         bounds = boxes.get(sym)
@@ -327,12 +328,13 @@ def _ranges(params: ParameterBox, values: dict[sp.Symbol, sp.Expr], solved: tupl
             continue
         if any(b.free_symbols for b in bounds):
             continue
-        at_nominal = nominal.get(sym)
-        kind = "state" if sym in plant.states else ("input needed" if sym in solved else "input")
         lo, hi = bounds
+        at_nominal = nominal.get(sym)
+        if at_nominal is not None and (certainly_negative(at_nominal - lo, decide)
+                                       or certainly_negative(hi - at_nominal, decide)):
+            continue  # outside at the nominal values: the points stage reports it (its own test)
+        kind = "state" if sym in plant.states else ("input needed" if sym in solved else "input")
         for side, gap in (("below", value - lo), ("above", hi - value)):
-            if at_nominal is not None and _past(params, at_nominal, lo, hi):
-                continue  # outside at the nominal values: the points stage reports it
             v = params.clock.spent(certify_sign(params.tidy(gap), params.box, False, params.clock.budget()))
             if v.regular:
                 continue
@@ -349,15 +351,6 @@ def _ranges(params: ParameterBox, values: dict[sp.Symbol, sp.Expr], solved: tupl
     if undecided:
         return BoxVerdict("undecided", ", ".join(undecided) + " could not be certified over the box within the budget")
     return BoxVerdict("proven", "every value of the point inside its range over the whole parameter box")
-
-
-def _past(params: ParameterBox, value: sp.Expr, lo: sp.Expr, hi: sp.Expr) -> bool:
-    """A value (of the nominal point) certainly outside lo .. hi."""
-    try:
-        b = params.ball(value, {})
-    except (ArithmeticError, ValueError, TypeError):
-        return False
-    return bool(b.is_finite() and (b < params.ball(lo, {}) or b > params.ball(hi, {})))
 
 
 def _farthest(params: ParameterBox, value: sp.Expr, bound: sp.Expr, side: str, witness: dict[sp.Symbol, sp.Expr]
@@ -664,32 +657,30 @@ def _not_covered(out: ParametricPoint, params: ParameterBox, what: str, v: BoxVe
                  hint="raise the envelope budget, or narrow the parameter ranges")
 
 
-def _report_equilibrium(out: ParametricPoint, params: ParameterBox, name: str) -> None:
-    v = out.equilibrium
+def _report(out: ParametricPoint, params: ParameterBox, v: BoxVerdict | None, rule: str, violated: str,
+            hint: str, what: str) -> None:
+    """A box verdict as findings: ``rule`` when violated (``violated`` then its detail), else
+    what was not decided over the box (nothing when proven)."""
     if v is None:
         return
     if v.outcome == "violated":
-        _finding(out, "point-not-equilibrium",
-                 f"point {name} is an equilibrium at the nominal parameter values but not over the whole "
-                 f"parameter box: {v.detail}",
-                 hint="write the point's states (or leave its inputs out) in terms of the parameters, "
-                      "so that it follows them")
+        _finding(out, rule, f"{violated}: {v.detail}", hint=hint)
     else:
-        _not_covered(out, params, "the equilibrium", v)
+        _not_covered(out, params, what, v)
+
+
+def _report_equilibrium(out: ParametricPoint, params: ParameterBox, name: str) -> None:
+    _report(out, params, out.equilibrium, "point-not-equilibrium",
+            f"point {name} is an equilibrium at the nominal parameter values but not over the whole parameter box",
+            "write the point's states (or leave its inputs out) in terms of the parameters, so that it follows them",
+            "the equilibrium")
 
 
 def _report_ranges(out: ParametricPoint, params: ParameterBox, name: str) -> None:
-    v = out.ranges
-    if v is None or v.outcome == "proven":
-        return
-    if v.outcome == "violated":
-        _finding(out, "point-outside-envelope",
-                 f"point {name} lies inside the ranges at the nominal parameter values but not over the whole "
-                 f"parameter box: {v.detail}",
-                 hint="widen the range (an actuator sized for the whole parameter range), narrow the parameter "
-                      "range, or move the point")
-    else:
-        _not_covered(out, params, "every value inside its range", v)
+    _report(out, params, out.ranges, "point-outside-envelope",
+            f"point {name} lies inside the ranges at the nominal parameter values but not over the whole parameter box",
+            "widen the range (an actuator sized for the whole parameter range), narrow the parameter range, or move "
+            "the point", "every value inside its range")
 
 
 def _report_decoupling(out: ParametricPoint, params: ParameterBox, name: str) -> None:

@@ -20,6 +20,7 @@ import flint
 import sympy as sp
 from flint import arb
 
+from plantlint.kernel.enclosures import int_power
 from plantlint.kernel.precision import precision
 
 
@@ -156,42 +157,6 @@ def _nonnegative(x: arb) -> bool:
 
 def _inside(x: arb, lo: int, hi: int) -> bool:
     return bool(x >= lo) and bool(x <= hi)
-
-
-def _power_by_squaring(x: arb, e: int) -> arb:
-    result = arb(1)
-    base = x
-    while e:
-        if e & 1:
-            result = result * base
-        e >>= 1
-        if e:
-            base = base * base
-    return result
-
-
-def int_power(x: arb, e: int) -> arb:
-    """x**e over a ball, tight: monotone pieces are evaluated at the endpoints.
-
-    (flint's ``arb ** int`` gives nan when the ball contains 0 and is loose
-    otherwise: [2, 4]**2 comes out as +/- 16.)
-    """
-    if e == 0:
-        return arb(1)
-    if e < 0:
-        if x.contains(0):
-            return arb("nan")  # a pole inside: no finite enclosure
-        return int_power(arb(1) / x, -e)  # invert first: 1/x of a ball off zero is finite
-    if e == 1 or not x.is_finite():
-        return x if e == 1 else arb("nan")
-    if x.rad() == 0:
-        return _power_by_squaring(x, e)
-    out = _power_by_squaring(x.lower(), e).union(_power_by_squaring(x.upper(), e))
-    if e % 2 == 0 and x.contains(0):
-        out = out.union(arb(0)).nonnegative_part()  # [0, max]: the lower end is exactly 0
-    elif e % 2 == 0:
-        out = out.nonnegative_part()
-    return out
 
 
 def rational_power(x: arb, exponent: sp.Rational) -> arb:

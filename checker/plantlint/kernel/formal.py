@@ -29,6 +29,7 @@ them the computation is unsettled, never slow.
 
 from __future__ import annotations
 
+import itertools
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any, Callable
 
@@ -36,7 +37,7 @@ from flint import arb, fmpq, fmpq_mpoly_ctx
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.precision import precision
-from plantlint.kernel.regularity import tighter
+from plantlint.kernel.enclosures import int_power, tighter
 from plantlint.kernel.taylor import ArbField, Inexact, QField, Undefined
 
 if TYPE_CHECKING:  # sympy only where a sympy number is read or written (the light route has none)
@@ -160,8 +161,8 @@ class Formal:
     def refined(self) -> arb:
         """The ball of the value, tightened where parameters (unknowns that stand for a
         whole interval, :meth:`FormalField.parameter`) occur: N / D evaluated term by term
-        on pieces of their intervals (the overestimate shrinks with a piece's width; even
-        powers of a piece are taken from its ends, so x^2 stays >= 0), the pieces' balls
+        on pieces of their intervals (the overestimate shrinks with a piece's width; powers
+        of a piece are taken from its ends, so x^2 stays >= 0), the pieces' balls
         united and intersected with the ball carried along. That ball itself when no
         parameter occurs, or when D is not proven non-zero on a piece."""
         space = self.space
@@ -173,7 +174,7 @@ class Formal:
         with precision(PREC):
             pieces = {i: _pieces(space.balls[i], cuts) for i in params}
             total: arb | None = None
-            for choice in _product([pieces[i] for i in params]):
+            for choice in itertools.product(*(pieces[i] for i in params)):
                 values = list(space.balls)
                 for i, piece in zip(params, choice):
                     values[i] = piece
@@ -216,9 +217,8 @@ class Formal:
     def decision(self) -> zd.ZeroDecision:
         if self.num.is_zero():
             return zd.proven_zero("formal")
-        for bound in (self.ball, self.refined()):
-            if bound.is_finite() and not bound.contains(0):
-                return zd.proven_nonzero("ball")
+        if _excludes_zero(self.ball) or _excludes_zero(self.refined()):  # tightened only when needed
+            return zd.proven_nonzero("ball")
         return zd.UNDECIDED
 
     def to_sympy(self) -> "sp.Expr":
@@ -252,30 +252,16 @@ class Formal:
         return poly(self.num) / poly(self.den)
 
 
+def _excludes_zero(ball: arb) -> bool:
+    return bool(ball.is_finite() and not ball.contains(0))
+
+
 def _pieces(interval: arb, cuts: int) -> list[arb]:
     """``interval`` cut into ``cuts`` pieces whose union holds it."""
     lo, hi = arb(interval.lower()), arb(interval.upper())
     step = (hi - lo) / cuts
     ends = [lo + step * k for k in range(cuts)] + [hi]
     return [a.union(b) for a, b in zip(ends, ends[1:])]
-
-
-def _product(lists: list[list[arb]]) -> list[tuple[arb, ...]]:
-    out: list[tuple[arb, ...]] = [()]
-    for items in lists:
-        out = [(*head, x) for head in out for x in items]
-    return out
-
-
-def _power(x: arb, e: int) -> arb:
-    """x^e over the ball x, from its ends (an even power of a ball around 0 is >= 0)."""
-    if e == 1:
-        return x
-    lo, hi = arb(x.lower()), arb(x.upper())
-    ends = (lo ** e).union(hi ** e)
-    if e % 2 == 0 and x.contains(0):
-        return arb(0).union(ends)
-    return ends
 
 
 def _evaluate(p: Any, values: list[arb]) -> arb:
@@ -285,7 +271,7 @@ def _evaluate(p: Any, values: list[arb]) -> arb:
         term = arb(coeff)
         for i, e in enumerate(exps):
             if e:
-                term *= _power(values[i], e)
+                term *= int_power(values[i], e)
         total += term
     return total
 

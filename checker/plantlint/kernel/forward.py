@@ -30,7 +30,8 @@ from typing import Any, Callable, Iterable, Sequence
 
 from flint import arb
 
-from plantlint.kernel.balls import UnsupportedExpression, fold, int_power, product, run_steps, unary
+from plantlint.kernel.balls import UnsupportedExpression, fold, product, run_steps, unary
+from plantlint.kernel.enclosures import int_power
 from plantlint.kernel.dag import Program, UnsupportedNode, graph_of
 
 #: A value with its sparse gradient: (ball, derivatives in the order of the register's variables).

@@ -36,6 +36,7 @@ from flint import arb
 from plantlint.core import deadline
 from plantlint.kernel import decision as zd
 from plantlint.kernel.balls import UnsupportedExpression, to_arb
+from plantlint.kernel.enclosures import tighter
 from plantlint.kernel.forward import ForwardProgram
 from plantlint.kernel.precision import precision
 
@@ -285,7 +286,7 @@ class _Evaluator:
             for (nat, grad), mv in zip(duals, at_c):
                 for g, off in zip(grad, offsets):
                     mv = mv + g * off
-                out.append(_tighter(nat, mv))
+                out.append(tighter(nat, mv))
             return out
 
     def at(self, point: Sequence[float]) -> list[arb]:
@@ -303,17 +304,6 @@ class _Evaluator:
         if point is not None and self.exactly_zero(point, indices):
             return tuple(float(v) for v in point)
         return None
-
-
-def _tighter(a: arb, b: arb) -> arb:
-    if not b.is_finite():
-        return a
-    if not a.is_finite():
-        return b
-    try:
-        return a.intersection(b)
-    except ValueError:  # cannot happen for true enclosures; keep the natural one
-        return a
 
 
 def _certain_sign(x: arb) -> int:

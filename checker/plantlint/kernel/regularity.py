@@ -30,6 +30,7 @@ from typing import Any, Sequence
 from flint import arb, arb_mat, fmpq, fmpq_mat
 
 from plantlint.kernel import decision as zd
+from plantlint.kernel.enclosures import tighter
 from plantlint.kernel.taylor import ArbField, Undefined
 
 #: Boxes the full analysis's second try may examine; the light route uses no more (a proof
@@ -156,15 +157,6 @@ def nonsingular(matrix: Sequence[Sequence[Any]]) -> bool:
     return nonzero(determinant(matrix))
 
 
-def tighter(a: Any, b: Any) -> Any:
-    """The intersection of two enclosures of one value (the finite one when only one is)."""
-    if not b.is_finite():
-        return a
-    if not a.is_finite():
-        return b
-    return a.intersection(b) if a.overlaps(b) else a  # disjoint enclosures of one value: never
-
-
 def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], balls: Sequence[arb],
                        orders: Sequence[int], field: Any) -> tuple[list[list[Any]], list[float]]:
     """The decoupling matrix enclosed over ``box`` (held by ``balls``) in mean-value form,
@@ -194,4 +186,4 @@ def _mean_value_matrix(towers: Any, box: Sequence[tuple[Fraction, Fraction]], ba
 
 
 __all__ = ["MAX_STATES", "SECOND_TRY_BOXES", "RegularityProof", "ball", "determinant", "lower_bound",
-           "nonsingular", "nonzero", "prove_regular", "rational_ball", "tighter"]
+           "nonsingular", "nonzero", "prove_regular", "rational_ball"]

@@ -762,7 +762,7 @@ def raw_results(
             # bounded by what is left of the round, so the round keeps to its 0.3 s even when a
             # model's points are slow to settle (formal numbers over a ranged parameter)
             raws[i] = _light(sources[i].data or b"", config, LIGHT_SERIAL_MODEL_SECONDS if len(todo) > 1 else None,
-                             within=max(min(until - time.monotonic(), config.seconds), 0.001))
+                             within=max(until - time.monotonic(), 0.001))
             if raws[i] is not None:
                 light_cache.put(light_cache.key(sources[i].data or b""), raws[i])  # type: ignore[arg-type]
         todo = [i for i in todo if raws[i] is None]
@@ -809,12 +809,13 @@ def _light(data: bytes, config: Config, seconds: float | None = None, within: fl
            ) -> RawResult | None:
     """The light route's answer for one model, or None (the worker's analysis answers);
     ``seconds`` bounds its envelope proof (default: the route's own), and the whole call
-    takes at most ``LIGHT_SECONDS`` and ``within`` (default: the model's budget), so that
-    no answer comes later than the budget allows."""
+    takes at most ``LIGHT_SECONDS``, the model's budget and ``within`` (what is left of a
+    worker's budget, or of the first round), so that no answer comes later than the budget
+    allows."""
     from plantlint.core import deadline
     from plantlint.run.pipeline import light_result
 
-    bound = min(LIGHT_SECONDS, config.seconds if within is None else within)
+    bound = min(LIGHT_SECONDS, config.seconds, config.seconds if within is None else within)
     raw = deadline.bounded(bound, lambda: light_result(data, config.analysis, seconds))
     return None if raw is deadline.LATE else raw  # type: ignore[return-value]
 

@@ -621,7 +621,8 @@ def certify_envelope(
 
 def _mean_value_try(kernel: Kernel, structure: Structure, seconds: float) -> RegularityProof | None:
     """A second proof, when the proof by factors leaves the envelope open: the mean-value
-    form on the towers (:func:`plantlint.kernel.regularity.prove_regular`), with the boxes
+    form on the towers, and second-order forms through the rows' common factors
+    (:func:`plantlint.kernel.regularity.prove_regular`), with the boxes
     that the light route may use at most, so that a model it passes is never left open
     here, and the envelope's seconds (the light route has 0.3 s for the same proof; one
     that runs out here is recorded, so the result is not cached). Only for square plants

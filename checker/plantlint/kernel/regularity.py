@@ -12,6 +12,18 @@ defined over it (a ball of x*x that holds 0), across the side whose midpoint mak
 defined, else across the sides in turn. The order of the boxes is fixed (depth first), so a
 proof within a number of boxes is the same proof on every machine.
 
+Before the balls, each box is tried by second-order Taylor forms
+(:mod:`plantlint.kernel.affine`) where the matrix's rows are g components with a common
+factor (:class:`RowFactors`: an output that is a position whose rate is a velocity state,
+and rows that share a node of the graph, like 1/det M in every entry of an inverted mass
+matrix): det A = prod(common factors) det A', and over the box the model is defined (f, g
+and h as forms), every common factor and det A' exclude 0. A' has no quotient by det M left,
+so the cancellation between the products of M^-1's entries that no ball or mean-value form
+keeps (20,000 mean-value boxes did not close the demo palletizer's arm over its payload
+range) does not arise; the forms keep the second-order terms of det M exactly. An undecided
+box is then split across the side whose terms move the failing value the most. Measured on
+the palletizer (2026-12-04): 71 boxes, 0.06 s.
+
 Two callers: the light route (:mod:`plantlint.analysis.light`), which answers a model only
 when this proves its envelope within a few boxes, and the full analysis's envelope stage
 (:func:`plantlint.analysis.structure.certify_envelope`), which tries it when its own proof
@@ -23,6 +35,7 @@ from __future__ import annotations
 
 import sys
 import time
+from collections import Counter
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any, Sequence
@@ -31,7 +44,9 @@ from flint import arb, arb_mat, fmpq, fmpq_mat
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.enclosures import tighter
-from plantlint.kernel.taylor import ArbField, Undefined
+from plantlint.kernel.affine import Form, FormField, UndefinedOver, box_forms, value_range
+from plantlint.kernel.affine import determinant as form_determinant
+from plantlint.kernel.taylor import ArbField, Undefined, evaluate
 
 #: Boxes the full analysis's second try may examine; the light route uses no more (a proof
 #: it finds within them is found by the full analysis too).
@@ -58,6 +73,8 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
     nonsingular on the whole ``box`` (one rational interval per variable of the towers:
     the states, then the ranged parameters)?"""
     field = ArbField(64)
+    forms_field = FormField(64)
+    rows = RowFactors.of(towers, orders)
     todo: list[tuple[list[tuple[Fraction, Fraction]], int]] = [(list(box), 0)]  # a box and its depth
     examined = 0
     margin = float("inf")
@@ -69,21 +86,14 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
             return RegularityProof(False, None, examined, "seconds")
         here, depth = todo.pop()
         examined += 1
-        balls = [ball(lo, hi) for lo, hi in here]
-        try:
-            _defined(towers, balls, field)
-            matrix, spread = _mean_value_matrix(towers, here, balls, orders, field)
-            det = determinant(matrix)
-            if nonzero(det):
-                margin = min(margin, lower_bound(det))
-                continue
-            side = max(range(len(here)), key=lambda a: spread[a])
-        except Undefined:
-            # no gradient to go by: the first side whose midpoint makes the values defined
-            # (the air gap under c I^2 / x^2), else the sides in turn (widths in different
-            # units say nothing: an air gap of 1.5 cm next to a speed range of 2 m/s)
-            side = _culprit(towers, here, balls, field)
-            side = depth % len(here) if side is None else side
+        bound, side = _by_forms(towers, rows, here, orders, forms_field)
+        if bound is None:
+            bound, balls_side = _by_balls(towers, here, orders, field, depth)
+            side = balls_side if side is None else side
+        if bound is not None:
+            margin = min(margin, bound)
+            continue
+        side = depth % len(here) if side is None else side
         lo, hi = here[side]
         middle = (lo + hi) / 2
         todo.append(([*here[:side], (lo, middle), *here[side + 1:]], depth + 1))
@@ -91,10 +101,128 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
     return RegularityProof(True, margin, examined)
 
 
+def _by_balls(towers: Any, here: list[tuple[Fraction, Fraction]], orders: Sequence[int], field: Any,
+              depth: int) -> tuple[float | None, int | None]:
+    """The box by balls in mean-value form: (a lower bound of |det A| when proven, else
+    None; the side to split)."""
+    balls = [ball(lo, hi) for lo, hi in here]
+    try:
+        _defined(towers, balls, field)
+        matrix, spread = _mean_value_matrix(towers, here, balls, orders, field)
+        det = determinant(matrix)
+        if nonzero(det):
+            return lower_bound(det), None
+        return None, max(range(len(here)), key=lambda a: spread[a])
+    except Undefined:
+        # no gradient to go by: the first side whose midpoint makes the values defined
+        # (the air gap under c I^2 / x^2), else the sides in turn (widths in different
+        # units say nothing: an air gap of 1.5 cm next to a speed range of 2 m/s)
+        side = _culprit(towers, here, balls, field)
+        return None, depth % len(here) if side is None else side
+
+
+def _by_forms(towers: Any, rows: "RowFactors | None", box: Sequence[tuple[Fraction, Fraction]],
+              orders: Sequence[int], field: Any) -> tuple[float | None, int | None]:
+    """The box by second-order forms (:mod:`plantlint.kernel.affine`), when the decoupling
+    matrix's rows are g components (:class:`RowFactors`): (a lower bound of |det A| when
+    proven, else None; the side that moves det A', or the undefined argument, the most)."""
+    if rows is None:
+        return None, None
+    forms = box_forms(box)
+    try:
+        _defined(towers, forms, field)
+        factors, det = rows.evaluate(forms, field)
+    except UndefinedOver as why:
+        return None, _largest_side(why.form)
+    except Undefined:
+        return None, None
+    ranges = [value_range(v) for v in (*factors, det)]
+    if all(nonzero(r) for r in ranges):
+        bound = 1.0
+        for r in ranges:
+            bound *= lower_bound(r)
+        return bound, None
+    worst = min(range(len(ranges)), key=lambda k: lower_bound(ranges[k]))
+    return None, _largest_side([*factors, det][worst])
+
+
+@dataclass(frozen=True)
+class RowFactors:
+    """The decoupling matrix written through common factors of its rows, where each row is a
+    g component: L_f^(r_i - 1) h_i is a state x_k (a position output whose rate is a
+    velocity state: q, dq/dt = w), so A_ij = g_j[k], a node of the model's graph. A factor
+    common to every entry of row i (a node the products share, like 1/det M in the rows of
+    an inverted mass matrix) comes out: det A = prod(common factors) det A'. Over a box A is
+    nonsingular when every common factor and det A' exclude 0; A' has no quotient by det M
+    left, so its determinant is enclosed without the cancellation between the products of
+    M^-1's entries. ``program`` computes the common factors, then A' row by row."""
+
+    program: Any
+    common: int
+    size: int
+
+    @staticmethod
+    def of(towers: Any, orders: Sequence[int]) -> "RowFactors | None":
+        graph = towers.graph
+        if towers.m != towers.p or towers.m < 2:
+            return None
+        common_nodes: list[int] = []
+        reduced: list[int] = []
+        for i, order in enumerate(orders):
+            node = towers.h_nodes[i]
+            for _ in range(order):
+                k = _state(graph, node, towers.n)
+                if k is None:
+                    return None
+                node = towers.f_nodes[k]
+            k = _state(graph, node, towers.n)
+            if k is None:
+                return None
+            entries = [_factors(graph, towers.g_nodes[j][k]) for j in range(towers.m)]
+            shared = Counter(entries[0])
+            for e in entries[1:]:
+                shared &= Counter(e)
+            shared = Counter({f: c for f, c in shared.items() if not graph.is_const(f)})
+            common_nodes.extend(shared.elements())
+            reduced.extend(graph.mul(list((Counter(e) - shared).elements())) for e in entries)
+        if not common_nodes:
+            return None
+        return RowFactors(graph.compile([*common_nodes, *reduced]), len(common_nodes), towers.m)
+
+    def evaluate(self, forms: Sequence[Any], field: Any) -> tuple[list[Any], Any]:
+        """The common factors and det A' over the box of ``forms``."""
+        values = evaluate(self.program, forms, field)
+        factors, rest = values[:self.common], values[self.common:]
+        matrix = [rest[i * self.size:(i + 1) * self.size] for i in range(self.size)]
+        return factors, form_determinant(matrix)
+
+
+def _state(graph: Any, node: int, n: int) -> int | None:
+    """The state a node is, or None."""
+    op, _, data = graph.nodes[node]
+    return data if op == "var" and data < n else None
+
+
+def _factors(graph: Any, node: int) -> list[int]:
+    """The factors of a product node, nested products flattened."""
+    op, args, _ = graph.nodes[node]
+    if op != "mul":
+        return [node]
+    return [f for a in args for f in _factors(graph, a)]
+
+
+def _largest_side(form: Any) -> int | None:
+    if not isinstance(form, Form):
+        return None
+    sizes = form.side_sizes(max([*form.lin, *(b for _, b in form.quad), -1]) + 1)
+    best = max(range(len(sizes)), key=lambda a: sizes[a], default=None)
+    return best if best is not None and sizes[best] > 0 else None
+
+
 def _defined(towers: Any, balls: Sequence[arb], field: Any) -> None:
     """f, the g columns and h finite over the balls, else :class:`Undefined`."""
     f, G, h = towers.values(None, field, start=balls)
-    if not all(x.is_finite() for x in [*f, *(x for col in G for x in col), *h]):
+    if not all(value_range(x).is_finite() for x in [*f, *(x for col in G for x in col), *h]):
         raise Undefined("a value that is not finite over the box")
 
 

@@ -86,8 +86,11 @@ class ArbField:
         return (a.log() * q.numerator / q.denominator).exp()
 
     def atan2(self, y: arb, x: arb) -> arb:
-        if y.contains(0) and x.contains(0):
-            raise Undefined("atan2")
+        if y.contains(0) and not x > 0:
+            # both may vanish, or the ball meets the branch cut (y = 0, x < 0), where atan2
+            # jumps from pi to -pi: no derivative there, and a mean-value form over a box
+            # that crosses it would take the formula's finite slope across the jump
+            raise Undefined("atan2 at or across its branch cut")
         return arb.atan2(y, x)
 
     def is_zero(self, a: arb) -> zd.ZeroDecision:
@@ -590,6 +593,15 @@ class _Runner:
         return _wconv(prod, s, k, 1, k) / k
 
 
+def evaluate(program: Program, values: Sequence[Any], field: Any) -> list[Any]:
+    """The outputs of ``program`` at ``values``: numbers of ``field``, or forms over a box
+    (:class:`plantlint.kernel.affine.FormField`)."""
+    with precision(None if getattr(field, "exact", False) else getattr(field, "prec", None)):
+        runner = _Runner(program, field)
+        runner.step(0, [[v] for v in values])
+    return [runner.series[o][0] for o in program.outputs]
+
+
 # -- the towers of a plant --------------------------------------------------------------------
 class Towers:
     """Compiled f, g, h of one plant for Taylor-mode towers at points.
@@ -635,7 +647,7 @@ class Towers:
         of any kind) directly. Without ``outputs`` only f and g are run (:attr:`fields`),
         and the series end after g."""
         program = self.program if outputs else self.fields
-        with precision(field.prec if isinstance(field, ArbField) else None):
+        with precision(None if getattr(field, "exact", False) else getattr(field, "prec", None)):
             if start is None:
                 start = [field.number(v) for v in point]
             else:
@@ -826,4 +838,4 @@ def exact_or_balls(run: Any, precisions: Sequence[int] = (128, 512, 2048),
     return result, field
 
 
-__all__ = ["ArbField", "Inexact", "Jet", "QField", "Towers", "Undefined", "exact_or_balls"]
+__all__ = ["ArbField", "Inexact", "Jet", "QField", "Towers", "Undefined", "evaluate", "exact_or_balls"]

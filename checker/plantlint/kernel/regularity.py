@@ -13,7 +13,7 @@ defined, else across the sides in turn. The order of the boxes is fixed (depth f
 proof within a number of boxes is the same proof on every machine.
 
 Before the balls, each box is tried by second-order Taylor forms
-(:mod:`plantlint.kernel.affine`) where the matrix's rows are g components with a common
+(:mod:`plantlint.kernel.taylor_forms`) where the matrix's rows are g components with a common
 factor (:class:`RowFactors`: an output that is a position whose rate is a velocity state,
 and rows that share a node of the graph, like 1/det M in every entry of an inverted mass
 matrix): det A = prod(common factors) det A', and over the box the model is defined (f, g
@@ -44,8 +44,8 @@ from flint import arb, arb_mat, fmpq, fmpq_mat
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.enclosures import tighter
-from plantlint.kernel.affine import Form, FormField, UndefinedOver, box_forms, value_range
-from plantlint.kernel.affine import determinant as form_determinant
+from plantlint.kernel.taylor_forms import Form, FormField, UndefinedOver, box_forms, value_range
+from plantlint.kernel.taylor_forms import determinant as form_determinant
 from plantlint.kernel.taylor import ArbField, Undefined, evaluate
 
 #: Boxes the full analysis's second try may examine; the light route uses no more (a proof
@@ -123,7 +123,7 @@ def _by_balls(towers: Any, here: list[tuple[Fraction, Fraction]], orders: Sequen
 
 def _by_forms(towers: Any, rows: "RowFactors | None", box: Sequence[tuple[Fraction, Fraction]],
               orders: Sequence[int], field: Any) -> tuple[float | None, int | None]:
-    """The box by second-order forms (:mod:`plantlint.kernel.affine`), when the decoupling
+    """The box by second-order forms (:mod:`plantlint.kernel.taylor_forms`), when the decoupling
     matrix's rows are g components (:class:`RowFactors`): (a lower bound of |det A| when
     proven, else None; the side that moves det A', or the undefined argument, the most)."""
     if rows is None:

@@ -595,7 +595,7 @@ class _Runner:
 
 def evaluate(program: Program, values: Sequence[Any], field: Any) -> list[Any]:
     """The outputs of ``program`` at ``values``: numbers of ``field``, or forms over a box
-    (:class:`plantlint.kernel.affine.FormField`)."""
+    (:class:`plantlint.kernel.taylor_forms.FormField`)."""
     with precision(None if getattr(field, "exact", False) else getattr(field, "prec", None)):
         runner = _Runner(program, field)
         runner.step(0, [[v] for v in values])

@@ -1,4 +1,4 @@
-"""Second-order Taylor forms over a box (kernel/affine.py).
+"""Second-order Taylor forms over a box (kernel/taylor_forms.py).
 
 References: every enclosure is held against numpy evaluating the same expression (sympy's
 lambdify) at the corners, on a grid and at random points of the box; a form encloses the
@@ -18,7 +18,7 @@ import pytest
 import sympy as sp
 from flint import arb
 
-from plantlint.kernel.affine import (Form, FormField, UndefinedOver, _parabola, box_forms, determinant,
+from plantlint.kernel.taylor_forms import (Form, FormField, UndefinedOver, _parabola, box_forms, determinant,
                                      value_range)
 from plantlint.kernel.dag import graph_of
 from plantlint.kernel.regularity import ball

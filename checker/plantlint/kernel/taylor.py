@@ -802,6 +802,8 @@ class Towers:
                             for b in range(n):
                                 Nk[i][b] = Nk[i][b] - row[c] * Nr[c][b]
             N.append(Nk)
+        # exact numbers: skip the zero entries of N (a sparse plant's are mostly zero)
+        nonzero_n = [[[b for b in range(n) if not field.exact or Nk[i][b] != 0] for i in range(n)] for Nk in N]
         out = []
         for j in range(self.m):
             gser = [[_value(c) for c in self._out(s, "g", i, j)] for i in range(n)]
@@ -812,7 +814,7 @@ class Towers:
                     total = zero
                     for a in range(k + 1):
                         Na = N[a][i]
-                        for b in range(n):
+                        for b in nonzero_n[a][i]:
                             total = total + Na[b] * gser[b][k - a]
                     w.append(total * factorial(k))
                 cols.append(w)

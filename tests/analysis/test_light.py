@@ -82,8 +82,9 @@ def test_the_light_route_answers_the_models_written_for_it(path: Path) -> None:
     two-link boom under gravity whose points are written in fractions of pi (holding
     torques in sqrt(3)/2 and sqrt(2)/2, one given), a sprung hoist with a payload range
     (its sag m g / k and holding force follow the payload: identities in m, ranges shown by
-    balls over 20 .. 120 kg), a servo with tanh friction and a chain with a rational
-    damping term."""
+    balls over 20 .. 120 kg), a servo with tanh friction, a chain with a rational
+    damping term and a SCARA arm whose rates divide by det M written out over a payload
+    range (its envelope proven through the rows' common factor 1/det M)."""
     assert _agrees(path.read_bytes()) is True
 
 

@@ -71,7 +71,10 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
                   max_boxes: int = SECOND_TRY_BOXES, seconds: float | None = None) -> RegularityProof:
     """Is the model defined and the decoupling matrix (rows at ``orders``, r_i - 1)
     nonsingular on the whole ``box`` (one rational interval per variable of the towers:
-    the states, then the ranged parameters)?"""
+    the states, then the ranged parameters)? Each box is tried by second-order forms through
+    the rows' common factors where the rows allow it (:func:`_by_forms`), else or then by
+    balls in mean-value form (:func:`_by_balls`); one that neither proves is split across
+    the side the forms name, else the side the balls name."""
     field = ArbField(64)
     forms_field = FormField(64)
     rows = RowFactors.of(towers, orders)

@@ -125,6 +125,15 @@ def test_mutants_of_the_palletizer() -> None:
     assert answered >= 3 and handed >= 3, (answered, handed)
 
 
+def test_the_route_gives_up_when_the_full_analysis_has_answered() -> None:
+    """The runner's check that the worker beside it has ended reaches the envelope proof:
+    asked there, it ends the question with a hand-over."""
+    boom = (REPO / "tests" / "fixtures" / "light" / "boom2.plant").read_bytes()
+    assert prove_clean(boom).plant  # answered when nothing stops it
+    with pytest.raises(HandOver, match="answered first"):
+        prove_clean(boom, stop=lambda: True)
+
+
 def test_mutants_of_light_passed_models() -> None:
     """Mutants (tools/mutate_models.py: numbers swapped for 0, 1e-300, 1e300, ..., names
     wrapped in functions, lines deleted or repeated, operators swapped, ranges widened

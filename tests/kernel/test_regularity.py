@@ -140,3 +140,17 @@ def test_rows_that_are_not_g_components_are_not_factored() -> None:
                      "let d = 3 + x1\nrate x1 = (2*u1 + u2)/d\nrate x2 = (u1 + 2*u2)/d\n"
                      "output y1 = x1 + x2\noutput y2 = x2\n")
     assert RowFactors.of(towers, [0, 0]) is None
+
+
+def test_a_proof_asked_to_stop_ends_unfinished() -> None:
+    """``stop`` is asked before each box; True ends the proof, unproven and saying so (the
+    light route's envelope proof, when the full analysis beside it has answered)."""
+    towers = _towers("plant p\nstate x in -2 .. 2\ninput u\nrate x = -x + (1 + x)*u\noutput y = x\n")
+    asked = []
+
+    def stop() -> bool:
+        asked.append(1)
+        return len(asked) > 3
+
+    proof = prove_regular(towers, [(Fraction(-2), Fraction(2))], [0], max_boxes=2000, stop=stop)
+    assert not proof.proven and proof.stopped == "stopped" and proof.boxes == 3

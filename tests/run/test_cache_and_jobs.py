@@ -16,7 +16,7 @@ import sys
 import time
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import Any, Callable
 
 import pytest
 
@@ -486,3 +486,27 @@ def test_the_small_model_is_read_before_forking_only_for_several_workers(monkeyp
     assert read == []
     runner._preload([MAGLEV, MAGLEV])
     assert read == [runner._WARM_UP]
+
+
+def test_the_question_beside_a_worker_is_told_when_the_worker_has_ended() -> None:
+    """``early`` gets a check of whether the model's worker has ended: a question that waits
+    for it (as the light route's envelope proof does, box by box) sees it end, gives up, and
+    the worker's own result is the model's. Before, a slow question held up an answer that
+    was already in the pipe (a pendulum chain's text run waited 0.07 s on it)."""
+    from plantlint.core.settings import AnalysisSettings
+    from plantlint.run.runner import analyse_all
+
+    seen: list[bool] = []
+
+    def early(_i: int, left: float, ended: Callable[[], bool]) -> None:
+        seen.append(ended())  # at once: the worker has just started
+        until = time.monotonic() + min(left, 30.0)
+        while not ended() and time.monotonic() < until:
+            time.sleep(0.01)
+        seen.append(ended())
+        return None
+
+    model = b"plant p\nstate x in -1 .. 1\ninput u\nrate x = -x + u\noutput y = x\n"
+    (raw,) = analyse_all([model], AnalysisSettings(), jobs=1, timeout=60.0, early=early)
+    assert seen == [False, True]
+    assert raw.plant == "p" and raw.stop is None and raw.analysis is not None

@@ -45,7 +45,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any, Sequence
+from typing import Any, Callable, Sequence
 
 from plantlint.core.settings import AnalysisSettings
 from plantlint.kernel.regularity import MAX_STATES as REGULARITY_STATES
@@ -81,11 +81,12 @@ class LightPass:
 
 
 def light_check(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
-                seconds: float | None = None) -> LightPass | None:
+                seconds: float | None = None, stop: Callable[[], bool] | None = None) -> LightPass | None:
     """A model proven clean without sympy, or None (the full analysis must answer).
-    ``seconds`` bounds the envelope proof (default ``MAX_SECONDS``)."""
+    ``seconds`` bounds the envelope proof (default ``MAX_SECONDS``); ``stop``, asked during
+    it, ends it when the answer is no longer needed (the worker beside it has finished)."""
     try:
-        return prove_clean(data, settings, seconds)
+        return prove_clean(data, settings, seconds, stop)
     except HandOver:
         return None
     except (Exception, RecursionError):  # noqa: BLE001 - see below
@@ -98,7 +99,7 @@ def light_check(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
 
 
 def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
-                seconds: float | None = None) -> LightPass:
+                seconds: float | None = None, stop: Callable[[], bool] | None = None) -> LightPass:
     """:func:`light_check`, raising :class:`HandOver` with the reason instead of None."""
     if settings.point_tolerance != 0:
         raise HandOver("a point tolerance is configured")
@@ -115,7 +116,7 @@ def prove_clean(data: bytes, settings: AnalysisSettings = AnalysisSettings(),
                 raise HandOver(f"the decoupling matrix is not proven nonsingular at point {name}")
     except (Undefined, Inexact) as why:  # a value at a point that does not exist or is not held
         raise HandOver(f"a value at a point: {why}") from None
-    _envelope(model, towers, degrees, MAX_SECONDS if seconds is None else seconds)
+    _envelope(model, towers, degrees, MAX_SECONDS if seconds is None else seconds, stop)
     return LightPass(model.name, tuple(d + 1 for d in degrees))
 
 
@@ -459,12 +460,15 @@ def _solve(rows: list[list[Fraction]], rhs: list[Fraction]) -> list[Fraction]:
 
 # -- the envelope ----------------------------------------------------------------------
 
-def _envelope(model: _Model, towers: Any, degrees: list[int], seconds: float) -> None:
+def _envelope(model: _Model, towers: Any, degrees: list[int], seconds: float,
+              stop: Callable[[], bool] | None = None) -> None:
     """Over the state box the model is defined and the decoupling matrix is nonsingular
     (:func:`plantlint.kernel.regularity.prove_regular`), within few boxes and seconds."""
     plant = model.written
     box = [model.boxes[s] for s in plant.states] + model.param_boxes
-    proof = prove_regular(towers, box, degrees, MAX_BOXES, seconds)
+    proof = prove_regular(towers, box, degrees, MAX_BOXES, seconds, stop)
+    if proof.stopped == "stopped":
+        raise HandOver("the full analysis answered first")
     if not proof.proven:
         raise HandOver(f"the envelope proof did not finish within its {proof.stopped}")
 

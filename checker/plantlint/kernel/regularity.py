@@ -38,7 +38,7 @@ import time
 from collections import Counter
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any, Sequence
+from typing import Any, Callable, Sequence
 
 from flint import arb, arb_mat, fmpq, fmpq_mat
 
@@ -59,7 +59,7 @@ MAX_STATES = 16
 class RegularityProof:
     """``proven``: every box was proven; ``margin``: a lower bound of |det A| over the box
     (when proven); ``boxes``: how many were examined; ``stopped``: why not proven
-    ("boxes", "seconds"), "" when proven."""
+    ("boxes", "seconds", "stopped"), "" when proven."""
 
     proven: bool
     margin: float | None
@@ -68,13 +68,16 @@ class RegularityProof:
 
 
 def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders: Sequence[int],
-                  max_boxes: int = SECOND_TRY_BOXES, seconds: float | None = None) -> RegularityProof:
+                  max_boxes: int = SECOND_TRY_BOXES, seconds: float | None = None,
+                  stop: Callable[[], bool] | None = None) -> RegularityProof:
     """Is the model defined and the decoupling matrix (rows at ``orders``, r_i - 1)
     nonsingular on the whole ``box`` (one rational interval per variable of the towers:
     the states, then the ranged parameters)? Each box is tried by second-order forms through
     the rows' common factors where the rows allow it (:func:`_by_forms`), else or then by
     balls in mean-value form (:func:`_by_balls`); one that neither proves is split across
-    the side the forms name, else the side the balls name."""
+    the side the forms name, else the side the balls name. ``stop``, when given, is asked
+    before each box: True ends the proof unfinished ("stopped": the answer is no longer
+    needed, the full analysis beside it has given its own)."""
     field = ArbField(64)
     forms_field = FormField(64)
     rows = RowFactors.of(towers, orders)
@@ -87,6 +90,8 @@ def prove_regular(towers: Any, box: Sequence[tuple[Fraction, Fraction]], orders:
             return RegularityProof(False, None, examined, "boxes")
         if until is not None and time.perf_counter() > until:
             return RegularityProof(False, None, examined, "seconds")
+        if stop is not None and stop():
+            return RegularityProof(False, None, examined, "stopped")
         here, depth = todo.pop()
         examined += 1
         bound, side = _by_forms(towers, rows, here, orders, forms_field)

@@ -213,17 +213,17 @@ def _analyse(data: bytes, settings: AnalysisSettings, progress: Progress | None,
 
 
 def light_result(data: bytes, settings: AnalysisSettings | Config = AnalysisSettings(),
-                 seconds: float | None = None) -> RawResult | None:
+                 seconds: float | None = None, stop: Callable[[], bool] | None = None) -> RawResult | None:
     """The result of a model that the light route proves clean (no findings, every claim
     holding, every stage's question settled), or None: then :func:`analyse_bytes` must
     answer. It imports no sympy (:mod:`plantlint.analysis.light`); ``seconds`` bounds its
-    envelope proof."""
+    envelope proof, and ``stop`` ends that proof early (True: no longer needed)."""
     if isinstance(settings, Config):
         settings = settings.analysis
     from plantlint.analysis.light import light_check
     from plantlint.analysis.stages import STAGES
 
-    passed = light_check(data, settings, seconds)
+    passed = light_check(data, settings, seconds, stop)
     if passed is None:
         return None
     return RawResult(plant=passed.plant, stages=list(STAGES), route="light")

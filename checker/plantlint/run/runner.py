@@ -527,15 +527,17 @@ def analyse_all(
     timeout: float,
     on_done: Callable[[int], None] | None = None,
     explain: bool = False,
-    early: Callable[[int, float], RawResult | None] | None = None,
+    early: Callable[[int, float, Callable[[], bool]], RawResult | None] | None = None,
 ) -> list[RawResult]:
     """Analyse every model in worker processes, at most ``jobs`` at a time (with
     ``explain``, each result also carries the derivation that explain shows).
 
-    ``early(i, seconds)``, when given, is asked in this process for each model while its
-    worker runs (the light route), within the seconds left of the model's budget, so that
-    the budget is enforced on time: a result it returns is the model's, and its worker is
-    stopped.
+    ``early(i, seconds, finished)``, when given, is asked in this process for each model
+    while its worker runs (the light route), within the seconds left of the model's budget,
+    so that the budget is enforced on time: a result it returns is the model's, and its
+    worker is stopped. ``finished()`` says whether the worker has ended (its result waits
+    in the pipe), so that the question is given up instead of holding up an answer that is
+    already there.
     A single model is then not preloaded here, so that its worker imports the analysis
     while this process asks ``early``; with several, the import is shared as before."""
     if not datas:
@@ -571,7 +573,7 @@ def analyse_all(
                         continue
                     r.asked = True
                     left = r.start + timeout - time.monotonic()
-                    answer = early(r.index, left) if left > 0 else None
+                    answer = early(r.index, left, _ended(r.proc)) if left > 0 else None
                     if answer is not None:  # answered here: the worker's analysis is not needed
                         r.proc.kill()
                         r.proc.join()
@@ -644,6 +646,18 @@ def _receive(conn: Connection, running: dict[Connection, _Running], results: lis
     results[r.index] = _outcome(kind, payload, r, timeout, datas[r.index])
     if on_done:
         on_done(r.index)
+
+
+def _ended(proc: Any) -> Callable[[], bool]:
+    """Has the worker process ended? Read from its sentinel, without reaping it or reading
+    its pipe (the runner's loop reads the result as before). A worker whose messages fill
+    the pipe waits for the parent to read them and does not end until then: the question
+    then runs on to its own bound, as it did before this check existed."""
+    from multiprocessing import connection
+
+    def ended() -> bool:
+        return bool(connection.wait([proc.sentinel], timeout=0))
+    return ended
 
 
 def _wait_seconds(left: float) -> float:
@@ -770,7 +784,7 @@ def raw_results(
     # worker. (With several, asking while workers run would hold up collecting the others'
     # results.)
     one_core = _cores() == 1
-    beside = ((lambda _k, left: _light(sources[todo[0]].data or b"", config, within=left))
+    beside = ((lambda _k, left, ended: _light(sources[todo[0]].data or b"", config, within=left, stop=ended))
               if light and len(todo) == 1 and not one_core else None)
     if light and (len(todo) > 1 or one_core):
         # (On one core a worker beside the light route would take the core from it, and a
@@ -831,18 +845,18 @@ def _cores() -> int:
         return max(os.cpu_count() or 1, 1)
 
 
-def _light(data: bytes, config: Config, seconds: float | None = None, within: float | None = None
-           ) -> RawResult | None:
+def _light(data: bytes, config: Config, seconds: float | None = None, within: float | None = None,
+           stop: Callable[[], bool] | None = None) -> RawResult | None:
     """The light route's answer for one model, or None (the worker's analysis answers);
     ``seconds`` bounds its envelope proof (default: the route's own), and the whole call
     takes at most ``LIGHT_SECONDS``, the model's budget and ``within`` (what is left of a
     worker's budget, or of the first round), so that no answer comes later than the budget
-    allows."""
+    allows. ``stop`` ends its envelope proof early (the worker beside it has finished)."""
     from plantlint.core import deadline
     from plantlint.run.pipeline import light_result
 
     bound = min(LIGHT_SECONDS, config.seconds, config.seconds if within is None else within)
-    raw = deadline.bounded(bound, lambda: light_result(data, config.analysis, seconds))
+    raw = deadline.bounded(bound, lambda: light_result(data, config.analysis, seconds, stop))
     return None if raw is deadline.LATE else raw  # type: ignore[return-value]
 
 

@@ -53,7 +53,7 @@ from plantlint.kernel import exact
 from plantlint.kernel.exact import ball_rank
 from plantlint.kernel.laurent import expanded, identically_zero
 from plantlint.kernel.lie import Kernel, Vector, has_nested_arguments, has_symbolic_denominator, matrix_at
-from plantlint.kernel.rational import sympy_rational
+from plantlint.kernel.rational import flint_matrix, flint_rational, matrix_entries, sympy_rational
 from plantlint.kernel.precision import precision
 from plantlint.language.printer import listed, show_expr, show_point
 from plantlint.analysis.linearizing_output import OutputSearch
@@ -748,10 +748,11 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
     # at an equilibrium of the drift: the brackets are formed to that order first, and to
     # n - 1 only when the point is not one (the quadrotor at hover: order 1, not 11; 16 ms
     # of brackets become 1 ms)
+    undefined = "the brackets at the point (a derivative of the rates does not exist there)"
     top = known - 1 if m and 0 < known < n else n - 1
     taylor = _taylor_brackets(kernel, values, top) if m else None
     if taylor == "undefined":
-        decide.undefined.append("the brackets at the point (a derivative of the rates does not exist there)")
+        decide.undefined.append(undefined)
         return [0] * n, [], None
     if taylor is None and m and known and structure.ranks[-1] == n:
         # not rational at the point (sin(1/4)): balls prove lower bounds of the ranks, and a
@@ -765,14 +766,14 @@ def _ranks_at(kernel: Kernel, structure: DistributionStructure, values: dict[sp.
     if isinstance(taylor, list) and kalman is None and top < n - 1:
         taylor = _taylor_brackets(kernel, values, n - 1)
         if taylor == "undefined":
-            decide.undefined.append("the brackets at the point (a derivative of the rates does not exist there)")
+            decide.undefined.append(undefined)
             return [0] * n, [], None
     if taylor is None and m:
         # values that are not rational (sin(1/4)): Taylor mode on formal numbers proves the
         # zeros and the balls the non-zeros; only what neither settles takes the fields
         formal = _formal_ranks(kernel, values, n, m, known, kalman)
         if formal == "undefined":
-            decide.undefined.append("the brackets at the point (a derivative of the rates does not exist there)")
+            decide.undefined.append(undefined)
             return [0] * n, [], None
         if formal is not None:
             return formal[0], formal[1], kalman
@@ -1021,15 +1022,13 @@ def _kalman_columns(
         A = matrix_at(kernel, [list(kernel.jacobian(plant.f).row(i)) for i in range(plant.n)], values)
         columns = [list(matrix_at(kernel, [g], values).row(0)) for g in plant.g]
     out: list[list[sp.Expr]] = []
-    entries = [e for row in A.tolist() for e in row] + [e for c in columns for e in c]
-    if all(isinstance(e, sp.Rational) for e in entries):
+    if all(isinstance(e, sp.Rational) for e in [*matrix_entries(A), *(e for c in columns for e in c)]):
         # exact rationals (a rational point): the products in flint's rational matrices
-        from flint import fmpq, fmpq_mat
+        from flint import fmpq_mat
 
-        def q(e: sp.Rational) -> fmpq:
-            return fmpq(int(e.p), int(e.q))
-        Aq = fmpq_mat(A.rows, A.cols, [q(e) for row in A.tolist() for e in row])
-        block = fmpq_mat(plant.n, len(columns), [q(columns[j][i]) for i in range(plant.n) for j in range(len(columns))])
+        Aq = flint_matrix(A)
+        block = fmpq_mat(plant.n, len(columns), [flint_rational(columns[j][i]) for i in range(plant.n)
+                                                 for j in range(len(columns))])
         for _ in range(plant.n):
             out.extend([[sympy_rational(block[i, j]) for i in range(plant.n)] for j in range(block.ncols())])
             block = Aq * block

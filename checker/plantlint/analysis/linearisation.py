@@ -47,7 +47,7 @@ from plantlint.core.findings import Finding
 from plantlint.kernel.balls import Program, UnsupportedExpression
 from plantlint.kernel.exact import ball_elimination, has_undefined
 from plantlint.kernel.lie import FirstOrder, Kernel
-from plantlint.kernel.rational import polynomial_text
+from plantlint.kernel.rational import flint_matrix, polynomial_text
 from plantlint.kernel.precision import precision
 from plantlint.language.printer import show_number
 
@@ -229,13 +229,9 @@ def _tidy(e: sp.Expr) -> sp.Expr:
 
 
 # -- exact route -------------------------------------------------------------------------
-def _q(M: sp.Matrix) -> fmpq_mat:
-    return fmpq_mat(M.rows, M.cols, [fmpq(int(e.p), int(e.q)) for e in M])
-
-
 def _exact(name: str, A_: sp.Matrix, B_: sp.Matrix, C_: sp.Matrix, states: Sequence[sp.Symbol]) -> Linearisation:
     n, m, p = A_.rows, B_.cols, C_.rows
-    A, B, C = _q(A_), _q(B_), _q(C_)
+    A, B, C = flint_matrix(A_), flint_matrix(B_), flint_matrix(C_)
     chi = A.charpoly()
     ctrl_rank, uncontrollable = None, ()
     if m:
@@ -509,7 +505,7 @@ def _numeric(name: str, A: sp.Matrix, B: sp.Matrix, C: sp.Matrix, states: Sequen
     if all(e.is_Rational for e in A):
         # A alone is rational (the irrational entries are in B or C): its poles are exact, so a
         # double integrator reads 0 (4 times), not +-1e-51 from a ball eigenvalue solver
-        chi = _q(A).charpoly()
+        chi = flint_matrix(A).charpoly()
         poles = list(_roots(chi))
     return Linearisation(name, "computed", reason=reason, exact=False,
                          characteristic_polynomial=polynomial_text(chi) if chi is not None else None,

@@ -25,7 +25,7 @@ from typing import Sequence
 import flint
 import mpmath
 import sympy as sp
-from flint import acb, acb_poly, arb, arb_mat, fmpq, fmpq_mat, fmpz_poly
+from flint import acb, acb_poly, arb, arb_mat, fmpq_mat, fmpz_poly
 
 from plantlint.core.deadline import bounded
 from plantlint.kernel.exact import number_decider, rank as exact_rank, has_undefined
@@ -36,7 +36,7 @@ from plantlint.analysis.refine import REFINED_RESIDUAL
 from plantlint.kernel.balls import UnsupportedExpression, to_arb
 from plantlint.kernel.lie import Kernel
 from plantlint.kernel.precision import precision
-from plantlint.kernel.rational import coefficients_text, polynomial_text, sympy_rational
+from plantlint.kernel.rational import coefficients_text, flint_matrix, matrix_entries, polynomial_text, sympy_rational
 from plantlint.language.printer import show_number
 
 VERDICTS = ("minimum_phase", "non_minimum_phase", "critical", "not_applicable", "undefined")
@@ -85,7 +85,7 @@ class _PointData:
 
     def entries(self) -> list[sp.Expr]:
         mats = [self.f0, self.G0, self.Df0, self.A0, self.b0, self.dXi, *self.DG0, *self.dA, *self.db]
-        return [e for m in mats for e in _flat(m)]
+        return [e for m in mats for e in matrix_entries(m)]
 
     def rational(self) -> bool:
         return all(e.is_Rational for e in self.entries())
@@ -230,22 +230,12 @@ def _assemble(data: _PointData, to: "object", inverse: "object", zeros: "object"
 
 
 # -- exact route -------------------------------------------------------------------
-def _flat(M: sp.Matrix) -> list[sp.Expr]:
-    """The entries row by row (sympy's own iteration indexes them one by one, about ten
-    times slower: a third of the quadrotor's zero dynamics went there)."""
-    return [e for row in M.tolist() for e in row]
-
-
-def _to_fmpq(M: sp.Matrix) -> fmpq_mat:
-    return fmpq_mat(M.rows, M.cols, [fmpq(int(e.p), int(e.q)) for e in _flat(M)])
-
-
 def _exact_route(name: str, n: int, r: int, data: _PointData) -> ZeroDynamics:
-    J, rest, _ = _assemble(data, _to_fmpq, lambda A: A.inv(), None)
+    J, rest, _ = _assemble(data, flint_matrix, lambda A: A.inv(), None)
     d = n - r
     if any(rest[i, 0] != 0 for i in range(n)):
         return ZeroDynamics(name, d, "undefined", reason="the point is not a rest point of the zero dynamics")
-    dXi = _to_fmpq(data.dXi)
+    dXi = flint_matrix(data.dXi)
     reduced, rank = dXi.rref()
     if rank != r:
         return ZeroDynamics(name, d, "undefined", reason=f"output derivatives have rank {rank}, not {r}, at the point")

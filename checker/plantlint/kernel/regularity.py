@@ -141,7 +141,7 @@ def _by_forms(towers: Any, rows: "RowFactors | None", box: Sequence[tuple[Fracti
         _defined(towers, forms, field)
         factors, det = rows.evaluate(forms, field)
     except UndefinedOver as why:
-        return None, _largest_side(why.form)
+        return None, _largest_side(why.form, len(box))
     except Undefined:
         return None, None
     ranges = [value_range(v) for v in (*factors, det)]
@@ -151,7 +151,7 @@ def _by_forms(towers: Any, rows: "RowFactors | None", box: Sequence[tuple[Fracti
             bound *= lower_bound(r)
         return bound, None
     worst = min(range(len(ranges)), key=lambda k: lower_bound(ranges[k]))
-    return None, _largest_side([*factors, det][worst])
+    return None, _largest_side([*factors, det][worst], len(box))
 
 
 @dataclass(frozen=True)
@@ -219,12 +219,13 @@ def _factors(graph: Any, node: int) -> list[int]:
     return [f for a in args for f in _factors(graph, a)]
 
 
-def _largest_side(form: Any) -> int | None:
+def _largest_side(form: Any, sides: int) -> int | None:
+    """The side of the box whose terms move ``form`` the most (None: no side moves it)."""
     if not isinstance(form, Form):
         return None
-    sizes = form.side_sizes(max([*form.lin, *(b for _, b in form.quad), -1]) + 1)
-    best = max(range(len(sizes)), key=lambda a: sizes[a], default=None)
-    return best if best is not None and sizes[best] > 0 else None
+    sizes = form.side_sizes(sides)
+    best = max(range(sides), key=lambda a: sizes[a])
+    return best if sizes[best] > 0 else None
 
 
 def _defined(towers: Any, balls: Sequence[arb], field: Any) -> None:

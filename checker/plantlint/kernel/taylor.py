@@ -41,6 +41,23 @@ class Undefined(ArithmeticError):
 
 
 # -- number fields -----------------------------------------------------------------------
+def domain_error(name: str, a: arb) -> str | None:
+    """Why ``name`` is not defined (or not differentiable) over all of the ball ``a``, or
+    None: the domains every field of balls or forms over balls checks."""
+    if name in ("log", "sqrt") and not a > 0:
+        return name  # sqrt: not differentiable at 0, undefined below
+    if name in ("asin", "acos") and not (a > -1 and a < 1):
+        return name
+    if name == "inv" and a.contains(0):
+        return "division by a value that may be zero"
+    return None
+
+
+def _bits(field: Any) -> int | None:
+    """The working precision a field's numbers want (None: exact, keep the context's)."""
+    return None if getattr(field, "exact", False) else getattr(field, "prec", None)
+
+
 class ArbField:
     """Rigorous balls at ``prec`` bits."""
 
@@ -65,14 +82,9 @@ class ArbField:
         return arb.pi()
 
     def base(self, name: str, a: arb) -> arb:
-        if name in ("log",) and not a > 0:
-            raise Undefined(name)
-        if name == "sqrt" and not a > 0:
-            raise Undefined(name)  # not differentiable at 0, undefined below
-        if name in ("asin", "acos") and not (a > -1 and a < 1):
-            raise Undefined(name)
-        if name == "inv" and a.contains(0):
-            raise Undefined("division by a value that may be zero")
+        why = domain_error(name, a)
+        if why is not None:
+            raise Undefined(why)
         if name == "inv":
             return 1 / a
         out = getattr(a, name)()
@@ -596,7 +608,7 @@ class _Runner:
 def evaluate(program: Program, values: Sequence[Any], field: Any) -> list[Any]:
     """The outputs of ``program`` at ``values``: numbers of ``field``, or forms over a box
     (:class:`plantlint.kernel.taylor_forms.FormField`)."""
-    with precision(None if getattr(field, "exact", False) else getattr(field, "prec", None)):
+    with precision(_bits(field)):
         runner = _Runner(program, field)
         runner.step(0, [[v] for v in values])
     return [runner.series[o][0] for o in program.outputs]
@@ -647,7 +659,7 @@ class Towers:
         of any kind) directly. Without ``outputs`` only f and g are run (:attr:`fields`),
         and the series end after g."""
         program = self.program if outputs else self.fields
-        with precision(None if getattr(field, "exact", False) else getattr(field, "prec", None)):
+        with precision(_bits(field)):
             if start is None:
                 start = [field.number(v) for v in point]
             else:
@@ -840,4 +852,5 @@ def exact_or_balls(run: Any, precisions: Sequence[int] = (128, 512, 2048),
     return result, field
 
 
-__all__ = ["ArbField", "Inexact", "Jet", "QField", "Towers", "Undefined", "evaluate", "exact_or_balls"]
+__all__ = ["ArbField", "Inexact", "Jet", "QField", "Towers", "Undefined", "domain_error", "evaluate",
+           "exact_or_balls"]

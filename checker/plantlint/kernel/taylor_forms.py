@@ -43,7 +43,7 @@ from flint import arb
 
 from plantlint.kernel import decision as zd
 from plantlint.kernel.enclosures import int_power, tighter
-from plantlint.kernel.taylor import Dual, Jet, Undefined
+from plantlint.kernel.taylor import ArbField, Dual, Jet, Undefined, domain_error
 
 _JETS = (Jet, Dual)  # a form meeting a jet: the jet's own arithmetic takes it
 _UNIT = arb(0, 1)  # [-1, 1]
@@ -110,15 +110,10 @@ class Form:
             self._sizes = (_sum_magnitudes(self.lin.values()), _sum_magnitudes(self.quad.values()))
         return self._sizes
 
-    def linear_size(self) -> arb:
-        return self.sizes()[0]
-
-    def quadratic_size(self) -> arb:
-        return self.sizes()[1]
-
     def radius(self) -> arb:
         """An upper bound of |value - v0| over the box."""
-        return _magnitude(self.linear_size() + self.quadratic_size() + self.err)
+        linear, quadratic = self.sizes()
+        return _magnitude(linear + quadratic + self.err)
 
     def deviation(self) -> arb:
         """A ball holding value - v0 over the box (tighter than +/- :meth:`radius`): each
@@ -135,10 +130,6 @@ class Form:
         """A ball holding every value over the box."""
         r = self.v0 + self.deviation()
         return r if self.hull is None else tighter(r, self.hull)
-
-    def is_finite(self) -> bool:
-        return (self.v0.is_finite() and self.err.is_finite() and all(t.is_finite() for t in self.lin.values())
-                and all(t.is_finite() for t in self.quad.values()))
 
     def side_sizes(self, sides: int) -> list[float]:
         """Per side, how far its terms (linear, and quadratic with any side) move the form."""
@@ -259,12 +250,10 @@ def _composed(x: Form, d0: arb, d1: arb, d2: arb, d3: arb) -> Form:
 
 
 def _check(name: str, r: arb, form: Any = None) -> None:
-    """The domain of ``name`` over the range ``r`` (as :meth:`ArbField.base` checks it)."""
-    bad = ((name in ("log", "sqrt") and not r > 0)
-           or (name in ("asin", "acos") and not (r > -1 and r < 1))
-           or (name == "inv" and r.contains(0)))
-    if bad:
-        raise UndefinedOver("division by a value that may be zero" if name == "inv" else name, form)
+    """The domain of ``name`` over the range ``r`` (:func:`domain_error`, as balls check it)."""
+    why = domain_error(name, r)
+    if why is not None:
+        raise UndefinedOver(why, form)
 
 
 def form_function(name: str, x: Form) -> Form:
@@ -364,46 +353,26 @@ def form_atan2(y: Form, x: Form) -> Form:
     raise UndefinedOver("atan2 at or across its branch cut", y)
 
 
-class FormField:
+class FormField(ArbField):
     """The towers' field of forms over one box (see the module text); constants are arb
-    balls, which the forms take as they are."""
-
-    exact = False
+    balls, which the forms take as they are, and a function of one is the ball field's."""
 
     def __init__(self, prec: int = 64):
-        self.prec = prec
-
-    def const(self, q: Fraction) -> arb:
-        return arb(q.numerator) / q.denominator if q.denominator != 1 else arb(q.numerator)
+        super().__init__(prec)
 
     def number(self, value: Any) -> Any:
-        if isinstance(value, (Form, arb)):
-            return value
-        if isinstance(value, Fraction):
-            return self.const(value)
-        return arb(value)
-
-    def pi(self) -> arb:
-        return arb.pi()
+        return value if isinstance(value, Form) else super().number(value)
 
     def base(self, name: str, a: Any) -> Any:
-        if isinstance(a, Form):
-            return form_function(name, a)
-        return _ball_function(name, a)
+        return form_function(name, a) if isinstance(a, Form) else super().base(name, a)
 
     def powq(self, a: Any, q: Fraction) -> Any:
-        if isinstance(a, Form):
-            return form_powq(a, q)
-        if not a > 0:
-            raise Undefined("fractional power of a value that may be non-positive")
-        return (a.log() * q.numerator / q.denominator).exp()
+        return form_powq(a, q) if isinstance(a, Form) else super().powq(a, q)
 
     def atan2(self, y: Any, x: Any) -> Any:
         if isinstance(y, Form) or isinstance(x, Form):
             return form_atan2(_lifted(y), _lifted(x))
-        if y.contains(0) and not x > 0:
-            raise Undefined("atan2 at or across its branch cut")
-        return arb.atan2(y, x)
+        return super().atan2(y, x)
 
     def is_zero(self, a: Any) -> zd.ZeroDecision:
         return zd.of_ball(value_range(a))
@@ -412,15 +381,6 @@ class FormField:
 def _lifted(a: Any) -> Form:
     """A constant ball as a form."""
     return a if isinstance(a, Form) else Form(a, {}, {}, arb(0), a)
-
-
-def _ball_function(name: str, a: arb) -> arb:
-    """A function of a constant ball (a constant sub-expression of the model)."""
-    _check(name, a)
-    out = 1 / a if name == "inv" else getattr(a, name)()
-    if not out.is_finite():
-        raise Undefined(name)
-    return out
 
 
 def value_range(v: Any) -> arb:
